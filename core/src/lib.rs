@@ -1,0 +1,30 @@
+//! # clampwise-core
+//!
+//! A `no_std`, allocation-free, panic-free, fixed-point core that turns clamp-force sensor
+//! readings into live brake or clutch friction torque.
+//!
+//! **Caution.** The output is an *estimate*, validated only as far as its tests. It is not a
+//! certified safety function. Validate it on the bench for each lining and geometry, and follow
+//! the applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849 or the machine's
+//! own standard), local codes and licensed engineering practice.
+//!
+//! ## Data flow
+//!
+//! ```text
+//! geometry (f64, build time) ──► table::Table2 r_e(F, bedding)  ── kept in flash
+//! raw counts ─ sensor ─► clamp force F
+//! F, bedding ─ radius table ─► r_e;   T_lining, |v| ─ μ table ─► μ
+//! torque = −sign(v) · n_faces · μ · F · r_e
+//! ```
+//!
+//! Floats (via `libm`) appear only where tables are built ([`geometry`]); the per-sample path
+//! uses the fixed-point types of [`units`] and integer arithmetic only.
+//!
+//! ## Units, ranges and resolutions
+//!
+//! See [`units`] for the table of every quantity's Q format.
+#![cfg_attr(not(test), no_std)]
+#![forbid(unsafe_code)]
+
+pub mod table;
+pub mod units;
