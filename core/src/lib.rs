@@ -26,5 +26,8 @@
 #![cfg_attr(not(test), no_std)]
 #![forbid(unsafe_code)]
 
+pub mod adapt;
+pub mod estimator;
+pub mod flags;
 pub mod table;
 pub mod units;

@@ -1,0 +1,4 @@
+//! The per-sample pipeline (work in progress).
+mod torque;
+mod uncertainty;
+pub use uncertainty::Combination;

