@@ -13,6 +13,10 @@ pub struct Disc {
 }
 
 impl Disc {
+    /// Relative tolerance of the band edges when checking that a pad stays on the band, so that
+    /// vertices placed on an edge by trigonometry (a few ulps off) are accepted: 1·10⁻¹².
+    pub const TOLERANCE: f64 = 1e-12;
+
     /// A rubbing band from `inner_radius_m` to `outer_radius_m`, metres.
     ///
     /// # Errors
@@ -59,13 +63,23 @@ impl Disc {
         max_part: Parameter,
         max_m: f64,
     ) -> Result<(), GeometryError> {
-        if min_m < self.inner_radius_m {
+        if self.below_band(min_m) {
             return Err(self.leaves(min_part, min_m));
         }
-        if max_m > self.outer_radius_m {
+        if self.above_band(max_m) {
             return Err(self.leaves(max_part, max_m));
         }
         Ok(())
+    }
+
+    /// `r_m` lies inside the inner edge by more than rounding ([`Disc::TOLERANCE`]).
+    pub(crate) fn below_band(&self, r_m: f64) -> bool {
+        r_m < self.inner_radius_m * (1.0 - Self::TOLERANCE)
+    }
+
+    /// `r_m` lies beyond the outer edge by more than rounding ([`Disc::TOLERANCE`]).
+    pub(crate) fn above_band(&self, r_m: f64) -> bool {
+        r_m > self.outer_radius_m * (1.0 + Self::TOLERANCE)
     }
 
     pub(crate) fn leaves(&self, parameter: Parameter, radius_m: f64) -> GeometryError {

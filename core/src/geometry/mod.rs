@@ -18,11 +18,11 @@
 //! | [`Annulus`], solid disc | (2/3)(Ro³−Ri³)/(Ro²−Ri²); 2R/3 | (Ro+Ri)/2; R/2 | closed form [pub: Shigley ch. 16] |
 //! | [`SectorPad`], any angle in (0, 2π] | as the annulus | as the annulus | closed-form integrals; the angle cancels |
 //! | [`ButtonPad`], [`ButtonModel::PublishedTable`] | δ·e | δ·e | published table [mem], linear between rows |
-//! | [`ButtonPad`], [`ButtonModel::Integrated`] | ∫r dA / A | A / ∫dA/r | Gauss–Legendre, ~1·10⁻¹⁴ |
+//! | [`ButtonPad`], [`ButtonModel::Integrated`] | ∫r dA / A | A / ∫dA/r | Gauss–Legendre, ≤ 2·10⁻¹³ |
 //! | [`PolygonPad`], simple, convex or not | ∫r dA / A | A / ∫dA/r | Green's theorem, closed form per edge |
 //! | cone of half-angle α ([`ConeAngle`]) | r_e / sin α | r_e / sin α | [pub: Shigley ch. 16] |
 //!
-//! The two button-pad models differ by 1.6–3.0 % of r_e at R/e = 0.1…0.5 (see [`button`]'s
+//! The two button-pad models differ by 1.6–3.4 % of r_e at R/e = 0.1…0.5 (see [`button`]'s
 //! docs); they are kept as separate models and never tuned to agree.
 //!
 //! Every constructor validates its inputs and returns a [`GeometryError`] naming the offending
