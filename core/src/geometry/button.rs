@@ -12,8 +12,8 @@
 //!
 //! **The two disagree.** Integrating p ∝ 1/r over the circle gives δ = 0.9987, 0.9949, 0.9885,
 //! 0.9791, 0.9665 at R/e = 0.1 … 0.5 [calc], above the table's 0.983 … 0.938; the difference
-//! in δ is 0.016, 0.026, 0.031, 0.032, 0.029 (1.6 % to 3.4 % of r_e). The table's radius is the smaller, so it
-//! gives the lower, conservative torque. The reason for the gap is not known here; each model is
+//! in δ is 0.016, 0.026, 0.031, 0.032, 0.029 (1.6 % to 3.4 % of r_e). The table's radius is
+//! the smaller, so it gives the lower, conservative torque. The reason for the gap is not known here; each model is
 //! tested against its own reference and neither is tuned to match the other.
 //!
 //! ## How the integrated model integrates

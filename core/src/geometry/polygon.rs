@@ -28,8 +28,9 @@
 //! At least three finite vertices, no vertex repeating the one before it, not all collinear,
 //! no two edges crossing or touching (O(n²) pairwise test with orientation predicates; adjacent
 //! edges may only share their common vertex), a non-vanishing area, and every point of the pad
-//! on the disc's band (to within [`Disc::TOLERANCE`]): every vertex within the outer radius, every edge no nearer the axis than
-//! the inner radius, and the axis itself outside the pad when the band has a hole.
+//! on the disc's band to within [`Disc::TOLERANCE`]: every vertex within the outer radius,
+//! every edge no nearer the axis than the inner radius, and the axis itself outside the pad
+//! when the band has a hole.
 
 use super::Disc;
 use super::error::{self, GeometryError, Parameter};

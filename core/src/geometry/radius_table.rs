@@ -2,7 +2,7 @@
 //! point, built once from a [`Contact`] and kept in flash.
 //!
 //! The table holds, at each (clamp force, bedding) breakpoint, the lever arm of one face per
-//! unit μ·F (r_e, already divided by sin α for a cone) as [`Metres`](crate::units::Metres). The estimator computes
+//! unit μ·F (r_e, already divided by sin α for a cone) as [`Metres`]. The estimator computes
 //! torque = faces · μ · F · table(F, bedding). From geometry alone the table is flat in force;
 //! the force axis is there so that measured centre-of-pressure shifts can be loaded later.
 //! Because r_e is linear in bedding, the bilinear lookup reproduces the model between bedding
@@ -18,6 +18,8 @@
 //! **MEASURED_PLACEHOLDER** (`tests/tests/geometry_radius_table.rs`, which fails above
 //! 0.05 %). It comes from storing the lever arm in I8F24 (½ LSB = 30 nm) and the rounding of
 //! the bilinear step (≤ 1 LSB); it is largest on the smallest radii.
+//!
+//! [`Metres`]: crate::units::Metres
 //!
 //! ```
 //! use clampwise_core::geometry::{build_radius_table, Annulus, Contact};
@@ -38,8 +40,12 @@ use super::Contact;
 use super::error::{self, GeometryError, Parameter};
 use crate::table::Table2;
 
-/// Lever arm per face ([`Metres`](crate::units::Metres)) against clamp force ([`Newtons`](crate::units::Newtons)) × bedding ([`Ratio`](crate::units::Ratio)),
+/// Lever arm per face ([`Metres`]) against clamp force ([`Newtons`]) × bedding ([`Ratio`]),
 /// `NF` force breakpoints by `NB` bedding breakpoints.
+///
+/// [`Metres`]: crate::units::Metres
+/// [`Newtons`]: crate::units::Newtons
+/// [`Ratio`]: crate::units::Ratio
 pub type RadiusTable<const NF: usize, const NB: usize> = Table2<U8, U30, U24, NF, NB>;
 
 /// Build the friction-radius table of `contact` on the given breakpoints (host, build script or
