@@ -1,7 +1,7 @@
 //! Flat annular contacts, the solid disc, sector pads, friction faces and cones against the
 //! published formulas and the check values of REFERENCES.md (each source named beside its
 //! check, with its marking).
-#![allow(clippy::unwrap_used, clippy::float_cmp)]
+#![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
 
 use std::f64::consts::TAU;
 

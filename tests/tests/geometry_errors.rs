@@ -1,6 +1,6 @@
 //! Every invalid geometry gives its own typed error, whose message names the offending
 //! parameter; none panics. One test per case.
-#![allow(clippy::unwrap_used)]
+#![allow(clippy::indexing_slicing, clippy::unwrap_used)]
 
 use std::f64::consts::{FRAC_PI_2, TAU};
 

@@ -1,7 +1,12 @@
 //! Polygon pads: the core's Green's-theorem integrator against 2-D integration by a
 //! general-purpose quadrature crate, convergence of polygon approximations to the closed forms
 //! of the sector [pub: Shigley ch. 16] and the solid disc, and non-convex pads.
-#![allow(clippy::unwrap_used, clippy::float_cmp, clippy::cast_precision_loss)]
+#![allow(
+    clippy::indexing_slicing,
+    clippy::unwrap_used,
+    clippy::float_cmp,
+    clippy::cast_precision_loss
+)]
 
 mod common;
 

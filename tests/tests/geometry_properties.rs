@@ -3,7 +3,12 @@
 //! (Chebyshev's inequality on r and 1/r [calc]; uniform wear is the conservative rating
 //! [pub: Ugural ch. 13]), r_e rises with the outer radius, bedding moves r_e monotonically
 //! between the two, and a pad's radii do not change when it is turned about the axis.
-#![allow(clippy::unwrap_used, clippy::float_cmp, clippy::cast_precision_loss)]
+#![allow(
+    clippy::indexing_slicing,
+    clippy::unwrap_used,
+    clippy::float_cmp,
+    clippy::cast_precision_loss
+)]
 
 use std::f64::consts::TAU;
 

@@ -11,7 +11,7 @@
 //!   circle: uniform pressure r_e = ∫ r dA / A, uniform wear r_e = A / ∫ (1/r) dA.
 //!
 //! **The two disagree.** Integrating p ∝ 1/r over the circle gives δ = 0.9987, 0.9949, 0.9885,
-//! 0.9791, 0.9665 at R/e = 0.1 … 0.5 [calc], above the table's 0.983 … 0.938; the difference
+//! 0.9791, 0.9665 at R/e = 0.1 … 0.5 \[calc\], above the table's 0.983 … 0.938; the difference
 //! in δ is 0.016, 0.026, 0.031, 0.032, 0.029 (1.6 % to 3.4 % of r_e). The table's radius is
 //! the smaller, so it gives the lower, conservative torque. The reason for the gap is not known here; each model is
 //! tested against its own reference and neither is tuned to match the other.
@@ -81,10 +81,10 @@ impl ButtonPad {
     /// ```
     /// use clampwise_core::geometry::{ButtonModel, ButtonPad, Disc};
     /// let disc = Disc::new(0.05, 0.20)?;
-    /// // R/e = 0.2: the published table gives δ = 0.969 [mem].
+    /// // R/e = 0.2: the published table gives δ = 0.969 \[mem\].
     /// let table = ButtonPad::new(&disc, 0.025, 0.125, ButtonModel::PublishedTable)?;
     /// assert!((table.effective_radii().uniform_wear_m - 0.969 * 0.125).abs() < 1e-12);
-    /// // The integrated uniform-wear model gives δ = 0.9949 [calc].
+    /// // The integrated uniform-wear model gives δ = 0.9949 \[calc\].
     /// let int = ButtonPad::new(&disc, 0.025, 0.125, ButtonModel::Integrated)?;
     /// assert!((int.effective_radii().uniform_wear_m / 0.125 - 0.9949).abs() < 5e-5);
     /// # Ok::<(), clampwise_core::geometry::GeometryError>(())

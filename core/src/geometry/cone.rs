@@ -6,7 +6,7 @@
 //! under uniform pressure and μF(Do + Di)/(4 sin α) under uniform wear]. Uniform wear keeps
 //! p·r = const on the cone as on a flat face, so r_e is that of the projected shape under
 //! either pressure model, and the lever arm per unit axial force is r_e/sin α. Half-angles in
-//! practice are about 8–18° [practice]; the model accepts any α in (0°, 90°) exclusive.
+//! practice are about 8–18° \[practice\]; the model accepts any α in (0°, 90°) exclusive.
 
 use core::f64::consts::FRAC_PI_2;
 

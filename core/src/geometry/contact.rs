@@ -99,7 +99,7 @@ pub struct Contact<'a> {
 
 impl<'a> Contact<'a> {
     /// A contact of `faces` faces (1 ..= 255; a caliper has 2, a multi-plate clutch with n_a
-    /// driving and n_b driven plates has n_a + n_b − 1 [mem]) of `shape`, flat when
+    /// driving and n_b driven plates has n_a + n_b − 1 \[mem\]) of `shape`, flat when
     /// `cone_half_angle_rad` is `None`.
     ///
     /// # Errors
