@@ -89,6 +89,17 @@ impl PadIntegrals {
     /// pad's smallest radius `min_radius_m` (where uniform wear puts its peak).
     /// Uniform pressure: F/A; uniform wear: F / (r_min·∫ (1/r) dA). Returns +∞ for uniform
     /// wear on a pad that reaches the axis (r_min = 0), where p ∝ 1/r has no finite peak.
+    ///
+    /// ```
+    /// use clampwise_core::geometry::{Annulus, PressureModel};
+    /// use std::f64::consts::PI;
+    /// // Uniform wear on an annulus \[pub: Shigley ch. 16\]: F = 2π·p_max·Ri·(Ro − Ri).
+    /// let (ri, ro, force) = (0.06, 0.10, 10_000.0);
+    /// let i = Annulus::new(ri, ro)?.integrals();
+    /// let p_max = i.peak_pressure_pa(PressureModel::UniformWear, force, ri);
+    /// assert!((p_max - force / (2.0 * PI * ri * (ro - ri))).abs() < 1e-6);
+    /// # Ok::<(), clampwise_core::geometry::GeometryError>(())
+    /// ```
     pub fn peak_pressure_pa(
         &self,
         model: PressureModel,
