@@ -26,5 +26,6 @@
 #![cfg_attr(not(test), no_std)]
 #![forbid(unsafe_code)]
 
+pub mod sensor;
 pub mod table;
 pub mod units;
