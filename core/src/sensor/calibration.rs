@@ -316,6 +316,7 @@ impl TwoPoint {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {
     use super::*;
 
@@ -377,7 +378,10 @@ mod tests {
         // Beyond the range: clamped to 120 °C and reported.
         let hot = cal.force(400_000, Some(Celsius::lit("300")));
         assert!(hot.temperature_clamped);
-        assert_eq!(hot.force, cal.force(400_000, Some(Celsius::lit("120"))).force);
+        assert_eq!(
+            hot.force,
+            cal.force(400_000, Some(Celsius::lit("120"))).force
+        );
     }
 
     #[test]

@@ -233,7 +233,10 @@ impl Diagnostics {
                 if w > u32::MAX as i128 {
                     return Err(field_err("limits.stuck.time", Problem::OutOfRange));
                 }
-                w as u32
+                // 1 ≤ w ≤ u32::MAX checked just above (`try_from` is not const).
+                #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+                let w = w as u32;
+                w
             }
         };
         Ok(Self {
@@ -448,10 +451,8 @@ impl ChannelDiagnostics {
         let rate_ok = if self.ever_accepted {
             let change = (i128::from(f) - i128::from(self.last_accepted)) << 24;
             let ok = change.abs() <= d.allowance_q32(self.since_accepted);
-            self.rate.update(
-                &db.rate,
-                if ok { Evidence::Good } else { Evidence::Bad },
-            );
+            self.rate
+                .update(&db.rate, if ok { Evidence::Good } else { Evidence::Bad });
             ok
         } else {
             true

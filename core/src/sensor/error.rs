@@ -40,9 +40,7 @@ impl Problem {
             Self::Zero => "must not be zero",
             Self::OutOfRange => "is outside the range the fixed-point path supports",
             Self::NotAboveLowerBound => "must be greater than its lower bound",
-            Self::CutOffTooLow => {
-                "is too low for the sample rate (filter coefficient below 2^-20)"
-            }
+            Self::CutOffTooLow => "is too low for the sample rate (filter coefficient below 2^-20)",
             Self::CutOffTooHigh => "must be below half the sample rate",
             Self::SampleRateMismatch => "was built for a different sample rate",
             Self::UncertaintyNotLarger => {
@@ -100,7 +98,9 @@ impl fmt::Display for SensorError {
                 field,
                 problem,
             } => write!(f, "sensor channel {channel}: `{field}` {problem}"),
-            Self::Field { field, problem } => write!(f, "sensor configuration: `{field}` {problem}"),
+            Self::Field { field, problem } => {
+                write!(f, "sensor configuration: `{field}` {problem}")
+            }
         }
     }
 }
@@ -108,6 +108,7 @@ impl fmt::Display for SensorError {
 impl core::error::Error for SensorError {}
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {
     use super::*;
 

@@ -138,6 +138,7 @@ impl ActuatorModel {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {
     use super::*;
 
@@ -156,7 +157,9 @@ mod tests {
         let t = tr();
         let mut m = ActuatorModel::new();
         let f = |m: &mut ActuatorModel, p: f64| {
-            m.update(&t, ActuatorCommand::from_num(p)).force.to_num::<f64>()
+            m.update(&t, ActuatorCommand::from_num(p))
+                .force
+                .to_num::<f64>()
         };
         assert_eq!(f(&mut m, 0.0), -500.0);
         assert_eq!(f(&mut m, 10.0), 2000.0 - 400.0); // rising: lower branch

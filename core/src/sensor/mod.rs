@@ -155,7 +155,7 @@ impl ChannelMask {
         } else {
             count
         };
-        Self(((1u16 << n) - 1) as u8)
+        Self(0x0f >> (MAX_CHANNELS - n))
     }
 
     /// The bits.

@@ -206,6 +206,7 @@ pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Ne
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {
     use super::*;
 
@@ -270,7 +271,10 @@ mod tests {
         // Tolerance one LSB short of the full swing: the two equal pairs tie, the model at
         // the bottom picks the low pair.
         let v = vote(&[big, small, big, small], Newtons::MAX, Some(Newtons::MIN));
-        assert_eq!((v.agreement, v.used.bits()), (Agreement::ModelTieBreak, 0b1010));
+        assert_eq!(
+            (v.agreement, v.used.bits()),
+            (Agreement::ModelTieBreak, 0b1010)
+        );
         let v = vote(&[big, small], TOL, None);
         assert_eq!(v.agreement, Agreement::Unresolved);
         assert_eq!(v.spread, Newtons::MAX);
