@@ -24,7 +24,7 @@
 //!   S > noise + r·k (r = `max_rate`/f_s), i.e. K = ⌈(S − noise)/r⌉ − 1 samples; raised at
 //!   sample `N` if K ≥ `N`, else never (the step is then accepted after K samples).
 //!   A one-sample spike is rejected for one sample and raised only if `N` = 1.
-//! - stuck: W + `N` − 1 samples after the window's first sample, W = ⌈`time`·f_s⌉, when the
+//! - stuck: W + `N` − 1 samples after the window's first sample, W = `time`·f_s rounded, when the
 //!   command had already spanned `command_span` by then.
 //! - disagreement: from the first sample at which the *filtered* value is beyond the
 //!   tolerance, `N` samples.
@@ -144,7 +144,8 @@ impl DebounceSet {
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct StuckCheck {
-    /// How long the force must stay within the noise band (s, > 0); rounded up to samples.
+    /// How long the force must stay within the noise band (s, > 0); rounded to the nearest
+    /// whole number of samples, at least one.
     pub time: Seconds,
     /// How far the actuator command must move in that time for "no change" to be a fault
     /// (command units, > 0). Set it above the command's own noise.
@@ -228,8 +229,10 @@ impl Diagnostics {
                 if s.command_span.to_bits() <= 0 {
                     return Err(field_err("limits.stuck.command_span", Problem::NotPositive));
                 }
-                // ⌈time · f_s⌉ from Q32 seconds.
-                let w = ((s.time.to_bits() as i128) * (fs as i128) + (1i128 << 32) - 1) >> 32;
+                // time · f_s from Q32 seconds, rounded to the nearest sample: a decimal time
+                // such as 0.05 s is not exact in binary, and rounding up would add a sample.
+                let w = ((s.time.to_bits() as i128) * (fs as i128) + (1i128 << 31)) >> 32;
+                let w = if w < 1 { 1 } else { w };
                 if w > u32::MAX as i128 {
                     return Err(field_err("limits.stuck.time", Problem::OutOfRange));
                 }

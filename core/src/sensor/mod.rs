@@ -339,7 +339,7 @@ impl<const C: usize> SensorConfig<C> {
         &self.diagnostics.limits
     }
 
-    /// Stuck window in samples (⌈time · f_s⌉), `None` when the stuck check is off.
+    /// Stuck window in samples (time · f_s, rounded, ≥ 1), `None` when the stuck check is off.
     pub const fn stuck_window_samples(&self) -> Option<u32> {
         self.diagnostics.stuck_window()
     }
