@@ -7,7 +7,13 @@
 //! and the bench limits in `sensor_common` [calc]: debounce raise/clear counts invalid 3/5,
 //! rail 2/4, range 4/3, rate 3/6, stuck 5/5, disagreement 6/8; rate limit r = 200 N/sample,
 //! noise band 20 N, hold 2 samples, stuck window W = 50 samples, tolerance 300 N.
-#![allow(clippy::unwrap_used, clippy::float_cmp, clippy::cast_possible_truncation)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::float_cmp,
+    clippy::cast_possible_truncation,
+    clippy::cast_sign_loss,
+    clippy::indexing_slicing
+)]
 
 mod sensor_common;
 
@@ -26,7 +32,10 @@ fn first_filtered_crossing(deviation: impl Fn(usize) -> f64, tolerance: f64) -> 
         .find(|&k| {
             y += alpha * (deviation(k) - y);
             // Keep clear of the boundary so fixed-point rounding cannot move the sample.
-            assert!((y - tolerance).abs() > 0.05, "test parameters too near the threshold");
+            assert!(
+                (y - tolerance).abs() > 0.05,
+                "test parameters too near the threshold"
+            );
             y > tolerance
         })
         .unwrap()
@@ -89,7 +98,11 @@ fn step_beyond_the_actuator_rate() {
         let r = b.step([ok(counts(F0 + step))], Some(10.0));
         let f = r.channel_flags[0];
         assert_eq!(f.contains(ChannelFlags::REJECTED), k < rejected, "k = {k}");
-        assert_eq!(f.contains(ChannelFlags::RATE), (2..14).contains(&k), "k = {k}");
+        assert_eq!(
+            f.contains(ChannelFlags::RATE),
+            (2..14).contains(&k),
+            "k = {k}"
+        );
         match k {
             0 | 1 => assert_eq!((r.health, r.force), (Health::Degraded, Some(n(F0)))),
             2..=13 => assert_eq!(r.health, Health::Lost),
@@ -169,11 +182,7 @@ fn drift_of_one_of_three_channels() {
     assert_eq!(first, 152);
     for k in 0..=170 {
         let r = b.step(
-            [
-                ok(counts(F0)),
-                ok(counts(F0)),
-                ok(counts(F0 + drift(k))),
-            ],
+            [ok(counts(F0)), ok(counts(F0)), ok(counts(F0 + drift(k)))],
             Some(10.0),
         );
         // The median keeps the output exact throughout.
@@ -276,7 +285,11 @@ fn force_beyond_the_plausible_range() {
         let k = j - 10;
         let r = b.step([ok(counts(f))], Some(f / 1000.0));
         let flags = r.channel_flags[0];
-        assert_eq!(flags.contains(ChannelFlags::OUT_OF_RANGE), k >= 3, "k = {k}");
+        assert_eq!(
+            flags.contains(ChannelFlags::OUT_OF_RANGE),
+            k >= 3,
+            "k = {k}"
+        );
         assert_eq!(flags.contains(ChannelFlags::REJECTED), k >= 0, "k = {k}");
         if let ForceSource::Channels { .. } = r.source {
             assert!(r.force.unwrap() <= n(60_000.0));
@@ -316,7 +329,11 @@ fn one_of_three_channels_lying() {
         let r = b.step([ok(counts(F0)); 3], Some(10.0));
         let f = r.channel_flags[1];
         assert_eq!(f.contains(ChannelFlags::REJECTED), k < rejected, "k = {k}");
-        assert_eq!(f.contains(ChannelFlags::RATE), (2..9).contains(&k), "k = {k}");
+        assert_eq!(
+            f.contains(ChannelFlags::RATE),
+            (2..9).contains(&k),
+            "k = {k}"
+        );
         assert_eq!(f.contains(ChannelFlags::DISAGREE), k < 11, "k = {k}");
         assert_eq!(r.health == Health::Ok, k >= 12, "k = {k}");
         assert_eq!(r.force, Some(n(F0)));
@@ -337,8 +354,19 @@ fn one_of_three_channels_lying() {
         assert!(!r.channel_flags[2].contains(ChannelFlags::REJECTED));
         assert_eq!(r.force, Some(n(F0)));
         // Out-voted from k = 3; once flagged (k = 8) it is left out and the rest agree.
-        assert_eq!(r.disagreement(), (first..=first + 5).contains(&k), "k = {k}");
-        assert_eq!(r.health, if k < first { Health::Ok } else { Health::Degraded });
+        assert_eq!(
+            r.disagreement(),
+            (first..=first + 5).contains(&k),
+            "k = {k}"
+        );
+        assert_eq!(
+            r.health,
+            if k < first {
+                Health::Ok
+            } else {
+                Health::Degraded
+            }
+        );
         assert_eq!(
             r.channel_flags[2].contains(ChannelFlags::DISAGREE),
             k >= first + 5,
@@ -443,7 +471,10 @@ fn two_channels() {
     for _ in 0..50 {
         let r = b.step([ok(counts(F0)), ok(counts(F0 + 2000.0))], None);
         assert_eq!(r.agreement, Agreement::Unresolved);
-        assert_eq!((r.health, r.force), (Health::Degraded, Some(n(F0 + 1000.0))));
+        assert_eq!(
+            (r.health, r.force),
+            (Health::Degraded, Some(n(F0 + 1000.0)))
+        );
         assert_eq!(r.uncertainty, n(1100.0));
     }
 }
