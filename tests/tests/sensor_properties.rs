@@ -49,7 +49,11 @@ fn sample_strategy() -> impl Strategy<Value = Sample> {
             (-100_000i32..100_000).prop_map(|d| Some((10 << 16) + d)),
             any::<i32>().prop_map(Some),
         ],
-        prop_oneof![Just(None), any::<i32>().prop_map(Some)],
+        prop_oneof![
+            3 => Just(None),
+            2 => (-40i32 << 16..125 << 16).prop_map(Some),
+            1 => any::<i32>().prop_map(Some),
+        ],
     )
         .prop_map(|(raw, command, temperature)| Sample {
             raw,
@@ -102,6 +106,7 @@ fn check<const C: usize>(samples: &[Sample]) -> Result<(), TestCaseError> {
             }
             if r.health == Health::Ok {
                 prop_assert!(r.channel_flags.iter().all(|f| f.is_empty()), "{r:?}");
+                prop_assert!(!r.temperature_clamped);
             }
             match r.source {
                 ForceSource::Channels { mask } => {
@@ -169,7 +174,7 @@ fn the_inputs_reach_every_health_and_source() {
     let mut runner = TestRunner::deterministic();
     let cfg = &configs::<3>()[0];
     let mut state = SensorState::<3>::new();
-    let mut seen = [false; 6];
+    let mut seen = [false; 7];
     for _ in 0..20_000 {
         let s = sample_strategy().new_tree(&mut runner).unwrap().current();
         let raw: [RawChannel; 3] = core::array::from_fn(|i| s.raw[i]);
@@ -188,6 +193,7 @@ fn the_inputs_reach_every_health_and_source() {
             .channel_flags
             .iter()
             .any(|f| f.contains(ChannelFlags::REJECTED));
+        seen[6] |= r.temperature_clamped;
     }
     assert!(seen.iter().all(|&s| s), "{seen:?}");
 }

@@ -8,14 +8,14 @@
 //!
 //! (Smith, *The Scientist and Engineer's Guide to Digital Signal Processing*, ch. 19,
 //! "single pole recursive filters", eq. 19-5: a₀ = 1 − x, b₁ = x, x = e^(−2π f_c) with f_c as a
-//! fraction of the sample rate [mem]). The pole z = e^(−T/τ), τ = 1/(2π f_c), is the image of
+//! fraction of the sample rate \[mem\]). The pole z = e^(−T/τ), τ = 1/(2π f_c), is the image of
 //! the continuous pole s = −1/τ (impulse invariance, Oppenheim & Schafer, *Discrete-Time
-//! Signal Processing*, ch. 7 [mem]); the coefficients sum to one, so the DC gain is exactly 1.
+//! Signal Processing*, ch. 7 \[mem\]); the coefficients sum to one, so the DC gain is exactly 1.
 //! With the input entering without delay this is the zero-order-hold (step-invariant)
 //! discretisation advanced by one sample: after a unit step applied at sample 0, output sample
-//! n equals the continuous first-order response 1 − e^(−t/τ) at t = (n + 1)·T [calc]. The cut-off
+//! n equals the continuous first-order response 1 − e^(−t/τ) at t = (n + 1)·T \[calc\]. The cut-off
 //! sets τ; the −3 dB frequency of the discrete filter is within 1 % of f_c for f_c ≤ f_s/20
-//! (0.83 % at f_s/20, 3.5 % at f_s/10) [calc].
+//! (0.83 % at f_s/20, 3.5 % at f_s/10) \[calc\].
 //!
 //! ## Fixed point
 //!

@@ -36,8 +36,9 @@
 //!
 //! - A force from the channels comes only from channels with no raised flag and not stale
 //!   ([`ChannelFlags::UNUSABLE`] clear). [`Health::Ok`] means every configured channel was
-//!   used, all agreed, and no flag at all is set on any channel (not even
-//!   [`ChannelFlags::REJECTED`]); anything less is [`Health::Degraded`]. With no usable
+//!   used, all agreed, no flag at all is set on any channel (not even
+//!   [`ChannelFlags::REJECTED`]) and no sensor temperature was clamped; anything less is
+//!   [`Health::Degraded`]. With no usable
 //!   channel, health is [`Health::Lost`], and the force is the actuator fallback (when a
 //!   transfer is configured and a command is given) or absent.
 //! - Uncertainty (±N): `channel_uncertainty`, plus for a held channel the most the force can
@@ -183,7 +184,8 @@ impl ChannelMask {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum Health {
-    /// Every configured channel used, all agreeing, no flag set on any channel.
+    /// Every configured channel used, all agreeing, no flag set on any channel, sensor
+    /// temperature inside the compensation range.
     Ok,
     /// A force from the channels, but with reduced redundancy, a held value, a tie broken by
     /// the model or unresolved, or some flag set.
@@ -412,6 +414,54 @@ impl<const C: usize> SensorState<C> {
     ///   is kept for the samples without.
     ///
     /// O(1), integers only, no panic for any input.
+    ///
+    /// ```
+    /// use clampwise_core::sensor::*;
+    /// use clampwise_core::units::Newtons;
+    ///
+    /// # const CAL: ChannelCalibration = ChannelCalibration {
+    /// #     gain: NewtonsPerCount::lit("0.01"),
+    /// #     offset: Newtons::ZERO,
+    /// #     rails: AdcRails { low: 0, high: 16_777_215, margin: 4 },
+    /// #     temperature: None,
+    /// # };
+    /// # let limits = DiagnosticLimits {
+    /// #     force_min: Newtons::lit("-1000"),
+    /// #     force_max: Newtons::lit("100000"),
+    /// #     max_rate: NewtonsPerSecond::lit("1000000"),
+    /// #     noise_band: Newtons::lit("10"),
+    /// #     stuck: None,
+    /// #     debounce: DebounceSet::uniform(Debounce { raise_after: 2, clear_after: 2 }),
+    /// #     max_hold_samples: 0,
+    /// # };
+    /// # let voting = VotingLimits {
+    /// #     tolerance: Newtons::lit("200"),
+    /// #     channel_uncertainty: Newtons::lit("50"),
+    /// # };
+    /// // Two channels and a fallback of 500 N per ampere (fictional winch brake).
+    /// let transfer = ActuatorTransfer {
+    ///     gain: NewtonsPerCommand::lit("500"),
+    ///     offset: Newtons::ZERO,
+    ///     hysteresis: Newtons::lit("100"),
+    ///     uncertainty: Newtons::lit("1000"),
+    /// };
+    /// let filter = LowPass::new(100.0, 1000).unwrap();
+    /// let cfg = SensorConfig::new(1000, [CAL; 2], filter, limits, voting, Some(transfer)).unwrap();
+    /// let mut state = SensorState::new();
+    /// let amps = Some(ActuatorCommand::lit("10"));
+    ///
+    /// let good = RawChannel { counts: 500_000, valid: true };
+    /// let r = state.update(&cfg, &[good, good], amps, None);
+    /// assert_eq!((r.force, r.health), (Some(Newtons::lit("5000")), Health::Ok));
+    ///
+    /// // Both acquisitions drop out: no channel left, the command carries the estimate.
+    /// let lost = RawChannel { counts: 0, valid: false };
+    /// let r = state.update(&cfg, &[lost, lost], amps, None);
+    /// assert_eq!(r.source, ForceSource::ActuatorFallback);
+    /// assert_eq!(r.health, Health::Lost);
+    /// assert_eq!(r.uncertainty, Newtons::lit("1050")); // 1000 + 100/2
+    /// assert!(r.channel_flags[0].contains(ChannelFlags::REJECTED | ChannelFlags::STALE));
+    /// ```
     pub fn update(
         &mut self,
         cfg: &SensorConfig<C>,
@@ -508,7 +558,8 @@ impl<const C: usize> SensorState<C> {
             let clean = channel_flags.iter().all(|f| f.is_empty());
             let all_used = v.used == ChannelMask::first(C);
             let agreed = matches!(v.agreement, Agreement::Single | Agreement::Unanimous);
-            let health = if clean && all_used && agreed {
+            // A temperature outside the compensation range leaves the calibration unproven.
+            let health = if clean && all_used && agreed && !temperature_clamped {
                 Health::Ok
             } else {
                 Health::Degraded
@@ -537,5 +588,176 @@ impl<const C: usize> SensorState<C> {
             saturated,
             temperature_clamped,
         }
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::panic)]
+mod tests {
+    use super::*;
+    use crate::units::Seconds;
+
+    const CAL: ChannelCalibration = ChannelCalibration {
+        gain: NewtonsPerCount::lit("0.01"),
+        offset: Newtons::ZERO,
+        rails: AdcRails {
+            low: 0,
+            high: 16_777_215,
+            margin: 4,
+        },
+        temperature: None,
+    };
+    const LIMITS: DiagnosticLimits = DiagnosticLimits {
+        force_min: Newtons::lit("-1000"),
+        force_max: Newtons::lit("100000"),
+        max_rate: NewtonsPerSecond::lit("1000000"),
+        noise_band: Newtons::lit("10"),
+        stuck: Some(StuckCheck {
+            time: Seconds::lit("0.1"),
+            command_span: ActuatorCommand::lit("0.5"),
+        }),
+        debounce: DebounceSet::uniform(Debounce {
+            raise_after: 2,
+            clear_after: 2,
+        }),
+        max_hold_samples: 1,
+    };
+    const VOTING: VotingLimits = VotingLimits {
+        tolerance: Newtons::lit("200"),
+        channel_uncertainty: Newtons::lit("50"),
+    };
+    const TRANSFER: ActuatorTransfer = ActuatorTransfer {
+        gain: NewtonsPerCommand::lit("500"),
+        offset: Newtons::ZERO,
+        hysteresis: Newtons::lit("100"),
+        uncertainty: Newtons::lit("1000"),
+    };
+    // α = 1/16, from a build script for instance.
+    const FILTER: LowPass = match LowPass::from_coefficient_bits(1 << 56, 1000) {
+        Ok(f) => f,
+        Err(_) => panic!("bad filter"),
+    };
+    // The whole configuration built at compile time: a firmware keeps it in flash.
+    const CFG: SensorConfig<2> =
+        match SensorConfig::new(1000, [CAL; 2], FILTER, LIMITS, VOTING, Some(TRANSFER)) {
+            Ok(c) => c,
+            Err(_) => panic!("bad sensor configuration"),
+        };
+
+    #[test]
+    fn a_const_configuration_runs() {
+        let mut s = SensorState::new();
+        let raw = [RawChannel {
+            counts: 500_000,
+            valid: true,
+        }; 2];
+        let r = s.update(&CFG, &raw, Some(ActuatorCommand::lit("10")), None);
+        assert_eq!(r.force, Some(Newtons::lit("5000")));
+        assert_eq!(r.health, Health::Ok);
+        assert_eq!(CFG.stuck_window_samples(), Some(100));
+        assert_eq!(CFG.rate_per_sample_q32(), 1000 << 32);
+    }
+
+    fn build<const C: usize>(
+        channels: [ChannelCalibration; C],
+        filter: LowPass,
+        limits: DiagnosticLimits,
+        voting: VotingLimits,
+        fallback: Option<ActuatorTransfer>,
+    ) -> SensorError {
+        SensorConfig::new(1000, channels, filter, limits, voting, fallback).unwrap_err()
+    }
+
+    fn field(field: &'static str, problem: Problem) -> SensorError {
+        SensorError::Field { field, problem }
+    }
+
+    #[test]
+    fn bad_configurations_name_the_field() {
+        let t = Some(TRANSFER);
+        assert_eq!(
+            build::<0>([], FILTER, LIMITS, VOTING, t),
+            SensorError::ChannelCount { channels: 0 }
+        );
+        assert_eq!(
+            build([CAL; 5], FILTER, LIMITS, VOTING, t),
+            SensorError::ChannelCount { channels: 5 }
+        );
+        let other_rate = LowPass::from_coefficient_bits(1 << 56, 2000).unwrap();
+        assert_eq!(
+            build([CAL; 1], other_rate, LIMITS, VOTING, t),
+            field("filter", Problem::SampleRateMismatch)
+        );
+        let zero_gain = ChannelCalibration {
+            gain: NewtonsPerCount::ZERO,
+            ..CAL
+        };
+        assert_eq!(
+            build([CAL, zero_gain, CAL], FILTER, LIMITS, VOTING, t),
+            SensorError::Channel {
+                channel: 1,
+                field: "gain",
+                problem: Problem::Zero
+            }
+        );
+        let inverted = DiagnosticLimits {
+            force_max: Newtons::lit("-1000"),
+            ..LIMITS
+        };
+        assert_eq!(
+            build([CAL; 1], FILTER, inverted, VOTING, t),
+            field("limits.force_max", Problem::NotAboveLowerBound)
+        );
+        let full = DiagnosticLimits {
+            force_max: Newtons::MAX,
+            ..LIMITS
+        };
+        assert_eq!(
+            build([CAL; 1], FILTER, full, VOTING, t),
+            field("limits.force_max", Problem::OutOfRange)
+        );
+        let mut no_rate_debounce = LIMITS;
+        no_rate_debounce.debounce.rate.raise_after = 0;
+        assert_eq!(
+            build([CAL; 1], FILTER, no_rate_debounce, VOTING, t),
+            field("limits.debounce.rate", Problem::NotPositive)
+        );
+        let instant_stuck = DiagnosticLimits {
+            stuck: Some(StuckCheck {
+                time: Seconds::ZERO,
+                command_span: ActuatorCommand::ONE,
+            }),
+            ..LIMITS
+        };
+        assert_eq!(
+            build([CAL; 1], FILTER, instant_stuck, VOTING, t),
+            field("limits.stuck.time", Problem::NotPositive)
+        );
+        let no_tolerance = VotingLimits {
+            tolerance: Newtons::ZERO,
+            ..VOTING
+        };
+        assert_eq!(
+            build([CAL; 1], FILTER, LIMITS, no_tolerance, t),
+            field("voting.tolerance", Problem::NotPositive)
+        );
+        let confident = ActuatorTransfer {
+            uncertainty: Newtons::lit("50"),
+            ..TRANSFER
+        };
+        assert_eq!(
+            build([CAL; 1], FILTER, LIMITS, VOTING, Some(confident)),
+            field("fallback.uncertainty", Problem::UncertaintyNotLarger)
+        );
+    }
+
+    #[test]
+    fn channel_masks() {
+        assert_eq!(ChannelMask::first(3).bits(), 0b111);
+        assert_eq!(ChannelMask::first(9).bits(), 0b1111);
+        assert_eq!(ChannelMask::first(0), ChannelMask::EMPTY);
+        assert!(ChannelMask::from_bits(0b1010).contains(3));
+        assert!(!ChannelMask::from_bits(0xff).contains(4));
+        assert_eq!(ChannelMask::from_bits(0xff).count(), 4);
     }
 }
