@@ -19,6 +19,8 @@
 //!
 //! Stated latencies (samples from the first faulty sample to the flag, exactly; `N` is the
 //! check's `raise_after`):
+//! - a sample failing an instantaneous check is rejected in that same sample (latency 0);
+//!   the channel then stands on its last accepted value for at most `max_hold_samples`.
 //! - invalid, rail, range: `N`.
 //! - rate, for a step of S newtons after a settled signal: bad for the k = 1, 2, … with
 //!   S > noise + r·k (r = `max_rate`/f_s), i.e. K = ⌈(S − noise)/r⌉ − 1 samples; raised at
@@ -28,6 +30,14 @@
 //!   command had already spanned `command_span` by then.
 //! - disagreement: from the first sample at which the *filtered* value is beyond the
 //!   tolerance, `N` samples.
+//!
+//! Clearing takes `M` (`clear_after`) good samples in the same way. The checks on the sample
+//! run before the vote, so a channel whose invalid/rail/range/rate/stuck flag clears is used in
+//! that same sample; the disagreement evidence comes from the vote, so a channel whose
+//! disagreement flag clears rejoins the vote in the next sample. A channel that returns to the
+//! truth with a jump (a liar coming back, a sensor un-sticking) is rate-checked like any other
+//! jump: rejected until the allowance covers it, then its filter restarts from the sample if
+//! its hold had run out.
 
 use bitflags::bitflags;
 
