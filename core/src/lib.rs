@@ -31,5 +31,6 @@
 #![forbid(unsafe_code)]
 
 pub mod geometry;
+pub mod sensor;
 pub mod table;
 pub mod units;
