@@ -26,5 +26,12 @@
 #![cfg_attr(not(test), no_std)]
 #![forbid(unsafe_code)]
 
+pub mod friction;
+pub mod record;
+#[cfg(feature = "std")]
+pub mod reference;
+pub mod sae_j866;
 pub mod table;
+pub mod thermal;
 pub mod units;
+pub mod wear;
