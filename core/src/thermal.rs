@@ -528,7 +528,6 @@ impl ThermalState {
         }
     }
 
-    #[allow(dead_code)] // used by the record module
     pub(crate) const fn raw(&self) -> (i64, i64) {
         (self.rotor_q32, self.lining_q32)
     }
