@@ -26,6 +26,10 @@
 #![cfg_attr(not(test), no_std)]
 #![forbid(unsafe_code)]
 
+// The f64 reference models use std's float functions; host only.
+#[cfg(feature = "std")]
+extern crate std;
+
 pub mod friction;
 pub mod record;
 #[cfg(feature = "std")]
