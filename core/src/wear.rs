@@ -29,8 +29,8 @@
 //!
 //! dt is held as Q63 s, so a per-sample increment `|P|·dt` is exact to 2⁻⁶⁴ J: a 3 mJ increment
 //! still counts in full at 10¹⁰ J and beyond (tested). Each bedding step multiplies `1 − b` by
-//! the third-order Taylor polynomial of `exp(−dE/E₀)` rounded down, so `b` is monotone, never
-//! above 1, and within `Σ (dE/E₀)⁴/24 + n·2⁻⁶²` of `1 − exp(−E/E₀)`. Measured against the
+//! the fourth-order Taylor polynomial of `exp(−dE/E₀)` rounded down, so `b` is monotone, never
+//! above 1, and within `Σ (dE/E₀)⁵/120 + n·2⁻⁶²` of `1 − exp(−E/E₀)`. Measured against the
 //! f64 reference [`crate::reference::wear`]: bedding within **2 LSB of [`Ratio`]** (1.9·10⁻⁹),
 //! energy within 1 LSB of [`Joules`], thickness loss within 1 LSB of [`Metres`].
 
@@ -367,8 +367,11 @@ impl WearState {
         let x = ((step_q48.min(cfg.e0_q48)).saturating_mul(cfg.bedding_recip) >> 65).min(ONE_Q62);
         let x2 = (x * x) >> 62;
         let x3 = (x2 * x) >> 62;
-        // exp(−x) ≈ 1 − x + x²/2 − x³/6 ∈ [1/3, 1] for x ∈ [0, 1].
-        let g = (ONE_Q62 + x2 / 2).saturating_sub(x + x3 / 6).min(ONE_Q62);
+        let x4 = (x3 * x) >> 62;
+        // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
+        let g = (ONE_Q62 + x2 / 2 + x4 / 24)
+            .saturating_sub(x + x3 / 6)
+            .min(ONE_Q62);
         let u = (u128::from(self.unbedded_q62) * g) >> 62;
         self.unbedded_q62 = u64::try_from(u).unwrap_or(0).min(self.unbedded_q62);
 
@@ -510,14 +513,14 @@ mod tests {
             let cfg = WearConfig::new(&p).unwrap();
             let mut s = WearState::new();
             let mut last = Ratio::ZERO;
-            let mut taylor = 0.0; // Σ (dE/E₀)⁴/24, the relative shortfall of 1 − b
+            let mut taylor = 0.0; // Σ (dE/E₀)⁵/120, the relative shortfall of 1 − b
             for w in powers {
                 let out = s.update(&cfg, Watts::from_num(w));
                 prop_assert!(out.bedding >= last);
                 prop_assert!(out.bedding <= Ratio::ONE);
                 last = out.bedding;
                 let x = w * 1e-2 / 1e6;
-                taylor += x.powi(4) / 24.0 * x.exp(); // (e^{-x} − g(x)) / e^{-x}
+                taylor += x.powi(5) / 120.0 * x.exp(); // (e^{-x} − g(x)) / e^{-x}
                 let e = out.energy.to_num::<f64>();
                 let unbedded = (-e / 1e6).exp();
                 let err = (out.bedding.to_num::<f64>() - (1.0 - unbedded)).abs();
