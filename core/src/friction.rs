@@ -107,9 +107,9 @@ impl fmt::Display for FrictionError {
                 "static_to_kinetic must be above 0 and at most {STATIC_RATIO_MAX}"
             ),
             Self::StickSpeedNotPositive => f.write_str("stick_speed must be above 0 rad/s"),
-            Self::HysteresisOutOfRange => f.write_str(
-                "stick_hysteresis must be above 0 and below twice stick_speed",
-            ),
+            Self::HysteresisOutOfRange => {
+                f.write_str("stick_hysteresis must be above 0 and below twice stick_speed")
+            }
             Self::TransitionSpeedNotPositive => {
                 f.write_str("transition_speed must be above 0 rad/s")
             }
@@ -242,6 +242,8 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
         while i < NT {
             let mut j = 0;
             while j < NV {
+                // i < NT, j < NV by the loop bounds; `get` is not usable in a const fn.
+                #[allow(clippy::indexing_slicing)]
                 let v = z[i][j].to_bits();
                 if v < 0 || v > MU_MAX.to_bits() {
                     return Err(FrictionError::MuOutOfRange {
@@ -282,6 +284,8 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
         // Band edges: the upper edge rounds up and the lower one down, so the band is never
         // narrower than asked. v_s + ⌈h/2⌉ < 3·2³⁰ fits i64 and saturates into i32.
         let upper = v_s as i64 + (h as i64 + 1) / 2;
+        // Checked against i32::MAX just before the cast.
+        #[allow(clippy::cast_possible_truncation)]
         let slip_above = if upper > i32::MAX as i64 {
             i32::MAX
         } else {
@@ -312,7 +316,8 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
 
     /// Centre of the stick/slip band (rad/s), rounded to the raw LSB.
     pub const fn stick_speed(&self) -> RadPerSec {
-        // (upper + lower)/2 of two i32 values cannot overflow in i64.
+        // The mean of two i32 values computed in i64 lies between them: the cast is exact.
+        #[allow(clippy::cast_possible_truncation)]
         RadPerSec::from_bits(((self.slip_above as i64 + self.stick_below as i64) / 2) as i32)
     }
 

@@ -305,7 +305,8 @@ mod tests {
         .unwrap();
         let mut wear = WearState::with_history(&cfg, Joules::from_num(3.3e6));
         wear.update(&cfg, Watts::from_num(12_345.678));
-        let thermal = ThermalState::with_temperatures(Celsius::from_num(180.25), Celsius::from_num(240.5));
+        let thermal =
+            ThermalState::with_temperatures(Celsius::from_num(180.25), Celsius::from_num(240.5));
         StateRecord::new(42, &wear, &thermal, Ratio::from_num(0.93), -123_456_789)
     }
 
@@ -329,7 +330,10 @@ mod tests {
             for bit in 0..8 {
                 let mut b = good;
                 b[byte] ^= 1 << bit;
-                assert!(StateRecord::from_bytes(&b).is_err(), "byte {byte} bit {bit}");
+                assert!(
+                    StateRecord::from_bytes(&b).is_err(),
+                    "byte {byte} bit {bit}"
+                );
             }
         }
     }
@@ -347,7 +351,9 @@ mod tests {
         long[..RECORD_LEN].copy_from_slice(&good);
         assert_eq!(
             StateRecord::from_bytes(&long),
-            Err(RecordError::WrongLength { len: RECORD_LEN + 1 })
+            Err(RecordError::WrongLength {
+                len: RECORD_LEN + 1
+            })
         );
     }
 
@@ -369,7 +375,10 @@ mod tests {
         );
         let mut m = good;
         m[0] = b'X';
-        assert_eq!(StateRecord::from_bytes(&reseal(m)), Err(RecordError::BadMagic));
+        assert_eq!(
+            StateRecord::from_bytes(&reseal(m)),
+            Err(RecordError::BadMagic)
+        );
         let mut l = good;
         l[6..8].copy_from_slice(&64u16.to_le_bytes());
         assert_eq!(

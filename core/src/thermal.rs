@@ -163,9 +163,9 @@ impl fmt::Display for ThermalError {
                 f,
                 "dt is longer than the model's shortest time constant ({seconds} s)"
             ),
-            Self::TimeConstantTooLongForDt => f.write_str(
-                "cooling time constant too long for dt: dt/tau must be at least 2^-40",
-            ),
+            Self::TimeConstantTooLongForDt => {
+                f.write_str("cooling time constant too long for dt: dt/tau must be at least 2^-40")
+            }
             Self::HeatCapacityTooSmall { field } => write!(
                 f,
                 "{field}: heat capacity too small for dt (1 W for one sample would add 1 K)"
@@ -351,7 +351,8 @@ impl ThermalConfig {
             }
         };
         Ok(Self {
-            dt: Seconds::checked_from_num(dt).ok_or(ThermalError::NotRepresentable { field: "dt" })?,
+            dt: Seconds::checked_from_num(dt)
+                .ok_or(ThermalError::NotRepresentable { field: "dt" })?,
             k,
             gamma,
             two_node,
@@ -594,8 +595,7 @@ impl ThermalState {
         if let (Some(m), Some(pl)) = (measured, cfg.measured) {
             let in_range = m >= pl.min && m <= pl.max;
             let rate_ok = self.last_measured.is_none_or(|last| {
-                (i64::from(m.to_bits()) - i64::from(last.to_bits())).abs()
-                    <= i64::from(pl.max_step)
+                (i64::from(m.to_bits()) - i64::from(last.to_bits())).abs() <= i64::from(pl.max_step)
             });
             if in_range && rate_ok {
                 measured_used = true;
@@ -638,7 +638,13 @@ impl ThermalState {
 }
 
 #[cfg(test)]
-#[allow(clippy::unwrap_used, clippy::indexing_slicing, clippy::float_cmp)]
+#[allow(
+    clippy::unwrap_used,
+    clippy::indexing_slicing,
+    clippy::float_cmp,
+    clippy::cast_possible_truncation,
+    clippy::cast_sign_loss
+)]
 mod tests {
     use super::*;
 
@@ -681,8 +687,14 @@ mod tests {
             let out = run(&cfg, &mut s, 202_500.0, steps);
             let rise = out.rotor_temperature.to_num::<f64>() - 20.0;
             let expected = 0.9 * 202_500.0 / (8.0 * 460.0);
-            assert!((rise - expected).abs() <= 0.005 * expected, "dt {dt}: {rise}");
-            assert!((rise - expected).abs() < 1e-3, "dt {dt}: {rise} vs {expected}");
+            assert!(
+                (rise - expected).abs() <= 0.005 * expected,
+                "dt {dt}: {rise}"
+            );
+            assert!(
+                (rise - expected).abs() < 1e-3,
+                "dt {dt}: {rise} vs {expected}"
+            );
         }
     }
 
@@ -700,9 +712,15 @@ mod tests {
                 t += 1e-2;
             }
             let got = out.unwrap().rotor_temperature.to_num::<f64>() - 20.0;
-            let expected = 55.0 * (-check / tau as f64).exp();
-            assert!((got - expected).abs() <= 0.005 * expected, "t {check}: {got} vs {expected}");
-            assert!((got - expected).abs() < 1e-3, "t {check}: {got} vs {expected}");
+            let expected = 55.0 * (-check / tau).exp();
+            assert!(
+                (got - expected).abs() <= 0.005 * expected,
+                "t {check}: {got} vs {expected}"
+            );
+            assert!(
+                (got - expected).abs() < 1e-3,
+                "t {check}: {got} vs {expected}"
+            );
         }
     }
 
@@ -713,13 +731,16 @@ mod tests {
         let out = s.update(&cfg, Watts::ZERO, None);
         assert!(out.fade_warning && !out.over_temperature);
         // Still on 5 K below the threshold (hysteresis 10 K).
-        let mut s2 = ThermalState::with_temperatures(Celsius::from_num(295), Celsius::from_num(295));
+        let mut s2 =
+            ThermalState::with_temperatures(Celsius::from_num(295), Celsius::from_num(295));
         s2.fade = true;
         assert!(s2.update(&cfg, Watts::ZERO, None).fade_warning);
-        let mut s3 = ThermalState::with_temperatures(Celsius::from_num(289), Celsius::from_num(289));
+        let mut s3 =
+            ThermalState::with_temperatures(Celsius::from_num(289), Celsius::from_num(289));
         s3.fade = true;
         assert!(!s3.update(&cfg, Watts::ZERO, None).fade_warning);
-        let mut hot = ThermalState::with_temperatures(Celsius::from_num(451), Celsius::from_num(451));
+        let mut hot =
+            ThermalState::with_temperatures(Celsius::from_num(451), Celsius::from_num(451));
         assert!(hot.update(&cfg, Watts::ZERO, None).over_temperature);
     }
 
@@ -785,7 +806,10 @@ mod tests {
             e(ThermalParams { dt: 0.0, ..base }),
             ThermalError::NotPositive { field: "dt" }
         );
-        assert_eq!(e(ThermalParams { dt: 2.0, ..base }), ThermalError::DtTooLong);
+        assert_eq!(
+            e(ThermalParams { dt: 2.0, ..base }),
+            ThermalError::DtTooLong
+        );
         assert_eq!(
             e(ThermalParams {
                 rotor_share: 1.1,
@@ -817,7 +841,9 @@ mod tests {
                 dt: 0.1,
                 ..base
             }),
-            ThermalError::HeatCapacityTooSmall { field: "rotor_mass" }
+            ThermalError::HeatCapacityTooSmall {
+                field: "rotor_mass"
+            }
         );
         assert_eq!(
             e(ThermalParams {

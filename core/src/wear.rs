@@ -101,9 +101,9 @@ impl fmt::Display for WearError {
                 "specific_wear_rate / lining_area must be 0 or within 1e-30 ..= 1e-5 m/J",
             ),
             Self::AreaNotPositive => f.write_str("lining_area must be above zero"),
-            Self::ThicknessLimits => f.write_str(
-                "minimum_thickness must be at least 0 and below initial_thickness",
-            ),
+            Self::ThicknessLimits => {
+                f.write_str("minimum_thickness must be at least 0 and below initial_thickness")
+            }
         }
     }
 }
@@ -346,8 +346,7 @@ impl WearState {
     /// ```
     pub fn update(&mut self, cfg: &WearConfig, power: Watts) -> WearSample {
         // |P| (Q32) · dt (Q63) ≤ 2¹²⁷: Q95 → Q64.
-        let step_q64 =
-            (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
+        let step_q64 = (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
         self.accumulate_q64(cfg, step_q64);
         self.sample(cfg)
     }
@@ -380,10 +379,7 @@ impl WearState {
 
     fn sample(&self, cfg: &WearConfig) -> WearSample {
         let loss = self.thickness_loss();
-        let remaining = cfg
-            .initial_thickness
-            .saturating_sub(loss)
-            .max(Metres::ZERO);
+        let remaining = cfg.initial_thickness.saturating_sub(loss).max(Metres::ZERO);
         WearSample {
             energy: self.energy(),
             bedding: self.bedding(),
@@ -497,11 +493,13 @@ mod tests {
                 field: "initial_thickness"
             }
         );
-        assert!(WearConfig::new(&WearParams {
-            specific_wear_rate: 0.0,
-            ..b
-        })
-        .is_ok());
+        assert!(
+            WearConfig::new(&WearParams {
+                specific_wear_rate: 0.0,
+                ..b
+            })
+            .is_ok()
+        );
     }
 
     proptest! {

@@ -1,6 +1,10 @@
 //! Friction model: μ table breakpoints and interpolation, clamping, stick/slip without chatter,
 //! and the fixed-point path against the f64 reference over the envelope.
-#![allow(clippy::unwrap_used, clippy::cast_precision_loss, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::cast_precision_loss,
+    clippy::indexing_slicing
+)]
 
 use clampwise_core::friction::{FrictionConfig, FrictionParams, FrictionState, MuTable};
 use clampwise_core::reference::friction::FrictionModel;
@@ -82,10 +86,20 @@ fn breakpoints_exact_and_out_of_range_flagged() {
             }
         }
     }
-    let hot = FrictionState::new().update(&cfg, RadPerSec::from_num(-2000), Celsius::from_num(1000), Ratio::ONE);
+    let hot = FrictionState::new().update(
+        &cfg,
+        RadPerSec::from_num(-2000),
+        Celsius::from_num(1000),
+        Ratio::ONE,
+    );
     assert!(hot.clamped);
     assert_eq!(hot.mu_kinetic, t.values()[3][4]);
-    let cold = FrictionState::new().update(&cfg, RadPerSec::from_num(50), Celsius::from_num(-50), Ratio::ONE);
+    let cold = FrictionState::new().update(
+        &cfg,
+        RadPerSec::from_num(50),
+        Celsius::from_num(-50),
+        Ratio::ONE,
+    );
     assert!(cold.clamped);
 }
 
@@ -99,8 +113,14 @@ fn demo_tables_grade_as_their_materials() {
         }
     }
     let dry = dry_caliper();
-    assert_eq!(FrictionCode::classify(dry.mu_kinetic().values()[1][0]), FrictionCode::F);
-    assert_eq!(FrictionCode::classify(dry.mu_kinetic().values()[3][0]), FrictionCode::E);
+    assert_eq!(
+        FrictionCode::classify(dry.mu_kinetic().values()[1][0]),
+        FrictionCode::F
+    );
+    assert_eq!(
+        FrictionCode::classify(dry.mu_kinetic().values()[3][0]),
+        FrictionCode::E
+    );
 }
 
 /// Measured worst cases over the envelope, stated in the docs of `clampwise_core::friction`.
@@ -121,15 +141,25 @@ fn compare<const NT: usize, const NV: usize>(
     let mut fixed = FrictionState::new();
     let mut reference = FrictionModel::from_config(cfg);
     for &(v, t, c) in inputs {
-        let (vq, tq, cq) = (RadPerSec::from_num(v), Celsius::from_num(t), Ratio::from_num(c));
+        let (vq, tq, cq) = (
+            RadPerSec::from_num(v),
+            Celsius::from_num(t),
+            Ratio::from_num(c),
+        );
         let a = fixed.update(cfg, vq, tq, cq);
         let b = reference.step(vq.to_num(), tq.to_num(), cq.to_num());
         if a.slipping != b.slipping || a.direction != b.direction || a.clamped != b.clamped {
             return Err(format!("state differs at v {v}, T {t}: {a:?} vs {b:?}"));
         }
-        worst.mu = worst.mu.max((a.mu_kinetic.to_num::<f64>() - b.mu_kinetic).abs() / LSB_MU);
-        worst.mu_static = worst.mu_static.max((a.mu_static.to_num::<f64>() - b.mu_static).abs() / LSB_MU);
-        worst.drag = worst.drag.max((a.drag_torque.to_num::<f64>() - b.drag_torque).abs() / LSB_NM);
+        worst.mu = worst
+            .mu
+            .max((a.mu_kinetic.to_num::<f64>() - b.mu_kinetic).abs() / LSB_MU);
+        worst.mu_static = worst
+            .mu_static
+            .max((a.mu_static.to_num::<f64>() - b.mu_static).abs() / LSB_MU);
+        worst.drag = worst
+            .drag
+            .max((a.drag_torque.to_num::<f64>() - b.drag_torque).abs() / LSB_NM);
         assert!(a.drag_torque.abs() < NewtonMetres::MAX);
     }
     Ok(())
@@ -149,7 +179,11 @@ fn friction_envelope() {
             inputs.push((v, t, c));
         }
     }
-    let mut worst = Worst { mu: 0.0, mu_static: 0.0, drag: 0.0 };
+    let mut worst = Worst {
+        mu: 0.0,
+        mu_static: 0.0,
+        drag: 0.0,
+    };
     compare(&wet_clutch(), &inputs, &mut worst).unwrap();
     compare(&dry_caliper(), &inputs, &mut worst).unwrap();
     println!(

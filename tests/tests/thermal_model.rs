@@ -1,6 +1,11 @@
 //! Thermal model against published lumped-capacitance formulas and against the f64 reference
 //! (RK4) over the envelope.
-#![allow(clippy::unwrap_used, clippy::cast_precision_loss, clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::cast_precision_loss,
+    clippy::cast_possible_truncation,
+    clippy::cast_sign_loss
+)]
 
 use clampwise_core::reference::thermal::ThermalModel;
 use clampwise_core::thermal::{Cooling, LiningNode, ThermalConfig, ThermalParams, ThermalState};
@@ -40,7 +45,10 @@ fn pulse_rise_matches_lumped_capacitance() {
             out = s.update(&cfg, p, None);
         }
         let rise = out.rotor_temperature.to_num::<f64>() - 20.0;
-        assert!((rise - 55.0).abs() <= 0.005 * 55.0, "dt {dt}: rise {rise} K");
+        assert!(
+            (rise - 55.0).abs() <= 0.005 * 55.0,
+            "dt {dt}: rise {rise} K"
+        );
     }
     // With the heat partition γ = 0.9 and no cooling: 49.5 K.
     let cfg = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic, 0.9)).unwrap();
@@ -105,7 +113,11 @@ fn worst_error(p: &ThermalParams, powers: &[(f64, u32)]) -> (f64, f64) {
     for &(watts, samples) in powers {
         for _ in 0..samples {
             // Keep the envelope: no more heat once the lining passes 1000 °C.
-            let w = if reference.lining > 1000.0 { 0.0 } else { watts };
+            let w = if reference.lining > 1000.0 {
+                0.0
+            } else {
+                watts
+            };
             let pq = Watts::from_num(w);
             let out = fixed.update(&cfg, pq, None);
             reference.step(p.dt, pq.to_num());
@@ -133,10 +145,20 @@ fn thermal_envelope() {
             ambient: -50.0,
             ..two_node(dt)
         };
-        for p in [disc(dt, Cooling::TimeConstant(613.0), 0.9), two_node(dt), cold] {
+        for p in [
+            disc(dt, Cooling::TimeConstant(613.0), 0.9),
+            two_node(dt),
+            cold,
+        ] {
             let (worst, hottest) = worst_error(&p, &trace);
-            println!("dt {dt:e}, lining node {}: worst {worst:.3e} K, peak {hottest:.0} °C", p.lining.is_some());
-            assert!(hottest > 700.0, "the trace must reach the hot end of the envelope");
+            println!(
+                "dt {dt:e}, lining node {}: worst {worst:.3e} K, peak {hottest:.0} °C",
+                p.lining.is_some()
+            );
+            assert!(
+                hottest > 700.0,
+                "the trace must reach the hot end of the envelope"
+            );
             overall = overall.max(worst);
         }
     }

@@ -1,5 +1,10 @@
 //! Wear and bedding against the f64 reference (closed-form bedding, compensated energy sum).
-#![allow(clippy::unwrap_used, clippy::cast_precision_loss)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::cast_precision_loss,
+    clippy::cast_possible_truncation,
+    clippy::cast_sign_loss
+)]
 
 use clampwise_core::reference::wear::WearModel;
 use clampwise_core::units::{Joules, Watts};

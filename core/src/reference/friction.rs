@@ -4,6 +4,10 @@
 //! only the arithmetic differs, or from SI values for a plant model); the model is written from
 //! the formulas in [`crate::friction`], not from the fixed-point code.
 
+// Host-only reference: indices come from `locate`, bounded by the axis lengths, and a panic in a
+// test is a failure we want to see.
+#![allow(clippy::indexing_slicing)]
+
 use crate::friction::{FrictionConfig, FrictionParams};
 
 /// One sample of the reference model.

@@ -44,7 +44,10 @@ impl ThermalModel {
 
     fn derivative(&self, power: f64, lining: f64, rotor: f64) -> (f64, f64) {
         match self.c_lining {
-            None => (0.0, (self.share * power - self.h_a * (rotor - self.ambient)) / self.c_rotor),
+            None => (
+                0.0,
+                (self.share * power - self.h_a * (rotor - self.ambient)) / self.c_rotor,
+            ),
             Some(c_l) => {
                 let q = self.conductance * (lining - rotor);
                 (
@@ -65,7 +68,11 @@ impl ThermalModel {
     pub fn step(&mut self, dt: f64, power: f64) {
         let p = power.abs();
         let rate = self.fastest_rate();
-        let n = if rate > 0.0 { (dt * rate * 50.0).ceil().clamp(1.0, 1e6) } else { 1.0 };
+        let n = if rate > 0.0 {
+            (dt * rate * 50.0).ceil().clamp(1.0, 1e6)
+        } else {
+            1.0
+        };
         #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
         let steps = n as u32;
         let h = dt / n;

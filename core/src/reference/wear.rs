@@ -30,12 +30,20 @@ pub struct WearModel {
 impl WearModel {
     /// A new lining.
     pub fn new(p: &WearParams) -> Self {
-        Self { p: *p, sum: 0.0, compensation: 0.0 }
+        Self {
+            p: *p,
+            sum: 0.0,
+            compensation: 0.0,
+        }
     }
 
     /// A lining with `energy` J already dissipated.
     pub fn with_energy(p: &WearParams, energy: f64) -> Self {
-        Self { p: *p, sum: energy, compensation: 0.0 }
+        Self {
+            p: *p,
+            sum: energy,
+            compensation: 0.0,
+        }
     }
 
     /// Add `|power|·dt`.
@@ -47,7 +55,11 @@ impl WearModel {
     pub fn add_energy(&mut self, energy: f64) -> WearOutput {
         let x = energy.abs();
         let t = self.sum + x;
-        self.compensation += if self.sum.abs() >= x { (self.sum - t) + x } else { (x - t) + self.sum };
+        self.compensation += if self.sum.abs() >= x {
+            (self.sum - t) + x
+        } else {
+            (x - t) + self.sum
+        };
         self.sum = t;
         self.output()
     }
