@@ -32,7 +32,7 @@
 //!
 //! μ is a [`Ratio`] (I2F30, LSB 0.93·10⁻⁹). The table lookup is within 1 LSB of the exact
 //! bilinear interpolant of its stored values and exact at breakpoints (see [`crate::table`]).
-//! Against the f64 reference [`crate::reference::friction`] over the envelope
+//! Against the f64 reference `reference::friction` (feature `std`) over the envelope
 //! (−50…1000 °C, ±2000 rad/s, correction 0…1.9), measured worst case on the demo table of the
 //! tests: **μ within 8 LSB (7.5·10⁻⁹)**, drag torque within **2 LSB of [`NewtonMetres`]
 //! (0.49 mN·m)**; the stick/slip decision and the direction agree exactly.

@@ -11,10 +11,14 @@
 //! ## Data flow
 //!
 //! ```text
-//! geometry (f64, build time) ──► table::Table2 r_e(F, bedding)  ── kept in flash
-//! raw counts ─ sensor ─► clamp force F
-//! F, bedding ─ radius table ─► r_e;   T_lining, |v| ─ μ table ─► μ
-//! torque = −sign(v) · n_faces · μ · F · r_e
+//! build time (f64, libm):
+//!   geometry::Disc + shape (annulus | sector | button | polygon) + faces n + cone α?
+//!     = geometry::Contact ─► r_up, r_uw ─► lever arm (r_e / sin α) at each bedding
+//!     ─► geometry::build_radius_table ─► RadiusTable (Table2: F × bedding → m) ── in flash
+//! per sample (integers only):
+//!   raw counts ─ sensor ─► clamp force F
+//!   F, bedding ─ radius table ─► lever arm r_e;   T_lining, |v| ─ μ table ─► μ
+//!   torque = −sign(v) · n · μ · F · r_e
 //! ```
 //!
 //! Floats (via `libm`) appear only where tables are built ([`geometry`]); the per-sample path
@@ -31,10 +35,12 @@
 extern crate std;
 
 pub mod friction;
+pub mod geometry;
 pub mod record;
 #[cfg(feature = "std")]
 pub mod reference;
 pub mod sae_j866;
+pub mod sensor;
 pub mod table;
 pub mod thermal;
 pub mod units;

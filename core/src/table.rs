@@ -111,12 +111,18 @@ const fn validate_axis<F: LeEqU32>(axis: Axis, x: &[FixedI32<F>]) -> Result<(), 
     if x.is_empty() {
         return Err(TableError::Empty { axis });
     }
-    let mut i = 1;
-    while i < x.len() {
-        if x[i].to_bits() <= x[i - 1].to_bits() {
-            return Err(TableError::NotIncreasing { axis, index: i });
+    // Slice patterns rather than indexing: const-evaluable and panic-free.
+    let mut rest = x;
+    let mut index = 1;
+    while let [previous, next, ..] = rest {
+        if next.to_bits() <= previous.to_bits() {
+            return Err(TableError::NotIncreasing { axis, index });
         }
-        i += 1;
+        rest = match rest {
+            [_, tail @ ..] => tail,
+            [] => break,
+        };
+        index += 1;
     }
     Ok(())
 }
@@ -357,6 +363,7 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::indexing_slicing)]
 mod tests {
     use super::*;
     use fixed::types::extra::{U8, U16, U24};

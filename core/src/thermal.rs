@@ -32,7 +32,7 @@
 //!
 //! ## Measured error
 //!
-//! Against the f64 reference [`crate::reference::thermal`] (RK4 with sub-steps, not the same
+//! Against the f64 reference `reference::thermal` (feature `std`) (RK4 with sub-steps, not the same
 //! formula) over the envelope — powers 0…10 MW, dt 0.1 ms…10 ms, one and two nodes,
 //! temperatures to 1000 °C — the measured worst case is stated in the integration test
 //! `thermal_envelope` and here: **within 1·10⁻³ K** (most of it the reference's own RK4

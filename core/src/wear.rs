@@ -31,7 +31,7 @@
 //! still counts in full at 10¹⁰ J and beyond (tested). Each bedding step multiplies `1 − b` by
 //! the fourth-order Taylor polynomial of `exp(−dE/E₀)` rounded down, so `b` is monotone, never
 //! above 1, and within `Σ (dE/E₀)⁵/120 + n·2⁻⁶²` of `1 − exp(−E/E₀)`. Measured against the
-//! f64 reference [`crate::reference::wear`]: bedding within **2 LSB of [`Ratio`]** (1.9·10⁻⁹),
+//! f64 reference `reference::wear` (feature `std`): bedding within **2 LSB of [`Ratio`]** (1.9·10⁻⁹),
 //! energy within 1 LSB of [`Joules`], thickness loss within 1 LSB of [`Metres`].
 
 use core::fmt;

@@ -1,0 +1,439 @@
+//! Per-channel calibration: ADC counts → newtons, temperature compensation, ADC rail check.
+//!
+//! ```text
+//! F_lin = gain · counts + offset                                   (N)
+//! ΔT    = clamp(T_sensor, min, max) − reference                    (K)
+//! F     = F_lin · (1 + span_per_kelvin · ΔT) + zero_per_kelvin · ΔT (N)
+//! ```
+//!
+//! The temperature coefficients are those of the *correction* (what is applied), so they are
+//! the negated sensor drifts to first order; fit them on the bench. Without a sensor
+//! temperature (none given yet) ΔT = 0.
+//!
+//! ## Error bound
+//!
+//! All products are formed in i128 from the raw bits and rounded once at the end, so against
+//! the same formula in f64 with the *stored* coefficients the result is within ½ LSB of
+//! [`Newtons`] (1.95 mN) plus 2⁻³⁰ of |F| for the span term. The stored gain differs from a
+//! float gain by at most 2⁻³³ N/count (I32F32) and the offset by ½ LSB, so against the f64 line
+//! the error is ≤ 1 LSB + |counts|·2⁻³³ N: ≤ 1.25 LSB (4.9 mN) for a 24-bit ADC.
+//! Results beyond the range of [`Newtons`] are clamped to it and reported as saturated.
+//!
+//! ```
+//! use clampwise_core::sensor::{AdcRails, TwoPoint};
+//!
+//! // Bench: 1 200 counts unloaded, 1 001 200 counts at 50 kN.
+//! let tp = TwoPoint::from_loads(1_200.0, 0.0, 1_001_200.0, 50_000.0).unwrap();
+//! assert!((tp.gain_n_per_count - 0.05).abs() < 1e-15);
+//! assert!((tp.offset_n - -60.0).abs() < 1e-9);
+//! let rails = AdcRails { low: -8_388_608, high: 8_388_607, margin: 16 };
+//! let cal = tp.to_calibration(rails).unwrap();
+//! let f = cal.force(501_200, None);
+//! assert_eq!(f.force.to_num::<f64>(), 25_000.0);
+//! assert!(!f.saturated);
+//! ```
+
+use super::error::{Problem, SensorError};
+use super::{NewtonsPerCount, NewtonsPerKelvin, PerKelvin};
+use crate::units::{Celsius, Newtons};
+
+/// The ADC codes at which a channel is at its rails (open or short circuit, overload).
+///
+/// Which fault drives which rail depends on the front end (bridge excitation, pull resistors);
+/// the diagnostics report low and high apart and leave the naming to the integrator.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct AdcRails {
+    /// Lowest code the converter produces (counts).
+    pub low: i32,
+    /// Highest code the converter produces (counts).
+    pub high: i32,
+    /// Codes within `margin` of a rail count as at the rail (counts, ≥ 0).
+    pub margin: u32,
+}
+
+/// Where a raw reading lies against the rails.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Rail {
+    /// Between the rails.
+    Inside,
+    /// At or below `low + margin`.
+    Low,
+    /// At or above `high − margin`.
+    High,
+}
+
+impl AdcRails {
+    /// Classify a raw reading (counts). Any i32, also codes outside `low ..= high`.
+    pub fn classify(&self, counts: i32) -> Rail {
+        let c = i64::from(counts);
+        let m = i64::from(self.margin);
+        if c <= i64::from(self.low).saturating_add(m) {
+            Rail::Low
+        } else if c >= i64::from(self.high).saturating_sub(m) {
+            Rail::High
+        } else {
+            Rail::Inside
+        }
+    }
+
+    const fn validate(&self, channel: usize) -> Result<(), SensorError> {
+        let m = self.margin as i64;
+        if (self.low as i64) + m >= (self.high as i64) - m {
+            return Err(SensorError::Channel {
+                channel,
+                field: "rails.high",
+                problem: Problem::NotAboveLowerBound,
+            });
+        }
+        Ok(())
+    }
+}
+
+/// First-order temperature compensation of zero and span.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct TemperatureCompensation {
+    /// Temperature at which the gain and offset were calibrated (°C).
+    pub reference: Celsius,
+    /// Lowest sensor temperature the coefficients hold for (°C); colder readings are clamped.
+    pub min: Celsius,
+    /// Highest sensor temperature the coefficients hold for (°C); hotter readings are clamped.
+    pub max: Celsius,
+    /// Zero correction added per kelvin above the reference (N/K).
+    pub zero_per_kelvin: NewtonsPerKelvin,
+    /// Span correction per kelvin above the reference (1/K); |span · ΔT| must stay ≤ 0.5.
+    pub span_per_kelvin: PerKelvin,
+}
+
+impl TemperatureCompensation {
+    const fn validate(&self, channel: usize) -> Result<(), SensorError> {
+        let (lo, hi, r) = (
+            self.min.to_bits() as i64,
+            self.max.to_bits() as i64,
+            self.reference.to_bits() as i64,
+        );
+        if hi <= lo {
+            return Err(SensorError::Channel {
+                channel,
+                field: "temperature.max",
+                problem: Problem::NotAboveLowerBound,
+            });
+        }
+        if r < lo || r > hi {
+            return Err(SensorError::Channel {
+                channel,
+                field: "temperature.reference",
+                problem: Problem::OutOfRange,
+            });
+        }
+        // Largest |ΔT| in Q16.
+        let dt = if hi - r > r - lo { hi - r } else { r - lo };
+        // |span · ΔT| ≤ 0.5 keeps the span factor in [0.5, 1.5] (Q30 · Q16 = Q46).
+        let span = (self.span_per_kelvin.to_bits() as i128) * (dt as i128);
+        if span.unsigned_abs() > (1u128 << 45) {
+            return Err(SensorError::Channel {
+                channel,
+                field: "temperature.span_per_kelvin",
+                problem: Problem::OutOfRange,
+            });
+        }
+        // |zero · ΔT| within the force range (Q32 · Q16 = Q48; 2²³ N).
+        let zero = (self.zero_per_kelvin.to_bits() as i128) * (dt as i128);
+        if zero.unsigned_abs() > (1u128 << (48 + 23)) {
+            return Err(SensorError::Channel {
+                channel,
+                field: "temperature.zero_per_kelvin",
+                problem: Problem::OutOfRange,
+            });
+        }
+        Ok(())
+    }
+}
+
+/// Calibration of one force channel (configuration).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct ChannelCalibration {
+    /// Newtons per ADC count (N/count, non-zero; negative for an inverted bridge).
+    pub gain: NewtonsPerCount,
+    /// Force at zero counts (N).
+    pub offset: Newtons,
+    /// ADC rails of this channel.
+    pub rails: AdcRails,
+    /// Temperature compensation, if the channel has one.
+    pub temperature: Option<TemperatureCompensation>,
+}
+
+/// One channel's calibrated force.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Calibrated {
+    /// Calibrated force (N), clamped to the range of [`Newtons`].
+    pub force: Newtons,
+    /// The exact result lay beyond the range of [`Newtons`] and was clamped.
+    pub saturated: bool,
+    /// The sensor temperature lay outside the compensation range and was clamped.
+    pub temperature_clamped: bool,
+}
+
+impl ChannelCalibration {
+    /// Check the calibration of channel `channel` (used by [`super::SensorConfig::new`]).
+    ///
+    /// # Errors
+    /// [`SensorError::Channel`] naming the field: `gain` zero, `rails.high` not above
+    /// `rails.low` plus both margins, `temperature.*` out of order or too large.
+    pub const fn validate(&self, channel: usize) -> Result<(), SensorError> {
+        if self.gain.to_bits() == 0 {
+            return Err(SensorError::Channel {
+                channel,
+                field: "gain",
+                problem: Problem::Zero,
+            });
+        }
+        if let Err(e) = self.rails.validate(channel) {
+            return Err(e);
+        }
+        if let Some(t) = &self.temperature {
+            return t.validate(channel);
+        }
+        Ok(())
+    }
+
+    /// Counts → newtons with temperature compensation (`sensor_temp` in °C; `None`: ΔT = 0).
+    /// O(1), integers only, any input.
+    pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
+        // Q32 newtons.
+        let mut v = i128::from(counts)
+            .saturating_mul(i128::from(self.gain.to_bits()))
+            .saturating_add(i128::from(self.offset.to_bits()) << 24);
+        let mut temperature_clamped = false;
+        if let (Some(tc), Some(t)) = (&self.temperature, sensor_temp) {
+            let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
+            let t = t.to_bits();
+            temperature_clamped = t < lo || t > hi;
+            let dt = i128::from(t.clamp(lo, hi)) - i128::from(tc.reference.to_bits());
+            // Q30 factor in [0.5, 1.5] (validated).
+            let span = round_shr(i128::from(tc.span_per_kelvin.to_bits()) * dt, 16);
+            let factor = (1i128 << 30).saturating_add(span);
+            let zero = round_shr(i128::from(tc.zero_per_kelvin.to_bits()) * dt, 16);
+            v = round_shr(v.saturating_mul(factor), 30).saturating_add(zero);
+        }
+        let q8 = round_shr(v, 24);
+        let bits = i32::try_from(q8).unwrap_or(if q8 < 0 { i32::MIN } else { i32::MAX });
+        Calibrated {
+            force: Newtons::from_bits(bits),
+            saturated: i128::from(bits) != q8,
+            temperature_clamped,
+        }
+    }
+}
+
+/// Round half up of `v / 2^s`.
+fn round_shr(v: i128, s: u32) -> i128 {
+    v.saturating_add(1i128 << (s - 1)) >> s
+}
+
+/// Gain and offset from two known loads (host or start-up helper; floats, never per sample).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct TwoPoint {
+    /// Newtons per count (N/count).
+    pub gain_n_per_count: f64,
+    /// Force at zero counts (N).
+    pub offset_n: f64,
+}
+
+impl TwoPoint {
+    /// The straight line through (`counts_1`, `load_1_n`) and (`counts_2`, `load_2_n`): counts
+    /// may be averages (fractional); loads in newtons.
+    ///
+    /// # Errors
+    /// `two_point.*` not finite; `two_point.counts_2` equal to `counts_1`; `two_point.load_2_n`
+    /// equal to `load_1_n` (zero gain).
+    pub fn from_loads(
+        counts_1: f64,
+        load_1_n: f64,
+        counts_2: f64,
+        load_2_n: f64,
+    ) -> Result<Self, SensorError> {
+        let named = [
+            ("two_point.counts_1", counts_1),
+            ("two_point.load_1_n", load_1_n),
+            ("two_point.counts_2", counts_2),
+            ("two_point.load_2_n", load_2_n),
+        ];
+        if let Some((field, _)) = named.iter().find(|(_, v)| !v.is_finite()) {
+            return Err(SensorError::Field {
+                field,
+                problem: Problem::NotFinite,
+            });
+        }
+        let dc = counts_2 - counts_1;
+        let dl = load_2_n - load_1_n;
+        let zero = |field| SensorError::Field {
+            field,
+            problem: Problem::Zero,
+        };
+        if dc == 0.0 {
+            return Err(zero("two_point.counts_2 - counts_1"));
+        }
+        if dl == 0.0 {
+            return Err(zero("two_point.load_2_n - load_1_n"));
+        }
+        let gain = dl / dc;
+        // Offset from the point nearer zero counts: less cancellation.
+        let (c, l) = if counts_1.abs() <= counts_2.abs() {
+            (counts_1, load_1_n)
+        } else {
+            (counts_2, load_2_n)
+        };
+        Ok(Self {
+            gain_n_per_count: gain,
+            offset_n: l - gain * c,
+        })
+    }
+
+    /// The fixed-point calibration (rounded to nearest), without temperature compensation.
+    ///
+    /// # Errors
+    /// `gain` or `offset` outside the range of their Q formats; then as
+    /// [`ChannelCalibration::validate`] for channel 0.
+    pub fn to_calibration(&self, rails: AdcRails) -> Result<ChannelCalibration, SensorError> {
+        let out_of_range = |field| SensorError::Field {
+            field,
+            problem: Problem::OutOfRange,
+        };
+        let cal = ChannelCalibration {
+            gain: NewtonsPerCount::checked_from_num(self.gain_n_per_count)
+                .ok_or(out_of_range("gain"))?,
+            offset: Newtons::checked_from_num(self.offset_n).ok_or(out_of_range("offset"))?,
+            rails,
+            temperature: None,
+        };
+        cal.validate(0).map(|()| cal)
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp)]
+mod tests {
+    use super::*;
+
+    const RAILS: AdcRails = AdcRails {
+        low: -8_388_608,
+        high: 8_388_607,
+        margin: 0,
+    };
+
+    #[test]
+    fn rails_are_classified_including_margins_and_wild_codes() {
+        let r = AdcRails {
+            low: 0,
+            high: 4095,
+            margin: 5,
+        };
+        assert_eq!(r.classify(5), Rail::Low);
+        assert_eq!(r.classify(6), Rail::Inside);
+        assert_eq!(r.classify(4089), Rail::Inside);
+        assert_eq!(r.classify(4090), Rail::High);
+        assert_eq!(r.classify(i32::MIN), Rail::Low);
+        assert_eq!(r.classify(i32::MAX), Rail::High);
+        let crossed = AdcRails {
+            low: 0,
+            high: 10,
+            margin: 5,
+        };
+        assert!(crossed.validate(3).is_err());
+    }
+
+    #[test]
+    fn temperature_correction_matches_its_formula() {
+        // [calc] F = (g·c + o)(1 + s·ΔT) + z·ΔT with the stored coefficients.
+        let tc = TemperatureCompensation {
+            reference: Celsius::lit("20"),
+            min: Celsius::lit("-40"),
+            max: Celsius::lit("120"),
+            zero_per_kelvin: NewtonsPerKelvin::lit("-1.5"),
+            span_per_kelvin: PerKelvin::lit("0.0002"),
+        };
+        let cal = ChannelCalibration {
+            gain: NewtonsPerCount::lit("0.05"),
+            offset: Newtons::lit("-60"),
+            rails: RAILS,
+            temperature: Some(tc),
+        };
+        cal.validate(0).unwrap();
+        let g: f64 = cal.gain.to_num();
+        let s: f64 = tc.span_per_kelvin.to_num();
+        let z: f64 = tc.zero_per_kelvin.to_num();
+        for (counts, t) in [(400_000, 85.0), (-10_000, -40.0), (8_000_000, 20.0)] {
+            let got = cal.force(counts, Some(Celsius::from_num(t)));
+            let dt = t - 20.0;
+            let want = (g * f64::from(counts) - 60.0) * (1.0 + s * dt) + z * dt;
+            let err = (got.force.to_num::<f64>() - want).abs();
+            assert!(err <= 0.5 / 256.0 + 1e-6, "{counts} at {t}: {err}");
+            assert!(!got.temperature_clamped);
+        }
+        // Beyond the range: clamped to 120 °C and reported.
+        let hot = cal.force(400_000, Some(Celsius::lit("300")));
+        assert!(hot.temperature_clamped);
+        assert_eq!(
+            hot.force,
+            cal.force(400_000, Some(Celsius::lit("120"))).force
+        );
+    }
+
+    #[test]
+    fn huge_results_saturate_and_are_flagged() {
+        let cal = ChannelCalibration {
+            gain: NewtonsPerCount::MAX,
+            offset: Newtons::ZERO,
+            rails: RAILS,
+            temperature: None,
+        };
+        let f = cal.force(i32::MAX, None);
+        assert!(f.saturated);
+        assert_eq!(f.force, Newtons::MAX);
+        let f = cal.force(i32::MIN, None);
+        assert!(f.saturated);
+        assert_eq!(f.force, Newtons::MIN);
+    }
+
+    #[test]
+    fn invalid_calibrations_are_named() {
+        let mut cal = ChannelCalibration {
+            gain: NewtonsPerCount::ZERO,
+            offset: Newtons::ZERO,
+            rails: RAILS,
+            temperature: None,
+        };
+        assert_eq!(
+            cal.validate(1),
+            Err(SensorError::Channel {
+                channel: 1,
+                field: "gain",
+                problem: Problem::Zero
+            })
+        );
+        cal.gain = NewtonsPerCount::lit("0.01");
+        cal.temperature = Some(TemperatureCompensation {
+            reference: Celsius::lit("20"),
+            min: Celsius::lit("-40"),
+            max: Celsius::lit("120"),
+            zero_per_kelvin: NewtonsPerKelvin::ZERO,
+            span_per_kelvin: PerKelvin::lit("0.01"), // 0.01 · 100 K = 1 > 0.5
+        });
+        assert_eq!(
+            cal.validate(1),
+            Err(SensorError::Channel {
+                channel: 1,
+                field: "temperature.span_per_kelvin",
+                problem: Problem::OutOfRange
+            })
+        );
+        assert!(TwoPoint::from_loads(1.0, 0.0, 1.0, 5.0).is_err());
+        assert!(TwoPoint::from_loads(1.0, 5.0, 2.0, 5.0).is_err());
+        assert!(TwoPoint::from_loads(f64::NAN, 5.0, 2.0, 6.0).is_err());
+    }
+}

@@ -1,0 +1,181 @@
+//! Debounce of a diagnostic: raise after N bad samples, clear after M good ones.
+//!
+//! Each diagnostic gives one piece of [`Evidence`] per sample. `Bad` and `Good` count towards
+//! raising and clearing; `None` (the check could not be made this sample, e.g. the stuck check
+//! while the actuator command is still) leaves the counters as they are, so "consecutive" means
+//! consecutive among the samples that carried evidence.
+//!
+//! Latency, exactly: a flag that is down is raised *in* the sample that brings the
+//! `raise_after`-th bad sample in a row; a raised flag is cleared in the sample that brings the
+//! `clear_after`-th good sample in a row. `raise_after = 1` raises on the first bad sample.
+//!
+//! ```
+//! use clampwise_core::sensor::{Debounce, DebounceState, Evidence};
+//!
+//! let cfg = Debounce::new(3, 2).unwrap();
+//! let mut s = DebounceState::new();
+//! assert!(!s.update(&cfg, Evidence::Bad));
+//! assert!(!s.update(&cfg, Evidence::Bad));
+//! assert!(!s.update(&cfg, Evidence::None)); // no evidence: the count is kept
+//! assert!(s.update(&cfg, Evidence::Bad)); // third bad sample: raised
+//! assert!(s.update(&cfg, Evidence::Good));
+//! assert!(!s.update(&cfg, Evidence::Good)); // second good sample: cleared
+//! ```
+
+use super::error::{Problem, SensorError};
+
+/// What one sample says about one diagnostic.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Evidence {
+    /// The check failed this sample.
+    Bad,
+    /// The check passed this sample.
+    Good,
+    /// The check could not be made this sample; the debounce counters are kept.
+    None,
+}
+
+/// Debounce counts for one diagnostic (configuration).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Debounce {
+    /// Consecutive bad samples that raise the flag, 1 ..= 65 535.
+    pub raise_after: u16,
+    /// Consecutive good samples that clear a raised flag, 1 ..= 65 535.
+    pub clear_after: u16,
+}
+
+impl Debounce {
+    /// Raise on the first bad sample, clear on the first good one.
+    pub const IMMEDIATE: Self = Self {
+        raise_after: 1,
+        clear_after: 1,
+    };
+
+    /// Build and validate.
+    ///
+    /// # Errors
+    /// [`SensorError::Field`] with [`Problem::NotPositive`] when a count is zero.
+    pub const fn new(raise_after: u16, clear_after: u16) -> Result<Self, SensorError> {
+        let d = Self {
+            raise_after,
+            clear_after,
+        };
+        match d.validate("debounce") {
+            Ok(()) => Ok(d),
+            Err(e) => Err(e),
+        }
+    }
+
+    pub(crate) const fn validate(&self, field: &'static str) -> Result<(), SensorError> {
+        if self.raise_after == 0 || self.clear_after == 0 {
+            return Err(SensorError::Field {
+                field,
+                problem: Problem::NotPositive,
+            });
+        }
+        Ok(())
+    }
+}
+
+/// Debounce state of one diagnostic (mutated every sample, cannot fail).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct DebounceState {
+    raised: bool,
+    /// Consecutive samples of evidence against the current state.
+    run: u16,
+}
+
+impl DebounceState {
+    /// Flag down, no history.
+    pub const fn new() -> Self {
+        Self {
+            raised: false,
+            run: 0,
+        }
+    }
+
+    /// Whether the flag is raised.
+    pub const fn raised(&self) -> bool {
+        self.raised
+    }
+
+    /// Take one sample of evidence; returns whether the flag is raised afterwards.
+    pub fn update(&mut self, cfg: &Debounce, evidence: Evidence) -> bool {
+        let against = matches!(
+            (self.raised, evidence),
+            (false, Evidence::Bad) | (true, Evidence::Good)
+        );
+        let towards = matches!(
+            (self.raised, evidence),
+            (false, Evidence::Good) | (true, Evidence::Bad)
+        );
+        if against {
+            self.run = self.run.saturating_add(1);
+            let needed = if self.raised {
+                cfg.clear_after
+            } else {
+                cfg.raise_after
+            };
+            if self.run >= needed {
+                self.raised = !self.raised;
+                self.run = 0;
+            }
+        } else if towards {
+            self.run = 0;
+        }
+        self.raised
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp)]
+mod tests {
+    use super::*;
+
+    /// Sample index (from 1) at which the state changes, for a run of identical evidence.
+    fn change_after(cfg: &Debounce, s: &mut DebounceState, e: Evidence, limit: u32) -> u32 {
+        let before = s.raised();
+        for i in 1..=limit {
+            if s.update(cfg, e) != before {
+                return i;
+            }
+        }
+        0
+    }
+
+    #[test]
+    fn raise_and_clear_latencies_are_exact() {
+        for (n, m) in [(1u16, 1u16), (3, 5), (10, 2), (u16::MAX, 1)] {
+            let cfg = Debounce::new(n, m).unwrap();
+            let mut s = DebounceState::new();
+            assert_eq!(
+                change_after(&cfg, &mut s, Evidence::Bad, 70_000),
+                u32::from(n)
+            );
+            assert_eq!(
+                change_after(&cfg, &mut s, Evidence::Good, 70_000),
+                u32::from(m)
+            );
+        }
+    }
+
+    #[test]
+    fn an_interrupted_run_starts_again() {
+        let cfg = Debounce::new(3, 3).unwrap();
+        let mut s = DebounceState::new();
+        for _ in 0..10 {
+            assert!(!s.update(&cfg, Evidence::Bad));
+            assert!(!s.update(&cfg, Evidence::Bad));
+            assert!(!s.update(&cfg, Evidence::Good));
+        }
+    }
+
+    #[test]
+    fn zero_counts_are_rejected() {
+        assert!(Debounce::new(0, 1).is_err());
+        assert!(Debounce::new(1, 0).is_err());
+    }
+}

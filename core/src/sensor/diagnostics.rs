@@ -1,0 +1,518 @@
+//! Per-channel diagnostics: acquisition invalid bit, ADC rails, force range, rate of change,
+//! stuck signal, and (fed from the vote) disagreement with the other channels.
+//!
+//! Every sample, each check gives [`Evidence`] that is debounced on its own ([`DebounceSet`]).
+//! Independently of the debounce, a sample that fails an *instantaneous* check (invalid bit,
+//! rail, out of range, rate) is **rejected**: it never enters the channel's filter, and the
+//! channel's last accepted value may stand in for at most `max_hold_samples` samples (the
+//! reading is then at best degraded). A channel with any raised flag, or stale for longer, is
+//! not used at all.
+//!
+//! | check | evidence `Bad` when | `None` (no evidence) when |
+//! |---|---|---|
+//! | invalid | the acquisition's valid bit is false | never |
+//! | rail low / high | counts ≤ `low + margin` / ≥ `high − margin` | sample invalid |
+//! | range | calibrated force outside `force_min ..= force_max` | invalid, at a rail |
+//! | rate | \|F − F_last accepted\| > `noise_band` + `max_rate` · k · T, k samples since it | as above, or nothing accepted yet |
+//! | stuck | F within `noise_band` of the window's first sample for ≥ `time` **and** the actuator command spanned ≥ `command_span` in that window | as above, window not yet full, or command still |
+//! | disagreement | the filtered value is beyond `tolerance` from the vote's consensus | sample rejected, one channel, no consensus |
+//!
+//! Stated latencies (samples from the first faulty sample to the flag, exactly; `N` is the
+//! check's `raise_after`):
+//! - a sample failing an instantaneous check is rejected in that same sample (latency 0);
+//!   the channel then stands on its last accepted value for at most `max_hold_samples`.
+//! - invalid, rail, range: `N`.
+//! - rate, for a step of S newtons after a settled signal: bad for the k = 1, 2, … with
+//!   S > noise + r·k (r = `max_rate`/f_s), i.e. K = ⌈(S − noise)/r⌉ − 1 samples; raised at
+//!   sample `N` if K ≥ `N`, else never (the step is then accepted after K samples).
+//!   A one-sample spike is rejected for one sample and raised only if `N` = 1.
+//! - stuck: W + `N` − 1 samples after the window's first sample, W = `time`·f_s rounded, when the
+//!   command had already spanned `command_span` by then.
+//! - disagreement: from the first sample at which the *filtered* value is beyond the
+//!   tolerance, `N` samples.
+//!
+//! Clearing takes `M` (`clear_after`) good samples in the same way. The checks on the sample
+//! run before the vote, so a channel whose invalid/rail/range/rate/stuck flag clears is used in
+//! that same sample; the disagreement evidence comes from the vote, so a channel whose
+//! disagreement flag clears rejoins the vote in the next sample. A channel that returns to the
+//! truth with a jump (a liar coming back, a sensor un-sticking) is rate-checked like any other
+//! jump: rejected until the allowance covers it, then its filter restarts from the sample if
+//! its hold had run out.
+
+use bitflags::bitflags;
+
+use super::calibration::{ChannelCalibration, Rail};
+use super::debounce::{Debounce, DebounceState, Evidence};
+use super::error::{Problem, SensorError};
+use super::{ActuatorCommand, NewtonsPerSecond, RawChannel};
+use crate::units::{Celsius, Newtons, Seconds};
+
+bitflags! {
+    /// Flag word of one channel for one sample.
+    ///
+    /// Bits 0–6 are debounced diagnostics (raised after N bad samples, cleared after M good);
+    /// bits 8–9 describe this sample. A channel is used in the vote only when bits 0–6 and
+    /// `STALE` are all clear.
+    #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+    pub struct ChannelFlags: u16 {
+        /// Debounced: the acquisition marked the samples invalid (dropout, CRC, not ready).
+        const INVALID = 1 << 0;
+        /// Debounced: counts at the low ADC rail (open or short circuit, by the front end).
+        const RAIL_LOW = 1 << 1;
+        /// Debounced: counts at the high ADC rail (open or short circuit, overload).
+        const RAIL_HIGH = 1 << 2;
+        /// Debounced: calibrated force outside the configured plausible range.
+        const OUT_OF_RANGE = 1 << 3;
+        /// Debounced: force changed faster than the actuator can change it.
+        const RATE = 1 << 4;
+        /// Debounced: force did not move beyond the noise band while the command moved.
+        const STUCK = 1 << 5;
+        /// Debounced: the channel disagrees with the consensus of the other channels.
+        const DISAGREE = 1 << 6;
+        /// This sample failed an instantaneous check and was not used; the channel's value
+        /// is its last accepted one.
+        const REJECTED = 1 << 8;
+        /// No accepted sample yet, or none for more than `max_hold_samples`: the channel's
+        /// value is too old to use.
+        const STALE = 1 << 9;
+    }
+}
+
+impl ChannelFlags {
+    /// The debounced diagnostic bits.
+    pub const FAULTS: Self = Self::INVALID
+        .union(Self::RAIL_LOW)
+        .union(Self::RAIL_HIGH)
+        .union(Self::OUT_OF_RANGE)
+        .union(Self::RATE)
+        .union(Self::STUCK)
+        .union(Self::DISAGREE);
+
+    /// Bits that keep a channel out of the vote.
+    pub const UNUSABLE: Self = Self::FAULTS.union(Self::STALE);
+}
+
+#[cfg(feature = "defmt")]
+impl defmt::Format for ChannelFlags {
+    fn format(&self, f: defmt::Formatter<'_>) {
+        defmt::write!(f, "ChannelFlags({=u16:#x})", self.bits());
+    }
+}
+
+/// Debounce counts of each diagnostic.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct DebounceSet {
+    /// Acquisition invalid bit.
+    pub invalid: Debounce,
+    /// ADC rails (low and high each).
+    pub rail: Debounce,
+    /// Force range.
+    pub range: Debounce,
+    /// Rate of change.
+    pub rate: Debounce,
+    /// Stuck signal.
+    pub stuck: Debounce,
+    /// Disagreement with the other channels.
+    pub disagreement: Debounce,
+}
+
+impl DebounceSet {
+    /// The same counts for every diagnostic.
+    pub const fn uniform(d: Debounce) -> Self {
+        Self {
+            invalid: d,
+            rail: d,
+            range: d,
+            rate: d,
+            stuck: d,
+            disagreement: d,
+        }
+    }
+
+    const fn validate(&self) -> Result<(), SensorError> {
+        let all = [
+            (self.invalid, "limits.debounce.invalid"),
+            (self.rail, "limits.debounce.rail"),
+            (self.range, "limits.debounce.range"),
+            (self.rate, "limits.debounce.rate"),
+            (self.stuck, "limits.debounce.stuck"),
+            (self.disagreement, "limits.debounce.disagreement"),
+        ];
+        let mut rest: &[(Debounce, &'static str)] = &all;
+        while let [(d, field), tail @ ..] = rest {
+            if let Err(e) = d.validate(field) {
+                return Err(e);
+            }
+            rest = tail;
+        }
+        Ok(())
+    }
+}
+
+/// Stuck-signal check.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct StuckCheck {
+    /// How long the force must stay within the noise band (s, > 0); rounded to the nearest
+    /// whole number of samples, at least one.
+    pub time: Seconds,
+    /// How far the actuator command must move in that time for "no change" to be a fault
+    /// (command units, > 0). Set it above the command's own noise.
+    pub command_span: ActuatorCommand,
+}
+
+/// Limits of the per-channel diagnostics (configuration input; validated by
+/// [`super::SensorConfig::new`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct DiagnosticLimits {
+    /// Lowest plausible clamp force (N); above [`Newtons::MIN`].
+    pub force_min: Newtons,
+    /// Highest plausible clamp force (N); above `force_min`, below [`Newtons::MAX`].
+    pub force_max: Newtons,
+    /// Fastest change of clamp force the actuator can produce (N/s, > 0).
+    pub max_rate: NewtonsPerSecond,
+    /// Peak-to-peak noise of a healthy channel (N, ≥ 0): the rate check's allowance and the
+    /// stuck check's band.
+    pub noise_band: Newtons,
+    /// Stuck-signal check, or `None` to leave it out.
+    pub stuck: Option<StuckCheck>,
+    /// Debounce of each diagnostic.
+    pub debounce: DebounceSet,
+    /// Samples for which a channel's last accepted value may stand in for rejected samples
+    /// (0 ..= 65 535; 0: a rejected sample takes the channel out of the vote at once).
+    pub max_hold_samples: u16,
+}
+
+/// Validated limits with the per-sample constants derived from the sample rate.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub(crate) struct Diagnostics {
+    pub(crate) limits: DiagnosticLimits,
+    /// `max_rate` / f_s in Q32 newtons per sample, rounded up.
+    pub(crate) rate_per_sample_q32: i64,
+    /// Stuck window in samples (≥ 1), 0 when the check is off.
+    stuck_window: u32,
+}
+
+const fn field_err(field: &'static str, problem: Problem) -> SensorError {
+    SensorError::Field { field, problem }
+}
+
+impl Diagnostics {
+    pub(crate) const fn new(
+        limits: DiagnosticLimits,
+        sample_rate_hz: u32,
+    ) -> Result<Self, SensorError> {
+        let (lo, hi) = (limits.force_min.to_bits(), limits.force_max.to_bits());
+        if lo == i32::MIN {
+            return Err(field_err("limits.force_min", Problem::OutOfRange));
+        }
+        if hi == i32::MAX {
+            return Err(field_err("limits.force_max", Problem::OutOfRange));
+        }
+        if hi <= lo {
+            return Err(field_err("limits.force_max", Problem::NotAboveLowerBound));
+        }
+        if limits.max_rate.to_bits() <= 0 {
+            return Err(field_err("limits.max_rate", Problem::NotPositive));
+        }
+        if limits.noise_band.to_bits() < 0 {
+            return Err(field_err("limits.noise_band", Problem::Negative));
+        }
+        if let Err(e) = limits.debounce.validate() {
+            return Err(e);
+        }
+        if sample_rate_hz == 0 {
+            return Err(field_err("sample_rate_hz", Problem::NotPositive));
+        }
+        let fs = sample_rate_hz as i64;
+        let rate = limits.max_rate.to_bits();
+        let rate_per_sample_q32 = (rate + fs - 1) / fs;
+        let stuck_window = match &limits.stuck {
+            None => 0,
+            Some(s) => {
+                if s.time.to_bits() <= 0 {
+                    return Err(field_err("limits.stuck.time", Problem::NotPositive));
+                }
+                if s.command_span.to_bits() <= 0 {
+                    return Err(field_err("limits.stuck.command_span", Problem::NotPositive));
+                }
+                // time · f_s from Q32 seconds, rounded to the nearest sample: a decimal time
+                // such as 0.05 s is not exact in binary, and rounding up would add a sample.
+                let w = ((s.time.to_bits() as i128) * (fs as i128) + (1i128 << 31)) >> 32;
+                let w = if w < 1 { 1 } else { w };
+                if w > u32::MAX as i128 {
+                    return Err(field_err("limits.stuck.time", Problem::OutOfRange));
+                }
+                // 1 ≤ w ≤ u32::MAX checked just above (`try_from` is not const).
+                #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+                let w = w as u32;
+                w
+            }
+        };
+        Ok(Self {
+            limits,
+            rate_per_sample_q32,
+            stuck_window,
+        })
+    }
+
+    /// Stuck window in samples, `None` when the check is off.
+    pub(crate) const fn stuck_window(&self) -> Option<u32> {
+        if self.stuck_window == 0 {
+            None
+        } else {
+            Some(self.stuck_window)
+        }
+    }
+
+    /// Largest change (Q32 N) a healthy channel can show over `samples` sample periods.
+    pub(crate) fn allowance_q32(&self, samples: u32) -> i128 {
+        (i128::from(self.limits.noise_band.to_bits()) << 24)
+            .saturating_add(i128::from(self.rate_per_sample_q32) * i128::from(samples))
+    }
+}
+
+/// Stuck-signal window of one channel.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+struct StuckWindow {
+    primed: bool,
+    /// Force at the start of the window (Q8 bits).
+    reference: i32,
+    /// Samples since the start of the window.
+    quiet: u32,
+    /// Command range seen in the window (Q16 bits), valid when `command_seen`.
+    command_lo: i32,
+    command_hi: i32,
+    command_seen: bool,
+}
+
+impl StuckWindow {
+    const fn new() -> Self {
+        Self {
+            primed: false,
+            reference: 0,
+            quiet: 0,
+            command_lo: 0,
+            command_hi: 0,
+            command_seen: false,
+        }
+    }
+
+    fn step(
+        &mut self,
+        force: i32,
+        command: Option<i32>,
+        band: i32,
+        window: u32,
+        span: i32,
+    ) -> Evidence {
+        let moved = (i64::from(force) - i64::from(self.reference)).abs() > i64::from(band);
+        if !self.primed || moved {
+            let evidence = if self.primed {
+                Evidence::Good
+            } else {
+                Evidence::None
+            };
+            *self = Self {
+                primed: true,
+                reference: force,
+                quiet: 0,
+                command_lo: command.unwrap_or(0),
+                command_hi: command.unwrap_or(0),
+                command_seen: command.is_some(),
+            };
+            return evidence;
+        }
+        self.quiet = self.quiet.saturating_add(1);
+        if let Some(c) = command {
+            if self.command_seen {
+                self.command_lo = self.command_lo.min(c);
+                self.command_hi = self.command_hi.max(c);
+            } else {
+                (self.command_lo, self.command_hi, self.command_seen) = (c, c, true);
+            }
+        }
+        let spanned = self.command_seen
+            && i64::from(self.command_hi) - i64::from(self.command_lo) >= i64::from(span);
+        if self.quiet >= window && spanned {
+            Evidence::Bad
+        } else {
+            Evidence::None
+        }
+    }
+}
+
+/// What the instantaneous checks made of one sample.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Checked {
+    /// The calibrated force, when the sample was accepted.
+    pub(crate) accepted: Option<Newtons>,
+    /// The channel was stale before this sample (its filter must restart from it).
+    pub(crate) was_stale: bool,
+    /// At a rail, or the calibration saturated.
+    pub(crate) saturated: bool,
+    pub(crate) temperature_clamped: bool,
+}
+
+/// Diagnostic state of one channel (mutated every sample, cannot fail).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub(crate) struct ChannelDiagnostics {
+    invalid: DebounceState,
+    rail_low: DebounceState,
+    rail_high: DebounceState,
+    range: DebounceState,
+    rate: DebounceState,
+    stuck: DebounceState,
+    disagree: DebounceState,
+    stuck_window: StuckWindow,
+    ever_accepted: bool,
+    /// Last accepted calibrated force (Q8 bits).
+    last_accepted: i32,
+    /// Sample periods since the last accepted sample (1 in the sample after it).
+    since_accepted: u32,
+    rejected_now: bool,
+}
+
+impl ChannelDiagnostics {
+    pub(crate) const fn new() -> Self {
+        Self {
+            invalid: DebounceState::new(),
+            rail_low: DebounceState::new(),
+            rail_high: DebounceState::new(),
+            range: DebounceState::new(),
+            rate: DebounceState::new(),
+            stuck: DebounceState::new(),
+            disagree: DebounceState::new(),
+            stuck_window: StuckWindow::new(),
+            ever_accepted: false,
+            last_accepted: 0,
+            since_accepted: 0,
+            rejected_now: false,
+        }
+    }
+
+    fn stale(&self, d: &Diagnostics) -> bool {
+        // While rejected, `since_accepted` is the length of the run of rejected samples.
+        !self.ever_accepted
+            || (self.rejected_now && self.since_accepted > u32::from(d.limits.max_hold_samples))
+    }
+
+    /// Samples since the last accepted sample (0 in the sample that was accepted).
+    pub(crate) const fn held_for(&self) -> u32 {
+        if self.rejected_now {
+            self.since_accepted
+        } else {
+            0
+        }
+    }
+
+    /// Run the instantaneous checks on one raw sample and debounce them.
+    pub(crate) fn check(
+        &mut self,
+        d: &Diagnostics,
+        cal: &ChannelCalibration,
+        raw: RawChannel,
+        command: Option<ActuatorCommand>,
+        sensor_temp: Option<Celsius>,
+    ) -> Checked {
+        let was_stale = self.stale(d);
+        self.since_accepted = self.since_accepted.saturating_add(1);
+        let db = &d.limits.debounce;
+        let mut out = Checked {
+            accepted: None,
+            was_stale,
+            saturated: false,
+            temperature_clamped: false,
+        };
+        self.rejected_now = true;
+        if !raw.valid {
+            self.invalid.update(&db.invalid, Evidence::Bad);
+            return out;
+        }
+        self.invalid.update(&db.invalid, Evidence::Good);
+        let rail = cal.rails.classify(raw.counts);
+        let (low, high) = match rail {
+            Rail::Inside => (Evidence::Good, Evidence::Good),
+            Rail::Low => (Evidence::Bad, Evidence::Good),
+            Rail::High => (Evidence::Good, Evidence::Bad),
+        };
+        self.rail_low.update(&db.rail, low);
+        self.rail_high.update(&db.rail, high);
+        if rail != Rail::Inside {
+            out.saturated = true;
+            return out;
+        }
+        let cal_out = cal.force(raw.counts, sensor_temp);
+        out.saturated = cal_out.saturated;
+        out.temperature_clamped = cal_out.temperature_clamped;
+        let f = cal_out.force.to_bits();
+        let l = &d.limits;
+        let in_range = f >= l.force_min.to_bits() && f <= l.force_max.to_bits();
+        self.range.update(
+            &db.range,
+            if in_range {
+                Evidence::Good
+            } else {
+                Evidence::Bad
+            },
+        );
+        let rate_ok = if self.ever_accepted {
+            let change = (i128::from(f) - i128::from(self.last_accepted)) << 24;
+            let ok = change.abs() <= d.allowance_q32(self.since_accepted);
+            self.rate
+                .update(&db.rate, if ok { Evidence::Good } else { Evidence::Bad });
+            ok
+        } else {
+            true
+        };
+        if let (Some(window), Some(s)) = (d.stuck_window(), &l.stuck) {
+            let e = self.stuck_window.step(
+                f,
+                command.map(|c| c.to_bits()),
+                l.noise_band.to_bits(),
+                window,
+                s.command_span.to_bits(),
+            );
+            self.stuck.update(&db.stuck, e);
+        }
+        if in_range && rate_ok {
+            self.rejected_now = false;
+            self.ever_accepted = true;
+            self.last_accepted = f;
+            self.since_accepted = 0;
+            out.accepted = Some(cal_out.force);
+        }
+        out
+    }
+
+    /// Debounce the disagreement evidence from the vote.
+    pub(crate) fn disagreement(&mut self, d: &Diagnostics, evidence: Evidence) {
+        self.disagree
+            .update(&d.limits.debounce.disagreement, evidence);
+    }
+
+    /// Whether this sample was accepted.
+    pub(crate) const fn accepted_now(&self) -> bool {
+        !self.rejected_now
+    }
+
+    /// The channel's flag word after this sample.
+    pub(crate) fn flags(&self, d: &Diagnostics) -> ChannelFlags {
+        let mut f = ChannelFlags::empty();
+        f.set(ChannelFlags::INVALID, self.invalid.raised());
+        f.set(ChannelFlags::RAIL_LOW, self.rail_low.raised());
+        f.set(ChannelFlags::RAIL_HIGH, self.rail_high.raised());
+        f.set(ChannelFlags::OUT_OF_RANGE, self.range.raised());
+        f.set(ChannelFlags::RATE, self.rate.raised());
+        f.set(ChannelFlags::STUCK, self.stuck.raised());
+        f.set(ChannelFlags::DISAGREE, self.disagree.raised());
+        f.set(ChannelFlags::REJECTED, self.rejected_now);
+        f.set(ChannelFlags::STALE, self.stale(d));
+        f
+    }
+}
