@@ -1,7 +1,7 @@
 //! SAE J866 friction code letters for a friction coefficient.
 //!
 //! The code grades a lining's normal and hot friction, as measured by the SAE J661 test, into
-//! letters with "over x, not over y" edges [pub: SAE J866]:
+//! letters with "over x, not over y" edges \[pub: SAE J866\]:
 //!
 //! | letter | μ |
 //! |---|---|

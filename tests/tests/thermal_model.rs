@@ -1,5 +1,6 @@
 //! Thermal model against published lumped-capacitance formulas and against the f64 reference
 //! (RK4) over the envelope.
+#![allow(clippy::indexing_slicing)]
 #![allow(
     clippy::unwrap_used,
     clippy::cast_precision_loss,

@@ -1,4 +1,5 @@
 //! Wear and bedding against the f64 reference (closed-form bedding, compensated energy sum).
+#![allow(clippy::indexing_slicing)]
 #![allow(
     clippy::unwrap_used,
     clippy::cast_precision_loss,
