@@ -393,8 +393,9 @@ fn ratio_from_i64(v: i64) -> (Ratio, bool) {
 
 /// a·b for two Q30 values, rounded to nearest.
 fn mul_q30(a: i64, b: i64) -> i64 {
-    // |a|, |b| < 2³² (from i32 raw bits), so the product stays below 2⁶³.
-    (a * b + (ONE_Q30 >> 1)) >> 30
+    // |a|, |b| < 2³² (from i32 raw bits), so the product stays below 2⁶³; saturating keeps the
+    // path panic-free by construction.
+    a.saturating_mul(b).saturating_add(ONE_Q30 >> 1) >> 30
 }
 
 impl FrictionState {
@@ -475,7 +476,9 @@ impl FrictionState {
         let mk = i64::from(mu_k.to_bits());
         let ms = i64::from(mu_s.to_bits());
         // Lies between mk and ms, both valid Ratio bits: cannot saturate.
-        let (mu, _) = ratio_from_i64(mk + mul_q30(ms - mk, ONE_Q30 - phi));
+        let (mu, _) = ratio_from_i64(
+            mk.saturating_add(mul_q30(ms.saturating_sub(mk), ONE_Q30.saturating_sub(phi))),
+        );
 
         let (drag_torque, sat_d) = drag(cfg, speed, phi, v);
         saturated |= sat_d;
@@ -504,10 +507,10 @@ fn smoothstep_q30(speed: i32, v_t: i32, recip: i64) -> i64 {
         return ONE_Q30;
     }
     // speed < v_t, recip ≤ 2⁴⁶/v_t: the product is below 2⁴⁶.
-    let s = ((i64::from(speed) * recip) >> 16).min(ONE_Q30);
-    let s2 = (s * s) >> 30;
+    let s = (i64::from(speed).saturating_mul(recip) >> 16).clamp(0, ONE_Q30);
+    let s2 = s.saturating_mul(s) >> 30;
     // s2 ≤ 2³⁰ and 3·2³⁰ − 2s ≤ 3·2³⁰: the product is below 2⁶².
-    ((s2 * (3 * ONE_Q30 - 2 * s)) >> 30).clamp(0, ONE_Q30)
+    (s2.saturating_mul((3 * ONE_Q30).saturating_sub(s.saturating_mul(2))) >> 30).clamp(0, ONE_Q30)
 }
 
 /// Signed drag torque opposing slip, and whether it saturated.
@@ -521,11 +524,21 @@ fn drag<const NT: usize, const NV: usize>(
         return (NewtonMetres::ZERO, false);
     }
     // c_v (Q16) · |v| (Q16) is Q32, below 2⁶²; to Q12 rounded.
-    let viscous = (i64::from(cfg.viscous_drag.to_bits()) * i64::from(speed) + (1 << 19)) >> 20;
+    let viscous = i64::from(cfg.viscous_drag.to_bits())
+        .saturating_mul(i64::from(speed))
+        .saturating_add(1 << 19)
+        >> 20;
     // T₀ (Q12) · φ (Q30) below 2⁶¹; to Q12 rounded.
-    let no_load = (i64::from(cfg.no_load_drag.to_bits()) * phi + (ONE_Q30 >> 1)) >> 30;
+    let no_load = i64::from(cfg.no_load_drag.to_bits())
+        .saturating_mul(phi)
+        .saturating_add(ONE_Q30 >> 1)
+        >> 30;
     let magnitude = viscous.saturating_add(no_load);
-    let signed = if v > 0 { -magnitude } else { magnitude };
+    let signed = if v > 0 {
+        magnitude.saturating_neg()
+    } else {
+        magnitude
+    };
     match i32::try_from(signed) {
         Ok(b) => (NewtonMetres::from_bits(b), false),
         Err(_) => (

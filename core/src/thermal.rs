@@ -575,18 +575,22 @@ impl ThermalState {
         let p = i128::from(power.to_bits().unsigned_abs());
         let amb = i128::from(to_q32(cfg.ambient));
         let theta = [
-            i128::from(self.lining_q32) - amb,
-            i128::from(self.rotor_q32) - amb,
+            i128::from(self.lining_q32).saturating_sub(amb),
+            i128::from(self.rotor_q32).saturating_sub(amb),
         ];
         let mut next = [self.lining_q32, self.rotor_q32];
         for ((out, krow), g) in next.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
-            // |θ| < 2⁴⁸, |K| ≤ 2⁶², P < 2⁶⁴, Γ < 2⁶²: the sum stays below 2¹²⁷.
-            let decay = krow
-                .iter()
-                .zip(theta.iter())
-                .fold(0i128, |acc, (k, t)| acc + i128::from(*k) * *t);
-            let delta = (i128::from(*g) * p - decay + (1i128 << 61)) >> 62;
-            *out = narrow_q32(i128::from(*out) + delta);
+            // |θ| < 2⁴⁸, |K| ≤ 2⁶², P < 2⁶⁴, Γ < 2⁶²: the sum stays below 2¹²⁷, so the
+            // saturating operations never saturate; they keep the path free of panics.
+            let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
+                acc.saturating_add(i128::from(*k).saturating_mul(*t))
+            });
+            let delta = i128::from(*g)
+                .saturating_mul(p)
+                .saturating_sub(decay)
+                .saturating_add(1i128 << 61)
+                >> 62;
+            *out = narrow_q32(i128::from(*out).saturating_add(delta));
         }
         let [lining, rotor] = next;
         self.rotor_q32 = rotor;
