@@ -188,7 +188,10 @@ fn normalise(torque: NewtonMetres, full_scale: NewtonMetres) -> i64 {
 impl AdaptState {
     /// Start at k = 1 with the configured initial covariance.
     pub const fn new(cfg: &AdaptConfig) -> Self {
-        Self { factor: Ratio::ONE, covariance: cfg.initial_covariance }
+        Self {
+            factor: Ratio::ONE,
+            covariance: cfg.initial_covariance,
+        }
     }
 
     /// Restore from a saved factor and covariance, clamped into the configured bounds.
@@ -218,8 +221,14 @@ impl AdaptState {
         reference: Option<NewtonMetres>,
         gate: AdaptGate,
     ) -> AdaptSample {
-        let held = AdaptSample { factor: self.factor, frozen: true, at_band_limit: false };
-        let Some(reference) = reference else { return held };
+        let held = AdaptSample {
+            factor: self.factor,
+            frozen: true,
+            at_band_limit: false,
+        };
+        let Some(reference) = reference else {
+            return held;
+        };
         if !(gate.slipping && gate.force_sufficient && gate.sensors_healthy) {
             return held;
         }
@@ -244,7 +253,11 @@ impl AdaptState {
         let at_band_limit = k_bounded.to_bits() != narrow_q30(k_new).to_bits();
         self.factor = k_bounded;
         self.covariance = narrow_q30(p_new).clamp(cfg.min_covariance, cfg.max_covariance);
-        AdaptSample { factor: self.factor, frozen: false, at_band_limit }
+        AdaptSample {
+            factor: self.factor,
+            frozen: false,
+            at_band_limit,
+        }
     }
 }
 
@@ -258,22 +271,47 @@ mod tests {
         AdaptConfig::new(0.7, 1.3, 0.995, NewtonMetres::from_num(2000), 0.02).unwrap()
     }
 
-    const OPEN: AdaptGate = AdaptGate { slipping: true, force_sufficient: true, sensors_healthy: true };
+    const OPEN: AdaptGate = AdaptGate {
+        slipping: true,
+        force_sufficient: true,
+        sensors_healthy: true,
+    };
 
     #[test]
     fn every_invalid_setting_has_its_error() {
         let fs = NewtonMetres::from_num(100);
-        assert_eq!(AdaptConfig::new(1.1, 1.3, 0.99, fs, 0.1), Err(AdaptError::Band));
-        assert_eq!(AdaptConfig::new(0.0, 1.3, 0.99, fs, 0.1), Err(AdaptError::Band));
-        assert_eq!(AdaptConfig::new(0.8, 2.0, 0.99, fs, 0.1), Err(AdaptError::Band));
-        assert_eq!(AdaptConfig::new(0.8, f64::NAN, 0.99, fs, 0.1), Err(AdaptError::Band));
-        assert_eq!(AdaptConfig::new(0.8, 1.2, 0.5, fs, 0.1), Err(AdaptError::ForgettingFactor));
-        assert_eq!(AdaptConfig::new(0.8, 1.2, 1.01, fs, 0.1), Err(AdaptError::ForgettingFactor));
+        assert_eq!(
+            AdaptConfig::new(1.1, 1.3, 0.99, fs, 0.1),
+            Err(AdaptError::Band)
+        );
+        assert_eq!(
+            AdaptConfig::new(0.0, 1.3, 0.99, fs, 0.1),
+            Err(AdaptError::Band)
+        );
+        assert_eq!(
+            AdaptConfig::new(0.8, 2.0, 0.99, fs, 0.1),
+            Err(AdaptError::Band)
+        );
+        assert_eq!(
+            AdaptConfig::new(0.8, f64::NAN, 0.99, fs, 0.1),
+            Err(AdaptError::Band)
+        );
+        assert_eq!(
+            AdaptConfig::new(0.8, 1.2, 0.5, fs, 0.1),
+            Err(AdaptError::ForgettingFactor)
+        );
+        assert_eq!(
+            AdaptConfig::new(0.8, 1.2, 1.01, fs, 0.1),
+            Err(AdaptError::ForgettingFactor)
+        );
         assert_eq!(
             AdaptConfig::new(0.8, 1.2, 0.99, NewtonMetres::ZERO, 0.1),
             Err(AdaptError::TorqueFullScale)
         );
-        assert_eq!(AdaptConfig::new(0.8, 1.2, 0.99, fs, 0.0), Err(AdaptError::MinExcitation));
+        assert_eq!(
+            AdaptConfig::new(0.8, 1.2, 0.99, fs, 0.0),
+            Err(AdaptError::MinExcitation)
+        );
     }
 
     #[test]
@@ -305,9 +343,18 @@ mod tests {
         let t = NewtonMetres::from_num(500);
         let r = Some(NewtonMetres::from_num(600));
         for gate in [
-            AdaptGate { slipping: false, ..OPEN },
-            AdaptGate { force_sufficient: false, ..OPEN },
-            AdaptGate { sensors_healthy: false, ..OPEN },
+            AdaptGate {
+                slipping: false,
+                ..OPEN
+            },
+            AdaptGate {
+                force_sufficient: false,
+                ..OPEN
+            },
+            AdaptGate {
+                sensors_healthy: false,
+                ..OPEN
+            },
         ] {
             let out = s.update(&cfg, t, r, gate);
             assert!(out.frozen);

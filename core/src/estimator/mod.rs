@@ -1,4 +1,284 @@
-//! The per-sample pipeline (work in progress).
+//! The per-sample pipeline: [`Estimator::step`] turns one sample of [`Inputs`] into an
+//! [`Estimate`].
+//!
+//! ```text
+//! raw counts ─ sensor ─► F, health ──────────────────────────┐
+//! ω_in − ω_out ─► slip speed v ─ friction (stick/slip, μ) ───┤
+//! F, bedding ─ radius table ─► r_e                           ├─► torque / capacity, ±, state
+//! T_lining, |v| ─ μ table × k (adaptation) ─► μ ─────────────┘
+//! |T · v| ─► thermal ─► T_lining (next sample);  |T · v| · dt ─► wear, bedding
+//! reference torque ─► adaptation k (bounded; frozen on faults)
+//! ```
+//!
+//! The step is O(1), integer-only, allocation-free and cannot panic: every product that could
+//! leave its format saturates and raises [`Flags::ARITHMETIC_SATURATED`].
+//!
+//! Order within a sample: the thermal and bedding state used for this sample's μ and r_e are
+//! those left by the previous sample; this sample's dissipated energy updates them for the
+//! next. At 1 kHz the lag is one millisecond, far below the thermal time constants.
+
+mod estimate;
+mod inputs;
 mod torque;
 mod uncertainty;
+
+pub use estimate::{ContactState, Estimate};
+pub use inputs::Inputs;
 pub use uncertainty::Combination;
+
+use crate::adapt::{AdaptGate, AdaptState};
+use crate::config::DeviceConfig;
+use crate::flags::Flags;
+use crate::friction::FrictionState;
+use crate::sensor::{ChannelMask, ForceSource, Health, SensorState};
+use crate::thermal::ThermalState;
+use crate::units::{NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
+use crate::wear::WearState;
+
+use torque::{dissipated_power, friction_torque};
+use uncertainty::torque_uncertainty;
+
+/// Everything that persists between samples.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct EstimatorState<const C: usize> {
+    sensor: SensorState<C>,
+    friction: FrictionState,
+    thermal: ThermalState,
+    wear: WearState,
+    adapt: Option<AdaptState>,
+}
+
+/// The estimator for one device: a borrowed, validated configuration (in flash on a target)
+/// and the mutable state.
+#[derive(Clone, Debug)]
+pub struct Estimator<
+    'c,
+    const C: usize,
+    const NF: usize,
+    const NB: usize,
+    const NT: usize,
+    const NV: usize,
+> {
+    cfg: &'c DeviceConfig<C, NF, NB, NT, NV>,
+    state: EstimatorState<C>,
+}
+
+/// Apply a friction direction (−1, 0, +1) to a magnitude.
+fn signed(direction: i8, magnitude: NewtonMetres) -> NewtonMetres {
+    match direction {
+        d if d < 0 => magnitude.saturating_neg(),
+        d if d > 0 => magnitude,
+        _ => NewtonMetres::ZERO,
+    }
+}
+
+impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
+    Estimator<'c, C, NF, NB, NT, NV>
+{
+    /// A new estimator: lining at ambient temperature, new (bedding 0, no wear), holding,
+    /// adaptation factor 1.
+    pub fn new(cfg: &'c DeviceConfig<C, NF, NB, NT, NV>) -> Self {
+        let state = EstimatorState {
+            sensor: SensorState::new(),
+            friction: FrictionState::new(),
+            thermal: ThermalState::new(&cfg.thermal),
+            wear: WearState::new(),
+            adapt: cfg.adapt.as_ref().map(AdaptState::new),
+        };
+        Self { cfg, state }
+    }
+
+    /// The configuration.
+    pub const fn config(&self) -> &'c DeviceConfig<C, NF, NB, NT, NV> {
+        self.cfg
+    }
+
+    /// The state carried between samples.
+    pub const fn state(&self) -> &EstimatorState<C> {
+        &self.state
+    }
+
+    /// One control cycle. O(1), integer-only, no allocation, cannot panic.
+    pub fn step(&mut self, inputs: &Inputs<C>) -> Estimate {
+        let cfg = self.cfg;
+        let st = &mut self.state;
+        let mut flags = Flags::empty();
+
+        // 1. Clamp force.
+        let reading = st.sensor.update(
+            &cfg.sensor,
+            &inputs.force_channels,
+            inputs.actuator_command,
+            inputs.sensor_temperature,
+        );
+        flags.set(Flags::SENSOR_DEGRADED, reading.health == Health::Degraded);
+        flags.set(
+            Flags::FORCE_FALLBACK,
+            reading.source == ForceSource::ActuatorFallback,
+        );
+        flags.set(Flags::FORCE_SATURATED, reading.saturated);
+        let channels_used = match reading.source {
+            ForceSource::Channels { mask } => mask,
+            _ => ChannelMask::EMPTY,
+        };
+
+        // 2. Slip speed and μ at the lining temperature left by the previous sample.
+        let slip_speed: RadPerSec = inputs.input_speed.saturating_sub(inputs.output_speed);
+        let lining_before = st.thermal.lining_temperature();
+        let fric = st
+            .friction
+            .update(&cfg.friction, slip_speed, lining_before, Ratio::ONE);
+        flags.set(Flags::OUT_OF_RANGE, fric.clamped);
+        flags.set(Flags::ARITHMETIC_SATURATED, fric.saturated);
+        let correction = st.adapt.map_or(Ratio::ONE, |a| a.factor());
+        let bedding = st.wear.bedding();
+
+        let Some(force) = reading.force else {
+            flags.insert(Flags::FORCE_LOST);
+            // No force, no dissipated power that can be known: the thermal model only cools.
+            return self.finish_unavailable(inputs, flags, correction);
+        };
+        let force = force.max(Newtons::ZERO);
+
+        // 3. Effective radius at this force and bedding.
+        let radius = cfg.radius.lookup(force, bedding);
+        flags.set(
+            Flags::OUT_OF_RANGE,
+            flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,
+        );
+        let lever_arm = radius.value;
+
+        // 4. Torque or capacity.
+        let kinetic = friction_torque(cfg.faces, correction, fric.mu_kinetic, force, lever_arm);
+        let capacity = friction_torque(cfg.faces, correction, fric.mu_static, force, lever_arm);
+        let uncorrected = friction_torque(cfg.faces, Ratio::ONE, fric.mu_kinetic, force, lever_arm);
+        let any_saturated = kinetic.saturated || capacity.saturated || uncorrected.saturated;
+        flags.set(
+            Flags::ARITHMETIC_SATURATED,
+            flags.contains(Flags::ARITHMETIC_SATURATED) || any_saturated,
+        );
+
+        let released = force < cfg.limits.touch_force;
+        let (state, torque, mu, friction_power_torque) = if released {
+            (
+                ContactState::Released,
+                Some(fric.drag_torque),
+                fric.mu_kinetic,
+                NewtonMetres::ZERO,
+            )
+        } else if fric.slipping {
+            let t = signed(fric.direction, kinetic.value);
+            (
+                ContactState::Slipping,
+                Some(t.saturating_add(fric.drag_torque)),
+                fric.mu_kinetic,
+                t,
+            )
+        } else {
+            flags.insert(Flags::TORQUE_BOUNDED);
+            (
+                ContactState::Holding,
+                None,
+                fric.mu_static,
+                NewtonMetres::ZERO,
+            )
+        };
+        let mu_used = mu.saturating_mul(correction);
+
+        // 5. Heat and wear from this sample's dissipated power (friction + drag).
+        let heat_torque = friction_power_torque.saturating_add(fric.drag_torque);
+        let power = dissipated_power(heat_torque, slip_speed);
+        if power.saturated {
+            flags.insert(Flags::ARITHMETIC_SATURATED);
+        }
+        let thermal = st
+            .thermal
+            .update(&cfg.thermal, power.value, inputs.lining_temperature);
+        flags.set(Flags::FADE_WARNING, thermal.fade_warning);
+        flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
+        flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
+        let wear = st.wear.update(&cfg.wear, power.value);
+        flags.set(Flags::LINING_WORN, wear.worn_out);
+
+        // 6. Adaptation: learn k only from clean slipping samples.
+        let gate = AdaptGate {
+            slipping: state == ContactState::Slipping,
+            force_sufficient: force >= cfg.limits.adapt_min_force,
+            sensors_healthy: reading.health == Health::Ok,
+        };
+        let model = signed(fric.direction, uncorrected.value);
+        match (st.adapt.as_mut(), cfg.adapt.as_ref()) {
+            (Some(a), Some(acfg)) => {
+                let out = a.update(acfg, model, inputs.reference_torque, gate);
+                flags.set(Flags::ADAPTATION_FROZEN, out.frozen);
+                flags.set(Flags::ADAPTATION_AT_LIMIT, out.at_band_limit);
+            }
+            _ => flags.insert(Flags::ADAPTATION_FROZEN),
+        }
+
+        // 7. Uncertainty of what is reported.
+        let reported = match state {
+            ContactState::Holding => capacity.value,
+            _ => torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
+        };
+        let uncertainty = torque_uncertainty(
+            reported,
+            force,
+            reading.uncertainty,
+            cfg.tolerances.mu,
+            cfg.tolerances.radius,
+            cfg.tolerances.combination,
+        );
+
+        Estimate {
+            torque,
+            holding_capacity: Some(capacity.value),
+            uncertainty,
+            mu: mu_used,
+            effective_radius: lever_arm,
+            clamp_force: force,
+            force_channels_used: channels_used,
+            lining_temperature: thermal.lining_temperature,
+            bedding: wear.bedding,
+            wear: wear.thickness_loss,
+            correction,
+            state,
+            flags,
+        }
+    }
+
+    /// The rest of a sample without force: cool the lining, freeze the adaptation, report
+    /// neither torque nor capacity.
+    fn finish_unavailable(
+        &mut self,
+        inputs: &Inputs<C>,
+        mut flags: Flags,
+        correction: Ratio,
+    ) -> Estimate {
+        let st = &mut self.state;
+        let thermal = st
+            .thermal
+            .update(&self.cfg.thermal, Watts::ZERO, inputs.lining_temperature);
+        flags.set(Flags::FADE_WARNING, thermal.fade_warning);
+        flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
+        flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
+        flags.insert(Flags::ADAPTATION_FROZEN);
+        let wear = st.wear.sample(&self.cfg.wear);
+        flags.set(Flags::LINING_WORN, wear.worn_out);
+        Estimate {
+            torque: None,
+            holding_capacity: None,
+            uncertainty: NewtonMetres::MAX,
+            mu: Ratio::ZERO,
+            effective_radius: crate::units::Metres::ZERO,
+            clamp_force: Newtons::ZERO,
+            force_channels_used: ChannelMask::EMPTY,
+            lining_temperature: thermal.lining_temperature,
+            bedding: wear.bedding,
+            wear: wear.thickness_loss,
+            correction,
+            state: ContactState::Unavailable,
+            flags,
+        }
+    }
+}

@@ -37,7 +37,10 @@ pub(crate) fn friction_torque(
     // To Q12 (NewtonMetres) first, then the face count: |Q12 value| < 2⁴⁴, · 255 < 2⁵².
     let per_face = q92.saturating_add(1i128 << 79) >> 80;
     let (bits, saturated) = narrow(per_face.saturating_mul(i128::from(faces)));
-    Saturating { value: NewtonMetres::from_bits(bits), saturated }
+    Saturating {
+        value: NewtonMetres::from_bits(bits),
+        saturated,
+    }
 }
 
 /// |T · v| in W, the power dissipated in the contact.
@@ -46,8 +49,14 @@ pub(crate) fn dissipated_power(torque: NewtonMetres, slip_speed: RadPerSec) -> S
     let q28 = i128::from(torque.to_bits()) * i128::from(slip_speed.to_bits());
     let q32 = q28.unsigned_abs() << 4;
     match i64::try_from(q32) {
-        Ok(bits) => Saturating { value: Watts::from_bits(bits), saturated: false },
-        Err(_) => Saturating { value: Watts::MAX, saturated: true },
+        Ok(bits) => Saturating {
+            value: Watts::from_bits(bits),
+            saturated: false,
+        },
+        Err(_) => Saturating {
+            value: Watts::MAX,
+            saturated: true,
+        },
     }
 }
 

@@ -72,10 +72,23 @@ mod tests {
             Ratio::from_num(0.20),
             Ratio::from_num(0.01),
         );
-        let wc = torque_uncertainty(args.0, args.1, args.2, args.3, args.4, Combination::WorstCase);
+        let wc = torque_uncertainty(
+            args.0,
+            args.1,
+            args.2,
+            args.3,
+            args.4,
+            Combination::WorstCase,
+        );
         assert!((wc.to_num::<f64>() - 230.0).abs() < 0.01, "{wc}");
-        let rss =
-            torque_uncertainty(args.0, args.1, args.2, args.3, args.4, Combination::RootSumSquare);
+        let rss = torque_uncertainty(
+            args.0,
+            args.1,
+            args.2,
+            args.3,
+            args.4,
+            Combination::RootSumSquare,
+        );
         assert!((rss.to_num::<f64>() - 201.246).abs() < 0.01, "{rss}");
     }
 

@@ -1,0 +1,276 @@
+//! One validated configuration for a whole device: the friction-radius table, the μ model, the
+//! thermal and wear models, the force sensors, the optional adaptation, limits, tolerances and
+//! the sample period.
+//!
+//! Each part is validated by its own constructor (so a part that exists is valid); this module
+//! checks what ties them together (one sample period everywhere, limits inside the tables'
+//! reach) and names the offending field in its error. [`DeviceConfig::new`] is a `const fn`: a
+//! firmware builds its configuration at compile time and keeps it in flash, and a mistake in
+//! it fails the build.
+
+use core::fmt;
+
+use crate::adapt::AdaptConfig;
+use crate::estimator::Combination;
+use crate::friction::FrictionConfig;
+use crate::geometry::RadiusTable;
+use crate::sensor::SensorConfig;
+use crate::thermal::ThermalConfig;
+use crate::units::{Newtons, Ratio, Seconds};
+use crate::wear::WearConfig;
+
+/// A configuration field that failed validation, with the reason.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum ConfigError {
+    /// `faces` must be 1…255 friction interfaces.
+    Faces,
+    /// `sample_period_s` must be positive and at most 1 s.
+    SamplePeriod,
+    /// The thermal model was built for a different sample period.
+    ThermalSamplePeriod,
+    /// The wear model was built for a different sample period.
+    WearSamplePeriod,
+    /// The sensor conditioning was built for a different sample rate.
+    SensorSampleRate,
+    /// `limits.touch_force_n` must be ≥ 0.
+    TouchForce,
+    /// `limits.adapt_min_force_n` must be ≥ `limits.touch_force_n`.
+    AdaptMinForce,
+    /// `tolerances.mu` must be in [0, 1).
+    MuTolerance,
+    /// `tolerances.radius` must be in [0, 1).
+    RadiusTolerance,
+}
+
+impl ConfigError {
+    /// The configuration key at fault, as spelled in the simulator's TOML files.
+    pub const fn field(&self) -> &'static str {
+        match self {
+            Self::Faces => "contact.faces",
+            Self::SamplePeriod => "sample_period_s",
+            Self::ThermalSamplePeriod => "thermal (sample period)",
+            Self::WearSamplePeriod => "wear (sample period)",
+            Self::SensorSampleRate => "sensors (sample rate)",
+            Self::TouchForce => "limits.touch_force_n",
+            Self::AdaptMinForce => "limits.adapt_min_force_n",
+            Self::MuTolerance => "tolerances.mu",
+            Self::RadiusTolerance => "tolerances.radius",
+        }
+    }
+}
+
+impl fmt::Display for ConfigError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let why = match self {
+            Self::Faces => "must be between 1 and 255 friction interfaces",
+            Self::SamplePeriod => "must be positive and at most 1 s",
+            Self::ThermalSamplePeriod => "was built for a different sample period than the device",
+            Self::WearSamplePeriod => "was built for a different sample period than the device",
+            Self::SensorSampleRate => "was built for a different sample rate than the device",
+            Self::TouchForce => "must not be negative",
+            Self::AdaptMinForce => "must not be below limits.touch_force_n",
+            Self::MuTolerance => "must be within [0, 1)",
+            Self::RadiusTolerance => "must be within [0, 1)",
+        };
+        write!(f, "`{}` {why}", self.field())
+    }
+}
+
+impl core::error::Error for ConfigError {}
+
+/// Force thresholds of the pipeline.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Limits {
+    /// Below this clamp force the contact is released: torque is the drag alone (N).
+    pub touch_force: Newtons,
+    /// The adaptation learns only above this clamp force (N).
+    pub adapt_min_force: Newtons,
+}
+
+/// Relative tolerances behind the reported ± uncertainty.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Tolerances {
+    /// Relative tolerance of μ (e.g. 0.20 for ±20 %; μ dominates the budget [practice]).
+    pub mu: Ratio,
+    /// Relative tolerance of the effective radius.
+    pub radius: Ratio,
+    /// How the relative tolerances combine.
+    pub combination: Combination,
+}
+
+/// The whole device: `C` force channels, an `NF` × `NB` friction-radius table (force ×
+/// bedding) and an `NT` × `NV` μ table (temperature × slip speed).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct DeviceConfig<
+    const C: usize,
+    const NF: usize,
+    const NB: usize,
+    const NT: usize,
+    const NV: usize,
+> {
+    pub(crate) sample_period: Seconds,
+    pub(crate) faces: u8,
+    pub(crate) radius: RadiusTable<NF, NB>,
+    pub(crate) friction: FrictionConfig<NT, NV>,
+    pub(crate) thermal: ThermalConfig,
+    pub(crate) wear: WearConfig,
+    pub(crate) sensor: SensorConfig<C>,
+    pub(crate) adapt: Option<AdaptConfig>,
+    pub(crate) limits: Limits,
+    pub(crate) tolerances: Tolerances,
+}
+
+/// The parts of a [`DeviceConfig`], each already validated by its own constructor.
+#[derive(Clone, Copy, Debug)]
+pub struct DeviceParts<
+    const C: usize,
+    const NF: usize,
+    const NB: usize,
+    const NT: usize,
+    const NV: usize,
+> {
+    /// Control-loop sample period (s).
+    pub sample_period: Seconds,
+    /// Number of friction interfaces sharing the clamp force (1…255).
+    pub faces: u8,
+    /// Per-face lever arm r_e (m, already divided by sin α for a cone) over force × bedding.
+    pub radius: RadiusTable<NF, NB>,
+    /// μ model.
+    pub friction: FrictionConfig<NT, NV>,
+    /// Thermal model.
+    pub thermal: ThermalConfig,
+    /// Wear and bedding model.
+    pub wear: WearConfig,
+    /// Force-sensor conditioning.
+    pub sensor: SensorConfig<C>,
+    /// Optional online μ correction.
+    pub adapt: Option<AdaptConfig>,
+    /// Force thresholds.
+    pub limits: Limits,
+    /// Tolerances behind the uncertainty.
+    pub tolerances: Tolerances,
+}
+
+/// Whether `a` and `b` are the same period to within 1 ppm (sample periods that went through
+/// different unit conversions).
+const fn same_period(a: Seconds, b: Seconds) -> bool {
+    let (a, b) = (a.to_bits(), b.to_bits());
+    let diff = if a > b { a - b } else { b - a };
+    diff <= a / 1_000_000 + 1
+}
+
+impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
+    DeviceConfig<C, NF, NB, NT, NV>
+{
+    /// Check the parts against each other and build the device configuration.
+    ///
+    /// # Errors
+    /// The [`ConfigError`] naming the first field at fault.
+    pub const fn new(parts: DeviceParts<C, NF, NB, NT, NV>) -> Result<Self, ConfigError> {
+        let period = parts.sample_period.to_bits();
+        if period <= 0 || period > Seconds::ONE.to_bits() {
+            return Err(ConfigError::SamplePeriod);
+        }
+        if parts.faces == 0 {
+            return Err(ConfigError::Faces);
+        }
+        if !same_period(parts.thermal.dt(), parts.sample_period) {
+            return Err(ConfigError::ThermalSamplePeriod);
+        }
+        if !same_period(parts.wear.dt(), parts.sample_period) {
+            return Err(ConfigError::WearSamplePeriod);
+        }
+        // rate · period = 1 s within 1 ppm.
+        let rate = parts.sensor.sample_rate_hz() as i64;
+        let product = rate * period;
+        let one = Seconds::ONE.to_bits();
+        let diff = if product > one {
+            product - one
+        } else {
+            one - product
+        };
+        if rate == 0 || diff > one / 1_000_000 + rate {
+            return Err(ConfigError::SensorSampleRate);
+        }
+        if parts.limits.touch_force.to_bits() < 0 {
+            return Err(ConfigError::TouchForce);
+        }
+        if parts.limits.adapt_min_force.to_bits() < parts.limits.touch_force.to_bits() {
+            return Err(ConfigError::AdaptMinForce);
+        }
+        let mu = parts.tolerances.mu.to_bits();
+        if mu < 0 || mu >= Ratio::ONE.to_bits() {
+            return Err(ConfigError::MuTolerance);
+        }
+        let radius = parts.tolerances.radius.to_bits();
+        if radius < 0 || radius >= Ratio::ONE.to_bits() {
+            return Err(ConfigError::RadiusTolerance);
+        }
+        Ok(Self {
+            sample_period: parts.sample_period,
+            faces: parts.faces,
+            radius: parts.radius,
+            friction: parts.friction,
+            thermal: parts.thermal,
+            wear: parts.wear,
+            sensor: parts.sensor,
+            adapt: parts.adapt,
+            limits: parts.limits,
+            tolerances: parts.tolerances,
+        })
+    }
+
+    /// Control-loop sample period (s).
+    pub const fn sample_period(&self) -> Seconds {
+        self.sample_period
+    }
+
+    /// Number of friction interfaces.
+    pub const fn faces(&self) -> u8 {
+        self.faces
+    }
+
+    /// The friction-radius table.
+    pub const fn radius_table(&self) -> &RadiusTable<NF, NB> {
+        &self.radius
+    }
+
+    /// The μ model.
+    pub const fn friction(&self) -> &FrictionConfig<NT, NV> {
+        &self.friction
+    }
+
+    /// The thermal model.
+    pub const fn thermal(&self) -> &ThermalConfig {
+        &self.thermal
+    }
+
+    /// The wear model.
+    pub const fn wear(&self) -> &WearConfig {
+        &self.wear
+    }
+
+    /// The sensor conditioning.
+    pub const fn sensor(&self) -> &SensorConfig<C> {
+        &self.sensor
+    }
+
+    /// The adaptation, when configured.
+    pub const fn adapt(&self) -> Option<&AdaptConfig> {
+        self.adapt.as_ref()
+    }
+
+    /// Force thresholds.
+    pub const fn limits(&self) -> &Limits {
+        &self.limits
+    }
+
+    /// Tolerances behind the uncertainty.
+    pub const fn tolerances(&self) -> &Tolerances {
+        &self.tolerances
+    }
+}

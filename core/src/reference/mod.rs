@@ -1,0 +1,12 @@
+//! f64 reference models (host only, feature `std`): the same physics as the fixed-point models,
+//! written plainly in floating point, for measuring the fixed-point path and as the plant of the
+//! simulator. Never used in the per-sample path.
+//!
+//! - [`friction`]: bilinear μ table, stick/slip band, static-to-kinetic blend, drag.
+//! - [`thermal`]: the lumped rotor/lining network integrated with classic RK4 and sub-steps
+//!   (a different method from the fixed-point path's exact exponential).
+//! - [`wear`]: compensated energy sum, bedding `1 − exp(−E/E₀)` in closed form, thickness loss.
+
+pub mod friction;
+pub mod thermal;
+pub mod wear;

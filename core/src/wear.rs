@@ -1,0 +1,539 @@
+//! Dissipated energy, bedding and lining wear.
+//!
+//! ## Model
+//!
+//! ```text
+//! E    = Σ |P|·dt                     friction work dissipated in the contact, J
+//! db   = (1 − b)·dE / E₀              bedding: b = 1 − exp(−E/E₀) for a new lining (b = 0)
+//! Δh   = k·E / A                      thickness loss: k the specific wear rate (m³/J),
+//!                                     A the lining area that shares the work
+//! ```
+//!
+//! Bedding `b` goes from 0 (new lining, contact close to uniform pressure) to 1 (bedded, close
+//! to uniform wear, p·r = const); the estimator uses it to move the effective radius between the
+//! two models. The energy constant E₀ is the work after which 63 % of the change has happened.
+//! Lining wear is quoted per unit friction work in 10⁻⁷ cm³/(N·m) (= 10⁻¹³ m³/J)
+//! \[pub: JIS D 4411, GB 5763 use this unit\]; [`WEAR_RATE_UNIT`] converts. The rate is
+//! taken as constant here: real linings wear several times faster at 400 °C than at 100 °C
+//! \[pub: Tribology Handbook\], so fit `k` at the duty the brake sees.
+//!
+//! ## Resolution
+//!
+//! The state keeps more bits than its outputs so nothing is lost over the life of a lining:
+//!
+//! | quantity | state | output |
+//! |---|---|---|
+//! | energy | u128 Q64 J (2⁻⁶⁴ J, up to 2.1·10¹⁴ J) | [`Joules`] (I48F16, 15 µJ) |
+//! | bedding | `1 − b` as u64 Q62 (2.2·10⁻¹⁹) | [`Ratio`] (I2F30) |
+//! | thickness loss | u128 Q96 m | [`Metres`] (I8F24, 60 nm) |
+//!
+//! dt is held as Q63 s, so a per-sample increment `|P|·dt` is exact to 2⁻⁶⁴ J: a 3 mJ increment
+//! still counts in full at 10¹⁰ J and beyond (tested). Each bedding step multiplies `1 − b` by
+//! the fourth-order Taylor polynomial of `exp(−dE/E₀)` rounded down, so `b` is monotone, never
+//! above 1, and within `Σ (dE/E₀)⁵/120 + n·2⁻⁶²` of `1 − exp(−E/E₀)`. Measured against the
+//! f64 reference `reference::wear` (feature `std`) over powers 0…10 MW, dt 0.1…10 ms and
+//! starting energies 0…10¹⁰ J (test `wear_envelope` in clampwise-tests): bedding within
+//! **1 LSB of [`Ratio`]** (9.3·10⁻¹⁰; the tests allow 2), energy within **1 LSB of [`Joules`]**
+//! (15 µJ; the output truncates), thickness loss within **1 LSB of [`Metres`]** (60 nm).
+
+use core::fmt;
+
+use crate::units::{Joules, Metres, Ratio, Seconds, Watts};
+
+/// 1 · 10⁻⁷ cm³/(N·m), the trade's unit of specific wear rate, in m³/J.
+pub const WEAR_RATE_UNIT: f64 = 1e-13;
+
+const ONE_Q62: u128 = 1 << 62;
+/// Energy the state can hold: the top of [`Joules`], in Q64.
+const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
+/// A single sample's energy is capped at 2³² J (4.3 GJ) before the wear product.
+const STEP_MAX_Q48: u128 = 1 << 80;
+
+/// Wear parameters in SI units as f64 (host, start-up or build time; never per sample).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct WearParams {
+    /// Sample period in seconds, (0, 1].
+    pub dt: f64,
+    /// Bedding energy constant E₀ in J, 1 … 10¹³.
+    pub bedding_energy: f64,
+    /// Specific wear rate in m³/J, ≥ 0 (× [`WEAR_RATE_UNIT`] from 10⁻⁷ cm³/(N·m)).
+    pub specific_wear_rate: f64,
+    /// Lining area that shares the friction work (all pads or facings), m², > 0.
+    pub lining_area: f64,
+    /// Thickness of a new lining, m.
+    pub initial_thickness: f64,
+    /// Thickness at which the lining counts as worn out, m, ≥ 0 and below `initial_thickness`.
+    pub minimum_thickness: f64,
+}
+
+/// Why a wear configuration was rejected.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum WearError {
+    /// A value is NaN, infinite, or outside its fixed-point type.
+    NotRepresentable {
+        /// The field concerned.
+        field: &'static str,
+    },
+    /// `dt` is not in (0, 1] s.
+    DtOutOfRange,
+    /// `bedding_energy` is not in 1 … 10¹³ J.
+    BeddingEnergyOutOfRange,
+    /// `specific_wear_rate / lining_area` is negative, or above 10⁻⁵ m/J, or so small (but not
+    /// zero) that it cannot be represented.
+    WearRateOutOfRange,
+    /// `lining_area` is not above zero.
+    AreaNotPositive,
+    /// `minimum_thickness` is negative or not below `initial_thickness`.
+    ThicknessLimits,
+}
+
+impl fmt::Display for WearError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::NotRepresentable { field } => {
+                write!(f, "{field} is not finite or is out of range")
+            }
+            Self::DtOutOfRange => f.write_str("dt must be above 0 and at most 1 s"),
+            Self::BeddingEnergyOutOfRange => {
+                f.write_str("bedding_energy must be within 1 J ..= 1e13 J")
+            }
+            Self::WearRateOutOfRange => f.write_str(
+                "specific_wear_rate / lining_area must be 0 or within 1e-30 ..= 1e-5 m/J",
+            ),
+            Self::AreaNotPositive => f.write_str("lining_area must be above zero"),
+            Self::ThicknessLimits => {
+                f.write_str("minimum_thickness must be at least 0 and below initial_thickness")
+            }
+        }
+    }
+}
+
+impl core::error::Error for WearError {}
+
+/// Validated wear configuration. Immutable.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct WearConfig {
+    /// dt in Q63 s.
+    dt_q63: u64,
+    /// E₀ in Q48 J: a sample's energy is capped here before the bedding step (x ≤ 1).
+    e0_q48: u128,
+    /// round(2⁷⁹ / E₀): x(Q62) = dE(Q48) · recip >> 65.
+    bedding_recip: u128,
+    /// Thickness rate k/A = mant · 2^−(shift + 48) m/J: dL(Q96) = dE(Q48) · mant >> shift.
+    wear_mant: u64,
+    wear_shift: u32,
+    initial_thickness: Metres,
+    minimum_thickness: Metres,
+}
+
+fn finite(v: f64, field: &'static str) -> Result<f64, WearError> {
+    if v.is_finite() {
+        Ok(v)
+    } else {
+        Err(WearError::NotRepresentable { field })
+    }
+}
+
+fn metres(v: f64, field: &'static str) -> Result<Metres, WearError> {
+    Metres::checked_from_num(finite(v, field)?).ok_or(WearError::NotRepresentable { field })
+}
+
+impl WearConfig {
+    /// Validate parameters and fix the integer coefficients.
+    ///
+    /// # Errors
+    /// A [`WearError`] naming the offending field.
+    ///
+    /// ```
+    /// use clampwise_core::wear::{WearConfig, WearParams, WEAR_RATE_UNIT};
+    /// // Demo holding-brake pads (invented): 0.4·10⁻⁷ cm³/(N·m), 2 pads of 40 cm², 10 mm thick.
+    /// let cfg = WearConfig::new(&WearParams {
+    ///     dt: 1e-3, bedding_energy: 5e6, specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
+    ///     lining_area: 2.0 * 40e-4, initial_thickness: 0.010, minimum_thickness: 0.002,
+    /// })?;
+    /// assert!((cfg.minimum_thickness().to_num::<f64>() - 0.002).abs() < 1e-7);
+    /// # Ok::<(), clampwise_core::wear::WearError>(())
+    /// ```
+    pub fn new(p: &WearParams) -> Result<Self, WearError> {
+        let dt = finite(p.dt, "dt")?;
+        if !(dt > 0.0 && dt <= 1.0) {
+            return Err(WearError::DtOutOfRange);
+        }
+        let e0 = finite(p.bedding_energy, "bedding_energy")?;
+        if !(1.0..=1e13).contains(&e0) {
+            return Err(WearError::BeddingEnergyOutOfRange);
+        }
+        let area = finite(p.lining_area, "lining_area")?;
+        if area <= 0.0 {
+            return Err(WearError::AreaNotPositive);
+        }
+        let rate = finite(p.specific_wear_rate, "specific_wear_rate")? / area;
+        let (wear_mant, wear_shift) = wear_coefficients(rate)?;
+        let initial_thickness = metres(p.initial_thickness, "initial_thickness")?;
+        let minimum_thickness = metres(p.minimum_thickness, "minimum_thickness")?;
+        if minimum_thickness < Metres::ZERO || minimum_thickness >= initial_thickness {
+            return Err(WearError::ThicknessLimits);
+        }
+        // The casts take values already checked to lie well inside the target types.
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let (dt_q63, e0_q48, bedding_recip) = (
+            libm::round(dt * 9_223_372_036_854_775_808.0) as u64,
+            libm::round(e0 * 281_474_976_710_656.0) as u128,
+            libm::round(libm::ldexp(1.0, 79) / e0) as u128,
+        );
+        Ok(Self {
+            dt_q63,
+            e0_q48,
+            bedding_recip,
+            wear_mant,
+            wear_shift,
+            initial_thickness,
+            minimum_thickness,
+        })
+    }
+
+    /// Thickness of a new lining (m).
+    /// Sample period the configuration was built for, s (rounded to Q32).
+    pub const fn dt(&self) -> Seconds {
+        // dt ≤ 1 s is below 2⁶³ in Q63, so after the shift it is below 2³² and the sign bit is clear.
+        Seconds::from_bits((self.dt_q63 >> 31).cast_signed())
+    }
+
+    /// Initial lining thickness, m.
+    pub const fn initial_thickness(&self) -> Metres {
+        self.initial_thickness
+    }
+
+    /// Worn-out limit (m).
+    pub const fn minimum_thickness(&self) -> Metres {
+        self.minimum_thickness
+    }
+
+    /// Thickness loss for an energy in Q64 J: k·E/A, truncated to Q96 m.
+    fn loss_q96(&self, energy_q48: u128) -> u128 {
+        energy_q48
+            .saturating_mul(u128::from(self.wear_mant))
+            .checked_shr(self.wear_shift)
+            .unwrap_or(0)
+    }
+}
+
+/// Split a thickness rate (m/J) into a 32-bit mantissa and a shift for Q48 J → Q96 m.
+fn wear_coefficients(rate: f64) -> Result<(u64, u32), WearError> {
+    if rate == 0.0 {
+        return Ok((0, 0));
+    }
+    if !(1e-30..=1e-5).contains(&rate) {
+        return Err(WearError::WearRateOutOfRange);
+    }
+    let (f, ex) = libm::frexp(rate); // rate = f·2^ex, f in [0.5, 1)
+    // ex in about −99 ..= −16 by the range check: r_shift = 32 − ex in 48 ..= 131.
+    let r_shift = 32 - ex;
+    let shift = u32::try_from(r_shift - 48).map_err(|_| WearError::WearRateOutOfRange)?;
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    let mant = libm::round(f * 4_294_967_296.0) as u64;
+    Ok((mant, shift))
+}
+
+/// What [`WearState::update`] reports for one sample.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct WearSample {
+    /// Energy dissipated over the life of the lining (J), saturating at [`Joules::MAX`].
+    pub energy: Joules,
+    /// Bedding, 0 (new) … 1 (bedded), monotone.
+    pub bedding: Ratio,
+    /// Lining thickness lost (m).
+    pub thickness_loss: Metres,
+    /// Remaining lining thickness (m), not below 0.
+    pub remaining_thickness: Metres,
+    /// Remaining thickness at or below the minimum.
+    pub worn_out: bool,
+}
+
+/// Wear and bedding state of one lining set. Starts new: no energy, not bedded.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct WearState {
+    energy_q64: u128,
+    unbedded_q62: u64,
+    loss_q96: u128,
+}
+
+impl Default for WearState {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+impl WearState {
+    /// A new lining: no energy, bedding 0, no wear.
+    ///
+    /// ```
+    /// use clampwise_core::wear::WearState;
+    /// use clampwise_core::units::Ratio;
+    /// assert_eq!(WearState::new().bedding(), Ratio::ZERO);
+    /// ```
+    pub const fn new() -> Self {
+        Self {
+            energy_q64: 0,
+            unbedded_q62: 1 << 62,
+            loss_q96: 0,
+        }
+    }
+
+    /// A lining with a known history: `energy` dissipated since it was new, bedding and wear
+    /// as the model gives for that energy. Start-up only (uses floating point).
+    ///
+    /// ```
+    /// use clampwise_core::wear::{WearConfig, WearParams, WearState};
+    /// use clampwise_core::units::Joules;
+    /// # let cfg = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
+    /// #     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01, minimum_thickness: 0.002 })?;
+    /// let s = WearState::with_history(&cfg, Joules::from_num(5e6));
+    /// assert!((s.bedding().to_num::<f64>() - (1.0 - (-1.0f64).exp())).abs() < 1e-8);
+    /// # Ok::<(), clampwise_core::wear::WearError>(())
+    /// ```
+    pub fn with_history(cfg: &WearConfig, energy: Joules) -> Self {
+        let e = energy.max(Joules::ZERO);
+        #[allow(clippy::cast_sign_loss)] // not negative after the max above
+        let energy_q64 = (e.to_bits() as u128) << 48;
+        let x = e.to_num::<f64>() / (cfg.e0_q48 as f64 / 281_474_976_710_656.0);
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let unbedded_q62 = libm::round(libm::exp(-x) * 4_611_686_018_427_387_904.0) as u64;
+        Self {
+            energy_q64,
+            unbedded_q62: unbedded_q62.min(1 << 62),
+            loss_q96: cfg.loss_q96(energy_q64 >> 16),
+        }
+    }
+
+    /// Restore from raw state words (as saved by [`crate::record`]); `None` if out of range.
+    pub(crate) fn from_raw(energy_q64: u128, unbedded_q62: u64, loss_q96: u128) -> Option<Self> {
+        (energy_q64 <= ENERGY_MAX_Q64 && u128::from(unbedded_q62) <= ONE_Q62).then_some(Self {
+            energy_q64,
+            unbedded_q62,
+            loss_q96,
+        })
+    }
+
+    pub(crate) const fn raw(&self) -> (u128, u64, u128) {
+        (self.energy_q64, self.unbedded_q62, self.loss_q96)
+    }
+
+    /// Energy dissipated (J).
+    pub fn energy(&self) -> Joules {
+        // ≤ ENERGY_MAX_Q64, so the shifted value fits i64.
+        Joules::from_bits(i64::try_from(self.energy_q64 >> 48).unwrap_or(i64::MAX))
+    }
+
+    /// Bedding 0 … 1.
+    pub fn bedding(&self) -> Ratio {
+        let b = (ONE_Q62.saturating_sub(u128::from(self.unbedded_q62))) >> 32;
+        Ratio::from_bits(i32::try_from(b).unwrap_or(1 << 30))
+    }
+
+    /// Thickness lost (m).
+    pub fn thickness_loss(&self) -> Metres {
+        Metres::from_bits(i32::try_from(self.loss_q96 >> 72).unwrap_or(i32::MAX))
+    }
+
+    /// One sample: accumulate `|power|·dt`, advance bedding and wear. Integer-only, O(1).
+    ///
+    /// ```
+    /// use clampwise_core::wear::{WearConfig, WearParams, WearState};
+    /// use clampwise_core::units::Watts;
+    /// let cfg = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
+    ///     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01, minimum_thickness: 0.002 })?;
+    /// let mut s = WearState::new();
+    /// let out = s.update(&cfg, Watts::from_num(-50_000)); // sign does not matter
+    /// assert_eq!(out.energy.to_num::<f64>(), 50.0);
+    /// assert!(out.bedding.to_num::<f64>() > 0.0 && !out.worn_out);
+    /// # Ok::<(), clampwise_core::wear::WearError>(())
+    /// ```
+    pub fn update(&mut self, cfg: &WearConfig, power: Watts) -> WearSample {
+        // |P| (Q32) · dt (Q63) ≤ 2¹²⁷: Q95 → Q64.
+        let step_q64 = (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
+        self.accumulate_q64(cfg, step_q64);
+        self.sample(cfg)
+    }
+
+    /// Add an energy directly (J; its magnitude is used), for callers that integrate power
+    /// themselves. Integer-only, O(1).
+    pub fn add_energy(&mut self, cfg: &WearConfig, energy: Joules) -> WearSample {
+        self.accumulate_q64(cfg, u128::from(energy.to_bits().unsigned_abs()) << 48);
+        self.sample(cfg)
+    }
+
+    fn accumulate_q64(&mut self, cfg: &WearConfig, step_q64: u128) {
+        self.energy_q64 = self.energy_q64.saturating_add(step_q64).min(ENERGY_MAX_Q64);
+        let step_q48 = (step_q64 >> 16).min(STEP_MAX_Q48);
+
+        // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷.
+        let x = ((step_q48.min(cfg.e0_q48)).saturating_mul(cfg.bedding_recip) >> 65).min(ONE_Q62);
+        let x2 = (x * x) >> 62;
+        let x3 = (x2 * x) >> 62;
+        let x4 = (x3 * x) >> 62;
+        // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
+        let g = (ONE_Q62 + x2 / 2 + x4 / 24)
+            .saturating_sub(x + x3 / 6)
+            .min(ONE_Q62);
+        let u = (u128::from(self.unbedded_q62) * g) >> 62;
+        self.unbedded_q62 = u64::try_from(u).unwrap_or(0).min(self.unbedded_q62);
+
+        self.loss_q96 = self.loss_q96.saturating_add(cfg.loss_q96(step_q48));
+    }
+
+    /// The state as a sample, without adding energy (e.g. while no force is known).
+    pub fn sample(&self, cfg: &WearConfig) -> WearSample {
+        let loss = self.thickness_loss();
+        let remaining = cfg.initial_thickness.saturating_sub(loss).max(Metres::ZERO);
+        WearSample {
+            energy: self.energy(),
+            bedding: self.bedding(),
+            thickness_loss: loss,
+            remaining_thickness: remaining,
+            worn_out: remaining <= cfg.minimum_thickness,
+        }
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::float_cmp, clippy::cast_precision_loss)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    pub(crate) fn demo() -> WearParams {
+        // Invented demo values: 0.4·10⁻⁷ cm³/(N·m) over 80 cm² of pads.
+        WearParams {
+            dt: 1e-4,
+            bedding_energy: 5e6,
+            specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
+            lining_area: 80e-4,
+            initial_thickness: 0.010,
+            minimum_thickness: 0.002,
+        }
+    }
+
+    #[test]
+    fn no_overflow_and_full_resolution_at_1e10_j() {
+        let cfg = WearConfig::new(&demo()).unwrap();
+        let mut s = WearState::with_history(&cfg, Joules::from_num(1e10));
+        let start = s.raw().0;
+        // 30 W for 0.1 ms = 3 mJ a sample, 10⁵ samples = 300 J exactly (dt held as Q63).
+        let n = 100_000u32;
+        let mut out = None;
+        for _ in 0..n {
+            out = Some(s.update(&cfg, Watts::from_num(30)));
+        }
+        let added = (s.raw().0 - start) as f64 / 2f64.powi(64);
+        assert!((added - 300.0).abs() < 1e-9, "{added}");
+        let e = out.unwrap().energy.to_num::<f64>();
+        assert!((e - (1e10 + 300.0)).abs() <= 2.0 * 2f64.powi(-16), "{e}");
+        // Bedding is 1 at 2000 E₀ and stays there.
+        assert_eq!(out.unwrap().bedding, Ratio::ONE);
+    }
+
+    #[test]
+    fn saturates_at_the_top_of_joules() {
+        let cfg = WearConfig::new(&demo()).unwrap();
+        let mut s = WearState::with_history(&cfg, Joules::MAX);
+        let out = s.update(&cfg, Watts::MAX);
+        assert_eq!(out.energy, Joules::MAX);
+        assert!(out.worn_out);
+        assert_eq!(out.remaining_thickness, Metres::ZERO);
+    }
+
+    // Thickness loss k·E/A with k in 10⁻⁷ cm³/(N·m) [pub: JIS D 4411 unit]: 1 GJ at
+    // 0.4·10⁻¹³ m³/J over 80 cm² → 5.0 mm [calc].
+    #[test]
+    fn thickness_loss_from_specific_wear_rate() {
+        let cfg = WearConfig::new(&demo()).unwrap();
+        let s = WearState::with_history(&cfg, Joules::from_num(1e9));
+        let loss = s.thickness_loss().to_num::<f64>();
+        assert!((loss - 0.005).abs() < 1e-7, "{loss}");
+        let mut s = WearState::with_history(&cfg, Joules::from_num(1.6e9 - 2e5));
+        assert!(!s.add_energy(&cfg, Joules::ZERO).worn_out);
+        // 8 mm lost at 1.6 GJ; ±1 µm = ±2·10⁵ J at 5·10⁻¹² m/J.
+        assert!(s.add_energy(&cfg, Joules::from_num(4e5)).worn_out);
+    }
+
+    #[test]
+    fn rejects_bad_configs() {
+        let b = demo();
+        let e = |p: WearParams| WearConfig::new(&p).unwrap_err();
+        assert_eq!(e(WearParams { dt: 0.0, ..b }), WearError::DtOutOfRange);
+        assert_eq!(
+            e(WearParams {
+                bedding_energy: 0.5,
+                ..b
+            }),
+            WearError::BeddingEnergyOutOfRange
+        );
+        assert_eq!(
+            e(WearParams {
+                specific_wear_rate: -1e-13,
+                ..b
+            }),
+            WearError::WearRateOutOfRange
+        );
+        assert_eq!(
+            e(WearParams {
+                lining_area: 0.0,
+                ..b
+            }),
+            WearError::AreaNotPositive
+        );
+        assert_eq!(
+            e(WearParams {
+                minimum_thickness: 0.02,
+                ..b
+            }),
+            WearError::ThicknessLimits
+        );
+        assert_eq!(
+            e(WearParams {
+                initial_thickness: f64::INFINITY,
+                ..b
+            }),
+            WearError::NotRepresentable {
+                field: "initial_thickness"
+            }
+        );
+        assert!(
+            WearConfig::new(&WearParams {
+                specific_wear_rate: 0.0,
+                ..b
+            })
+            .is_ok()
+        );
+    }
+
+    proptest! {
+        // Bedding never decreases, never exceeds 1, and follows 1 − exp(−E/E₀) (the solution
+        // of db = (1 − b)·dE/E₀) for any split of the energy into samples.
+        #[test]
+        fn bedding_monotone_and_bounded(powers in prop::collection::vec(0.0f64..2e7, 1..300)) {
+            let p = WearParams { dt: 1e-2, bedding_energy: 1e6, ..demo() };
+            let cfg = WearConfig::new(&p).unwrap();
+            let mut s = WearState::new();
+            let mut last = Ratio::ZERO;
+            let mut taylor = 0.0; // Σ (dE/E₀)⁵/120, the relative shortfall of 1 − b
+            for w in powers {
+                let out = s.update(&cfg, Watts::from_num(w));
+                prop_assert!(out.bedding >= last);
+                prop_assert!(out.bedding <= Ratio::ONE);
+                last = out.bedding;
+                let x = w * 1e-2 / 1e6;
+                taylor += x.powi(5) / 120.0 * x.exp(); // (e^{-x} − g(x)) / e^{-x}
+                let e = out.energy.to_num::<f64>();
+                let unbedded = (-e / 1e6).exp();
+                let err = (out.bedding.to_num::<f64>() - (1.0 - unbedded)).abs();
+                prop_assert!(err <= 1.01 * taylor * unbedded + 3e-9, "{} > {}", err, taylor * unbedded);
+            }
+        }
+    }
+}
