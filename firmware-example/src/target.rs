@@ -1,0 +1,145 @@
+//! Cortex-M entry point, output sinks and panic handlers.
+
+use clampwise_firmware_example::line::LineSink;
+use clampwise_firmware_example::replay::{demo_processor, replay};
+use cortex_m_rt::entry;
+
+#[cfg(all(feature = "semihosting", feature = "defmt"))]
+compile_error!("features `semihosting` and `defmt` are exclusive: build with --no-default-features --features defmt");
+#[cfg(not(any(feature = "semihosting", feature = "defmt")))]
+compile_error!("the firmware needs an output: feature `semihosting` (default) or `defmt`");
+#[cfg(all(feature = "defmt", feature = "panic-check"))]
+compile_error!("`panic-check` replaces the panic handler; it goes with `semihosting`, not `defmt`");
+
+// ---------------------------------------------------------------------------------------------
+// QEMU mode: semihosting output, stack painting, exit status.
+
+#[cfg(feature = "semihosting")]
+struct Semihosting(Option<cortex_m_semihosting::hio::HostStream>);
+
+#[cfg(feature = "semihosting")]
+impl LineSink for Semihosting {
+    fn emit(&mut self, line: &[u8]) {
+        if let Some(out) = self.0.as_mut() {
+            // One write per line keeps host-side interleaving impossible.
+            let mut buf = heapless::Vec::<u8, { clampwise_firmware_example::line::LINE_CAPACITY + 1 }>::new();
+            let fits = buf.extend_from_slice(line).is_ok() && buf.push(b'\n').is_ok();
+            if !fits || out.write_all(&buf).is_err() {
+                self.0 = None;
+            }
+        }
+    }
+}
+
+#[cfg(feature = "semihosting")]
+#[entry]
+fn main() -> ! {
+    use clampwise_firmware_example::line::{Discard, Line};
+    use cortex_m_semihosting::debug;
+
+    // Painted before anything else runs, so the scan after the replay sees the deepest point
+    // the whole program reached.
+    let painted = crate::stack::paint_free_stack();
+
+    #[cfg(feature = "panic-canary")]
+    canary();
+
+    let mut out = Semihosting(cortex_m_semihosting::hio::hstdout().ok());
+    let ok = match demo_processor() {
+        Ok(p) => replay(p, &mut out).is_ok(),
+        Err(_) => false,
+    };
+    let total = crate::stack::peak_use(painted);
+
+    // A second, silent replay measures the processing step alone: each call is made from a
+    // freshly painted stack and the depth below the call site is kept.
+    let step = match demo_processor() {
+        Ok(p) => {
+            let mut probe = crate::stack::StackProbe::new(p);
+            let ran = replay(&mut probe, &mut Discard).is_ok();
+            if ran { Some(probe.deepest()) } else { None }
+        }
+        Err(_) => None,
+    };
+
+    let mut line = Line::new();
+    line.push_str("#target stack");
+    line.key_value("total_bytes", i64::from(total));
+    line.key_value("step_bytes", step.map_or(-1, i64::from));
+    line.key_value("painted_bytes", i64::from(painted.len_bytes()));
+    out.emit(line.as_bytes());
+
+    let ok = ok && step.is_some() && out.0.is_some();
+    debug::exit(if ok { debug::EXIT_SUCCESS } else { debug::EXIT_FAILURE });
+    loop {
+        cortex_m::asm::wfi();
+    }
+}
+
+/// Negative control for the panic check: a panic the optimiser cannot remove.
+#[cfg(feature = "panic-canary")]
+#[inline(never)]
+fn canary() {
+    let trace = &clampwise_firmware_example::generated::TRACE;
+    let i = core::hint::black_box(trace.len());
+    #[allow(clippy::indexing_slicing)] // the planted panic path
+    core::hint::black_box(&trace[i]);
+}
+
+/// QEMU mode: report the panic and exit with failure, so QEMU never hangs.
+#[cfg(all(feature = "semihosting", not(feature = "panic-check")))]
+#[panic_handler]
+fn panic(_info: &core::panic::PanicInfo<'_>) -> ! {
+    if let Ok(mut out) = cortex_m_semihosting::hio::hstdout() {
+        let _ = out.write_all(b"#target panic\n");
+    }
+    cortex_m_semihosting::debug::exit(cortex_m_semihosting::debug::EXIT_FAILURE);
+    loop {
+        cortex_m::asm::wfi();
+    }
+}
+
+/// Link-time panic check: this handler refers to a symbol that exists nowhere, so the image
+/// links only if the optimiser proved every panic path unreachable and dropped this handler.
+#[cfg(feature = "panic-check")]
+#[panic_handler]
+#[allow(unsafe_code)]
+fn panic(_info: &core::panic::PanicInfo<'_>) -> ! {
+    unsafe extern "C" {
+        fn clampwise_panic_path_is_reachable() -> !;
+    }
+    // SAFETY: never runs; the link fails first if any call to the handler survives.
+    unsafe { clampwise_panic_path_is_reachable() }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Probe mode: defmt over RTT, panic-probe.
+
+#[cfg(feature = "defmt")]
+use {defmt_rtt as _, panic_probe as _};
+
+#[cfg(feature = "defmt")]
+struct Defmt;
+
+#[cfg(feature = "defmt")]
+impl LineSink for Defmt {
+    fn emit(&mut self, line: &[u8]) {
+        defmt::info!("{=[u8]:a}", line);
+    }
+}
+
+#[cfg(feature = "defmt")]
+#[entry]
+fn main() -> ! {
+    match demo_processor() {
+        Ok(p) => match replay(p, &mut Defmt) {
+            Ok(s) => defmt::info!("replay done: {=u32} samples", s.samples),
+            Err(_) => defmt::error!("replay could not start"),
+        },
+        Err(_) => defmt::error!("configuration rejected"),
+    }
+    loop {
+        // Stops a probe runner (probe-rs) at the end of the replay.
+        cortex_m::asm::bkpt();
+    }
+}
