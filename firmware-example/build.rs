@@ -114,8 +114,8 @@ fn run() -> Result<(), String> {
     println!("cargo:rerun-if-changed={}", config_path.display());
     let config_text = fs::read_to_string(&config_path)
         .map_err(|e| format!("cannot read {}: {e}", config_path.display()))?;
-    let config: Config = toml::from_str(&config_text)
-        .map_err(|e| format!("{}: {e}", config_path.display()))?;
+    let config: Config =
+        toml::from_str(&config_text).map_err(|e| format!("{}: {e}", config_path.display()))?;
 
     let config_dir = config_path.parent().unwrap_or(&manifest_dir);
     let trace_path = config_dir.join(&config.trace.file);
@@ -179,7 +179,8 @@ fn check_increasing(bits: &[i32], key: &str) -> Result<(), String> {
 /// r_up = (2/3)(Ro³ − Ri³)/(Ro² − Ri²), r_uw = (Ro + Ri)/2
 /// [pub] Budynas & Nisbett, Shigley's Mechanical Engineering Design, ch. 16.
 fn effective_radius(outer: f64, inner: f64, bedding: f64) -> f64 {
-    let uniform_pressure = 2.0 / 3.0 * (outer.powi(3) - inner.powi(3)) / (outer.powi(2) - inner.powi(2));
+    let uniform_pressure =
+        2.0 / 3.0 * (outer.powi(3) - inner.powi(3)) / (outer.powi(2) - inner.powi(2));
     let uniform_wear = 0.5 * (outer + inner);
     (1.0 - bedding) * uniform_pressure + bedding * uniform_wear
 }
@@ -205,6 +206,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
             config.trace.sample_period_s
         ));
     }
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)] // range checked above
     let period_ns = period_ns.round() as u32;
 
     let mut gains = Vec::with_capacity(channels);
@@ -212,16 +214,20 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
         let key = format!("sensor.gain_n_per_count[{i}]");
         let bits = quantise::<U24>(g, &key)?;
         if bits <= 0 {
-            return Err(format!("{key} = {g} must be positive (and at least 2^-24 N/count)"));
+            return Err(format!(
+                "{key} = {g} must be positive (and at least 2^-24 N/count)"
+            ));
         }
         gains.push(bits);
     }
     let mut offsets = Vec::with_capacity(channels);
     for (i, &o) in config.sensor.offset_counts.iter().enumerate() {
         if !(ADC_MIN..=ADC_MAX).contains(&o) {
-            return Err(format!("sensor.offset_counts[{i}] = {o} is outside the 24-bit ADC range"));
+            return Err(format!(
+                "sensor.offset_counts[{i}] = {o} is outside the 24-bit ADC range"
+            ));
         }
-        offsets.push(o as i32);
+        offsets.push(i32::try_from(o).map_err(|_| format!("sensor.offset_counts[{i}] = {o}"))?);
     }
 
     let g = &config.geometry;
@@ -272,7 +278,10 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
 
     let p = &config.processing;
     if !(0.0..=1.0).contains(&p.bedding) {
-        return Err(format!("processing.bedding = {} must lie in 0..=1", p.bedding));
+        return Err(format!(
+            "processing.bedding = {} must lie in 0..=1",
+            p.bedding
+        ));
     }
     let bedding_now = quantise::<U30>(p.bedding, "processing.bedding")?;
     let fault_release = u16::try_from(p.fault_release_samples)
@@ -318,39 +327,91 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
         config_path.display(),
         trace_path.display()
     );
-    let _ = writeln!(w, "/// Number of bridge-ADC channels read each sample (`[sensor]`, 1 to 4).");
+    let _ = writeln!(
+        w,
+        "/// Number of bridge-ADC channels read each sample (`[sensor]`, 1 to 4)."
+    );
     let _ = writeln!(w, "pub const CHANNELS: usize = {channels};");
-    let _ = writeln!(w, "/// Control period of the fixed-rate loop in nanoseconds (`trace.sample_period_s`).");
+    let _ = writeln!(
+        w,
+        "/// Control period of the fixed-rate loop in nanoseconds (`trace.sample_period_s`)."
+    );
     let _ = writeln!(w, "pub const SAMPLE_PERIOD_NS: u32 = {period_ns};");
-    let _ = writeln!(w, "/// Per-channel ADC gain in N/count (`sensor.gain_n_per_count`), I8F24.");
-    let _ = writeln!(w, "pub const GAINS: [Gain; CHANNELS] = [{}];", list(&gains, "Gain"));
-    let _ = writeln!(w, "/// Per-channel zero offset in counts (`sensor.offset_counts`).");
+    let _ = writeln!(
+        w,
+        "/// Per-channel ADC gain in N/count (`sensor.gain_n_per_count`), I8F24."
+    );
+    let _ = writeln!(
+        w,
+        "pub const GAINS: [Gain; CHANNELS] = [{}];",
+        list(&gains, "Gain")
+    );
+    let _ = writeln!(
+        w,
+        "/// Per-channel zero offset in counts (`sensor.offset_counts`)."
+    );
     let _ = writeln!(
         w,
         "pub const OFFSETS_COUNTS: [i32; CHANNELS] = [{}];",
-        offsets.iter().map(i32::to_string).collect::<Vec<_>>().join(", ")
+        offsets
+            .iter()
+            .map(i32::to_string)
+            .collect::<Vec<_>>()
+            .join(", ")
     );
-    let _ = writeln!(w, "/// Bedding assumed by the interim processing step (`processing.bedding`).");
-    let _ = writeln!(w, "pub const BEDDING: Ratio = Ratio::from_bits({bedding_now});");
-    let _ = writeln!(w, "/// Clean samples before a latched fault output is released.");
+    let _ = writeln!(
+        w,
+        "/// Bedding assumed by the interim processing step (`processing.bedding`)."
+    );
+    let _ = writeln!(
+        w,
+        "pub const BEDDING: Ratio = Ratio::from_bits({bedding_now});"
+    );
+    let _ = writeln!(
+        w,
+        "/// Clean samples before a latched fault output is released."
+    );
     let _ = writeln!(w, "pub const FAULT_RELEASE_SAMPLES: u16 = {fault_release};");
-    let _ = writeln!(w, "/// Outer radius of the annular lining (`geometry.outer_radius_m`), m.");
+    let _ = writeln!(
+        w,
+        "/// Outer radius of the annular lining (`geometry.outer_radius_m`), m."
+    );
     let _ = writeln!(
         w,
         "pub const OUTER_RADIUS: Metres = Metres::from_bits({});",
         quantise::<U24>(g.outer_radius_m, "geometry.outer_radius_m")?
     );
-    let _ = writeln!(w, "/// Inner radius of the annular lining (`geometry.inner_radius_m`), m.");
+    let _ = writeln!(
+        w,
+        "/// Inner radius of the annular lining (`geometry.inner_radius_m`), m."
+    );
     let _ = writeln!(
         w,
         "pub const INNER_RADIUS: Metres = Metres::from_bits({});",
         quantise::<U24>(g.inner_radius_m, "geometry.inner_radius_m")?
     );
-    let _ = writeln!(w, "/// Breakpoints on the clamp-force axis of [`RADIUS_TABLE`].");
-    let _ = writeln!(w, "pub const FORCE_BREAKPOINTS: usize = {};", force_bits.len());
-    let _ = writeln!(w, "/// Breakpoints on the bedding axis of [`RADIUS_TABLE`].");
-    let _ = writeln!(w, "pub const BEDDING_BREAKPOINTS: usize = {};", bedding_bits.len());
-    let _ = writeln!(w, "/// Effective radius r_e in m over (clamp force in N, bedding 0..=1), this device's size.");
+    let _ = writeln!(
+        w,
+        "/// Breakpoints on the clamp-force axis of [`RADIUS_TABLE`]."
+    );
+    let _ = writeln!(
+        w,
+        "pub const FORCE_BREAKPOINTS: usize = {};",
+        force_bits.len()
+    );
+    let _ = writeln!(
+        w,
+        "/// Breakpoints on the bedding axis of [`RADIUS_TABLE`]."
+    );
+    let _ = writeln!(
+        w,
+        "pub const BEDDING_BREAKPOINTS: usize = {};",
+        bedding_bits.len()
+    );
+    let _ = writeln!(
+        w,
+        "/// Effective radius r_e in m over (clamp force in N, bedding 0..=1), this device's size."
+    );
     let _ = writeln!(
         w,
         "pub type DeviceRadiusTable = RadiusTable<FORCE_BREAKPOINTS, BEDDING_BREAKPOINTS>;"
@@ -361,8 +422,14 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
          /// uniform wear at bedding 1), kept in flash.",
         g.outer_radius_m, g.inner_radius_m
     );
-    let _ = writeln!(w, "#[allow(clippy::panic)] // evaluated at compile time only");
-    let _ = writeln!(w, "pub static RADIUS_TABLE: DeviceRadiusTable = match Table2::new(");
+    let _ = writeln!(
+        w,
+        "#[allow(clippy::panic)] // evaluated at compile time only"
+    );
+    let _ = writeln!(
+        w,
+        "pub static RADIUS_TABLE: DeviceRadiusTable = match Table2::new("
+    );
     let _ = writeln!(w, "    [{}],", list(&force_bits, "Newtons"));
     let _ = writeln!(w, "    [{}],", list(&bedding_bits, "Ratio"));
     let _ = writeln!(w, "    [");
@@ -372,14 +439,27 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
     let _ = writeln!(w, "    ],");
     let _ = writeln!(w, ") {{");
     let _ = writeln!(w, "    Ok(t) => t,");
-    let _ = writeln!(w, "    Err(_) => panic!(\"radius table breakpoints must increase\"),");
+    let _ = writeln!(
+        w,
+        "    Err(_) => panic!(\"radius table breakpoints must increase\"),"
+    );
     let _ = writeln!(w, "}};");
-    let _ = writeln!(w, "/// CRC-32/ISO-HDLC of the generated configuration and table (order: see the module docs).");
+    let _ = writeln!(
+        w,
+        "/// CRC-32/ISO-HDLC of the generated configuration and table (order: see the module docs)."
+    );
     let _ = writeln!(w, "pub const GENERATED_CRC32: u32 = 0x{checksum:08x};");
     let _ = writeln!(w, "/// Name of the recorded trace (its file stem).");
     let _ = writeln!(w, "pub const TRACE_NAME: &str = {trace_name:?};");
-    let _ = writeln!(w, "/// The recorded trace, one entry per sample, kept in flash.");
-    let _ = writeln!(w, "pub static TRACE: [TraceSample<CHANNELS>; {}] = [", rows.len());
+    let _ = writeln!(
+        w,
+        "/// The recorded trace, one entry per sample, kept in flash."
+    );
+    let _ = writeln!(
+        w,
+        "pub static TRACE: [TraceSample<CHANNELS>; {}] = [",
+        rows.len()
+    );
     for row in &rows {
         let cells = row
             .cells
@@ -438,7 +518,11 @@ fn read_trace(path: &Path, channels: usize, period_s: f64) -> Result<Vec<Row>, S
                 column.get(&col).copied().unwrap_or("?")
             )
         };
-        let field = |col: usize| record.get(col).ok_or_else(|| format!("{}: missing", at(col)));
+        let field = |col: usize| {
+            record
+                .get(col)
+                .ok_or_else(|| format!("{}: missing", at(col)))
+        };
         let number = |col: usize| -> Result<f64, String> {
             let text = field(col)?;
             text.parse::<f64>()
@@ -471,7 +555,10 @@ fn read_trace(path: &Path, channels: usize, period_s: f64) -> Result<Vec<Row>, S
                         )
                     })?;
                     if !(ADC_MIN..=ADC_MAX).contains(&v) {
-                        return Err(format!("{}: {v} is outside the signed 24-bit ADC range", at(col)));
+                        return Err(format!(
+                            "{}: {v} is outside the signed 24-bit ADC range",
+                            at(col)
+                        ));
                     }
                     Cell::Counts(v)
                 }

@@ -478,6 +478,7 @@ mod tests {
     #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
     use super::*;
     use crate::adc::{CMD_READ, Status, encode_frame};
+    use embedded_hal_mock::eh1::MockError;
     use embedded_hal_mock::eh1::delay::CheckedDelay;
     use embedded_hal_mock::eh1::delay::Transaction as DelayTx;
     use embedded_hal_mock::eh1::digital::{Mock as PinMock, State, Transaction as PinTx};
@@ -623,21 +624,29 @@ mod tests {
     }
 
     #[test]
-    fn active_high_polarity_drives_high_on_fault() {
+    fn active_high_polarity_drives_high_on_fault_and_pin_errors_count() {
         let spi = read_tx(1, Status::empty(), 0);
         let ports = Ports {
             adc: SpiMock::new(&spi),
             fault: PinMock::new(&[PinTx::set(State::High)]),
-            warning: PinMock::new(&[PinTx::set(State::Low)]),
+            warning: PinMock::new(&[
+                PinTx::set(State::Low).with_error(MockError::Io(std::io::ErrorKind::NotConnected))
+            ]),
             delay: CheckedDelay::new(&[DelayTx::delay_ns(1000)]),
             speeds: FixedSpeeds,
         };
-        let config = LoopConfig::new([Channel::new(1).unwrap()], 1000, 1, FaultPolarity::ActiveHigh)
-            .unwrap();
+        let config = LoopConfig::new(
+            [Channel::new(1).unwrap()],
+            1000,
+            1,
+            FaultPolarity::ActiveHigh,
+        )
+        .unwrap();
         let mut app = ControlLoop::new(ports, Scripted { fade_from: 9 }, config);
         let tick = app.tick(&mut crate::line::Discard);
         assert!(tick.fault_out);
         assert_eq!(tick.valid_mask, 0);
+        assert_eq!(app.summary().pin_errors, 1, "a failed pin write is counted");
         let (mut ports, _) = app.release();
         ports.adc.done();
         ports.fault.done();

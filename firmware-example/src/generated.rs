@@ -29,8 +29,14 @@ const CRC32: crc::Crc<u32, crc::NoTable> =
 pub fn checksum() -> u32 {
     let mut digest = CRC32.digest();
     let mut put = |bits: i32| digest.update(&bits.to_le_bytes());
-    RADIUS_TABLE.x_breakpoints().iter().for_each(|v| put(v.to_bits()));
-    RADIUS_TABLE.y_breakpoints().iter().for_each(|v| put(v.to_bits()));
+    RADIUS_TABLE
+        .x_breakpoints()
+        .iter()
+        .for_each(|v| put(v.to_bits()));
+    RADIUS_TABLE
+        .y_breakpoints()
+        .iter()
+        .for_each(|v| put(v.to_bits()));
     RADIUS_TABLE
         .values()
         .iter()
@@ -76,7 +82,10 @@ mod tests {
                 let b: f64 = b.to_num();
                 let expected = (1.0 - b) * up + b * uw;
                 let r: f64 = r.to_num();
-                assert!((r - expected).abs() <= 1.5 * lsb, "{r} vs {expected} at bedding {b}");
+                assert!(
+                    (r - expected).abs() <= 1.5 * lsb,
+                    "{r} vs {expected} at bedding {b}"
+                );
             }
         }
     }

@@ -91,7 +91,11 @@ impl Line {
             let shift = 28 - 4 * i;
             // Masked to four bits, so the narrowing is exact.
             let nibble = ((value >> shift) & 0xF) as u8;
-            *slot = if nibble < 10 { b'0' + nibble } else { b'a' + nibble - 10 };
+            *slot = if nibble < 10 {
+                b'0' + nibble
+            } else {
+                b'a' + nibble - 10
+            };
         }
         self.push_bytes(&hex);
     }

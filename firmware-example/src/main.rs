@@ -8,7 +8,7 @@
 //!   stdout, the reference the QEMU output is compared with (`qemu-check.sh`).
 #![cfg_attr(target_os = "none", no_std, no_main)]
 
-#[cfg(target_os = "none")]
+#[cfg(all(target_os = "none", feature = "semihosting"))]
 mod stack;
 #[cfg(target_os = "none")]
 mod target;

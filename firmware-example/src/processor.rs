@@ -26,8 +26,10 @@
 //!
 //! let rows = [[0.09, 0.0875], [0.09, 0.0875]];
 //! let table = RadiusTable::<2, 2>::from_f64(&[0.0, 1e4], &[0.0, 1.0], &rows).unwrap();
-//! let mut step = ForceRadius::new([Gain::lit("0.005")], [1000], Ratio::ZERO, &table).unwrap();
-//! let inputs = Inputs { sample: 0, readings: [Reading::Counts(1_001_000)], speeds: None };
+//! // 1/256 N per count is exact in I8F24: (1_281_000 − 1000) / 256 = 5000 N.
+//! let gain = Gain::lit("0.00390625");
+//! let mut step = ForceRadius::new([gain], [1000], Ratio::ZERO, &table).unwrap();
+//! let inputs = Inputs { sample: 0, readings: [Reading::Counts(1_281_000)], speeds: None };
 //! let e = step.step(&inputs);
 //! assert_eq!(e.clamp_force, Newtons::lit("5000"));
 //! assert!(!e.force_lost());
@@ -89,7 +91,10 @@ impl fmt::Display for ForceRadiusError {
                 write!(f, "gain_n_per_count[{channel}] must be positive")
             }
             Self::OffsetOutOfRange { channel } => {
-                write!(f, "offset_counts[{channel}] is outside the signed 24-bit ADC range")
+                write!(
+                    f,
+                    "offset_counts[{channel}] is outside the signed 24-bit ADC range"
+                )
             }
             Self::BeddingOutOfRange => write!(f, "bedding must lie in 0..=1"),
         }
@@ -242,10 +247,13 @@ impl<const CH: usize, const NF: usize, const NB: usize> Processor<CH>
             if usize::from(valid) < CH {
                 flags |= Flags::CHANNEL_FAULT;
             }
-            // Mean rounded to nearest, ties up: floor((2·sum + n) / 2n). Each term is an i32,
-            // n ≤ 4, so nothing here comes near the i64 range.
+            // Mean rounded to nearest, ties up: floor((2·sum + n) / 2n). Each term is an i32 and
+            // n ≤ 4, so nothing comes near the i64 range; saturating ops say so to the optimiser.
             let n = i64::from(valid);
-            let mean = (2 * sum + n).div_euclid(2 * n);
+            let mean = sum
+                .saturating_mul(2)
+                .saturating_add(n)
+                .div_euclid(n.saturating_mul(2));
             Newtons::from_bits(i32::try_from(mean).unwrap_or_else(|_| {
                 flags |= Flags::SATURATED;
                 saturate(mean)
@@ -339,12 +347,22 @@ mod tests {
             let gain_q: f64 = Gain::lit("0.01").to_num();
             let force_ref = 1e6 * gain_q;
             let force: f64 = e.clamp_force.to_num();
-            assert!((force - force_ref).abs() <= 0.5 / 256.0, "{force} vs {force_ref}");
+            assert!(
+                (force - force_ref).abs() <= 0.5 / 256.0,
+                "{force} vs {force_ref}"
+            );
             let r: f64 = e.effective_radius.to_num();
-            assert!((r - r_ref).abs() <= 1.0 / f64::from(1 << 24), "{r} vs {r_ref}");
+            assert!(
+                (r - r_ref).abs() <= 1.0 / f64::from(1 << 24),
+                "{r} vs {r_ref}"
+            );
             // [calc] torque per face per unit μ = F · r_e.
             let m: f64 = e.force_moment.to_num();
-            assert!((m - force_ref * r_ref).abs() < 1e-3, "{m} vs {}", force_ref * r_ref);
+            assert!(
+                (m - force_ref * r_ref).abs() < 1e-3,
+                "{m} vs {}",
+                force_ref * r_ref
+            );
             assert!(e.flags.contains(Flags::SPEED_MISSING));
             assert!(!e.force_lost());
         }
@@ -364,10 +382,10 @@ mod tests {
             input: RadPerSec::lit("12.5"),
             output: RadPerSec::lit("-0.5"),
         });
-        // [calc] (1_000_100 − 100)·0.005 = 5000 N and (2_000_000 − (−100) − 100)·0.005 ≈ 10 kN;
+        // [calc] (1_000_100 − 100)·0.005 = 5000 N and (1_999_900 − (−100))·0.005 = 10 kN;
         // their mean ≈ 7.5 kN (gain rounded to I8F24: 0.005 → 83886/2^24).
         let both = step.step(&inputs(
-            [Reading::Counts(1_000_100), Reading::Counts(1_999_900 + 100)],
+            [Reading::Counts(1_000_100), Reading::Counts(1_999_900)],
             speeds,
         ));
         let g: f64 = Gain::lit("0.005").to_num();

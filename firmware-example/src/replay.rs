@@ -26,7 +26,9 @@
 use core::fmt;
 
 use crate::adc::Channel;
-use crate::app::{ControlLoop, FaultPolarity, LoopConfig, LoopConfigError, Ports, Processor, Summary};
+use crate::app::{
+    ControlLoop, FaultPolarity, LoopConfig, LoopConfigError, Ports, Processor, Summary,
+};
 use crate::generated::{
     self, BEDDING, BEDDING_BREAKPOINTS, CHANNELS, FAULT_RELEASE_SAMPLES, FORCE_BREAKPOINTS, GAINS,
     GENERATED_CRC32, OFFSETS_COUNTS, RADIUS_TABLE, SAMPLE_PERIOD_NS, TRACE, TRACE_NAME,
@@ -105,9 +107,10 @@ where
         });
     }
     let samples = u32::try_from(TRACE.len()).map_err(|_| ReplayError::TraceTooLong)?;
-    let channels = first_channels::<CHANNELS>().ok_or(ReplayError::Config(
-        LoopConfigError::ChannelCount { count: CHANNELS },
-    ))?;
+    let channels =
+        first_channels::<CHANNELS>().ok_or(ReplayError::Config(LoopConfigError::ChannelCount {
+            count: CHANNELS,
+        }))?;
     let config = LoopConfig::new(
         channels,
         SAMPLE_PERIOD_NS,
@@ -117,7 +120,9 @@ where
     .map_err(ReplayError::Config)?;
 
     let mut line = Line::new();
-    line.push_str("# clampwise-fw: an estimate, not a certified safety function; validate on the bench");
+    line.push_str(
+        "# clampwise-fw: an estimate, not a certified safety function; validate on the bench",
+    );
     sink.emit(line.as_bytes());
     let mut line = Line::new();
     line.push_str("# clampwise-fw,trace=");
@@ -156,7 +161,11 @@ fn config_channels(n: usize) -> u32 {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    #![allow(
+        clippy::unwrap_used,
+        clippy::indexing_slicing,
+        clippy::cast_possible_truncation
+    )]
     use super::*;
     use crate::adc::AdcFault;
     use crate::stub::TraceCell;
@@ -185,8 +194,14 @@ mod tests {
                 .count() as u32
         };
         let idx = |f: AdcFault| summary.adc_faults[f.index()];
-        assert_eq!(idx(AdcFault::NotReady), count(|c| *c == TraceCell::NotReady));
-        assert_eq!(idx(AdcFault::Overrange), count(|c| *c == TraceCell::Overrange));
+        assert_eq!(
+            idx(AdcFault::NotReady),
+            count(|c| *c == TraceCell::NotReady)
+        );
+        assert_eq!(
+            idx(AdcFault::Overrange),
+            count(|c| *c == TraceCell::Overrange)
+        );
         assert_eq!(idx(AdcFault::Crc), count(|c| *c == TraceCell::BadCrc));
         assert_eq!(
             idx(AdcFault::ReferenceMissing),
@@ -199,7 +214,10 @@ mod tests {
         assert_eq!(summary.force_lost_samples, lost);
         assert_eq!(summary.speed_errors, 0);
         assert_eq!(summary.truncated_lines, 0);
-        assert_eq!(summary.warning_samples, 0, "the interim step has no fade model");
+        assert_eq!(
+            summary.warning_samples, 0,
+            "the interim step has no fade model"
+        );
     }
 
     #[test]

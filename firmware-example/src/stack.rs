@@ -39,7 +39,9 @@ fn stack_top() -> usize {
 fn stack_pointer() -> usize {
     let sp: usize;
     // SAFETY: reads the stack pointer into a register; no memory access.
-    unsafe { core::arch::asm!("mov {}, sp", out(reg) sp, options(nomem, nostack, preserves_flags)) };
+    unsafe {
+        core::arch::asm!("mov {}, sp", out(reg) sp, options(nomem, nostack, preserves_flags))
+    };
     sp
 }
 
@@ -53,7 +55,7 @@ unsafe fn paint(low: usize, high: usize) {
     while p < high {
         // SAFETY: per the caller, p is in free RAM below the stack pointer.
         unsafe { core::ptr::write_volatile(p as *mut u32, PAINT) };
-        p += 4;
+        p = p.saturating_add(4);
     }
 }
 
@@ -65,7 +67,7 @@ fn lowest_touched(low: usize, high: usize) -> usize {
         if unsafe { core::ptr::read_volatile(p as *const u32) } != PAINT {
             return p;
         }
-        p += 4;
+        p = p.saturating_add(4);
     }
     high
 }

@@ -37,6 +37,7 @@
 use core::cell::Cell;
 use core::convert::Infallible;
 use core::fmt;
+use core::num::NonZeroU64;
 
 use clampwise_core::units::RadPerSec;
 use embedded_hal::delay::DelayNs;
@@ -75,22 +76,27 @@ pub struct TraceSample<const CH: usize> {
 /// The stub's time base: elapsed nanoseconds, and from them the current sample.
 #[derive(Debug)]
 pub struct TraceClock {
-    period_ns: u32,
+    // Non-zero by type, so the division in `sample` has no divide-by-zero path to panic on.
+    period_ns: NonZeroU64,
     elapsed_ns: Cell<u64>,
 }
 
 impl TraceClock {
     /// A clock at time zero whose samples are `period_ns` apart (0 is taken as 1).
     pub const fn new(period_ns: u32) -> Self {
+        let period_ns = match NonZeroU64::new(period_ns as u64) {
+            Some(p) => p,
+            None => NonZeroU64::MIN,
+        };
         Self {
-            period_ns: if period_ns == 0 { 1 } else { period_ns },
+            period_ns,
             elapsed_ns: Cell::new(0),
         }
     }
 
     /// The sample the trace is at (saturates).
     pub fn sample(&self) -> usize {
-        let n = self.elapsed_ns.get() / u64::from(self.period_ns);
+        let n = self.elapsed_ns.get() / self.period_ns;
         usize::try_from(n).unwrap_or(usize::MAX)
     }
 
@@ -100,7 +106,8 @@ impl TraceClock {
     }
 
     fn advance(&self, ns: u64) {
-        self.elapsed_ns.set(self.elapsed_ns.get().saturating_add(ns));
+        self.elapsed_ns
+            .set(self.elapsed_ns.get().saturating_add(ns));
     }
 }
 
@@ -171,7 +178,11 @@ impl<'a, const CH: usize> TraceAdc<'a, CH> {
             Some(slot) => slot.replace(sample) != Some(sample),
             None => true,
         };
-        let ready = if fresh { Status::READY } else { Status::empty() };
+        let ready = if fresh {
+            Status::READY
+        } else {
+            Status::empty()
+        };
         Ok(match cell {
             TraceCell::Counts(c) => encode_frame(ready, channel, c),
             TraceCell::NotReady => encode_frame(Status::empty(), channel, 0),
@@ -355,8 +366,15 @@ mod tests {
         let (c0, c1) = (Channel::new(0).unwrap(), Channel::new(1).unwrap());
 
         assert_eq!(adc.read(c0), Ok(-5));
-        assert_eq!(adc.read(c0), Err(AdcError::NotReady), "second read in one sample");
-        assert_eq!(adc.read(c1), Err(AdcError::Overrange { counts: FULL_SCALE }));
+        assert_eq!(
+            adc.read(c0),
+            Err(AdcError::NotReady),
+            "second read in one sample"
+        );
+        assert_eq!(
+            adc.read(c1),
+            Err(AdcError::Overrange { counts: FULL_SCALE })
+        );
         assert_eq!(speeds.read().unwrap().input, RadPerSec::lit("2.5"));
 
         delay.delay_ns(100);
@@ -374,7 +392,11 @@ mod tests {
         assert_eq!(adc.read(c0), Err(AdcError::NotReady), "past the end");
         assert_eq!(speeds.read(), Err(EndOfTrace));
         let c3 = Channel::new(3).unwrap();
-        assert_eq!(adc.read(c3), Err(AdcError::NotReady), "past the end, any channel");
+        assert_eq!(
+            adc.read(c3),
+            Err(AdcError::NotReady),
+            "past the end, any channel"
+        );
     }
 
     #[test]
@@ -396,7 +418,10 @@ mod tests {
         );
         let mut short = [0u8; 3];
         assert_eq!(
-            spi.transaction(&mut [Operation::Write(&[CMD_READ, 0]), Operation::Read(&mut short)]),
+            spi.transaction(&mut [
+                Operation::Write(&[CMD_READ, 0]),
+                Operation::Read(&mut short)
+            ]),
             Err(StubSpiError::UnexpectedRead)
         );
     }

@@ -5,7 +5,9 @@ use clampwise_firmware_example::replay::{demo_processor, replay};
 use cortex_m_rt::entry;
 
 #[cfg(all(feature = "semihosting", feature = "defmt"))]
-compile_error!("features `semihosting` and `defmt` are exclusive: build with --no-default-features --features defmt");
+compile_error!(
+    "features `semihosting` and `defmt` are exclusive: build with --no-default-features --features defmt"
+);
 #[cfg(not(any(feature = "semihosting", feature = "defmt")))]
 compile_error!("the firmware needs an output: feature `semihosting` (default) or `defmt`");
 #[cfg(all(feature = "defmt", feature = "panic-check"))]
@@ -22,7 +24,8 @@ impl LineSink for Semihosting {
     fn emit(&mut self, line: &[u8]) {
         if let Some(out) = self.0.as_mut() {
             // One write per line keeps host-side interleaving impossible.
-            let mut buf = heapless::Vec::<u8, { clampwise_firmware_example::line::LINE_CAPACITY + 1 }>::new();
+            let mut buf =
+                heapless::Vec::<u8, { clampwise_firmware_example::line::LINE_CAPACITY + 1 }>::new();
             let fits = buf.extend_from_slice(line).is_ok() && buf.push(b'\n').is_ok();
             if !fits || out.write_all(&buf).is_err() {
                 self.0 = None;
@@ -67,10 +70,19 @@ fn main() -> ! {
     line.key_value("total_bytes", i64::from(total));
     line.key_value("step_bytes", step.map_or(-1, i64::from));
     line.key_value("painted_bytes", i64::from(painted.len_bytes()));
+    let processor_bytes = core::mem::size_of::<clampwise_firmware_example::replay::DemoProcessor>();
+    line.key_value(
+        "processor_bytes",
+        i64::try_from(processor_bytes).unwrap_or(-1),
+    );
     out.emit(line.as_bytes());
 
     let ok = ok && step.is_some() && out.0.is_some();
-    debug::exit(if ok { debug::EXIT_SUCCESS } else { debug::EXIT_FAILURE });
+    debug::exit(if ok {
+        debug::EXIT_SUCCESS
+    } else {
+        debug::EXIT_FAILURE
+    });
     loop {
         cortex_m::asm::wfi();
     }
