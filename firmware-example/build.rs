@@ -132,6 +132,11 @@ fn env_var(name: &str) -> Result<String, String> {
 }
 
 fn link_setup(manifest_dir: &Path, out_dir: &Path, target: &str) -> Result<(), String> {
+    // ARMv6-M has no cycle counter; the probe build measures step cycles only elsewhere.
+    println!("cargo::rustc-check-cfg=cfg(armv6m)");
+    if target.starts_with("thumbv6m") {
+        println!("cargo:rustc-cfg=armv6m");
+    }
     if !target.starts_with("thumbv") {
         return Ok(());
     }

@@ -4,7 +4,7 @@
 //! host: the bridge-ADC driver ([`adc`]), the fixed-rate control loop over embedded-hal 1.0
 //! traits ([`app`]), the per-sample processing step ([`processor`]), the HAL stub that plays a
 //! recorded trace ([`stub`]), the build-time constants ([`generated`]), the output line format
-//! ([`line`]) and the replay that wires them together ([`replay`]). The binary (`src/main.rs`)
+//! ([`line`](mod@line)) and the replay that wires them together ([`replay`]). The binary (`src/main.rs`)
 //! adds only the Cortex-M entry point, the output sink and the panic handler.
 //!
 //! **Caution.** The output is an estimate, not a certified safety function. Validate on the

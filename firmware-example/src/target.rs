@@ -140,10 +140,63 @@ impl LineSink for Defmt {
     }
 }
 
+/// Counts the core cycles of each processing step with the DWT cycle counter (real boards;
+/// QEMU does not model it, and ARMv6-M parts have none).
+#[cfg(all(feature = "defmt", not(armv6m)))]
+struct CycleProbe<P> {
+    inner: P,
+    max: u32,
+    total: u64,
+    steps: u32,
+}
+
+#[cfg(all(feature = "defmt", not(armv6m)))]
+impl<P: clampwise_firmware_example::app::Processor<CH>, const CH: usize>
+    clampwise_firmware_example::app::Processor<CH> for CycleProbe<P>
+{
+    type Estimate = P::Estimate;
+    fn step(&mut self, inputs: &clampwise_firmware_example::app::Inputs<CH>) -> P::Estimate {
+        let start = cortex_m::peripheral::DWT::cycle_count();
+        let estimate = self.inner.step(inputs);
+        let cycles = cortex_m::peripheral::DWT::cycle_count().wrapping_sub(start);
+        self.max = self.max.max(cycles);
+        self.total = self.total.saturating_add(u64::from(cycles));
+        self.steps = self.steps.saturating_add(1);
+        estimate
+    }
+}
+
 #[cfg(feature = "defmt")]
 #[entry]
 fn main() -> ! {
+    #[cfg(not(armv6m))]
+    if let Some(mut cp) = cortex_m::Peripherals::take() {
+        cp.DCB.enable_trace();
+        cp.DWT.enable_cycle_counter();
+    }
     match demo_processor() {
+        #[cfg(not(armv6m))]
+        Ok(p) => {
+            let mut probe = CycleProbe {
+                inner: p,
+                max: 0,
+                total: 0,
+                steps: 0,
+            };
+            match replay(&mut probe, &mut Defmt) {
+                Ok(s) => {
+                    let mean = probe.total / u64::from(probe.steps.max(1));
+                    defmt::info!(
+                        "replay done: {=u32} samples; step cycles max {=u32}, mean {=u64}",
+                        s.samples,
+                        probe.max,
+                        mean
+                    );
+                }
+                Err(_) => defmt::error!("replay could not start"),
+            }
+        }
+        #[cfg(armv6m)]
         Ok(p) => match replay(p, &mut Defmt) {
             Ok(s) => defmt::info!("replay done: {=u32} samples", s.samples),
             Err(_) => defmt::error!("replay could not start"),
