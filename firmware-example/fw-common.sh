@@ -1,3 +1,4 @@
+# shellcheck shell=bash disable=SC2034
 # Shared helpers for the firmware scripts (sourced, not run).
 # Builds go to the workspace's target/ directory; copies of each image and each run's output go
 # to target/fw-check/, so a later step never picks up an image another variant overwrote.
@@ -11,7 +12,8 @@ FW_OUT="$FW_TARGET_DIR/fw-check"
 FW_PKG="clampwise-firmware-example"
 FW_BIN="clampwise-fw"
 FW_TARGETS=(thumbv7em-none-eabihf thumbv7m-none-eabi thumbv6m-none-eabi)
-LLVM_BIN="$(rustc --print sysroot)/lib/rustlib/x86_64-unknown-linux-gnu/bin"
+LLVM_BIN="$(rustc --print sysroot)/lib/rustlib/$(rustc -vV | sed -n 's/^host: //p')/bin"
+[[ -x "$LLVM_BIN/llvm-nm" ]] || { echo "[firmware] FAIL: llvm-tools missing (rustup component add llvm-tools)" >&2; exit 1; }
 mkdir -p "$FW_OUT"
 cd "$REPO_ROOT"
 

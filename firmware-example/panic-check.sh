@@ -33,6 +33,7 @@ for t in "${targets[@]}"; do
 done
 
 canary_log="$FW_OUT/panic-canary.log"
+# shellcheck disable=SC2046 # the feature arguments are meant to split
 if cargo build -p "$FW_PKG" --bin "$FW_BIN" --target "${targets[0]}" --profile firmware \
   $(fw_cargo_features panic-canary) >"$canary_log" 2>&1; then
   fw_fail "negative control: the image with a planted panic linked, so the check proves nothing"

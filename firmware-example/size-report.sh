@@ -49,6 +49,7 @@ for t in "${targets[@]}"; do
   data=$(section "$elf" .data); bss=$(section "$elf" .bss); un=$(section "$elf" .uninit)
   flash=$((vt + text + ro + data)); ram=$((data + bss + un))
   # The step: the processing step and the core functions it calls that the optimiser kept apart.
+  # shellcheck disable=SC2016 # a regex, not an expansion
   step=$(symbols "$elf" ' [tT] .*(processor(::|\.\.)ForceRadius(\$LT\$|<)|clampwise_core::)')
   table=$(symbols "$elf" ' [rRdD] .*RADIUS_TABLE')
   trace=$(symbols "$elf" ' [rRdD] .*generated::TRACE(::h[0-9a-f]+)?$')
