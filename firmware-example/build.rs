@@ -18,9 +18,17 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::{env, fs};
 
-use fixed::FixedI32;
-use fixed::types::extra::{LeEqU32, U8, U16, U24, U30};
 use serde::Deserialize;
+
+#[path = "build/quantise.rs"]
+mod quantise;
+
+/// Fractional bits of the core's Q formats: Newtons I24F8, RadPerSec I16F16, Metres and the
+/// gain I8F24, Ratio I2F30.
+const U8: u32 = 8;
+const U16: u32 = 16;
+const U24: u32 = 24;
+const U30: u32 = 30;
 
 /// Largest number of bridge-ADC channels the application reads.
 const MAX_CHANNELS: usize = 4;
@@ -152,12 +160,11 @@ fn link_setup(manifest_dir: &Path, out_dir: &Path, target: &str) -> Result<(), S
 
 /// Quantise to a fixed-point format the way the core's `from_f64` does (round to nearest),
 /// naming the configuration key on failure.
-fn quantise<F: LeEqU32>(value: f64, key: &str) -> Result<i32, String> {
+fn quantise(value: f64, frac_bits: u32, key: &str) -> Result<i32, String> {
     if !value.is_finite() {
         return Err(format!("{key} = {value} is not a finite number"));
     }
-    FixedI32::<F>::checked_from_num(value)
-        .map(FixedI32::to_bits)
+    quantise::to_bits(value, frac_bits)
         .ok_or_else(|| format!("{key} = {value} is outside the range of its fixed-point format"))
 }
 
@@ -217,7 +224,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
     let mut gains = Vec::with_capacity(channels);
     for (i, &g) in config.sensor.gain_n_per_count.iter().enumerate() {
         let key = format!("sensor.gain_n_per_count[{i}]");
-        let bits = quantise::<U24>(g, &key)?;
+        let bits = quantise(g, U24, &key)?;
         if bits <= 0 {
             return Err(format!(
                 "{key} = {g} must be positive (and at least 2^-24 N/count)"
@@ -251,7 +258,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
         .clamp_force_n
         .iter()
         .enumerate()
-        .map(|(i, &f)| quantise::<U8>(f, &format!("radius_table.clamp_force_n[{i}]")))
+        .map(|(i, &f)| quantise(f, U8, &format!("radius_table.clamp_force_n[{i}]")))
         .collect::<Result<Vec<_>, _>>()?;
     check_increasing(&force_bits, "radius_table.clamp_force_n")?;
     for (i, &b) in t.bedding.iter().enumerate() {
@@ -263,7 +270,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
         .bedding
         .iter()
         .enumerate()
-        .map(|(i, &b)| quantise::<U30>(b, &format!("radius_table.bedding[{i}]")))
+        .map(|(i, &b)| quantise(b, U30, &format!("radius_table.bedding[{i}]")))
         .collect::<Result<Vec<_>, _>>()?;
     check_increasing(&bedding_bits, "radius_table.bedding")?;
     let mut radius_bits = Vec::with_capacity(force_bits.len());
@@ -275,7 +282,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
             .iter()
             .map(|&b| {
                 let r = effective_radius(g.outer_radius_m, g.inner_radius_m, b);
-                quantise::<U24>(r, "effective radius")
+                quantise(r, U24, "effective radius")
             })
             .collect::<Result<Vec<_>, _>>()?;
         radius_bits.push(row);
@@ -288,7 +295,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
             p.bedding
         ));
     }
-    let bedding_now = quantise::<U30>(p.bedding, "processing.bedding")?;
+    let bedding_now = quantise(p.bedding, U30, "processing.bedding")?;
     let fault_release = u16::try_from(p.fault_release_samples)
         .ok()
         .filter(|&n| n >= 1)
@@ -384,7 +391,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
     let _ = writeln!(
         w,
         "pub const OUTER_RADIUS: Metres = Metres::from_bits({});",
-        quantise::<U24>(g.outer_radius_m, "geometry.outer_radius_m")?
+        quantise(g.outer_radius_m, U24, "geometry.outer_radius_m")?
     );
     let _ = writeln!(
         w,
@@ -393,7 +400,7 @@ fn generate(config: &Config, config_path: &Path, trace_path: &Path) -> Result<St
     let _ = writeln!(
         w,
         "pub const INNER_RADIUS: Metres = Metres::from_bits({});",
-        quantise::<U24>(g.inner_radius_m, "geometry.inner_radius_m")?
+        quantise(g.inner_radius_m, U24, "geometry.inner_radius_m")?
     );
     let _ = writeln!(
         w,
@@ -574,8 +581,8 @@ fn read_trace(path: &Path, channels: usize, period_s: f64) -> Result<Vec<Row>, S
         let omega_out = number(channels + 2)?;
         rows.push(Row {
             cells,
-            omega_in_bits: quantise::<U16>(omega_in, &at(channels + 1))?,
-            omega_out_bits: quantise::<U16>(omega_out, &at(channels + 2))?,
+            omega_in_bits: quantise(omega_in, U16, &at(channels + 1))?,
+            omega_out_bits: quantise(omega_out, U16, &at(channels + 2))?,
         });
     }
     if rows.is_empty() || rows.len() > MAX_TRACE_ROWS {

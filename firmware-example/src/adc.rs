@@ -114,7 +114,6 @@ impl Channel {
 /// What went wrong with a reading, without the bus error's payload: small and `Copy`, so the
 /// application can hand it to the processing step and count it.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 #[non_exhaustive]
 pub enum AdcFault {
     /// The SPI transaction itself failed.
