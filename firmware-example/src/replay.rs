@@ -128,7 +128,7 @@ where
     line.push_str("# clampwise-fw,trace=");
     line.push_str(TRACE_NAME);
     line.key_value("samples", i64::from(samples));
-    line.key_value("channels", i64::from(config_channels(CHANNELS)));
+    line.key_value("channels", i64::try_from(CHANNELS).unwrap_or(i64::MAX));
     line.key_value("period_ns", i64::from(SAMPLE_PERIOD_NS));
     line.key_hex32("generated_crc32", GENERATED_CRC32);
     sink.emit(line.as_bytes());
@@ -153,10 +153,6 @@ where
     line.key_value("warning_pin_changes", i64::from(ports.warning.changes()));
     sink.emit(line.as_bytes());
     Ok(summary)
-}
-
-fn config_channels(n: usize) -> u32 {
-    u32::try_from(n).unwrap_or(u32::MAX)
 }
 
 #[cfg(test)]
