@@ -1,6 +1,11 @@
 //! A test device built from SI values: an annular caliper-style contact on one disc with
 //! invented (demo) lining data. Shared by the estimator tests.
-#![allow(dead_code, clippy::unwrap_used, clippy::expect_used, clippy::cast_possible_truncation)]
+#![allow(
+    dead_code,
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::cast_possible_truncation
+)]
 
 use clampwise_core::adapt::AdaptConfig;
 use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
