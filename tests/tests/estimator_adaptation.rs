@@ -1,5 +1,5 @@
 //! Online adaptation through the whole estimator, and the saved state record.
-#![allow(clippy::unwrap_used, clippy::expect_used)]
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing)]
 
 mod estimator_common;
 use estimator_common::*;
