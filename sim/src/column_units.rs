@@ -110,7 +110,11 @@ pub fn normalise(unit: &str) -> String {
 /// assert!((rpm.apply(60.0) - 2.0 * std::f64::consts::PI).abs() < 1e-12);
 /// assert!(conversion(Quantity::Force, "rpm", None).is_err());
 /// ```
-pub fn conversion(q: Quantity, unit: &str, piston_area_m2: Option<f64>) -> Result<Conversion, String> {
+pub fn conversion(
+    q: Quantity,
+    unit: &str,
+    piston_area_m2: Option<f64>,
+) -> Result<Conversion, String> {
     let u = normalise(unit);
     let pressure = |pa_per_unit: f64| match piston_area_m2 {
         Some(a) if a.is_finite() && a > 0.0 => Ok(Conversion::linear(pa_per_unit * a)),
@@ -165,8 +169,12 @@ pub fn conversion(q: Quantity, unit: &str, piston_area_m2: Option<f64>) -> Resul
             ));
         }
     };
-    if piston_area_m2.is_some() && !(q == Quantity::Force && ["bar", "Pa", "kPa", "MPa", "psi"].contains(&u.as_str())) {
-        return Err(format!("piston_area_m2 only applies to a pressure unit, not '{unit}'"));
+    if piston_area_m2.is_some()
+        && !(q == Quantity::Force && ["bar", "Pa", "kPa", "MPa", "psi"].contains(&u.as_str()))
+    {
+        return Err(format!(
+            "piston_area_m2 only applies to a pressure unit, not '{unit}'"
+        ));
     }
     Ok(c)
 }
@@ -176,9 +184,11 @@ pub fn conversion(q: Quantity, unit: &str, piston_area_m2: Option<f64>) -> Resul
 pub fn unit_suffix(q: Quantity, header: &str) -> Option<&'static str> {
     let mut units: Vec<&'static str> = q.units().to_vec();
     units.sort_by_key(|u| std::cmp::Reverse(u.len()));
-    units
-        .into_iter()
-        .find(|u| header.len() > u.len() + 1 && header.ends_with(u) && header[..header.len() - u.len()].ends_with('_'))
+    units.into_iter().find(|u| {
+        header.len() > u.len() + 1
+            && header.ends_with(u)
+            && header[..header.len() - u.len()].ends_with('_')
+    })
 }
 
 #[cfg(test)]
@@ -190,7 +200,10 @@ mod tests {
     #[test]
     fn exact_definitions() {
         // [pub: NIST SP 811 appendix B] 1 lbf = 4.4482216152605 N; 1 psi = 6894.757293168 Pa.
-        assert_relative_eq!(conversion(Quantity::Force, "lbf", None).unwrap().apply(1.0), 4.448_221_615_260_5);
+        assert_relative_eq!(
+            conversion(Quantity::Force, "lbf", None).unwrap().apply(1.0),
+            4.448_221_615_260_5
+        );
         let psi = conversion(Quantity::Force, "psi", Some(1e-4)).unwrap();
         assert_relative_eq!(psi.apply(1.0), 0.689_475_729_316_8);
         // [calc] 100 bar on a 57 mm piston: 25.5 kN (REFERENCES.md controller context).
@@ -198,21 +211,43 @@ mod tests {
         let bar = conversion(Quantity::Force, "bar", Some(a)).unwrap();
         assert_relative_eq!(bar.apply(100.0), 25_517.6, max_relative = 1e-4);
         // [pub] 0 °C = 273.15 K, 212 °F = 100 °C.
-        assert_relative_eq!(conversion(Quantity::Temperature, "K", None).unwrap().apply(273.15), 0.0);
-        assert_relative_eq!(conversion(Quantity::Temperature, "F", None).unwrap().apply(212.0), 100.0, max_relative = 1e-12);
+        assert_relative_eq!(
+            conversion(Quantity::Temperature, "K", None)
+                .unwrap()
+                .apply(273.15),
+            0.0
+        );
+        assert_relative_eq!(
+            conversion(Quantity::Temperature, "F", None)
+                .unwrap()
+                .apply(212.0),
+            100.0,
+            max_relative = 1e-12
+        );
     }
 
     #[test]
     fn wrong_kind_and_pressure_without_area() {
-        assert!(conversion(Quantity::Torque, "rpm", None).unwrap_err().contains("not a torque unit"));
-        assert!(conversion(Quantity::Force, "bar", None).unwrap_err().contains("piston_area_m2"));
+        assert!(
+            conversion(Quantity::Torque, "rpm", None)
+                .unwrap_err()
+                .contains("not a torque unit")
+        );
+        assert!(
+            conversion(Quantity::Force, "bar", None)
+                .unwrap_err()
+                .contains("piston_area_m2")
+        );
         assert!(conversion(Quantity::Force, "N", Some(1.0)).is_err());
         assert_eq!(normalise("rad/s"), "rad_s");
     }
 
     #[test]
     fn suffixes() {
-        assert_eq!(unit_suffix(Quantity::Speed, "omega_in_rad_s"), Some("rad_s"));
+        assert_eq!(
+            unit_suffix(Quantity::Speed, "omega_in_rad_s"),
+            Some("rad_s")
+        );
         assert_eq!(unit_suffix(Quantity::Force, "force_1_kN"), Some("kN"));
         assert_eq!(unit_suffix(Quantity::Force, "force_1_N"), Some("N"));
         assert_eq!(unit_suffix(Quantity::Force, "N"), None);

@@ -55,11 +55,20 @@ pub fn bar(quiet: bool, multi: Option<&MultiProgress>, label: &str) -> Option<Pr
         return None;
     }
     let pb = ProgressBar::with_draw_target(None, ProgressDrawTarget::stderr());
-    let style = ProgressStyle::with_template("{prefix:>24} [{bar:40}] {percent:>3}% {elapsed_precise} eta {eta}")
-        .unwrap_or_else(|_| ProgressStyle::default_bar())
-        .progress_chars("=> ");
+    let style = ProgressStyle::with_template(
+        "{prefix:>24} [{bar:40}] {percent:>3}% {elapsed_precise} eta {eta}",
+    )
+    .unwrap_or_else(|_| ProgressStyle::default_bar())
+    .progress_chars("=> ");
     pb.set_style(style);
-    let short: String = label.chars().rev().take(24).collect::<Vec<_>>().into_iter().rev().collect();
+    let short: String = label
+        .chars()
+        .rev()
+        .take(24)
+        .collect::<Vec<_>>()
+        .into_iter()
+        .rev()
+        .collect();
     pb.set_prefix(short);
     Some(match multi {
         Some(m) => m.add(pb),
@@ -69,7 +78,8 @@ pub fn bar(quiet: bool, multi: Option<&MultiProgress>, label: &str) -> Option<Pr
 
 fn load(path: &Path) -> Result<(LoadedConfig, CoreTables), SimError> {
     let cfg = LoadedConfig::load(path)?;
-    let tables = CoreTables::build(&cfg.config).map_err(|e| SimError::Internal(format!("{}: {}", e.key, e.message)))?;
+    let tables = CoreTables::build(&cfg.config)
+        .map_err(|e| SimError::Internal(format!("{}: {}", e.key, e.message)))?;
     Ok((cfg, tables))
 }
 
@@ -78,7 +88,9 @@ fn to_json<T: serde::Serialize>(v: &T) -> Value {
 }
 
 fn stem(p: &str) -> String {
-    Path::new(p).file_stem().map_or("trace".into(), |s| s.to_string_lossy().into_owned())
+    Path::new(p)
+        .file_stem()
+        .map_or("trace".into(), |s| s.to_string_lossy().into_owned())
 }
 
 /// `replay`.
@@ -88,26 +100,47 @@ fn stem(p: &str) -> String {
 pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
     let (cfg, tables) = load(&a.config)?;
     let jobs: Vec<(String, String, Option<String>)> = if a.traces.len() == 1 {
-        let t = a.traces[0].clone();
+        let t = a.traces.first().cloned().unwrap_or_default();
         let out = match (&a.out, &a.out_dir) {
             (Some(o), _) => o.clone(),
-            (None, Some(d)) => d.join(format!("{}.estimate.csv", stem(&t))).display().to_string(),
-            (None, None) => return Err(SimError::Usage("replay needs --out FILE (or --out-dir DIR)".into())),
+            (None, Some(d)) => d
+                .join(format!("{}.estimate.csv", stem(&t)))
+                .display()
+                .to_string(),
+            (None, None) => {
+                return Err(SimError::Usage(
+                    "replay needs --out FILE (or --out-dir DIR)".into(),
+                ));
+            }
         };
-        let plot = a.plot.clone().or_else(|| a.plot_dir.as_ref().map(|d| d.join(format!("{}.svg", stem(&t))).display().to_string()));
+        let plot = a.plot.clone().or_else(|| {
+            a.plot_dir
+                .as_ref()
+                .map(|d| d.join(format!("{}.svg", stem(&t))).display().to_string())
+        });
         vec![(t, out, plot)]
     } else {
-        let dir = a.out_dir.clone().ok_or_else(|| SimError::Usage("several traces need --out-dir DIR".into()))?;
+        let dir = a
+            .out_dir
+            .clone()
+            .ok_or_else(|| SimError::Usage("several traces need --out-dir DIR".into()))?;
         if a.plot.is_some() {
-            return Err(SimError::Usage("several traces: use --plot-dir instead of --plot".into()));
+            return Err(SimError::Usage(
+                "several traces: use --plot-dir instead of --plot".into(),
+            ));
         }
         if a.traces.iter().filter(|t| *t == "-").count() > 0 {
-            return Err(SimError::Usage("standard input can only be replayed alone".into()));
+            return Err(SimError::Usage(
+                "standard input can only be replayed alone".into(),
+            ));
         }
         let mut seen = std::collections::HashSet::new();
         for t in &a.traces {
             if !seen.insert(stem(t)) {
-                return Err(SimError::Usage(format!("two traces share the name '{}': their estimate files would collide", stem(t))));
+                return Err(SimError::Usage(format!(
+                    "two traces share the name '{}': their estimate files would collide",
+                    stem(t)
+                )));
             }
         }
         a.traces
@@ -115,8 +148,12 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
             .map(|t| {
                 (
                     t.clone(),
-                    dir.join(format!("{}.estimate.csv", stem(t))).display().to_string(),
-                    a.plot_dir.as_ref().map(|d| d.join(format!("{}.svg", stem(t))).display().to_string()),
+                    dir.join(format!("{}.estimate.csv", stem(t)))
+                        .display()
+                        .to_string(),
+                    a.plot_dir
+                        .as_ref()
+                        .map(|d| d.join(format!("{}.svg", stem(t))).display().to_string()),
                 )
             })
             .collect()
@@ -128,13 +165,19 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
             skip_bad_rows: a.skip_bad_rows,
             progress: bar(quiet, Some(&multi), trace),
         };
-        let mut dec = plot_path.as_ref().map(|_| Decimator::<PlotPoint>::new(PLOT_POINTS));
+        let mut dec = plot_path
+            .as_ref()
+            .map(|_| Decimator::<PlotPoint>::new(PLOT_POINTS));
         let s = replay::replay_file(&cfg, &tables, trace, out, &opts, dec.as_mut())?;
         if let Some(pb) = &opts.progress {
             pb.finish_and_clear();
         }
         if let (Some(p), Some(d)) = (plot_path, &dec) {
-            plot::time_series_file(p, d.points(), &format!("{} — {}", cfg.config.device.name, trace))?;
+            plot::time_series_file(
+                p,
+                d.points(),
+                &format!("{} — {}", cfg.config.device.name, trace),
+            )?;
         }
         Ok::<_, SimError>(s)
     };
@@ -227,7 +270,10 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
             rows.push((k.clone(), v));
         }
         for (k, e) in rows {
-            csv.push_str(&format!("{},\"{}\",{},{},{},{},{},{}\n", r.file, k, e.n, e.bias_nm, e.rms_nm, e.max_abs_nm, e.p95_nm, e.p99_nm));
+            csv.push_str(&format!(
+                "{},\"{}\",{},{},{},{},{},{}\n",
+                r.file, k, e.n, e.bias_nm, e.rms_nm, e.max_abs_nm, e.p95_nm, e.p99_nm
+            ));
         }
         js.push(json!({"report": to_json(&r), "breaches": b}));
     }
@@ -236,7 +282,11 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
         human.push_str(&format!("regions written to {p}\n"));
     }
     human.push_str(&format!("{CAUTION}\n"));
-    let failure = if breaches.is_empty() { None } else { Some(SimError::Threshold(breaches.join("; "))) };
+    let failure = if breaches.is_empty() {
+        None
+    } else {
+        Some(SimError::Threshold(breaches.join("; ")))
+    };
     Ok(Outcome {
         human,
         json: json!({"command": "compare", "files": js}),
@@ -258,14 +308,19 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
         skip_bad_rows: a.skip_bad_rows,
     };
     if !(a.min_coverage.is_finite() && a.min_coverage > 0.0) {
-        return Err(SimError::Usage("--min-coverage must be a positive number".into()));
+        return Err(SimError::Usage(
+            "--min-coverage must be a positive number".into(),
+        ));
     }
     let pb = bar(quiet, None, &a.trace);
     let r = fit::fit_trace(&cfg, &tables, &a.trace, &opts, pb.as_ref())?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }
-    let (nt, nv) = (cfg.config.friction.mu.temperature_c.len(), cfg.config.friction.mu.slip_speed_rad_s.len());
+    let (nt, nv) = (
+        cfg.config.friction.mu.temperature_c.len(),
+        cfg.config.friction.mu.slip_speed_rad_s.len(),
+    );
     let mut human = fit::human(&r, nv);
     let incomplete = a.require_full_coverage && !r.unreached.is_empty();
     let mut written = Vec::new();
@@ -291,7 +346,12 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
         human,
         json: json!({"command": "fit", "report": to_json(&r), "written": written}),
         human_to_stderr: false,
-        failure: incomplete.then(|| SimError::Threshold(format!("--require-full-coverage: {} entries not reached; nothing written", r.unreached.len()))),
+        failure: incomplete.then(|| {
+            SimError::Threshold(format!(
+                "--require-full-coverage: {} entries not reached; nothing written",
+                r.unreached.len()
+            ))
+        }),
     })
 }
 
@@ -331,21 +391,40 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
 /// Usage (scenario, fault spec), config and I/O errors.
 pub fn synth(a: &SynthArgs, quiet: bool) -> Result<Outcome, SimError> {
     let (cfg, _) = load(&a.config)?;
-    let scenario = Scenario::builtin(&a.scenario)
-        .ok_or_else(|| SimError::Usage(format!("unknown scenario '{}' (choose {})", a.scenario, SCENARIOS.join(", "))))?;
-    let faults = a.faults.iter().map(|f| f.parse::<Fault>()).collect::<Result<Vec<_>, _>>().map_err(SimError::Usage)?;
+    let scenario = Scenario::builtin(&a.scenario).ok_or_else(|| {
+        SimError::Usage(format!(
+            "unknown scenario '{}' (choose {})",
+            a.scenario,
+            SCENARIOS.join(", ")
+        ))
+    })?;
+    let faults = a
+        .faults
+        .iter()
+        .map(|f| f.parse::<Fault>())
+        .collect::<Result<Vec<_>, _>>()
+        .map_err(SimError::Usage)?;
     for f in &faults {
         if f.channel > cfg.config.sensors.len() {
-            return Err(SimError::Usage(format!("fault on channel {} but the config has {} sensors", f.channel, cfg.config.sensors.len())));
+            return Err(SimError::Usage(format!(
+                "fault on channel {} but the config has {} sensors",
+                f.channel,
+                cfg.config.sensors.len()
+            )));
         }
     }
     let truth_mu = match &a.truth_config {
         Some(p) => Some(LoadedConfig::load(p)?.config.friction.mu),
         None => None,
     };
-    for (name, v) in [("--mu-scale", a.mu_scale), ("--force-noise-n", a.force_noise_n)] {
+    for (name, v) in [
+        ("--mu-scale", a.mu_scale),
+        ("--force-noise-n", a.force_noise_n),
+    ] {
         if !(v.is_finite() && v >= 0.0) {
-            return Err(SimError::Usage(format!("{name} must be a non-negative number")));
+            return Err(SimError::Usage(format!(
+                "{name} must be a non-negative number"
+            )));
         }
     }
     let period = cfg.config.device.sample_period_s;
@@ -374,13 +453,29 @@ pub fn synth(a: &SynthArgs, quiet: bool) -> Result<Outcome, SimError> {
         ..PlantOptions::default()
     };
     let pb = bar(quiet || a.out == "-", None, &a.out);
-    let s = synth::synthesise(&cfg.config, &a.scenario, &scenario, opts, rows, &a.out, pb.as_ref())?;
+    let s = synth::synthesise(
+        &cfg.config,
+        &a.scenario,
+        &scenario,
+        opts,
+        rows,
+        &a.out,
+        pb.as_ref(),
+    )?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }
     let human = format!(
         "synthesised {} rows of scenario '{}' (seed {}) → {}\n  plant effective radius {:.6} m (new) … {:.6} m (bedded); max true lining temperature {:.1} °C; wear {:.3e} m; {:.2} s\n  INVENTED demo data from the simulator's own f64 plant.\n",
-        s.rows, s.scenario, s.seed, s.output, s.plant_radii_m.0, s.plant_radii_m.1, s.max_true_temp_c, s.wear_m, s.elapsed_s
+        s.rows,
+        s.scenario,
+        s.seed,
+        s.output,
+        s.plant_radii_m.0,
+        s.plant_radii_m.1,
+        s.max_true_temp_c,
+        s.wear_m,
+        s.elapsed_s
     );
     Ok(Outcome {
         human,
@@ -399,16 +494,42 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
     let mut js = Vec::new();
     if a.units {
         human.push_str("trace column units by quantity (header suffix spelling):\n");
-        for q in [Quantity::Time, Quantity::Force, Quantity::Speed, Quantity::Torque, Quantity::Temperature, Quantity::Command, Quantity::Flag] {
+        for q in [
+            Quantity::Time,
+            Quantity::Force,
+            Quantity::Speed,
+            Quantity::Torque,
+            Quantity::Temperature,
+            Quantity::Command,
+            Quantity::Flag,
+        ] {
             human.push_str(&format!("  {:<12} {}\n", q.name(), q.units().join(", ")));
         }
         human.push_str("canonical columns: ");
-        human.push_str(&CANONICAL.iter().map(|c| format!("{} = {}", c.0, c.1)).collect::<Vec<_>>().join(", "));
+        human.push_str(
+            &CANONICAL
+                .iter()
+                .map(|c| format!("{} = {}", c.0, c.1))
+                .collect::<Vec<_>>()
+                .join(", "),
+        );
         human.push('\n');
     }
     let mut failure = None;
     for p in &a.configs {
-        match LoadedConfig::load(p).and_then(|c| CoreTables::build(&c.config).map(|t| (c, t)).map_err(|e| crate::config::ConfigErrors { file: p.display().to_string(), issues: vec![crate::config::ConfigIssue { key: Some(e.key), line: None, column: None, message: e.message }] })) {
+        match LoadedConfig::load(p).and_then(|c| {
+            CoreTables::build(&c.config)
+                .map(|t| (c, t))
+                .map_err(|e| crate::config::ConfigErrors {
+                    file: p.display().to_string(),
+                    issues: vec![crate::config::ConfigIssue {
+                        key: Some(e.key),
+                        line: None,
+                        column: None,
+                        message: e.message,
+                    }],
+                })
+        }) {
             Ok((c, t)) => {
                 human.push_str(&format!(
                     "{}: ok — {} ({:?}), {} × {} faces, {} sensors, μ table {}×{}, r_e {:.4}…{:.4} m, checksum 0x{:08X}\n",
@@ -441,7 +562,9 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
         human_to_stderr: false,
         failure: failure.map(|f| match f {
             // The issues are in the human text already; keep the exit code, shorten the tail.
-            SimError::Config(e) => SimError::Usage(format!("{} has {} problem(s)", e.file, e.issues.len())),
+            SimError::Config(e) => {
+                SimError::Usage(format!("{} has {} problem(s)", e.file, e.issues.len()))
+            }
             other => other,
         }),
     })
@@ -466,7 +589,12 @@ pub fn plot(a: &PlotArgs, quiet: bool) -> Result<Outcome, SimError> {
     }
     plot::time_series_file(&a.out, d.points(), &a.estimate)?;
     Ok(Outcome::ok(
-        format!("plotted {} points of {} rows → {}\n", d.points().len(), d.seen(), a.out),
+        format!(
+            "plotted {} points of {} rows → {}\n",
+            d.points().len(),
+            d.seen(),
+            a.out
+        ),
         json!({"command": "plot", "file": a.out, "points": d.points().len(), "rows": d.seen()}),
     ))
 }

@@ -85,10 +85,16 @@ pub struct Bands {
 impl Bands {
     fn label(&self, x: f64) -> String {
         let i = self.edges.iter().position(|&e| x < e);
+        let edge = |k: usize| self.edges.get(k).copied().unwrap_or(0.0);
         match i {
-            Some(0) => format!("{} < {} {}", self.name, self.edges[0], self.unit),
-            Some(i) => format!("{} {}–{} {}", self.name, self.edges[i - 1], self.edges[i], self.unit),
-            None => format!("{} ≥ {} {}", self.name, self.edges.last().copied().unwrap_or(0.0), self.unit),
+            Some(0) => format!("{} < {} {}", self.name, edge(0), self.unit),
+            Some(i) => format!("{} {}–{} {}", self.name, edge(i - 1), edge(i), self.unit),
+            None => format!(
+                "{} ≥ {} {}",
+                self.name,
+                self.edges.last().copied().unwrap_or(0.0),
+                self.unit
+            ),
         }
     }
 }
@@ -147,7 +153,13 @@ impl Comparer {
                 let fmax = c.limits.max_clamp_force_n;
                 (
                     c.friction.mu.temperature_c.clone(),
-                    c.friction.mu.slip_speed_rad_s.iter().copied().filter(|&s| s > 0.0).collect(),
+                    c.friction
+                        .mu
+                        .slip_speed_rad_s
+                        .iter()
+                        .copied()
+                        .filter(|&s| s > 0.0)
+                        .collect(),
                     vec![0.25 * fmax, 0.5 * fmax, 0.75 * fmax],
                 )
             }
@@ -159,9 +171,21 @@ impl Comparer {
         };
         Self {
             bands: [
-                Bands { name: "temperature", unit: "°C", edges: t },
-                Bands { name: "|slip speed|", unit: "rad/s", edges: v },
-                Bands { name: "clamp force", unit: "N", edges: f },
+                Bands {
+                    name: "temperature",
+                    unit: "°C",
+                    edges: t,
+                },
+                Bands {
+                    name: "|slip speed|",
+                    unit: "rad/s",
+                    edges: v,
+                },
+                Bands {
+                    name: "clamp force",
+                    unit: "N",
+                    edges: f,
+                },
             ],
             overall: ErrorStats::default(),
             slipping: ErrorStats::default(),
@@ -187,7 +211,8 @@ impl Comparer {
                 if margin >= 0.0 {
                     self.holding.within_capacity += 1;
                 }
-                self.holding.min_margin_nm = Some(self.holding.min_margin_nm.map_or(margin, |m| m.min(margin)));
+                self.holding.min_margin_nm =
+                    Some(self.holding.min_margin_nm.map_or(margin, |m| m.min(margin)));
             }
             (_, Some(t)) => {
                 let e = t - reference;
@@ -218,7 +243,11 @@ impl Comparer {
             unavailable: self.unavailable,
             overall: self.overall.report(),
             slipping: self.slipping.report(),
-            regions: self.regions.iter().filter_map(|(k, v)| v.report().map(|r| (k.clone(), r))).collect(),
+            regions: self
+                .regions
+                .iter()
+                .filter_map(|(k, v)| v.report().map(|r| (k.clone(), r)))
+                .collect(),
             holding: self.holding.clone(),
             quantile_method: format!(
                 "log-bucketed histogram (DDSketch scheme), relative accuracy {} %, bounded memory",
@@ -232,7 +261,11 @@ impl Comparer {
 ///
 /// # Errors
 /// I/O or located data errors.
-pub fn compare_file(path: &str, c: Option<&DeviceConfig>, progress: Option<&indicatif::ProgressBar>) -> Result<CompareReport, SimError> {
+pub fn compare_file(
+    path: &str,
+    c: Option<&DeviceConfig>,
+    progress: Option<&indicatif::ProgressBar>,
+) -> Result<CompareReport, SimError> {
     let mut r = EstimateReader::open(path)?;
     let mut cmp = Comparer::new(c);
     if let (Some(pb), (Some(len), _)) = (progress, r.progress()) {
@@ -242,10 +275,10 @@ pub fn compare_file(path: &str, c: Option<&DeviceConfig>, progress: Option<&indi
     while let Some(row) = r.next_row()? {
         cmp.add(&row);
         n += 1;
-        if n % 8192 == 0 {
-            if let Some(pb) = progress {
-                pb.set_position(r.progress().1);
-            }
+        if n.is_multiple_of(8192)
+            && let Some(pb) = progress
+        {
+            pb.set_position(r.progress().1);
         }
     }
     Ok(cmp.report(r.file()))
@@ -269,16 +302,22 @@ impl Thresholds {
     pub fn breaches(&self, r: &CompareReport) -> Vec<String> {
         let mut out = Vec::new();
         let Some(o) = &r.overall else {
-            if self.max_bias_nm.or(self.max_rms_nm).or(self.max_p99_nm).or(self.max_abs_nm).is_some() {
+            if self
+                .max_bias_nm
+                .or(self.max_rms_nm)
+                .or(self.max_p99_nm)
+                .or(self.max_abs_nm)
+                .is_some()
+            {
                 out.push("no rows with both an estimate and a reference torque".into());
             }
             return out;
         };
         let mut check = |name: &str, v: f64, lim: Option<f64>| {
-            if let Some(l) = lim {
-                if v > l {
-                    out.push(format!("{name} {v:.3} N·m exceeds {l} N·m"));
-                }
+            if let Some(l) = lim
+                && v > l
+            {
+                out.push(format!("{name} {v:.3} N·m exceeds {l} N·m"));
             }
         };
         check("|bias|", o.bias_nm.abs(), self.max_bias_nm);
@@ -291,7 +330,10 @@ impl Thresholds {
 
 /// Human text of a report.
 pub fn human(r: &CompareReport) -> String {
-    let mut o = format!("compare {}: {} rows ({} without reference, {} unavailable)\n", r.file, r.rows, r.no_reference, r.unavailable);
+    let mut o = format!(
+        "compare {}: {} rows ({} without reference, {} unavailable)\n",
+        r.file, r.rows, r.no_reference, r.unavailable
+    );
     let line = |name: &str, e: &ErrorReport| {
         format!(
             "  {name:<34} n {:>9}  bias {:>9.2}  RMS {:>9.2}  max {:>9.2}  P95 {:>9.2}  P99 {:>9.2} N·m\n",

@@ -587,7 +587,10 @@ pub fn span_of(src: &str, path: &KeyPath) -> Option<std::ops::Range<usize>> {
                         _ => return last_span,
                     },
                 };
-                match t.iter().find(|(key, _)| key.get_ref().as_ref() == k.as_str()) {
+                match t
+                    .iter()
+                    .find(|(key, _)| key.get_ref().as_ref() == k.as_str())
+                {
                     Some((key, v)) => {
                         last_span = Some(key.span());
                         value = Some(v);
@@ -632,7 +635,11 @@ pub fn value_span(src: &str, path: &KeyPath) -> Option<std::ops::Range<usize>> {
                     Some(DeValue::Table(t)) => t,
                     Some(_) => return None,
                 };
-                cur = Some(t.iter().find(|(key, _)| key.get_ref().as_ref() == k.as_str())?.1);
+                cur = Some(
+                    t.iter()
+                        .find(|(key, _)| key.get_ref().as_ref() == k.as_str())?
+                        .1,
+                );
             }
             Seg::Index(i) => match cur.map(toml::Spanned::get_ref) {
                 Some(DeValue::Array(a)) => cur = Some(a.get(*i)?),
@@ -669,10 +676,10 @@ pub fn key_at(src: &str, offset: usize) -> Option<String> {
                 }
                 DeValue::Array(items) => {
                     for (i, item) in items.iter().enumerate() {
-                        if let DeValue::Table(inner) = item.get_ref() {
-                            if let Some(found) = walk(inner, offset, &format!("{name}[{i}]")) {
-                                return Some(found);
-                            }
+                        if let DeValue::Table(inner) = item.get_ref()
+                            && let Some(found) = walk(inner, offset, &format!("{name}[{i}]"))
+                        {
+                            return Some(found);
                         }
                     }
                     if v.span().contains(&offset) {
@@ -730,7 +737,10 @@ impl Validator {
             self.issue(key, "needs at least one breakpoint");
         }
         if xs.len() > max {
-            self.issue(key, format!("has {} breakpoints; at most {max} are supported", xs.len()));
+            self.issue(
+                key,
+                format!("has {} breakpoints; at most {max} are supported", xs.len()),
+            );
         }
         for (i, x) in xs.iter().enumerate() {
             if !x.is_finite() {
@@ -738,13 +748,13 @@ impl Validator {
             }
         }
         for (i, w) in xs.windows(2).enumerate() {
-            if let [a, b] = w {
-                if b <= a {
-                    self.issue(
-                        &format!("{key}[{}]", i + 1),
-                        format!("breakpoints must increase strictly: {b} follows {a}"),
-                    );
-                }
+            if let [a, b] = w
+                && b <= a
+            {
+                self.issue(
+                    &format!("{key}[{}]", i + 1),
+                    format!("breakpoints must increase strictly: {b} follows {a}"),
+                );
             }
         }
     }
@@ -782,11 +792,27 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
         );
     }
     v.non_negative("friction.drag_torque_nm", f.drag_torque_nm);
-    v.non_negative("friction.drag_viscous_nm_per_rad_s", f.drag_viscous_nm_per_rad_s);
-    v.within("friction.mu_tolerance_ratio", f.mu_tolerance_ratio, 0.0, 1.0);
+    v.non_negative(
+        "friction.drag_viscous_nm_per_rad_s",
+        f.drag_viscous_nm_per_rad_s,
+    );
+    v.within(
+        "friction.mu_tolerance_ratio",
+        f.mu_tolerance_ratio,
+        0.0,
+        1.0,
+    );
     let mu = &f.mu;
-    v.increasing("friction.mu.temperature_c", &mu.temperature_c, MU_MAX_POINTS);
-    v.increasing("friction.mu.slip_speed_rad_s", &mu.slip_speed_rad_s, MU_MAX_POINTS);
+    v.increasing(
+        "friction.mu.temperature_c",
+        &mu.temperature_c,
+        MU_MAX_POINTS,
+    );
+    v.increasing(
+        "friction.mu.slip_speed_rad_s",
+        &mu.slip_speed_rad_s,
+        MU_MAX_POINTS,
+    );
     if mu.slip_speed_rad_s.first().is_some_and(|&s| s < 0.0) {
         v.issue(
             "friction.mu.slip_speed_rad_s[0]",
@@ -833,7 +859,10 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
     }
 
     let t = &c.thermal;
-    v.positive("thermal.rotor_heat_capacity_j_per_k", t.rotor_heat_capacity_j_per_k);
+    v.positive(
+        "thermal.rotor_heat_capacity_j_per_k",
+        t.rotor_heat_capacity_j_per_k,
+    );
     match (t.cooling_time_constant_s, t.heat_transfer_w_per_m2_k, t.cooling_area_m2) {
         (Some(tau), None, None) => v.positive("thermal.cooling_time_constant_s", tau),
         (None, Some(h), Some(a)) => {
@@ -849,33 +878,57 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
             "needs cooling_time_constant_s, or heat_transfer_w_per_m2_k with cooling_area_m2",
         ),
     }
-    v.within("thermal.heat_into_rotor_ratio", t.heat_into_rotor_ratio, 1e-3, 1.0);
+    v.within(
+        "thermal.heat_into_rotor_ratio",
+        t.heat_into_rotor_ratio,
+        1e-3,
+        1.0,
+    );
     v.within("thermal.ambient_c", t.ambient_c, -50.0, 200.0);
     if let Some(t0) = t.initial_temperature_c {
         v.within("thermal.initial_temperature_c", t0, -50.0, 1000.0);
     }
     v.within("thermal.fade_c", t.fade_c, -50.0, 1000.0);
-    v.within("thermal.over_temperature_c", t.over_temperature_c, -50.0, 1000.0);
+    v.within(
+        "thermal.over_temperature_c",
+        t.over_temperature_c,
+        -50.0,
+        1000.0,
+    );
     if t.over_temperature_c <= t.fade_c {
         v.issue("thermal.over_temperature_c", "must be above fade_c");
     }
 
     let w = &c.wear;
     v.positive("wear.bedding_energy_j", w.bedding_energy_j);
-    v.within("wear.initial_bedding_ratio", w.initial_bedding_ratio, 0.0, 1.0);
-    v.non_negative("wear.specific_wear_rate_m3_per_j", w.specific_wear_rate_m3_per_j);
+    v.within(
+        "wear.initial_bedding_ratio",
+        w.initial_bedding_ratio,
+        0.0,
+        1.0,
+    );
+    v.non_negative(
+        "wear.specific_wear_rate_m3_per_j",
+        w.specific_wear_rate_m3_per_j,
+    );
     v.positive("wear.pad_area_m2", w.pad_area_m2);
     v.positive("wear.lining_thickness_m", w.lining_thickness_m);
     v.non_negative("wear.minimum_thickness_m", w.minimum_thickness_m);
     if w.minimum_thickness_m >= w.lining_thickness_m {
-        v.issue("wear.minimum_thickness_m", "must be below lining_thickness_m");
+        v.issue(
+            "wear.minimum_thickness_m",
+            "must be below lining_thickness_m",
+        );
     }
     v.non_negative("wear.initial_wear_m", w.initial_wear_m);
 
     if c.sensors.is_empty() || c.sensors.len() > MAX_SENSORS {
         v.issue(
             "sensor",
-            format!("needs 1 … {MAX_SENSORS} [[sensor]] tables, found {}", c.sensors.len()),
+            format!(
+                "needs 1 … {MAX_SENSORS} [[sensor]] tables, found {}",
+                c.sensors.len()
+            ),
         );
     }
     let nyquist = 0.5 / period;
@@ -888,7 +941,9 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
         if s.rail_low_counts >= s.rail_high_counts {
             v.issue(&k("rail_high_counts"), "must be above rail_low_counts");
         }
-        if s.filter_cutoff_hz.is_finite() && (s.filter_cutoff_hz <= 0.0 || s.filter_cutoff_hz >= nyquist) {
+        if s.filter_cutoff_hz.is_finite()
+            && (s.filter_cutoff_hz <= 0.0 || s.filter_cutoff_hz >= nyquist)
+        {
             v.issue(
                 &k("filter_cutoff_hz"),
                 format!("must be within 0 … {nyquist} Hz (Nyquist of the sample period)"),
@@ -907,7 +962,10 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
     }
     v.positive("sensing.disagreement_n", c.sensing.disagreement_n);
     if c.sensing.disagreement_debounce_samples == 0 {
-        v.issue("sensing.disagreement_debounce_samples", "must be at least 1");
+        v.issue(
+            "sensing.disagreement_debounce_samples",
+            "must be at least 1",
+        );
     }
     if let Some(a) = &c.actuator {
         v.positive("actuator.force_n_per_command", a.force_n_per_command);
@@ -916,23 +974,40 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
     }
     let a = &c.adaptation;
     v.within("adaptation.band_ratio", a.band_ratio, 0.0, 0.5);
-    v.within("adaptation.forgetting_factor", a.forgetting_factor, 0.9, 1.0);
+    v.within(
+        "adaptation.forgetting_factor",
+        a.forgetting_factor,
+        0.9,
+        1.0,
+    );
     v.non_negative("adaptation.min_slip_speed_rad_s", a.min_slip_speed_rad_s);
     v.non_negative("adaptation.min_clamp_force_n", a.min_clamp_force_n);
     let l = &c.limits;
     v.within("limits.max_clamp_force_n", l.max_clamp_force_n, 1.0, 200e3);
     v.within("limits.max_torque_nm", l.max_torque_nm, 1e-3, 50e3);
-    v.within("limits.max_slip_speed_rad_s", l.max_slip_speed_rad_s, 1e-3, 2000.0);
+    v.within(
+        "limits.max_slip_speed_rad_s",
+        l.max_slip_speed_rad_s,
+        1e-3,
+        2000.0,
+    );
     v.non_negative("limits.touch_force_n", l.touch_force_n);
     if l.touch_force_n >= l.max_clamp_force_n {
         v.issue("limits.touch_force_n", "must be below max_clamp_force_n");
     }
     let r = &c.radius_table;
     v.increasing("radius_table.force_n", &r.force_n, RADIUS_MAX_FORCE_POINTS);
-    v.increasing("radius_table.bedding_ratio", &r.bedding_ratio, RADIUS_MAX_BEDDING_POINTS);
+    v.increasing(
+        "radius_table.bedding_ratio",
+        &r.bedding_ratio,
+        RADIUS_MAX_BEDDING_POINTS,
+    );
     for (i, b) in r.bedding_ratio.iter().enumerate() {
         if !(0.0..=1.0).contains(b) {
-            v.issue(&format!("radius_table.bedding_ratio[{i}]"), "must be within 0 … 1");
+            v.issue(
+                &format!("radius_table.bedding_ratio[{i}]"),
+                "must be within 0 … 1",
+            );
         }
     }
     if let Some(g) = c.trace.gap_tolerance_ratio {
@@ -943,9 +1018,17 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
 
 fn validate_contact(ct: &Contact, v: &mut Validator) {
     if ct.faces == 0 || ct.faces > 64 {
-        v.issue("contact.faces", format!("must be within 1 … 64, got {}", ct.faces));
+        v.issue(
+            "contact.faces",
+            format!("must be within 1 … 64, got {}", ct.faces),
+        );
     }
-    v.within("contact.radius_tolerance_ratio", ct.radius_tolerance_ratio, 0.0, 1.0);
+    v.within(
+        "contact.radius_tolerance_ratio",
+        ct.radius_tolerance_ratio,
+        0.0,
+        1.0,
+    );
     let shape = ct.shape;
     let radii = |v: &mut Validator| {
         let ri = v.required("contact.inner_radius_m", ct.inner_radius_m, shape);
@@ -956,20 +1039,25 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
         if let Some(ro) = ro {
             v.within("contact.outer_radius_m", ro, 1e-4, 10.0);
         }
-        if let (Some(ri), Some(ro)) = (ri, ro) {
-            if ri >= ro {
-                v.issue("contact.inner_radius_m", "must be below outer_radius_m");
-            }
+        if let (Some(ri), Some(ro)) = (ri, ro)
+            && ri >= ro
+        {
+            v.issue("contact.inner_radius_m", "must be below outer_radius_m");
         }
     };
     match shape {
         Shape::Annulus | Shape::Sector | Shape::Cone => {
             radii(v);
             v.unused("contact.pad_radius_m", &ct.pad_radius_m, shape);
-            v.unused("contact.pad_centre_radius_m", &ct.pad_centre_radius_m, shape);
+            v.unused(
+                "contact.pad_centre_radius_m",
+                &ct.pad_centre_radius_m,
+                shape,
+            );
             v.unused("contact.vertices_m", &ct.vertices_m, shape);
             if shape == Shape::Sector {
-                if let Some(a) = v.required("contact.sector_angle_deg", ct.sector_angle_deg, shape) {
+                if let Some(a) = v.required("contact.sector_angle_deg", ct.sector_angle_deg, shape)
+                {
                     v.within("contact.sector_angle_deg", a, 1e-3, 360.0);
                 }
             } else {
@@ -992,13 +1080,20 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
             if let Some(e) = e {
                 v.within("contact.pad_centre_radius_m", e, 1e-4, 10.0);
             }
-            if let (Some(r), Some(e)) = (r, e) {
-                if r >= e {
-                    v.issue("contact.pad_radius_m", "must be below pad_centre_radius_m (the pad may not cover the axis)");
-                }
+            if let (Some(r), Some(e)) = (r, e)
+                && r >= e
+            {
+                v.issue(
+                    "contact.pad_radius_m",
+                    "must be below pad_centre_radius_m (the pad may not cover the axis)",
+                );
             }
             for k in ["inner_radius_m", "outer_radius_m"] {
-                let val = if k == "inner_radius_m" { &ct.inner_radius_m } else { &ct.outer_radius_m };
+                let val = if k == "inner_radius_m" {
+                    &ct.inner_radius_m
+                } else {
+                    &ct.outer_radius_m
+                };
                 v.unused(&format!("contact.{k}"), val, shape);
             }
             v.unused("contact.sector_angle_deg", &ct.sector_angle_deg, shape);
@@ -1010,7 +1105,10 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
                 None => v.issue("contact.shape", "shape 'polygon' needs contact.vertices_m"),
                 Some(vs) => {
                     if !(3..=32).contains(&vs.len()) {
-                        v.issue("contact.vertices_m", format!("needs 3 … 32 vertices, got {}", vs.len()));
+                        v.issue(
+                            "contact.vertices_m",
+                            format!("needs 3 … 32 vertices, got {}", vs.len()),
+                        );
                     }
                     for (i, p) in vs.iter().enumerate() {
                         if !(p[0].is_finite() && p[1].is_finite()) {
@@ -1018,19 +1116,29 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
                         }
                     }
                     if vs.len() >= 3 && polygon_contains_axis(vs) {
-                        v.issue("contact.vertices_m", "the pad outline encloses the disc axis (origin)");
+                        v.issue(
+                            "contact.vertices_m",
+                            "the pad outline encloses the disc axis (origin)",
+                        );
                     }
                     if vs.len() >= 3 && polygon_area(vs).abs() < 1e-10 {
                         v.issue("contact.vertices_m", "the pad outline has no area");
                     }
                 }
             }
-            for (k, val) in [("inner_radius_m", &ct.inner_radius_m), ("outer_radius_m", &ct.outer_radius_m)] {
+            for (k, val) in [
+                ("inner_radius_m", &ct.inner_radius_m),
+                ("outer_radius_m", &ct.outer_radius_m),
+            ] {
                 v.unused(&format!("contact.{k}"), val, shape);
             }
             v.unused("contact.sector_angle_deg", &ct.sector_angle_deg, shape);
             v.unused("contact.pad_radius_m", &ct.pad_radius_m, shape);
-            v.unused("contact.pad_centre_radius_m", &ct.pad_centre_radius_m, shape);
+            v.unused(
+                "contact.pad_centre_radius_m",
+                &ct.pad_centre_radius_m,
+                shape,
+            );
             v.unused("contact.half_angle_deg", &ct.half_angle_deg, shape);
         }
     }
@@ -1038,24 +1146,21 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
 
 /// Signed area of a polygon (shoelace), m².
 pub fn polygon_area(vs: &[[f64; 2]]) -> f64 {
-    let n = vs.len();
-    (0..n)
-        .map(|i| {
-            let a = vs[i];
-            let b = vs[(i + 1) % n];
-            a[0] * b[1] - b[0] * a[1]
-        })
+    edges(vs)
+        .map(|(a, b)| a[0] * b[1] - b[0] * a[1])
         .sum::<f64>()
         / 2.0
 }
 
+/// The closed outline's edges (a, b), the last one back to the first vertex.
+pub fn edges(vs: &[[f64; 2]]) -> impl Iterator<Item = ([f64; 2], [f64; 2])> + '_ {
+    vs.iter().copied().zip(vs.iter().copied().cycle().skip(1))
+}
+
 /// Whether the origin lies inside (or on) the polygon, by the winding number.
 pub fn polygon_contains_axis(vs: &[[f64; 2]]) -> bool {
-    let n = vs.len();
     let mut angle = 0.0;
-    for i in 0..n {
-        let a = vs[i];
-        let b = vs[(i + 1) % n];
+    for (a, b) in edges(vs) {
         let cross = a[0] * b[1] - a[1] * b[0];
         let dot = a[0] * b[0] + a[1] * b[1];
         if cross.abs() < 1e-15 && dot <= 0.0 {
@@ -1113,33 +1218,45 @@ impl Columns {
 fn validate_columns(c: &DeviceConfig, v: &mut Validator) {
     let n = c.sensors.len();
     for &(name, _, _, q) in CANONICAL {
-        let Some(m) = c.trace.columns.get(name) else { continue };
+        let Some(m) = c.trace.columns.get(name) else {
+            continue;
+        };
         let key = format!("trace.columns.{name}");
-        if let Some(ch) = name.strip_prefix("force_").and_then(|s| s.chars().next()).and_then(|d| d.to_digit(10)) {
-            if ch as usize > n {
-                v.issue(&key, format!("maps force channel {ch} but only {n} [[sensor]] tables are configured"));
-            }
+        if let Some(ch) = name
+            .strip_prefix("force_")
+            .and_then(|s| s.chars().next())
+            .and_then(|d| d.to_digit(10))
+            && ch as usize > n
+        {
+            v.issue(
+                &key,
+                format!("maps force channel {ch} but only {n} [[sensor]] tables are configured"),
+            );
         }
         if m.column.trim().is_empty() {
             v.issue(&format!("{key}.column"), "must name a header");
         }
         match column_units::conversion(q, &m.unit, m.piston_area_m2) {
             Err(msg) => {
-                let sub = if msg.contains("piston_area_m2") && m.piston_area_m2.is_some() { "piston_area_m2" } else { "unit" };
+                let sub = if msg.contains("piston_area_m2") && m.piston_area_m2.is_some() {
+                    "piston_area_m2"
+                } else {
+                    "unit"
+                };
                 v.issue(&format!("{key}.{sub}"), msg);
             }
             Ok(_) => {
                 // A header that names its own unit must agree with the mapping's unit.
-                if let Some(suffix) = column_units::unit_suffix(q, &m.column) {
-                    if column_units::normalise(suffix) != column_units::normalise(&m.unit) {
-                        v.issue(
-                            &format!("{key}.unit"),
-                            format!(
-                                "column '{}' carries unit '{suffix}' in its name but the mapping says '{}'",
-                                m.column, m.unit
-                            ),
-                        );
-                    }
+                if let Some(suffix) = column_units::unit_suffix(q, &m.column)
+                    && column_units::normalise(suffix) != column_units::normalise(&m.unit)
+                {
+                    v.issue(
+                        &format!("{key}.unit"),
+                        format!(
+                            "column '{}' carries unit '{suffix}' in its name but the mapping says '{}'",
+                            m.column, m.unit
+                        ),
+                    );
                 }
             }
         }
@@ -1167,10 +1284,17 @@ mod tests {
     fn unknown_key_is_located() {
         let src = DEMO.replace("fade_c =", "fade_temp_c =");
         let e = err(&src);
-        let line = src.lines().position(|l| l.starts_with("fade_temp_c")).unwrap() + 1;
+        let line = src
+            .lines()
+            .position(|l| l.starts_with("fade_temp_c"))
+            .unwrap()
+            + 1;
         assert_eq!(e.issues[0].line, Some(line));
         assert_eq!(e.issues[0].column, Some(1));
-        assert!(e.issues[0].message.contains("unknown field `fade_temp_c`"), "{e}");
+        assert!(
+            e.issues[0].message.contains("unknown field `fade_temp_c`"),
+            "{e}"
+        );
         assert_eq!(e.issues[0].key.as_deref(), Some("thermal.fade_temp_c"));
     }
 
@@ -1178,7 +1302,11 @@ mod tests {
     fn validation_issue_is_located_at_the_value() {
         let src = DEMO.replace("static_ratio = 1.25", "static_ratio = 7.0");
         let e = err(&src);
-        let line = src.lines().position(|l| l.starts_with("static_ratio")).unwrap() + 1;
+        let line = src
+            .lines()
+            .position(|l| l.starts_with("static_ratio"))
+            .unwrap()
+            + 1;
         assert_eq!(e.issues.len(), 1, "{e}");
         assert_eq!(e.issues[0].key.as_deref(), Some("friction.static_ratio"));
         assert_eq!(e.issues[0].line, Some(line));
@@ -1189,7 +1317,14 @@ mod tests {
         let src = DEMO.replacen("0.42, 0.41", "0.42, -0.41", 1);
         let e = err(&src);
         let issue = &e.issues[0];
-        assert!(issue.key.as_deref().unwrap().starts_with("friction.mu.values["), "{e}");
+        assert!(
+            issue
+                .key
+                .as_deref()
+                .unwrap()
+                .starts_with("friction.mu.values["),
+            "{e}"
+        );
         let line = src.lines().position(|l| l.contains("-0.41")).unwrap() + 1;
         assert_eq!(issue.line, Some(line));
     }
@@ -1216,13 +1351,16 @@ mod tests {
         let src = DEMO.replace("shape = \"sector\"", "shape = \"button\"");
         let e = err(&src);
         let keys: Vec<_> = e.issues.iter().filter_map(|i| i.key.clone()).collect();
-        assert!(keys.contains(&"contact.inner_radius_m".to_string()), "{keys:?}");
+        assert!(
+            keys.contains(&"contact.inner_radius_m".to_string()),
+            "{keys:?}"
+        );
         assert!(e.to_string().contains("needs contact.pad_radius_m"), "{e}");
     }
 
     #[test]
     fn syntax_error_is_located() {
-        let src = DEMO.replacen("faces = 4", "faces = = 4", 1);
+        let src = DEMO.replacen("faces = 2", "faces = = 2", 1);
         let e = err(&src);
         let line = src.lines().position(|l| l.starts_with("faces")).unwrap() + 1;
         assert_eq!(e.issues[0].line, Some(line));

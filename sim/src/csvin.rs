@@ -47,7 +47,11 @@ impl CsvIn {
         } else {
             let f = File::open(path).map_err(|e| SimError::io(path, e))?;
             let (len, last) = last_byte(path).map_err(|e| SimError::io(path, e))?;
-            (Box::new(BufReader::with_capacity(1 << 16, f)), Some(len), Some(last == Some(b'\n')))
+            (
+                Box::new(BufReader::with_capacity(1 << 16, f)),
+                Some(len),
+                Some(last == Some(b'\n')),
+            )
         };
         let reader = csv::ReaderBuilder::new()
             .comment(Some(b'#'))
@@ -73,7 +77,14 @@ impl CsvIn {
         };
         let h = match me.reader.byte_headers() {
             Ok(h) => h.clone(),
-            Err(e) => return Err(err(&me, e.position().map(|p| p.line()), format!("cannot read the header: {e}")).into()),
+            Err(e) => {
+                return Err(err(
+                    &me,
+                    e.position().map(|p| p.line()),
+                    format!("cannot read the header: {e}"),
+                )
+                .into());
+            }
         };
         if h.is_empty() || (h.len() == 1 && h.get(0).is_some_and(|f| f.is_empty())) {
             return Err(err(&me, None, "empty file: no header line (expected column names such as t_s, force_1_N, omega_in_rad_s)".into()).into());
@@ -162,7 +173,11 @@ impl CsvIn {
                             self.headers.len()
                         )
                     } else {
-                        format!("row has {} fields, the header has {}", self.record.len(), self.headers.len())
+                        format!(
+                            "row has {} fields, the header has {}",
+                            self.record.len(),
+                            self.headers.len()
+                        )
                     };
                     return Err(DataError {
                         file: self.file.clone(),
@@ -228,13 +243,18 @@ impl Row<'_> {
     /// A located [`DataError`] for text that is not a number, or NaN/infinite.
     pub fn f64(&self, col: usize) -> Result<Option<f64>, DataError> {
         let raw = self.record.get(col).unwrap_or(b"");
-        let text = std::str::from_utf8(raw).map_err(|_| self.error(col, "cell is not valid UTF-8".into()))?.trim();
+        let text = std::str::from_utf8(raw)
+            .map_err(|_| self.error(col, "cell is not valid UTF-8".into()))?
+            .trim();
         if text.is_empty() {
             return Ok(None);
         }
         match text.parse::<f64>() {
             Ok(v) if v.is_finite() => Ok(Some(v)),
-            Ok(_) => Err(self.error(col, format!("'{text}' is not a finite number (NaN and infinities are rejected)"))),
+            Ok(_) => Err(self.error(
+                col,
+                format!("'{text}' is not a finite number (NaN and infinities are rejected)"),
+            )),
             Err(_) => Err(self.error(col, format!("cannot read '{text}' as a number"))),
         }
     }
@@ -244,6 +264,7 @@ impl Row<'_> {
     /// # Errors
     /// As [`Row::f64`], and for an empty cell.
     pub fn required_f64(&self, col: usize) -> Result<f64, DataError> {
-        self.f64(col)?.ok_or_else(|| self.error(col, "empty cell where a number is required".into()))
+        self.f64(col)?
+            .ok_or_else(|| self.error(col, "empty cell where a number is required".into()))
     }
 }

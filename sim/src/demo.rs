@@ -29,7 +29,12 @@ use crate::synth;
 pub const DEMO_CONFIG: &str = include_str!("../configs/demo-hoist-brake.toml");
 
 /// The sensor faults the demo injects.
-pub const DEMO_FAULTS: [&str; 4] = ["stuck:2@40..45", "rail_high:3@120..121", "dropout:1@150..152", "offset:2@250..260=30000"];
+pub const DEMO_FAULTS: [&str; 4] = [
+    "stuck:2@40..45",
+    "rail_high:3@120..121",
+    "dropout:1@150..152",
+    "offset:2@250..260=30000",
+];
 
 /// How far the demo's "real" pads sit from the nominal table (invented).
 pub const DEMO_MU_SCALE: f64 = 0.93;
@@ -54,8 +59,13 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     let tables = CoreTables::build(&cfg.config).map_err(|e| SimError::Internal(e.message))?;
 
     let trace = path(dir, "trace.csv");
-    let scenario = Scenario::builtin("hoist").ok_or_else(|| SimError::Internal("hoist scenario".into()))?;
-    let faults = DEMO_FAULTS.iter().map(|f| f.parse()).collect::<Result<Vec<_>, _>>().map_err(SimError::Internal)?;
+    let scenario =
+        Scenario::builtin("hoist").ok_or_else(|| SimError::Internal("hoist scenario".into()))?;
+    let faults = DEMO_FAULTS
+        .iter()
+        .map(|f| f.parse())
+        .collect::<Result<Vec<_>, _>>()
+        .map_err(SimError::Internal)?;
     // Positive and finite, checked above.
     #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
     let rows = (a.duration_s / cfg.config.device.sample_period_s).round() as u64;
@@ -98,23 +108,40 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     let fitted_path = path(dir, "fitted.toml");
     let fitted_text = fit::patched_config(&cfg, &fitted)?;
     write_file(&fitted_path, fitted_text.as_bytes())?;
-    write_file(&path(dir, "coverage.csv"), fit::coverage_csv(&fitted).as_bytes())?;
+    write_file(
+        &path(dir, "coverage.csv"),
+        fit::coverage_csv(&fitted).as_bytes(),
+    )?;
     let cfg2 = LoadedConfig::from_str(&fitted_text, &fitted_path)?;
     let tables2 = CoreTables::build(&cfg2.config).map_err(|e| SimError::Internal(e.message))?;
     let estimate2 = path(dir, "estimate-fitted.csv");
     let mut dec2 = Decimator::<PlotPoint>::new(PLOT_POINTS);
-    let rep2 = replay::replay_file(&cfg2, &tables2, &trace, &estimate2, &ReplayOptions::default(), Some(&mut dec2))?;
+    let rep2 = replay::replay_file(
+        &cfg2,
+        &tables2,
+        &trace,
+        &estimate2,
+        &ReplayOptions::default(),
+        Some(&mut dec2),
+    )?;
     let after = compare::compare_file(&estimate2, Some(&cfg2.config), None)?;
 
     let mut plots = Vec::new();
     if !a.no_plots {
         let name = &cfg.config.device.name;
-        for (f, d, what) in [("estimate.svg", &dec, "nominal table"), ("estimate.png", &dec, "nominal table"), ("estimate-fitted.svg", &dec2, "fitted table")] {
+        for (f, d, what) in [
+            ("estimate.svg", &dec, "nominal table"),
+            ("estimate.png", &dec, "nominal table"),
+            ("estimate-fitted.svg", &dec2, "fitted table"),
+        ] {
             let p = path(dir, f);
             plot::time_series_file(&p, d.points(), &format!("{name} — {what}"))?;
             plots.push(p);
         }
-        let (nt, nv) = (cfg.config.friction.mu.temperature_c.len(), cfg.config.friction.mu.slip_speed_rad_s.len());
+        let (nt, nv) = (
+            cfg.config.friction.mu.temperature_c.len(),
+            cfg.config.friction.mu.slip_speed_rad_s.len(),
+        );
         for f in ["mu-surface.svg", "mu-surface.png"] {
             let p = path(dir, f);
             plot::surface_file(&p, &fitted, nt, nv)?;
@@ -138,11 +165,32 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         ((1.0 - DEMO_MU_SCALE) * 100.0).round(),
         DEMO_FAULTS.join(", ")
     ));
-    human.push_str(&format!("  max lining temperature {:.0} °C, max |torque| {:.0} N·m\n", syn.max_true_temp_c, rep.tally.max_abs_torque_nm));
-    let states: Vec<String> = rep.tally.states.iter().map(|(k, v)| format!("{k} {v}")).collect();
+    human.push_str(&format!(
+        "  max lining temperature {:.0} °C, max |torque| {:.0} N·m\n",
+        syn.max_true_temp_c, rep.tally.max_abs_torque_nm
+    ));
+    let states: Vec<String> = rep
+        .tally
+        .states
+        .iter()
+        .map(|(k, v)| format!("{k} {v}"))
+        .collect();
     human.push_str(&format!("  states: {}\n", states.join(", ")));
-    let fl: Vec<String> = rep.tally.flags.iter().filter(|(k, _)| k.as_str() != "adaptation_frozen").map(|(k, v)| format!("{k} {v}")).collect();
-    human.push_str(&format!("  flagged rows: {}\n", if fl.is_empty() { "none".into() } else { fl.join(", ") }));
+    let fl: Vec<String> = rep
+        .tally
+        .flags
+        .iter()
+        .filter(|(k, _)| k.as_str() != "adaptation_frozen")
+        .map(|(k, v)| format!("{k} {v}"))
+        .collect();
+    human.push_str(&format!(
+        "  flagged rows: {}\n",
+        if fl.is_empty() {
+            "none".into()
+        } else {
+            fl.join(", ")
+        }
+    ));
     human.push_str(&format!("  nominal table: {}\n", line(&before)));
     human.push_str(&format!("  fitted table:  {}\n", line(&after)));
     if before.holding.n > 0 {
@@ -158,7 +206,11 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         fitted.cells.len(),
         if fitted.unreached.is_empty() { "none".into() } else { fitted.unreached.len().to_string() }
     ));
-    human.push_str(&format!("  replay throughput: {:.0} rows/s ({})\n", rep.rows_per_s, replay::ESTIMATOR_NAME));
+    human.push_str(&format!(
+        "  replay throughput: {:.0} rows/s ({})\n",
+        rep.rows_per_s,
+        replay::ESTIMATOR_NAME
+    ));
     human.push_str(&format!("  files in {}: demo-hoist-brake.toml, trace.csv, estimate.csv, fitted.toml, coverage.csv, estimate-fitted.csv, summary.json", dir.display()));
     for p in &plots {
         if let Some(n) = Path::new(p).file_name() {
@@ -180,7 +232,12 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         "plots": plots,
         "caution": CAUTION,
     });
-    write_file(&path(dir, "summary.json"), serde_json::to_string_pretty(&js).unwrap_or_default().as_bytes())?;
+    write_file(
+        &path(dir, "summary.json"),
+        serde_json::to_string_pretty(&js)
+            .unwrap_or_default()
+            .as_bytes(),
+    )?;
     Ok(Outcome {
         human,
         json: js,

@@ -38,9 +38,18 @@ pub struct EstimateWriter {
     buf: Vec<u8>,
 }
 
+/// Append the shortest decimal that reads back to exactly `v` (Ryū [pub: Adams, PLDI 2018]).
+pub fn push_f64(buf: &mut Vec<u8>, v: f64) {
+    if v.is_finite() {
+        buf.extend_from_slice(ryu::Buffer::new().format_finite(v).as_bytes());
+    } else {
+        buf.extend_from_slice(b"NaN");
+    }
+}
+
 fn opt(buf: &mut Vec<u8>, v: Option<f64>) {
     if let Some(v) = v {
-        let _ = write!(buf, "{v}");
+        push_f64(buf, v);
     }
 }
 
@@ -69,12 +78,12 @@ impl EstimateWriter {
     /// [`SimError::Io`].
     pub fn write(&mut self, r: &EstimateRow) -> Result<(), SimError> {
         let b = &mut self.buf;
-        // Writing into a Vec cannot fail.
-        let _ = write!(b, "{},{},", r.line, r.t_s);
+        b.extend_from_slice(itoa::Buffer::new().format(r.line).as_bytes());
+        b.push(b',');
+        push_f64(b, r.t_s);
+        b.push(b',');
         opt(b, r.torque_nm);
-        let _ = write!(
-            b,
-            ",{},{},{},{},{},{},{},{},{},{},{},",
+        for v in [
             r.capacity_nm,
             r.uncertainty_nm,
             r.mu,
@@ -84,9 +93,15 @@ impl EstimateWriter {
             r.lining_temp_c,
             r.bedding,
             r.wear_m,
-            r.state.name(),
-            r.flags
-        );
+        ] {
+            b.push(b',');
+            push_f64(b, v);
+        }
+        b.push(b',');
+        b.extend_from_slice(r.state.name().as_bytes());
+        b.push(b',');
+        b.extend_from_slice(itoa::Buffer::new().format(r.flags).as_bytes());
+        b.push(b',');
         opt(b, r.torque_ref_nm);
         b.push(b'\n');
         if b.len() >= 1 << 16 {
@@ -159,13 +174,22 @@ impl EstimateReader {
         let g = |i: usize| row.required_f64(c.get(i).copied().unwrap_or(0));
         let o = |i: usize| row.f64(c.get(i).copied().unwrap_or(0));
         let state_col = c.get(12).copied().unwrap_or(0);
-        let state = State::parse(row.text(state_col))
-            .ok_or_else(|| row.error(state_col, format!("unknown state '{}'", row.text(state_col))))?;
+        let state = State::parse(row.text(state_col)).ok_or_else(|| {
+            row.error(
+                state_col,
+                format!("unknown state '{}'", row.text(state_col)),
+            )
+        })?;
         let flags_col = c.get(13).copied().unwrap_or(0);
-        let flags = row
-            .text(flags_col)
-            .parse::<u32>()
-            .map_err(|_| row.error(flags_col, format!("flags must be an unsigned integer, got '{}'", row.text(flags_col))))?;
+        let flags = row.text(flags_col).parse::<u32>().map_err(|_| {
+            row.error(
+                flags_col,
+                format!(
+                    "flags must be an unsigned integer, got '{}'",
+                    row.text(flags_col)
+                ),
+            )
+        })?;
         let line = g(0)?;
         Ok(Some(EstimateRow {
             // Line numbers are whole and far below 2⁵³.

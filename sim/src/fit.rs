@@ -101,7 +101,9 @@ pub struct FitReport {
 impl FitReport {
     /// The fitted values as rows per temperature.
     pub fn fitted_rows(&self, nt: usize, nv: usize) -> Vec<Vec<f64>> {
-        (0..nt).map(|i| (0..nv).map(|j| self.cells[i * nv + j].fitted).collect()).collect()
+        (0..nt)
+            .map(|i| (0..nv).map(|j| self.cells[i * nv + j].fitted).collect())
+            .collect()
     }
 }
 
@@ -168,9 +170,19 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
 /// # Errors
 /// I/O and located data errors; a trace without a reference-torque column; a fitted μ outside
 /// 0 … 1.5 (the trace and config disagree).
-pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &FitOptions, progress: Option<&ProgressBar>) -> Result<FitReport, SimError> {
+pub fn fit_trace(
+    cfg: &LoadedConfig,
+    tables: &CoreTables,
+    trace: &str,
+    opts: &FitOptions,
+    progress: Option<&ProgressBar>,
+) -> Result<FitReport, SimError> {
     let c = &cfg.config;
-    let policy = if opts.skip_bad_rows { RowPolicy::Skip } else { RowPolicy::Stop };
+    let policy = if opts.skip_bad_rows {
+        RowPolicy::Skip
+    } else {
+        RowPolicy::Stop
+    };
     let mut reader = TraceReader::open(trace, c, policy, true)?;
     let ts = &c.friction.mu.temperature_c;
     let vs = &c.friction.mu.slip_speed_rad_s;
@@ -183,8 +195,12 @@ pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &Fi
     let (mut used, mut outside, mut excluded, mut samples) = (0u64, 0u64, 0u64, 0u64);
     let faces = f64::from(c.contact.faces);
     let min_force = opts.min_force_n.unwrap_or(0.1 * c.limits.max_clamp_force_n);
-    let (drag0, drag1) = (c.friction.drag_torque_nm, c.friction.drag_viscous_nm_per_rad_s);
-    let bad = flags::SENSOR | flags::FORCE_FALLBACK | flags::NO_FORCE | flags::SATURATION | flags::RANGE;
+    let (drag0, drag1) = (
+        c.friction.drag_torque_nm,
+        c.friction.drag_viscous_nm_per_rad_s,
+    );
+    let bad =
+        flags::SENSOR | flags::FORCE_FALLBACK | flags::NO_FORCE | flags::SATURATION | flags::RANGE;
     let mut est = seam::new_estimator(c, tables);
     run_stream(&mut reader, est.as_mut(), progress, |_, row| {
         samples += 1;
@@ -197,7 +213,9 @@ pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &Fi
             return Ok(());
         }
         let v = row.slip_speed_rad_s;
-        let (Some((i0, i1, fx)), Some((j0, j1, fy))) = (bracket(ts, row.lining_temp_c), bracket(vs, v.abs())) else {
+        let (Some((i0, i1, fx)), Some((j0, j1, fy))) =
+            (bracket(ts, row.lining_temp_c), bracket(vs, v.abs()))
+        else {
             outside += 1;
             return Ok(());
         };
@@ -246,7 +264,9 @@ pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &Fi
                 a[ri * n + rj] = m[p * k + q] + if ri == rj { ridge } else { 0.0 };
             }
         }
-        let (x, diag) = cholesky_solve(&a, &b, n).ok_or_else(|| SimError::Internal("fit: normal equations not positive definite".into()))?;
+        let (x, diag) = cholesky_solve(&a, &b, n).ok_or_else(|| {
+            SimError::Internal("fit: normal equations not positive definite".into())
+        })?;
         for (ri, &p) in reached.iter().enumerate() {
             fitted[p] = x[ri];
         }
@@ -262,12 +282,12 @@ pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &Fi
     let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
     let mut cells = Vec::with_capacity(k);
     let mut unreached = Vec::new();
-    for i in 0..nt {
-        for j in 0..nv {
+    for (i, &t) in ts.iter().enumerate() {
+        for (j, &v) in vs.iter().enumerate() {
             let p = i * nv + j;
             let is_reached = cover[p] >= opts.min_coverage;
             if !is_reached {
-                unreached.push(format!("({} °C, {} rad/s): coverage {:.1}", ts[i], vs[j], cover[p]));
+                unreached.push(format!("({} °C, {} rad/s): coverage {:.1}", t, v, cover[p]));
             } else if !(fitted[p] > 0.0 && fitted[p] < 1.5) {
                 return Err(DataError {
                     file: trace.to_string(),
@@ -276,7 +296,7 @@ pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &Fi
                     header: None,
                     message: format!(
                         "fitted μ at ({} °C, {} rad/s) is {:.4}, outside 0 … 1.5: the trace and the config disagree (force calibration, units, sign of the reference torque?)",
-                        ts[i], vs[j], fitted[p]
+                        t, v, fitted[p]
                     ),
                 }
                 .into());
@@ -284,8 +304,8 @@ pub fn fit_trace(cfg: &LoadedConfig, tables: &CoreTables, trace: &str, opts: &Fi
             cells.push(CellReport {
                 i,
                 j,
-                temperature_c: ts[i],
-                slip_speed_rad_s: vs[j],
+                temperature_c: t,
+                slip_speed_rad_s: v,
                 coverage: cover[p],
                 reached: is_reached,
                 prior: prior[p],
@@ -329,28 +349,50 @@ fn rss_of(m: &[f64], b: &[f64], yy: f64, mu: &[f64], k: usize) -> f64 {
 /// # Errors
 /// [`SimError::Internal`] when the values cannot be found or the patched text does not load.
 pub fn patched_config(cfg: &LoadedConfig, r: &FitReport) -> Result<String, SimError> {
-    let span = value_span(&cfg.source, &KeyPath::parse("friction.mu.values"))
-        .ok_or_else(|| SimError::Internal("friction.mu.values not found in the config text".into()))?;
+    let span = value_span(&cfg.source, &KeyPath::parse("friction.mu.values")).ok_or_else(|| {
+        SimError::Internal("friction.mu.values not found in the config text".into())
+    })?;
     let mu = &cfg.config.friction.mu;
     let rows = r.fitted_rows(mu.temperature_c.len(), mu.slip_speed_rad_s.len());
     let mut s = String::from("[\n");
-    let _ = writeln!(s, "  # fitted by `clampwise fit` from {}; entries not reached keep the prior value", r.trace);
+    let _ = writeln!(
+        s,
+        "  # fitted by `clampwise fit` from {}; entries not reached keep the prior value",
+        r.trace
+    );
     for (i, row) in rows.iter().enumerate() {
         let cells: Vec<String> = row.iter().map(|v| format!("{v:.5}")).collect();
-        let missing: Vec<String> = r.cells.iter().filter(|c| c.i == i && !c.reached).map(|c| format!("{}", c.slip_speed_rad_s)).collect();
-        let note = if missing.is_empty() { String::new() } else { format!("; prior kept at {} rad/s", missing.join(", ")) };
-        let _ = writeln!(s, "  [{}],   # {} °C{note}", cells.join(", "), mu.temperature_c[i]);
+        let missing: Vec<String> = r
+            .cells
+            .iter()
+            .filter(|c| c.i == i && !c.reached)
+            .map(|c| format!("{}", c.slip_speed_rad_s))
+            .collect();
+        let note = if missing.is_empty() {
+            String::new()
+        } else {
+            format!("; prior kept at {} rad/s", missing.join(", "))
+        };
+        let _ = writeln!(
+            s,
+            "  [{}],   # {} °C{note}",
+            cells.join(", "),
+            mu.temperature_c[i]
+        );
     }
     s.push(']');
     let mut text = cfg.source.clone();
     text.replace_range(span, &s);
-    LoadedConfig::from_str(&text, &cfg.file).map_err(|e| SimError::Internal(format!("patched config does not load: {e}")))?;
+    LoadedConfig::from_str(&text, &cfg.file)
+        .map_err(|e| SimError::Internal(format!("patched config does not load: {e}")))?;
     Ok(text)
 }
 
 /// The coverage map as CSV.
 pub fn coverage_csv(r: &FitReport) -> String {
-    let mut s = String::from("temperature_C,slip_speed_rad_s,coverage,reached,prior_mu,fitted_mu,std_error\n");
+    let mut s = String::from(
+        "temperature_C,slip_speed_rad_s,coverage,reached,prior_mu,fitted_mu,std_error\n",
+    );
     for c in &r.cells {
         let _ = writeln!(
             s,
@@ -373,8 +415,16 @@ pub fn human(r: &FitReport, nv: usize) -> String {
         "fit {}: {} samples, {} used, {} excluded (holding, released, faults, low force), {} outside the table\n",
         r.trace, r.samples, r.used, r.excluded, r.outside_table
     );
-    let _ = writeln!(o, "  RMS residual: {:.2} N·m with the config's table → {:.2} N·m fitted", r.rms_before_nm, r.rms_after_nm);
-    let _ = writeln!(o, "  coverage map (sample-equivalents; '.' = below {} and kept at the prior):", r.min_coverage);
+    let _ = writeln!(
+        o,
+        "  RMS residual: {:.2} N·m with the config's table → {:.2} N·m fitted",
+        r.rms_before_nm, r.rms_after_nm
+    );
+    let _ = writeln!(
+        o,
+        "  coverage map (sample-equivalents; '.' = below {} and kept at the prior):",
+        r.min_coverage
+    );
     let mut header = String::from("      T\\v ");
     for c in r.cells.iter().take(nv) {
         let _ = write!(header, "{:>14}", format!("{} rad/s", c.slip_speed_rad_s));
@@ -395,7 +445,11 @@ pub fn human(r: &FitReport, nv: usize) -> String {
     if r.unreached.is_empty() {
         let _ = writeln!(o, "  every entry was reached");
     } else {
-        let _ = writeln!(o, "  NOT REACHED ({} entries, prior kept, not extrapolated):", r.unreached.len());
+        let _ = writeln!(
+            o,
+            "  NOT REACHED ({} entries, prior kept, not extrapolated):",
+            r.unreached.len()
+        );
         for u in &r.unreached {
             let _ = writeln!(o, "    {u}");
         }

@@ -3,11 +3,11 @@
 
 use std::process::ExitCode;
 
-use clap::Parser;
 use clampwise_sim::cli::{Cli, Command};
 use clampwise_sim::commands::{self, Outcome};
 use clampwise_sim::demo;
 use clampwise_sim::error::{EXIT_OK, EXIT_USAGE, SimError};
+use clap::Parser;
 
 fn exit(code: i32) -> ExitCode {
     ExitCode::from(u8::try_from(code).unwrap_or(1))

@@ -12,7 +12,11 @@ use std::path::{Path, PathBuf};
 use crate::error::SimError;
 
 enum Sink {
-    File { tmp: PathBuf, dest: PathBuf, w: BufWriter<File> },
+    File {
+        tmp: PathBuf,
+        dest: PathBuf,
+        w: BufWriter<File>,
+    },
     Stdout(BufWriter<std::io::Stdout>),
 }
 

@@ -20,7 +20,8 @@ use crate::trace::{RowPolicy, SkipReport, TraceReader};
 pub const CAUTION: &str = "CAUTION: this is an estimate, validated only as far as its tests; it is not a certified safety function. Validate on the bench for each lining and geometry, and follow the applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849 or the machine's own standard), local codes and licensed engineering practice.";
 
 /// Name of the estimator in use, written into outputs so a reader knows what produced them.
-pub const ESTIMATOR_NAME: &str = "tables-only (TEMPORARY stand-in until clampwise_core::estimator lands)";
+pub const ESTIMATOR_NAME: &str =
+    "tables-only (TEMPORARY stand-in until clampwise_core::estimator lands)";
 
 /// How many points a plot keeps, whatever the trace length.
 pub const PLOT_POINTS: usize = 4000;
@@ -162,10 +163,10 @@ pub fn run_stream(
         let row = est.step(&s);
         sink(&s, &row)?;
         n += 1;
-        if n % 8192 == 0 {
-            if let Some(pb) = progress {
-                pb.set_position(reader.progress().1);
-            }
+        if n.is_multiple_of(8192)
+            && let Some(pb) = progress
+        {
+            pb.set_position(reader.progress().1);
         }
     }
     if let Some(pb) = progress {
@@ -188,7 +189,11 @@ pub fn replay_file(
     mut plot: Option<&mut Decimator<PlotPoint>>,
 ) -> Result<ReplaySummary, SimError> {
     let start = Instant::now();
-    let policy = if opts.skip_bad_rows { RowPolicy::Skip } else { RowPolicy::Stop };
+    let policy = if opts.skip_bad_rows {
+        RowPolicy::Skip
+    } else {
+        RowPolicy::Stop
+    };
     let mut reader = TraceReader::open(input, &cfg.config, policy, false)?;
     let comments = vec![
         format!("clampwise estimate of {input} with config {}", cfg.file),
@@ -199,20 +204,28 @@ pub fn replay_file(
     let mut writer = EstimateWriter::create(output, &comments)?;
     let mut est = seam::new_estimator(&cfg.config, tables);
     let mut tally = Tally::default();
-    let result = run_stream(&mut reader, est.as_mut(), opts.progress.as_ref(), |_, row| {
-        tally.add(row);
-        if let Some(d) = plot.as_deref_mut() {
-            d.push(PlotPoint::from(row));
-        }
-        writer.write(row)
-    });
+    let result = run_stream(
+        &mut reader,
+        est.as_mut(),
+        opts.progress.as_ref(),
+        |_, row| {
+            tally.add(row);
+            if let Some(d) = plot.as_deref_mut() {
+                d.push(PlotPoint::from(row));
+            }
+            writer.write(row)
+        },
+    );
     let time = match result {
         Ok(t) => t,
         Err(e) => {
             let left = writer.abandon(&e.to_string());
             return Err(match (e, left) {
                 (SimError::Data(mut d), Some(p)) => {
-                    d.message.push_str(&format!(" [output not written; partial rows left in {}]", p.display()));
+                    d.message.push_str(&format!(
+                        " [output not written; partial rows left in {}]",
+                        p.display()
+                    ));
                     SimError::Data(d)
                 }
                 (e, _) => e,
@@ -247,12 +260,18 @@ pub fn rows_per_s(rows: u64, elapsed_s: f64) -> f64 {
 pub fn human(s: &ReplaySummary) -> String {
     let mut o = String::new();
     o.push_str(&format!("replayed {} → {}\n", s.trace, s.output));
-    o.push_str(&format!("  rows: {} read, {} replayed, {} skipped\n", s.rows_read, s.tally.rows, s.skipped.count));
+    o.push_str(&format!(
+        "  rows: {} read, {} replayed, {} skipped\n",
+        s.rows_read, s.tally.rows, s.skipped.count
+    ));
     for line in &s.skipped.first {
         o.push_str(&format!("    skipped: {line}\n"));
     }
     if s.skipped.count > s.skipped.first.len() as u64 {
-        o.push_str(&format!("    … and {} more skipped rows\n", s.skipped.count - s.skipped.first.len() as u64));
+        o.push_str(&format!(
+            "    … and {} more skipped rows\n",
+            s.skipped.count - s.skipped.first.len() as u64
+        ));
     }
     let t = &s.time;
     o.push_str(&format!(
@@ -270,16 +289,29 @@ pub fn human(s: &ReplaySummary) -> String {
     if let Some(l) = s.unterminated_last_line {
         o.push_str(&format!("  note: last line {l} has no line terminator (its values were used; check the file was not cut)\n"));
     }
-    let states: Vec<String> = s.tally.states.iter().map(|(k, v)| format!("{k} {v}")).collect();
+    let states: Vec<String> = s
+        .tally
+        .states
+        .iter()
+        .map(|(k, v)| format!("{k} {v}"))
+        .collect();
     o.push_str(&format!("  states: {}\n", states.join(", ")));
     if !s.tally.flags.is_empty() {
-        let f: Vec<String> = s.tally.flags.iter().map(|(k, v)| format!("{k} {v}")).collect();
+        let f: Vec<String> = s
+            .tally
+            .flags
+            .iter()
+            .map(|(k, v)| format!("{k} {v}"))
+            .collect();
         o.push_str(&format!("  flagged rows: {}\n", f.join(", ")));
     }
     o.push_str(&format!(
         "  max |torque| {:.1} N·m, max capacity {:.1} N·m, max clamp force {:.0} N, max lining temperature {:.1} °C\n",
         s.tally.max_abs_torque_nm, s.tally.max_capacity_nm, s.tally.max_clamp_force_n, s.tally.max_lining_temp_c
     ));
-    o.push_str(&format!("  {:.2} s, {:.0} rows/s; estimator: {}\n", s.elapsed_s, s.rows_per_s, s.estimator));
+    o.push_str(&format!(
+        "  {:.2} s, {:.0} rows/s; estimator: {}\n",
+        s.elapsed_s, s.rows_per_s, s.estimator
+    ));
     o
 }

@@ -93,7 +93,12 @@ impl State {
     }
 
     /// All states, in report order.
-    pub const ALL: [State; 4] = [Self::Slipping, Self::Holding, Self::Released, Self::Unavailable];
+    pub const ALL: [State; 4] = [
+        Self::Slipping,
+        Self::Holding,
+        Self::Released,
+        Self::Unavailable,
+    ];
 }
 
 /// Flag bits of [`EstimateRow::flags`].
@@ -177,7 +182,10 @@ pub trait SampleEstimator {
 
 /// Build the estimator every subcommand uses. **Swap point**: returns the temporary
 /// [`TablesOnlyEstimator`] until the core's `Estimator` lands.
-pub fn new_estimator(config: &DeviceConfig, tables: &CoreTables) -> Box<dyn SampleEstimator + Send> {
+pub fn new_estimator(
+    config: &DeviceConfig,
+    tables: &CoreTables,
+) -> Box<dyn SampleEstimator + Send> {
     Box::new(TablesOnlyEstimator::new(config, tables))
 }
 
@@ -301,7 +309,11 @@ impl TablesOnlyEstimator {
             })
             .collect();
         let f = &c.friction;
-        let force_tol = c.sensors.iter().map(|s| s.tolerance_ratio).fold(0.0, f64::max);
+        let force_tol = c
+            .sensors
+            .iter()
+            .map(|s| s.tolerance_ratio)
+            .fold(0.0, f64::max);
         Self {
             tables: tables.clone(),
             cal,
@@ -372,12 +384,23 @@ impl TablesOnlyEstimator {
             let fb = match (self.fallback, s.command) {
                 (Some((g_q8, off)), Some(cmd)) => {
                     let cmd_q16 = i128::from(sat::<fixed::types::I16F16>(cmd).to_bits());
-                    let (bits, _) = narrow_i32(shr_round(cmd_q16 * i128::from(g_q8), 16) + i128::from(off.to_bits()));
+                    let (bits, _) = narrow_i32(
+                        shr_round(cmd_q16 * i128::from(g_q8), 16) + i128::from(off.to_bits()),
+                    );
                     Some(Newtons::from_bits(bits))
                 }
                 _ => None,
             };
-            return (fb, fb.is_some(), flags | if fb.is_some() { flags::FORCE_FALLBACK } else { flags::NO_FORCE });
+            return (
+                fb,
+                fb.is_some(),
+                flags
+                    | if fb.is_some() {
+                        flags::FORCE_FALLBACK
+                    } else {
+                        flags::NO_FORCE
+                    },
+            );
         }
         used.sort_unstable();
         let sum: i64 = used.iter().map(|f| i64::from(f.to_bits())).sum();
@@ -395,19 +418,30 @@ impl TablesOnlyEstimator {
                 }
             }
         };
-        (Some(Newtons::from_bits(i32::try_from(bits).unwrap_or(0))), false, flags)
+        (
+            Some(Newtons::from_bits(i32::try_from(bits).unwrap_or(0))),
+            false,
+            flags,
+        )
     }
 
     /// N·μ·F·r_e in N·m bits (Q12), with the saturation flag.
     fn torque_bits(&self, mu: Ratio, f: Newtons, r: Metres) -> (i32, bool) {
         // Q30 · Q8 · Q24 = Q62 → Q12: shift by 50. |μ| < 2, |F| < 2²³, |r| < 2⁷: fits i128.
-        let p = i128::from(mu.to_bits()) * i128::from(f.to_bits()) * i128::from(r.to_bits()) * self.faces;
+        let p = i128::from(mu.to_bits())
+            * i128::from(f.to_bits())
+            * i128::from(r.to_bits())
+            * self.faces;
         narrow_i32(shr_round(p, 50))
     }
 
     fn drag_bits(&self, v_abs: RadPerSec) -> i128 {
         // Q12 + Q12·Q16 → Q12.
-        i128::from(self.drag.to_bits()) + shr_round(i128::from(self.drag_viscous_q12) * i128::from(v_abs.to_bits()), 16)
+        i128::from(self.drag.to_bits())
+            + shr_round(
+                i128::from(self.drag_viscous_q12) * i128::from(v_abs.to_bits()),
+                16,
+            )
     }
 }
 
@@ -416,13 +450,21 @@ impl SampleEstimator for TablesOnlyEstimator {
         // Boundary conversion f64 → fixed (the core's `Inputs` are fixed-point); from here on
         // integer arithmetic only.
         let w_in: RadPerSec = sat(s.omega_in_rad_s);
-        let w_out: RadPerSec = if self.brake { RadPerSec::ZERO } else { sat(s.omega_out_rad_s) };
+        let w_out: RadPerSec = if self.brake {
+            RadPerSec::ZERO
+        } else {
+            sat(s.omega_out_rad_s)
+        };
         let (temp, measured) = match s.temp_c {
             Some(t) => (sat::<Celsius>(t), true),
             None => (s.ambient_c.map_or(self.ambient, sat), false),
         };
 
-        let mut fl = if measured { 0 } else { flags::TEMPERATURE_ASSUMED };
+        let mut fl = if measured {
+            0
+        } else {
+            flags::TEMPERATURE_ASSUMED
+        };
         if self.adaptation_frozen {
             fl |= flags::ADAPTATION_FROZEN;
         }
@@ -466,9 +508,19 @@ impl SampleEstimator for TablesOnlyEstimator {
         }
         let sign: i128 = if v.is_negative() { 1 } else { -1 };
         // Hysteresis: leave holding above stick + h, enter holding below stick.
-        self.holding = if self.holding { v_abs <= self.release } else { v_abs < self.stick };
+        self.holding = if self.holding {
+            v_abs <= self.release
+        } else {
+            v_abs < self.stick
+        };
         let (kinetic, sat_k) = self.torque_bits(mu, f, r);
-        let mu_s = Ratio::from_bits(narrow_i32(shr_round(i128::from(mu.to_bits()) * i128::from(self.static_ratio.to_bits()), 30)).0);
+        let mu_s = Ratio::from_bits(
+            narrow_i32(shr_round(
+                i128::from(mu.to_bits()) * i128::from(self.static_ratio.to_bits()),
+                30,
+            ))
+            .0,
+        );
         let (capacity, sat_s) = self.torque_bits(mu_s, f, r);
         let tol = {
             let (tm, tf, tr, ta) = self.tol_mu_f;
@@ -483,7 +535,8 @@ impl SampleEstimator for TablesOnlyEstimator {
             ..base
         };
         if f < self.touch {
-            let (drag, _) = narrow_i32(sign * self.drag_bits(v_abs) * i128::from(v_abs != RadPerSec::ZERO));
+            let (drag, _) =
+                narrow_i32(sign * self.drag_bits(v_abs) * i128::from(v_abs != RadPerSec::ZERO));
             row.state = State::Released;
             row.capacity_nm = 0.0;
             row.torque_nm = Some(NewtonMetres::from_bits(drag).to_num());
@@ -510,7 +563,8 @@ impl SampleEstimator for TablesOnlyEstimator {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    // Bit-exact comparisons are the point here (sign symmetry, breakpoints).
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing, clippy::float_cmp)]
     use super::*;
     use crate::config::LoadedConfig;
     use approx::assert_relative_eq;
@@ -525,7 +579,12 @@ mod tests {
 
     fn sample(f_n: f64, w: f64, t: f64) -> TraceSample {
         TraceSample {
-            force: [Channel::Newtons(f_n), Channel::Newtons(f_n), Channel::Newtons(f_n), Channel::Absent],
+            force: [
+                Channel::Newtons(f_n),
+                Channel::Newtons(f_n),
+                Channel::Newtons(f_n),
+                Channel::Absent,
+            ],
             force_valid: [true; 4],
             omega_in_rad_s: w,
             temp_c: Some(t),
@@ -541,12 +600,17 @@ mod tests {
         let (c, t) = demo();
         let mut e = TablesOnlyEstimator::new(&c, &t);
         let row = e.step(&sample(40_000.0, 2.0, 200.0));
-        let r_up = 2.0 / 3.0 * (0.68f64.powi(3) - 0.52f64.powi(3)) / (0.68f64.powi(2) - 0.52f64.powi(2));
+        let r_up =
+            2.0 / 3.0 * (0.68f64.powi(3) - 0.52f64.powi(3)) / (0.68f64.powi(2) - 0.52f64.powi(2));
         let expected = -2.0 * 0.40 * 40_000.0 * r_up;
         assert_eq!(row.state, State::Slipping);
         // Resolution: force rounds to counts of 0.01 N, μ and r to their LSBs; torque LSB 0.24 mN·m.
         assert_relative_eq!(row.torque_nm.unwrap(), expected, max_relative = 1e-6);
-        assert_relative_eq!(row.uncertainty_nm, expected.abs() * (0.20 + 0.02 + 0.01), max_relative = 1e-6);
+        assert_relative_eq!(
+            row.uncertainty_nm,
+            expected.abs() * (0.20 + 0.02 + 0.01),
+            max_relative = 1e-6
+        );
     }
 
     #[test]
@@ -557,7 +621,11 @@ mod tests {
         assert_eq!(row.state, State::Holding);
         assert!(row.torque_nm.is_none());
         let r_up = t.radii_m.0;
-        assert_relative_eq!(row.capacity_nm, 2.0 * 0.42 * 1.25 * 40_000.0 * r_up, max_relative = 1e-6);
+        assert_relative_eq!(
+            row.capacity_nm,
+            2.0 * 0.42 * 1.25 * 40_000.0 * r_up,
+            max_relative = 1e-6
+        );
     }
 
     #[test]
@@ -570,7 +638,10 @@ mod tests {
             .map(|&w| e.step(&sample(40_000.0, w, 20.0)).state)
             .collect();
         use State::*;
-        assert_eq!(states, [Holding, Holding, Slipping, Slipping, Holding, Holding]);
+        assert_eq!(
+            states,
+            [Holding, Holding, Slipping, Slipping, Holding, Holding]
+        );
     }
 
     #[test]

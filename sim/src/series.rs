@@ -26,7 +26,7 @@ impl<T> Decimator<T> {
 
     /// Offer the next point.
     pub fn push(&mut self, p: T) {
-        if self.seen % self.stride == 0 {
+        if self.seen.is_multiple_of(self.stride) {
             if self.points.len() >= self.capacity {
                 let mut keep = false;
                 self.points.retain(|_| {
@@ -34,7 +34,7 @@ impl<T> Decimator<T> {
                     keep
                 });
                 self.stride = self.stride.saturating_mul(2);
-                if self.seen % self.stride == 0 {
+                if self.seen.is_multiple_of(self.stride) {
                     self.points.push(p);
                 }
             } else {
@@ -57,6 +57,7 @@ impl<T> Decimator<T> {
 
 #[cfg(test)]
 mod tests {
+    #![allow(clippy::indexing_slicing)]
     use super::*;
 
     #[test]

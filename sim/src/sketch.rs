@@ -72,7 +72,11 @@ impl QuantileSketch {
             return None;
         }
         // Ranks are below 2⁵³ for any practical trace.
-        #[allow(clippy::cast_precision_loss, clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        #[allow(
+            clippy::cast_precision_loss,
+            clippy::cast_possible_truncation,
+            clippy::cast_sign_loss
+        )]
         let rank = (q.clamp(0.0, 1.0) * (self.n - 1) as f64).floor() as u64;
         let mut seen = 0u64;
         for (k, &c) in self.counts.iter().enumerate() {
@@ -91,7 +95,13 @@ impl QuantileSketch {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used)]
+    #![allow(
+        clippy::unwrap_used,
+        clippy::indexing_slicing,
+        clippy::cast_possible_truncation,
+        clippy::cast_sign_loss,
+        clippy::cast_precision_loss
+    )]
     use super::*;
 
     #[test]
@@ -105,7 +115,10 @@ mod tests {
         for q in [0.0, 0.5, 0.95, 0.99, 1.0] {
             let exact = xs[(q * (xs.len() - 1) as f64).floor() as usize];
             let got = s.quantile(q).unwrap();
-            assert!((got - exact).abs() <= RELATIVE_ACCURACY * exact * 1.0001, "q={q}: {got} vs {exact}");
+            assert!(
+                (got - exact).abs() <= RELATIVE_ACCURACY * exact * 1.0001,
+                "q={q}: {got} vs {exact}"
+            );
         }
         assert_eq!(QuantileSketch::new().quantile(0.5), None);
     }

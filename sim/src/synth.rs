@@ -116,8 +116,15 @@ pub fn synthesise(
     let channels = c.sensors.len();
     let mut out = AtomicFile::create(output)?;
     let mut buf = Vec::with_capacity(1 << 17);
-    let _ = writeln!(buf, "# clampwise synthetic trace: scenario '{scenario_name}', seed {seed}, device '{}'", c.device.name);
-    let _ = writeln!(buf, "# INVENTED demo data from the simulator's f64 plant; true_* columns are the plant's truth");
+    let _ = writeln!(
+        buf,
+        "# clampwise synthetic trace: scenario '{scenario_name}', seed {seed}, device '{}'",
+        c.device.name
+    );
+    let _ = writeln!(
+        buf,
+        "# INVENTED demo data from the simulator's f64 plant; true_* columns are the plant's truth"
+    );
     let _ = writeln!(buf, "{}", header(channels));
     if let Some(pb) = progress {
         pb.set_length(rows);

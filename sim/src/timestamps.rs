@@ -63,7 +63,9 @@ impl TimeCheck {
         if let Some(prev) = self.prev {
             let dt = t - prev;
             if dt < 0.0 {
-                return Err(format!("time goes backwards: {t} s after {prev} s (non-monotonic time stamps)"));
+                return Err(format!(
+                    "time goes backwards: {t} s after {prev} s (non-monotonic time stamps)"
+                ));
             }
             if dt == 0.0 {
                 self.report.duplicates += 1;

@@ -66,7 +66,12 @@ pub struct TraceReader {
     rows_read: u64,
 }
 
-fn find_column(csv: &CsvIn, c: &DeviceConfig, name: &str, required: bool) -> Result<Option<Col>, DataError> {
+fn find_column(
+    csv: &CsvIn,
+    c: &DeviceConfig,
+    name: &str,
+    required: bool,
+) -> Result<Option<Col>, DataError> {
     let &(_, canon_col, canon_unit, q) = CANONICAL
         .iter()
         .find(|e| e.0 == name)
@@ -75,7 +80,8 @@ fn find_column(csv: &CsvIn, c: &DeviceConfig, name: &str, required: bool) -> Res
         Some(m) => (m.column.as_str(), m.unit.as_str(), m.piston_area_m2, true),
         None => (canon_col, canon_unit, None, false),
     };
-    let conv = column_units::conversion(q, unit, area).map_err(|m| csv.header_error(None, format!("trace.columns.{name}: {m}")))?;
+    let conv = column_units::conversion(q, unit, area)
+        .map_err(|m| csv.header_error(None, format!("trace.columns.{name}: {m}")))?;
     match csv.column(col_name) {
         Some(index) => Ok(Some(Col { index, conv })),
         None if !required => Ok(None),
@@ -88,14 +94,19 @@ fn find_column(csv: &CsvIn, c: &DeviceConfig, name: &str, required: bool) -> Res
                 csv.headers().join(", ")
             );
             // Same stem, other unit: a wrong-units header. Say how to map it.
-            let stem = col_name.strip_suffix(canon_unit).filter(|s| s.ends_with('_'));
-            if let Some(stem) = stem {
-                if let Some(other) = csv.headers().iter().find(|h| h.starts_with(stem) && column_units::unit_suffix(q, h).is_some()) {
-                    let u = column_units::unit_suffix(q, other).unwrap_or("?");
-                    msg = format!(
-                        "missing column '{col_name}': the trace has '{other}' in unit '{u}' instead; map it in the config: [trace.columns] {name} = {{ column = \"{other}\", unit = \"{u}\" }}"
-                    );
-                }
+            let stem = col_name
+                .strip_suffix(canon_unit)
+                .filter(|s| s.ends_with('_'));
+            if let Some(stem) = stem
+                && let Some(other) = csv
+                    .headers()
+                    .iter()
+                    .find(|h| h.starts_with(stem) && column_units::unit_suffix(q, h).is_some())
+            {
+                let u = column_units::unit_suffix(q, other).unwrap_or("?");
+                msg = format!(
+                    "missing column '{col_name}': the trace has '{other}' in unit '{u}' instead; map it in the config: [trace.columns] {name} = {{ column = \"{other}\", unit = \"{u}\" }}"
+                );
             }
             if csv.headers().iter().all(|h| h.parse::<f64>().is_ok()) {
                 msg.push_str(" (the first line looks like data: is the header line missing?)");
@@ -112,7 +123,12 @@ impl TraceReader {
     /// # Errors
     /// I/O and located header errors: empty file, wrong header, missing column, a header unit
     /// that disagrees with the mapping.
-    pub fn open(path: &str, c: &DeviceConfig, policy: RowPolicy, need_reference: bool) -> Result<Self, SimError> {
+    pub fn open(
+        path: &str,
+        c: &DeviceConfig,
+        policy: RowPolicy,
+        need_reference: bool,
+    ) -> Result<Self, SimError> {
         let csv = CsvIn::open(path)?;
         let n = c.sensors.len();
         let mut force = [None; 4];
@@ -126,10 +142,12 @@ impl TraceReader {
             }
         }
         let layout = Layout {
-            time: find_column(&csv, c, "time", true)?.ok_or_else(|| csv.header_error(None, "no time column".into()))?,
+            time: find_column(&csv, c, "time", true)?
+                .ok_or_else(|| csv.header_error(None, "no time column".into()))?,
             force,
             valid,
-            omega_in: find_column(&csv, c, "omega_in", true)?.ok_or_else(|| csv.header_error(None, "no omega_in column".into()))?,
+            omega_in: find_column(&csv, c, "omega_in", true)?
+                .ok_or_else(|| csv.header_error(None, "no omega_in column".into()))?,
             omega_out: find_column(&csv, c, "omega_out", c.device.kind == DeviceKind::Clutch)?,
             command: find_column(&csv, c, "command", false)?,
             temperature: find_column(&csv, c, "temperature", false)?,
@@ -140,7 +158,10 @@ impl TraceReader {
             csv,
             layout,
             policy,
-            time: TimeCheck::new(c.device.sample_period_s, c.trace.gap_tolerance_ratio.unwrap_or(0.5)),
+            time: TimeCheck::new(
+                c.device.sample_period_s,
+                c.trace.gap_tolerance_ratio.unwrap_or(0.5),
+            ),
             skipped: SkipReport::default(),
             rows_read: 0,
         })
@@ -183,7 +204,9 @@ impl TraceReader {
     /// judged here).
     pub fn finish(&mut self) -> Result<TimeReport, DataError> {
         let time_col = self.layout.time.index;
-        self.time.finish().map_err(|m| self.csv.header_error(Some(time_col), m))
+        self.time
+            .finish()
+            .map_err(|m| self.csv.header_error(Some(time_col), m))
     }
 
     fn skip(&mut self, e: DataError) -> Result<(), DataError> {
@@ -272,13 +295,21 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
         torque_ref_nm: optional(row, l.torque_ref)?,
         ..TraceSample::default()
     };
-    for ((slot, valid), (fc, vc)) in s.force.iter_mut().zip(s.force_valid.iter_mut()).zip(l.force.iter().zip(&l.valid)) {
+    for ((slot, valid), (fc, vc)) in s
+        .force
+        .iter_mut()
+        .zip(s.force_valid.iter_mut())
+        .zip(l.force.iter().zip(&l.valid))
+    {
         if let Some(vc) = vc {
-            let bit = row.required_f64(vc.index)?;
-            *valid = match bit {
-                b if b == 1.0 => true,
-                b if b == 0.0 => false,
-                _ => return Err(row.error(vc.index, format!("valid bit must be 0 or 1, got {bit}"))),
+            *valid = match row.text(vc.index) {
+                "1" | "1.0" | "true" => true,
+                "0" | "0.0" | "false" => false,
+                other => {
+                    return Err(
+                        row.error(vc.index, format!("valid bit must be 0 or 1, got '{other}'"))
+                    );
+                }
             };
         }
         let Some(fc) = fc else { continue };
@@ -290,7 +321,10 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
         };
         *slot = if fc.conv.counts {
             if raw.fract() != 0.0 || raw < f64::from(i32::MIN) || raw > f64::from(i32::MAX) {
-                return Err(row.error(fc.index, format!("ADC counts must be a whole number within the 32-bit range, got {raw}")));
+                return Err(row.error(
+                    fc.index,
+                    format!("ADC counts must be a whole number within the 32-bit range, got {raw}"),
+                ));
             }
             // Whole and in range, checked just above.
             #[allow(clippy::cast_possible_truncation)]
@@ -302,4 +336,3 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
     }
     Ok(s)
 }
-

@@ -58,7 +58,11 @@ impl std::str::FromStr for Fault {
     type Err = String;
 
     fn from_str(s: &str) -> Result<Self, String> {
-        let bad = || format!("fault '{s}': expected KIND:CHANNEL@START..END[=VALUE], e.g. stuck:2@30..35 or offset:1@10..20=500");
+        let bad = || {
+            format!(
+                "fault '{s}': expected KIND:CHANNEL@START..END[=VALUE], e.g. stuck:2@30..35 or offset:1@10..20=500"
+            )
+        };
         let (kind, rest) = s.split_once(':').ok_or_else(bad)?;
         let (channel, rest) = rest.split_once('@').ok_or_else(bad)?;
         let (range, value) = match rest.split_once('=') {
@@ -75,7 +79,10 @@ impl std::str::FromStr for Fault {
         if !(start_s.is_finite() && end_s.is_finite() && end_s > start_s) {
             return Err(format!("fault '{s}': the end must come after the start"));
         }
-        let need = |v: Option<f64>| v.filter(|x| x.is_finite()).ok_or_else(|| format!("fault '{s}': {kind} needs =VALUE"));
+        let need = |v: Option<f64>| {
+            v.filter(|x| x.is_finite())
+                .ok_or_else(|| format!("fault '{s}': {kind} needs =VALUE"))
+        };
         let kind = match kind {
             "stuck" => FaultKind::Stuck,
             "rail_high" => FaultKind::RailHigh,
@@ -83,7 +90,11 @@ impl std::str::FromStr for Fault {
             "offset" => FaultKind::Offset(need(value)?),
             "noise" => FaultKind::Noise(need(value)?),
             "dropout" => FaultKind::Dropout,
-            _ => return Err(format!("fault '{s}': unknown kind '{kind}' (stuck, rail_high, rail_low, offset, noise, dropout)")),
+            _ => {
+                return Err(format!(
+                    "fault '{s}': unknown kind '{kind}' (stuck, rail_high, rail_low, offset, noise, dropout)"
+                ));
+            }
         };
         Ok(Self {
             kind,
@@ -106,7 +117,12 @@ mod tests {
         assert_eq!((f.channel, f.start_s, f.end_s), (3, 40.0, 60.0));
         assert!(f.active(40.0) && !f.active(60.0));
         assert!("stuck:5@1..2".parse::<Fault>().is_err());
-        assert!("offset:1@1..2".parse::<Fault>().unwrap_err().contains("needs =VALUE"));
+        assert!(
+            "offset:1@1..2"
+                .parse::<Fault>()
+                .unwrap_err()
+                .contains("needs =VALUE")
+        );
         assert!("melt:1@1..2".parse::<Fault>().is_err());
     }
 }

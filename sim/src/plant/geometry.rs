@@ -73,7 +73,12 @@ impl GaussLegendre {
     /// ∫ₐᵇ f.
     pub fn integrate(&self, a: f64, b: f64, mut f: impl FnMut(f64) -> f64) -> f64 {
         let (m, h) = (0.5 * (a + b), 0.5 * (b - a));
-        self.nodes.iter().zip(&self.weights).map(|(x, w)| w * f(m + h * x)).sum::<f64>() * h
+        self.nodes
+            .iter()
+            .zip(&self.weights)
+            .map(|(x, w)| w * f(m + h * x))
+            .sum::<f64>()
+            * h
     }
 }
 
@@ -96,11 +101,16 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
                 std::f64::consts::TAU
             };
             let polar = |p: &dyn Fn(f64) -> f64, k: i32| {
-                gl.integrate(ri, ro, |r| gl.integrate(-angle / 2.0, angle / 2.0, |_| p(r) * r.powi(k) * r))
+                gl.integrate(ri, ro, |r| {
+                    gl.integrate(-angle / 2.0, angle / 2.0, |_| p(r) * r.powi(k) * r)
+                })
             };
             let up = |_r: f64| 1.0;
             let uw = |r: f64| 1.0 / r;
-            [(polar(&up, 1), polar(&up, 0)), (polar(&uw, 1), polar(&uw, 0))]
+            [
+                (polar(&up, 1), polar(&up, 0)),
+                (polar(&uw, 1), polar(&uw, 0)),
+            ]
         }
         Shape::Button => {
             let rp = need(c.pad_radius_m, "pad_radius_m")?;
@@ -115,10 +125,16 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
             };
             let up = |_r: f64| 1.0;
             let uw = |r: f64| 1.0 / r;
-            [(local(&up, 1), local(&up, 0)), (local(&uw, 1), local(&uw, 0))]
+            [
+                (local(&up, 1), local(&up, 0)),
+                (local(&uw, 1), local(&uw, 0)),
+            ]
         }
         Shape::Polygon => {
-            let vs = c.vertices_m.as_deref().ok_or("contact.vertices_m missing")?;
+            let vs = c
+                .vertices_m
+                .as_deref()
+                .ok_or("contact.vertices_m missing")?;
             let fan = |p: &dyn Fn(f64) -> f64, k: i32| {
                 let a = vs.first().copied().unwrap_or([0.0, 0.0]);
                 vs.windows(2)
@@ -126,7 +142,8 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
                     .map(|w| {
                         let (b, cc) = (w[0], w[1]);
                         // Signed Jacobian of (u, v) ↦ a + u(b − a) + u·v(c − b): u·2·area.
-                        let twice_area = (b[0] - a[0]) * (cc[1] - a[1]) - (cc[0] - a[0]) * (b[1] - a[1]);
+                        let twice_area =
+                            (b[0] - a[0]) * (cc[1] - a[1]) - (cc[0] - a[0]) * (b[1] - a[1]);
                         gl.integrate(0.0, 1.0, |u| {
                             gl.integrate(0.0, 1.0, |v| {
                                 let x = a[0] + u * (b[0] - a[0]) + u * v * (cc[0] - b[0]);
@@ -155,7 +172,10 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
             };
             let up = |_r: f64| 1.0;
             let uw = |r: f64| 1.0 / r;
-            let m = [(surface(&up, 1), surface(&up, 0)), (surface(&uw, 1), surface(&uw, 0))];
+            let m = [
+                (surface(&up, 1), surface(&up, 0)),
+                (surface(&uw, 1), surface(&uw, 0)),
+            ];
             // Axial force is ∫p·sin α dA.
             m.map(|(t, f)| (t, f * alpha.sin()))
         }
@@ -191,9 +211,17 @@ mod tests {
         let ours = GaussLegendre::new(12);
         let theirs = gauss_quad::GaussLegendre::new(std::num::NonZeroUsize::new(12).unwrap());
         let f = |x: f64| (3.0 * x).sin() * x.exp();
-        assert_relative_eq!(ours.integrate(-0.3, 2.0, f), theirs.integrate(-0.3, 2.0, f), max_relative = 1e-13);
+        assert_relative_eq!(
+            ours.integrate(-0.3, 2.0, f),
+            theirs.integrate(-0.3, 2.0, f),
+            max_relative = 1e-13
+        );
         // [calc] exact for degree 2n − 1 = 23: ∫₀¹ x²³ = 1/24.
-        assert_relative_eq!(ours.integrate(0.0, 1.0, |x| x.powi(23)), 1.0 / 24.0, max_relative = 1e-13);
+        assert_relative_eq!(
+            ours.integrate(0.0, 1.0, |x| x.powi(23)),
+            1.0 / 24.0,
+            max_relative = 1e-13
+        );
     }
 
     #[test]
@@ -221,7 +249,11 @@ mod tests {
         c.half_angle_deg = Some(12.0);
         let (up, uw) = effective_radii(&c).unwrap();
         let (d_o, d_i, s) = (0.16f64, 0.10f64, 12f64.to_radians().sin());
-        assert_relative_eq!(up, (d_o.powi(3) - d_i.powi(3)) / (3.0 * s * (d_o.powi(2) - d_i.powi(2))), max_relative = 1e-12);
+        assert_relative_eq!(
+            up,
+            (d_o.powi(3) - d_i.powi(3)) / (3.0 * s * (d_o.powi(2) - d_i.powi(2))),
+            max_relative = 1e-12
+        );
         assert_relative_eq!(uw, (d_o + d_i) / (4.0 * s), max_relative = 1e-12);
     }
 

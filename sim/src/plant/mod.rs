@@ -138,6 +138,8 @@ pub struct Plant {
 
 /// Bilinear interpolation of a μ table, clamped at the edges (the plant's own).
 pub fn mu_of(t: &MuTableSpec, temp: f64, speed: f64) -> f64 {
+    // Indices come from the checks just before each use (n ≥ 2, i + 1 < n).
+    #[allow(clippy::indexing_slicing)]
     fn bracket(xs: &[f64], x: f64) -> (usize, usize, f64) {
         let n = xs.len();
         if n <= 1 || x <= xs[0] {
@@ -151,7 +153,13 @@ pub fn mu_of(t: &MuTableSpec, temp: f64, speed: f64) -> f64 {
     }
     let (i0, i1, fx) = bracket(&t.temperature_c, temp);
     let (j0, j1, fy) = bracket(&t.slip_speed_rad_s, speed);
-    let z = |i: usize, j: usize| t.values.get(i).and_then(|r| r.get(j)).copied().unwrap_or(0.0);
+    let z = |i: usize, j: usize| {
+        t.values
+            .get(i)
+            .and_then(|r| r.get(j))
+            .copied()
+            .unwrap_or(0.0)
+    };
     let a = z(i0, j0) + fy * (z(i0, j1) - z(i0, j0));
     let b = z(i1, j0) + fy * (z(i1, j1) - z(i1, j0));
     a + fx * (b - a)
@@ -165,27 +173,40 @@ impl Plant {
     pub fn new(c: &DeviceConfig, opts: PlantOptions) -> Result<Self, String> {
         let (r_up, r_uw) = geometry::effective_radii(&c.contact)?;
         let th = &c.thermal;
-        let tau = match (th.cooling_time_constant_s, th.heat_transfer_w_per_m2_k, th.cooling_area_m2) {
+        let tau = match (
+            th.cooling_time_constant_s,
+            th.heat_transfer_w_per_m2_k,
+            th.cooling_area_m2,
+        ) {
             (Some(t), _, _) => t,
             (None, Some(h), Some(a)) => th.rotor_heat_capacity_j_per_k / (h * a),
             _ => return Err("thermal: no cooling given".into()),
         };
         let full_force = opts
             .full_force_n
-            .or(c.actuator.as_ref().map(|a| a.force_n_per_command + a.force_offset_n))
+            .or(c
+                .actuator
+                .as_ref()
+                .map(|a| a.force_n_per_command + a.force_offset_n))
             .unwrap_or(c.limits.max_clamp_force_n * 0.75);
         Ok(Self {
             dt: c.device.sample_period_s,
             faces: f64::from(c.contact.faces),
             r_up,
             r_uw,
-            mu: opts.truth_mu.clone().unwrap_or_else(|| c.friction.mu.clone()),
+            mu: opts
+                .truth_mu
+                .clone()
+                .unwrap_or_else(|| c.friction.mu.clone()),
             static_ratio: c.friction.static_ratio,
             // Half the estimator's stick speed: the estimator's holding band (with its
             // hysteresis) then contains the plant's, so a sample the plant holds is never one the
             // estimator reports as slipping at the threshold's edge.
             stick: 0.5 * c.friction.stick_speed_rad_s,
-            drag: (c.friction.drag_torque_nm, c.friction.drag_viscous_nm_per_rad_s),
+            drag: (
+                c.friction.drag_torque_nm,
+                c.friction.drag_viscous_nm_per_rad_s,
+            ),
             heat_capacity: th.rotor_heat_capacity_j_per_k,
             tau,
             gamma: th.heat_into_rotor_ratio,
@@ -198,7 +219,14 @@ impl Plant {
             sensors: c
                 .sensors
                 .iter()
-                .map(|s| (s.gain_n_per_count, s.offset_counts, s.rail_low_counts, s.rail_high_counts))
+                .map(|s| {
+                    (
+                        s.gain_n_per_count,
+                        s.offset_counts,
+                        s.rail_low_counts,
+                        s.rail_high_counts,
+                    )
+                })
                 .collect(),
             full_force,
             brake: c.device.kind == DeviceKind::Brake,
@@ -263,7 +291,12 @@ impl Plant {
             let mut c = (force + noise) / gain + offset;
             let mut ok = true;
             let mut stuck_now = false;
-            for f in self.opts.faults.iter().filter(|f| f.channel == ch + 1 && f.active(t)) {
+            for f in self
+                .opts
+                .faults
+                .iter()
+                .filter(|f| f.channel == ch + 1 && f.active(t))
+            {
                 fault_code = f.code();
                 match f.kind {
                     FaultKind::Stuck => stuck_now = true,
@@ -296,7 +329,8 @@ impl Plant {
                 *v = ok;
             }
         }
-        let temp_meas = ((self.temp + self.opts.temp_noise_k * self.rng.normal()) * 10.0).round() / 10.0;
+        let temp_meas =
+            ((self.temp + self.opts.temp_noise_k * self.rng.normal()) * 10.0).round() / 10.0;
         let sigma = self.opts.torque_noise_abs_nm + self.opts.torque_noise_ratio * torque.abs();
         PlantSample {
             t_s: t,
@@ -326,7 +360,9 @@ mod tests {
     use approx::assert_relative_eq;
 
     fn demo() -> DeviceConfig {
-        LoadedConfig::from_str(include_str!("../../configs/demo-hoist-brake.toml"), "d").unwrap().config
+        LoadedConfig::from_str(include_str!("../../configs/demo-hoist-brake.toml"), "d")
+            .unwrap()
+            .config
     }
 
     #[test]
@@ -334,8 +370,22 @@ mod tests {
         // [pub: Shigley ch. 16] ΔT = γ·E/(m·c) for a short stop (cooling negligible over 1 s
         // against τ = 60 s: [calc] relative effect ≈ t/(2τ) < 1 %).
         let c = demo();
-        let mut p = Plant::new(&c, PlantOptions { force_noise_n: 0.0, torque_noise_abs_nm: 0.0, torque_noise_ratio: 0.0, ..PlantOptions::default() }).unwrap();
-        let sp = ScenarioPoint { omega_in: 2.0, omega_out: 0.0, command: 0.5, load_nm: 0.0 };
+        let mut p = Plant::new(
+            &c,
+            PlantOptions {
+                force_noise_n: 0.0,
+                torque_noise_abs_nm: 0.0,
+                torque_noise_ratio: 0.0,
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap();
+        let sp = ScenarioPoint {
+            omega_in: 2.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 0.0,
+        };
         let mut energy = 0.0;
         let mut last = p.step(&sp);
         for _ in 0..999 {
@@ -349,22 +399,66 @@ mod tests {
     #[test]
     fn slip_torque_and_holding() {
         let c = demo();
-        let mut p = Plant::new(&c, PlantOptions { force_noise_n: 0.0, torque_noise_abs_nm: 0.0, torque_noise_ratio: 0.0, actuator_tau_s: 1e-6, ..PlantOptions::default() }).unwrap();
-        let s = p.step(&ScenarioPoint { omega_in: 2.0, omega_out: 0.0, command: 0.5, load_nm: 0.0 });
+        let mut p = Plant::new(
+            &c,
+            PlantOptions {
+                force_noise_n: 0.0,
+                torque_noise_abs_nm: 0.0,
+                torque_noise_ratio: 0.0,
+                actuator_tau_s: 1e-6,
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap();
+        let s = p.step(&ScenarioPoint {
+            omega_in: 2.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 0.0,
+        });
         // [pub] T = N·μ·F·r_e, new pads (uniform pressure), μ(25 °C, 2 rad/s) from the table.
         let mu = mu_of(&c.friction.mu, 25.0, 2.0);
-        assert_relative_eq!(s.torque_ref_nm, -2.0 * mu * 30_000.0 * p.radii().0, max_relative = 1e-4);
-        let h = p.step(&ScenarioPoint { omega_in: 0.0, omega_out: 0.0, command: 0.5, load_nm: 5000.0 });
+        assert_relative_eq!(
+            s.torque_ref_nm,
+            -2.0 * mu * 30_000.0 * p.radii().0,
+            max_relative = 1e-4
+        );
+        let h = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 5000.0,
+        });
         assert_relative_eq!(h.torque_ref_nm, -5000.0, max_relative = 1e-9);
     }
 
     #[test]
     fn faults_act_on_their_channel() {
         let c = demo();
-        let faults = vec!["stuck:2@0..1".parse().unwrap(), "dropout:1@0..1".parse().unwrap()];
-        let mut p = Plant::new(&c, PlantOptions { faults, ..PlantOptions::default() }).unwrap();
-        let a = p.step(&ScenarioPoint { omega_in: 0.0, omega_out: 0.0, command: 0.5, load_nm: 0.0 });
-        let b = p.step(&ScenarioPoint { omega_in: 0.0, omega_out: 0.0, command: 0.9, load_nm: 0.0 });
+        let faults = vec![
+            "stuck:2@0..1".parse().unwrap(),
+            "dropout:1@0..1".parse().unwrap(),
+        ];
+        let mut p = Plant::new(
+            &c,
+            PlantOptions {
+                faults,
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap();
+        let a = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 0.0,
+        });
+        let b = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.9,
+            load_nm: 0.0,
+        });
         assert_eq!(a.counts[1], b.counts[1]);
         assert_ne!(a.counts[2], b.counts[2]);
         assert_eq!((b.counts[0], b.valid[0]), (None, false));

@@ -65,31 +65,31 @@ impl Scenario {
     pub fn builtin(name: &str) -> Option<Self> {
         let phases = match name {
             "hoist" => vec![
-                ph(4.0, (0.0, 0.0), (1.0, 1.0), 8000.0),   // holding the cage
-                ph(1.0, (0.0, 0.0), (1.0, 0.0), 8000.0),   // release
-                ph(3.0, (0.0, 6.0), (0.0, 0.0), 0.0),      // accelerate
-                ph(10.0, (6.0, 6.0), (0.0, 0.0), 0.0),     // hoisting
-                ph(0.2, (6.0, 5.6), (0.0, 0.7), 0.0),      // emergency stop: apply
-                ph(2.3, (5.6, 0.0), (0.7, 0.7), 0.0),      //   and decelerate
-                ph(8.0, (0.0, 0.0), (0.7, 0.7), 8000.0),   // hold
-                ph(6.0, (0.0, 0.3), (0.5, 0.5), 0.0),      // brake test: motor drives slowly
+                ph(4.0, (0.0, 0.0), (1.0, 1.0), 8000.0), // holding the cage
+                ph(1.0, (0.0, 0.0), (1.0, 0.0), 8000.0), // release
+                ph(3.0, (0.0, 6.0), (0.0, 0.0), 0.0),    // accelerate
+                ph(10.0, (6.0, 6.0), (0.0, 0.0), 0.0),   // hoisting
+                ph(0.2, (6.0, 5.6), (0.0, 0.7), 0.0),    // emergency stop: apply
+                ph(2.3, (5.6, 0.0), (0.7, 0.7), 0.0),    //   and decelerate
+                ph(8.0, (0.0, 0.0), (0.7, 0.7), 8000.0), // hold
+                ph(6.0, (0.0, 0.3), (0.5, 0.5), 0.0),    // brake test: motor drives slowly
                 ph(6.0, (0.3, 1.0), (0.5, 0.5), 0.0),
                 ph(6.0, (1.0, 3.0), (0.5, 0.5), 0.0),
                 ph(1.0, (3.0, 0.0), (0.5, 1.0), 0.0),
                 ph(3.0, (0.0, 0.0), (1.0, 1.0), 8000.0),
-                ph(1.0, (0.0, 0.0), (1.0, 0.0), 8000.0),   // release
-                ph(4.0, (0.0, 12.0), (0.0, 0.0), 0.0),     // fast run
+                ph(1.0, (0.0, 0.0), (1.0, 0.0), 8000.0), // release
+                ph(4.0, (0.0, 12.0), (0.0, 0.0), 0.0),   // fast run
                 ph(8.0, (12.0, 12.0), (0.0, 0.0), 0.0),
-                ph(0.2, (12.0, 11.5), (0.0, 0.9), 0.0),    // emergency stop from 12 rad/s
+                ph(0.2, (12.0, 11.5), (0.0, 0.9), 0.0), // emergency stop from 12 rad/s
                 ph(3.8, (11.5, 0.0), (0.9, 0.9), 0.0),
                 ph(5.0, (0.0, 0.0), (0.9, 0.9), 9000.0),
-                ph(8.0, (0.0, 2.0), (0.6, 0.6), 0.0),      // hot brake test
+                ph(8.0, (0.0, 2.0), (0.6, 0.6), 0.0), // hot brake test
                 ph(8.0, (2.0, 5.0), (0.6, 0.6), 0.0),
                 ph(8.0, (5.0, 8.0), (0.4, 0.4), 0.0),
                 ph(2.0, (8.0, 0.0), (0.4, 1.0), 0.0),
                 ph(5.0, (0.0, 0.0), (1.0, 1.0), 8000.0),
                 ph(1.0, (0.0, 0.0), (1.0, 0.0), 0.0),
-                ph(60.0, (0.0, 0.0), (0.0, 0.0), 0.0),     // parked, released: cooling
+                ph(60.0, (0.0, 0.0), (0.0, 0.0), 0.0), // parked, released: cooling
                 ph(1.0, (0.0, 0.0), (0.0, 1.0), 0.0),
                 ph(25.0, (0.0, 0.0), (1.0, 1.0), 8000.0),
             ],
@@ -125,7 +125,11 @@ impl Scenario {
         let mut tc = t.rem_euclid(self.cycle_s);
         for p in &self.phases {
             if tc < p.duration_s || std::ptr::eq(p, self.phases.last().unwrap_or(p)) {
-                let f = if p.duration_s > 0.0 { (tc / p.duration_s).clamp(0.0, 1.0) } else { 1.0 };
+                let f = if p.duration_s > 0.0 {
+                    (tc / p.duration_s).clamp(0.0, 1.0)
+                } else {
+                    1.0
+                };
                 return ScenarioPoint {
                     omega_in: p.speed_start + f * (p.speed_end - p.speed_start),
                     omega_out: 0.0,
