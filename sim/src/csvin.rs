@@ -89,7 +89,9 @@ impl CsvIn {
         if h.is_empty() || (h.len() == 1 && h.get(0).is_some_and(|f| f.is_empty())) {
             return Err(err(&me, None, "empty file: no header line (expected column names such as t_s, force_1_N, omega_in_rad_s)".into()).into());
         }
-        me.header_line = h.position().map_or(1, |p| p.line());
+        // The header record's own position ignores the comment lines before it; the reader's
+        // position after it is the start of the next line, which counts them.
+        me.header_line = me.reader.position().line().saturating_sub(1).max(1);
         for (i, f) in h.iter().enumerate() {
             let name = String::from_utf8_lossy(f).trim().to_string();
             if me.headers.contains(&name) {

@@ -3,7 +3,8 @@
 //! A file is written as `NAME.partial` and renamed to `NAME` only by [`AtomicFile::commit`];
 //! a failed run leaves at most the `.partial` file (named in the error) and never a file under
 //! the final name. Standard output (`-`) cannot be renamed: a failed run ends it with a
-//! `# INCOMPLETE` comment line, and the exit code is non-zero.
+//! `# INCOMPLETE` comment line, and the exit code is non-zero. An existing device or pipe
+//! (`/dev/null`, a FIFO) is written in place, never replaced.
 
 use std::fs::File;
 use std::io::{BufWriter, Write};
@@ -18,6 +19,7 @@ enum Sink {
         w: BufWriter<File>,
     },
     Stdout(BufWriter<std::io::Stdout>),
+    Direct(BufWriter<File>),
 }
 
 /// A buffered output that becomes visible under its name only on success.
@@ -47,6 +49,17 @@ impl AtomicFile {
             });
         }
         let dest = PathBuf::from(path);
+        // A device or pipe (e.g. /dev/null) is written in place: never renamed over or removed.
+        if std::fs::metadata(&dest).is_ok_and(|m| !m.is_file() && !m.is_dir()) {
+            let f = std::fs::OpenOptions::new()
+                .write(true)
+                .open(&dest)
+                .map_err(|e| SimError::io(&dest, e))?;
+            return Ok(Self {
+                sink: Sink::Direct(BufWriter::with_capacity(1 << 16, f)),
+                name: path.to_string(),
+            });
+        }
         if let Some(dir) = dest.parent().filter(|d| !d.as_os_str().is_empty()) {
             std::fs::create_dir_all(dir).map_err(|e| SimError::io(dir, e))?;
         }
@@ -75,6 +88,7 @@ impl AtomicFile {
         match &mut self.sink {
             Sink::File { w, .. } => w,
             Sink::Stdout(w) => w,
+            Sink::Direct(w) => w,
         }
     }
 
@@ -99,6 +113,7 @@ impl AtomicFile {
                 std::fs::rename(&tmp, &dest).map_err(|e| SimError::io(&dest, e))
             }
             Sink::Stdout(mut w) => w.flush().map_err(|e| SimError::io("-", e)),
+            Sink::Direct(mut w) => w.flush().map_err(|e| SimError::io(&self.name, e)),
         }
     }
 
@@ -113,6 +128,11 @@ impl AtomicFile {
                 Some(tmp)
             }
             Sink::Stdout(mut w) => {
+                let _ = writeln!(w, "# INCOMPLETE: {why}");
+                let _ = w.flush();
+                None
+            }
+            Sink::Direct(mut w) => {
                 let _ = writeln!(w, "# INCOMPLETE: {why}");
                 let _ = w.flush();
                 None

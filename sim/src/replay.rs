@@ -134,6 +134,8 @@ pub struct ReplaySummary {
     pub elapsed_s: f64,
     /// Throughput, rows/s.
     pub rows_per_s: f64,
+    /// Peak resident memory of the whole process at the end of this replay, bytes (Linux).
+    pub peak_rss_bytes: Option<u64>,
 }
 
 /// Options of one replay.
@@ -245,6 +247,7 @@ pub fn replay_file(
         time,
         unterminated_last_line: reader.unterminated_last_line(),
         elapsed_s: elapsed,
+        peak_rss_bytes: crate::memory::peak_rss_bytes(),
     })
 }
 
@@ -310,8 +313,12 @@ pub fn human(s: &ReplaySummary) -> String {
         s.tally.max_abs_torque_nm, s.tally.max_capacity_nm, s.tally.max_clamp_force_n, s.tally.max_lining_temp_c
     ));
     o.push_str(&format!(
-        "  {:.2} s, {:.0} rows/s; estimator: {}\n",
-        s.elapsed_s, s.rows_per_s, s.estimator
+        "  {:.2} s, {:.0} rows/s, peak memory {}; estimator: {}\n",
+        s.elapsed_s,
+        s.rows_per_s,
+        s.peak_rss_bytes
+            .map_or("?".into(), |b| format!("{:.1} MiB", b as f64 / 1_048_576.0)),
+        s.estimator
     ));
     o
 }

@@ -130,6 +130,8 @@ impl TraceReader {
         need_reference: bool,
     ) -> Result<Self, SimError> {
         let csv = CsvIn::open(path)?;
+        let time = find_column(&csv, c, "time", true)?
+            .ok_or_else(|| csv.header_error(None, "no time column".into()))?;
         let n = c.sensors.len();
         let mut force = [None; 4];
         let mut valid = [None; 4];
@@ -142,8 +144,7 @@ impl TraceReader {
             }
         }
         let layout = Layout {
-            time: find_column(&csv, c, "time", true)?
-                .ok_or_else(|| csv.header_error(None, "no time column".into()))?,
+            time,
             force,
             valid,
             omega_in: find_column(&csv, c, "omega_in", true)?
