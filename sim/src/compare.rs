@@ -73,7 +73,7 @@ impl ErrorStats {
     }
 }
 
-/// Band edges of one operating variable; band i is [edges[i], edges[i+1]), with open bands
+/// Band edges of one operating variable; band i is `[edges[i], edges[i+1])`, with open bands
 /// below the first and above the last edge.
 #[derive(Debug, Clone)]
 pub struct Bands {

@@ -1,6 +1,11 @@
 //! Streaming: a long trace piped from `synth` into `replay` on standard input keeps memory
 //! bounded (the replay's peak resident memory does not grow with the row count).
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 mod common;
 
