@@ -1,7 +1,7 @@
 //! The subcommands: each returns an [`Outcome`] (human text, JSON, and a failure that sets
 //! the exit code) so that `main` prints and exits in one place.
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
@@ -366,7 +366,6 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
         write_file(p, emit::rust_source(&cfg, &t).as_bytes())?;
         human.push_str(&format!("  wrote {p} (Rust source for the firmware)\n"));
     }
-    let rows = |it: Vec<Vec<f64>>| it;
     Ok(Outcome::ok(
         human,
         json!({
@@ -376,10 +375,10 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
             "radius_m": {"uniform_pressure": t.radii_m.0, "uniform_wear": t.radii_m.1,
                           "force_n": t.radius_force_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
                           "bedding": t.radius_bedding_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
-                          "values": rows(t.radius_rows().map(|r| r.iter().map(|v| v.to_num::<f64>()).collect()).collect())},
+                          "values": t.radius_rows().map(|r| r.iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>()).collect::<Vec<_>>()},
             "mu": {"temperature_c": t.mu_temperature_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
                    "slip_speed_rad_s": t.mu_speed_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
-                   "values": rows(t.mu_rows().map(|r| r.iter().map(|v| v.to_num::<f64>()).collect()).collect())},
+                   "values": t.mu_rows().map(|r| r.iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>()).collect::<Vec<_>>()},
             "emitted": a.emit,
         }),
     ))
@@ -597,9 +596,4 @@ pub fn plot(a: &PlotArgs, quiet: bool) -> Result<Outcome, SimError> {
         ),
         json!({"command": "plot", "file": a.out, "points": d.points().len(), "rows": d.seen()}),
     ))
-}
-
-/// Where the demo writes, as a displayable path.
-pub fn display(p: &Path) -> String {
-    PathBuf::from(p).display().to_string()
 }
