@@ -526,6 +526,7 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
                         line: None,
                         column: None,
                         message: e.message,
+                        snippet: None,
                     }],
                 })
         }) {

@@ -438,6 +438,8 @@ pub struct ConfigIssue {
     pub column: Option<usize>,
     /// What is wrong.
     pub message: String,
+    /// The offending source line, when located.
+    pub snippet: Option<String>,
 }
 
 /// All problems found in one config file.
@@ -464,6 +466,9 @@ impl fmt::Display for ConfigErrors {
                 write!(f, "{k}: ")?;
             }
             write!(f, "{}", i.message)?;
+            if let (Some(s), Some(c)) = (&i.snippet, i.column) {
+                write!(f, "\n    | {s}\n    | {}^", " ".repeat(c.saturating_sub(1)))?;
+            }
         }
         Ok(())
     }
@@ -498,6 +503,7 @@ impl LoadedConfig {
                 line: None,
                 column: None,
                 message: format!("cannot read config: {e}"),
+                snippet: None,
             }],
         })?;
         Self::from_str(&source, &file)
@@ -523,6 +529,9 @@ impl LoadedConfig {
                     line,
                     column,
                     message: e.message().trim().to_string(),
+                    snippet: line
+                        .and_then(|l| source.lines().nth(l - 1))
+                        .map(str::to_string),
                 }],
             }
         })?;
@@ -548,6 +557,9 @@ impl LoadedConfig {
                         line: loc.map(|l| l.0),
                         column: loc.map(|l| l.1),
                         message,
+                        snippet: loc
+                            .and_then(|l| source.lines().nth(l.0 - 1))
+                            .map(str::to_string),
                     }
                 })
                 .collect();

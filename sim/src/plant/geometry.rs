@@ -293,4 +293,46 @@ mod tests {
         assert_relative_eq!(uw, 0.080, max_relative = 2e-4);
         assert_relative_eq!(up, 0.245 / 3.0, max_relative = 2e-4);
     }
+
+    #[test]
+    fn plant_and_table_builder_agree_on_every_shape() {
+        // Two independent routes to r_e: the plant's Gauss–Legendre integration and the table
+        // builder's closed forms / midpoint grid. Agreement within the grid's 10⁻⁴.
+        let mut shapes = Vec::new();
+        let mut a = contact(Shape::Annulus);
+        a.inner_radius_m = Some(0.1);
+        a.outer_radius_m = Some(0.18);
+        shapes.push(a.clone());
+        let mut s = a.clone();
+        s.shape = Shape::Sector;
+        s.sector_angle_deg = Some(45.0);
+        shapes.push(s);
+        let mut c = a;
+        c.shape = Shape::Cone;
+        c.half_angle_deg = Some(15.0);
+        shapes.push(c);
+        let mut b = contact(Shape::Button);
+        b.pad_radius_m = Some(0.04);
+        b.pad_centre_radius_m = Some(0.15);
+        shapes.push(b);
+        let mut p = contact(Shape::Polygon);
+        p.vertices_m = Some(vec![
+            [0.3, -0.05],
+            [0.42, -0.07],
+            [0.45, 0.0],
+            [0.4, 0.08],
+            [0.32, 0.05],
+        ]);
+        shapes.push(p);
+        for c in &shapes {
+            let (pu, pw) = effective_radii(c).unwrap();
+            let (tu, tw) = crate::build_core::provisional_radii(c).unwrap();
+            assert_relative_eq!(pu, tu, max_relative = 1e-4);
+            assert_relative_eq!(pw, tw, max_relative = 1e-4);
+            assert!(
+                pu >= pw,
+                "uniform pressure gives the larger radius [pub: Ugural ch. 13]"
+            );
+        }
+    }
 }
