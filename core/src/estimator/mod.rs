@@ -194,11 +194,9 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         let kinetic = friction_torque(cfg.faces, correction, fric.mu_kinetic, force, lever_arm);
         let capacity = friction_torque(cfg.faces, correction, fric.mu_static, force, lever_arm);
         let uncorrected = friction_torque(cfg.faces, Ratio::ONE, fric.mu_kinetic, force, lever_arm);
-        let any_saturated = kinetic.saturated || capacity.saturated || uncorrected.saturated;
-        flags.set(
-            Flags::ARITHMETIC_SATURATED,
-            flags.contains(Flags::ARITHMETIC_SATURATED) || any_saturated,
-        );
+        if kinetic.saturated || capacity.saturated || uncorrected.saturated {
+            flags.insert(Flags::ARITHMETIC_SATURATED);
+        }
 
         let released = force < cfg.limits.touch_force;
         let (state, torque, mu, friction_power_torque) = if released {
