@@ -6,10 +6,15 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 
 rustup toolchain install            # reads rust-toolchain.toml: 1.95.0 + the four cross targets
-if ! command -v qemu-system-arm >/dev/null 2>&1; then
+# Debian packages: QEMU for the firmware run; fontconfig headers and a font for the plots.
+need=()
+command -v qemu-system-arm >/dev/null 2>&1 || need+=(qemu-system-arm)
+dpkg -s libfontconfig1-dev >/dev/null 2>&1 || need+=(libfontconfig1-dev pkg-config)
+dpkg -s fonts-dejavu-core >/dev/null 2>&1 || need+=(fonts-dejavu-core)
+if [ ${#need[@]} -gt 0 ]; then
     if [ "$(id -u)" = 0 ]; then SUDO=""; else SUDO="sudo"; fi
     $SUDO apt-get update -qq
-    DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq qemu-system-arm >/dev/null
+    DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq "${need[@]}" >/dev/null
 fi
 
 cargo test --workspace --release --locked

@@ -11,22 +11,108 @@
 //! ## Data flow
 //!
 //! ```text
-//! build time (f64, libm):
+//! build time (f64, libm), on the host or in a build script:
 //!   geometry::Disc + shape (annulus | sector | button | polygon) + faces n + cone α?
 //!     = geometry::Contact ─► r_up, r_uw ─► lever arm (r_e / sin α) at each bedding
-//!     ─► geometry::build_radius_table ─► RadiusTable (Table2: F × bedding → m) ── in flash
-//! per sample (integers only):
-//!   raw counts ─ sensor ─► clamp force F
-//!   F, bedding ─ radius table ─► lever arm r_e;   T_lining, |v| ─ μ table ─► μ
-//!   torque = −sign(v) · n · μ · F · r_e
+//!     ─► geometry::build_radius_table ─► RadiusTable (F × bedding → m) ──┐
+//!   μ table, thermal, wear, sensor, adaptation settings ─► *Config ──────┴► config::DeviceConfig
+//!
+//! per sample, estimator::Estimator::step (integers only, O(1), no allocation, no panic):
+//!   raw counts[1..4] ─ sensor: calibrate → filter → diagnose → vote ─► clamp force F, health
+//!   ω_in − ω_out ─► slip speed v ─ friction: stick/slip with hysteresis
+//!   F, bedding ─ radius table ─► r_e;   T_lining, |v| ─ μ table × k (adapt) ─► μ
+//!   slipping : torque = −sign(v) · n · μ · F · r_e (+ drag)
+//!   holding  : capacity = n · μ_s · F · r_e; torque not given, bounded by ± capacity
+//!   released : F < touch force → torque = drag (0 for a dry contact)
+//!   |T · v| ─► thermal (T_lining) and wear (energy, bedding, thickness)
+//!   reference torque ─► adapt: bounded RLS correction k of μ, frozen on faults
+//!   ─► Estimate { torque, capacity, ±, μ, r_e, F, T_lining, bedding, wear, state, flags }
 //! ```
 //!
-//! Floats (via `libm`) appear only where tables are built ([`geometry`]); the per-sample path
-//! uses the fixed-point types of [`units`] and integer arithmetic only.
+//! Floats (via `libm`) appear only where tables and coefficients are built; the per-sample
+//! path uses the fixed-point types of [`units`] and integer arithmetic only, so every target
+//! gives the same bits.
 //!
 //! ## Units, ranges and resolutions
 //!
-//! See [`units`] for the table of every quantity's Q format.
+//! | quantity | type | unit | Q format | range | resolution |
+//! |---|---|---|---|---|---|
+//! | clamp force, force uncertainty | [`units::Newtons`] | N | I24F8 | ±8.39 MN | 3.9 mN |
+//! | torque, capacity, ± uncertainty, drag | [`units::NewtonMetres`] | N·m | I20F12 | ±524 kN·m | 0.24 mN·m |
+//! | effective radius / lever arm, wear | [`units::Metres`] | m | I8F24 | ±128 m | 60 nm |
+//! | lining and rotor temperature | [`units::Celsius`] | °C | I16F16 | ±32 768 °C | 15 µK |
+//! | shaft and slip speed | [`units::RadPerSec`] | rad/s | I16F16 | ±32 768 rad/s | 15 µrad/s |
+//! | μ, bedding, correction factor, tolerances | [`units::Ratio`] | 1 | I2F30 | ±2 | 0.93·10⁻⁹ |
+//! | dissipated power | [`units::Watts`] | W | I32F32 | ±2.1 GW | 0.23 nW |
+//! | dissipated energy | [`units::Joules`] | J | I48F16 | ±1.4·10¹⁴ J | 15 µJ |
+//! | sample period | [`units::Seconds`] | s | I32F32 | ±2.1·10⁹ s | 0.23 ns |
+//! | actuator command | [`sensor::ActuatorCommand`] | command unit | I16F16 | ±32 768 | 1.5·10⁻⁵ |
+//! | raw force channel | `i32` | ADC counts | integer | any | 1 count |
+//!
+//! The design envelope (force to 200 kN, torque to 50 kN·m, −50…1000 °C, ±2000 rad/s) sits well
+//! inside every range. The torque product n·k·μ·F·r_e runs in 128-bit integers and rounds once.
+//!
+//! ## Example: build a device and step it
+//!
+//! ```
+//! use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+//! use clampwise_core::estimator::{Combination, ContactState, Estimator, Inputs};
+//! use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
+//! use clampwise_core::geometry::{Annulus, Contact, Shape, build_radius_table};
+//! use clampwise_core::sensor::*;
+//! use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
+//! use clampwise_core::units::{Newtons, RadPerSec, Ratio, Seconds};
+//! use clampwise_core::wear::{WearConfig, WearParams};
+//!
+//! // A fictional test-rig brake (demo numbers): one annular face pair, 1 kHz loop.
+//! let contact = Contact::new(Shape::Annulus(Annulus::new(0.060, 0.100)?), 2, None)?;
+//! let radius = build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?;
+//! let mu = MuTable::<2, 2>::from_f64(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
+//! let friction = FrictionConfig::new(mu, &FrictionParams {
+//!     static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
+//!     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
+//! })?;
+//! let thermal = ThermalConfig::new(&ThermalParams {
+//!     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
+//!     cooling: Cooling::TimeConstant(600.0), ambient: 20.0, lining: None,
+//!     fade_warning: 350.0, over_temperature: 500.0, flag_hysteresis: 10.0, measured: None,
+//! })?;
+//! let wear = WearConfig::new(&WearParams {
+//!     dt: 1e-3, bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
+//!     initial_thickness: 0.010, minimum_thickness: 0.002,
+//! })?;
+//! let channel = ChannelCalibration {
+//!     gain: NewtonsPerCount::lit("0.01"), offset: Newtons::ZERO,
+//!     rails: AdcRails { low: -8_388_608, high: 8_388_607, margin: 8 }, temperature: None,
+//! };
+//! let limits = DiagnosticLimits {
+//!     force_min: Newtons::lit("-2000"), force_max: Newtons::lit("60000"),
+//!     max_rate: NewtonsPerSecond::lit("5000000"), noise_band: Newtons::lit("20"), stuck: None,
+//!     debounce: DebounceSet::uniform(Debounce { raise_after: 3, clear_after: 10 }),
+//!     max_hold_samples: 2,
+//! };
+//! let voting = VotingLimits { tolerance: Newtons::lit("500"), channel_uncertainty: Newtons::lit("100") };
+//! let sensor = SensorConfig::new(1000, [channel], LowPass::new(200.0, 1000)?, limits, voting, None)?;
+//! let device = DeviceConfig::new(DeviceParts {
+//!     sample_period: Seconds::lit("0.001"), faces: contact.faces(), radius, friction, thermal,
+//!     wear, sensor, adapt: None,
+//!     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
+//!     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
+//!         combination: Combination::WorstCase },
+//! })?;
+//!
+//! let mut estimator = Estimator::new(&device);
+//! let mut inputs = Inputs::<1>::at_rest(1_000_000); // 10 kN at 10 mN per count
+//! inputs.input_speed = RadPerSec::lit("50");          // the disc turns: the pads slip
+//! let mut estimate = estimator.step(&inputs);
+//! for _ in 0..50 {
+//!     estimate = estimator.step(&inputs);               // let the force filter settle
+//! }
+//! assert_eq!(estimate.state, ContactState::Slipping);
+//! let torque = estimate.torque.unwrap().to_num::<f64>();   // ≈ −2 · 0.39 · 10 kN · 81.7 mm
+//! assert!((torque + 637.0).abs() < 1.0, "{torque}");
+//! # Ok::<(), Box<dyn core::error::Error>>(())
+//! ```
 //!
 //! ## Friction, thermal and wear state: measured error of the fixed-point path
 //!

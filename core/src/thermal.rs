@@ -572,8 +572,20 @@ impl ThermalState {
         power: Watts,
         measured: Option<Celsius>,
     ) -> ThermalSample {
+        self.update_with_ambient(cfg, power, measured, None)
+    }
+
+    /// As [`ThermalState::update`], cooling toward a measured `ambient` (°C) instead of the
+    /// configured one when it is given (cooling air or oil temperature changes over a duty).
+    pub fn update_with_ambient(
+        &mut self,
+        cfg: &ThermalConfig,
+        power: Watts,
+        measured: Option<Celsius>,
+        ambient: Option<Celsius>,
+    ) -> ThermalSample {
         let p = i128::from(power.to_bits().unsigned_abs());
-        let amb = i128::from(to_q32(cfg.ambient));
+        let amb = i128::from(to_q32(ambient.unwrap_or(cfg.ambient)));
         let theta = [
             i128::from(self.lining_q32).saturating_sub(amb),
             i128::from(self.rotor_q32).saturating_sub(amb),

@@ -1,0 +1,81 @@
+#![allow(clippy::expect_used)]
+//! Replay throughput on one core: parse a 10⁶-row synthetic trace and step every row through
+//! the estimator behind the seam (output discarded, so this measures parse + replay, not disk
+//! writes). `cargo bench -p clampwise-sim --bench replay`.
+
+use std::hint::black_box;
+use std::path::PathBuf;
+
+use clampwise_sim::build_core::CoreTables;
+use clampwise_sim::config::LoadedConfig;
+use clampwise_sim::demo::DEMO_CONFIG;
+use clampwise_sim::plant::PlantOptions;
+use clampwise_sim::plant::scenario::Scenario;
+use clampwise_sim::seam;
+use clampwise_sim::synth;
+use clampwise_sim::trace::{RowPolicy, TraceReader};
+use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+
+const ROWS: u64 = 1_000_000;
+
+fn trace(cfg: &LoadedConfig) -> PathBuf {
+    let path = std::env::temp_dir().join("clampwise-bench-hoist-1e6.csv");
+    if !path.exists() {
+        let sc = Scenario::builtin("hoist").expect("built-in scenario");
+        synth::synthesise(
+            &cfg.config,
+            "hoist",
+            &sc,
+            PlantOptions::default(),
+            ROWS,
+            &path.display().to_string(),
+            None,
+        )
+        .expect("synthesise bench trace");
+    }
+    path
+}
+
+fn bench(c: &mut Criterion) {
+    let cfg = LoadedConfig::from_str(DEMO_CONFIG, "demo.toml").expect("demo config");
+    let tables = CoreTables::build(&cfg.config).expect("tables");
+    let path = trace(&cfg).display().to_string();
+    let mut g = c.benchmark_group("replay");
+    g.sample_size(10);
+    g.throughput(Throughput::Elements(ROWS));
+    g.bench_function("parse+step 1e6 rows", |b| {
+        b.iter(|| {
+            let mut r =
+                TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
+            let mut est = seam::new_estimator(&cfg.config, &tables);
+            let mut acc = 0.0;
+            while let Some(s) = r.next_sample().expect("row") {
+                acc += est.step(&s).capacity_nm;
+            }
+            black_box(acc)
+        });
+    });
+    g.bench_function("step only 1e6 samples", |b| {
+        let mut r = TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
+        let mut samples = Vec::with_capacity(100_000);
+        while let Some(s) = r.next_sample().expect("row") {
+            if samples.len() < 100_000 {
+                samples.push(s);
+            }
+        }
+        b.iter(|| {
+            let mut est = seam::new_estimator(&cfg.config, &tables);
+            let mut acc = 0.0;
+            for _ in 0..10 {
+                for s in &samples {
+                    acc += est.step(s).capacity_nm;
+                }
+            }
+            black_box(acc)
+        });
+    });
+    g.finish();
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -1,0 +1,224 @@
+//! Command-line interface: subcommands and options.
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand};
+
+/// clampwise: replay clamp-force traces through the clampwise estimator, compare, fit and
+/// emit tables.
+///
+/// CAUTION: an estimate, not a certified safety function. Validate on the bench; follow the
+/// applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849), local codes and
+/// licensed engineering practice.
+///
+/// Exit codes: 0 ok; 1 usage or config error; 2 data error in a trace or estimate file;
+/// 3 accuracy threshold or coverage requirement failed; 4 I/O error; 5 internal error.
+#[derive(Debug, Parser)]
+#[command(name = "clampwise", version, about, long_about = None, after_help = "Exit codes: 0 ok, 1 usage/config error, 2 data error, 3 threshold failed, 4 I/O error, 5 internal error.")]
+pub struct Cli {
+    /// Print a JSON summary on standard output instead of the human text.
+    #[arg(long, global = true)]
+    pub json: bool,
+    /// No progress bars.
+    #[arg(long, short, global = true)]
+    pub quiet: bool,
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Run the built-in demo: synthesise the demo hoist-brake scenario, replay, compare, fit,
+    /// replay again with the fitted table, write plots and a summary.
+    Demo(DemoArgs),
+    /// Replay traces through the estimator into estimate traces (several traces run in
+    /// parallel).
+    Replay(ReplayArgs),
+    /// Compare estimate traces with their reference torque: bias, RMS, max, P95/P99, by region.
+    Compare(CompareArgs),
+    /// Fit the μ table from a trace with a reference torque, with a coverage map.
+    Fit(FitArgs),
+    /// Print the friction-radius and μ tables; emit them as Rust source for the firmware.
+    Tables(TablesArgs),
+    /// Synthesise a trace from the independent f64 plant model.
+    Synth(SynthArgs),
+    /// Validate configs (errors located by key, line and column).
+    Check(CheckArgs),
+    /// Plot an estimate trace (SVG or PNG by extension).
+    Plot(PlotArgs),
+}
+
+/// `demo`.
+#[derive(Debug, Args)]
+pub struct DemoArgs {
+    /// Directory for the demo's files.
+    #[arg(long, default_value = "clampwise-demo")]
+    pub out_dir: PathBuf,
+    /// Seconds of scenario to synthesise.
+    #[arg(long, default_value_t = 400.0)]
+    pub duration_s: f64,
+    /// RNG seed of the plant.
+    #[arg(long, default_value_t = 2027)]
+    pub seed: u64,
+    /// Skip the plots.
+    #[arg(long)]
+    pub no_plots: bool,
+}
+
+/// `replay`.
+#[derive(Debug, Args)]
+pub struct ReplayArgs {
+    /// Device config (TOML).
+    #[arg(long, short)]
+    pub config: PathBuf,
+    /// Trace files (CSV; `-` for standard input).
+    #[arg(required = true)]
+    pub traces: Vec<String>,
+    /// Estimate file for a single trace (`-` for standard output).
+    #[arg(long, short, conflicts_with = "out_dir")]
+    pub out: Option<String>,
+    /// Directory for estimate files, named TRACE-STEM.estimate.csv.
+    #[arg(long)]
+    pub out_dir: Option<PathBuf>,
+    /// Skip bad rows (counted and listed in the summary) instead of stopping.
+    #[arg(long)]
+    pub skip_bad_rows: bool,
+    /// Also plot each replay (a file for one trace; for several, use --plot-dir).
+    #[arg(long, conflicts_with = "plot_dir")]
+    pub plot: Option<String>,
+    /// Directory for plots, named TRACE-STEM.svg.
+    #[arg(long)]
+    pub plot_dir: Option<PathBuf>,
+    /// Parallel jobs (default: all cores).
+    #[arg(long, short)]
+    pub jobs: Option<usize>,
+}
+
+/// `compare`.
+#[derive(Debug, Args)]
+pub struct CompareArgs {
+    /// Estimate files written by `replay`.
+    #[arg(required = true)]
+    pub estimates: Vec<String>,
+    /// Config whose μ breakpoints and force limit define the region bands.
+    #[arg(long, short)]
+    pub config: Option<PathBuf>,
+    /// Fail (exit 3) when |bias| exceeds this, N·m.
+    #[arg(long)]
+    pub max_bias_nm: Option<f64>,
+    /// Fail (exit 3) when the RMS error exceeds this, N·m.
+    #[arg(long)]
+    pub max_rms_nm: Option<f64>,
+    /// Fail (exit 3) when the P99 of |error| exceeds this, N·m.
+    #[arg(long)]
+    pub max_p99_nm: Option<f64>,
+    /// Fail (exit 3) when the largest |error| exceeds this, N·m.
+    #[arg(long)]
+    pub max_abs_nm: Option<f64>,
+    /// Write the per-region numbers as CSV.
+    #[arg(long)]
+    pub regions_csv: Option<String>,
+}
+
+/// `fit`.
+#[derive(Debug, Args)]
+pub struct FitArgs {
+    /// Device config (TOML) holding the prior μ table.
+    #[arg(long, short)]
+    pub config: PathBuf,
+    /// Trace with a reference-torque column.
+    pub trace: String,
+    /// Write the config with the fitted μ table (comments kept).
+    #[arg(long, short)]
+    pub out: Option<String>,
+    /// Write the coverage map as CSV.
+    #[arg(long)]
+    pub coverage_csv: Option<String>,
+    /// Plot the fitted surface and its coverage (SVG or PNG).
+    #[arg(long)]
+    pub plot: Option<String>,
+    /// Coverage (sample-equivalents) an entry needs to be fitted.
+    #[arg(long, default_value_t = 200.0)]
+    pub min_coverage: f64,
+    /// Smallest clamp force of a usable sample, N (default 10 % of limits.max_clamp_force_n).
+    #[arg(long)]
+    pub min_force_n: Option<f64>,
+    /// Fail (exit 3, nothing written) unless every entry is reached.
+    #[arg(long)]
+    pub require_full_coverage: bool,
+    /// Skip bad rows (counted) instead of stopping.
+    #[arg(long)]
+    pub skip_bad_rows: bool,
+}
+
+/// `tables`.
+#[derive(Debug, Args)]
+pub struct TablesArgs {
+    /// Device config (TOML).
+    #[arg(long, short)]
+    pub config: PathBuf,
+    /// Write the tables as Rust source for the firmware.
+    #[arg(long)]
+    pub emit: Option<String>,
+}
+
+/// `synth`.
+#[derive(Debug, Args)]
+pub struct SynthArgs {
+    /// Device config (TOML).
+    #[arg(long, short)]
+    pub config: PathBuf,
+    /// Output trace (`-` for standard output).
+    #[arg(long, short)]
+    pub out: String,
+    /// Scenario: hoist, steady or sweep.
+    #[arg(long, default_value = "hoist")]
+    pub scenario: String,
+    /// Rows to write (overrides --duration-s).
+    #[arg(long)]
+    pub rows: Option<u64>,
+    /// Seconds of scenario (default: one cycle).
+    #[arg(long)]
+    pub duration_s: Option<f64>,
+    /// RNG seed.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// True μ = config table × this factor.
+    #[arg(long, default_value_t = 1.0)]
+    pub mu_scale: f64,
+    /// Extra relative fall of the true μ per K above the fade threshold.
+    #[arg(long, default_value_t = 0.0)]
+    pub mu_fade_per_k: f64,
+    /// Take the true μ table from this config instead.
+    #[arg(long)]
+    pub truth_config: Option<PathBuf>,
+    /// Force noise on each channel, N (σ).
+    #[arg(long, default_value_t = 30.0)]
+    pub force_noise_n: f64,
+    /// Inject a sensor fault, KIND:CHANNEL@START..END[=VALUE] (repeatable), e.g. stuck:2@30..35.
+    #[arg(long = "fault")]
+    pub faults: Vec<String>,
+}
+
+/// `check`.
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    /// Config files.
+    #[arg(required_unless_present = "units")]
+    pub configs: Vec<PathBuf>,
+    /// List the trace column units the mapping accepts.
+    #[arg(long)]
+    pub units: bool,
+}
+
+/// `plot`.
+#[derive(Debug, Args)]
+pub struct PlotArgs {
+    /// Estimate file written by `replay`.
+    pub estimate: String,
+    /// Plot file (.svg or .png).
+    #[arg(long, short)]
+    pub out: String,
+}

@@ -1,0 +1,369 @@
+//! `compare`: an estimate trace against its reference torque, streaming.
+//!
+//! Error = estimate − reference (N·m), over rows that have both (slipping and released rows;
+//! a holding row has no torque estimate, only a capacity, and is checked as
+//! "reference within ±capacity"). Reported: count, bias (mean error), RMS, max |error|, and
+//! P95/P99 of |error| from a [`QuantileSketch`] (bounded memory, relative accuracy
+//! [`crate::sketch::RELATIVE_ACCURACY`]) — overall and by operating region: lining temperature
+//! band, slip-speed band, clamp-force band, and state.
+
+use std::collections::BTreeMap;
+
+use serde::Serialize;
+
+use crate::config::DeviceConfig;
+use crate::error::SimError;
+use crate::estimate::EstimateReader;
+use crate::seam::{EstimateRow, State};
+use crate::sketch::QuantileSketch;
+
+/// Error statistics of one region.
+#[derive(Debug, Clone, Default)]
+pub struct ErrorStats {
+    n: u64,
+    sum: f64,
+    sum_sq: f64,
+    max_abs: f64,
+    sketch: QuantileSketch,
+}
+
+/// The reported numbers of one region.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct ErrorReport {
+    /// Rows.
+    pub n: u64,
+    /// Mean error, N·m.
+    pub bias_nm: f64,
+    /// RMS error, N·m.
+    pub rms_nm: f64,
+    /// Largest |error|, N·m.
+    pub max_abs_nm: f64,
+    /// 95th percentile of |error|, N·m.
+    pub p95_nm: f64,
+    /// 99th percentile of |error|, N·m.
+    pub p99_nm: f64,
+}
+
+impl ErrorStats {
+    /// Add one error.
+    pub fn add(&mut self, e: f64) {
+        self.n += 1;
+        self.sum += e;
+        self.sum_sq += e * e;
+        self.max_abs = self.max_abs.max(e.abs());
+        self.sketch.add(e);
+    }
+
+    /// The numbers; `None` when empty.
+    pub fn report(&self) -> Option<ErrorReport> {
+        if self.n == 0 {
+            return None;
+        }
+        // Counts stay far below 2⁵³.
+        #[allow(clippy::cast_precision_loss)]
+        let n = self.n as f64;
+        Some(ErrorReport {
+            n: self.n,
+            bias_nm: self.sum / n,
+            rms_nm: (self.sum_sq / n).sqrt(),
+            max_abs_nm: self.max_abs,
+            p95_nm: self.sketch.quantile(0.95).unwrap_or(0.0),
+            p99_nm: self.sketch.quantile(0.99).unwrap_or(0.0),
+        })
+    }
+}
+
+/// Band edges of one operating variable; band i is `[edges[i], edges[i+1])`, with open bands
+/// below the first and above the last edge.
+#[derive(Debug, Clone)]
+pub struct Bands {
+    name: &'static str,
+    unit: &'static str,
+    edges: Vec<f64>,
+}
+
+impl Bands {
+    fn label(&self, x: f64) -> String {
+        let i = self.edges.iter().position(|&e| x < e);
+        let edge = |k: usize| self.edges.get(k).copied().unwrap_or(0.0);
+        match i {
+            Some(0) => format!("{} < {} {}", self.name, edge(0), self.unit),
+            Some(i) => format!("{} {}–{} {}", self.name, edge(i - 1), edge(i), self.unit),
+            None => format!(
+                "{} ≥ {} {}",
+                self.name,
+                self.edges.last().copied().unwrap_or(0.0),
+                self.unit
+            ),
+        }
+    }
+}
+
+/// Holding rows: is the reference inside ±capacity?
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct HoldingReport {
+    /// Holding rows with a reference.
+    pub n: u64,
+    /// Rows where |reference| ≤ capacity.
+    pub within_capacity: u64,
+    /// Smallest capacity − |reference|, N·m (negative: reference beyond the capacity).
+    pub min_margin_nm: Option<f64>,
+}
+
+/// Everything `compare` reports.
+#[derive(Debug, Clone, Serialize)]
+pub struct CompareReport {
+    /// Estimate file.
+    pub file: String,
+    /// Rows read.
+    pub rows: u64,
+    /// Rows without a reference.
+    pub no_reference: u64,
+    /// Rows with no estimate (unavailable).
+    pub unavailable: u64,
+    /// Over all rows with both numbers.
+    pub overall: Option<ErrorReport>,
+    /// Only slipping rows.
+    pub slipping: Option<ErrorReport>,
+    /// By region label.
+    pub regions: BTreeMap<String, ErrorReport>,
+    /// Holding rows.
+    pub holding: HoldingReport,
+    /// Quantile method.
+    pub quantile_method: String,
+}
+
+/// Streaming accumulator of a comparison.
+pub struct Comparer {
+    bands: [Bands; 3],
+    overall: ErrorStats,
+    slipping: ErrorStats,
+    regions: BTreeMap<String, ErrorStats>,
+    holding: HoldingReport,
+    rows: u64,
+    no_reference: u64,
+    unavailable: u64,
+}
+
+impl Comparer {
+    /// Bands from the config's μ breakpoints and force limit, or fixed defaults.
+    pub fn new(c: Option<&DeviceConfig>) -> Self {
+        let (t, v, f) = match c {
+            Some(c) => {
+                let fmax = c.limits.max_clamp_force_n;
+                (
+                    c.friction.mu.temperature_c.clone(),
+                    c.friction
+                        .mu
+                        .slip_speed_rad_s
+                        .iter()
+                        .copied()
+                        .filter(|&s| s > 0.0)
+                        .collect(),
+                    vec![0.25 * fmax, 0.5 * fmax, 0.75 * fmax],
+                )
+            }
+            None => (
+                vec![100.0, 200.0, 300.0, 400.0],
+                vec![0.5, 2.0, 10.0],
+                vec![10e3, 20e3, 40e3, 80e3],
+            ),
+        };
+        Self {
+            bands: [
+                Bands {
+                    name: "temperature",
+                    unit: "°C",
+                    edges: t,
+                },
+                Bands {
+                    name: "|slip speed|",
+                    unit: "rad/s",
+                    edges: v,
+                },
+                Bands {
+                    name: "clamp force",
+                    unit: "N",
+                    edges: f,
+                },
+            ],
+            overall: ErrorStats::default(),
+            slipping: ErrorStats::default(),
+            regions: BTreeMap::new(),
+            holding: HoldingReport::default(),
+            rows: 0,
+            no_reference: 0,
+            unavailable: 0,
+        }
+    }
+
+    /// Add one estimate row.
+    pub fn add(&mut self, r: &EstimateRow) {
+        self.rows += 1;
+        let Some(reference) = r.torque_ref_nm else {
+            self.no_reference += 1;
+            return;
+        };
+        match (r.state, r.torque_nm) {
+            (State::Holding, _) => {
+                self.holding.n += 1;
+                let margin = r.capacity_nm - reference.abs();
+                if margin >= 0.0 {
+                    self.holding.within_capacity += 1;
+                }
+                self.holding.min_margin_nm =
+                    Some(self.holding.min_margin_nm.map_or(margin, |m| m.min(margin)));
+            }
+            (_, Some(t)) => {
+                let e = t - reference;
+                self.overall.add(e);
+                if r.state == State::Slipping {
+                    self.slipping.add(e);
+                }
+                let labels = [
+                    self.bands[0].label(r.lining_temp_c),
+                    self.bands[1].label(r.slip_speed_rad_s.abs()),
+                    self.bands[2].label(r.clamp_force_n),
+                    format!("state {}", r.state.name()),
+                ];
+                for l in labels {
+                    self.regions.entry(l).or_default().add(e);
+                }
+            }
+            (_, None) => self.unavailable += 1,
+        }
+    }
+
+    /// The report.
+    pub fn report(&self, file: &str) -> CompareReport {
+        CompareReport {
+            file: file.to_string(),
+            rows: self.rows,
+            no_reference: self.no_reference,
+            unavailable: self.unavailable,
+            overall: self.overall.report(),
+            slipping: self.slipping.report(),
+            regions: self
+                .regions
+                .iter()
+                .filter_map(|(k, v)| v.report().map(|r| (k.clone(), r)))
+                .collect(),
+            holding: self.holding.clone(),
+            quantile_method: format!(
+                "log-bucketed histogram (DDSketch scheme), relative accuracy {} %, bounded memory",
+                crate::sketch::RELATIVE_ACCURACY * 100.0
+            ),
+        }
+    }
+}
+
+/// Compare one estimate file.
+///
+/// # Errors
+/// I/O or located data errors.
+pub fn compare_file(
+    path: &str,
+    c: Option<&DeviceConfig>,
+    progress: Option<&indicatif::ProgressBar>,
+) -> Result<CompareReport, SimError> {
+    let mut r = EstimateReader::open(path)?;
+    let mut cmp = Comparer::new(c);
+    if let (Some(pb), (Some(len), _)) = (progress, r.progress()) {
+        pb.set_length(len);
+    }
+    let mut n = 0u64;
+    while let Some(row) = r.next_row()? {
+        cmp.add(&row);
+        n += 1;
+        if n.is_multiple_of(8192)
+            && let Some(pb) = progress
+        {
+            pb.set_position(r.progress().1);
+        }
+    }
+    Ok(cmp.report(r.file()))
+}
+
+/// Accuracy thresholds; a breach is exit code 3.
+#[derive(Debug, Clone, Default)]
+pub struct Thresholds {
+    /// Largest allowed |bias|, N·m.
+    pub max_bias_nm: Option<f64>,
+    /// Largest allowed RMS, N·m.
+    pub max_rms_nm: Option<f64>,
+    /// Largest allowed P99, N·m.
+    pub max_p99_nm: Option<f64>,
+    /// Largest allowed max |error|, N·m.
+    pub max_abs_nm: Option<f64>,
+}
+
+impl Thresholds {
+    /// The breaches of the overall numbers, as messages.
+    pub fn breaches(&self, r: &CompareReport) -> Vec<String> {
+        let mut out = Vec::new();
+        let Some(o) = &r.overall else {
+            if self
+                .max_bias_nm
+                .or(self.max_rms_nm)
+                .or(self.max_p99_nm)
+                .or(self.max_abs_nm)
+                .is_some()
+            {
+                out.push("no rows with both an estimate and a reference torque".into());
+            }
+            return out;
+        };
+        let mut check = |name: &str, v: f64, lim: Option<f64>| {
+            if let Some(l) = lim
+                && v > l
+            {
+                out.push(format!("{name} {v:.3} N·m exceeds {l} N·m"));
+            }
+        };
+        check("|bias|", o.bias_nm.abs(), self.max_bias_nm);
+        check("RMS", o.rms_nm, self.max_rms_nm);
+        check("P99", o.p99_nm, self.max_p99_nm);
+        check("max |error|", o.max_abs_nm, self.max_abs_nm);
+        out
+    }
+}
+
+/// Human text of a report.
+pub fn human(r: &CompareReport) -> String {
+    let mut o = format!(
+        "compare {}: {} rows ({} without reference, {} unavailable)\n",
+        r.file, r.rows, r.no_reference, r.unavailable
+    );
+    let line = |name: &str, e: &ErrorReport| {
+        format!(
+            "  {name:<34} n {:>9}  bias {:>9.2}  RMS {:>9.2}  max {:>9.2}  P95 {:>9.2}  P99 {:>9.2} N·m\n",
+            e.n, e.bias_nm, e.rms_nm, e.max_abs_nm, e.p95_nm, e.p99_nm
+        )
+    };
+    match &r.overall {
+        Some(e) => o.push_str(&line("overall (slipping + released)", e)),
+        None => o.push_str("  no rows with both an estimate and a reference torque\n"),
+    }
+    if let Some(e) = &r.slipping {
+        o.push_str(&line("slipping", e));
+    }
+    for (k, e) in &r.regions {
+        o.push_str(&line(k, e));
+    }
+    let h = &r.holding;
+    if h.n > 0 {
+        o.push_str(&format!(
+            "  holding: {} rows, reference within ±capacity in {} ({:.2} %), smallest margin {:.1} N·m\n",
+            h.n,
+            h.within_capacity,
+            {
+                #[allow(clippy::cast_precision_loss)]
+                let p = 100.0 * h.within_capacity as f64 / h.n as f64;
+                p
+            },
+            h.min_margin_nm.unwrap_or(0.0)
+        ));
+    }
+    o.push_str(&format!("  percentiles: {}\n", r.quantile_method));
+    o
+}

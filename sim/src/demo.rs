@@ -1,0 +1,247 @@
+//! `demo`: the built-in demonstration on an invented device, the caliper holding brake of the
+//! fictional Kestrel Deep No. 2 mine hoist (`configs/demo-hoist-brake.toml`).
+//!
+//! Steps: write the config; synthesise the `hoist` scenario from the f64 plant with pads that
+//! run 7 % below the nominal μ table and four injected sensor faults; replay; compare; fit the
+//! μ table; replay and compare again with the fitted table; plot; summarise with the caution.
+//! All numbers are invented for the demonstration.
+
+use std::path::Path;
+
+use serde_json::json;
+
+use crate::build_core::CoreTables;
+use crate::cli::DemoArgs;
+use crate::commands::{Outcome, bar};
+use crate::compare;
+use crate::config::LoadedConfig;
+use crate::error::SimError;
+use crate::fit::{self, FitOptions};
+use crate::output::write_file;
+use crate::plant::PlantOptions;
+use crate::plant::scenario::Scenario;
+use crate::plot;
+use crate::replay::{self, CAUTION, PLOT_POINTS, PlotPoint, ReplayOptions};
+use crate::series::Decimator;
+use crate::synth;
+
+/// The demo device's config text.
+pub const DEMO_CONFIG: &str = include_str!("../configs/demo-hoist-brake.toml");
+
+/// The sensor faults the demo injects.
+pub const DEMO_FAULTS: [&str; 4] = [
+    "stuck:2@40..45",
+    "rail_high:3@120..121",
+    "dropout:1@150..152",
+    "offset:2@250..260=30000",
+];
+
+/// How far the demo's "real" pads sit from the nominal table (invented).
+pub const DEMO_MU_SCALE: f64 = 0.93;
+
+fn path(dir: &Path, name: &str) -> String {
+    dir.join(name).display().to_string()
+}
+
+/// Run the demo.
+///
+/// # Errors
+/// I/O errors, or an internal error if a step fails.
+pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
+    let dir = &a.out_dir;
+    std::fs::create_dir_all(dir).map_err(|e| SimError::io(dir, e))?;
+    if !(a.duration_s.is_finite() && a.duration_s > 0.0) {
+        return Err(SimError::Usage("--duration-s must be positive".into()));
+    }
+    let config_path = path(dir, "demo-hoist-brake.toml");
+    write_file(&config_path, DEMO_CONFIG.as_bytes())?;
+    let cfg = LoadedConfig::from_str(DEMO_CONFIG, &config_path)?;
+    let tables = CoreTables::build(&cfg.config).map_err(|e| SimError::Internal(e.message))?;
+
+    let trace = path(dir, "trace.csv");
+    let scenario =
+        Scenario::builtin("hoist").ok_or_else(|| SimError::Internal("hoist scenario".into()))?;
+    let faults = DEMO_FAULTS
+        .iter()
+        .map(|f| f.parse())
+        .collect::<Result<Vec<_>, _>>()
+        .map_err(SimError::Internal)?;
+    // Positive and finite, checked above.
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    let rows = (a.duration_s / cfg.config.device.sample_period_s).round() as u64;
+    let pb = bar(quiet, None, "synthesising");
+    let syn = synth::synthesise(
+        &cfg.config,
+        "hoist",
+        &scenario,
+        PlantOptions {
+            seed: a.seed,
+            mu_scale: DEMO_MU_SCALE,
+            faults,
+            ..PlantOptions::default()
+        },
+        rows,
+        &trace,
+        pb.as_ref(),
+    )?;
+    if let Some(pb) = pb {
+        pb.finish_and_clear();
+    }
+
+    let estimate = path(dir, "estimate.csv");
+    let mut dec = Decimator::<PlotPoint>::new(PLOT_POINTS);
+    let opts = ReplayOptions {
+        skip_bad_rows: false,
+        progress: bar(quiet, None, "replaying"),
+    };
+    let rep = replay::replay_file(&cfg, &tables, &trace, &estimate, &opts, Some(&mut dec))?;
+    if let Some(pb) = &opts.progress {
+        pb.finish_and_clear();
+    }
+    let before = compare::compare_file(&estimate, Some(&cfg.config), None)?;
+
+    let pb = bar(quiet, None, "fitting μ");
+    let fitted = fit::fit_trace(&cfg, &tables, &trace, &FitOptions::default(), pb.as_ref())?;
+    if let Some(pb) = pb {
+        pb.finish_and_clear();
+    }
+    let fitted_path = path(dir, "fitted.toml");
+    let fitted_text = fit::patched_config(&cfg, &fitted)?;
+    write_file(&fitted_path, fitted_text.as_bytes())?;
+    write_file(
+        &path(dir, "coverage.csv"),
+        fit::coverage_csv(&fitted).as_bytes(),
+    )?;
+    let cfg2 = LoadedConfig::from_str(&fitted_text, &fitted_path)?;
+    let tables2 = CoreTables::build(&cfg2.config).map_err(|e| SimError::Internal(e.message))?;
+    let estimate2 = path(dir, "estimate-fitted.csv");
+    let mut dec2 = Decimator::<PlotPoint>::new(PLOT_POINTS);
+    let rep2 = replay::replay_file(
+        &cfg2,
+        &tables2,
+        &trace,
+        &estimate2,
+        &ReplayOptions::default(),
+        Some(&mut dec2),
+    )?;
+    let after = compare::compare_file(&estimate2, Some(&cfg2.config), None)?;
+
+    let mut plots = Vec::new();
+    if !a.no_plots {
+        let name = &cfg.config.device.name;
+        for (f, d, what) in [
+            ("estimate.svg", &dec, "nominal table"),
+            ("estimate.png", &dec, "nominal table"),
+            ("estimate-fitted.svg", &dec2, "fitted table"),
+        ] {
+            let p = path(dir, f);
+            plot::time_series_file(&p, d.points(), &format!("{name} — {what}"))?;
+            plots.push(p);
+        }
+        let (nt, nv) = (
+            cfg.config.friction.mu.temperature_c.len(),
+            cfg.config.friction.mu.slip_speed_rad_s.len(),
+        );
+        for f in ["mu-surface.svg", "mu-surface.png"] {
+            let p = path(dir, f);
+            plot::surface_file(&p, &fitted, nt, nv)?;
+            plots.push(p);
+        }
+    }
+
+    let line = |r: &compare::CompareReport| {
+        r.slipping.as_ref().map_or("no slipping rows".into(), |e| {
+            format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
+        })
+    };
+    let mut human = String::new();
+    human.push_str("clampwise demo — INVENTED device and data\n");
+    human.push_str(&format!("  device: {}\n", cfg.config.device.name));
+    human.push_str(&format!(
+        "  trace:  {} rows ({:.0} s at {} Hz) from the simulator's f64 plant, pads {} % below the nominal μ table, faults {}\n",
+        syn.rows,
+        a.duration_s,
+        1.0 / cfg.config.device.sample_period_s,
+        ((1.0 - DEMO_MU_SCALE) * 100.0).round(),
+        DEMO_FAULTS.join(", ")
+    ));
+    human.push_str(&format!(
+        "  max lining temperature {:.0} °C, max |torque| {:.0} N·m\n",
+        syn.max_true_temp_c, rep.tally.max_abs_torque_nm
+    ));
+    let states: Vec<String> = rep
+        .tally
+        .states
+        .iter()
+        .map(|(k, v)| format!("{k} {v}"))
+        .collect();
+    human.push_str(&format!("  states: {}\n", states.join(", ")));
+    let fl: Vec<String> = rep
+        .tally
+        .flags
+        .iter()
+        .filter(|(k, _)| k.as_str() != "adaptation_frozen")
+        .map(|(k, v)| format!("{k} {v}"))
+        .collect();
+    human.push_str(&format!(
+        "  flagged rows: {}\n",
+        if fl.is_empty() {
+            "none".into()
+        } else {
+            fl.join(", ")
+        }
+    ));
+    human.push_str(&format!("  nominal table: {}\n", line(&before)));
+    human.push_str(&format!("  fitted table:  {}\n", line(&after)));
+    if before.holding.n > 0 {
+        human.push_str(&format!(
+            "  holding: {} rows; the load stayed within the estimated ±capacity in {} of them\n",
+            before.holding.n, before.holding.within_capacity
+        ));
+    }
+    human.push_str(&format!(
+        "  fit: {} samples used; {} of {} table entries reached; not reached (prior kept, not extrapolated): {}\n",
+        fitted.used,
+        fitted.cells.iter().filter(|c| c.reached).count(),
+        fitted.cells.len(),
+        if fitted.unreached.is_empty() { "none".into() } else { fitted.unreached.len().to_string() }
+    ));
+    human.push_str(&format!(
+        "  replay throughput: {:.0} rows/s ({})\n",
+        rep.rows_per_s,
+        replay::ESTIMATOR_NAME
+    ));
+    human.push_str(&format!("  files in {}: demo-hoist-brake.toml, trace.csv, estimate.csv, fitted.toml, coverage.csv, estimate-fitted.csv, summary.json", dir.display()));
+    for p in &plots {
+        if let Some(n) = Path::new(p).file_name() {
+            human.push_str(&format!(", {}", n.to_string_lossy()));
+        }
+    }
+    human.push('\n');
+    human.push_str(&format!("\n{CAUTION}\n"));
+    let js = json!({
+        "command": "demo",
+        "invented": true,
+        "device": cfg.config.device.name,
+        "synth": serde_json::to_value(&syn).unwrap_or_default(),
+        "replay": serde_json::to_value(&rep).unwrap_or_default(),
+        "compare_nominal": serde_json::to_value(&before).unwrap_or_default(),
+        "fit": serde_json::to_value(&fitted).unwrap_or_default(),
+        "replay_fitted": serde_json::to_value(&rep2).unwrap_or_default(),
+        "compare_fitted": serde_json::to_value(&after).unwrap_or_default(),
+        "plots": plots,
+        "caution": CAUTION,
+    });
+    write_file(
+        &path(dir, "summary.json"),
+        serde_json::to_string_pretty(&js)
+            .unwrap_or_default()
+            .as_bytes(),
+    )?;
+    Ok(Outcome {
+        human,
+        json: js,
+        human_to_stderr: false,
+        failure: None,
+    })
+}

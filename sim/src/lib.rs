@@ -1,0 +1,71 @@
+//! # clampwise-sim
+//!
+//! The host simulator behind the `clampwise` command: configs (TOML), traces (CSV), replay
+//! through the estimator, comparison with a reference torque, μ-table fitting, firmware table
+//! emission, an independent f64 plant for synthetic traces, and plots.
+//!
+//! **Caution.** Its output is an *estimate*, validated only as far as its tests; it is not a
+//! certified safety function. Validate on the bench for each lining and geometry, and follow
+//! the applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849 or the machine's
+//! own standard), local codes and licensed engineering practice.
+//!
+//! ## Where things are
+//!
+//! | module | concept |
+//! |---|---|
+//! | [`config`] | the TOML device config: schema, validation, located errors |
+//! | [`column_units`] | units a trace column may carry, and their conversion |
+//! | [`build_core`] | config → core fixed-point tables (the one conversion point) |
+//! | [`seam`] | **the seam**: `SampleEstimator::step`, and the temporary `TablesOnlyEstimator` |
+//! | [`csvin`], [`trace`], [`timestamps`] | located, streaming CSV input; column mapping; time checks |
+//! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
+//! | [`replay`], [`compare`], [`sketch`], [`fit`], [`emit`] | the subcommands' work |
+//! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
+//! | [`plot`], [`series`] | plots, bounded-memory decimation |
+//! | [`cli`], [`commands`], [`demo`], [`error`] | the command line, exit codes |
+//!
+//! ## Example
+//!
+//! ```
+//! use clampwise_sim::build_core::CoreTables;
+//! use clampwise_sim::config::LoadedConfig;
+//! use clampwise_sim::seam::{self, Channel, TraceSample, State};
+//!
+//! let cfg = LoadedConfig::from_str(clampwise_sim::demo::DEMO_CONFIG, "demo.toml").unwrap();
+//! let tables = CoreTables::build(&cfg.config).unwrap();
+//! let mut est = seam::new_estimator(&cfg.config, &tables);
+//! let s = TraceSample {
+//!     force: [Channel::Newtons(30_000.0); 4],
+//!     force_valid: [true; 4],
+//!     omega_in_rad_s: 2.0,
+//!     temp_c: Some(100.0),
+//!     ..TraceSample::default()
+//! };
+//! let row = est.step(&s);
+//! assert_eq!(row.state, State::Slipping);
+//! assert!(row.torque_nm.unwrap() < 0.0); // opposes the slip
+//! ```
+
+pub mod build_core;
+pub mod cli;
+pub mod column_units;
+pub mod commands;
+pub mod compare;
+pub mod config;
+pub mod csvin;
+pub mod demo;
+pub mod emit;
+pub mod error;
+pub mod estimate;
+pub mod fit;
+pub mod memory;
+pub mod output;
+pub mod plant;
+pub mod plot;
+pub mod replay;
+pub mod seam;
+pub mod series;
+pub mod sketch;
+pub mod synth;
+pub mod timestamps;
+pub mod trace;

@@ -1,0 +1,466 @@
+//! An independent f64 plant model of the device, for synthetic traces.
+//!
+//! It shares no code with the core or with [`crate::build_core`]: its effective radius comes
+//! from its own Gauss–Legendre integration over the pad ([`geometry`]), its μ from its own
+//! bilinear interpolation of a truth table, its temperature from an exact exponential step of
+//! the lumped model C·dT/dt = γ·P − C·(T − T∞)/τ [pub: Shigley ch. 16, lumped rotor; Day
+//! ch. 8, Newtonian cooling], and its bedding from bedding = 1 − (1 − b₀)·exp(−E/E_bed).
+//! Sensor readings are the true force through the inverse calibration, plus seeded Gaussian
+//! noise, rounded to counts, held within the rails, with injected [`faults`].
+//!
+//! Speeds and command follow the [`scenario`]; the plant does not integrate drum dynamics.
+//! While holding (|slip| below half the configured stick speed) the friction torque is the
+//! load torque, bounded by the true static capacity.
+
+pub mod faults;
+pub mod geometry;
+pub mod rng;
+pub mod scenario;
+
+use crate::config::{DeviceConfig, DeviceKind, MuTableSpec};
+use faults::{Fault, FaultKind};
+use rng::Rng;
+use scenario::ScenarioPoint;
+
+/// What may differ between the plant and the config (the "truth" of a synthetic run).
+#[derive(Debug, Clone)]
+pub struct PlantOptions {
+    /// RNG seed.
+    pub seed: u64,
+    /// True μ = config table × this factor.
+    pub mu_scale: f64,
+    /// Extra relative fall of μ per K above the fade threshold (μ drift beyond the table).
+    pub mu_fade_per_k: f64,
+    /// A different truth μ table (same or other breakpoints) instead of the config's.
+    pub truth_mu: Option<MuTableSpec>,
+    /// Gaussian force noise on each channel, N (σ).
+    pub force_noise_n: f64,
+    /// Thermocouple noise, K (σ).
+    pub temp_noise_k: f64,
+    /// Reference torque noise: σ = abs + ratio·|T|.
+    pub torque_noise_abs_nm: f64,
+    /// See `torque_noise_abs_nm`.
+    pub torque_noise_ratio: f64,
+    /// Actuator time constant, s (command → clamp force).
+    pub actuator_tau_s: f64,
+    /// Full clamp force at command 1, N (from `[actuator]` when absent).
+    pub full_force_n: Option<f64>,
+    /// Injected sensor faults.
+    pub faults: Vec<Fault>,
+}
+
+impl Default for PlantOptions {
+    fn default() -> Self {
+        Self {
+            seed: 1,
+            mu_scale: 1.0,
+            mu_fade_per_k: 0.0,
+            truth_mu: None,
+            force_noise_n: 30.0,
+            temp_noise_k: 0.5,
+            torque_noise_abs_nm: 5.0,
+            torque_noise_ratio: 0.002,
+            actuator_tau_s: 0.05,
+            full_force_n: None,
+            faults: Vec::new(),
+        }
+    }
+}
+
+/// One plant output sample: what a logger records, plus the truth for diagnosis.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PlantSample {
+    /// Time, s.
+    pub t_s: f64,
+    /// ADC counts per channel (`None` = no reading).
+    pub counts: [Option<i64>; 4],
+    /// Valid bits.
+    pub valid: [bool; 4],
+    /// Input speed, rad/s.
+    pub omega_in: f64,
+    /// Output speed, rad/s.
+    pub omega_out: f64,
+    /// Command, 0 … 1.
+    pub command: f64,
+    /// Thermocouple, °C (0.1 K resolution).
+    pub temp_meas_c: f64,
+    /// Ambient, °C.
+    pub ambient_c: f64,
+    /// Reference torque (torque flange), N·m.
+    pub torque_ref_nm: f64,
+    /// True clamp force, N.
+    pub true_force_n: f64,
+    /// True μ (kinetic).
+    pub true_mu: f64,
+    /// True effective radius, m.
+    pub true_radius_m: f64,
+    /// True lining temperature, °C.
+    pub true_temp_c: f64,
+    /// True bedding.
+    pub true_bedding: f64,
+    /// Code of an active fault (0 = none), see [`Fault::code`].
+    pub fault_code: u32,
+}
+
+/// The plant.
+#[derive(Debug, Clone)]
+pub struct Plant {
+    dt: f64,
+    faces: f64,
+    r_up: f64,
+    r_uw: f64,
+    mu: MuTableSpec,
+    opts: PlantOptions,
+    static_ratio: f64,
+    stick: f64,
+    drag: (f64, f64),
+    heat_capacity: f64,
+    tau: f64,
+    gamma: f64,
+    ambient: f64,
+    fade: f64,
+    bedding_energy: f64,
+    bedding0: f64,
+    wear_rate: f64,
+    pad_area: f64,
+    sensors: Vec<(f64, f64, i64, i64)>,
+    full_force: f64,
+    brake: bool,
+    // state
+    step: u64,
+    force: f64,
+    temp: f64,
+    energy: f64,
+    wear_m: f64,
+    stuck: [Option<i64>; 4],
+    rng: Rng,
+}
+
+/// Bilinear interpolation of a μ table, clamped at the edges (the plant's own).
+pub fn mu_of(t: &MuTableSpec, temp: f64, speed: f64) -> f64 {
+    // Indices come from the checks just before each use (n ≥ 2, i + 1 < n).
+    #[allow(clippy::indexing_slicing)]
+    fn bracket(xs: &[f64], x: f64) -> (usize, usize, f64) {
+        let n = xs.len();
+        if n <= 1 || x <= xs[0] {
+            return (0, 0, 0.0);
+        }
+        if x >= xs[n - 1] {
+            return (n - 1, n - 1, 0.0);
+        }
+        let i = xs.windows(2).position(|w| x < w[1]).unwrap_or(0);
+        (i, i + 1, (x - xs[i]) / (xs[i + 1] - xs[i]))
+    }
+    let (i0, i1, fx) = bracket(&t.temperature_c, temp);
+    let (j0, j1, fy) = bracket(&t.slip_speed_rad_s, speed);
+    let z = |i: usize, j: usize| {
+        t.values
+            .get(i)
+            .and_then(|r| r.get(j))
+            .copied()
+            .unwrap_or(0.0)
+    };
+    let a = z(i0, j0) + fy * (z(i0, j1) - z(i0, j0));
+    let b = z(i1, j0) + fy * (z(i1, j1) - z(i1, j0));
+    a + fx * (b - a)
+}
+
+impl Plant {
+    /// A plant for a validated config.
+    ///
+    /// # Errors
+    /// A message when the geometry cannot be integrated.
+    pub fn new(c: &DeviceConfig, opts: PlantOptions) -> Result<Self, String> {
+        let (r_up, r_uw) = geometry::effective_radii(&c.contact)?;
+        let th = &c.thermal;
+        let tau = match (
+            th.cooling_time_constant_s,
+            th.heat_transfer_w_per_m2_k,
+            th.cooling_area_m2,
+        ) {
+            (Some(t), _, _) => t,
+            (None, Some(h), Some(a)) => th.rotor_heat_capacity_j_per_k / (h * a),
+            _ => return Err("thermal: no cooling given".into()),
+        };
+        let full_force = opts
+            .full_force_n
+            .or(c
+                .actuator
+                .as_ref()
+                .map(|a| a.force_n_per_command + a.force_offset_n))
+            .unwrap_or(c.limits.max_clamp_force_n * 0.75);
+        Ok(Self {
+            dt: c.device.sample_period_s,
+            faces: f64::from(c.contact.faces),
+            r_up,
+            r_uw,
+            mu: opts
+                .truth_mu
+                .clone()
+                .unwrap_or_else(|| c.friction.mu.clone()),
+            static_ratio: c.friction.static_ratio,
+            // Half the estimator's stick speed: the estimator's holding band (with its
+            // hysteresis) then contains the plant's, so a sample the plant holds is never one the
+            // estimator reports as slipping at the threshold's edge.
+            stick: 0.5 * c.friction.stick_speed_rad_s,
+            drag: (
+                c.friction.drag_torque_nm,
+                c.friction.drag_viscous_nm_per_rad_s,
+            ),
+            heat_capacity: th.rotor_heat_capacity_j_per_k,
+            tau,
+            gamma: th.heat_into_rotor_ratio,
+            ambient: th.ambient_c,
+            fade: th.fade_c,
+            bedding_energy: c.wear.bedding_energy_j,
+            bedding0: c.wear.initial_bedding_ratio,
+            wear_rate: c.wear.specific_wear_rate_m3_per_j,
+            pad_area: c.wear.pad_area_m2,
+            sensors: c
+                .sensors
+                .iter()
+                .map(|s| {
+                    (
+                        s.gain_n_per_count,
+                        s.offset_counts,
+                        s.rail_low_counts,
+                        s.rail_high_counts,
+                    )
+                })
+                .collect(),
+            full_force,
+            brake: c.device.kind == DeviceKind::Brake,
+            step: 0,
+            force: 0.0,
+            temp: th.initial_temperature_c.unwrap_or(th.ambient_c),
+            energy: 0.0,
+            wear_m: c.wear.initial_wear_m,
+            stuck: [None; 4],
+            rng: Rng::new(opts.seed),
+            opts,
+        })
+    }
+
+    /// Effective radii of the plant's integration (uniform pressure, uniform wear), m.
+    pub fn radii(&self) -> (f64, f64) {
+        (self.r_up, self.r_uw)
+    }
+
+    /// Lining wear so far, m.
+    pub fn wear_m(&self) -> f64 {
+        self.wear_m
+    }
+
+    /// Advance one sample period under the scenario inputs.
+    pub fn step(&mut self, sp: &ScenarioPoint) -> PlantSample {
+        // Sample counts stay far below 2⁵³.
+        #[allow(clippy::cast_precision_loss)]
+        let t = self.step as f64 * self.dt;
+        self.step += 1;
+        let target = (sp.command.clamp(0.0, 1.5)) * self.full_force;
+        let k = 1.0 - (-self.dt / self.opts.actuator_tau_s.max(1e-6)).exp();
+        self.force += (target - self.force) * k;
+        let force = self.force.max(0.0);
+
+        let omega_out = if self.brake { 0.0 } else { sp.omega_out };
+        let slip = sp.omega_in - omega_out;
+        let bedding = 1.0 - (1.0 - self.bedding0) * (-self.energy / self.bedding_energy).exp();
+        let r_e = (1.0 - bedding) * self.r_up + bedding * self.r_uw;
+        let fade = 1.0 - self.opts.mu_fade_per_k * (self.temp - self.fade).max(0.0);
+        let mu = mu_of(&self.mu, self.temp, slip.abs()) * self.opts.mu_scale * fade.max(0.05);
+        let kinetic = self.faces * mu * force * r_e;
+        let torque = if slip.abs() > self.stick {
+            -slip.signum() * (kinetic + self.drag.0 + self.drag.1 * slip.abs())
+        } else {
+            let capacity = kinetic * self.static_ratio;
+            (-sp.load_nm).clamp(-capacity, capacity)
+        };
+        let power = (torque * slip).abs();
+        let decay = (-self.dt / self.tau).exp();
+        self.temp = self.ambient
+            + (self.temp - self.ambient) * decay
+            + self.gamma * power * self.tau / self.heat_capacity * (1.0 - decay);
+        self.energy += power * self.dt;
+        self.wear_m += self.wear_rate * power * self.dt / self.faces / self.pad_area;
+
+        let mut counts = [None; 4];
+        let mut valid = [false; 4];
+        let mut fault_code = 0;
+        for (ch, &(gain, offset, lo, hi)) in self.sensors.iter().enumerate() {
+            let noise = self.opts.force_noise_n * self.rng.normal();
+            let mut c = (force + noise) / gain + offset;
+            let mut ok = true;
+            let mut stuck_now = false;
+            for f in self
+                .opts
+                .faults
+                .iter()
+                .filter(|f| f.channel == ch + 1 && f.active(t))
+            {
+                fault_code = f.code();
+                match f.kind {
+                    FaultKind::Stuck => stuck_now = true,
+                    // The ADC rails are i32-range integers: exact in f64.
+                    #[allow(clippy::cast_precision_loss)]
+                    FaultKind::RailHigh => c = hi as f64,
+                    #[allow(clippy::cast_precision_loss)]
+                    FaultKind::RailLow => c = lo as f64,
+                    FaultKind::Offset(v) => c += v,
+                    FaultKind::Noise(s) => c += s * self.rng.normal(),
+                    FaultKind::Dropout => ok = false,
+                }
+            }
+            #[allow(clippy::cast_precision_loss)]
+            let (lo_f, hi_f) = (lo as f64, hi as f64);
+            // Clamped to the rails, which lie in the i32 range.
+            #[allow(clippy::cast_possible_truncation)]
+            let reading = c.round().clamp(lo_f, hi_f) as i64;
+            let slot = self.stuck.get_mut(ch);
+            let reading = match (stuck_now, slot) {
+                (true, Some(s)) => *s.get_or_insert(reading),
+                (false, Some(s)) => {
+                    *s = None;
+                    reading
+                }
+                (_, None) => reading,
+            };
+            if let (Some(o), Some(v)) = (counts.get_mut(ch), valid.get_mut(ch)) {
+                *o = if ok { Some(reading) } else { None };
+                *v = ok;
+            }
+        }
+        let temp_meas =
+            ((self.temp + self.opts.temp_noise_k * self.rng.normal()) * 10.0).round() / 10.0;
+        let sigma = self.opts.torque_noise_abs_nm + self.opts.torque_noise_ratio * torque.abs();
+        PlantSample {
+            t_s: t,
+            counts,
+            valid,
+            omega_in: sp.omega_in,
+            omega_out,
+            command: sp.command,
+            temp_meas_c: temp_meas,
+            ambient_c: self.ambient,
+            torque_ref_nm: torque + sigma * self.rng.normal(),
+            true_force_n: force,
+            true_mu: mu,
+            true_radius_m: r_e,
+            true_temp_c: self.temp,
+            true_bedding: bedding,
+            fault_code,
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+    use crate::config::LoadedConfig;
+    use approx::assert_relative_eq;
+
+    fn demo() -> DeviceConfig {
+        LoadedConfig::from_str(include_str!("../../configs/demo-hoist-brake.toml"), "d")
+            .unwrap()
+            .config
+    }
+
+    #[test]
+    fn heating_matches_lumped_formula() {
+        // [pub: Shigley ch. 16] ΔT = γ·E/(m·c) for a short stop (cooling negligible over 1 s
+        // against τ = 60 s: [calc] relative effect ≈ t/(2τ) < 1 %).
+        let c = demo();
+        let mut p = Plant::new(
+            &c,
+            PlantOptions {
+                force_noise_n: 0.0,
+                torque_noise_abs_nm: 0.0,
+                torque_noise_ratio: 0.0,
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap();
+        let sp = ScenarioPoint {
+            omega_in: 2.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 0.0,
+        };
+        let mut energy = 0.0;
+        let mut last = p.step(&sp);
+        for _ in 0..999 {
+            last = p.step(&sp);
+            energy += (last.torque_ref_nm * 2.0).abs() * c.device.sample_period_s;
+        }
+        let dt_expected = 0.9 * energy / 4000.0;
+        assert_relative_eq!(last.true_temp_c - 25.0, dt_expected, max_relative = 0.02);
+    }
+
+    #[test]
+    fn slip_torque_and_holding() {
+        let c = demo();
+        let mut p = Plant::new(
+            &c,
+            PlantOptions {
+                force_noise_n: 0.0,
+                torque_noise_abs_nm: 0.0,
+                torque_noise_ratio: 0.0,
+                actuator_tau_s: 1e-6,
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap();
+        let s = p.step(&ScenarioPoint {
+            omega_in: 2.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 0.0,
+        });
+        // [pub] T = N·μ·F·r_e, new pads (uniform pressure), μ(25 °C, 2 rad/s) from the table.
+        let mu = mu_of(&c.friction.mu, 25.0, 2.0);
+        assert_relative_eq!(
+            s.torque_ref_nm,
+            -2.0 * mu * 30_000.0 * p.radii().0,
+            max_relative = 1e-4
+        );
+        let h = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 5000.0,
+        });
+        assert_relative_eq!(h.torque_ref_nm, -5000.0, max_relative = 1e-9);
+    }
+
+    #[test]
+    fn faults_act_on_their_channel() {
+        let c = demo();
+        let faults = vec![
+            "stuck:2@0..1".parse().unwrap(),
+            "dropout:1@0..1".parse().unwrap(),
+        ];
+        let mut p = Plant::new(
+            &c,
+            PlantOptions {
+                faults,
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap();
+        let a = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 0.0,
+        });
+        let b = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.9,
+            load_nm: 0.0,
+        });
+        assert_eq!(a.counts[1], b.counts[1]);
+        assert_ne!(a.counts[2], b.counts[2]);
+        assert_eq!((b.counts[0], b.valid[0]), (None, false));
+    }
+}

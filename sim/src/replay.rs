@@ -1,0 +1,324 @@
+//! `replay`: a trace and a config in, an estimate trace out, through the estimator behind
+//! [`crate::seam`]. Streams row by row: memory does not grow with the trace length.
+
+use std::collections::BTreeMap;
+use std::time::Instant;
+
+use indicatif::ProgressBar;
+use serde::Serialize;
+
+use crate::build_core::CoreTables;
+use crate::config::LoadedConfig;
+use crate::error::SimError;
+use crate::estimate::EstimateWriter;
+use crate::seam::{self, EstimateRow, SampleEstimator, State, TraceSample, flags};
+use crate::series::Decimator;
+use crate::timestamps::TimeReport;
+use crate::trace::{RowPolicy, SkipReport, TraceReader};
+
+/// The caution printed with every human summary.
+pub const CAUTION: &str = "CAUTION: this is an estimate, validated only as far as its tests; it is not a certified safety function. Validate on the bench for each lining and geometry, and follow the applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849 or the machine's own standard), local codes and licensed engineering practice.";
+
+/// Name of the estimator in use, written into outputs so a reader knows what produced them.
+pub const ESTIMATOR_NAME: &str =
+    "tables-only (TEMPORARY stand-in until clampwise_core::estimator lands)";
+
+/// How many points a plot keeps, whatever the trace length.
+pub const PLOT_POINTS: usize = 4000;
+
+/// One plotted instant.
+#[derive(Debug, Clone, Copy)]
+pub struct PlotPoint {
+    /// Time, s.
+    pub t_s: f64,
+    /// Estimated torque, N·m (None while holding).
+    pub torque_nm: Option<f64>,
+    /// Reference torque, N·m.
+    pub reference_nm: Option<f64>,
+    /// Holding capacity, N·m.
+    pub capacity_nm: f64,
+    /// Uncertainty, N·m.
+    pub uncertainty_nm: f64,
+    /// Lining temperature used, °C.
+    pub temp_c: f64,
+    /// μ used.
+    pub mu: f64,
+    /// Clamp force, N.
+    pub force_n: f64,
+    /// Slip speed, rad/s.
+    pub slip_rad_s: f64,
+    /// State.
+    pub state: State,
+    /// Flags.
+    pub flags: u32,
+}
+
+impl From<&EstimateRow> for PlotPoint {
+    fn from(r: &EstimateRow) -> Self {
+        Self {
+            t_s: r.t_s,
+            torque_nm: r.torque_nm,
+            reference_nm: r.torque_ref_nm,
+            capacity_nm: r.capacity_nm,
+            uncertainty_nm: r.uncertainty_nm,
+            temp_c: r.lining_temp_c,
+            mu: r.mu,
+            force_n: r.clamp_force_n,
+            slip_rad_s: r.slip_speed_rad_s,
+            state: r.state,
+            flags: r.flags,
+        }
+    }
+}
+
+/// Counts and extremes of a replay.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Tally {
+    /// Rows replayed.
+    pub rows: u64,
+    /// Rows per state.
+    pub states: BTreeMap<String, u64>,
+    /// Rows per flag.
+    pub flags: BTreeMap<String, u64>,
+    /// Largest |torque|, N·m.
+    pub max_abs_torque_nm: f64,
+    /// Largest capacity, N·m.
+    pub max_capacity_nm: f64,
+    /// Largest lining temperature, °C.
+    pub max_lining_temp_c: f64,
+    /// Largest clamp force, N.
+    pub max_clamp_force_n: f64,
+}
+
+impl Tally {
+    /// Count one row.
+    pub fn add(&mut self, r: &EstimateRow) {
+        self.rows += 1;
+        *self.states.entry(r.state.name().to_string()).or_default() += 1;
+        if r.flags != 0 {
+            for (bit, name) in flags::NAMES {
+                if r.flags & bit != 0 {
+                    *self.flags.entry(name.to_string()).or_default() += 1;
+                }
+            }
+        }
+        if let Some(t) = r.torque_nm {
+            self.max_abs_torque_nm = self.max_abs_torque_nm.max(t.abs());
+        }
+        self.max_capacity_nm = self.max_capacity_nm.max(r.capacity_nm);
+        self.max_lining_temp_c = self.max_lining_temp_c.max(r.lining_temp_c);
+        self.max_clamp_force_n = self.max_clamp_force_n.max(r.clamp_force_n);
+    }
+}
+
+/// What one replay did.
+#[derive(Debug, Clone, Serialize)]
+pub struct ReplaySummary {
+    /// Input trace.
+    pub trace: String,
+    /// Estimate file written.
+    pub output: String,
+    /// Estimator used.
+    pub estimator: &'static str,
+    /// Data rows read (good and skipped).
+    pub rows_read: u64,
+    /// Counts and extremes.
+    pub tally: Tally,
+    /// Skipped rows (with `--skip-bad-rows`).
+    pub skipped: SkipReport,
+    /// Time-stamp checks.
+    pub time: TimeReport,
+    /// A last line without terminator (its values were used).
+    pub unterminated_last_line: Option<u64>,
+    /// Wall time, s.
+    pub elapsed_s: f64,
+    /// Throughput, rows/s.
+    pub rows_per_s: f64,
+    /// Peak resident memory of the whole process at the end of this replay, bytes (Linux).
+    pub peak_rss_bytes: Option<u64>,
+}
+
+/// Options of one replay.
+#[derive(Clone, Default)]
+pub struct ReplayOptions {
+    /// Skip and count bad rows instead of stopping.
+    pub skip_bad_rows: bool,
+    /// Progress bar to drive (by bytes read).
+    pub progress: Option<ProgressBar>,
+}
+
+/// Run every sample of `reader` through `est`, handing each pair to `sink`.
+///
+/// # Errors
+/// The first located data error (under [`RowPolicy::Stop`]) or the sink's error.
+pub fn run_stream(
+    reader: &mut TraceReader,
+    est: &mut dyn SampleEstimator,
+    progress: Option<&ProgressBar>,
+    mut sink: impl FnMut(&TraceSample, &EstimateRow) -> Result<(), SimError>,
+) -> Result<TimeReport, SimError> {
+    if let (Some(pb), (Some(len), _)) = (progress, reader.progress()) {
+        pb.set_length(len);
+    }
+    let mut n: u64 = 0;
+    while let Some(s) = reader.next_sample()? {
+        let row = est.step(&s);
+        sink(&s, &row)?;
+        n += 1;
+        if n.is_multiple_of(8192)
+            && let Some(pb) = progress
+        {
+            pb.set_position(reader.progress().1);
+        }
+    }
+    if let Some(pb) = progress {
+        pb.set_position(reader.progress().1);
+    }
+    Ok(reader.finish()?)
+}
+
+/// Replay one trace into an estimate file, collecting plot points when `plot` is given.
+///
+/// # Errors
+/// I/O, config-to-trace mapping and located data errors. On error the output is left only as
+/// `OUTPUT.partial`, never under its final name.
+pub fn replay_file(
+    cfg: &LoadedConfig,
+    tables: &CoreTables,
+    input: &str,
+    output: &str,
+    opts: &ReplayOptions,
+    mut plot: Option<&mut Decimator<PlotPoint>>,
+) -> Result<ReplaySummary, SimError> {
+    let start = Instant::now();
+    let policy = if opts.skip_bad_rows {
+        RowPolicy::Skip
+    } else {
+        RowPolicy::Stop
+    };
+    let mut reader = TraceReader::open(input, &cfg.config, policy, false)?;
+    let comments = vec![
+        format!("clampwise estimate of {input} with config {}", cfg.file),
+        format!("device: {}", cfg.config.device.name),
+        format!("estimator: {ESTIMATOR_NAME}"),
+        CAUTION.to_string(),
+    ];
+    let mut writer = EstimateWriter::create(output, &comments)?;
+    let mut est = seam::new_estimator(&cfg.config, tables);
+    let mut tally = Tally::default();
+    let result = run_stream(
+        &mut reader,
+        est.as_mut(),
+        opts.progress.as_ref(),
+        |_, row| {
+            tally.add(row);
+            if let Some(d) = plot.as_deref_mut() {
+                d.push(PlotPoint::from(row));
+            }
+            writer.write(row)
+        },
+    );
+    let time = match result {
+        Ok(t) => t,
+        Err(e) => {
+            let left = writer.abandon(&e.to_string());
+            return Err(match (e, left) {
+                (SimError::Data(mut d), Some(p)) => {
+                    d.message.push_str(&format!(
+                        " [output not written; partial rows left in {}]",
+                        p.display()
+                    ));
+                    SimError::Data(d)
+                }
+                (e, _) => e,
+            });
+        }
+    };
+    writer.commit()?;
+    let elapsed = start.elapsed().as_secs_f64();
+    Ok(ReplaySummary {
+        trace: input.to_string(),
+        output: output.to_string(),
+        estimator: ESTIMATOR_NAME,
+        rows_read: reader.rows_read(),
+        rows_per_s: rows_per_s(tally.rows, elapsed),
+        tally,
+        skipped: reader.skipped().clone(),
+        time,
+        unterminated_last_line: reader.unterminated_last_line(),
+        elapsed_s: elapsed,
+        peak_rss_bytes: crate::memory::peak_rss_bytes(),
+    })
+}
+
+/// Rows per second, 0 for a zero duration.
+pub fn rows_per_s(rows: u64, elapsed_s: f64) -> f64 {
+    // Row counts stay far below 2⁵³.
+    #[allow(clippy::cast_precision_loss)]
+    let r = rows as f64;
+    if elapsed_s > 0.0 { r / elapsed_s } else { 0.0 }
+}
+
+/// Human lines of a summary.
+pub fn human(s: &ReplaySummary) -> String {
+    let mut o = String::new();
+    o.push_str(&format!("replayed {} → {}\n", s.trace, s.output));
+    o.push_str(&format!(
+        "  rows: {} read, {} replayed, {} skipped\n",
+        s.rows_read, s.tally.rows, s.skipped.count
+    ));
+    for line in &s.skipped.first {
+        o.push_str(&format!("    skipped: {line}\n"));
+    }
+    if s.skipped.count > s.skipped.first.len() as u64 {
+        o.push_str(&format!(
+            "    … and {} more skipped rows\n",
+            s.skipped.count - s.skipped.first.len() as u64
+        ));
+    }
+    let t = &s.time;
+    o.push_str(&format!(
+        "  time: {:.3} … {:.3} s, median step {} s, {} duplicate stamps{}, {} gaps{} (largest step {} s), {} non-monotonic rows skipped\n",
+        t.first_t_s.unwrap_or(0.0),
+        t.last_t_s.unwrap_or(0.0),
+        t.median_step_s.map_or("?".into(), |m| format!("{m}")),
+        t.duplicates,
+        t.first_duplicate_line.map_or(String::new(), |l| format!(" (first at line {l})")),
+        t.gaps,
+        t.first_gap_line.map_or(String::new(), |l| format!(" (first at line {l})")),
+        t.largest_step_s,
+        t.non_monotonic_skipped
+    ));
+    if let Some(l) = s.unterminated_last_line {
+        o.push_str(&format!("  note: last line {l} has no line terminator (its values were used; check the file was not cut)\n"));
+    }
+    let states: Vec<String> = s
+        .tally
+        .states
+        .iter()
+        .map(|(k, v)| format!("{k} {v}"))
+        .collect();
+    o.push_str(&format!("  states: {}\n", states.join(", ")));
+    if !s.tally.flags.is_empty() {
+        let f: Vec<String> = s
+            .tally
+            .flags
+            .iter()
+            .map(|(k, v)| format!("{k} {v}"))
+            .collect();
+        o.push_str(&format!("  flagged rows: {}\n", f.join(", ")));
+    }
+    o.push_str(&format!(
+        "  max |torque| {:.1} N·m, max capacity {:.1} N·m, max clamp force {:.0} N, max lining temperature {:.1} °C\n",
+        s.tally.max_abs_torque_nm, s.tally.max_capacity_nm, s.tally.max_clamp_force_n, s.tally.max_lining_temp_c
+    ));
+    o.push_str(&format!(
+        "  {:.2} s, {:.0} rows/s, peak memory {}; estimator: {}\n",
+        s.elapsed_s,
+        s.rows_per_s,
+        s.peak_rss_bytes
+            .map_or("?".into(), |b| format!("{:.1} MiB", b as f64 / 1_048_576.0)),
+        s.estimator
+    ));
+    o
+}

@@ -1,0 +1,159 @@
+//! Time-stamp checks of a trace: non-monotonic steps (an error), duplicates and gaps
+//! (counted and reported), and a sample period that does not match the config (a likely wrong
+//! time unit: an error).
+
+use serde::Serialize;
+
+/// How many steps are looked at before the sample period is judged.
+const PERIOD_WINDOW: usize = 64;
+
+/// Running time-stamp checks.
+#[derive(Debug, Clone)]
+pub struct TimeCheck {
+    period_s: f64,
+    gap_s: f64,
+    prev: Option<f64>,
+    first_steps: Vec<f64>,
+    period_checked: bool,
+    report: TimeReport,
+}
+
+/// What the checks found.
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+pub struct TimeReport {
+    /// Rows whose time equals the row before (kept).
+    pub duplicates: u64,
+    /// Line of the first duplicate.
+    pub first_duplicate_line: Option<u64>,
+    /// Steps longer than the gap threshold.
+    pub gaps: u64,
+    /// Line of the first row after a gap.
+    pub first_gap_line: Option<u64>,
+    /// Longest step, s.
+    pub largest_step_s: f64,
+    /// Rows dropped for going back in time (only with `--skip-bad-rows`).
+    pub non_monotonic_skipped: u64,
+    /// First time stamp, s.
+    pub first_t_s: Option<f64>,
+    /// Last time stamp, s.
+    pub last_t_s: Option<f64>,
+    /// Median of the first steps, s.
+    pub median_step_s: Option<f64>,
+}
+
+impl TimeCheck {
+    /// Checks against `period_s`; a step above `(1 + gap_tolerance) · period` is a gap.
+    pub fn new(period_s: f64, gap_tolerance: f64) -> Self {
+        Self {
+            period_s,
+            gap_s: period_s * (1.0 + gap_tolerance),
+            prev: None,
+            first_steps: Vec::with_capacity(PERIOD_WINDOW),
+            period_checked: false,
+            report: TimeReport::default(),
+        }
+    }
+
+    /// Check the next time stamp.
+    ///
+    /// # Errors
+    /// A message when `t` goes back in time, or when the first steps show a period more than
+    /// twice or less than half the configured one.
+    pub fn check(&mut self, t: f64, line: u64) -> Result<(), String> {
+        if let Some(prev) = self.prev {
+            let dt = t - prev;
+            if dt < 0.0 {
+                return Err(format!(
+                    "time goes backwards: {t} s after {prev} s (non-monotonic time stamps)"
+                ));
+            }
+            if dt == 0.0 {
+                self.report.duplicates += 1;
+                self.report.first_duplicate_line.get_or_insert(line);
+            } else if dt > self.gap_s {
+                self.report.gaps += 1;
+                self.report.first_gap_line.get_or_insert(line);
+            }
+            self.report.largest_step_s = self.report.largest_step_s.max(dt);
+            if !self.period_checked && dt > 0.0 {
+                self.first_steps.push(dt);
+                if self.first_steps.len() >= PERIOD_WINDOW {
+                    self.judge_period()?;
+                }
+            }
+        } else {
+            self.report.first_t_s = Some(t);
+        }
+        self.prev = Some(t);
+        self.report.last_t_s = Some(t);
+        Ok(())
+    }
+
+    fn judge_period(&mut self) -> Result<(), String> {
+        self.period_checked = true;
+        if self.first_steps.is_empty() {
+            return Ok(());
+        }
+        let mut s = std::mem::take(&mut self.first_steps);
+        s.sort_by(f64::total_cmp);
+        let median = s.get(s.len() / 2).copied().unwrap_or(self.period_s);
+        self.report.median_step_s = Some(median);
+        let ratio = median / self.period_s;
+        if !(0.5..=2.0).contains(&ratio) {
+            return Err(format!(
+                "time stamps step by {median} s (median of the first {} steps) but device.sample_period_s is {} s: wrong time unit for the time column?",
+                s.len(),
+                self.period_s
+            ));
+        }
+        Ok(())
+    }
+
+    /// Count a row skipped for going backwards.
+    pub fn count_skipped(&mut self) {
+        self.report.non_monotonic_skipped += 1;
+    }
+
+    /// Finish (judges the period on short traces too).
+    ///
+    /// # Errors
+    /// As [`TimeCheck::check`] for the period.
+    pub fn finish(&mut self) -> Result<TimeReport, String> {
+        if !self.period_checked && self.first_steps.len() >= 8 {
+            self.judge_period()?;
+        }
+        Ok(self.report.clone())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    #[test]
+    fn duplicates_gaps_and_backwards() {
+        let mut c = TimeCheck::new(0.001, 0.5);
+        for (i, t) in [0.0, 0.001, 0.001, 0.002, 0.010, 0.011].iter().enumerate() {
+            c.check(*t, i as u64 + 2).unwrap();
+        }
+        assert!(c.check(0.005, 8).unwrap_err().contains("backwards"));
+        let r = c.finish().unwrap();
+        assert_eq!((r.duplicates, r.first_duplicate_line), (1, Some(4)));
+        assert_eq!((r.gaps, r.first_gap_line), (1, Some(6)));
+        assert!((r.largest_step_s - 0.008).abs() < 1e-12);
+    }
+
+    #[test]
+    fn wrong_time_unit() {
+        let mut c = TimeCheck::new(0.001, 0.5);
+        let mut err = None;
+        for i in 0..100 {
+            if let Err(e) = c.check(f64::from(i), 2 + u64::try_from(i).unwrap()) {
+                err = Some(e);
+                break;
+            }
+        }
+        assert!(err.unwrap().contains("wrong time unit"));
+    }
+}
