@@ -27,13 +27,14 @@ use clampwise_core::estimator::{Combination, ContactState, Estimate, Estimator, 
 use clampwise_core::flags::Flags;
 use clampwise_core::friction::FrictionConfig;
 use clampwise_core::geometry::{Annulus, Contact, build_radius_table};
+use clampwise_core::record::StateRecord;
 use clampwise_core::reference::friction::FrictionModel;
 use clampwise_core::reference::pipeline::{
     PipelineEstimate, PipelineInputs, PipelineModel, PipelineParts, RlsParams,
 };
-use clampwise_core::thermal::ThermalConfig;
+use clampwise_core::thermal::{ThermalConfig, ThermalState};
 use clampwise_core::units::{Celsius, Joules, NewtonMetres, Newtons, RadPerSec, Ratio, Seconds};
-use clampwise_core::wear::WearConfig;
+use clampwise_core::wear::{WearConfig, WearState};
 use proptest::prelude::*;
 use proptest::test_runner::{Config, TestRunner};
 
@@ -260,6 +261,19 @@ fn case() -> impl Strategy<Value = Case> {
         })
 }
 
+/// An estimator resumed from a state record: rotor and lining at `temperature`, `energy`
+/// dissipated since the lining was new (its bedding and wear follow from the wear model).
+fn restored(dev: &Device<1>, temperature: Celsius, energy: Joules) -> Estimator<'_, 1, 2, 2, 3, 3> {
+    let record = StateRecord::new(
+        0,
+        &WearState::with_history(dev.wear(), energy),
+        &ThermalState::with_temperatures(temperature, temperature),
+        Ratio::ONE,
+        0,
+    );
+    Estimator::restore(dev, &record.to_bytes()).unwrap()
+}
+
 /// Samples stepped per case: the first is already exact (the filter primes on it); the rest let
 /// the temperature, bedding and stick/slip state move.
 const SAMPLES_PER_CASE: usize = 4;
@@ -277,7 +291,7 @@ fn run_case(c: &Common, case: &Case) -> Result<Worst, String> {
     let counts = counts(case.clamp_force_n);
     let temperature = Celsius::from_num(case.lining_temperature);
     let energy = Joules::from_num(energy_for_bedding(case.bedding));
-    let mut est = Estimator::with_condition(&dev, temperature, energy);
+    let mut est = restored(&dev, temperature, energy);
     let mut inputs = Inputs::<1>::at_rest(counts);
     inputs.input_speed = RadPerSec::from_num(case.slip_speed);
 

@@ -366,7 +366,9 @@ impl<'a, const NT: usize, const NV: usize> PipelineModel<'a, NT, NV> {
     }
 
     /// Rotor and lining at `lining_temperature` (°C), `energy` (J) dissipated since new: the
-    /// counterpart of [`crate::estimator::Estimator::with_condition`].
+    /// counterpart of [`crate::estimator::Estimator::restore`] from a record holding
+    /// [`crate::thermal::ThermalState::with_temperatures`] and
+    /// [`crate::wear::WearState::with_history`].
     pub fn with_condition(
         parts: PipelineParts<'a, NT, NV>,
         lining_temperature: f64,
