@@ -37,7 +37,7 @@
 //!   r_e = 22 mm), plus the rounding of each face's torque to ½ LSB of `NewtonMetres`.
 //! - Readings below 5 % of full scale: within 4.4 mN·m absolute.
 //! - Contact state identical in every sample. Readings whose reference lies beyond the torque
-//!   format (1.7 % of them, large cones with 12 faces at high force) are `NewtonMetres::MAX`
+//!   format (1.7 % of them: many faces, large radii or cones at high force) are `NewtonMetres::MAX`
 //!   with the saturation flag raised; the heating that follows uses the saturated torque, so
 //!   the comparison of such a case stops there.
 //! - A braking event (estimator_common's demo device with wet-clutch drag and adaptation:
