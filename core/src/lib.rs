@@ -126,6 +126,23 @@
 //! | [`friction`] | stick/slip, direction, clamped | identical |
 //! | [`thermal`] | rotor and lining temperature | 7.7·10⁻⁶ K (½ LSB of `Celsius`) |
 //! | [`wear`] | energy / bedding / thickness loss | 1 LSB each (15 µJ / 9.3·10⁻¹⁰ / 60 nm) |
+//!
+//! ## The whole pipeline: measured error against the f64 reference
+//!
+//! [`estimator::Estimator::step`] against the independent f64 pipeline
+//! `reference::pipeline` (feature `std`; same model, floats throughout, given the same
+//! conditioned clamp force), `tests/tests/estimator_reference.rs`:
+//!
+//! | run | worst error |
+//! |---|---|
+//! | 10⁵ random cases (force to 200 kN, ±2000 rad/s, −50…1000 °C, bedding 0…1, 1–12 faces, radii 20 mm…1 m, flat and cone), readings above 5 % of full scale | **3.4·10⁻⁶ of reading** (target 10⁻³) |
+//! | same, readings below 5 % of full scale | 4.4 mN·m |
+//! | a braking event sample by sample (4000 samples, heating 245 K, adaptation on) | 6.5·10⁻⁷ of reading |
+//! | contact state (slipping / holding / released) | identical in every sample |
+//!
+//! The worst case comes from the smallest radii (the radius table's 60 nm step is 2.3·10⁻⁶ of
+//! a 22 mm lever arm). Products beyond the torque format (±524 kN·m) saturate and raise
+//! [`flags::Flags::ARITHMETIC_SATURATED`].
 #![cfg_attr(not(test), no_std)]
 #![forbid(unsafe_code)]
 
