@@ -94,7 +94,10 @@ fn synth_replay_compare() {
     let s = &js["traces"][0]["summary"];
     assert_eq!(s["tally"]["rows"], 60_000);
     assert_eq!(s["skipped"]["count"], 0);
-    assert!(s["estimator"].as_str().unwrap().contains("TEMPORARY"));
+    assert_eq!(
+        s["estimator"].as_str().unwrap(),
+        "clampwise_core::estimator::Estimator::step"
+    );
     let lines = std::fs::read_to_string(&est)
         .unwrap()
         .lines()
@@ -139,10 +142,14 @@ fn synth_replay_compare() {
 
 #[test]
 fn replay_output_is_the_seam_step_bit_for_bit() {
-    use clampwise_sim::build_core::CoreTables;
+    // The estimate file must hold exactly what the core's own `Estimator::step` gives for the
+    // same samples: built and stepped here directly, not through the seam's estimator.
+    use clampwise_core::estimator::Estimator;
+    use clampwise_core::units::{Celsius, Metres, NewtonMetres, Newtons, Ratio};
+    use clampwise_sim::build_core::{ChannelDevice, CoreDevice};
     use clampwise_sim::config::LoadedConfig;
     use clampwise_sim::estimate::EstimateReader;
-    use clampwise_sim::seam;
+    use clampwise_sim::seam::{self, ChannelCal, State};
     use clampwise_sim::trace::{RowPolicy, TraceReader};
 
     let d = scratch("bit_for_bit");
@@ -169,21 +176,66 @@ fn replay_output_is_the_seam_step_bit_for_bit() {
         run(&["-q", "replay", "-c", &cfg_path, &tr, "-o", &est]).0,
         0
     );
-    // The same samples stepped here through the estimator the seam builds.
     let cfg = LoadedConfig::load(std::path::Path::new(&cfg_path)).unwrap();
-    let tables = CoreTables::build(&cfg.config).unwrap();
-    let mut estimator = seam::new_estimator(&cfg.config, &tables);
+    let core = CoreDevice::build(&cfg.config).unwrap();
+    let ChannelDevice::Three(dev) = &core.device else {
+        panic!("the demo has three force channels");
+    };
+    assert!(core.initial.is_new());
+    let mut estimator = Estimator::new(dev);
+    let cal = ChannelCal::of(&cfg.config);
     let mut reader = TraceReader::open(&tr, &cfg.config, RowPolicy::Stop, false).unwrap();
     let mut file = EstimateReader::open(&est).unwrap();
-    let mut n = 0;
+    let (mut n, mut holding, mut slipping, mut flagged) = (0, 0, 0, 0);
     while let Some(s) = reader.next_sample().unwrap() {
-        let direct = estimator.step(&s);
-        let written = file.next_row().unwrap().unwrap();
-        assert_eq!(direct, written, "line {}", s.line);
+        let inputs = seam::core_inputs::<3>(&s, &cal, true);
+        let e = estimator.step(&inputs);
+        let w = file.next_row().unwrap().unwrap();
+        let at = format!("line {}", s.line);
+        // Every number read back from the file converts to the core's exact bits.
+        assert_eq!(w.torque_nm.map(NewtonMetres::from_num), e.torque, "{at}");
+        assert_eq!(
+            w.capacity_nm.map(NewtonMetres::from_num),
+            e.holding_capacity,
+            "{at}"
+        );
+        assert_eq!(
+            NewtonMetres::from_num(w.uncertainty_nm),
+            e.uncertainty,
+            "{at}"
+        );
+        assert_eq!(Ratio::from_num(w.mu), e.mu, "{at}");
+        assert_eq!(Metres::from_num(w.radius_m), e.effective_radius, "{at}");
+        assert_eq!(Newtons::from_num(w.clamp_force_n), e.clamp_force, "{at}");
+        assert_eq!(
+            Celsius::from_num(w.lining_temp_c),
+            e.lining_temperature,
+            "{at}"
+        );
+        assert_eq!(Ratio::from_num(w.bedding), e.bedding, "{at}");
+        assert_eq!(Metres::from_num(w.wear_m), e.wear, "{at}");
+        assert_eq!(Ratio::from_num(w.correction), e.correction, "{at}");
+        assert_eq!(w.state.name(), e.state.name(), "{at}");
+        assert_eq!(w.flags, e.flags, "{at}");
+        // And the f64s are exactly the core's to_num (no rounding on the way through text).
+        assert_eq!(w.torque_nm, e.torque.map(|t| t.to_num::<f64>()), "{at}");
+        assert_eq!(w.mu, e.mu.to_num::<f64>(), "{at}");
+        match w.state {
+            State::Holding => {
+                holding += 1;
+                assert!(w.torque_nm.is_none(), "{at}: no torque while holding");
+            }
+            State::Slipping => slipping += 1,
+            _ => {}
+        }
+        flagged += u32::from(!e.flags.is_empty());
         n += 1;
     }
     assert!(file.next_row().unwrap().is_none());
     assert_eq!(n, 30_000);
+    // The run exercised both states and the flags (the rail fault on channel 3).
+    assert!(holding > 1000 && slipping > 1000, "{holding} {slipping}");
+    assert!(flagged > 0);
 }
 
 #[test]
@@ -442,6 +494,16 @@ fn golden_tables_equal_the_runtime_tables() {
     use clampwise_sim::emit;
     let cfg = LoadedConfig::from_str(DEMO, "demo").unwrap();
     let t = CoreTables::build(&cfg.config).unwrap();
+    for (g, r) in golden_tables::RADIUS_FORCE_N
+        .iter()
+        .zip(t.radius_force_axis())
+    {
+        assert_eq!(g, r);
+    }
+    assert_eq!(
+        golden_tables::RADIUS_BEDDING.as_slice(),
+        t.radius_bedding_axis()
+    );
     assert_eq!(
         golden_tables::MU_TEMPERATURE_C.as_slice(),
         t.mu_temperature_axis()
