@@ -1537,6 +1537,44 @@ mod tests {
     }
 
     #[test]
+    fn keys_the_core_cannot_honour_are_rejected_by_name() {
+        // Per-sensor filter settings moved to [sensing] (the core filters all channels alike);
+        // the old key must not be silently ignored.
+        let src = DEMO.replacen(
+            "rail_margin_counts = 8",
+            "rail_margin_counts = 8\nfilter_cutoff_hz = 50.0",
+            1,
+        );
+        let e = err(&src);
+        assert!(
+            e.issues[0]
+                .message
+                .contains("unknown field `filter_cutoff_hz`"),
+            "{e}"
+        );
+        assert_eq!(
+            e.issues[0].key.as_deref(),
+            Some("sensor[0].filter_cutoff_hz")
+        );
+        // A button pad must say which of the two button models it uses.
+        let src = DEMO
+            .replace("shape = \"sector\"", "shape = \"button\"")
+            .replace("inner_radius_m = 0.52\n", "pad_radius_m = 0.05\n")
+            .replace("outer_radius_m = 0.68\n", "pad_centre_radius_m = 0.6\n")
+            .replace("sector_angle_deg = 30.0", "");
+        let e = err(&src);
+        assert_eq!(e.issues.len(), 1, "{e}");
+        assert!(e.to_string().contains("needs contact.button_model"), "{e}");
+        // A sample period whose rate is not a whole number of hertz.
+        let e = err(&DEMO.replace("sample_period_s = 0.001", "sample_period_s = 0.0003"));
+        assert_eq!(
+            e.issues[0].key.as_deref(),
+            Some("device.sample_period_s"),
+            "{e}"
+        );
+    }
+
+    #[test]
     fn key_paths_round_trip() {
         let p = KeyPath::parse("friction.mu.values[2][1]");
         assert_eq!(p.to_string(), "friction.mu.values[2][1]");

@@ -429,3 +429,65 @@ pub fn human(r: &CompareReport) -> String {
     o.push_str(&format!("  percentiles: {}\n", r.quantile_method));
     o
 }
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::float_cmp)]
+    use super::*;
+    use crate::seam::Flags;
+
+    fn row(
+        state: State,
+        torque: Option<f64>,
+        capacity: Option<f64>,
+        reference: f64,
+    ) -> EstimateRow {
+        EstimateRow {
+            line: 1,
+            t_s: 0.0,
+            torque_nm: torque,
+            capacity_nm: capacity,
+            uncertainty_nm: 0.0,
+            mu: 0.4,
+            radius_m: 0.6,
+            clamp_force_n: 30_000.0,
+            slip_speed_rad_s: 1.0,
+            lining_temp_c: 100.0,
+            bedding: 0.0,
+            wear_m: 0.0,
+            correction: 1.0,
+            state,
+            flags: Flags::empty(),
+            torque_ref_nm: Some(reference),
+        }
+    }
+
+    #[test]
+    fn holding_rows_are_counted_apart_never_as_zero_error() {
+        let mut c = Comparer::new(None);
+        // Two slipping rows with errors +10 and −30 N·m [calc: bias −10, RMS √500].
+        c.add(&row(State::Slipping, Some(-990.0), Some(1300.0), -1000.0));
+        c.add(&row(State::Slipping, Some(-1030.0), Some(1300.0), -1000.0));
+        // Many holding rows whose load is within the capacity: no torque, no error entry.
+        for _ in 0..100 {
+            c.add(&row(State::Holding, None, Some(1300.0), 700.0));
+        }
+        c.add(&row(State::Holding, None, Some(1300.0), 1400.0));
+        c.add(&row(State::Unavailable, None, None, 500.0));
+        let r = c.report("t");
+        let o = r.overall.clone().unwrap();
+        assert_eq!(o.n, 2);
+        assert!((o.bias_nm + 10.0).abs() < 1e-12);
+        assert!((o.rms_nm - 500f64.sqrt()).abs() < 1e-12);
+        let h = &r.by_state["holding"];
+        assert_eq!((h.rows, h.with_reference, h.with_error), (101, 101, 0));
+        assert_eq!(r.by_state["slipping"].with_error, 2);
+        assert_eq!(r.by_state["unavailable"].with_error, 0);
+        assert_eq!(r.holding.n, 101);
+        assert_eq!(r.holding.within_capacity, 100);
+        assert_eq!(r.holding.min_margin_nm, Some(-100.0));
+        assert_eq!(r.unavailable, 1);
+        assert!(!r.regions.contains_key("state holding"));
+        assert!(human(&r).contains("holding 101 (101 with reference, 101 no torque"));
+    }
+}

@@ -115,6 +115,12 @@ fn synth_replay_compare() {
     assert!(regions.keys().any(|k| k.starts_with("clamp force")));
     assert!(regions.contains_key("state slipping"));
     assert!(r["holding"]["n"].as_u64().unwrap() > 1000);
+    // States come from the core; holding rows never enter the error statistics.
+    let holding = &r["by_state"]["holding"];
+    assert_eq!(holding["with_error"], 0);
+    assert_eq!(holding["with_reference"], r["holding"]["n"]);
+    assert_eq!(r["by_state"]["slipping"]["with_error"], r["slipping"]["n"]);
+    assert!(!regions.contains_key("state holding"));
     // P99 ≥ P95 and max ≥ P99 (up to the sketch's 0.5 % accuracy).
     let o = &r["overall"];
     assert!(o["p99_nm"].as_f64().unwrap() >= o["p95_nm"].as_f64().unwrap());
@@ -318,10 +324,13 @@ fn several_traces_in_parallel() {
 
 #[test]
 fn fit_recovers_a_known_table_and_reports_unreached_cells() {
-    // Truth: the plant's μ is 0.90 × the config's table. Tolerance: every entry reached with
-    // coverage ≥ 1000 sample-equivalents within 1.5 % of 0.90 × prior. What limits it: the
-    // temporary estimator holds bedding at its initial value while the plant's pads bed in
-    // (r_e falls by up to 0.6 %), and thermocouple noise (0.5 K) on a μ(T) slope.
+    // Truth: the plant's μ is 0.90 × the config's table. Tolerance (re-measured 2026-12-02
+    // with the core's estimator, which now models temperature, bedding and wear and filters
+    // the force): every entry reached with coverage ≥ 2500 sample-equivalents within 0.25 % of
+    // 0.90 × prior (measured worst 0.16–0.17 % over seeds 11–14), every entry with coverage
+    // ≥ 1000 within 1.5 % (measured worst 1.30–1.33 %, the same two sparsely covered 10 rad/s
+    // entries every seed: a systematic, not noise — the samples there fall in force ramps,
+    // where the core's 50 Hz force filter lags the plant's force).
     let d = scratch("fit");
     let cfg = write(&d, "demo.toml", DEMO);
     let tr = d.join("sweep.csv").display().to_string();
@@ -369,14 +378,20 @@ fn fit_recovers_a_known_table_and_reports_unreached_cells() {
         let prior = c["prior"].as_f64().unwrap();
         let fit = c["fitted"].as_f64().unwrap();
         if c["reached"].as_bool().unwrap() {
-            if c["coverage"].as_f64().unwrap() >= 1000.0 {
-                let truth = 0.90 * prior;
-                assert!(
-                    (fit - truth).abs() <= 0.015 * truth,
-                    "cell {c}: {fit} vs {truth}"
-                );
-                checked += 1;
-            }
+            let coverage = c["coverage"].as_f64().unwrap();
+            let truth = 0.90 * prior;
+            let tolerance = if coverage >= 2500.0 {
+                0.0025
+            } else if coverage >= 1000.0 {
+                0.015
+            } else {
+                continue;
+            };
+            assert!(
+                (fit - truth).abs() <= tolerance * truth,
+                "cell {c}: {fit} vs {truth}"
+            );
+            checked += 1;
         } else {
             assert_eq!(fit, prior, "unreached cells keep the prior");
         }
