@@ -432,7 +432,7 @@ pub fn human(r: &CompareReport) -> String {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::float_cmp)]
+    #![allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
     use super::*;
     use crate::seam::Flags;
 
