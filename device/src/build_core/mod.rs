@@ -1,4 +1,4 @@
-//! Config → core: the one place where a loaded [`DeviceConfig`](crate::config::DeviceConfig)
+//! Config → core: the one place where a loaded [`DeviceConfig`]
 //! becomes the core's fixed-point tables ([`CoreTables`]) and the core's whole validated
 //! `clampwise_core::config::DeviceConfig` ([`CoreDevice`]).
 //!
