@@ -13,13 +13,11 @@
 //!
 //! | module | concept |
 //! |---|---|
-//! | [`config`] | the TOML device config: schema, validation, located errors |
-//! | [`column_units`] | units a trace column may carry, and their conversion |
-//! | [`build_core`] | config → core fixed-point tables (the one conversion point) |
-//! | [`seam`] | **the seam**: `SampleEstimator::step`, and the temporary `TablesOnlyEstimator` |
+//! | [`config`], [`column_units`], [`build_core`], [`emit`] | re-exported from `clampwise-device`: the TOML schema, config → core, firmware table emitter |
+//! | [`seam`] | **the seam**: `SampleEstimator::step`, implemented by `CoreEstimator` (the core's `Estimator::step`) |
 //! | [`csvin`], [`trace`], [`timestamps`] | located, streaming CSV input; column mapping; time checks |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
-//! | [`replay`], [`compare`], [`sketch`], [`fit`], [`emit`] | the subcommands' work |
+//! | [`replay`], [`compare`], [`sketch`], [`fit`] | the subcommands' work |
 //! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
 //! | [`plot`], [`series`] | plots, bounded-memory decimation |
 //! | [`cli`], [`commands`], [`demo`], [`error`] | the command line, exit codes |
@@ -27,13 +25,13 @@
 //! ## Example
 //!
 //! ```
-//! use clampwise_sim::build_core::CoreTables;
+//! use clampwise_sim::build_core::CoreDevice;
 //! use clampwise_sim::config::LoadedConfig;
 //! use clampwise_sim::seam::{self, Channel, TraceSample, State};
 //!
 //! let cfg = LoadedConfig::from_str(clampwise_sim::demo::DEMO_CONFIG, "demo.toml").unwrap();
-//! let tables = CoreTables::build(&cfg.config).unwrap();
-//! let mut est = seam::new_estimator(&cfg.config, &tables);
+//! let core = CoreDevice::build(&cfg.config).unwrap();
+//! let mut est = seam::new_estimator(&cfg.config, &core).unwrap();
 //! let s = TraceSample {
 //!     force: [Channel::Newtons(30_000.0); 4],
 //!     force_valid: [true; 4],
@@ -41,20 +39,19 @@
 //!     temp_c: Some(100.0),
 //!     ..TraceSample::default()
 //! };
-//! let row = est.step(&s);
+//! let mut row = est.step(&s);
+//! for _ in 0..200 {
+//!     row = est.step(&s); // the core's force filter settles
+//! }
 //! assert_eq!(row.state, State::Slipping);
 //! assert!(row.torque_nm.unwrap() < 0.0); // opposes the slip
 //! ```
 
-pub mod build_core;
 pub mod cli;
-pub mod column_units;
 pub mod commands;
 pub mod compare;
-pub mod config;
 pub mod csvin;
 pub mod demo;
-pub mod emit;
 pub mod error;
 pub mod estimate;
 pub mod fit;
@@ -69,3 +66,7 @@ pub mod sketch;
 pub mod synth;
 pub mod timestamps;
 pub mod trace;
+
+// The config layer lives in `clampwise-device` (a firmware's build script uses it too); it is
+// re-exported here under its old paths.
+pub use clampwise_device::{build_core, column_units, config, emit};
