@@ -227,3 +227,26 @@ fn lost_force_reports_nothing_as_good() {
     let t: f64 = e.torque.unwrap().to_num::<f64>().abs();
     assert!(u > 0.2 * t, "fallback uncertainty {u} of {t}");
 }
+
+#[test]
+fn measured_ambient_sets_the_cooling_target() {
+    // Newtonian cooling toward T∞ [pub: Day, ch. 8]: a released lining at 20 °C with the
+    // cooling air measured at 60 °C warms toward 60 °C, and stays put at the configured 20 °C.
+    let dev = device::<1>(&Spec::default());
+    let (mut warm, mut plain) = (Estimator::new(&dev), Estimator::new(&dev));
+    let mut inputs = Inputs::<1>::at_rest(0);
+    let (mut a, mut b) = (None, None);
+    for _ in 0..10_000 {
+        b = Some(plain.step(&inputs));
+        inputs.ambient_temperature = Some(clampwise_core::units::Celsius::from_num(60));
+        a = Some(warm.step(&inputs));
+        inputs.ambient_temperature = None;
+    }
+    // After 10 s with τ = 613 s: 20 + 40·(1 − e^(−10/613)) = 20.647 °C [calc].
+    let t: f64 = a.unwrap().lining_temperature.to_num();
+    assert!(
+        (t - (20.0 + 40.0 * (1.0 - (-10.0f64 / 613.0).exp()))).abs() < 0.01,
+        "{t}"
+    );
+    assert_eq!(b.unwrap().lining_temperature.to_num::<f64>(), 20.0);
+}

@@ -231,9 +231,12 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         if power.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
-        let thermal = st
-            .thermal
-            .update(&cfg.thermal, power.value, inputs.lining_temperature);
+        let thermal = st.thermal.update_with_ambient(
+            &cfg.thermal,
+            power.value,
+            inputs.lining_temperature,
+            inputs.ambient_temperature,
+        );
         flags.set(Flags::FADE_WARNING, thermal.fade_warning);
         flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
         flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
@@ -296,9 +299,12 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         correction: Ratio,
     ) -> Estimate {
         let st = &mut self.state;
-        let thermal = st
-            .thermal
-            .update(&self.cfg.thermal, Watts::ZERO, inputs.lining_temperature);
+        let thermal = st.thermal.update_with_ambient(
+            &self.cfg.thermal,
+            Watts::ZERO,
+            inputs.lining_temperature,
+            inputs.ambient_temperature,
+        );
         flags.set(Flags::FADE_WARNING, thermal.fade_warning);
         flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
         flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
