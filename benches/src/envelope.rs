@@ -72,6 +72,8 @@ type EnvelopeDevice = DeviceConfig<1, 3, 3, 6, 5>;
 /// One grid cell.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Cell {
+    /// Indices into [`FORCES_N`], [`SPEEDS`], [`TEMPERATURES`], [`BEDDING`].
+    pub index: [usize; 4],
     /// Clamp force, N.
     pub force: f64,
     /// Slip speed, rad/s (as quantised to the fixed-point input).
@@ -214,16 +216,16 @@ pub fn run() -> Result<Envelope, Box<dyn Error>> {
     let cfg = envelope_device(&contact)?;
     let faces = f64::from(device::FACES);
     let mut cells = Vec::with_capacity(FORCES_N.len() * SPEEDS.len() * 40);
-    for &force in &FORCES_N {
+    for (fi, &force) in FORCES_N.iter().enumerate() {
         let counts = (force * COUNTS_PER_NEWTON).round() as i32;
         let f_ref = f64::from(counts) / COUNTS_PER_NEWTON;
-        for &speed in &SPEEDS {
+        for (vi, &speed) in SPEEDS.iter().enumerate() {
             let v_fx = RadPerSec::from_num(speed);
             let v_ref: f64 = v_fx.to_num();
-            for &temperature in &TEMPERATURES {
+            for (ti, &temperature) in TEMPERATURES.iter().enumerate() {
                 let t_fx = Celsius::from_num(temperature);
                 let t_ref: f64 = t_fx.to_num();
-                for &bedding in &BEDDING {
+                for (bi, &bedding) in BEDDING.iter().enumerate() {
                     let energy = energy_for(bedding);
                     // Fixed point: restore the state, one step.
                     let wear = WearState::with_history(cfg.wear(), Joules::from_num(energy));
@@ -264,6 +266,7 @@ pub fn run() -> Result<Envelope, Box<dyn Error>> {
                     let relative_error =
                         relative(reading, reference).max(relative(capacity_fx, capacity_ref));
                     cells.push(Cell {
+                        index: [fi, vi, ti, bi],
                         force: f_ref,
                         speed: v_ref,
                         temperature: t_ref,
@@ -318,15 +321,10 @@ impl Envelope {
 
     /// Worst relative error by (force, speed) over temperature and bedding.
     pub fn by_force_speed(&self) -> Vec<Vec<f64>> {
-        FORCES_N
-            .iter()
-            .map(|&f| {
-                SPEEDS
-                    .iter()
-                    .map(|&v| {
-                        let v_q: f64 = RadPerSec::from_num(v).to_num();
-                        self.worst_where(|c| c.force == f && c.speed == v_q)
-                    })
+        (0..FORCES_N.len())
+            .map(|f| {
+                (0..SPEEDS.len())
+                    .map(|v| self.worst_where(|c| c.index[0] == f && c.index[1] == v))
                     .collect()
             })
             .collect()
@@ -334,13 +332,11 @@ impl Envelope {
 
     /// Worst relative error by (temperature, bedding) over force (≥ 5 % FS) and speed.
     pub fn by_temperature_bedding(&self) -> Vec<Vec<f64>> {
-        TEMPERATURES
-            .iter()
-            .map(|&t| {
-                BEDDING
-                    .iter()
-                    .map(|&b| {
-                        self.worst_where(|c| c.bounded() && c.temperature == t && c.bedding == b)
+        (0..TEMPERATURES.len())
+            .map(|t| {
+                (0..BEDDING.len())
+                    .map(|b| {
+                        self.worst_where(|c| c.bounded() && c.index[2] == t && c.index[3] == b)
                     })
                     .collect()
             })

@@ -144,7 +144,7 @@ impl Workload {
     }
 
     fn one_in(&mut self, n: u64) -> bool {
-        self.next_u64() % n == 0
+        self.next_u64().is_multiple_of(n)
     }
 
     fn new_segment(&mut self) {

@@ -13,10 +13,31 @@ use clampwise_benches::run::{self, INPUTS, Variant};
 use clampwise_benches::{baseline, device};
 use clampwise_core::estimator::{Estimate, Estimator, Inputs};
 
+/// FNV-1a over every field of the estimate, so a changed bit anywhere changes the checksum
+/// (used to confirm that a performance change keeps the results bit-identical).
 fn fixed_sum(e: &Estimate) -> i64 {
-    i64::from(e.torque.map_or(0, |t| t.to_bits()))
-        ^ i64::from(e.holding_capacity.map_or(0, |t| t.to_bits()))
-        ^ i64::from(e.lining_temperature.to_bits())
+    let words = [
+        i64::from(e.torque.map_or(i32::MIN, |t| t.to_bits())),
+        i64::from(e.holding_capacity.map_or(i32::MIN, |t| t.to_bits())),
+        i64::from(e.uncertainty.to_bits()),
+        i64::from(e.mu.to_bits()),
+        i64::from(e.effective_radius.to_bits()),
+        i64::from(e.clamp_force.to_bits()),
+        i64::from(e.force_channels_used.bits()),
+        i64::from(e.lining_temperature.to_bits()),
+        i64::from(e.bedding.to_bits()),
+        i64::from(e.wear.to_bits()),
+        i64::from(e.correction.to_bits()),
+        i64::from(e.state as u8),
+        i64::from(e.flags.bits()),
+    ];
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for w in words {
+        for b in w.to_le_bytes() {
+            h = (h ^ u64::from(b)).wrapping_mul(0x0100_0000_01b3);
+        }
+    }
+    i64::from_le_bytes(h.to_le_bytes())
 }
 
 #[allow(clippy::cast_possible_truncation)]
@@ -58,7 +79,8 @@ fn run_variant(variant: Variant, n: usize) -> Result<i64, Box<dyn std::error::Er
                 if k % INPUTS == 0 {
                     est = fresh.clone();
                 }
-                sum ^= fixed_sum(&run::step_fixed_full(&mut est, black_box(inp)));
+                sum =
+                    sum.rotate_left(5) ^ fixed_sum(&run::step_fixed_full(&mut est, black_box(inp)));
             }
         }
         Variant::FixedMinimal => {
@@ -71,7 +93,8 @@ fn run_variant(variant: Variant, n: usize) -> Result<i64, Box<dyn std::error::Er
                 if k % INPUTS == 0 {
                     est = fresh.clone();
                 }
-                sum ^= fixed_sum(&run::step_fixed_minimal(&mut est, black_box(inp)));
+                sum = sum.rotate_left(5)
+                    ^ fixed_sum(&run::step_fixed_minimal(&mut est, black_box(inp)));
             }
         }
         Variant::F32Full => {
