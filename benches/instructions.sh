@@ -4,13 +4,14 @@
 # (I(2N) − I(N)) / N, so the set-up (configuration, input generation, process start) cancels.
 # Add --hot to list the hottest functions inside one step of each fixed-point variant.
 #
-# Usage: benches/instructions.sh [--hot] [N]      (default N = 20000)
+# Usage: benches/instructions.sh [--hot] [N]   (default N = 20480 = 5 passes over the 4096
+# inputs, so N and 2N cover whole passes and see the same mix of operating points)
 # Needs valgrind (callgrind_annotate for --hot). Builds with the `bench` profile (as criterion).
 set -euo pipefail
 
 hot=0
 if [[ "${1:-}" == "--hot" ]]; then hot=1; shift; fi
-n="${1:-20000}"
+n="${1:-20480}"
 root="$(cd "$(dirname "$0")/.." && pwd)"
 cd "$root"
 command -v valgrind >/dev/null || { echo "instructions.sh: valgrind is not installed" >&2; exit 1; }
@@ -44,6 +45,6 @@ if [[ $hot -eq 1 ]]; then
       | sed -E 's/\[[^]]*\]$//' \
       | awk -v n=$((2 * n)) '{ gsub(",", "", $1); fn = $0; sub(/^ *[0-9,]+ +\([ 0-9.%]+\) +/, "", fn);
           sub(/^[^:]*:/, "", fn); printf "%8.1f  %s\n", $1 / n, fn }' \
-      | awk '!seen[$2]++' | head -25
+      | sed -E 's/ \([0-9,]+x\)//' | awk '$1 >= 0.5 && !seen[$2]++' | head -25
   done
 fi

@@ -43,8 +43,6 @@ fn step(c: &mut Criterion) {
 
     let mut g = c.benchmark_group("step");
     g.throughput(Throughput::Elements(1));
-    g.warm_up_time(Duration::from_secs(1));
-    g.measurement_time(Duration::from_secs(3));
 
     g.bench_function("fixed/full", |b| {
         let fresh = Estimator::new(&full);
@@ -175,20 +173,18 @@ fn lookup(c: &mut Criterion) {
 
     let mut g = c.benchmark_group("lookup");
     g.throughput(Throughput::Elements(1));
-    g.warm_up_time(Duration::from_secs(1));
-    g.measurement_time(Duration::from_secs(2));
     let mut i = 0;
     let mut next = move || {
         i = (i + 1) & MASK;
         i
     };
-    g.bench_function("fixed/Table1 8", |b| {
+    g.bench_function("fixed/Table1-8", |b| {
         b.iter(|| t1.lookup(Celsius::from_bits(black_box(temps_q[next()]))));
     });
-    g.bench_function("f32/Table1 8", |b| {
+    g.bench_function("f32/Table1-8", |b| {
         b.iter(|| t1f.lookup(black_box(temps_f[next()])))
     });
-    g.bench_function("fixed/Table2 8x8", |b| {
+    g.bench_function("fixed/Table2-8x8", |b| {
         b.iter(|| {
             let k = next();
             t2.lookup(
@@ -197,14 +193,14 @@ fn lookup(c: &mut Criterion) {
             )
         });
     });
-    g.bench_function("f32/Table2 8x8", |b| {
+    g.bench_function("f32/Table2-8x8", |b| {
         b.iter(|| {
             let k = next();
             t2f.lookup(black_box(xs_f[k]), black_box(ys_f[k]))
         });
     });
     let radius = full.radius_table();
-    g.bench_function("fixed/radius 3x3", |b| {
+    g.bench_function("fixed/radius-3x3", |b| {
         b.iter(|| {
             let k = next();
             radius.lookup(
@@ -213,7 +209,7 @@ fn lookup(c: &mut Criterion) {
             )
         });
     });
-    g.bench_function("f32/radius 3x3", |b| {
+    g.bench_function("f32/radius-3x3", |b| {
         b.iter(|| {
             let k = next();
             plain
@@ -222,7 +218,7 @@ fn lookup(c: &mut Criterion) {
         });
     });
     let mu = full.friction().mu_kinetic();
-    g.bench_function("fixed/mu 6x5", |b| {
+    g.bench_function("fixed/mu-6x5", |b| {
         b.iter(|| {
             let k = next();
             mu.lookup(
@@ -231,7 +227,7 @@ fn lookup(c: &mut Criterion) {
             )
         });
     });
-    g.bench_function("f32/mu 6x5", |b| {
+    g.bench_function("f32/mu-6x5", |b| {
         b.iter(|| {
             let k = next();
             plain
@@ -242,5 +238,12 @@ fn lookup(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, step, lookup);
+// Modest defaults for a shared machine; `-- --warm-up-time S --measurement-time S` overrides.
+criterion_group! {
+    name = benches;
+    config = Criterion::default()
+        .warm_up_time(Duration::from_secs(1))
+        .measurement_time(Duration::from_secs(3));
+    targets = step, lookup
+}
 criterion_main!(benches);

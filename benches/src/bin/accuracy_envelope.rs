@@ -1,4 +1,4 @@
-//! Writes the accuracy-envelope report: `benches/output/accuracy-envelope.{md,csv,svg}`
+//! Writes the accuracy-envelope report: `benches/output/accuracy-envelope.{md,csv,svg,png}`
 //! (or into the directory given as the first argument), and prints the markdown.
 //! Exits with status 1 when a cell at or above 5 % of full scale exceeds the bound.
 //!
@@ -33,13 +33,14 @@ fn run(dir: &std::path::Path, date: &str) -> Result<bool, Box<dyn std::error::Er
     std::fs::write(dir.join("accuracy-envelope.md"), &md)?;
     std::fs::write(dir.join("accuracy-envelope.csv"), env.csv())?;
     env.plot(&dir.join("accuracy-envelope.svg"))?;
+    env.plot(&dir.join("accuracy-envelope.png"))?;
     print!("{md}");
     let ok = env.state_mismatches() == 0
         && env
             .worst_bounded()
             .is_some_and(|w| w.relative_error <= BOUND);
     eprintln!(
-        "wrote {} (accuracy-envelope.md, .csv, .svg); {}",
+        "wrote {} (accuracy-envelope.md, .csv, .svg, .png); {}",
         dir.display(),
         if ok {
             "within the bound"
