@@ -204,10 +204,12 @@ impl ChannelCalibration {
     /// Counts → newtons with temperature compensation (`sensor_temp` in °C; `None`: ΔT = 0).
     /// O(1), integers only, any input.
     pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
-        // Q32 newtons.
+        // Q32 newtons. |counts · gain| ≤ 2³¹ · 2⁶³ = 2⁹⁴ and |offset| < 2³¹ · 2²⁴ for any
+        // input, so v stays below 2⁹⁵: wrapping is exact here (and far cheaper than a
+        // saturating i128 multiplication, which needs a full overflow test).
         let mut v = i128::from(counts)
-            .saturating_mul(i128::from(self.gain.to_bits()))
-            .saturating_add(i128::from(self.offset.to_bits()) << 24);
+            .wrapping_mul(i128::from(self.gain.to_bits()))
+            .wrapping_add(i128::from(self.offset.to_bits()) << 24);
         let mut temperature_clamped = false;
         if let (Some(tc), Some(t)) = (&self.temperature, sensor_temp) {
             let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
@@ -218,7 +220,14 @@ impl ChannelCalibration {
             let span = round_shr(i128::from(tc.span_per_kelvin.to_bits()) * dt, 16);
             let factor = (1i128 << 30).saturating_add(span);
             let zero = round_shr(i128::from(tc.zero_per_kelvin.to_bits()) * dt, 16);
-            v = round_shr(v.saturating_mul(factor), 30).saturating_add(zero);
+            // A validated factor is within [0.5, 1.5]·2³⁰, so |v · factor| < 2⁹⁵ · 2³¹: exact
+            // as a wrapping product. Only an unvalidated calibration takes the saturating one.
+            let scaled = if factor.unsigned_abs() <= 1 << 31 {
+                v.wrapping_mul(factor)
+            } else {
+                v.saturating_mul(factor)
+            };
+            v = round_shr(scaled, 30).saturating_add(zero);
         }
         let q8 = round_shr(v, 24);
         let bits = i32::try_from(q8).unwrap_or(if q8 < 0 { i32::MIN } else { i32::MAX });

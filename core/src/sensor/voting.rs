@@ -87,20 +87,43 @@ impl Vote {
     }
 }
 
-/// Sorted values of the channels in `mask`, and how many.
-fn gather(candidates: &[Option<Newtons>], mask: u8) -> ([i32; 4], usize) {
-    let mut v = [0i32; 4];
-    let mut n = 0usize;
-    for (i, c) in candidates.iter().take(4).enumerate() {
-        if let (Some(x), true) = (c, mask & (1 << i) != 0)
-            && let Some(slot) = v.get_mut(n)
-        {
-            *slot = x.to_bits();
-            n += 1;
+/// The usable candidates in increasing order of value, each with its channel's mask bit
+/// (unused entries: bit 0). Sorted once per vote, by rank, so each subset below is gathered
+/// already in order instead of being sorted again.
+type Sorted = [(i32, u8); 4];
+
+fn sort_candidates(candidates: &[Option<Newtons>]) -> Sorted {
+    let mut vals = [None; 4];
+    for (v, c) in vals.iter_mut().zip(candidates.iter()) {
+        *v = c.map(|x| x.to_bits());
+    }
+    let mut out = [(0i32, 0u8); 4];
+    for (i, vi) in vals.iter().enumerate() {
+        let Some(x) = *vi else { continue };
+        // Rank: usable values below x, plus equal ones on an earlier channel.
+        let rank = vals
+            .iter()
+            .enumerate()
+            .filter(|&(j, vj)| vj.is_some_and(|y| y < x || (y == x && j < i)))
+            .count();
+        if let Some(slot) = out.get_mut(rank) {
+            *slot = (x, 1 << i);
         }
     }
-    if let Some(s) = v.get_mut(..n) {
-        s.sort_unstable();
+    out
+}
+
+/// Sorted values of the channels in `mask`, and how many.
+fn gather(sorted: &Sorted, mask: u8) -> ([i32; 4], usize) {
+    let mut v = [0i32; 4];
+    let mut n = 0usize;
+    for &(x, bit) in sorted {
+        if bit & mask != 0
+            && let Some(slot) = v.get_mut(n)
+        {
+            *slot = x;
+            n += 1;
+        }
     }
     (v, n)
 }
@@ -118,8 +141,8 @@ fn median(v: &[i32; 4], n: usize) -> i64 {
 }
 
 /// Median and largest distance from it to a member.
-fn centre(candidates: &[Option<Newtons>], mask: u8) -> (i64, i64, usize) {
-    let (v, n) = gather(candidates, mask);
+fn centre(sorted: &Sorted, mask: u8) -> (i64, i64, usize) {
+    let (v, n) = gather(sorted, mask);
     let m = median(&v, n);
     let lo = i64::from(v.first().copied().unwrap_or(0));
     let hi = i64::from(v.get(n.saturating_sub(1)).copied().unwrap_or(0));
@@ -150,7 +173,28 @@ pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Ne
         };
     }
     let tol = i64::from(tolerance.to_bits());
+    if usable.count_ones() == 1 {
+        // One usable channel: the only candidate set is that channel alone, with spread 0. It
+        // passes when the tolerance is not negative; otherwise no set passes and the search
+        // below would report it unresolved. Same result, without the search.
+        let force = candidates
+            .get(usable.trailing_zeros() as usize)
+            .copied()
+            .flatten()
+            .unwrap_or(Newtons::ZERO);
+        return Vote {
+            used: ChannelMask::from_bits(usable),
+            force,
+            agreement: if tol >= 0 {
+                Agreement::Single
+            } else {
+                Agreement::Unresolved
+            },
+            spread: Newtons::ZERO,
+        };
+    }
     let model = model.map(|m| i64::from(m.to_bits()));
+    let sorted = sort_candidates(candidates);
     let mut best_size = 0usize;
     let mut ties = 0u32;
     let mut first = (0u8, 0i64);
@@ -160,7 +204,7 @@ pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Ne
         if mask & usable != mask {
             continue;
         }
-        let (m, reach, n) = centre(candidates, mask);
+        let (m, reach, n) = centre(&sorted, mask);
         if reach > tol || n < best_size {
             continue;
         }
@@ -189,7 +233,7 @@ pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Ne
     } else if let Some((nm, nmed, _, true)) = nearest {
         (nm, nmed, Agreement::ModelTieBreak)
     } else {
-        let (m, reach, _) = centre(candidates, usable);
+        let (m, reach, _) = centre(&sorted, usable);
         return Vote {
             used: ChannelMask::from_bits(usable),
             force: to_newtons(m),
@@ -206,7 +250,7 @@ pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Ne
 }
 
 #[cfg(test)]
-#[allow(clippy::unwrap_used, clippy::float_cmp)]
+#[allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
 mod tests {
     use super::*;
 
@@ -262,6 +306,43 @@ mod tests {
         let v = vote(&[None, None], TOL, n(5));
         assert_eq!(v.agreement, Agreement::NoChannels);
         assert!(v.reference().is_none());
+    }
+
+    proptest::proptest! {
+        // The once-sorted gather gives each subset's values in order, exactly as collecting
+        // and sorting that subset does.
+        #[test]
+        fn gathered_subsets_are_sorted_subsets(
+            vals in proptest::collection::vec(proptest::option::of(proptest::num::i32::ANY), 0..=4),
+            mask in 1u8..16,
+        ) {
+            let c: Vec<Option<Newtons>> = vals.iter().map(|v| v.map(Newtons::from_bits)).collect();
+            let (got, n) = gather(&sort_candidates(&c), mask);
+            let mut want: Vec<i32> = vals
+                .iter()
+                .enumerate()
+                .filter_map(|(i, v)| v.filter(|_| mask & (1 << i) != 0))
+                .collect();
+            want.sort_unstable();
+            proptest::prop_assert_eq!(&got[..n], &want[..]);
+        }
+
+        // One usable channel: used alone, passed through; unresolved only for a negative
+        // tolerance (no set can be within it).
+        #[test]
+        fn a_single_usable_channel_is_passed_through(
+            x in proptest::num::i32::ANY, at in 0usize..4, tol in proptest::num::i32::ANY,
+            model in proptest::option::of(proptest::num::i32::ANY),
+        ) {
+            let mut c = [None; 4];
+            c[at] = Some(Newtons::from_bits(x));
+            let v = vote(&c, Newtons::from_bits(tol), model.map(Newtons::from_bits));
+            proptest::prop_assert_eq!(v.used.bits(), 1 << at);
+            proptest::prop_assert_eq!(v.force, Newtons::from_bits(x));
+            proptest::prop_assert_eq!(v.spread, Newtons::ZERO);
+            let want = if tol >= 0 { Agreement::Single } else { Agreement::Unresolved };
+            proptest::prop_assert_eq!(v.agreement, want);
+        }
     }
 
     #[test]
