@@ -174,7 +174,11 @@ fn locate<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> Position {
     // Saturating and checked forms are exact here; they only make the absence of overflow and
     // division panics visible to the compiler (the firmware's link-time panic check).
     let span = x1.saturating_sub(x0).max(1);
-    let frac_q31 = x.saturating_sub(x0).saturating_mul(ONE_Q31).checked_div(span).unwrap_or(0);
+    let frac_q31 = x
+        .saturating_sub(x0)
+        .saturating_mul(ONE_Q31)
+        .checked_div(span)
+        .unwrap_or(0);
     Position {
         lo,
         hi,
@@ -186,7 +190,11 @@ fn locate<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> Position {
 /// Round-to-nearest linear step between two raw values: a + (b − a)·t, t in Q0.31.
 fn lerp_bits(a: i64, b: i64, frac_q31: i64) -> i64 {
     // |b − a| < 2³² and t <= 2³¹, so the product stays below 2⁶³.
-    let step = b.saturating_sub(a).saturating_mul(frac_q31).saturating_add(ONE_Q31 >> 1) >> 31;
+    let step = b
+        .saturating_sub(a)
+        .saturating_mul(frac_q31)
+        .saturating_add(ONE_Q31 >> 1)
+        >> 31;
     a.saturating_add(step)
 }
 

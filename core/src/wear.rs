@@ -112,6 +112,39 @@ impl fmt::Display for WearError {
 
 impl core::error::Error for WearError {}
 
+/// Largest E₀ accepted, 10¹³ J, in Q48 J.
+const E0_MAX_Q48: u128 = 10_000_000_000_000 << 48;
+/// `bedding_recip · e0_q48` is 2¹²⁷ to within `e0_q48 + bedding_recip` (the rounding of each
+/// factor to an integer) plus this: a relative 2⁻⁵⁰, as the f64 quotient behind the reciprocal
+/// carries 53 bits.
+const RECIP_SLACK: u128 = 1 << 77;
+/// Largest thickness-rate shift: a rate of 10⁻³⁰ m/J has its binary exponent at −99.
+const WEAR_SHIFT_MAX: u32 = 83;
+
+/// A [`WearConfig`] as its integer coefficients, for configurations computed once (on the host
+/// or in a build script) and kept in flash as `const` items.
+///
+/// [`WearConfig::to_raw`] gives them; [`WearConfig::from_raw`] checks them and builds the
+/// configuration in a `const` context.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct WearRaw {
+    /// Sample period in Q63 s, (0, 2⁶³] (at most 1 s).
+    pub dt_q63: u64,
+    /// Bedding energy E₀ in Q48 J, 1 J ..= 10¹³ J.
+    pub e0_q48: u128,
+    /// round(2⁷⁹ / E₀ [J]), so that `e0_q48 · bedding_recip` ≈ 2¹²⁷.
+    pub bedding_recip: u128,
+    /// Thickness rate k/A = `wear_mant · 2^−(wear_shift + 48)` m/J: the mantissa, 0 (no wear)
+    /// or 2³¹ ..= 2³².
+    pub wear_mant: u64,
+    /// The thickness rate's shift, 0 ..= 83 (0 when `wear_mant` is 0).
+    pub wear_shift: u32,
+    /// Thickness of a new lining, m.
+    pub initial_thickness: Metres,
+    /// Worn-out limit, m, ≥ 0 and below `initial_thickness`.
+    pub minimum_thickness: Metres,
+}
+
 /// Validated wear configuration. Immutable.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct WearConfig {
@@ -183,7 +216,7 @@ impl WearConfig {
             libm::round(e0 * 281_474_976_710_656.0) as u128,
             libm::round(libm::ldexp(1.0, 79) / e0) as u128,
         );
-        Ok(Self {
+        Self::from_raw(WearRaw {
             dt_q63,
             e0_q48,
             bedding_recip,
@@ -192,6 +225,82 @@ impl WearConfig {
             initial_thickness,
             minimum_thickness,
         })
+    }
+
+    /// Check integer coefficients (from [`WearConfig::to_raw`], usually emitted by a build
+    /// script) and build the configuration; `const`, so a firmware keeps it in flash and a bad
+    /// value fails the build.
+    ///
+    /// # Errors
+    /// [`WearError::DtOutOfRange`], [`WearError::BeddingEnergyOutOfRange`] (E₀ outside
+    /// 1 J ..= 10¹³ J, or a reciprocal that does not belong to it),
+    /// [`WearError::WearRateOutOfRange`] (mantissa or shift outside their ranges),
+    /// [`WearError::ThicknessLimits`].
+    ///
+    /// ```
+    /// use clampwise_core::wear::{WearConfig, WearParams};
+    /// let built = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
+    ///     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01,
+    ///     minimum_thickness: 0.002 })?;
+    /// let raw = built.to_raw();
+    /// assert_eq!(WearConfig::from_raw(raw), Ok(built));
+    /// let mut bad = raw;
+    /// bad.bedding_recip *= 2; // belongs to E₀/2, not E₀
+    /// assert!(WearConfig::from_raw(bad).is_err());
+    /// # Ok::<(), clampwise_core::wear::WearError>(())
+    /// ```
+    pub const fn from_raw(raw: WearRaw) -> Result<Self, WearError> {
+        if raw.dt_q63 == 0 || raw.dt_q63 > 1 << 63 {
+            return Err(WearError::DtOutOfRange);
+        }
+        if raw.e0_q48 < 1 << 48 || raw.e0_q48 > E0_MAX_Q48 {
+            return Err(WearError::BeddingEnergyOutOfRange);
+        }
+        let recip_ok = match raw.e0_q48.checked_mul(raw.bedding_recip) {
+            Some(p) => p.abs_diff(1 << 127) <= RECIP_SLACK + raw.e0_q48 + raw.bedding_recip,
+            None => false,
+        };
+        if !recip_ok {
+            return Err(WearError::BeddingEnergyOutOfRange);
+        }
+        let rate_ok = if raw.wear_mant == 0 {
+            raw.wear_shift == 0
+        } else {
+            raw.wear_mant >= 1 << 31 && raw.wear_mant <= 1 << 32 && raw.wear_shift <= WEAR_SHIFT_MAX
+        };
+        if !rate_ok {
+            return Err(WearError::WearRateOutOfRange);
+        }
+        let (min, initial) = (
+            raw.minimum_thickness.to_bits(),
+            raw.initial_thickness.to_bits(),
+        );
+        if min < 0 || min >= initial {
+            return Err(WearError::ThicknessLimits);
+        }
+        Ok(Self {
+            dt_q63: raw.dt_q63,
+            e0_q48: raw.e0_q48,
+            bedding_recip: raw.bedding_recip,
+            wear_mant: raw.wear_mant,
+            wear_shift: raw.wear_shift,
+            initial_thickness: raw.initial_thickness,
+            minimum_thickness: raw.minimum_thickness,
+        })
+    }
+
+    /// The integer coefficients, for [`WearConfig::from_raw`] (e.g. to emit them as Rust
+    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    pub const fn to_raw(&self) -> WearRaw {
+        WearRaw {
+            dt_q63: self.dt_q63,
+            e0_q48: self.e0_q48,
+            bedding_recip: self.bedding_recip,
+            wear_mant: self.wear_mant,
+            wear_shift: self.wear_shift,
+            initial_thickness: self.initial_thickness,
+            minimum_thickness: self.minimum_thickness,
+        }
     }
 
     /// Thickness of a new lining (m).
@@ -509,6 +618,120 @@ mod tests {
                 ..b
             })
             .is_ok()
+        );
+    }
+
+    #[test]
+    fn raw_round_trip_is_exact() {
+        let b = demo();
+        for p in [
+            b,
+            WearParams {
+                specific_wear_rate: 0.0,
+                ..b
+            },
+            WearParams {
+                dt: 1.0,
+                bedding_energy: 1.0,
+                specific_wear_rate: 1e-5 * b.lining_area,
+                ..b
+            },
+            WearParams {
+                bedding_energy: 1e13,
+                specific_wear_rate: 1e-30 * b.lining_area,
+                ..b
+            },
+        ] {
+            let cfg = WearConfig::new(&p).unwrap();
+            let raw = cfg.to_raw();
+            assert_eq!(WearConfig::from_raw(raw), Ok(cfg), "{p:?}");
+        }
+    }
+
+    #[test]
+    fn raw_in_const_context() {
+        const RAW: WearRaw = WearRaw {
+            dt_q63: 1 << 53,        // 2⁻¹⁰ s
+            e0_q48: 1 << 68,        // 2²⁰ J
+            bedding_recip: 1 << 59, // 2⁷⁹ / 2²⁰
+            wear_mant: 1 << 31,     // 0.5 · 2^−(40 + 48) m/J
+            wear_shift: 40,
+            initial_thickness: Metres::lit("0.01"),
+            minimum_thickness: Metres::lit("0.002"),
+        };
+        const CFG: WearConfig = match WearConfig::from_raw(RAW) {
+            Ok(c) => c,
+            Err(_) => panic!("bad wear config"),
+        };
+        assert_eq!(CFG.to_raw(), RAW);
+        assert_eq!(CFG.dt(), Seconds::from_num(1.0 / 1024.0));
+    }
+
+    #[test]
+    fn raw_rejects_what_new_would_not_build() {
+        let raw = WearConfig::new(&demo()).unwrap().to_raw();
+        let e = |r: WearRaw| WearConfig::from_raw(r).unwrap_err();
+        assert_eq!(e(WearRaw { dt_q63: 0, ..raw }), WearError::DtOutOfRange);
+        assert_eq!(
+            e(WearRaw {
+                dt_q63: (1 << 63) + 1,
+                ..raw
+            }),
+            WearError::DtOutOfRange
+        );
+        assert!(
+            WearConfig::from_raw(WearRaw {
+                dt_q63: 1 << 63,
+                ..raw
+            })
+            .is_ok(),
+            "1 s"
+        );
+        for e0_q48 in [(1 << 48) - 1, E0_MAX_Q48 + 1] {
+            assert_eq!(
+                e(WearRaw { e0_q48, ..raw }),
+                WearError::BeddingEnergyOutOfRange
+            );
+        }
+        for bedding_recip in [0, raw.bedding_recip + raw.bedding_recip / 1000, u128::MAX] {
+            assert_eq!(
+                e(WearRaw {
+                    bedding_recip,
+                    ..raw
+                }),
+                WearError::BeddingEnergyOutOfRange,
+                "{bedding_recip}"
+            );
+        }
+        for (wear_mant, wear_shift) in [
+            (0, 1),
+            ((1 << 31) - 1, 10),
+            ((1 << 32) + 1, 10),
+            (1 << 31, 84),
+        ] {
+            assert_eq!(
+                e(WearRaw {
+                    wear_mant,
+                    wear_shift,
+                    ..raw
+                }),
+                WearError::WearRateOutOfRange,
+                "{wear_mant} >> {wear_shift}"
+            );
+        }
+        assert_eq!(
+            e(WearRaw {
+                minimum_thickness: raw.initial_thickness,
+                ..raw
+            }),
+            WearError::ThicknessLimits
+        );
+        assert_eq!(
+            e(WearRaw {
+                minimum_thickness: Metres::from_bits(-1),
+                ..raw
+            }),
+            WearError::ThicknessLimits
         );
     }
 
