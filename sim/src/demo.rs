@@ -26,7 +26,7 @@ use crate::series::Decimator;
 use crate::synth;
 
 /// The demo device's config text.
-pub const DEMO_CONFIG: &str = include_str!("../configs/demo-hoist-brake.toml");
+pub use clampwise_device::DEMO_CONFIG;
 
 /// The sensor faults the demo injects.
 pub const DEMO_FAULTS: [&str; 4] = [

@@ -13,13 +13,11 @@
 //!
 //! | module | concept |
 //! |---|---|
-//! | [`config`] | the TOML device config: schema, validation, located errors |
-//! | [`column_units`] | units a trace column may carry, and their conversion |
-//! | [`build_core`] | config → core fixed-point tables (the one conversion point) |
+//! | [`config`], [`column_units`], [`build_core`], [`emit`] | re-exported from `clampwise-device`: the TOML schema, config → core, firmware table emitter |
 //! | [`seam`] | **the seam**: `SampleEstimator::step`, and the temporary `TablesOnlyEstimator` |
 //! | [`csvin`], [`trace`], [`timestamps`] | located, streaming CSV input; column mapping; time checks |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
-//! | [`replay`], [`compare`], [`sketch`], [`fit`], [`emit`] | the subcommands' work |
+//! | [`replay`], [`compare`], [`sketch`], [`fit`] | the subcommands' work |
 //! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
 //! | [`plot`], [`series`] | plots, bounded-memory decimation |
 //! | [`cli`], [`commands`], [`demo`], [`error`] | the command line, exit codes |
@@ -46,15 +44,11 @@
 //! assert!(row.torque_nm.unwrap() < 0.0); // opposes the slip
 //! ```
 
-pub mod build_core;
 pub mod cli;
-pub mod column_units;
 pub mod commands;
 pub mod compare;
-pub mod config;
 pub mod csvin;
 pub mod demo;
-pub mod emit;
 pub mod error;
 pub mod estimate;
 pub mod fit;
@@ -69,3 +63,7 @@ pub mod sketch;
 pub mod synth;
 pub mod timestamps;
 pub mod trace;
+
+// The config layer lives in `clampwise-device` (a firmware's build script uses it too); it is
+// re-exported here under its old paths.
+pub use clampwise_device::{build_core, column_units, config, emit};

@@ -17,7 +17,7 @@ use crate::timestamps::TimeReport;
 use crate::trace::{RowPolicy, SkipReport, TraceReader};
 
 /// The caution printed with every human summary.
-pub const CAUTION: &str = "CAUTION: this is an estimate, validated only as far as its tests; it is not a certified safety function. Validate on the bench for each lining and geometry, and follow the applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849 or the machine's own standard), local codes and licensed engineering practice.";
+pub use clampwise_device::CAUTION;
 
 /// Name of the estimator in use, written into outputs so a reader knows what produced them.
 pub const ESTIMATOR_NAME: &str =

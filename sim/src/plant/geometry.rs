@@ -1,5 +1,5 @@
 //! The plant's own contact integrals, in f64, independent of the core and of
-//! `build_core`: Gauss–Legendre quadrature (nodes found by Newton's method on the Legendre
+//! `clampwise_core::geometry`: Gauss–Legendre quadrature (nodes found by Newton's method on the Legendre
 //! polynomials [pub: Press et al., *Numerical Recipes*, 3rd ed., §4.6]) over the pad, in the
 //! coordinates that make each shape smooth:
 //!
@@ -199,6 +199,7 @@ mod tests {
             sector_angle_deg: None,
             pad_radius_m: None,
             pad_centre_radius_m: None,
+            button_model: None,
             vertices_m: None,
             half_angle_deg: None,
             radius_tolerance_ratio: 0.0,
@@ -296,8 +297,9 @@ mod tests {
 
     #[test]
     fn plant_and_table_builder_agree_on_every_shape() {
-        // Two independent routes to r_e: the plant's Gauss–Legendre integration and the table
-        // builder's closed forms / midpoint grid. Agreement within the grid's 10⁻⁴.
+        // Two independent routes to r_e: the plant's Gauss–Legendre integration and the core's
+        // geometry (closed forms, Green's theorem, its own quadrature), as the table builder
+        // uses it.
         let mut shapes = Vec::new();
         let mut a = contact(Shape::Annulus);
         a.inner_radius_m = Some(0.1);
@@ -314,6 +316,7 @@ mod tests {
         let mut b = contact(Shape::Button);
         b.pad_radius_m = Some(0.04);
         b.pad_centre_radius_m = Some(0.15);
+        b.button_model = Some(crate::config::ButtonModelName::Integrated);
         shapes.push(b);
         let mut p = contact(Shape::Polygon);
         p.vertices_m = Some(vec![
@@ -326,9 +329,9 @@ mod tests {
         shapes.push(p);
         for c in &shapes {
             let (pu, pw) = effective_radii(c).unwrap();
-            let (tu, tw) = crate::build_core::provisional_radii(c).unwrap();
-            assert_relative_eq!(pu, tu, max_relative = 1e-4);
-            assert_relative_eq!(pw, tw, max_relative = 1e-4);
+            let (tu, tw) = crate::build_core::contact_radii(c).unwrap();
+            assert_relative_eq!(pu, tu, max_relative = 1e-9);
+            assert_relative_eq!(pw, tw, max_relative = 1e-9);
             assert!(
                 pu >= pw,
                 "uniform pressure gives the larger radius [pub: Ugural ch. 13]"

@@ -105,7 +105,7 @@ pub fn normalise(unit: &str) -> String {
 /// has no (or a non-positive) piston area.
 ///
 /// ```
-/// use clampwise_sim::column_units::{conversion, Quantity};
+/// use clampwise_device::column_units::{conversion, Quantity};
 /// let rpm = conversion(Quantity::Speed, "rpm", None).unwrap();
 /// assert!((rpm.apply(60.0) - 2.0 * std::f64::consts::PI).abs() < 1e-12);
 /// assert!(conversion(Quantity::Force, "rpm", None).is_err());

@@ -1,4 +1,4 @@
-//! `tables`: print the friction-radius and μ tables of a config, and emit them for the
+//! The `tables` command's work: print the friction-radius and μ tables of a config, and emit them for the
 //! firmware as generated Rust source (`const` items built with `from_bits`, so the firmware
 //! holds exactly the bits the simulator replays with), with a checksum.
 //!
@@ -11,24 +11,16 @@
 use std::fmt::Write as _;
 use std::path::Path;
 
-use crate::build_core::CoreTables;
-use crate::config::LoadedConfig;
-use crate::replay::CAUTION;
+use crate::CAUTION;
+use crate::build_core::{BuildError, CoreTables};
+use crate::config::{ConfigErrors, LoadedConfig};
 
-/// CRC-32/ISO-HDLC of `data`, continuing from `crc` (start with 0).
-pub fn crc32(crc: u32, data: &[u8]) -> u32 {
-    let mut c = !crc;
-    for &b in data {
-        c ^= u32::from(b);
-        for _ in 0..8 {
-            c = if c & 1 != 0 {
-                (c >> 1) ^ 0xEDB8_8320
-            } else {
-                c >> 1
-            };
-        }
-    }
-    !c
+/// CRC-32/ISO-HDLC, from the `crc` crate's catalogue (the core's state record uses the same).
+const CRC32: crc::Crc<u32> = crc::Crc::<u32>::new(&crc::CRC_32_ISO_HDLC);
+
+/// CRC-32/ISO-HDLC of `data`.
+pub fn crc32(data: &[u8]) -> u32 {
+    CRC32.checksum(data)
 }
 
 /// The checksum of a set of tables (see the module docs for the byte order).
@@ -45,7 +37,7 @@ pub fn tables_checksum(t: &CoreTables) -> u32 {
         bits.extend(row.iter().map(|v| v.to_bits()));
     }
     let bytes: Vec<u8> = bits.iter().flat_map(|b| b.to_le_bytes()).collect();
-    crc32(0, &bytes)
+    crc32(&bytes)
 }
 
 fn list(ty: &str, bits: impl Iterator<Item = i32>, per_line: usize) -> String {
@@ -79,6 +71,38 @@ fn grid<'a, T: fixed::traits::Fixed<Bits = i32> + 'a>(
     s
 }
 
+/// Why [`rust_source_for_file`] produced no source.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum EmitError {
+    /// The config file could not be read, parsed or validated (every problem, located).
+    Config(ConfigErrors),
+    /// The core rejected a value (named by its key).
+    Build(BuildError),
+}
+
+impl std::fmt::Display for EmitError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Self::Config(e) => write!(f, "{e}"),
+            Self::Build(e) => write!(f, "{e}"),
+        }
+    }
+}
+
+impl std::error::Error for EmitError {}
+
+/// Read, validate and build a config file and return the generated Rust source: the one call
+/// a firmware's `build.rs` needs (write the result to `OUT_DIR` and `include!` it).
+///
+/// # Errors
+/// [`EmitError`] with every located config problem, or the key the core rejected.
+pub fn rust_source_for_file(path: &Path) -> Result<String, EmitError> {
+    let cfg = LoadedConfig::load(path).map_err(EmitError::Config)?;
+    let tables = CoreTables::build(&cfg.config).map_err(EmitError::Build)?;
+    Ok(rust_source(&cfg, &tables))
+}
+
 /// Generated Rust source for the firmware. Include it in a module of its own:
 /// `mod tables { include!("tables.rs"); }`.
 pub fn rust_source(cfg: &LoadedConfig, t: &CoreTables) -> String {
@@ -90,7 +114,7 @@ pub fn rust_source(cfg: &LoadedConfig, t: &CoreTables) -> String {
         t.mu_temperatures,
         t.mu_speeds,
         t.radius_forces,
-        t.radius_beddings,
+        t.radius_bedding_axis().len(),
     );
     let mut s = String::new();
     let _ = writeln!(
@@ -204,9 +228,8 @@ pub fn rust_source(cfg: &LoadedConfig, t: &CoreTables) -> String {
             8
         )
     );
-    let beds: Vec<String> = c
-        .radius_table
-        .bedding_ratio
+    let beds: Vec<String> = t
+        .radius_bedding_axis()
         .iter()
         .map(|v| format!("{v}"))
         .collect();
@@ -286,7 +309,7 @@ pub fn human(cfg: &LoadedConfig, t: &CoreTables) -> String {
     let mut o = format!("tables of {} ({})\n", cfg.file, c.device.name);
     let _ = writeln!(
         o,
-        "  contact: {} × {} faces; effective radius per face: {:.6} m (uniform pressure, new), {:.6} m (uniform wear, bedded) [build_core: provisional geometry]",
+        "  contact: {} × {} faces; lever arm per face (r_e, / sin α for a cone): {:.6} m (uniform pressure, new), {:.6} m (uniform wear, bedded)",
         c.contact.shape.name(),
         c.contact.faces,
         t.radii_m.0,
@@ -344,8 +367,6 @@ mod tests {
     #[test]
     fn crc_check_value() {
         // [pub] CRC-32/ISO-HDLC check value: crc("123456789") = 0xCBF43926.
-        assert_eq!(crc32(0, b"123456789"), 0xCBF4_3926);
-        // Continuation equals one pass.
-        assert_eq!(crc32(crc32(0, b"1234"), b"56789"), 0xCBF4_3926);
+        assert_eq!(crc32(b"123456789"), 0xCBF4_3926);
     }
 }

@@ -7,8 +7,8 @@
 //! only the first. The documented example is `sim/configs/demo-hoist-brake.toml`.
 //!
 //! ```
-//! use clampwise_sim::config::LoadedConfig;
-//! let src = include_str!("../configs/demo-hoist-brake.toml");
+//! use clampwise_device::config::LoadedConfig;
+//! let src = clampwise_device::DEMO_CONFIG;
 //! let cfg = LoadedConfig::from_str(src, "demo.toml").unwrap();
 //! assert_eq!(cfg.config.sensors.len(), 3);
 //!
@@ -24,12 +24,10 @@ use serde::Deserialize;
 
 use crate::column_units::{self, Quantity};
 
-/// Largest μ table the simulator builds for the core (temperature × slip-speed breakpoints).
-pub const MU_MAX_POINTS: usize = 8;
-/// Largest friction-radius table (force breakpoints) the simulator builds for the core.
-pub const RADIUS_MAX_FORCE_POINTS: usize = 8;
-/// Largest friction-radius table (bedding breakpoints) the simulator builds for the core.
-pub const RADIUS_MAX_BEDDING_POINTS: usize = 4;
+/// Largest μ table axis (temperature or slip-speed breakpoints), see [`crate::build_core`].
+pub const MU_MAX_POINTS: usize = crate::build_core::MU_POINTS;
+/// Largest number of force breakpoints of the friction-radius table.
+pub const RADIUS_MAX_FORCE_POINTS: usize = crate::build_core::RADIUS_FORCE_POINTS;
 /// Largest number of clamp-force channels.
 pub const MAX_SENSORS: usize = 4;
 
@@ -134,12 +132,27 @@ pub struct Contact {
     pub pad_radius_m: Option<f64>,
     /// Distance of a circular pad's centre from the disc axis, m.
     pub pad_centre_radius_m: Option<f64>,
+    /// Which model of a circular pad's effective radius (button only; see
+    /// `clampwise_core::geometry::button`: the published design table and the integrated
+    /// p·r = const model differ by 1.6–3.4 %).
+    pub button_model: Option<ButtonModelName>,
     /// Outline of a polygon pad, m, disc axis at the origin (3–32 vertices, not enclosing it).
     pub vertices_m: Option<Vec<[f64; 2]>>,
     /// Cone half-angle, degrees (1–89).
     pub half_angle_deg: Option<f64>,
     /// Relative tolerance of the effective radius (0–1), for the uncertainty.
     pub radius_tolerance_ratio: f64,
+}
+
+/// `contact.button_model`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum ButtonModelName {
+    /// r_e = δ(R/e)·e from the published design table [mem: Shigley ch. 16, after Fazekas],
+    /// the same new and bedded; R/e ≤ 0.5.
+    PublishedTable,
+    /// Uniform pressure and uniform wear integrated over the circle.
+    Integrated,
 }
 
 /// `[friction]`.
@@ -314,14 +327,15 @@ pub struct Limits {
     pub touch_force_n: f64,
 }
 
-/// `[radius_table]`: breakpoints of r_e(F, bedding).
+/// `[radius_table]`: clamp-force breakpoints of r_e(F, bedding). The bedding axis is always
+/// 0 (new, uniform pressure) and 1 (bedded, uniform wear): r_e is linear in bedding, so the
+/// two carry the whole model (see [`crate::build_core`]).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RadiusTableSpec {
-    /// Clamp-force breakpoints, N (1–8, increasing).
+    /// Clamp-force breakpoints, N (1–8, increasing). A force outside them raises the core's
+    /// out-of-range flag.
     pub force_n: Vec<f64>,
-    /// Bedding breakpoints (1–4, increasing, within 0–1).
-    pub bedding_ratio: Vec<f64>,
 }
 
 /// `[trace]`: how CSV traces are laid out.
@@ -1009,19 +1023,6 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
     }
     let r = &c.radius_table;
     v.increasing("radius_table.force_n", &r.force_n, RADIUS_MAX_FORCE_POINTS);
-    v.increasing(
-        "radius_table.bedding_ratio",
-        &r.bedding_ratio,
-        RADIUS_MAX_BEDDING_POINTS,
-    );
-    for (i, b) in r.bedding_ratio.iter().enumerate() {
-        if !(0.0..=1.0).contains(b) {
-            v.issue(
-                &format!("radius_table.bedding_ratio[{i}]"),
-                "must be within 0 … 1",
-            );
-        }
-    }
     if let Some(g) = c.trace.gap_tolerance_ratio {
         v.within("trace.gap_tolerance_ratio", g, 0.0, 100.0);
     }
@@ -1057,6 +1058,9 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
             v.issue("contact.inner_radius_m", "must be below outer_radius_m");
         }
     };
+    if shape != Shape::Button {
+        v.unused("contact.button_model", &ct.button_model, shape);
+    }
     match shape {
         Shape::Annulus | Shape::Sector | Shape::Cone => {
             radii(v);
@@ -1084,6 +1088,12 @@ fn validate_contact(ct: &Contact, v: &mut Validator) {
             }
         }
         Shape::Button => {
+            if ct.button_model.is_none() {
+                v.issue(
+                    "contact.shape",
+                    "shape 'button' needs contact.button_model (\"published_table\" or \"integrated\")",
+                );
+            }
             let r = v.required("contact.pad_radius_m", ct.pad_radius_m, shape);
             let e = v.required("contact.pad_centre_radius_m", ct.pad_centre_radius_m, shape);
             if let Some(r) = r {
@@ -1280,7 +1290,7 @@ mod tests {
     #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
     use super::*;
 
-    const DEMO: &str = include_str!("../configs/demo-hoist-brake.toml");
+    const DEMO: &str = crate::DEMO_CONFIG;
 
     fn err(src: &str) -> ConfigErrors {
         LoadedConfig::from_str(src, "t.toml").unwrap_err()
