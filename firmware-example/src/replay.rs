@@ -255,7 +255,10 @@ mod tests {
         // a channel is held for its last good value for `max_hold_samples` first.
         for (k, (&l, s)) in lost.iter().zip(TRACE.iter()).enumerate() {
             if l {
-                assert!(all_invalid(s), "sample {k}: force lost with a clean channel");
+                assert!(
+                    all_invalid(s),
+                    "sample {k}: force lost with a clean channel"
+                );
                 assert_eq!(rows[k][column("state")], Some(3), "unavailable");
                 assert_eq!(rows[k][column("torque_bits")], None);
             }
@@ -287,7 +290,11 @@ mod tests {
             // samples, this one included.
             let from = k.saturating_sub(release - 1);
             let recent_loss = k < release - 1 || lost[from..=k].iter().any(|&l| l);
-            assert_eq!(row[column("fault_out")] == Some(1), recent_loss, "sample {k}");
+            assert_eq!(
+                row[column("fault_out")] == Some(1),
+                recent_loss,
+                "sample {k}"
+            );
             let fade = row[column("flags")].unwrap() & i64::from(Flags::FADE_WARNING.bits()) != 0;
             assert_eq!(row[column("warning_out")] == Some(1), fade, "sample {k}");
         }
