@@ -59,7 +59,11 @@ mod tests {
     fn the_compiled_config_equals_the_one_built_from_the_toml_at_run_time() {
         // The emitter wrote raw bits; here the same TOML goes through the device crate at run
         // time and the result must equal the compiled constant in every bit (`PartialEq`).
-        let built = clampwise_device_build::device_from_default_toml::<DEVICE_CHANNELS>();
+        let loaded =
+            clampwise_device::config::LoadedConfig::load(std::path::Path::new(CONFIG_PATH))
+                .unwrap();
+        let built =
+            clampwise_device::build_core::core_device::<DEVICE_CHANNELS>(&loaded.config).unwrap();
         assert_eq!(DEVICE_CONFIG, built);
         assert_eq!(built.checksum(), DEVICE_CHECKSUM);
     }
