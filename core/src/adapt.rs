@@ -308,8 +308,8 @@ impl AdaptState {
     /// Restore from a saved factor and covariance, clamped into the configured bounds.
     pub fn restore(cfg: &AdaptConfig, factor: Ratio, covariance: Ratio) -> Self {
         Self {
-            factor: factor.clamp(cfg.min_factor, cfg.max_factor),
-            covariance: covariance.clamp(cfg.min_covariance, cfg.max_covariance),
+            factor: factor.max(cfg.min_factor).min(cfg.max_factor),
+            covariance: covariance.max(cfg.min_covariance).min(cfg.max_covariance),
         }
     }
 
@@ -360,10 +360,14 @@ impl AdaptState {
         let k_new = k + ((gain * innovation.clamp(-4 * ONE_Q30, 4 * ONE_Q30)) >> 30);
         let p_new = ((p - ((gain * phi) >> 30) * p / ONE_Q30) << 30) / lambda;
 
-        let k_bounded = narrow_q30(k_new).clamp(cfg.min_factor, cfg.max_factor);
+        // `max`/`min` rather than `clamp`: the same value for validated bounds (min ≤ max),
+        // and no assertion (panic path) on their order in the per-sample code.
+        let k_bounded = narrow_q30(k_new).max(cfg.min_factor).min(cfg.max_factor);
         let at_band_limit = k_bounded.to_bits() != narrow_q30(k_new).to_bits();
         self.factor = k_bounded;
-        self.covariance = narrow_q30(p_new).clamp(cfg.min_covariance, cfg.max_covariance);
+        self.covariance = narrow_q30(p_new)
+            .max(cfg.min_covariance)
+            .min(cfg.max_covariance);
         AdaptSample {
             factor: self.factor,
             frozen: false,

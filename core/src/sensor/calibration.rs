@@ -213,7 +213,9 @@ impl ChannelCalibration {
             let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
             let t = t.to_bits();
             temperature_clamped = t < lo || t > hi;
-            let dt = i128::from(t.clamp(lo, hi)) - i128::from(tc.reference.to_bits());
+            // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
+            // assertion (panic path) on the bounds' order in the per-sample code.
+            let dt = i128::from(t.max(lo).min(hi)) - i128::from(tc.reference.to_bits());
             // Q30 factor in [0.5, 1.5] (validated).
             let span = round_shr(i128::from(tc.span_per_kelvin.to_bits()) * dt, 16);
             let factor = (1i128 << 30).saturating_add(span);
