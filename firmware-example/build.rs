@@ -16,9 +16,11 @@
 //! `CLAMPWISE_FW_TRACE` (default `trace/demo.csv`), relative to this crate or absolute.
 //! Floats are used here, at build time, and nowhere in the firmware's per-sample path.
 
+use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::{env, fs};
 
+use clampwise_device::build_core::{ChannelDevice, CoreDevice, Device, InitialState};
 use clampwise_device::config::LoadedConfig;
 
 #[path = "build/trace.rs"]
@@ -101,26 +103,50 @@ fn link_setup(manifest_dir: &Path, out_dir: &Path, target: &str) -> Result<(), S
     Ok(())
 }
 
-/// The emitted device configuration and its number of force channels (1 to 4: the channel
-/// count is a type parameter of the core's configuration, so it is dispatched here).
+/// The emitted device configuration and its number of force channels. The channel count is a
+/// type parameter of the core's configuration; `clampwise-device` fixes it when it reads the
+/// config, and it is matched here once.
 fn device_source(loaded: &LoadedConfig, origin: &str) -> Result<(String, usize), String> {
-    let channels = loaded.config.sensors.len();
-    let source = match channels {
-        1 => emit::<1>(loaded, origin),
-        2 => emit::<2>(loaded, origin),
-        3 => emit::<3>(loaded, origin),
-        4 => emit::<4>(loaded, origin),
-        n => Err(format!(
-            "{}: {n} [[sensor]] channels; the firmware reads 1 to 4",
-            loaded.file
-        )),
-    }?;
-    Ok((source, channels))
+    let core = CoreDevice::build(&loaded.config).map_err(|e| format!("{}: {e}", loaded.file))?;
+    let source = match &core.device {
+        ChannelDevice::One(d) => emit(d, &core.initial, origin),
+        ChannelDevice::Two(d) => emit(d, &core.initial, origin),
+        ChannelDevice::Three(d) => emit(d, &core.initial, origin),
+        ChannelDevice::Four(d) => emit(d, &core.initial, origin),
+    }
+    .map_err(|e| format!("{}: {e}", loaded.file))?;
+    Ok((source, core.device.channels()))
 }
 
-fn emit<const C: usize>(loaded: &LoadedConfig, origin: &str) -> Result<String, String> {
-    let device = clampwise_device::build_core::core_device::<C>(&loaded.config)
-        .map_err(|e| format!("{}: {e}", loaded.file))?;
-    clampwise_device::emit_device::device_config_source(&device, origin)
-        .map_err(|e| format!("{}: {e}", loaded.file))
+/// The device configuration (`clampwise_device::emit_device`) and the state record the replay
+/// starts from when the config sets an initial temperature or lining energy (the simulator's
+/// replay starts there too).
+fn emit<const C: usize>(
+    device: &Device<C>,
+    initial: &InitialState,
+    origin: &str,
+) -> Result<String, String> {
+    let mut source = clampwise_device::emit_device::device_config_source(device, origin)
+        .map_err(|e| e.to_string())?;
+    let record = initial.record(device);
+    if let Some(r) = &record {
+        // Checked here, so the firmware's start-up restore cannot meet a record it rejects
+        // unless flash changed.
+        clampwise_core::estimator::Estimator::restore(device, r)
+            .map_err(|e| format!("initial state record rejected: {e}"))?;
+    }
+    let _ = writeln!(
+        source,
+        "/// Saved state the replay starts from (`thermal.initial_temperature_c`,\n\
+         /// `wear.initial_energy_j`); `None`: a new lining at ambient temperature.\n\
+         pub const DEVICE_INITIAL_RECORD: Option<[u8; ::clampwise_core::record::RECORD_LEN]> = {};",
+        record.map_or_else(
+            || "None".to_string(),
+            |r| format!(
+                "Some([{}])",
+                r.iter().map(u8::to_string).collect::<Vec<_>>().join(", ")
+            )
+        )
+    );
+    Ok(source)
 }

@@ -671,7 +671,7 @@ pub fn device_config_source<
          /// `DeviceConfig::checksum` of [`DEVICE`], computed on the host from {origin}.\n\
          pub const DEVICE_CHECKSUM: u32 = 0x{checksum:08x};\n\
          /// The device configuration ({origin}), evaluated at compile time.\n\
-         #[allow(clippy::unreadable_literal)]\n\
+         #[allow(clippy::unreadable_literal, unused_imports)]\n\
          pub const DEVICE: Device = {{"
     );
     for line in USES.lines() {

@@ -138,10 +138,7 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
             let value = if !ok {
                 None
             } else if cell.is_empty() {
-                return Err(format!(
-                    "{}: empty, but the channel is marked valid",
-                    at(f)
-                ));
+                return Err(format!("{}: empty, but the channel is marked valid", at(f)));
             } else {
                 let n: i64 = cell
                     .parse()
@@ -210,7 +207,10 @@ pub fn source(rows: &[Row], config_path: &Path, trace_path: &Path) -> String {
     );
     let _ = writeln!(s, "/// Name of the recorded trace (its file stem).");
     let _ = writeln!(s, "pub const TRACE_NAME: &str = {:?};", stem(trace_path));
-    let _ = writeln!(s, "/// The recorded trace, one entry per sample, kept in flash.");
+    let _ = writeln!(
+        s,
+        "/// The recorded trace, one entry per sample, kept in flash."
+    );
     let _ = writeln!(
         s,
         "pub static TRACE: [TraceSample<DEVICE_CHANNELS>; {}] = [",

@@ -47,7 +47,7 @@ pub fn checksum() -> u32 {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    #![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing)]
     use super::*;
 
     #[test]
@@ -59,13 +59,25 @@ mod tests {
     fn the_compiled_config_equals_the_one_built_from_the_toml_at_run_time() {
         // The emitter wrote raw bits; here the same TOML goes through the device crate at run
         // time and the result must equal the compiled constant in every bit (`PartialEq`).
+        use clampwise_device::build_core::{ChannelDevice, CoreDevice};
         let loaded =
             clampwise_device::config::LoadedConfig::load(std::path::Path::new(CONFIG_PATH))
                 .unwrap();
-        let built =
-            clampwise_device::build_core::core_device::<DEVICE_CHANNELS>(&loaded.config).unwrap();
-        assert_eq!(DEVICE_CONFIG, built);
+        let core = CoreDevice::build(&loaded.config).unwrap();
+        let built: &dyn std::any::Any = match &core.device {
+            ChannelDevice::One(d) => d,
+            ChannelDevice::Two(d) => d,
+            ChannelDevice::Three(d) => d,
+            ChannelDevice::Four(d) => d,
+        };
+        let built = built
+            .downcast_ref::<Device>()
+            .expect("the same channel count and table sizes");
+        assert_eq!(DEVICE_CONFIG, *built);
         assert_eq!(built.checksum(), DEVICE_CHECKSUM);
+        // The start state too.
+        let record = core.initial.record(built);
+        assert_eq!(DEVICE_INITIAL_RECORD, record);
     }
 
     #[test]

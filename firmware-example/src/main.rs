@@ -29,7 +29,9 @@ fn main() {
     }
 
     let mut out = Stdout(std::io::BufWriter::new(std::io::stdout().lock()), true);
-    let result = replay(demo_processor(), &mut out).map_err(|e| e.to_string());
+    let result = demo_processor()
+        .map_err(|e| e.to_string())
+        .and_then(|p| replay(p, &mut out).map_err(|e| e.to_string()));
     let flushed = out.0.flush().is_ok() && out.1;
     match result {
         Ok(_) if flushed => {}

@@ -37,6 +37,7 @@
 use clampwise_core::config::DeviceConfig;
 use clampwise_core::estimator::{self, ContactState, Estimate, Estimator, EstimatorState};
 use clampwise_core::flags::Flags;
+use clampwise_core::record::RecordError;
 use clampwise_core::sensor::RawChannel;
 use clampwise_core::units::RadPerSec;
 
@@ -64,6 +65,22 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         Self {
             estimator: Estimator::new(config),
         }
+    }
+
+    /// An estimator on `config` resumed from a saved state record (temperatures, wear,
+    /// bedding, adaptation), or new when there is none.
+    ///
+    /// # Errors
+    /// The core's [`RecordError`] for a record that is corrupt or of another version.
+    pub fn resume(
+        config: &'c DeviceConfig<C, NF, NB, NT, NV>,
+        record: Option<&[u8]>,
+    ) -> Result<Self, RecordError> {
+        let estimator = match record {
+            Some(r) => Estimator::restore(config, r)?,
+            None => Estimator::new(config),
+        };
+        Ok(Self { estimator })
     }
 
     /// The state the estimator carries between samples.

@@ -19,20 +19,22 @@
 //!     fn emit(&mut self, _line: &[u8]) { self.0 += 1; }
 //! }
 //! let mut lines = Count(0);
-//! let summary = replay(demo_processor(), &mut lines).unwrap();
+//! let summary = replay(demo_processor().unwrap(), &mut lines).unwrap();
 //! assert_eq!(lines.0, summary.samples as usize + 4);
 //! ```
 
 use core::fmt;
+
+use clampwise_core::record::RecordError;
 
 use crate::adc::Channel;
 use crate::app::{
     ControlLoop, FaultPolarity, LoopConfig, LoopConfigError, Ports, Processor, Summary,
 };
 use crate::generated::{
-    self, CONFIG_NAME, DEVICE_CHANNELS, DEVICE_CHECKSUM, DEVICE_CONFIG, DEVICE_MU_SPEEDS,
-    DEVICE_MU_TEMPERATURES, DEVICE_RADIUS_BEDDINGS, DEVICE_RADIUS_FORCES, SAMPLE_PERIOD_NS, TRACE,
-    TRACE_NAME,
+    self, CONFIG_NAME, DEVICE_CHANNELS, DEVICE_CHECKSUM, DEVICE_CONFIG, DEVICE_INITIAL_RECORD,
+    DEVICE_MU_SPEEDS, DEVICE_MU_TEMPERATURES, DEVICE_RADIUS_BEDDINGS, DEVICE_RADIUS_FORCES, Device,
+    SAMPLE_PERIOD_NS, TRACE, TRACE_NAME,
 };
 use crate::line::{Line, LineSink};
 use crate::processor::EstimatorStep;
@@ -84,9 +86,18 @@ impl fmt::Display for ReplayError {
 
 impl core::error::Error for ReplayError {}
 
-/// A new estimator on the device configuration kept in flash.
-pub fn demo_processor() -> DemoProcessor {
-    EstimatorStep::new(&DEVICE_CONFIG)
+/// The estimator on the device configuration kept in flash, started where the config says
+/// (a new lining at ambient, or the generated initial state record).
+///
+/// # Errors
+/// The core's [`RecordError`] when the initial state record in flash is rejected (the build
+/// script checked it, so only changed flash gets here).
+pub fn demo_processor() -> Result<DemoProcessor, RecordError> {
+    // Opaque to the optimiser: the step is compiled for any configuration of this type, not
+    // folded around the demo's values, so the link-time panic check covers every branch of it
+    // (adaptation, fallback, temperature compensation …), not only those the demo uses.
+    let config: &'static Device = core::hint::black_box(&DEVICE_CONFIG);
+    EstimatorStep::resume(config, DEVICE_INITIAL_RECORD.as_ref().map(|r| &r[..]))
 }
 
 /// Channels `0..CH` in order, or `None` for more than the ADC has.
@@ -192,7 +203,7 @@ mod tests {
     /// The replay's sample lines, split into fields (`None` for an empty field).
     fn rows() -> Vec<Vec<Option<i64>>> {
         let mut out = Collect::default();
-        replay(demo_processor(), &mut out).unwrap();
+        replay(demo_processor().unwrap(), &mut out).unwrap();
         out.0
             .iter()
             .filter(|l| l.starts_with("est,"))
@@ -217,7 +228,7 @@ mod tests {
     #[test]
     fn adc_faults_match_the_trace_cells() {
         let mut out = Collect::default();
-        let summary = replay(demo_processor(), &mut out).unwrap();
+        let summary = replay(demo_processor().unwrap(), &mut out).unwrap();
         assert_eq!(summary.samples as usize, TRACE.len());
         assert_eq!(out.0.len(), TRACE.len() + 4);
         // Independent tally straight from the trace: every invalid cell is a not-ready frame.
@@ -251,14 +262,22 @@ mod tests {
             .iter()
             .map(|r| r[column("flags")].unwrap() & i64::from(Flags::FORCE_LOST.bits()) != 0)
             .collect();
-        // With no actuator command wired, the force is lost exactly when no channel can vote;
-        // a channel is held for its last good value for `max_hold_samples` first.
-        for (k, (&l, s)) in lost.iter().zip(TRACE.iter()).enumerate() {
+        // With no actuator command wired, the force is lost when no channel can vote. A
+        // channel that failed comes back only after `clear_after` clean samples (its invalid
+        // flag's debounce), so at a lost sample every channel failed within that window.
+        let clear = usize::from(DEVICE_CONFIG.sensor().limits().debounce.invalid.clear_after);
+        for (k, &l) in lost.iter().enumerate() {
             if l {
-                assert!(
-                    all_invalid(s),
-                    "sample {k}: force lost with a clean channel"
-                );
+                for ch in 0..DEVICE_CHANNELS {
+                    let from = k.saturating_sub(clear);
+                    let failed = TRACE[from..=k]
+                        .iter()
+                        .any(|s| !matches!(s.counts[ch], TraceCell::Counts(_)));
+                    assert!(
+                        failed,
+                        "sample {k}: force lost, channel {ch} clean throughout"
+                    );
+                }
                 assert_eq!(rows[k][column("state")], Some(3), "unavailable");
                 assert_eq!(rows[k][column("torque_bits")], None);
             }
@@ -321,7 +340,7 @@ mod tests {
     #[test]
     fn header_names_every_field() {
         let mut out = Collect::default();
-        replay(demo_processor(), &mut out).unwrap();
+        replay(demo_processor().unwrap(), &mut out).unwrap();
         let names = out.0[2].split(',').count();
         for l in out.0.iter().filter(|l| l.starts_with("est,")) {
             assert_eq!(l.split(',').count(), names, "{l}");

@@ -48,17 +48,17 @@ fn main() -> ! {
     canary();
 
     let mut out = Semihosting(cortex_m_semihosting::hio::hstdout().ok());
-    let ok = replay(demo_processor(), &mut out).is_ok();
+    let ok = demo_processor().is_ok_and(|p| replay(p, &mut out).is_ok());
     let total = crate::stack::peak_use(painted);
 
     // A second, silent replay measures the processing step alone: each call is made from a
     // freshly painted stack and the depth below the call site is kept.
-    let mut probe = crate::stack::StackProbe::new(demo_processor());
-    let step = if replay(&mut probe, &mut Discard).is_ok() {
-        Some(probe.deepest())
-    } else {
-        None
-    };
+    let step = demo_processor().ok().and_then(|p| {
+        let mut probe = crate::stack::StackProbe::new(p);
+        replay(&mut probe, &mut Discard)
+            .is_ok()
+            .then(|| probe.deepest())
+    });
 
     let bytes = |n: usize| i64::try_from(n).unwrap_or(-1);
     let mut line = Line::new();
@@ -81,11 +81,15 @@ fn main() -> ! {
     );
     line.key_value(
         "processor_bytes",
-        bytes(core::mem::size_of::<clampwise_firmware_example::replay::DemoProcessor>()),
+        bytes(core::mem::size_of::<
+            clampwise_firmware_example::replay::DemoProcessor,
+        >()),
     );
     line.key_value(
         "device_config_bytes",
-        bytes(core::mem::size_of::<clampwise_firmware_example::generated::Device>()),
+        bytes(core::mem::size_of::<
+            clampwise_firmware_example::generated::Device,
+        >()),
     );
     line.key_value(
         "estimate_bytes",
@@ -190,10 +194,16 @@ fn main() -> ! {
         cp.DCB.enable_trace();
         cp.DWT.enable_cycle_counter();
     }
+    let Ok(processor) = demo_processor() else {
+        defmt::error!("initial state record rejected");
+        loop {
+            cortex_m::asm::bkpt();
+        }
+    };
     #[cfg(not(armv6m))]
     {
         let mut probe = CycleProbe {
-            inner: demo_processor(),
+            inner: processor,
             max: 0,
             total: 0,
             steps: 0,
@@ -212,7 +222,7 @@ fn main() -> ! {
         }
     }
     #[cfg(armv6m)]
-    match replay(demo_processor(), &mut Defmt) {
+    match replay(processor, &mut Defmt) {
         Ok(s) => defmt::info!("replay done: {=u32} samples", s.samples),
         Err(_) => defmt::error!("replay could not start"),
     }
