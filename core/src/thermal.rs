@@ -737,20 +737,23 @@ impl ThermalState {
         ambient: Option<Celsius>,
     ) -> ThermalSample {
         let p = i128::from(power.to_bits().unsigned_abs());
-        let amb = i128::from(to_q32(ambient.unwrap_or(cfg.ambient)));
+        let amb = to_q32(ambient.unwrap_or(cfg.ambient));
+        // Temperatures are held within −273 … 32 767 °C in Q32 (below 2⁴⁷ in magnitude), so
+        // each difference is exact in i64 (|θ| < 2⁴⁸).
         let theta = [
-            i128::from(self.lining_q32).saturating_sub(amb),
-            i128::from(self.rotor_q32).saturating_sub(amb),
+            self.lining_q32.saturating_sub(amb),
+            self.rotor_q32.saturating_sub(amb),
         ];
         let mut next = [self.lining_q32, self.rotor_q32];
         for ((out, krow), g) in next.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
-            // |θ| < 2⁴⁸, |K| ≤ 2⁶², P < 2⁶⁴, Γ < 2⁶²: the sum stays below 2¹²⁷, so the
-            // saturating operations never saturate; they keep the path free of panics.
+            // |θ| < 2⁴⁸ and |K| < 2⁶² (checked by `from_raw`): each K·θ is a 64 × 64-bit
+            // widening product below 2¹¹⁰, their sum below 2¹¹¹. 0 ≤ Γ < 2⁶² and P < 2⁶⁴:
+            // Γ·P < 2¹²⁶. Nothing comes near the i128 range, so the products are exact and
+            // the saturating forms below never saturate (they keep the path free of panics).
             let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
-                acc.saturating_add(i128::from(*k).saturating_mul(*t))
+                acc.saturating_add(i128::from(*k) * i128::from(*t))
             });
-            let delta = i128::from(*g)
-                .saturating_mul(p)
+            let delta = (i128::from(*g) * p)
                 .saturating_sub(decay)
                 .saturating_add(1i128 << 61)
                 >> 62;
@@ -1057,6 +1060,41 @@ mod tests {
             max_rate: 2000.0,
         });
         p
+    }
+
+    proptest::proptest! {
+        // The widening products give the very bits of the saturating i128 update they
+        // replaced, over every state, power and coefficient the configuration allows.
+        #[test]
+        fn update_same_bits_as_saturating_i128(
+            lining in T_FLOOR_Q32..=T_CEIL_Q32, rotor in T_FLOOR_Q32..=T_CEIL_Q32,
+            amb in proptest::prelude::any::<i32>(), power in proptest::prelude::any::<i64>(),
+            k in proptest::array::uniform4(-(1i64 << 62) + 1..(1i64 << 62)),
+            g in proptest::array::uniform2(0i64..(1i64 << 62)),
+        ) {
+            let cfg = ThermalConfig {
+                k: [[k[0], k[1]], [k[2], k[3]]],
+                gamma: g,
+                two_node: true,
+                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap()
+            };
+            let amb_c = Celsius::from_bits(amb);
+            let p = i128::from(power.unsigned_abs());
+            let a = i128::from(to_q32(amb_c));
+            let theta = [i128::from(lining).saturating_sub(a), i128::from(rotor).saturating_sub(a)];
+            let mut want = [lining, rotor];
+            for ((out, krow), gg) in want.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
+                let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
+                    acc.saturating_add(i128::from(*k).saturating_mul(*t))
+                });
+                let delta = i128::from(*gg).saturating_mul(p).saturating_sub(decay)
+                    .saturating_add(1i128 << 61) >> 62;
+                *out = narrow_q32(i128::from(*out).saturating_add(delta));
+            }
+            let mut s = ThermalState::from_raw(rotor, lining);
+            s.update_with_ambient(&cfg, Watts::from_bits(power), None, Some(amb_c));
+            proptest::prop_assert_eq!(s.raw(), (want[1], want[0]));
+        }
     }
 
     #[test]

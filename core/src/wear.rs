@@ -44,6 +44,12 @@ use crate::units::{Joules, Metres, Ratio, Seconds, Watts};
 pub const WEAR_RATE_UNIT: f64 = 1e-13;
 
 const ONE_Q62: u128 = 1 << 62;
+const ONE_Q62_U64: u64 = 1 << 62;
+
+/// `a · b` in Q62 for `a, b ≤ 1` (2⁶²): the product, truncated, is at most 1 again.
+fn mul_q62(a: u64, b: u64) -> u64 {
+    u64::try_from((u128::from(a) * u128::from(b)) >> 62).unwrap_or(u64::MAX)
+}
 /// Energy the state can hold: the top of [`Joules`], in Q64.
 const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
 /// A single sample's energy is capped at 2³² J (4.3 GJ) before the wear product.
@@ -480,17 +486,21 @@ impl WearState {
         self.energy_q64 = self.energy_q64.saturating_add(step_q64).min(ENERGY_MAX_Q64);
         let step_q48 = (step_q64 >> 16).min(STEP_MAX_Q48);
 
-        // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷.
-        let x = ((step_q48.min(cfg.e0_q48)).saturating_mul(cfg.bedding_recip) >> 65).min(ONE_Q62);
-        let x2 = (x * x) >> 62;
-        let x3 = (x2 * x) >> 62;
-        let x4 = (x3 * x) >> 62;
+        // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷ before the shift. From here
+        // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
+        // products (far less code on a 32-bit core than u128 × u128; the same values).
+        let x = u64::try_from((step_q48.min(cfg.e0_q48)).saturating_mul(cfg.bedding_recip) >> 65)
+            .unwrap_or(u64::MAX)
+            .min(ONE_Q62_U64);
+        let x2 = mul_q62(x, x);
+        let x3 = mul_q62(x2, x);
+        let x4 = mul_q62(x3, x);
         // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
-        let g = (ONE_Q62 + x2 / 2 + x4 / 24)
+        // Each term is at most 1 in Q62, so the sums stay below 2⁶³.
+        let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24)
             .saturating_sub(x + x3 / 6)
-            .min(ONE_Q62);
-        let u = (u128::from(self.unbedded_q62) * g) >> 62;
-        self.unbedded_q62 = u64::try_from(u).unwrap_or(0).min(self.unbedded_q62);
+            .min(ONE_Q62_U64);
+        self.unbedded_q62 = mul_q62(self.unbedded_q62, g).min(self.unbedded_q62);
 
         self.loss_q96 = self.loss_q96.saturating_add(cfg.loss_q96(step_q48));
     }
@@ -736,6 +746,24 @@ mod tests {
     }
 
     proptest! {
+        // The u64 polynomial gives the very bits of the u128 one it replaced.
+        #[test]
+        fn bedding_step_same_bits_as_u128(x in 0u64..=(1 << 62), unbedded in 0u64..=(1 << 62)) {
+            let wide = {
+                let x = u128::from(x);
+                let x2 = (x * x) >> 62;
+                let x3 = (x2 * x) >> 62;
+                let x4 = (x3 * x) >> 62;
+                let g = (ONE_Q62 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62);
+                u64::try_from((u128::from(unbedded) * g) >> 62).unwrap_or(0).min(unbedded)
+            };
+            let x2 = mul_q62(x, x);
+            let x3 = mul_q62(x2, x);
+            let x4 = mul_q62(x3, x);
+            let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62_U64);
+            prop_assert_eq!(mul_q62(unbedded, g).min(unbedded), wide);
+        }
+
         // Bedding never decreases, never exceeds 1, and follows 1 − exp(−E/E₀) (the solution
         // of db = (1 − b)·dE/E₀) for any split of the energy into samples.
         #[test]

@@ -204,9 +204,9 @@ impl ChannelCalibration {
     /// Counts → newtons with temperature compensation (`sensor_temp` in °C; `None`: ΔT = 0).
     /// O(1), integers only, any input.
     pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
-        // Q32 newtons.
-        let mut v = i128::from(counts)
-            .saturating_mul(i128::from(self.gain.to_bits()))
+        // Q32 newtons. |counts| < 2³¹ and |gain| < 2⁶³: the product is below 2⁹⁴, exact in
+        // i128 (a widening multiply, no overflow to saturate).
+        let mut v = (i128::from(counts) * i128::from(self.gain.to_bits()))
             .saturating_add(i128::from(self.offset.to_bits()) << 24);
         let mut temperature_clamped = false;
         if let (Some(tc), Some(t)) = (&self.temperature, sensor_temp) {
