@@ -56,6 +56,8 @@ pub struct DeviceConfig {
     pub adaptation: Adaptation,
     /// Operating envelope.
     pub limits: Limits,
+    /// How tolerances combine into the ± uncertainty.
+    pub uncertainty: Uncertainty,
     /// Breakpoints of the friction-radius table r_e(F, bedding).
     pub radius_table: RadiusTableSpec,
     /// CSV column mapping; canonical names when absent.
@@ -159,23 +161,29 @@ pub enum ButtonModelName {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Friction {
-    /// μ_static / μ_kinetic used for holding capacity (0.5–2).
+    /// μ_static / μ_kinetic at the first slip-speed breakpoint, for the holding capacity
+    /// (0.5 … 1.6, the core's limit).
     pub static_ratio: f64,
-    /// Slip speed below which the contact is taken as holding, rad/s (> 0).
+    /// Slip speed below which a slipping contact is taken as holding again, rad/s (> 0).
     pub stick_speed_rad_s: f64,
-    /// Hysteresis of the stick/slip boundary, rad/s (0 ≤ h < stick speed).
+    /// Hysteresis of the stick/slip boundary, rad/s (0 < h): a holding contact slips only above
+    /// `stick_speed_rad_s + stick_hysteresis_rad_s`. In the core's terms: a band of width h
+    /// centred on stick + h/2.
     pub stick_hysteresis_rad_s: f64,
-    /// Constant drag torque of a wet clutch, N·m (≥ 0).
+    /// Slip speed over which μ moves from static to kinetic and the constant drag builds up,
+    /// rad/s (> 0; the core's smoothstep transition).
+    pub transition_speed_rad_s: f64,
+    /// Constant (no-load) drag torque of a wet clutch at full transition, N·m (≥ 0).
     pub drag_torque_nm: f64,
     /// Viscous drag of a wet clutch, N·m per rad/s (≥ 0).
     pub drag_viscous_nm_per_rad_s: f64,
-    /// Relative tolerance of the μ table (0–1), for the uncertainty.
+    /// Relative tolerance of the μ table (0 ≤ δ < 1), for the uncertainty.
     pub mu_tolerance_ratio: f64,
     /// The μ table.
     pub mu: MuTableSpec,
 }
 
-/// `[friction.mu]`: μ over lining temperature × slip speed, `values[i][j]` at
+/// `[friction.mu]`: kinetic μ over lining temperature × |slip speed|, `values[i][j]` at
 /// (`temperature_c[i]`, `slip_speed_rad_s[j]`).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -184,12 +192,12 @@ pub struct MuTableSpec {
     pub temperature_c: Vec<f64>,
     /// Slip-speed breakpoints, rad/s, ≥ 0, strictly increasing (1–8).
     pub slip_speed_rad_s: Vec<f64>,
-    /// μ values (0 < μ < 1.5), one row per temperature.
+    /// μ values (0 < μ ≤ 1.2, the core's limit), one row per temperature.
     pub values: Vec<Vec<f64>>,
 }
 
-/// `[thermal]`: lumped rotor; give either `cooling_time_constant_s` or
-/// `heat_transfer_w_per_m2_k` with `cooling_area_m2`.
+/// `[thermal]`: lumped rotor (and optionally a lining node); give either
+/// `cooling_time_constant_s` or `heat_transfer_w_per_m2_k` with `cooling_area_m2`.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Thermal {
@@ -201,36 +209,66 @@ pub struct Thermal {
     pub heat_transfer_w_per_m2_k: Option<f64>,
     /// A, m².
     pub cooling_area_m2: Option<f64>,
-    /// Share γ of the heat that goes into the rotor (0 < γ ≤ 1).
+    /// Share γ of the heat that goes into the rotor (0 < γ ≤ 1); with a lining node the rest
+    /// heats the lining, without one it leaves the model.
     pub heat_into_rotor_ratio: f64,
-    /// Ambient temperature, °C.
+    /// Ambient temperature, °C (the trace's ambient column overrides it per sample).
     pub ambient_c: f64,
-    /// Start temperature, °C (ambient when absent).
+    /// Start temperature of rotor and lining, °C (ambient when absent).
     pub initial_temperature_c: Option<f64>,
     /// Fade warning threshold, °C.
     pub fade_c: f64,
     /// Over-temperature threshold, °C (> fade).
     pub over_temperature_c: f64,
+    /// A fade or over-temperature flag clears only this far below its threshold, K (≥ 0).
+    pub flag_hysteresis_k: f64,
+    /// Optional second node: the lining, heated by 1 − γ of the power.
+    pub lining: Option<LiningNode>,
+    /// Plausibility of a measured lining temperature (the trace's temperature column). When
+    /// absent the core ignores measured temperatures and uses its model alone.
+    pub measured: Option<MeasuredTemperature>,
 }
 
-/// `[wear]`.
+/// `[thermal.lining]`.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LiningNode {
+    /// m·c of the lining (all pads or facings), J/K (> 0).
+    pub heat_capacity_j_per_k: f64,
+    /// Conductance from lining to rotor, W/K (> 0).
+    pub conductance_to_rotor_w_per_k: f64,
+}
+
+/// `[thermal.measured]`: a measured temperature replaces the model while plausible.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MeasuredTemperature {
+    /// Lowest plausible reading, °C.
+    pub min_c: f64,
+    /// Highest plausible reading, °C (> min).
+    pub max_c: f64,
+    /// Largest plausible change between two readings, K/s (> 0).
+    pub max_rate_k_per_s: f64,
+}
+
+/// `[wear]`: energy, bedding and lining wear. Bedding and wear both follow from the friction
+/// work E: bedding = 1 − exp(−E/E_bed), thickness loss = k·E/(faces · pad area).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Wear {
-    /// Energy constant of bedding, J: bedding = 1 − exp(−E/E_bed) (> 0).
+    /// Energy constant of bedding E_bed, J (1 … 10¹³).
     pub bedding_energy_j: f64,
-    /// Bedding at start (0 new … 1 bedded).
-    pub initial_bedding_ratio: f64,
+    /// Friction work the lining has already taken at the start of a trace, J (≥ 0; 0 for new
+    /// pads). Sets the starting bedding and wear.
+    pub initial_energy_j: f64,
     /// Lining volume lost per joule of friction work, m³/J (≥ 0).
     pub specific_wear_rate_m3_per_j: f64,
-    /// Lining area of one face, m² (> 0).
+    /// Lining area of one face, m² (> 0); the work is shared by all faces.
     pub pad_area_m2: f64,
     /// New lining thickness, m (> 0).
     pub lining_thickness_m: f64,
     /// Replace-by thickness, m (< lining thickness).
     pub minimum_thickness_m: f64,
-    /// Wear already taken at start, m (≥ 0).
-    pub initial_wear_m: f64,
 }
 
 /// One `[[sensor]]`: a clamp-force channel, counts → N by `F = (counts − offset) · gain`.
@@ -239,53 +277,62 @@ pub struct Wear {
 pub struct Sensor {
     /// Free text.
     pub name: String,
-    /// N per ADC count (≠ 0).
+    /// N per ADC count (≠ 0; negative for an inverted bridge).
     pub gain_n_per_count: f64,
     /// Counts at zero force.
     pub offset_counts: f64,
-    /// Lowest valid ADC reading (a reading at or below is a rail fault).
+    /// Lowest code the ADC produces.
     pub rail_low_counts: i64,
-    /// Highest valid ADC reading (a reading at or above is a rail fault).
+    /// Highest code the ADC produces.
     pub rail_high_counts: i64,
+    /// Codes within this many counts of a rail count as at the rail (≥ 0).
+    pub rail_margin_counts: u32,
+}
+
+/// `[sensing]`: conditioning, diagnostics and voting shared by all channels.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Sensing {
     /// First-order filter cut-off, Hz (0 < f < Nyquist).
     pub filter_cutoff_hz: f64,
     /// Lowest plausible force, N.
     pub range_low_n: f64,
-    /// Highest plausible force, N.
+    /// Highest plausible force, N (> low).
     pub range_high_n: f64,
-    /// Largest plausible rate of change, N/s (> 0).
+    /// Largest plausible rate of change of clamp force, N/s (> 0).
     pub rate_limit_n_per_s: f64,
-    /// Identical readings in a row that mean "stuck" (0 disables).
-    pub stuck_samples: u32,
-    /// Samples a fault must persist before it is declared (≥ 1).
-    pub debounce_samples: u32,
-    /// Relative tolerance of the calibrated force (0–1), for the uncertainty.
-    pub tolerance_ratio: f64,
+    /// Peak-to-peak noise of a healthy channel, N (≥ 0): the rate check's allowance and the
+    /// stuck check's band.
+    pub noise_band_n: f64,
+    /// Samples a rejected channel's last good value may stand in (0 … 65 535).
+    pub max_hold_samples: u32,
+    /// Bad samples in a row that raise a channel fault (1 … 65 535).
+    pub debounce_raise_samples: u32,
+    /// Good samples in a row that clear it (1 … 65 535).
+    pub debounce_clear_samples: u32,
+    /// A channel agrees with the consensus when within this of its median, N (> 0; two
+    /// channels agree when they differ by at most twice this).
+    pub vote_tolerance_n: f64,
+    /// Samples a disagreement must persist before it is declared (1 … 65 535).
+    pub disagreement_debounce_samples: u32,
+    /// ± uncertainty of one healthy calibrated, filtered channel, N (≥ 0).
+    pub channel_uncertainty_n: f64,
+    /// Stuck-signal check (optional; needs an actuator command in the trace).
+    pub stuck: Option<StuckCheck>,
 }
 
-/// `[sensing]`: combining the channels.
+/// `[sensing.stuck]`: a force that stays within the noise band while the command moves.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct Sensing {
-    /// How healthy channels are combined.
-    pub voting: Voting,
-    /// Largest allowed spread between healthy channels, N (> 0).
-    pub disagreement_n: f64,
-    /// Samples a disagreement must persist before it is declared (≥ 1).
-    pub disagreement_debounce_samples: u32,
+pub struct StuckCheck {
+    /// How long the force must stay within the noise band, s (> 0).
+    pub time_s: f64,
+    /// How far the actuator command must move in that time, command units (> 0).
+    pub command_span: f64,
 }
 
-/// Channel voting.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Voting {
-    /// Median of the healthy channels (mean of the middle two for an even count).
-    Median,
-    /// Mean of the healthy channels.
-    Mean,
-}
-
-/// `[actuator]`: fallback clamp force from the actuator command, `F = gain · command + offset`.
+/// `[actuator]`: fallback clamp force from the actuator command, `F = gain · command + offset`
+/// with a hysteresis band.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Actuator {
@@ -293,38 +340,58 @@ pub struct Actuator {
     pub force_n_per_command: f64,
     /// N at zero command.
     pub force_offset_n: f64,
-    /// Relative tolerance of the fallback force (0–1).
-    pub tolerance_ratio: f64,
+    /// Full width of the band between rising and falling branches, N (≥ 0).
+    pub hysteresis_n: f64,
+    /// ± uncertainty of the transfer model, N (> `sensing.channel_uncertainty_n`).
+    pub uncertainty_n: f64,
 }
 
-/// `[adaptation]`: bounded online correction of μ from a reference torque.
+/// `[adaptation]`: bounded online correction of μ from a reference torque (the core's
+/// scalar RLS with forgetting).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Adaptation {
     /// Whether to adapt at all.
     pub enabled: bool,
-    /// Largest correction, as a fraction of the table value (0–0.5).
+    /// Largest correction, as a fraction of the table value (0 … 0.5): k ∈ [1 − b, 1 + b].
     pub band_ratio: f64,
     /// Forgetting factor λ (0.9 ≤ λ ≤ 1).
     pub forgetting_factor: f64,
-    /// Adapt only above this slip speed, rad/s.
-    pub min_slip_speed_rad_s: f64,
-    /// Adapt only above this clamp force, N.
+    /// Adapt only at or above this clamp force, N (≥ touch force).
     pub min_clamp_force_n: f64,
+    /// Torque full scale the update is normalised by, N·m (> 0).
+    pub torque_full_scale_nm: f64,
+    /// Least |model torque| / full scale for an update to carry information (0 < x < 1).
+    pub min_excitation_ratio: f64,
 }
 
 /// `[limits]`: operating envelope.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Limits {
-    /// Largest clamp force, N (≤ 200 kN, the core's envelope).
+    /// Largest clamp force, N (≤ 200 kN, the core's envelope); scales the compare bands and the
+    /// synthetic plant.
     pub max_clamp_force_n: f64,
-    /// Largest torque, N·m (≤ 50 kN·m).
-    pub max_torque_nm: f64,
-    /// Largest slip speed, rad/s (≤ 2000).
-    pub max_slip_speed_rad_s: f64,
     /// Below this clamp force the device is released: zero torque (plus drag), N.
     pub touch_force_n: f64,
+}
+
+/// `[uncertainty]`: how the relative tolerances of μ, clamp force and r_e combine.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Uncertainty {
+    /// `worst_case` (δμ + δF/F + δr) or `root_sum_square`.
+    pub combination: CombinationName,
+}
+
+/// `uncertainty.combination`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum CombinationName {
+    /// δμ + δF/F + δr: holds whatever the correlation.
+    WorstCase,
+    /// √(δμ² + (δF/F)² + δr²) for independent errors [pub: JCGM 100:2008 §5.1.2].
+    RootSumSquare,
 }
 
 /// `[radius_table]`: clamp-force breakpoints of r_e(F, bedding). The bedding axis is always
@@ -551,7 +618,12 @@ impl LoadedConfig {
         })?;
         let mut v = Validator::default();
         validate(&config, &mut v);
-        if let Err(e) = crate::build_core::CoreTables::build(&config) {
+        // The core's own checks run once the schema's have passed, so one mistake is reported
+        // once; they catch what only the core knows (time constants against the sample period,
+        // fixed-point ranges, geometry).
+        if v.issues.is_empty()
+            && let Err(e) = crate::build_core::CoreDevice::build(&config)
+        {
             v.issue(&e.key, e.message);
         }
         if v.issues.is_empty() {
@@ -784,6 +856,11 @@ impl Validator {
             }
         }
     }
+    fn count(&mut self, key: &str, n: u32, min: u32) {
+        if n < min || n > u32::from(u16::MAX) {
+            self.issue(key, format!("must be within {min} … 65535, got {n}"));
+        }
+    }
     fn required(&mut self, key: &str, v: Option<f64>, shape: Shape) -> Option<f64> {
         if v.is_none() {
             self.issue(
@@ -803,31 +880,36 @@ impl Validator {
 fn validate(c: &DeviceConfig, v: &mut Validator) {
     let period = c.device.sample_period_s;
     v.within("device.sample_period_s", period, 1e-6, 1.0);
-    if period > 0.0 && period.is_finite() && period < 1e-6 {
-        v.issue("device.sample_period_s", "must be at least 1 µs");
+    if period.is_finite() && period > 0.0 {
+        // The core's sensor runs at a whole number of hertz and checks rate · period = 1 s
+        // within 1 ppm.
+        let rate = (1.0 / period).round();
+        if (rate * period - 1.0).abs() > 1e-6 {
+            v.issue(
+                "device.sample_period_s",
+                format!("1 / {period} s is not a whole number of hertz (the core's sensor rate)"),
+            );
+        }
     }
     validate_contact(&c.contact, v);
     let f = &c.friction;
-    v.within("friction.static_ratio", f.static_ratio, 0.5, 2.0);
+    v.within("friction.static_ratio", f.static_ratio, 0.5, 1.6);
     v.positive("friction.stick_speed_rad_s", f.stick_speed_rad_s);
-    v.non_negative("friction.stick_hysteresis_rad_s", f.stick_hysteresis_rad_s);
-    if f.stick_hysteresis_rad_s >= f.stick_speed_rad_s {
-        v.issue(
-            "friction.stick_hysteresis_rad_s",
-            "must be smaller than stick_speed_rad_s",
-        );
-    }
+    v.positive("friction.stick_hysteresis_rad_s", f.stick_hysteresis_rad_s);
+    v.positive("friction.transition_speed_rad_s", f.transition_speed_rad_s);
     v.non_negative("friction.drag_torque_nm", f.drag_torque_nm);
     v.non_negative(
         "friction.drag_viscous_nm_per_rad_s",
         f.drag_viscous_nm_per_rad_s,
     );
-    v.within(
-        "friction.mu_tolerance_ratio",
-        f.mu_tolerance_ratio,
-        0.0,
-        1.0,
-    );
+    if v.finite("friction.mu_tolerance_ratio", f.mu_tolerance_ratio)
+        && !(0.0..1.0).contains(&f.mu_tolerance_ratio)
+    {
+        v.issue(
+            "friction.mu_tolerance_ratio",
+            "must be within 0 … 1 (1 excluded)",
+        );
+    }
     let mu = &f.mu;
     v.increasing(
         "friction.mu.temperature_c",
@@ -875,10 +957,10 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
             );
         }
         for (j, &m) in row.iter().enumerate() {
-            if !(m.is_finite() && m > 0.0 && m < 1.5) {
+            if !(m.is_finite() && m > 0.0 && m <= 1.2) {
                 v.issue(
                     &format!("friction.mu.values[{i}][{j}]"),
-                    format!("μ must be within 0 … 1.5 (exclusive), got {m}"),
+                    format!("μ must be above 0 and at most 1.2 (the core's limit), got {m}"),
                 );
             }
         }
@@ -924,15 +1006,29 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
     if t.over_temperature_c <= t.fade_c {
         v.issue("thermal.over_temperature_c", "must be above fade_c");
     }
+    v.within("thermal.flag_hysteresis_k", t.flag_hysteresis_k, 0.0, 500.0);
+    if let Some(l) = &t.lining {
+        v.positive(
+            "thermal.lining.heat_capacity_j_per_k",
+            l.heat_capacity_j_per_k,
+        );
+        v.positive(
+            "thermal.lining.conductance_to_rotor_w_per_k",
+            l.conductance_to_rotor_w_per_k,
+        );
+    }
+    if let Some(m) = &t.measured {
+        v.within("thermal.measured.min_c", m.min_c, -273.0, 1500.0);
+        v.within("thermal.measured.max_c", m.max_c, -273.0, 1500.0);
+        if m.max_c <= m.min_c {
+            v.issue("thermal.measured.max_c", "must be above min_c");
+        }
+        v.positive("thermal.measured.max_rate_k_per_s", m.max_rate_k_per_s);
+    }
 
     let w = &c.wear;
-    v.positive("wear.bedding_energy_j", w.bedding_energy_j);
-    v.within(
-        "wear.initial_bedding_ratio",
-        w.initial_bedding_ratio,
-        0.0,
-        1.0,
-    );
+    v.within("wear.bedding_energy_j", w.bedding_energy_j, 1.0, 1e13);
+    v.within("wear.initial_energy_j", w.initial_energy_j, 0.0, 1e14);
     v.non_negative(
         "wear.specific_wear_rate_m3_per_j",
         w.specific_wear_rate_m3_per_j,
@@ -946,7 +1042,6 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
             "must be below lining_thickness_m",
         );
     }
-    v.non_negative("wear.initial_wear_m", w.initial_wear_m);
 
     if c.sensors.is_empty() || c.sensors.len() > MAX_SENSORS {
         v.issue(
@@ -957,46 +1052,79 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
             ),
         );
     }
-    let nyquist = 0.5 / period;
     for (i, s) in c.sensors.iter().enumerate() {
         let k = |name: &str| format!("sensor[{i}].{name}");
         if !s.gain_n_per_count.is_finite() || s.gain_n_per_count == 0.0 {
             v.issue(&k("gain_n_per_count"), "must be a finite, non-zero number");
         }
         v.finite(&k("offset_counts"), s.offset_counts);
-        if s.rail_low_counts >= s.rail_high_counts {
-            v.issue(&k("rail_high_counts"), "must be above rail_low_counts");
+        for (name, r) in [
+            ("rail_low_counts", s.rail_low_counts),
+            ("rail_high_counts", s.rail_high_counts),
+        ] {
+            if i32::try_from(r).is_err() {
+                v.issue(&k(name), "must fit a 32-bit ADC code");
+            }
         }
-        if s.filter_cutoff_hz.is_finite()
-            && (s.filter_cutoff_hz <= 0.0 || s.filter_cutoff_hz >= nyquist)
-        {
+        let margin = i64::from(s.rail_margin_counts);
+        if s.rail_low_counts.saturating_add(margin) >= s.rail_high_counts.saturating_sub(margin) {
             v.issue(
-                &k("filter_cutoff_hz"),
-                format!("must be within 0 … {nyquist} Hz (Nyquist of the sample period)"),
+                &k("rail_high_counts"),
+                "must be above rail_low_counts plus twice rail_margin_counts",
             );
         }
-        v.finite(&k("range_low_n"), s.range_low_n);
-        v.finite(&k("range_high_n"), s.range_high_n);
-        if s.range_high_n <= s.range_low_n {
-            v.issue(&k("range_high_n"), "must be above range_low_n");
-        }
-        v.positive(&k("rate_limit_n_per_s"), s.rate_limit_n_per_s);
-        if s.debounce_samples == 0 {
-            v.issue(&k("debounce_samples"), "must be at least 1");
-        }
-        v.within(&k("tolerance_ratio"), s.tolerance_ratio, 0.0, 1.0);
     }
-    v.positive("sensing.disagreement_n", c.sensing.disagreement_n);
-    if c.sensing.disagreement_debounce_samples == 0 {
+    let sn = &c.sensing;
+    let nyquist = 0.5 / period;
+    if v.finite("sensing.filter_cutoff_hz", sn.filter_cutoff_hz)
+        && (sn.filter_cutoff_hz <= 0.0 || sn.filter_cutoff_hz >= nyquist)
+    {
         v.issue(
-            "sensing.disagreement_debounce_samples",
-            "must be at least 1",
+            "sensing.filter_cutoff_hz",
+            format!("must be within 0 … {nyquist} Hz (Nyquist of the sample period)"),
         );
+    }
+    v.finite("sensing.range_low_n", sn.range_low_n);
+    v.finite("sensing.range_high_n", sn.range_high_n);
+    if sn.range_high_n <= sn.range_low_n {
+        v.issue("sensing.range_high_n", "must be above range_low_n");
+    }
+    v.positive("sensing.rate_limit_n_per_s", sn.rate_limit_n_per_s);
+    v.non_negative("sensing.noise_band_n", sn.noise_band_n);
+    v.count("sensing.max_hold_samples", sn.max_hold_samples, 0);
+    v.count(
+        "sensing.debounce_raise_samples",
+        sn.debounce_raise_samples,
+        1,
+    );
+    v.count(
+        "sensing.debounce_clear_samples",
+        sn.debounce_clear_samples,
+        1,
+    );
+    v.count(
+        "sensing.disagreement_debounce_samples",
+        sn.disagreement_debounce_samples,
+        1,
+    );
+    v.positive("sensing.vote_tolerance_n", sn.vote_tolerance_n);
+    v.non_negative("sensing.channel_uncertainty_n", sn.channel_uncertainty_n);
+    if let Some(s) = &sn.stuck {
+        v.positive("sensing.stuck.time_s", s.time_s);
+        v.positive("sensing.stuck.command_span", s.command_span);
     }
     if let Some(a) = &c.actuator {
         v.positive("actuator.force_n_per_command", a.force_n_per_command);
         v.finite("actuator.force_offset_n", a.force_offset_n);
-        v.within("actuator.tolerance_ratio", a.tolerance_ratio, 0.0, 1.0);
+        v.non_negative("actuator.hysteresis_n", a.hysteresis_n);
+        if v.finite("actuator.uncertainty_n", a.uncertainty_n)
+            && a.uncertainty_n <= sn.channel_uncertainty_n
+        {
+            v.issue(
+                "actuator.uncertainty_n",
+                "must be above sensing.channel_uncertainty_n (a fallback force is less certain than a healthy channel)",
+            );
+        }
     }
     let a = &c.adaptation;
     v.within("adaptation.band_ratio", a.band_ratio, 0.0, 0.5);
@@ -1006,23 +1134,43 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
         0.9,
         1.0,
     );
-    v.non_negative("adaptation.min_slip_speed_rad_s", a.min_slip_speed_rad_s);
     v.non_negative("adaptation.min_clamp_force_n", a.min_clamp_force_n);
+    if a.min_clamp_force_n < c.limits.touch_force_n {
+        v.issue(
+            "adaptation.min_clamp_force_n",
+            "must not be below limits.touch_force_n",
+        );
+    }
+    v.within(
+        "adaptation.torque_full_scale_nm",
+        a.torque_full_scale_nm,
+        1e-3,
+        500e3,
+    );
+    if v.finite("adaptation.min_excitation_ratio", a.min_excitation_ratio)
+        && !(a.min_excitation_ratio > 0.0 && a.min_excitation_ratio < 1.0)
+    {
+        v.issue(
+            "adaptation.min_excitation_ratio",
+            "must be within 0 … 1 (both excluded)",
+        );
+    }
     let l = &c.limits;
     v.within("limits.max_clamp_force_n", l.max_clamp_force_n, 1.0, 200e3);
-    v.within("limits.max_torque_nm", l.max_torque_nm, 1e-3, 50e3);
-    v.within(
-        "limits.max_slip_speed_rad_s",
-        l.max_slip_speed_rad_s,
-        1e-3,
-        2000.0,
-    );
     v.non_negative("limits.touch_force_n", l.touch_force_n);
     if l.touch_force_n >= l.max_clamp_force_n {
         v.issue("limits.touch_force_n", "must be below max_clamp_force_n");
     }
     let r = &c.radius_table;
     v.increasing("radius_table.force_n", &r.force_n, RADIUS_MAX_FORCE_POINTS);
+    for (i, &x) in r.force_n.iter().enumerate() {
+        if x < 0.0 {
+            v.issue(
+                &format!("radius_table.force_n[{i}]"),
+                format!("must be ≥ 0, got {x}"),
+            );
+        }
+    }
     if let Some(g) = c.trace.gap_tolerance_ratio {
         v.within("trace.gap_tolerance_ratio", g, 0.0, 100.0);
     }
@@ -1386,6 +1534,44 @@ mod tests {
         let e = err(&src);
         let line = src.lines().position(|l| l.starts_with("faces")).unwrap() + 1;
         assert_eq!(e.issues[0].line, Some(line));
+    }
+
+    #[test]
+    fn keys_the_core_cannot_honour_are_rejected_by_name() {
+        // Per-sensor filter settings moved to [sensing] (the core filters all channels alike);
+        // the old key must not be silently ignored.
+        let src = DEMO.replacen(
+            "rail_margin_counts = 8",
+            "rail_margin_counts = 8\nfilter_cutoff_hz = 50.0",
+            1,
+        );
+        let e = err(&src);
+        assert!(
+            e.issues[0]
+                .message
+                .contains("unknown field `filter_cutoff_hz`"),
+            "{e}"
+        );
+        assert_eq!(
+            e.issues[0].key.as_deref(),
+            Some("sensor[0].filter_cutoff_hz")
+        );
+        // A button pad must say which of the two button models it uses.
+        let src = DEMO
+            .replace("shape = \"sector\"", "shape = \"button\"")
+            .replace("inner_radius_m = 0.52\n", "pad_radius_m = 0.05\n")
+            .replace("outer_radius_m = 0.68\n", "pad_centre_radius_m = 0.6\n")
+            .replace("sector_angle_deg = 30.0", "");
+        let e = err(&src);
+        assert_eq!(e.issues.len(), 1, "{e}");
+        assert!(e.to_string().contains("needs contact.button_model"), "{e}");
+        // A sample period whose rate is not a whole number of hertz.
+        let e = err(&DEMO.replace("sample_period_s = 0.001", "sample_period_s = 0.0003"));
+        assert_eq!(
+            e.issues[0].key.as_deref(),
+            Some("device.sample_period_s"),
+            "{e}"
+        );
     }
 
     #[test]

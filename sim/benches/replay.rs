@@ -1,4 +1,4 @@
-#![allow(clippy::expect_used)]
+#![allow(clippy::expect_used, clippy::panic)]
 //! Replay throughput on one core: parse a 10⁶-row synthetic trace and step every row through
 //! the estimator behind the seam (output discarded, so this measures parse + replay, not disk
 //! writes). `cargo bench -p clampwise-sim --bench replay`.
@@ -6,7 +6,8 @@
 use std::hint::black_box;
 use std::path::PathBuf;
 
-use clampwise_sim::build_core::CoreTables;
+use clampwise_core::estimator::Estimator;
+use clampwise_sim::build_core::{ChannelDevice, CoreDevice};
 use clampwise_sim::config::LoadedConfig;
 use clampwise_sim::demo::DEMO_CONFIG;
 use clampwise_sim::plant::PlantOptions;
@@ -38,7 +39,7 @@ fn trace(cfg: &LoadedConfig) -> PathBuf {
 
 fn bench(c: &mut Criterion) {
     let cfg = LoadedConfig::from_str(DEMO_CONFIG, "demo.toml").expect("demo config");
-    let tables = CoreTables::build(&cfg.config).expect("tables");
+    let core = CoreDevice::build(&cfg.config).expect("core device");
     let path = trace(&cfg).display().to_string();
     let mut g = c.benchmark_group("replay");
     g.sample_size(10);
@@ -47,10 +48,10 @@ fn bench(c: &mut Criterion) {
         b.iter(|| {
             let mut r =
                 TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
-            let mut est = seam::new_estimator(&cfg.config, &tables);
+            let mut est = seam::new_estimator(&cfg.config, &core).expect("estimator");
             let mut acc = 0.0;
             while let Some(s) = r.next_sample().expect("row") {
-                acc += est.step(&s).capacity_nm;
+                acc += est.step(&s).uncertainty_nm;
             }
             black_box(acc)
         });
@@ -64,11 +65,36 @@ fn bench(c: &mut Criterion) {
             }
         }
         b.iter(|| {
-            let mut est = seam::new_estimator(&cfg.config, &tables);
+            let mut est = seam::new_estimator(&cfg.config, &core).expect("estimator");
             let mut acc = 0.0;
             for _ in 0..10 {
                 for s in &samples {
-                    acc += est.step(s).capacity_nm;
+                    acc += est.step(s).uncertainty_nm;
+                }
+            }
+            black_box(acc)
+        });
+    });
+    g.bench_function("core Estimator::step only 1e6 samples", |b| {
+        // The core's step alone, on inputs converted beforehand: what the seam adds is the
+        // difference to "step only".
+        let ChannelDevice::Three(dev) = &core.device else {
+            panic!("the demo has three channels");
+        };
+        let cal = seam::ChannelCal::of(&cfg.config);
+        let mut r = TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
+        let mut inputs = Vec::with_capacity(100_000);
+        while let Some(s) = r.next_sample().expect("row") {
+            if inputs.len() < 100_000 {
+                inputs.push(seam::core_inputs::<3>(&s, &cal, true));
+            }
+        }
+        b.iter(|| {
+            let mut est = Estimator::new(dev);
+            let mut acc = 0i64;
+            for _ in 0..10 {
+                for i in &inputs {
+                    acc += i64::from(est.step(i).uncertainty.to_bits());
                 }
             }
             black_box(acc)

@@ -7,7 +7,7 @@ use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
 use serde_json::{Value, json};
 
-use crate::build_core::CoreTables;
+use crate::build_core::CoreDevice;
 use crate::cli::{CheckArgs, CompareArgs, FitArgs, PlotArgs, ReplayArgs, SynthArgs, TablesArgs};
 use crate::column_units::Quantity;
 use crate::compare::{self, Thresholds};
@@ -76,11 +76,11 @@ pub fn bar(quiet: bool, multi: Option<&MultiProgress>, label: &str) -> Option<Pr
     })
 }
 
-fn load(path: &Path) -> Result<(LoadedConfig, CoreTables), SimError> {
+fn load(path: &Path) -> Result<(LoadedConfig, CoreDevice), SimError> {
     let cfg = LoadedConfig::load(path)?;
-    let tables = CoreTables::build(&cfg.config)
-        .map_err(|e| SimError::Internal(format!("{}: {}", e.key, e.message)))?;
-    Ok((cfg, tables))
+    // Loading already ran the core's checks; a failure here is a bug.
+    let core = CoreDevice::build(&cfg.config).map_err(|e| SimError::Internal(e.to_string()))?;
+    Ok((cfg, core))
 }
 
 fn to_json<T: serde::Serialize>(v: &T) -> Value {
@@ -98,7 +98,7 @@ fn stem(p: &str) -> String {
 /// # Errors
 /// Usage, config, data and I/O errors (for several traces, the first failure after all ran).
 pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
-    let (cfg, tables) = load(&a.config)?;
+    let (cfg, core) = load(&a.config)?;
     let jobs: Vec<(String, String, Option<String>)> = if a.traces.len() == 1 {
         let t = a.traces.first().cloned().unwrap_or_default();
         let out = match (&a.out, &a.out_dir) {
@@ -168,7 +168,7 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
         let mut dec = plot_path
             .as_ref()
             .map(|_| Decimator::<PlotPoint>::new(PLOT_POINTS));
-        let s = replay::replay_file(&cfg, &tables, trace, out, &opts, dec.as_mut())?;
+        let s = replay::replay_file(&cfg, &core, trace, out, &opts, dec.as_mut())?;
         if let Some(pb) = &opts.progress {
             pb.finish_and_clear();
         }
@@ -301,7 +301,7 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// Config, data and I/O errors; incomplete coverage under `--require-full-coverage` is the
 /// outcome's failure (exit 3) and nothing is written.
 pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
-    let (cfg, tables) = load(&a.config)?;
+    let (cfg, core) = load(&a.config)?;
     let opts = FitOptions {
         min_coverage: a.min_coverage,
         min_force_n: a.min_force_n,
@@ -313,7 +313,7 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
         ));
     }
     let pb = bar(quiet, None, &a.trace);
-    let r = fit::fit_trace(&cfg, &tables, &a.trace, &opts, pb.as_ref())?;
+    let r = fit::fit_trace(&cfg, &core, &a.trace, &opts, pb.as_ref())?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }
@@ -360,10 +360,11 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// # Errors
 /// Config and I/O errors.
 pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
-    let (cfg, t) = load(&a.config)?;
-    let mut human = emit::human(&cfg, &t);
+    let (cfg, core) = load(&a.config)?;
+    let t = &core.tables;
+    let mut human = emit::human(&cfg, t);
     if let Some(p) = &a.emit {
-        write_file(p, emit::rust_source(&cfg, &t).as_bytes())?;
+        write_file(p, emit::rust_source(&cfg, t).as_bytes())?;
         human.push_str(&format!("  wrote {p} (Rust source for the firmware)\n"));
     }
     Ok(Outcome::ok(
@@ -371,7 +372,7 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
         json!({
             "command": "tables",
             "config": cfg.file,
-            "checksum": format!("0x{:08X}", emit::tables_checksum(&t)),
+            "checksum": format!("0x{:08X}", emit::tables_checksum(t)),
             "radius_m": {"uniform_pressure": t.radii_m.0, "uniform_wear": t.radii_m.1,
                           "force_n": t.radius_force_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
                           "bedding": t.radius_bedding_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
@@ -517,8 +518,8 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
     let mut failure = None;
     for p in &a.configs {
         match LoadedConfig::load(p).and_then(|c| {
-            CoreTables::build(&c.config)
-                .map(|t| (c, t))
+            CoreDevice::build(&c.config)
+                .map(|d| (c, d.tables))
                 .map_err(|e| crate::config::ConfigErrors {
                     file: p.display().to_string(),
                     issues: vec![crate::config::ConfigIssue {

@@ -1,11 +1,13 @@
 //! `compare`: an estimate trace against its reference torque, streaming.
 //!
-//! Error = estimate − reference (N·m), over rows that have both (slipping and released rows;
-//! a holding row has no torque estimate, only a capacity, and is checked as
-//! "reference within ±capacity"). Reported: count, bias (mean error), RMS, max |error|, and
-//! P95/P99 of |error| from a [`QuantileSketch`] (bounded memory, relative accuracy
-//! [`crate::sketch::RELATIVE_ACCURACY`]) — overall and by operating region: lining temperature
-//! band, slip-speed band, clamp-force band, and state.
+//! Error = estimate − reference (N·m), over rows that have both (slipping and released rows).
+//! The state comes from the core (`ContactState`): a **holding** row has no torque estimate,
+//! only a capacity; it is counted apart and checked as "reference within ±capacity", never
+//! entered as an error (not even as zero). Unavailable rows (no clamp force) are counted apart
+//! too. Reported: rows per state, and for the rows with an error: count, bias (mean error),
+//! RMS, max |error|, and P95/P99 of |error| from a [`QuantileSketch`] (bounded memory,
+//! relative accuracy [`crate::sketch::RELATIVE_ACCURACY`]) — overall, slipping only, and by
+//! operating region: lining temperature band, slip-speed band, clamp-force band, and state.
 
 use std::collections::BTreeMap;
 
@@ -110,6 +112,18 @@ pub struct HoldingReport {
     pub min_margin_nm: Option<f64>,
 }
 
+/// Rows of one state (from the core).
+#[derive(Debug, Clone, Default, Serialize, PartialEq, Eq)]
+pub struct StateCount {
+    /// Rows in this state.
+    pub rows: u64,
+    /// Of those, rows with a reference torque.
+    pub with_reference: u64,
+    /// Of those, rows that entered the error statistics (0 for holding and unavailable: no
+    /// torque is estimated there).
+    pub with_error: u64,
+}
+
 /// Everything `compare` reports.
 #[derive(Debug, Clone, Serialize)]
 pub struct CompareReport {
@@ -125,6 +139,8 @@ pub struct CompareReport {
     pub overall: Option<ErrorReport>,
     /// Only slipping rows.
     pub slipping: Option<ErrorReport>,
+    /// Rows per state (slipping, holding, released, unavailable).
+    pub by_state: BTreeMap<String, StateCount>,
     /// By region label.
     pub regions: BTreeMap<String, ErrorReport>,
     /// Holding rows.
@@ -140,6 +156,7 @@ pub struct Comparer {
     slipping: ErrorStats,
     regions: BTreeMap<String, ErrorStats>,
     holding: HoldingReport,
+    by_state: [StateCount; 4],
     rows: u64,
     no_reference: u64,
     unavailable: u64,
@@ -191,6 +208,7 @@ impl Comparer {
             slipping: ErrorStats::default(),
             regions: BTreeMap::new(),
             holding: HoldingReport::default(),
+            by_state: Default::default(),
             rows: 0,
             no_reference: 0,
             unavailable: 0,
@@ -200,21 +218,28 @@ impl Comparer {
     /// Add one estimate row.
     pub fn add(&mut self, r: &EstimateRow) {
         self.rows += 1;
+        let slot = State::ALL.iter().position(|&s| s == r.state).unwrap_or(0);
+        let count = self.by_state.get_mut(slot);
         let Some(reference) = r.torque_ref_nm else {
             self.no_reference += 1;
+            if let Some(c) = count {
+                c.rows += 1;
+            }
             return;
         };
-        match (r.state, r.torque_nm) {
-            (State::Holding, _) => {
+        let contributes = match (r.state, r.torque_nm, r.capacity_nm) {
+            (State::Holding, _, capacity) => {
+                // No torque estimate here: the reference must lie within ±capacity.
                 self.holding.n += 1;
-                let margin = r.capacity_nm - reference.abs();
+                let margin = capacity.unwrap_or(0.0) - reference.abs();
                 if margin >= 0.0 {
                     self.holding.within_capacity += 1;
                 }
                 self.holding.min_margin_nm =
                     Some(self.holding.min_margin_nm.map_or(margin, |m| m.min(margin)));
+                false
             }
-            (_, Some(t)) => {
+            (_, Some(t), _) => {
                 let e = t - reference;
                 self.overall.add(e);
                 if r.state == State::Slipping {
@@ -229,8 +254,17 @@ impl Comparer {
                 for l in labels {
                     self.regions.entry(l).or_default().add(e);
                 }
+                true
             }
-            (_, None) => self.unavailable += 1,
+            (_, None, _) => {
+                self.unavailable += 1;
+                false
+            }
+        };
+        if let Some(c) = count {
+            c.rows += 1;
+            c.with_reference += 1;
+            c.with_error += u64::from(contributes);
         }
     }
 
@@ -243,6 +277,11 @@ impl Comparer {
             unavailable: self.unavailable,
             overall: self.overall.report(),
             slipping: self.slipping.report(),
+            by_state: State::ALL
+                .iter()
+                .zip(&self.by_state)
+                .map(|(s, c)| (s.name().to_string(), c.clone()))
+                .collect(),
             regions: self
                 .regions
                 .iter()
@@ -347,6 +386,29 @@ pub fn human(r: &CompareReport) -> String {
     if let Some(e) = &r.slipping {
         o.push_str(&line("slipping", e));
     }
+    let states: Vec<String> = State::ALL
+        .iter()
+        .filter_map(|s| {
+            let c = r.by_state.get(s.name())?;
+            let what = match s {
+                State::Holding => "no torque: checked against ±capacity",
+                State::Unavailable => "no estimate",
+                _ => "in the errors",
+            };
+            Some(format!(
+                "{} {} ({} with reference, {} {what})",
+                s.name(),
+                c.rows,
+                c.with_reference,
+                if *s == State::Holding || *s == State::Unavailable {
+                    c.with_reference
+                } else {
+                    c.with_error
+                }
+            ))
+        })
+        .collect();
+    o.push_str(&format!("  by state: {}\n", states.join("; ")));
     for (k, e) in &r.regions {
         o.push_str(&line(k, e));
     }
@@ -366,4 +428,66 @@ pub fn human(r: &CompareReport) -> String {
     }
     o.push_str(&format!("  percentiles: {}\n", r.quantile_method));
     o
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
+    use super::*;
+    use crate::seam::Flags;
+
+    fn row(
+        state: State,
+        torque: Option<f64>,
+        capacity: Option<f64>,
+        reference: f64,
+    ) -> EstimateRow {
+        EstimateRow {
+            line: 1,
+            t_s: 0.0,
+            torque_nm: torque,
+            capacity_nm: capacity,
+            uncertainty_nm: 0.0,
+            mu: 0.4,
+            radius_m: 0.6,
+            clamp_force_n: 30_000.0,
+            slip_speed_rad_s: 1.0,
+            lining_temp_c: 100.0,
+            bedding: 0.0,
+            wear_m: 0.0,
+            correction: 1.0,
+            state,
+            flags: Flags::empty(),
+            torque_ref_nm: Some(reference),
+        }
+    }
+
+    #[test]
+    fn holding_rows_are_counted_apart_never_as_zero_error() {
+        let mut c = Comparer::new(None);
+        // Two slipping rows with errors +10 and −30 N·m [calc: bias −10, RMS √500].
+        c.add(&row(State::Slipping, Some(-990.0), Some(1300.0), -1000.0));
+        c.add(&row(State::Slipping, Some(-1030.0), Some(1300.0), -1000.0));
+        // Many holding rows whose load is within the capacity: no torque, no error entry.
+        for _ in 0..100 {
+            c.add(&row(State::Holding, None, Some(1300.0), 700.0));
+        }
+        c.add(&row(State::Holding, None, Some(1300.0), 1400.0));
+        c.add(&row(State::Unavailable, None, None, 500.0));
+        let r = c.report("t");
+        let o = r.overall.clone().unwrap();
+        assert_eq!(o.n, 2);
+        assert!((o.bias_nm + 10.0).abs() < 1e-12);
+        assert!((o.rms_nm - 500f64.sqrt()).abs() < 1e-12);
+        let h = &r.by_state["holding"];
+        assert_eq!((h.rows, h.with_reference, h.with_error), (101, 101, 0));
+        assert_eq!(r.by_state["slipping"].with_error, 2);
+        assert_eq!(r.by_state["unavailable"].with_error, 0);
+        assert_eq!(r.holding.n, 101);
+        assert_eq!(r.holding.within_capacity, 100);
+        assert_eq!(r.holding.min_margin_nm, Some(-100.0));
+        assert_eq!(r.unavailable, 1);
+        assert!(!r.regions.contains_key("state holding"));
+        assert!(human(&r).contains("holding 101 (101 with reference, 101 no torque"));
+    }
 }

@@ -10,7 +10,7 @@ use std::path::Path;
 
 use serde_json::json;
 
-use crate::build_core::CoreTables;
+use crate::build_core::CoreDevice;
 use crate::cli::DemoArgs;
 use crate::commands::{Outcome, bar};
 use crate::compare;
@@ -56,7 +56,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     let config_path = path(dir, "demo-hoist-brake.toml");
     write_file(&config_path, DEMO_CONFIG.as_bytes())?;
     let cfg = LoadedConfig::from_str(DEMO_CONFIG, &config_path)?;
-    let tables = CoreTables::build(&cfg.config).map_err(|e| SimError::Internal(e.message))?;
+    let core = CoreDevice::build(&cfg.config).map_err(|e| SimError::Internal(e.to_string()))?;
 
     let trace = path(dir, "trace.csv");
     let scenario =
@@ -94,14 +94,14 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         skip_bad_rows: false,
         progress: bar(quiet, None, "replaying"),
     };
-    let rep = replay::replay_file(&cfg, &tables, &trace, &estimate, &opts, Some(&mut dec))?;
+    let rep = replay::replay_file(&cfg, &core, &trace, &estimate, &opts, Some(&mut dec))?;
     if let Some(pb) = &opts.progress {
         pb.finish_and_clear();
     }
     let before = compare::compare_file(&estimate, Some(&cfg.config), None)?;
 
     let pb = bar(quiet, None, "fitting μ");
-    let fitted = fit::fit_trace(&cfg, &tables, &trace, &FitOptions::default(), pb.as_ref())?;
+    let fitted = fit::fit_trace(&cfg, &core, &trace, &FitOptions::default(), pb.as_ref())?;
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }
@@ -113,12 +113,12 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         fit::coverage_csv(&fitted).as_bytes(),
     )?;
     let cfg2 = LoadedConfig::from_str(&fitted_text, &fitted_path)?;
-    let tables2 = CoreTables::build(&cfg2.config).map_err(|e| SimError::Internal(e.message))?;
+    let core2 = CoreDevice::build(&cfg2.config).map_err(|e| SimError::Internal(e.to_string()))?;
     let estimate2 = path(dir, "estimate-fitted.csv");
     let mut dec2 = Decimator::<PlotPoint>::new(PLOT_POINTS);
     let rep2 = replay::replay_file(
         &cfg2,
-        &tables2,
+        &core2,
         &trace,
         &estimate2,
         &ReplayOptions::default(),
@@ -180,7 +180,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         .tally
         .flags
         .iter()
-        .filter(|(k, _)| k.as_str() != "adaptation_frozen")
+        .filter(|(k, _)| k.as_str() != "ADAPTATION_FROZEN" && k.as_str() != "TORQUE_BOUNDED")
         .map(|(k, v)| format!("{k} {v}"))
         .collect();
     human.push_str(&format!(

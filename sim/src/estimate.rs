@@ -1,20 +1,23 @@
 //! Estimate traces: the CSV that `replay` writes and `compare`, `plot` read.
 //!
 //! Columns: `line, t_s, torque_Nm, capacity_Nm, uncertainty_Nm, mu, radius_m, clamp_force_N,
-//! slip_speed_rad_s, lining_temp_C, bedding, wear_m, state, flags, torque_ref_Nm`. `torque_Nm`
-//! is empty while holding or unavailable (the torque is then set by the load, within
-//! ±capacity). Numbers are printed as the shortest decimal that reads back to the same f64,
-//! so the file carries the estimator's fixed-point results exactly.
+//! slip_speed_rad_s, lining_temp_C, bedding, wear_m, correction, state, flags, torque_ref_Nm`.
+//! `torque_Nm` is empty while holding (the torque is then set by the load, within ±capacity)
+//! or unavailable; `capacity_Nm` is empty when unavailable. `state` is the core's
+//! `ContactState::name()`; `flags` lists the core's set `Flags` by their names, separated by
+//! ` | ` (bitflags' own text form; empty when none). Numbers are printed as the shortest
+//! decimal that reads back to the same f64, so the file carries the core's fixed-point
+//! results exactly.
 
 use std::io::Write;
 
 use crate::csvin::CsvIn;
 use crate::error::{DataError, SimError};
 use crate::output::AtomicFile;
-use crate::seam::{EstimateRow, State};
+use crate::seam::{EstimateRow, Flags, State};
 
 /// Header of an estimate file.
-pub const HEADER: [&str; 15] = [
+pub const HEADER: [&str; 16] = [
     "line",
     "t_s",
     "torque_Nm",
@@ -27,10 +30,21 @@ pub const HEADER: [&str; 15] = [
     "lining_temp_C",
     "bedding",
     "wear_m",
+    "correction",
     "state",
     "flags",
     "torque_ref_Nm",
 ];
+
+/// `fmt::Write` into a byte buffer.
+struct FmtBytes<'a>(&'a mut Vec<u8>);
+
+impl std::fmt::Write for FmtBytes<'_> {
+    fn write_str(&mut self, s: &str) -> std::fmt::Result {
+        self.0.extend_from_slice(s.as_bytes());
+        Ok(())
+    }
+}
 
 /// Streams [`EstimateRow`]s to a file.
 pub struct EstimateWriter {
@@ -83,8 +97,9 @@ impl EstimateWriter {
         push_f64(b, r.t_s);
         b.push(b',');
         opt(b, r.torque_nm);
+        b.push(b',');
+        opt(b, r.capacity_nm);
         for v in [
-            r.capacity_nm,
             r.uncertainty_nm,
             r.mu,
             r.radius_m,
@@ -93,6 +108,7 @@ impl EstimateWriter {
             r.lining_temp_c,
             r.bedding,
             r.wear_m,
+            r.correction,
         ] {
             b.push(b',');
             push_f64(b, v);
@@ -100,7 +116,10 @@ impl EstimateWriter {
         b.push(b',');
         b.extend_from_slice(r.state.name().as_bytes());
         b.push(b',');
-        b.extend_from_slice(itoa::Buffer::new().format(r.flags).as_bytes());
+        if !r.flags.is_empty() {
+            // Names only, never commas: bitflags' text form is `A | B`.
+            let _ = bitflags::parser::to_writer(&r.flags, &mut FmtBytes(b));
+        }
         b.push(b',');
         opt(b, r.torque_ref_nm);
         b.push(b'\n');
@@ -130,7 +149,7 @@ impl EstimateWriter {
 /// Reads an estimate file row by row.
 pub struct EstimateReader {
     csv: CsvIn,
-    cols: [usize; 15],
+    cols: [usize; 16],
 }
 
 impl EstimateReader {
@@ -140,7 +159,7 @@ impl EstimateReader {
     /// I/O, or a located error naming a missing column.
     pub fn open(path: &str) -> Result<Self, SimError> {
         let csv = CsvIn::open(path)?;
-        let mut cols = [0usize; 15];
+        let mut cols = [0usize; 16];
         for (c, name) in cols.iter_mut().zip(HEADER) {
             *c = csv.column(name).ok_or_else(|| {
                 csv.header_error(
@@ -173,23 +192,27 @@ impl EstimateReader {
         };
         let g = |i: usize| row.required_f64(c.get(i).copied().unwrap_or(0));
         let o = |i: usize| row.f64(c.get(i).copied().unwrap_or(0));
-        let state_col = c.get(12).copied().unwrap_or(0);
+        let state_col = c.get(13).copied().unwrap_or(0);
         let state = State::parse(row.text(state_col)).ok_or_else(|| {
             row.error(
                 state_col,
                 format!("unknown state '{}'", row.text(state_col)),
             )
         })?;
-        let flags_col = c.get(13).copied().unwrap_or(0);
-        let flags = row.text(flags_col).parse::<u32>().map_err(|_| {
-            row.error(
-                flags_col,
-                format!(
-                    "flags must be an unsigned integer, got '{}'",
-                    row.text(flags_col)
-                ),
-            )
-        })?;
+        let flags_col = c.get(14).copied().unwrap_or(0);
+        let text = row.text(flags_col).trim();
+        let flags = if text.is_empty() {
+            Flags::empty()
+        } else {
+            bitflags::parser::from_str_strict::<Flags>(text).map_err(|e| {
+                row.error(
+                    flags_col,
+                    format!(
+                        "flags must be the core's flag names joined by ' | ', got '{text}': {e}"
+                    ),
+                )
+            })?
+        };
         let line = g(0)?;
         Ok(Some(EstimateRow {
             // Line numbers are whole and far below 2⁵³.
@@ -197,7 +220,7 @@ impl EstimateReader {
             line: line.max(0.0) as u64,
             t_s: g(1)?,
             torque_nm: o(2)?,
-            capacity_nm: g(3)?,
+            capacity_nm: o(3)?,
             uncertainty_nm: g(4)?,
             mu: g(5)?,
             radius_m: g(6)?,
@@ -206,9 +229,10 @@ impl EstimateReader {
             lining_temp_c: g(9)?,
             bedding: g(10)?,
             wear_m: g(11)?,
+            correction: g(12)?,
             state,
             flags,
-            torque_ref_nm: o(14)?,
+            torque_ref_nm: o(15)?,
         }))
     }
 }

@@ -3,7 +3,8 @@
 //!
 //! The trace is replayed through the estimator (the same seam as `replay`), so clamp force,
 //! effective radius and lining temperature are the estimator's own. Each slipping sample with
-//! healthy sensors and enough force gives one equation
+//! healthy sensors, enough force and a slip speed above the core's transition speed (below it
+//! μ blends towards the static value) gives one equation
 //! `T_ref − drag = −sign(v)·N·F·r_e · Σₖ wₖ(T, |v|)·μₖ`, the wₖ being the bilinear weights of
 //! the four table entries around (T, |v|). The normal equations are accumulated streaming (a
 //! K × K matrix, K ≤ 64: memory does not grow with the trace). An entry whose summed weight
@@ -20,11 +21,11 @@ use std::fmt::Write as _;
 use indicatif::ProgressBar;
 use serde::Serialize;
 
-use crate::build_core::CoreTables;
+use crate::build_core::CoreDevice;
 use crate::config::{KeyPath, LoadedConfig, value_span};
 use crate::error::{DataError, SimError};
 use crate::replay::run_stream;
-use crate::seam::{self, State, flags};
+use crate::seam::{self, Flags, State};
 use crate::trace::{RowPolicy, SkipReport, TraceReader};
 
 /// Options of a fit.
@@ -169,10 +170,10 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
 ///
 /// # Errors
 /// I/O and located data errors; a trace without a reference-torque column; a fitted μ outside
-/// 0 … 1.5 (the trace and config disagree).
+/// 0 … 1.2 (the trace and config disagree).
 pub fn fit_trace(
     cfg: &LoadedConfig,
-    tables: &CoreTables,
+    core: &CoreDevice,
     trace: &str,
     opts: &FitOptions,
     progress: Option<&ProgressBar>,
@@ -199,16 +200,29 @@ pub fn fit_trace(
         c.friction.drag_torque_nm,
         c.friction.drag_viscous_nm_per_rad_s,
     );
-    let bad =
-        flags::SENSOR | flags::FORCE_FALLBACK | flags::NO_FORCE | flags::SATURATION | flags::RANGE;
-    let mut est = seam::new_estimator(c, tables);
+    let bad = Flags::SENSOR_DEGRADED
+        | Flags::FORCE_FALLBACK
+        | Flags::FORCE_LOST
+        | Flags::FORCE_SATURATED
+        | Flags::ARITHMETIC_SATURATED
+        | Flags::OUT_OF_RANGE
+        | Flags::TEMPERATURE_REJECTED;
+    // Below the transition speed the core blends μ towards the static value: not the table's
+    // kinetic μ, so those samples carry no equation for it.
+    let transition = c.friction.transition_speed_rad_s;
+    let mut est = seam::new_estimator(c, core)
+        .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     run_stream(&mut reader, est.as_mut(), progress, |_, row| {
         samples += 1;
         let (Some(reference), Some(_)) = (row.torque_ref_nm, row.torque_nm) else {
             excluded += 1;
             return Ok(());
         };
-        if row.state != State::Slipping || row.flags & bad != 0 || row.clamp_force_n < min_force {
+        if row.state != State::Slipping
+            || row.flags.intersects(bad)
+            || row.clamp_force_n < min_force
+            || row.slip_speed_rad_s.abs() < transition
+        {
             excluded += 1;
             return Ok(());
         }
@@ -220,7 +234,8 @@ pub fn fit_trace(
             return Ok(());
         };
         let sign = -v.signum();
-        let a = sign * faces * row.clamp_force_n * row.radius_m;
+        // The adaptation's correction (1 without it) scales the table's μ.
+        let a = sign * faces * row.clamp_force_n * row.radius_m * row.correction;
         let y = reference - sign * (drag0 + drag1 * v.abs());
         let entries = [
             (i0 * nv + j0, (1.0 - fx) * (1.0 - fy)),
@@ -237,7 +252,8 @@ pub fn fit_trace(
             }
         }
         yy += y * y;
-        let r = y - a * row.mu;
+        // row.mu already carries the correction.
+        let r = y - sign * faces * row.clamp_force_n * row.radius_m * row.mu;
         rss_before += r * r;
         used += 1;
         Ok(())
@@ -288,14 +304,14 @@ pub fn fit_trace(
             let is_reached = cover[p] >= opts.min_coverage;
             if !is_reached {
                 unreached.push(format!("({} °C, {} rad/s): coverage {:.1}", t, v, cover[p]));
-            } else if !(fitted[p] > 0.0 && fitted[p] < 1.5) {
+            } else if !(fitted[p] > 0.0 && fitted[p] <= 1.2) {
                 return Err(DataError {
                     file: trace.to_string(),
                     line: None,
                     column: None,
                     header: None,
                     message: format!(
-                        "fitted μ at ({} °C, {} rad/s) is {:.4}, outside 0 … 1.5: the trace and the config disagree (force calibration, units, sign of the reference torque?)",
+                        "fitted μ at ({} °C, {} rad/s) is {:.4}, outside 0 … 1.2: the trace and the config disagree (force calibration, units, sign of the reference torque?)",
                         t, v, fitted[p]
                     ),
                 }

@@ -14,7 +14,7 @@
 //! | module | concept |
 //! |---|---|
 //! | [`config`], [`column_units`], [`build_core`], [`emit`] | re-exported from `clampwise-device`: the TOML schema, config → core, firmware table emitter |
-//! | [`seam`] | **the seam**: `SampleEstimator::step`, and the temporary `TablesOnlyEstimator` |
+//! | [`seam`] | **the seam**: `SampleEstimator::step`, implemented by `CoreEstimator` (the core's `Estimator::step`) |
 //! | [`csvin`], [`trace`], [`timestamps`] | located, streaming CSV input; column mapping; time checks |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
 //! | [`replay`], [`compare`], [`sketch`], [`fit`] | the subcommands' work |
@@ -25,13 +25,13 @@
 //! ## Example
 //!
 //! ```
-//! use clampwise_sim::build_core::CoreTables;
+//! use clampwise_sim::build_core::CoreDevice;
 //! use clampwise_sim::config::LoadedConfig;
 //! use clampwise_sim::seam::{self, Channel, TraceSample, State};
 //!
 //! let cfg = LoadedConfig::from_str(clampwise_sim::demo::DEMO_CONFIG, "demo.toml").unwrap();
-//! let tables = CoreTables::build(&cfg.config).unwrap();
-//! let mut est = seam::new_estimator(&cfg.config, &tables);
+//! let core = CoreDevice::build(&cfg.config).unwrap();
+//! let mut est = seam::new_estimator(&cfg.config, &core).unwrap();
 //! let s = TraceSample {
 //!     force: [Channel::Newtons(30_000.0); 4],
 //!     force_valid: [true; 4],
@@ -39,7 +39,10 @@
 //!     temp_c: Some(100.0),
 //!     ..TraceSample::default()
 //! };
-//! let row = est.step(&s);
+//! let mut row = est.step(&s);
+//! for _ in 0..200 {
+//!     row = est.step(&s); // the core's force filter settles
+//! }
 //! assert_eq!(row.state, State::Slipping);
 //! assert!(row.torque_nm.unwrap() < 0.0); // opposes the slip
 //! ```

@@ -7,7 +7,7 @@ use plotters::prelude::*;
 use crate::error::SimError;
 use crate::fit::FitReport;
 use crate::replay::PlotPoint;
-use crate::seam::{State, flags};
+use crate::seam::{Flags, State};
 
 fn err<E: std::fmt::Display>(e: E) -> SimError {
     SimError::Internal(format!("plot: {e}"))
@@ -73,7 +73,7 @@ where
     // 1. torque: estimate, reference, ±capacity while holding.
     let (y0, y1) = range(points.iter().flat_map(|p| {
         let cap = if p.state == State::Holding {
-            Some(p.capacity_nm)
+            p.capacity_nm
         } else {
             None
         };
@@ -91,7 +91,7 @@ where
     ch.configure_mesh().y_desc("N·m").draw().map_err(err)?;
     for (i, run) in runs(points, |p| {
         if p.state == State::Holding {
-            Some(p.capacity_nm)
+            p.capacity_nm
         } else {
             None
         }
@@ -203,11 +203,11 @@ where
                 Box::new(move |p: &PlotPoint| p.state == s),
             ));
         }
-        for (bit, name) in flags::NAMES {
-            if points.iter().any(|p| p.flags & bit != 0) {
+        for (name, bit) in Flags::all().iter_names() {
+            if points.iter().any(|p| p.flags.intersects(bit)) {
                 v.push((
                     name.to_string(),
-                    Box::new(move |p: &PlotPoint| p.flags & bit != 0),
+                    Box::new(move |p: &PlotPoint| p.flags.intersects(bit)),
                 ));
             }
         }

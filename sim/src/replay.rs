@@ -7,11 +7,11 @@ use std::time::Instant;
 use indicatif::ProgressBar;
 use serde::Serialize;
 
-use crate::build_core::CoreTables;
+use crate::build_core::CoreDevice;
 use crate::config::LoadedConfig;
 use crate::error::SimError;
 use crate::estimate::EstimateWriter;
-use crate::seam::{self, EstimateRow, SampleEstimator, State, TraceSample, flags};
+use crate::seam::{self, EstimateRow, Flags, SampleEstimator, State, TraceSample};
 use crate::series::Decimator;
 use crate::timestamps::TimeReport;
 use crate::trace::{RowPolicy, SkipReport, TraceReader};
@@ -20,8 +20,7 @@ use crate::trace::{RowPolicy, SkipReport, TraceReader};
 pub use clampwise_device::CAUTION;
 
 /// Name of the estimator in use, written into outputs so a reader knows what produced them.
-pub const ESTIMATOR_NAME: &str =
-    "tables-only (TEMPORARY stand-in until clampwise_core::estimator lands)";
+pub const ESTIMATOR_NAME: &str = "clampwise_core::estimator::Estimator::step";
 
 /// How many points a plot keeps, whatever the trace length.
 pub const PLOT_POINTS: usize = 4000;
@@ -35,8 +34,8 @@ pub struct PlotPoint {
     pub torque_nm: Option<f64>,
     /// Reference torque, N·m.
     pub reference_nm: Option<f64>,
-    /// Holding capacity, N·m.
-    pub capacity_nm: f64,
+    /// Holding capacity, N·m (None without a clamp force).
+    pub capacity_nm: Option<f64>,
     /// Uncertainty, N·m.
     pub uncertainty_nm: f64,
     /// Lining temperature used, °C.
@@ -50,7 +49,7 @@ pub struct PlotPoint {
     /// State.
     pub state: State,
     /// Flags.
-    pub flags: u32,
+    pub flags: Flags,
 }
 
 impl From<&EstimateRow> for PlotPoint {
@@ -95,17 +94,15 @@ impl Tally {
     pub fn add(&mut self, r: &EstimateRow) {
         self.rows += 1;
         *self.states.entry(r.state.name().to_string()).or_default() += 1;
-        if r.flags != 0 {
-            for (bit, name) in flags::NAMES {
-                if r.flags & bit != 0 {
-                    *self.flags.entry(name.to_string()).or_default() += 1;
-                }
-            }
+        for name in seam::flag_names(r.flags) {
+            *self.flags.entry(name.to_string()).or_default() += 1;
         }
         if let Some(t) = r.torque_nm {
             self.max_abs_torque_nm = self.max_abs_torque_nm.max(t.abs());
         }
-        self.max_capacity_nm = self.max_capacity_nm.max(r.capacity_nm);
+        if let Some(c) = r.capacity_nm {
+            self.max_capacity_nm = self.max_capacity_nm.max(c);
+        }
         self.max_lining_temp_c = self.max_lining_temp_c.max(r.lining_temp_c);
         self.max_clamp_force_n = self.max_clamp_force_n.max(r.clamp_force_n);
     }
@@ -184,7 +181,7 @@ pub fn run_stream(
 /// `OUTPUT.partial`, never under its final name.
 pub fn replay_file(
     cfg: &LoadedConfig,
-    tables: &CoreTables,
+    core: &CoreDevice,
     input: &str,
     output: &str,
     opts: &ReplayOptions,
@@ -204,7 +201,8 @@ pub fn replay_file(
         CAUTION.to_string(),
     ];
     let mut writer = EstimateWriter::create(output, &comments)?;
-    let mut est = seam::new_estimator(&cfg.config, tables);
+    let mut est = seam::new_estimator(&cfg.config, core)
+        .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     let mut tally = Tally::default();
     let result = run_stream(
         &mut reader,

@@ -94,7 +94,10 @@ fn synth_replay_compare() {
     let s = &js["traces"][0]["summary"];
     assert_eq!(s["tally"]["rows"], 60_000);
     assert_eq!(s["skipped"]["count"], 0);
-    assert!(s["estimator"].as_str().unwrap().contains("TEMPORARY"));
+    assert_eq!(
+        s["estimator"].as_str().unwrap(),
+        "clampwise_core::estimator::Estimator::step"
+    );
     let lines = std::fs::read_to_string(&est)
         .unwrap()
         .lines()
@@ -112,6 +115,12 @@ fn synth_replay_compare() {
     assert!(regions.keys().any(|k| k.starts_with("clamp force")));
     assert!(regions.contains_key("state slipping"));
     assert!(r["holding"]["n"].as_u64().unwrap() > 1000);
+    // States come from the core; holding rows never enter the error statistics.
+    let holding = &r["by_state"]["holding"];
+    assert_eq!(holding["with_error"], 0);
+    assert_eq!(holding["with_reference"], r["holding"]["n"]);
+    assert_eq!(r["by_state"]["slipping"]["with_error"], r["slipping"]["n"]);
+    assert!(!regions.contains_key("state holding"));
     // P99 ≥ P95 and max ≥ P99 (up to the sketch's 0.5 % accuracy).
     let o = &r["overall"];
     assert!(o["p99_nm"].as_f64().unwrap() >= o["p95_nm"].as_f64().unwrap());
@@ -139,10 +148,14 @@ fn synth_replay_compare() {
 
 #[test]
 fn replay_output_is_the_seam_step_bit_for_bit() {
-    use clampwise_sim::build_core::CoreTables;
+    // The estimate file must hold exactly what the core's own `Estimator::step` gives for the
+    // same samples: built and stepped here directly, not through the seam's estimator.
+    use clampwise_core::estimator::Estimator;
+    use clampwise_core::units::{Celsius, Metres, NewtonMetres, Newtons, Ratio};
+    use clampwise_sim::build_core::{ChannelDevice, CoreDevice};
     use clampwise_sim::config::LoadedConfig;
     use clampwise_sim::estimate::EstimateReader;
-    use clampwise_sim::seam;
+    use clampwise_sim::seam::{self, ChannelCal, State};
     use clampwise_sim::trace::{RowPolicy, TraceReader};
 
     let d = scratch("bit_for_bit");
@@ -169,21 +182,66 @@ fn replay_output_is_the_seam_step_bit_for_bit() {
         run(&["-q", "replay", "-c", &cfg_path, &tr, "-o", &est]).0,
         0
     );
-    // The same samples stepped here through the estimator the seam builds.
     let cfg = LoadedConfig::load(std::path::Path::new(&cfg_path)).unwrap();
-    let tables = CoreTables::build(&cfg.config).unwrap();
-    let mut estimator = seam::new_estimator(&cfg.config, &tables);
+    let core = CoreDevice::build(&cfg.config).unwrap();
+    let ChannelDevice::Three(dev) = &core.device else {
+        panic!("the demo has three force channels");
+    };
+    assert!(core.initial.is_new());
+    let mut estimator = Estimator::new(dev);
+    let cal = ChannelCal::of(&cfg.config);
     let mut reader = TraceReader::open(&tr, &cfg.config, RowPolicy::Stop, false).unwrap();
     let mut file = EstimateReader::open(&est).unwrap();
-    let mut n = 0;
+    let (mut n, mut holding, mut slipping, mut flagged) = (0, 0, 0, 0);
     while let Some(s) = reader.next_sample().unwrap() {
-        let direct = estimator.step(&s);
-        let written = file.next_row().unwrap().unwrap();
-        assert_eq!(direct, written, "line {}", s.line);
+        let inputs = seam::core_inputs::<3>(&s, &cal, true);
+        let e = estimator.step(&inputs);
+        let w = file.next_row().unwrap().unwrap();
+        let at = format!("line {}", s.line);
+        // Every number read back from the file converts to the core's exact bits.
+        assert_eq!(w.torque_nm.map(NewtonMetres::from_num), e.torque, "{at}");
+        assert_eq!(
+            w.capacity_nm.map(NewtonMetres::from_num),
+            e.holding_capacity,
+            "{at}"
+        );
+        assert_eq!(
+            NewtonMetres::from_num(w.uncertainty_nm),
+            e.uncertainty,
+            "{at}"
+        );
+        assert_eq!(Ratio::from_num(w.mu), e.mu, "{at}");
+        assert_eq!(Metres::from_num(w.radius_m), e.effective_radius, "{at}");
+        assert_eq!(Newtons::from_num(w.clamp_force_n), e.clamp_force, "{at}");
+        assert_eq!(
+            Celsius::from_num(w.lining_temp_c),
+            e.lining_temperature,
+            "{at}"
+        );
+        assert_eq!(Ratio::from_num(w.bedding), e.bedding, "{at}");
+        assert_eq!(Metres::from_num(w.wear_m), e.wear, "{at}");
+        assert_eq!(Ratio::from_num(w.correction), e.correction, "{at}");
+        assert_eq!(w.state.name(), e.state.name(), "{at}");
+        assert_eq!(w.flags, e.flags, "{at}");
+        // And the f64s are exactly the core's to_num (no rounding on the way through text).
+        assert_eq!(w.torque_nm, e.torque.map(|t| t.to_num::<f64>()), "{at}");
+        assert_eq!(w.mu, e.mu.to_num::<f64>(), "{at}");
+        match w.state {
+            State::Holding => {
+                holding += 1;
+                assert!(w.torque_nm.is_none(), "{at}: no torque while holding");
+            }
+            State::Slipping => slipping += 1,
+            _ => {}
+        }
+        flagged += u32::from(!e.flags.is_empty());
         n += 1;
     }
     assert!(file.next_row().unwrap().is_none());
     assert_eq!(n, 30_000);
+    // The run exercised both states and the flags (the rail fault on channel 3).
+    assert!(holding > 1000 && slipping > 1000, "{holding} {slipping}");
+    assert!(flagged > 0);
 }
 
 #[test]
@@ -266,10 +324,13 @@ fn several_traces_in_parallel() {
 
 #[test]
 fn fit_recovers_a_known_table_and_reports_unreached_cells() {
-    // Truth: the plant's μ is 0.90 × the config's table. Tolerance: every entry reached with
-    // coverage ≥ 1000 sample-equivalents within 1.5 % of 0.90 × prior. What limits it: the
-    // temporary estimator holds bedding at its initial value while the plant's pads bed in
-    // (r_e falls by up to 0.6 %), and thermocouple noise (0.5 K) on a μ(T) slope.
+    // Truth: the plant's μ is 0.90 × the config's table. Tolerance (re-measured 2026-12-02
+    // with the core's estimator, which now models temperature, bedding and wear and filters
+    // the force): every entry reached with coverage ≥ 2500 sample-equivalents within 0.25 % of
+    // 0.90 × prior (measured worst 0.16–0.17 % over seeds 11–14), every entry with coverage
+    // ≥ 1000 within 1.5 % (measured worst 1.30–1.33 %, the same two sparsely covered 10 rad/s
+    // entries every seed: a systematic, not noise — the samples there fall in force ramps,
+    // where the core's 50 Hz force filter lags the plant's force).
     let d = scratch("fit");
     let cfg = write(&d, "demo.toml", DEMO);
     let tr = d.join("sweep.csv").display().to_string();
@@ -317,14 +378,20 @@ fn fit_recovers_a_known_table_and_reports_unreached_cells() {
         let prior = c["prior"].as_f64().unwrap();
         let fit = c["fitted"].as_f64().unwrap();
         if c["reached"].as_bool().unwrap() {
-            if c["coverage"].as_f64().unwrap() >= 1000.0 {
-                let truth = 0.90 * prior;
-                assert!(
-                    (fit - truth).abs() <= 0.015 * truth,
-                    "cell {c}: {fit} vs {truth}"
-                );
-                checked += 1;
-            }
+            let coverage = c["coverage"].as_f64().unwrap();
+            let truth = 0.90 * prior;
+            let tolerance = if coverage >= 2500.0 {
+                0.0025
+            } else if coverage >= 1000.0 {
+                0.015
+            } else {
+                continue;
+            };
+            assert!(
+                (fit - truth).abs() <= tolerance * truth,
+                "cell {c}: {fit} vs {truth}"
+            );
+            checked += 1;
         } else {
             assert_eq!(fit, prior, "unreached cells keep the prior");
         }
@@ -442,6 +509,16 @@ fn golden_tables_equal_the_runtime_tables() {
     use clampwise_sim::emit;
     let cfg = LoadedConfig::from_str(DEMO, "demo").unwrap();
     let t = CoreTables::build(&cfg.config).unwrap();
+    for (g, r) in golden_tables::RADIUS_FORCE_N
+        .iter()
+        .zip(t.radius_force_axis())
+    {
+        assert_eq!(g, r);
+    }
+    assert_eq!(
+        golden_tables::RADIUS_BEDDING.as_slice(),
+        t.radius_bedding_axis()
+    );
     assert_eq!(
         golden_tables::MU_TEMPERATURE_C.as_slice(),
         t.mu_temperature_axis()

@@ -213,7 +213,8 @@ impl Plant {
             ambient: th.ambient_c,
             fade: th.fade_c,
             bedding_energy: c.wear.bedding_energy_j,
-            bedding0: c.wear.initial_bedding_ratio,
+            // The config's starting friction work sets both the starting bedding and the wear.
+            bedding0: -(-c.wear.initial_energy_j / c.wear.bedding_energy_j).exp_m1(),
             wear_rate: c.wear.specific_wear_rate_m3_per_j,
             pad_area: c.wear.pad_area_m2,
             sensors: c
@@ -234,7 +235,8 @@ impl Plant {
             force: 0.0,
             temp: th.initial_temperature_c.unwrap_or(th.ambient_c),
             energy: 0.0,
-            wear_m: c.wear.initial_wear_m,
+            wear_m: c.wear.specific_wear_rate_m3_per_j * c.wear.initial_energy_j
+                / (f64::from(c.contact.faces) * c.wear.pad_area_m2),
             stuck: [None; 4],
             rng: Rng::new(opts.seed),
             opts,
