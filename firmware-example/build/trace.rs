@@ -1,20 +1,24 @@
 //! The recorded trace for the HAL stub, from a CSV file in the simulator's trace format.
 //!
 //! Columns are found as the simulator finds them: the config's `[trace.columns]` mapping, else
-//! the canonical names (`t_s`, `force_N_valid`, `omega_in_rad_s`, `omega_out_rad_s`). The force
-//! channels must be ADC counts (the stub plays them back as the bridge ADC's frames); a cell
-//! whose valid flag is 0 becomes a not-ready frame. Speeds go through the column's unit
-//! conversion and are rounded to the core's `RadPerSec` by `checked_from_num` (nearest), as the
-//! simulator rounds them. Other columns (command, temperatures, reference torque, the plant's
-//! truth) are not wired into this example and are ignored. A bad row is an error naming file,
-//! line and column; rows must be one sample period apart.
+//! the canonical names (`t_s`, `force_N_valid`, `omega_in_rad_s`, `omega_out_rad_s`, `command`,
+//! `temp_C`, `ambient_C`, `torque_ref_Nm`). The force channels must be ADC counts (the stub
+//! plays them back as the bridge ADC's frames); a cell whose valid flag is 0 becomes a
+//! not-ready frame. Every other value goes through the column's unit conversion and is rounded
+//! to the core's fixed-point type with `saturating_from_num` (nearest), as the simulator's seam
+//! does, so the firmware's estimator gets the very inputs the simulator's gets; a brake's output
+//! speed is 0, as in the simulator. Empty optional cells are `None`. The plant's truth columns
+//! are ignored. A bad row is an error naming file, line and column; rows must be one sample
+//! period apart.
 
 use std::fmt::Write as _;
 use std::path::Path;
 
-use clampwise_core::units::RadPerSec;
+use clampwise_core::sensor::ActuatorCommand;
+use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 use clampwise_device::column_units::{self, Conversion};
-use clampwise_device::config::{CANONICAL, DeviceConfig};
+use clampwise_device::config::{CANONICAL, DeviceConfig, DeviceKind};
+use fixed::traits::Fixed;
 
 /// Largest trace kept in flash (rows); a longer one would not fit a small part's flash.
 const MAX_TRACE_ROWS: usize = 20_000;
@@ -22,11 +26,21 @@ const MAX_TRACE_ROWS: usize = 20_000;
 const ADC_MIN: i64 = -(1 << 23);
 const ADC_MAX: i64 = (1 << 23) - 1;
 
-/// One sample for the stub: per channel the counts (`None`: not ready), and the speeds' bits.
+/// One sample for the stub: per channel the counts (`None`: not ready), and the raw bits of
+/// the speeds and the optional inputs.
 pub struct Row {
     pub counts: Vec<Option<i32>>,
     pub omega_in_bits: i32,
     pub omega_out_bits: i32,
+    pub command_bits: Option<i32>,
+    pub lining_temperature_bits: Option<i32>,
+    pub ambient_bits: Option<i32>,
+    pub reference_torque_bits: Option<i32>,
+}
+
+/// The simulator seam's rounding: `saturating_from_num`, NaN as 0.
+fn sat<T: Fixed<Bits = i32>>(v: f64) -> i32 {
+    T::saturating_from_num(if v.is_nan() { 0.0 } else { v }).to_bits()
 }
 
 struct Column {
@@ -102,6 +116,11 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
     }
     let omega_in = need(&headers, config, "omega_in", &file)?;
     let omega_out = find(&headers, config, "omega_out", &file)?;
+    let command = find(&headers, config, "command", &file)?;
+    let temperature = find(&headers, config, "temperature", &file)?;
+    let ambient = find(&headers, config, "ambient", &file)?;
+    let torque_ref = find(&headers, config, "torque_ref", &file)?;
+    let brake = config.device.kind == DeviceKind::Brake;
     let period = config.device.sample_period_s;
 
     let mut rows = Vec::new();
@@ -118,6 +137,12 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
                 .map(|v| c.conv.apply(v))
                 .ok_or_else(|| format!("{}: `{t}` is not a finite number", at(c)))
         };
+        let optional = |c: &Option<Column>| -> Result<Option<f64>, String> {
+            match c {
+                Some(c) if !text(c).is_empty() => number(c).map(Some),
+                _ => Ok(None),
+            }
+        };
         let t = number(&time)?;
         #[allow(clippy::cast_precision_loss)] // row counts stay far below 2⁵³
         let expected = index as f64 * period;
@@ -132,7 +157,13 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
         for (f, v) in force.iter().zip(&valid) {
             let ok = match v {
                 None => true,
-                Some(v) => number(v)? != 0.0,
+                Some(v) => match text(v) {
+                    "1" | "1.0" | "true" => true,
+                    "0" | "0.0" | "false" => false,
+                    other => {
+                        return Err(format!("{}: valid bit must be 0 or 1, got `{other}`", at(v)));
+                    }
+                },
             };
             let cell = text(f);
             let value = if !ok {
@@ -140,36 +171,36 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
             } else if cell.is_empty() {
                 return Err(format!("{}: empty, but the channel is marked valid", at(f)));
             } else {
-                let n: i64 = cell
+                let n: f64 = cell
                     .parse()
-                    .map_err(|_| format!("{}: `{cell}` is not an integer count", at(f)))?;
-                if !(ADC_MIN..=ADC_MAX).contains(&n) {
+                    .map_err(|_| format!("{}: `{cell}` is not a number of counts", at(f)))?;
+                #[allow(clippy::cast_precision_loss)] // the ADC limits are exact in f64
+                let in_range = (ADC_MIN as f64..=ADC_MAX as f64).contains(&n);
+                if n.fract() != 0.0 || !in_range {
                     return Err(format!(
-                        "{}: {n} is outside the signed 24-bit ADC range",
+                        "{}: {n} is not a whole count within the signed 24-bit ADC range",
                         at(f)
                     ));
                 }
-                // In range by the check above.
+                // Whole and within ±2²³ by the check above.
                 #[allow(clippy::cast_possible_truncation)]
                 Some(n as i32)
             };
             counts.push(value);
         }
-        let speed = |c: &Column| -> Result<i32, String> {
-            let v = number(c)?;
-            RadPerSec::checked_from_num(v)
-                .map(RadPerSec::to_bits)
-                .ok_or_else(|| format!("{}: {v} rad/s does not fit RadPerSec", at(c)))
-        };
-        let omega_in_bits = speed(&omega_in)?;
+        let omega_in_bits = sat::<RadPerSec>(number(&omega_in)?);
         let omega_out_bits = match &omega_out {
-            Some(c) => speed(c)?,
-            None => 0,
+            Some(c) if !brake && !text(c).is_empty() => sat::<RadPerSec>(number(c)?),
+            _ => 0,
         };
         rows.push(Row {
             counts,
             omega_in_bits,
             omega_out_bits,
+            command_bits: optional(&command)?.map(sat::<ActuatorCommand>),
+            lining_temperature_bits: optional(&temperature)?.map(sat::<Celsius>),
+            ambient_bits: optional(&ambient)?.map(sat::<Celsius>),
+            reference_torque_bits: optional(&torque_ref)?.map(sat::<NewtonMetres>),
         });
     }
     if rows.is_empty() || rows.len() > MAX_TRACE_ROWS {
@@ -205,6 +236,15 @@ pub fn source(rows: &[Row], config_path: &Path, trace_path: &Path) -> String {
         "pub const CONFIG_PATH: &str = {:?};",
         config_path.display().to_string()
     );
+    let _ = writeln!(
+        s,
+        "/// Where the build read the trace (a host path, for host tests)."
+    );
+    let _ = writeln!(
+        s,
+        "pub const TRACE_PATH: &str = {:?};",
+        trace_path.display().to_string()
+    );
     let _ = writeln!(s, "/// Name of the recorded trace (its file stem).");
     let _ = writeln!(s, "pub const TRACE_NAME: &str = {:?};", stem(trace_path));
     let _ = writeln!(
@@ -226,11 +266,21 @@ pub fn source(rows: &[Row], config_path: &Path, trace_path: &Path) -> String {
             })
             .collect::<Vec<_>>()
             .join(", ");
+        let opt = |ty: &str, v: Option<i32>| {
+            v.map_or_else(|| "None".to_string(), |b| format!("Some({ty}::from_bits({b}))"))
+        };
         let _ = writeln!(
             s,
             "    TraceSample {{ counts: [{cells}], omega_in: RadPerSec::from_bits({}), \
-             omega_out: RadPerSec::from_bits({}) }},",
-            row.omega_in_bits, row.omega_out_bits
+             omega_out: RadPerSec::from_bits({}), auxiliary: Auxiliary {{ \
+             actuator_command: {}, lining_temperature: {}, ambient_temperature: {}, \
+             reference_torque: {} }} }},",
+            row.omega_in_bits,
+            row.omega_out_bits,
+            opt("ActuatorCommand", row.command_bits),
+            opt("Celsius", row.lining_temperature_bits),
+            opt("Celsius", row.ambient_bits),
+            opt("NewtonMetres", row.reference_torque_bits),
         );
     }
     let _ = writeln!(s, "];");

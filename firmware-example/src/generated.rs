@@ -18,8 +18,10 @@
 //! assert_eq!(checksum(), DEVICE_CHECKSUM);
 //! ```
 
-use clampwise_core::units::RadPerSec;
+use clampwise_core::sensor::ActuatorCommand;
+use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 
+use crate::app::Auxiliary;
 use crate::stub::{TraceCell, TraceSample};
 
 include!(concat!(env!("OUT_DIR"), "/device.rs"));

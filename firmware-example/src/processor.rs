@@ -10,8 +10,9 @@
 //! * the shaft speeds go in as they are; when they cannot be read the step sees both shafts
 //!   at rest (the estimate then reports a holding capacity, not a slipping torque) and the loop
 //!   counts the speed error;
-//! * actuator command, sensor, lining and ambient temperatures and a reference torque are not
-//!   wired in this example (`None`): a board that has them adds them here;
+//! * the [`Auxiliary`](crate::app::Auxiliary) inputs go in as they are: the actuator command,
+//!   a measured lining temperature, the ambient temperature and a reference torque (each
+//!   `None` when the board has none); the force sensor's own temperature is not wired here;
 //! * the fault output follows [`Flags::FORCE_LOST`], the warning output [`Flags::FADE_WARNING`];
 //! * the output line carries every field of the [`Estimate`] as raw integer bits.
 //!
@@ -29,6 +30,7 @@
 //!     sample: 0,
 //!     readings: [Reading::Counts(0); DEVICE_CHANNELS],
 //!     speeds: Some(Speeds { input: RadPerSec::ZERO, output: RadPerSec::ZERO }),
+//!     auxiliary: Default::default(),
 //! };
 //! let estimate = step.step(&inputs);
 //! assert!(!estimate.force_lost());
@@ -110,11 +112,11 @@ pub fn core_inputs<const C: usize>(inputs: &Inputs<C>) -> estimator::Inputs<C> {
         force_channels,
         input_speed,
         output_speed,
-        actuator_command: None,
+        actuator_command: inputs.auxiliary.actuator_command,
         sensor_temperature: None,
-        lining_temperature: None,
-        ambient_temperature: None,
-        reference_torque: None,
+        lining_temperature: inputs.auxiliary.lining_temperature,
+        ambient_temperature: inputs.auxiliary.ambient_temperature,
+        reference_torque: inputs.auxiliary.reference_torque,
     }
 }
 
@@ -213,6 +215,10 @@ mod tests {
             sample: 7,
             readings,
             speeds: speeds("2.5"),
+            auxiliary: crate::app::Auxiliary {
+                actuator_command: Some(clampwise_core::sensor::ActuatorCommand::lit("0.25")),
+                ..Default::default()
+            },
         });
         assert_eq!(
             core.force_channels[0],
@@ -232,11 +238,16 @@ mod tests {
         }
         assert_eq!(core.input_speed, RadPerSec::lit("2.5"));
         assert_eq!(core.output_speed, RadPerSec::ZERO);
-        assert!(core.actuator_command.is_none() && core.reference_torque.is_none());
+        assert_eq!(
+            core.actuator_command,
+            Some(clampwise_core::sensor::ActuatorCommand::lit("0.25"))
+        );
+        assert!(core.lining_temperature.is_none() && core.reference_torque.is_none());
         let missing = core_inputs(&Inputs {
             sample: 0,
             readings,
             speeds: None,
+            auxiliary: Default::default(),
         });
         assert_eq!(missing.input_speed, RadPerSec::ZERO);
     }
@@ -257,6 +268,7 @@ mod tests {
                 sample: k,
                 readings,
                 speeds: speeds("3"),
+                auxiliary: Default::default(),
             };
             assert_eq!(
                 adapter.step(&inputs),
@@ -274,6 +286,7 @@ mod tests {
             sample: 0,
             readings: [Reading::Fault(AdcFault::NotReady); DEVICE_CHANNELS],
             speeds: speeds("1"),
+            auxiliary: Default::default(),
         };
         // The sensor layer may hold a channel's last value for a few samples; with no value
         // ever accepted there is nothing to hold.
@@ -300,6 +313,7 @@ mod tests {
             sample: 0,
             readings: [Reading::Counts(0); DEVICE_CHANNELS],
             speeds: speeds("0"),
+            auxiliary: Default::default(),
         });
         assert!(!e.fade_warning());
         e.flags.insert(Flags::FADE_WARNING);

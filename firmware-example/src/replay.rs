@@ -38,7 +38,7 @@ use crate::generated::{
 };
 use crate::line::{Line, LineSink};
 use crate::processor::EstimatorStep;
-use crate::stub::{StubPin, TraceAdc, TraceClock, TraceDelay, TraceSpeeds};
+use crate::stub::{StubPin, TraceAdc, TraceAuxiliary, TraceClock, TraceDelay, TraceSpeeds};
 
 /// The core's estimator on this build's device configuration.
 pub type DemoProcessor = EstimatorStep<
@@ -165,6 +165,7 @@ where
         warning: StubPin::new(),
         delay: TraceDelay::new(&clock),
         speeds: TraceSpeeds::new(&clock, &TRACE),
+        auxiliary: TraceAuxiliary::new(&clock, &TRACE),
     };
     let mut app = ControlLoop::new(ports, processor, config);
     app.write_header(sink);
@@ -256,34 +257,36 @@ mod tests {
     }
 
     #[test]
-    fn force_is_lost_only_when_every_channel_is_out() {
+    fn with_every_channel_out_the_force_falls_back_or_is_lost() {
         let rows = rows();
-        let lost: Vec<bool> = rows
-            .iter()
-            .map(|r| r[column("flags")].unwrap() & i64::from(Flags::FORCE_LOST.bits()) != 0)
-            .collect();
-        // With no actuator command wired, the force is lost when no channel can vote. A
-        // channel that failed comes back only after `clear_after` clean samples (its invalid
-        // flag's debounce), so at a lost sample every channel failed within that window.
+        let has = |k: usize, f: Flags| rows[k][column("flags")].unwrap() & i64::from(f.bits()) != 0;
+        // A channel that failed comes back only after `clear_after` clean samples (its invalid
+        // flag's debounce), so whenever no channel is usable, every channel failed within that
+        // window. The force then comes from the actuator command (fallback) if the trace has
+        // one this sample, and is lost (no torque, no capacity: the fault output) if not.
         let clear = usize::from(DEVICE_CONFIG.sensor().limits().debounce.invalid.clear_after);
-        for (k, &l) in lost.iter().enumerate() {
-            if l {
-                for ch in 0..DEVICE_CHANNELS {
-                    let from = k.saturating_sub(clear);
-                    let failed = TRACE[from..=k]
-                        .iter()
-                        .any(|s| !matches!(s.counts[ch], TraceCell::Counts(_)));
-                    assert!(
-                        failed,
-                        "sample {k}: force lost, channel {ch} clean throughout"
-                    );
-                }
+        let mut no_channel = 0;
+        for k in 0..rows.len() {
+            let (lost, fallback) = (has(k, Flags::FORCE_LOST), has(k, Flags::FORCE_FALLBACK));
+            if !(lost || fallback) {
+                continue;
+            }
+            no_channel += 1;
+            for ch in 0..DEVICE_CHANNELS {
+                let failed = TRACE[k.saturating_sub(clear)..=k]
+                    .iter()
+                    .any(|s| !matches!(s.counts[ch], TraceCell::Counts(_)));
+                assert!(failed, "sample {k}: no channel used, channel {ch} clean throughout");
+            }
+            let command = TRACE[k].auxiliary.actuator_command.is_some();
+            assert_eq!(fallback, command, "sample {k}: fallback iff a command");
+            assert_eq!(lost, !command, "sample {k}: lost iff no command");
+            if lost {
                 assert_eq!(rows[k][column("state")], Some(3), "unavailable");
                 assert_eq!(rows[k][column("torque_bits")], None);
             }
         }
-        // The demo trace plants a stretch of all channels out longer than any hold: it must
-        // show as lost force.
+        // The demo trace plants a stretch of all channels out longer than any hold.
         let longest = TRACE
             .iter()
             .fold((0, 0), |(run, best), s| {
@@ -293,7 +296,7 @@ mod tests {
             .1;
         let hold = usize::from(DEVICE_CONFIG.sensor().limits().max_hold_samples);
         assert!(longest > hold + 1, "trace: {longest} samples all out");
-        assert!(lost.iter().any(|&l| l));
+        assert!(no_channel > 0);
     }
 
     #[test]
