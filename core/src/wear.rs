@@ -326,10 +326,12 @@ impl WearConfig {
         self.minimum_thickness
     }
 
-    /// Thickness loss for an energy in Q64 J: k·E/A, truncated to Q96 m.
+    /// Thickness loss for an energy in Q48 J: k·E/A, truncated to Q96 m.
     fn loss_q96(&self, energy_q48: u128) -> u128 {
-        energy_q48
-            .saturating_mul(u128::from(self.wear_mant))
+        // Callers pass at most the state's energy (below 2⁹⁶ in Q48) and the mantissa is at
+        // most 2³², so the product is below 2¹²⁸: a widening multiply of the 96-bit energy by
+        // the 64-bit mantissa, exact.
+        (energy_q48.min(ENERGY_MAX_Q64 >> 16) * u128::from(self.wear_mant))
             .checked_shr(self.wear_shift)
             .unwrap_or(0)
     }
@@ -489,7 +491,9 @@ impl WearState {
         // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷ before the shift. From here
         // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
         // products (far less code on a 32-bit core than u128 × u128; the same values).
-        let x = u64::try_from((step_q48.min(cfg.e0_q48)).saturating_mul(cfg.bedding_recip) >> 65)
+        // The product is at most e0_q48 · bedding_recip, which `WearConfig::from_raw` holds
+        // to 2¹²⁷ within 2⁷⁸: exact in u128.
+        let x = u64::try_from((step_q48.min(cfg.e0_q48) * cfg.bedding_recip) >> 65)
             .unwrap_or(u64::MAX)
             .min(ONE_Q62_U64);
         let x2 = mul_q62(x, x);

@@ -161,7 +161,10 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
                     "1" | "1.0" | "true" => true,
                     "0" | "0.0" | "false" => false,
                     other => {
-                        return Err(format!("{}: valid bit must be 0 or 1, got `{other}`", at(v)));
+                        return Err(format!(
+                            "{}: valid bit must be 0 or 1, got `{other}`",
+                            at(v)
+                        ));
                     }
                 },
             };
@@ -267,7 +270,10 @@ pub fn source(rows: &[Row], config_path: &Path, trace_path: &Path) -> String {
             .collect::<Vec<_>>()
             .join(", ");
         let opt = |ty: &str, v: Option<i32>| {
-            v.map_or_else(|| "None".to_string(), |b| format!("Some({ty}::from_bits({b}))"))
+            v.map_or_else(
+                || "None".to_string(),
+                |b| format!("Some({ty}::from_bits({b}))"),
+            )
         };
         let _ = writeln!(
             s,

@@ -276,7 +276,10 @@ mod tests {
                 let failed = TRACE[k.saturating_sub(clear)..=k]
                     .iter()
                     .any(|s| !matches!(s.counts[ch], TraceCell::Counts(_)));
-                assert!(failed, "sample {k}: no channel used, channel {ch} clean throughout");
+                assert!(
+                    failed,
+                    "sample {k}: no channel used, channel {ch} clean throughout"
+                );
             }
             let command = TRACE[k].auxiliary.actuator_command.is_some();
             assert_eq!(fallback, command, "sample {k}: fallback iff a command");

@@ -62,7 +62,10 @@ fn firmware_estimates_equal_the_simulators_replay() {
     let mut k = 0;
     while let Some(sample) = reader.next_sample().unwrap() {
         let sim_inputs = seam::core_inputs::<DEVICE_CHANNELS>(&sample, &cal, brake);
-        assert_eq!(fw.inputs[k], sim_inputs, "sample {k}: the estimator's inputs");
+        assert_eq!(
+            fw.inputs[k], sim_inputs,
+            "sample {k}: the estimator's inputs"
+        );
         // The simulator's estimate row against the firmware's estimate put through the
         // simulator's own (exact) conversion: every field of the row.
         let expected = seam::estimate_row(&sample, &fw.inputs[k], &fw.estimates[k]);
