@@ -1,7 +1,7 @@
 //! The per-sample step: the core's estimator behind the application's [`Processor`] port.
 //!
 //! [`EstimatorStep`] turns the loop's [`Inputs`] into the core's
-//! [`estimator::Inputs`](clampwise_core::estimator::Inputs) and calls
+//! [`estimator::Inputs`] and calls
 //! [`Estimator::step`]; the core's [`Estimate`] is the [`Outcome`] the loop acts on:
 //!
 //! * a clean ADC reading becomes a raw channel with its valid bit set; a failed one (not ready,
