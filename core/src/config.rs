@@ -94,7 +94,7 @@ pub struct Limits {
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Tolerances {
-    /// Relative tolerance of μ (e.g. 0.20 for ±20 %; μ dominates the budget [practice]).
+    /// Relative tolerance of μ (e.g. 0.20 for ±20 %; μ dominates the budget \[practice\]).
     pub mu: Ratio,
     /// Relative tolerance of the effective radius.
     pub radius: Ratio,

@@ -138,7 +138,7 @@ pub struct WearRaw {
     pub dt_q63: u64,
     /// Bedding energy E₀ in Q48 J, 1 J ..= 10¹³ J.
     pub e0_q48: u128,
-    /// round(2⁷⁹ / E₀ [J]), so that `e0_q48 · bedding_recip` ≈ 2¹²⁷.
+    /// round(2⁷⁹ / E₀) with E₀ in J, so that `e0_q48 · bedding_recip` ≈ 2¹²⁷.
     pub bedding_recip: u128,
     /// Thickness rate k/A = `wear_mant · 2^−(wear_shift + 48)` m/J: the mantissa, 0 (no wear)
     /// or 2³¹ ..= 2³².
