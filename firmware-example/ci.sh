@@ -6,7 +6,8 @@
 #      each compared line by line with the host replay of the same trace
 #   3. no soft-float routine in the thumbv6m image
 #   4. the defmt (probe) build links
-#   5. size report (flash, static RAM, stack) per target
+#   5. size report (flash, static RAM, stack) per target, and the size targets on thumbv6m:
+#      core + one device's tables < 16 KiB flash, estimator state < 1 KiB RAM
 # Opt-in (when .ci/run does not already cover them):
 #   FW_HOST_TESTS=1  the crate's host unit tests and doctests (`cargo test --workspace` has them)
 #   FW_CLIPPY=1      clippy on the target-only code (entry point, sinks, stack probe)
@@ -74,7 +75,7 @@ check "QEMU vs host replay" bash "$FW_SCRIPTS/qemu-check.sh" \
   thumbv7m-none-eabi thumbv7em-none-eabihf thumbv6m-none-eabi
 check "no soft-float on thumbv6m" bash "$FW_SCRIPTS/softfloat-check.sh" thumbv6m-none-eabi
 check "defmt build" defmt_build
-check "size report" bash "$FW_SCRIPTS/size-report.sh"
+check "size report (targets on thumbv6m)" bash "$FW_SCRIPTS/size-report.sh" --check
 
 echo "[firmware] $(( $(date +%s) - started )) s in all"
 if [[ $failed -gt 0 ]]; then

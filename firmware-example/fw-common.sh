@@ -25,7 +25,8 @@ fw_cargo_features() {
   case "$1" in
     semihosting) echo "" ;;
     panic-check) echo "--features panic-check" ;;
-    panic-canary) echo "--features panic-canary" ;;
+    panic-canary) echo "--features panic-check,panic-canary" ;;
+    canary-shipped) echo "--features panic-canary" ;;
     defmt) echo "--no-default-features --features defmt" ;;
     *) fw_fail "unknown variant $1" ;;
   esac
@@ -46,4 +47,32 @@ fw_build() {
 fw_elf() {
   local elf="$FW_OUT/$1.$2.elf"
   if [[ -f "$elf" && -z "${FW_REBUILD:-}" ]]; then echo "$elf"; else fw_build "$1" "$2"; fi
+}
+
+# fw_reachable ELF ROOT_REGEX -> bytes of code reachable by direct calls and branches from the
+# functions whose (mangled) names match ROOT_REGEX, the roots included: every function the
+# disassembly shows one of them branching to, and so on. Indirect calls are not followed (the
+# core makes none). Prints "<bytes> <functions>".
+fw_reachable() {
+  local elf="$1" root="$2" tmp
+  tmp="$(mktemp -d)"
+  "$LLVM_BIN/llvm-nm" -S "$elf" | awk 'NF == 4 { print $4, $2 }' >"$tmp/sizes"
+  "$LLVM_BIN/llvm-objdump" -d --no-show-raw-insn "$elf" | awk '
+    /^[0-9a-f]+ <.*>:$/ { f = substr($2, 2, length($2) - 3); next }
+    /\t(bl|blx|b|b\.w|b[a-z][a-z](\.w)?)\t0x[0-9a-f]+ </ {
+      if (match($0, /<[^>]*>/)) {
+        t = substr($0, RSTART + 1, RLENGTH - 2); sub(/\+0x[0-9a-f]+$/, "", t)
+        if (t != f) print f, t
+      }
+    }' | sort -u >"$tmp/edges"
+  awk -v root="$root" '
+    function hex(h,   k, b) { b = 0; for (k = 1; k <= length(h); k++) b = b * 16 + index("0123456789abcdef", substr(h, k, 1)) - 1; return b }
+    FILENAME ~ /sizes$/ { size[$1] = $2; next }
+    { adj[$1] = adj[$1] " " $2 }
+    END {
+      n = 0; for (s in size) if (s ~ root) { q[n++] = s; seen[s] = 1 }
+      for (i = 0; i < n; i++) { m = split(adj[q[i]], a, " "); for (j = 1; j <= m; j++) if (!(a[j] in seen)) { seen[a[j]] = 1; q[n++] = a[j] } }
+      total = 0; for (s in seen) total += hex(size[s]); print total, n
+    }' "$tmp/sizes" "$tmp/edges"
+  rm -rf "$tmp"
 }

@@ -55,6 +55,8 @@ pub enum AdaptError {
     TorqueFullScale,
     /// `min_excitation` is not in (0, 1).
     MinExcitation,
+    /// The covariance bounds ([`AdaptRaw`]) are not 0 < min ≤ initial ≤ max.
+    Covariance,
 }
 
 impl fmt::Display for AdaptError {
@@ -66,6 +68,9 @@ impl fmt::Display for AdaptError {
                 "adaptation torque_full_scale_nm must be positive and at most 500000 N·m"
             }
             Self::MinExcitation => "adaptation min_excitation must be within (0, 1)",
+            Self::Covariance => {
+                "adaptation covariance bounds must satisfy 0 < min <= initial <= max"
+            }
         })
     }
 }
@@ -87,6 +92,33 @@ pub struct AdaptConfig {
 }
 
 const ONE_Q30: i64 = 1 << 30;
+/// λ = 0.9 as [`Ratio`] bits, rounded to nearest as `AdaptConfig::new` rounds it.
+const FORGETTING_MIN_BITS: i32 = 966_367_642;
+
+/// An [`AdaptConfig`] as its fixed-point values, for configurations computed once (on the
+/// host or in a build script) and kept in flash as `const` items.
+///
+/// [`AdaptConfig::to_raw`] gives them; [`AdaptConfig::from_raw`] checks them and builds the
+/// configuration in a `const` context.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct AdaptRaw {
+    /// Lower end of the band on k, (0, 1].
+    pub min_factor: Ratio,
+    /// Upper end of the band on k, [1, 2).
+    pub max_factor: Ratio,
+    /// Forgetting factor λ, [0.9, 1].
+    pub forgetting: Ratio,
+    /// Torque full scale used to normalise, N·m, > 0.
+    pub torque_full_scale: NewtonMetres,
+    /// Smallest |T₀|/T_fs that updates, (0, 1).
+    pub min_excitation: Ratio,
+    /// Covariance P at start, within `[min_covariance, max_covariance]`.
+    pub initial_covariance: Ratio,
+    /// Lower bound on P, > 0.
+    pub min_covariance: Ratio,
+    /// Upper bound on P, < 2.
+    pub max_covariance: Ratio,
+}
 
 impl AdaptConfig {
     /// Settings from SI values: the correction band `[min_factor, max_factor]` (must contain 1),
@@ -116,7 +148,9 @@ impl AdaptConfig {
             return Err(AdaptError::MinExcitation);
         }
         let ratio = |v: f64| Ratio::saturating_from_num(v);
-        Ok(Self {
+        // A setting that rounds to the edge of its range in Q30 (e.g. a band end below one
+        // LSB) is rejected by `from_raw`, with the same error.
+        Self::from_raw(AdaptRaw {
             min_factor: ratio(min_factor),
             max_factor: ratio(max_factor),
             forgetting: ratio(forgetting_factor),
@@ -127,6 +161,83 @@ impl AdaptConfig {
             min_covariance: ratio(1e-6),
             max_covariance: ratio(1.9),
         })
+    }
+
+    /// Check fixed-point settings (from [`AdaptConfig::to_raw`], usually emitted by a build
+    /// script) and build the configuration; `const`, so a firmware keeps it in flash and a bad
+    /// value fails the build. The bounds are those of [`AdaptConfig::new`], on the Q30 values,
+    /// plus 0 < `min_covariance` ≤ `initial_covariance` ≤ `max_covariance`, which keeps every
+    /// term of the update below 2 in Q30.
+    ///
+    /// # Errors
+    /// The [`AdaptError`] variant naming the offending setting.
+    ///
+    /// ```
+    /// use clampwise_core::adapt::{AdaptConfig, AdaptRaw};
+    /// use clampwise_core::units::{NewtonMetres, Ratio};
+    /// const RAW: AdaptRaw = AdaptRaw {
+    ///     min_factor: Ratio::lit("0.8"), max_factor: Ratio::lit("1.2"),
+    ///     forgetting: Ratio::lit("0.995"), torque_full_scale: NewtonMetres::lit("2000"),
+    ///     min_excitation: Ratio::lit("0.05"), initial_covariance: Ratio::ONE,
+    ///     min_covariance: Ratio::lit("0.000001"), max_covariance: Ratio::lit("1.9"),
+    /// };
+    /// const CFG: AdaptConfig = match AdaptConfig::from_raw(RAW) {
+    ///     Ok(c) => c,
+    ///     Err(_) => panic!("bad adaptation settings"),
+    /// };
+    /// assert_eq!(CFG.to_raw(), RAW);
+    /// assert!(AdaptConfig::from_raw(AdaptRaw { max_factor: Ratio::lit("0.9"), ..RAW }).is_err());
+    /// ```
+    pub const fn from_raw(raw: AdaptRaw) -> Result<Self, AdaptError> {
+        let one = Ratio::ONE.to_bits();
+        let (lo, hi) = (raw.min_factor.to_bits(), raw.max_factor.to_bits());
+        if lo <= 0 || lo > one || hi < one {
+            return Err(AdaptError::Band);
+        }
+        let lambda = raw.forgetting.to_bits();
+        if lambda < FORGETTING_MIN_BITS || lambda > one {
+            return Err(AdaptError::ForgettingFactor);
+        }
+        if raw.torque_full_scale.to_bits() <= 0 {
+            return Err(AdaptError::TorqueFullScale);
+        }
+        let excitation = raw.min_excitation.to_bits();
+        if excitation <= 0 || excitation >= one {
+            return Err(AdaptError::MinExcitation);
+        }
+        let (p_min, p0, p_max) = (
+            raw.min_covariance.to_bits(),
+            raw.initial_covariance.to_bits(),
+            raw.max_covariance.to_bits(),
+        );
+        if p_min <= 0 || p0 < p_min || p_max < p0 {
+            return Err(AdaptError::Covariance);
+        }
+        Ok(Self {
+            min_factor: raw.min_factor,
+            max_factor: raw.max_factor,
+            forgetting: raw.forgetting,
+            torque_full_scale: raw.torque_full_scale,
+            min_excitation: raw.min_excitation,
+            initial_covariance: raw.initial_covariance,
+            min_covariance: raw.min_covariance,
+            max_covariance: raw.max_covariance,
+        })
+    }
+
+    /// The fixed-point settings, for [`AdaptConfig::from_raw`] (e.g. to emit them as Rust
+    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    pub const fn to_raw(&self) -> AdaptRaw {
+        AdaptRaw {
+            min_factor: self.min_factor,
+            max_factor: self.max_factor,
+            forgetting: self.forgetting,
+            torque_full_scale: self.torque_full_scale,
+            min_excitation: self.min_excitation,
+            initial_covariance: self.initial_covariance,
+            min_covariance: self.min_covariance,
+            max_covariance: self.max_covariance,
+        }
     }
 
     /// Lower end of the correction band.
@@ -197,8 +308,8 @@ impl AdaptState {
     /// Restore from a saved factor and covariance, clamped into the configured bounds.
     pub fn restore(cfg: &AdaptConfig, factor: Ratio, covariance: Ratio) -> Self {
         Self {
-            factor: factor.clamp(cfg.min_factor, cfg.max_factor),
-            covariance: covariance.clamp(cfg.min_covariance, cfg.max_covariance),
+            factor: factor.max(cfg.min_factor).min(cfg.max_factor),
+            covariance: covariance.max(cfg.min_covariance).min(cfg.max_covariance),
         }
     }
 
@@ -249,10 +360,14 @@ impl AdaptState {
         let k_new = k + ((gain * innovation.clamp(-4 * ONE_Q30, 4 * ONE_Q30)) >> 30);
         let p_new = ((p - ((gain * phi) >> 30) * p / ONE_Q30) << 30) / lambda;
 
-        let k_bounded = narrow_q30(k_new).clamp(cfg.min_factor, cfg.max_factor);
+        // `max`/`min` rather than `clamp`: the same value for validated bounds (min ≤ max),
+        // and no assertion (panic path) on their order in the per-sample code.
+        let k_bounded = narrow_q30(k_new).max(cfg.min_factor).min(cfg.max_factor);
         let at_band_limit = k_bounded.to_bits() != narrow_q30(k_new).to_bits();
         self.factor = k_bounded;
-        self.covariance = narrow_q30(p_new).clamp(cfg.min_covariance, cfg.max_covariance);
+        self.covariance = narrow_q30(p_new)
+            .max(cfg.min_covariance)
+            .min(cfg.max_covariance);
         AdaptSample {
             factor: self.factor,
             frozen: false,
@@ -363,6 +478,93 @@ mod tests {
         assert!(s.update(&cfg, t, None, OPEN).frozen);
         assert!(s.update(&cfg, NewtonMetres::from_num(10), r, OPEN).frozen);
         assert_eq!(s, AdaptState::new(&cfg));
+    }
+
+    #[test]
+    fn forgetting_floor_is_nine_tenths_rounded_like_new() {
+        // `new` rounds with `fixed`'s nearest rounding; the const bound must be that value.
+        assert_eq!(
+            Ratio::saturating_from_num(0.9).to_bits(),
+            FORGETTING_MIN_BITS
+        );
+        let fs = NewtonMetres::from_num(100);
+        assert!(AdaptConfig::new(0.8, 1.2, 0.9, fs, 0.1).is_ok());
+        assert_eq!(
+            AdaptConfig::new(0.8, 1.2, 0.899_999_999, fs, 0.1),
+            Err(AdaptError::ForgettingFactor)
+        );
+    }
+
+    #[test]
+    fn raw_round_trip_is_exact() {
+        let fs = NewtonMetres::from_num(2000);
+        for c in [
+            cfg(),
+            AdaptConfig::new(1.0, 1.0, 1.0, fs, 0.5).unwrap(),
+            AdaptConfig::new(0.5, 1.999, 0.9, NewtonMetres::MAX, 0.999).unwrap(),
+        ] {
+            assert_eq!(AdaptConfig::from_raw(c.to_raw()), Ok(c));
+        }
+    }
+
+    #[test]
+    fn raw_rejects_each_bad_setting() {
+        let raw = cfg().to_raw();
+        let e = |r: AdaptRaw| AdaptConfig::from_raw(r).unwrap_err();
+        let bits = Ratio::from_bits;
+        let one = Ratio::ONE.to_bits();
+        for (lo, hi) in [(0, one), (one + 1, one + 2), (one / 2, one - 1)] {
+            assert_eq!(
+                e(AdaptRaw {
+                    min_factor: bits(lo),
+                    max_factor: bits(hi),
+                    ..raw
+                }),
+                AdaptError::Band
+            );
+        }
+        for f in [FORGETTING_MIN_BITS - 1, one + 1] {
+            assert_eq!(
+                e(AdaptRaw {
+                    forgetting: bits(f),
+                    ..raw
+                }),
+                AdaptError::ForgettingFactor
+            );
+        }
+        assert_eq!(
+            e(AdaptRaw {
+                torque_full_scale: NewtonMetres::ZERO,
+                ..raw
+            }),
+            AdaptError::TorqueFullScale
+        );
+        for x in [0, one] {
+            assert_eq!(
+                e(AdaptRaw {
+                    min_excitation: bits(x),
+                    ..raw
+                }),
+                AdaptError::MinExcitation
+            );
+        }
+        for (p_min, p0, p_max) in [(0, one, one), (one / 2, one / 4, one), (1, one, one - 1)] {
+            assert_eq!(
+                e(AdaptRaw {
+                    min_covariance: bits(p_min),
+                    initial_covariance: bits(p0),
+                    max_covariance: bits(p_max),
+                    ..raw
+                }),
+                AdaptError::Covariance
+            );
+        }
+        // A band end below one LSB now fails in `new` too, with the same error.
+        assert_eq!(
+            AdaptConfig::new(1e-12, 1.2, 0.99, NewtonMetres::from_num(100), 0.1),
+            Err(AdaptError::Band)
+        );
+        assert!(AdaptError::Covariance.to_string().contains("covariance"));
     }
 
     proptest! {

@@ -151,6 +151,7 @@
 extern crate std;
 
 pub mod adapt;
+mod checksum;
 pub mod config;
 pub mod estimator;
 pub mod flags;

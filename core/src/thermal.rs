@@ -149,6 +149,13 @@ pub enum ThermalError {
     FlagThresholds,
     /// `measured.max` is not above `measured.min`, or `max_rate · dt` is below one LSB.
     MeasuredLimits,
+    /// A raw coefficient ([`ThermalRaw`]) lies outside what the model can produce: a decay
+    /// coefficient outside `0 ≤ K_ii < 1`, `−1 < K_ij ≤ 0`, a negative Γ, or lining-node
+    /// coefficients set on a single-node model.
+    Coefficient {
+        /// The field concerned.
+        field: &'static str,
+    },
 }
 
 impl fmt::Display for ThermalError {
@@ -177,18 +184,54 @@ impl fmt::Display for ThermalError {
             Self::MeasuredLimits => f.write_str(
                 "measured: max must be above min and max_rate * dt at least one Celsius LSB",
             ),
+            Self::Coefficient { field } => write!(
+                f,
+                "{field}: raw coefficient outside the range the thermal model can produce"
+            ),
         }
     }
 }
 
 impl core::error::Error for ThermalError {}
 
+/// Plausibility limits of a measured lining temperature in fixed point (part of
+/// [`ThermalRaw`]).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-struct Plausibility {
-    min: Celsius,
-    max: Celsius,
-    /// Largest step between consecutive readings, raw Celsius bits.
-    max_step: i32,
+pub struct Plausibility {
+    /// Lowest plausible reading, °C.
+    pub min: Celsius,
+    /// Highest plausible reading, °C, above `min`.
+    pub max: Celsius,
+    /// Largest step between consecutive readings, raw [`Celsius`] bits per sample, ≥ 1.
+    pub max_step: i32,
+}
+
+/// A [`ThermalConfig`] as its integer coefficients, for configurations computed once (on the
+/// host or in a build script) and kept in flash as `const` items.
+///
+/// [`ThermalConfig::to_raw`] gives them; [`ThermalConfig::from_raw`] checks them and builds the
+/// configuration in a `const` context. State order of the 2 × 2 arrays: `[lining, rotor]`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ThermalRaw {
+    /// Sample period, s, (0, 1].
+    pub dt: Seconds,
+    /// Per-sample decay `K = I − exp(A·dt)` in Q62 (2⁶² = 1): `0 ≤ K_ii < 1`, `−1 < K_ij ≤ 0`.
+    pub k_q62: [[i64; 2]; 2],
+    /// Per-sample heating `Γ` in K/W in Q62, `0 ≤ Γ_i < 1`.
+    pub gamma_q62: [i64; 2],
+    /// Whether the lining has its own node; without it row 0 of `k_q62`, `k_q62[1][0]` and
+    /// `gamma_q62[0]` are zero.
+    pub two_node: bool,
+    /// Ambient temperature, °C.
+    pub ambient: Celsius,
+    /// Fade-warning threshold, °C.
+    pub fade_warning: Celsius,
+    /// Over-temperature threshold, °C, above `fade_warning`.
+    pub over_temperature: Celsius,
+    /// Hysteresis of both flags, K, ≥ 0.
+    pub flag_hysteresis: Celsius,
+    /// Plausibility of a measured lining temperature, or `None`.
+    pub measured: Option<Plausibility>,
 }
 
 /// Validated thermal configuration. Immutable; coefficients fixed at construction.
@@ -351,11 +394,11 @@ impl ThermalConfig {
                 })
             }
         };
-        Ok(Self {
+        Self::from_raw(ThermalRaw {
             dt: Seconds::checked_from_num(dt)
                 .ok_or(ThermalError::NotRepresentable { field: "dt" })?,
-            k,
-            gamma,
+            k_q62: k,
+            gamma_q62: gamma,
             two_node,
             ambient: celsius(p.ambient, "ambient")?,
             fade_warning,
@@ -363,6 +406,115 @@ impl ThermalConfig {
             flag_hysteresis,
             measured,
         })
+    }
+
+    /// Check integer coefficients (from [`ThermalConfig::to_raw`], usually emitted by a build
+    /// script) and build the configuration; `const`, so a firmware keeps it in flash and a bad
+    /// value fails the build.
+    ///
+    /// Checked here: everything the per-sample arithmetic relies on (dt in (0, 1] s, the ranges
+    /// of `K` and `Γ` that keep the update's products inside i128, a single-node model carrying
+    /// no lining coefficients, the single node's decay resolved: `K ≥ 2⁻⁴⁰` unless adiabatic)
+    /// and the flag and plausibility limits. Not checked: the time constants of a two-node
+    /// model against dt, which need its eigenvalues ([`ThermalConfig::new`] checks those).
+    ///
+    /// # Errors
+    /// [`ThermalError::NotPositive`] / [`ThermalError::DtTooLong`] for dt,
+    /// [`ThermalError::Coefficient`] or [`ThermalError::HeatCapacityTooSmall`] for `K` and `Γ`,
+    /// [`ThermalError::TimeConstantTooLongForDt`], [`ThermalError::FlagThresholds`],
+    /// [`ThermalError::MeasuredLimits`].
+    ///
+    /// ```
+    /// use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
+    /// let built = ThermalConfig::new(&ThermalParams {
+    ///     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
+    ///     cooling: Cooling::TimeConstant(613.0), ambient: 20.0, lining: None,
+    ///     fade_warning: 300.0, over_temperature: 450.0, flag_hysteresis: 10.0, measured: None,
+    /// })?;
+    /// // In a firmware the raw values are literals emitted at build time.
+    /// let raw = built.to_raw();
+    /// assert_eq!(ThermalConfig::from_raw(raw), Ok(built));
+    /// let mut bad = raw;
+    /// bad.k_q62[1][1] = -1;
+    /// assert!(ThermalConfig::from_raw(bad).is_err());
+    /// # Ok::<(), clampwise_core::thermal::ThermalError>(())
+    /// ```
+    pub const fn from_raw(raw: ThermalRaw) -> Result<Self, ThermalError> {
+        const ONE: i64 = 1 << 62;
+        let dt = raw.dt.to_bits();
+        if dt <= 0 {
+            return Err(ThermalError::NotPositive { field: "dt" });
+        }
+        if dt > Seconds::ONE.to_bits() {
+            return Err(ThermalError::DtTooLong);
+        }
+        let [[k_ll, k_lr], [k_rl, k_rr]] = raw.k_q62;
+        let diagonal_ok = k_ll >= 0 && k_ll < ONE && k_rr >= 0 && k_rr < ONE;
+        let coupling_ok = k_lr <= 0 && k_lr > -ONE && k_rl <= 0 && k_rl > -ONE;
+        if !diagonal_ok || !coupling_ok {
+            return Err(ThermalError::Coefficient { field: "k" });
+        }
+        let [g_l, g_r] = raw.gamma_q62;
+        if g_l < 0 || g_r < 0 {
+            return Err(ThermalError::Coefficient { field: "gamma" });
+        }
+        if g_l >= ONE {
+            return Err(ThermalError::HeatCapacityTooSmall {
+                field: "lining.mass",
+            });
+        }
+        if g_r >= ONE {
+            return Err(ThermalError::HeatCapacityTooSmall {
+                field: "rotor_mass",
+            });
+        }
+        if !raw.two_node {
+            if k_ll != 0 || k_lr != 0 || k_rl != 0 || g_l != 0 {
+                return Err(ThermalError::Coefficient {
+                    field: "lining (single-node model)",
+                });
+            }
+            if k_rr != 0 && k_rr < K_MIN_Q62 {
+                return Err(ThermalError::TimeConstantTooLongForDt);
+            }
+        }
+        if raw.over_temperature.to_bits() <= raw.fade_warning.to_bits()
+            || raw.flag_hysteresis.to_bits() < 0
+        {
+            return Err(ThermalError::FlagThresholds);
+        }
+        if let Some(m) = &raw.measured
+            && (m.max.to_bits() <= m.min.to_bits() || m.max_step < 1)
+        {
+            return Err(ThermalError::MeasuredLimits);
+        }
+        Ok(Self {
+            dt: raw.dt,
+            k: raw.k_q62,
+            gamma: raw.gamma_q62,
+            two_node: raw.two_node,
+            ambient: raw.ambient,
+            fade_warning: raw.fade_warning,
+            over_temperature: raw.over_temperature,
+            flag_hysteresis: raw.flag_hysteresis,
+            measured: raw.measured,
+        })
+    }
+
+    /// The integer coefficients, for [`ThermalConfig::from_raw`] (e.g. to emit them as Rust
+    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    pub const fn to_raw(&self) -> ThermalRaw {
+        ThermalRaw {
+            dt: self.dt,
+            k_q62: self.k,
+            gamma_q62: self.gamma,
+            two_node: self.two_node,
+            ambient: self.ambient,
+            fade_warning: self.fade_warning,
+            over_temperature: self.over_temperature,
+            flag_hysteresis: self.flag_hysteresis,
+            measured: self.measured,
+        }
     }
 
     /// Sample period (s).
@@ -585,27 +737,29 @@ impl ThermalState {
         ambient: Option<Celsius>,
     ) -> ThermalSample {
         let p = i128::from(power.to_bits().unsigned_abs());
-        let amb = i128::from(to_q32(ambient.unwrap_or(cfg.ambient)));
+        let amb = to_q32(ambient.unwrap_or(cfg.ambient));
+        // Temperatures are held within −273 … 32 767 °C in Q32 (below 2⁴⁷ in magnitude), so
+        // each difference is exact in i64 (|θ| < 2⁴⁸).
         let theta = [
-            i128::from(self.lining_q32).saturating_sub(amb),
-            i128::from(self.rotor_q32).saturating_sub(amb),
+            self.lining_q32.saturating_sub(amb),
+            self.rotor_q32.saturating_sub(amb),
         ];
         let mut next = [self.lining_q32, self.rotor_q32];
         for ((out, krow), g) in next.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
-            // Whatever the configuration: |θ| < 2⁴⁸ (state and ambient are both below 2⁴⁷ in
-            // Q32), |K| ≤ 2⁶³ and |Γ| ≤ 2⁶³ (i64), P ≤ 2⁶³, so |K·θ| < 2¹¹¹ and
-            // |Γ·P − ΣK·θ + 2⁶¹| < 2¹²⁶ + 2¹¹² + 2⁶¹ < 2¹²⁷: nothing here can overflow i128.
-            // Wrapping operations are therefore exact, panic-free, and much cheaper than
-            // saturating i128 multiplications (which need a full overflow test).
+            // |θ| < 2⁴⁸ and |K| < 2⁶² (checked by `from_raw`): each K·θ is a 64 × 64-bit
+            // widening product below 2¹¹⁰, their sum below 2¹¹¹. 0 ≤ Γ < 2⁶² and P < 2⁶⁴:
+            // Γ·P < 2¹²⁶. Nothing comes near the i128 range, so every sum below is exact:
+            // `wrapping_` is the exact result here, states that no overflow is handled, and
+            // has no panic path (and costs far less code than `saturating_` on a 32-bit core).
             let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
-                acc.wrapping_add(i128::from(*k).wrapping_mul(*t))
+                acc.wrapping_add(i128::from(*k) * i128::from(*t))
             });
-            let delta = i128::from(*g)
-                .wrapping_mul(p)
+            let delta = (i128::from(*g) * p)
                 .wrapping_sub(decay)
                 .wrapping_add(1i128 << 61)
                 >> 62;
-            *out = narrow_q32(i128::from(*out).saturating_add(delta));
+            // |state| < 2⁴⁸ and |delta| < 2⁶⁵.
+            *out = narrow_q32(i128::from(*out).wrapping_add(delta));
         }
         let [lining, rotor] = next;
         self.rotor_q32 = rotor;
@@ -892,5 +1046,196 @@ mod tests {
             ThermalError::NotRepresentable { field: "ambient" }
         );
         assert!(format!("{}", ThermalError::DtTooLong).contains("dt"));
+    }
+
+    fn two_node_measured() -> ThermalParams {
+        let mut p = disc(1e-3, Cooling::TimeConstant(613.0));
+        p.rotor_share = 0.6;
+        p.lining = Some(LiningNode {
+            mass: 0.4,
+            specific_heat: 1250.0,
+            conductance_to_rotor: 20.0,
+        });
+        p.measured = Some(MeasuredPlausibility {
+            min: -40.0,
+            max: 900.0,
+            max_rate: 2000.0,
+        });
+        p
+    }
+
+    proptest::proptest! {
+        // The widening products give the very bits of the saturating i128 update they
+        // replaced, over every state, power and coefficient the configuration allows.
+        #[test]
+        fn update_same_bits_as_saturating_i128(
+            lining in T_FLOOR_Q32..=T_CEIL_Q32, rotor in T_FLOOR_Q32..=T_CEIL_Q32,
+            amb in proptest::prelude::any::<i32>(), power in proptest::prelude::any::<i64>(),
+            k in proptest::array::uniform4(-(1i64 << 62) + 1..(1i64 << 62)),
+            g in proptest::array::uniform2(0i64..(1i64 << 62)),
+        ) {
+            let cfg = ThermalConfig {
+                k: [[k[0], k[1]], [k[2], k[3]]],
+                gamma: g,
+                two_node: true,
+                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap()
+            };
+            let amb_c = Celsius::from_bits(amb);
+            let p = i128::from(power.unsigned_abs());
+            let a = i128::from(to_q32(amb_c));
+            let theta = [i128::from(lining).saturating_sub(a), i128::from(rotor).saturating_sub(a)];
+            let mut want = [lining, rotor];
+            for ((out, krow), gg) in want.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
+                let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
+                    acc.saturating_add(i128::from(*k).saturating_mul(*t))
+                });
+                let delta = i128::from(*gg).saturating_mul(p).saturating_sub(decay)
+                    .saturating_add(1i128 << 61) >> 62;
+                *out = narrow_q32(i128::from(*out).saturating_add(delta));
+            }
+            let mut s = ThermalState::from_raw(rotor, lining);
+            s.update_with_ambient(&cfg, Watts::from_bits(power), None, Some(amb_c));
+            proptest::prop_assert_eq!(s.raw(), (want[1], want[0]));
+        }
+    }
+
+    #[test]
+    fn raw_round_trip_is_exact() {
+        for p in [
+            disc(1e-3, Cooling::Adiabatic),
+            disc(1e-4, Cooling::TimeConstant(613.0)),
+            disc(1e-2, Cooling::Conductance(6.0)),
+            two_node_measured(),
+        ] {
+            let cfg = ThermalConfig::new(&p).unwrap();
+            let raw = cfg.to_raw();
+            assert_eq!(ThermalConfig::from_raw(raw), Ok(cfg), "{p:?}");
+            // Same coefficients, so the same bits out of the update.
+            let back = ThermalConfig::from_raw(raw).unwrap();
+            let (mut a, mut b) = (ThermalState::new(&cfg), ThermalState::new(&back));
+            for _ in 0..100 {
+                assert_eq!(
+                    a.update(&cfg, Watts::from_num(50_000), None),
+                    b.update(&back, Watts::from_num(50_000), None)
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn raw_in_const_context() {
+        const RAW: ThermalRaw = ThermalRaw {
+            dt: Seconds::lit("0.001"),
+            k_q62: [[0, 0], [0, 1 << 40]],
+            gamma_q62: [0, 1 << 48],
+            two_node: false,
+            ambient: Celsius::lit("20"),
+            fade_warning: Celsius::lit("300"),
+            over_temperature: Celsius::lit("450"),
+            flag_hysteresis: Celsius::lit("10"),
+            measured: None,
+        };
+        const CFG: ThermalConfig = match ThermalConfig::from_raw(RAW) {
+            Ok(c) => c,
+            Err(_) => panic!("bad thermal config"),
+        };
+        assert_eq!(CFG.to_raw(), RAW);
+    }
+
+    #[test]
+    fn raw_rejects_what_the_model_cannot_produce() {
+        let one = ThermalConfig::new(&disc(1e-3, Cooling::TimeConstant(613.0)))
+            .unwrap()
+            .to_raw();
+        let two = ThermalConfig::new(&two_node_measured()).unwrap().to_raw();
+        let e = |r: ThermalRaw| ThermalConfig::from_raw(r).unwrap_err();
+        let coefficient = |field| ThermalError::Coefficient { field };
+        assert_eq!(
+            e(ThermalRaw {
+                dt: Seconds::ZERO,
+                ..one
+            }),
+            ThermalError::NotPositive { field: "dt" }
+        );
+        assert_eq!(
+            e(ThermalRaw {
+                dt: Seconds::lit("1.5"),
+                ..one
+            }),
+            ThermalError::DtTooLong
+        );
+        for (i, j, v) in [
+            (1, 1, -1),
+            (1, 1, 1 << 62),
+            (0, 0, -1),
+            (0, 1, 1),
+            (1, 0, -(1 << 62)),
+        ] {
+            let mut r = two;
+            r.k_q62[i][j] = v;
+            assert_eq!(e(r), coefficient("k"), "k[{i}][{j}] = {v}");
+        }
+        let mut r = two;
+        r.gamma_q62[0] = -1;
+        assert_eq!(e(r), coefficient("gamma"));
+        let mut r = one;
+        r.gamma_q62[1] = 1 << 62;
+        assert_eq!(
+            e(r),
+            ThermalError::HeatCapacityTooSmall {
+                field: "rotor_mass"
+            }
+        );
+        let mut r = two;
+        r.gamma_q62[0] = 1 << 62;
+        assert_eq!(
+            e(r),
+            ThermalError::HeatCapacityTooSmall {
+                field: "lining.mass"
+            }
+        );
+        // Lining coefficients on a single-node model.
+        let mut r = one;
+        r.gamma_q62[0] = 5;
+        assert_eq!(e(r), coefficient("lining (single-node model)"));
+        let r = ThermalRaw {
+            two_node: false,
+            ..two
+        };
+        assert_eq!(e(r), coefficient("lining (single-node model)"));
+        // Decay below 2⁻⁴⁰ per sample, but not adiabatic.
+        let mut r = one;
+        r.k_q62[1][1] = K_MIN_Q62 - 1;
+        assert_eq!(e(r), ThermalError::TimeConstantTooLongForDt);
+        r.k_q62[1][1] = 0;
+        assert!(ThermalConfig::from_raw(r).is_ok(), "adiabatic");
+        assert_eq!(
+            e(ThermalRaw {
+                over_temperature: one.fade_warning,
+                ..one
+            }),
+            ThermalError::FlagThresholds
+        );
+        assert_eq!(
+            e(ThermalRaw {
+                flag_hysteresis: Celsius::from_bits(-1),
+                ..one
+            }),
+            ThermalError::FlagThresholds
+        );
+        let pl = two.measured.unwrap();
+        for bad in [
+            Plausibility { max: pl.min, ..pl },
+            Plausibility { max_step: 0, ..pl },
+        ] {
+            assert_eq!(
+                e(ThermalRaw {
+                    measured: Some(bad),
+                    ..two
+                }),
+                ThermalError::MeasuredLimits
+            );
+        }
+        assert!(coefficient("k").to_string().contains("k: raw coefficient"));
     }
 }

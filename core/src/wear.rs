@@ -44,6 +44,12 @@ use crate::units::{Joules, Metres, Ratio, Seconds, Watts};
 pub const WEAR_RATE_UNIT: f64 = 1e-13;
 
 const ONE_Q62: u128 = 1 << 62;
+const ONE_Q62_U64: u64 = 1 << 62;
+
+/// `a · b` in Q62 for `a, b ≤ 1` (2⁶²): the product, truncated, is at most 1 again.
+fn mul_q62(a: u64, b: u64) -> u64 {
+    u64::try_from((u128::from(a) * u128::from(b)) >> 62).unwrap_or(u64::MAX)
+}
 /// Energy the state can hold: the top of [`Joules`], in Q64.
 const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
 /// A single sample's energy is capped at 2³² J (4.3 GJ) before the wear product.
@@ -111,6 +117,39 @@ impl fmt::Display for WearError {
 }
 
 impl core::error::Error for WearError {}
+
+/// Largest E₀ accepted, 10¹³ J, in Q48 J.
+const E0_MAX_Q48: u128 = 10_000_000_000_000 << 48;
+/// `bedding_recip · e0_q48` is 2¹²⁷ to within `e0_q48 + bedding_recip` (the rounding of each
+/// factor to an integer) plus this: a relative 2⁻⁵⁰, as the f64 quotient behind the reciprocal
+/// carries 53 bits.
+const RECIP_SLACK: u128 = 1 << 77;
+/// Largest thickness-rate shift: a rate of 10⁻³⁰ m/J has its binary exponent at −99.
+const WEAR_SHIFT_MAX: u32 = 83;
+
+/// A [`WearConfig`] as its integer coefficients, for configurations computed once (on the host
+/// or in a build script) and kept in flash as `const` items.
+///
+/// [`WearConfig::to_raw`] gives them; [`WearConfig::from_raw`] checks them and builds the
+/// configuration in a `const` context.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct WearRaw {
+    /// Sample period in Q63 s, (0, 2⁶³] (at most 1 s).
+    pub dt_q63: u64,
+    /// Bedding energy E₀ in Q48 J, 1 J ..= 10¹³ J.
+    pub e0_q48: u128,
+    /// round(2⁷⁹ / E₀) with E₀ in J, so that `e0_q48 · bedding_recip` ≈ 2¹²⁷.
+    pub bedding_recip: u128,
+    /// Thickness rate k/A = `wear_mant · 2^−(wear_shift + 48)` m/J: the mantissa, 0 (no wear)
+    /// or 2³¹ ..= 2³².
+    pub wear_mant: u64,
+    /// The thickness rate's shift, 0 ..= 83 (0 when `wear_mant` is 0).
+    pub wear_shift: u32,
+    /// Thickness of a new lining, m.
+    pub initial_thickness: Metres,
+    /// Worn-out limit, m, ≥ 0 and below `initial_thickness`.
+    pub minimum_thickness: Metres,
+}
 
 /// Validated wear configuration. Immutable.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -183,7 +222,7 @@ impl WearConfig {
             libm::round(e0 * 281_474_976_710_656.0) as u128,
             libm::round(libm::ldexp(1.0, 79) / e0) as u128,
         );
-        Ok(Self {
+        Self::from_raw(WearRaw {
             dt_q63,
             e0_q48,
             bedding_recip,
@@ -192,6 +231,82 @@ impl WearConfig {
             initial_thickness,
             minimum_thickness,
         })
+    }
+
+    /// Check integer coefficients (from [`WearConfig::to_raw`], usually emitted by a build
+    /// script) and build the configuration; `const`, so a firmware keeps it in flash and a bad
+    /// value fails the build.
+    ///
+    /// # Errors
+    /// [`WearError::DtOutOfRange`], [`WearError::BeddingEnergyOutOfRange`] (E₀ outside
+    /// 1 J ..= 10¹³ J, or a reciprocal that does not belong to it),
+    /// [`WearError::WearRateOutOfRange`] (mantissa or shift outside their ranges),
+    /// [`WearError::ThicknessLimits`].
+    ///
+    /// ```
+    /// use clampwise_core::wear::{WearConfig, WearParams};
+    /// let built = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
+    ///     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01,
+    ///     minimum_thickness: 0.002 })?;
+    /// let raw = built.to_raw();
+    /// assert_eq!(WearConfig::from_raw(raw), Ok(built));
+    /// let mut bad = raw;
+    /// bad.bedding_recip *= 2; // belongs to E₀/2, not E₀
+    /// assert!(WearConfig::from_raw(bad).is_err());
+    /// # Ok::<(), clampwise_core::wear::WearError>(())
+    /// ```
+    pub const fn from_raw(raw: WearRaw) -> Result<Self, WearError> {
+        if raw.dt_q63 == 0 || raw.dt_q63 > 1 << 63 {
+            return Err(WearError::DtOutOfRange);
+        }
+        if raw.e0_q48 < 1 << 48 || raw.e0_q48 > E0_MAX_Q48 {
+            return Err(WearError::BeddingEnergyOutOfRange);
+        }
+        let recip_ok = match raw.e0_q48.checked_mul(raw.bedding_recip) {
+            Some(p) => p.abs_diff(1 << 127) <= RECIP_SLACK + raw.e0_q48 + raw.bedding_recip,
+            None => false,
+        };
+        if !recip_ok {
+            return Err(WearError::BeddingEnergyOutOfRange);
+        }
+        let rate_ok = if raw.wear_mant == 0 {
+            raw.wear_shift == 0
+        } else {
+            raw.wear_mant >= 1 << 31 && raw.wear_mant <= 1 << 32 && raw.wear_shift <= WEAR_SHIFT_MAX
+        };
+        if !rate_ok {
+            return Err(WearError::WearRateOutOfRange);
+        }
+        let (min, initial) = (
+            raw.minimum_thickness.to_bits(),
+            raw.initial_thickness.to_bits(),
+        );
+        if min < 0 || min >= initial {
+            return Err(WearError::ThicknessLimits);
+        }
+        Ok(Self {
+            dt_q63: raw.dt_q63,
+            e0_q48: raw.e0_q48,
+            bedding_recip: raw.bedding_recip,
+            wear_mant: raw.wear_mant,
+            wear_shift: raw.wear_shift,
+            initial_thickness: raw.initial_thickness,
+            minimum_thickness: raw.minimum_thickness,
+        })
+    }
+
+    /// The integer coefficients, for [`WearConfig::from_raw`] (e.g. to emit them as Rust
+    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    pub const fn to_raw(&self) -> WearRaw {
+        WearRaw {
+            dt_q63: self.dt_q63,
+            e0_q48: self.e0_q48,
+            bedding_recip: self.bedding_recip,
+            wear_mant: self.wear_mant,
+            wear_shift: self.wear_shift,
+            initial_thickness: self.initial_thickness,
+            minimum_thickness: self.minimum_thickness,
+        }
     }
 
     /// Thickness of a new lining (m).
@@ -211,10 +326,12 @@ impl WearConfig {
         self.minimum_thickness
     }
 
-    /// Thickness loss for an energy in Q64 J: k·E/A, truncated to Q96 m.
+    /// Thickness loss for an energy in Q48 J: k·E/A, truncated to Q96 m.
     fn loss_q96(&self, energy_q48: u128) -> u128 {
-        energy_q48
-            .saturating_mul(u128::from(self.wear_mant))
+        // Callers pass at most the state's energy (below 2⁹⁶ in Q48) and the mantissa is at
+        // most 2³², so the product is below 2¹²⁸: a widening multiply of the 96-bit energy by
+        // the 64-bit mantissa, exact.
+        (energy_q48.min(ENERGY_MAX_Q64 >> 16) * u128::from(self.wear_mant))
             .checked_shr(self.wear_shift)
             .unwrap_or(0)
     }
@@ -371,21 +488,23 @@ impl WearState {
         self.energy_q64 = self.energy_q64.saturating_add(step_q64).min(ENERGY_MAX_Q64);
         let step_q48 = (step_q64 >> 16).min(STEP_MAX_Q48);
 
-        // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷.
-        let x = ((step_q48.min(cfg.e0_q48)).saturating_mul(cfg.bedding_recip) >> 65).min(ONE_Q62);
-        let x2 = (x * x) >> 62;
-        let x3 = (x2 * x) >> 62;
-        let x4 = (x3 * x) >> 62;
+        // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷ before the shift. From here
+        // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
+        // products (far less code on a 32-bit core than u128 × u128; the same values).
+        // The product is at most e0_q48 · bedding_recip, which `WearConfig::from_raw` holds
+        // to 2¹²⁷ within 2⁷⁸: exact in u128.
+        let x = u64::try_from((step_q48.min(cfg.e0_q48) * cfg.bedding_recip) >> 65)
+            .unwrap_or(u64::MAX)
+            .min(ONE_Q62_U64);
+        let x2 = mul_q62(x, x);
+        let x3 = mul_q62(x2, x);
+        let x4 = mul_q62(x3, x);
         // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
-        // x ≤ 2⁶², so x³ and x⁴ (Q62) are ≤ 2⁶² as well: divide them in u64, which gives the
-        // same quotient as the u128 division (a library call) at a fraction of its cost.
-        let div =
-            |v: u128, d: u64| u64::try_from(v).map_or(v / u128::from(d), |s| u128::from(s / d));
-        let g = (ONE_Q62 + x2 / 2 + div(x4, 24))
-            .saturating_sub(x + div(x3, 6))
-            .min(ONE_Q62);
-        let u = (u128::from(self.unbedded_q62) * g) >> 62;
-        self.unbedded_q62 = u64::try_from(u).unwrap_or(0).min(self.unbedded_q62);
+        // Each term is at most 1 in Q62, so the sums stay below 2⁶³.
+        let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24)
+            .saturating_sub(x + x3 / 6)
+            .min(ONE_Q62_U64);
+        self.unbedded_q62 = mul_q62(self.unbedded_q62, g).min(self.unbedded_q62);
 
         self.loss_q96 = self.loss_q96.saturating_add(cfg.loss_q96(step_q48));
     }
@@ -516,7 +635,139 @@ mod tests {
         );
     }
 
+    #[test]
+    fn raw_round_trip_is_exact() {
+        let b = demo();
+        for p in [
+            b,
+            WearParams {
+                specific_wear_rate: 0.0,
+                ..b
+            },
+            WearParams {
+                dt: 1.0,
+                bedding_energy: 1.0,
+                specific_wear_rate: 1e-5 * b.lining_area,
+                ..b
+            },
+            WearParams {
+                bedding_energy: 1e13,
+                specific_wear_rate: 1e-30 * b.lining_area,
+                ..b
+            },
+        ] {
+            let cfg = WearConfig::new(&p).unwrap();
+            let raw = cfg.to_raw();
+            assert_eq!(WearConfig::from_raw(raw), Ok(cfg), "{p:?}");
+        }
+    }
+
+    #[test]
+    fn raw_in_const_context() {
+        const RAW: WearRaw = WearRaw {
+            dt_q63: 1 << 53,        // 2⁻¹⁰ s
+            e0_q48: 1 << 68,        // 2²⁰ J
+            bedding_recip: 1 << 59, // 2⁷⁹ / 2²⁰
+            wear_mant: 1 << 31,     // 0.5 · 2^−(40 + 48) m/J
+            wear_shift: 40,
+            initial_thickness: Metres::lit("0.01"),
+            minimum_thickness: Metres::lit("0.002"),
+        };
+        const CFG: WearConfig = match WearConfig::from_raw(RAW) {
+            Ok(c) => c,
+            Err(_) => panic!("bad wear config"),
+        };
+        assert_eq!(CFG.to_raw(), RAW);
+        assert_eq!(CFG.dt(), Seconds::from_num(1.0 / 1024.0));
+    }
+
+    #[test]
+    fn raw_rejects_what_new_would_not_build() {
+        let raw = WearConfig::new(&demo()).unwrap().to_raw();
+        let e = |r: WearRaw| WearConfig::from_raw(r).unwrap_err();
+        assert_eq!(e(WearRaw { dt_q63: 0, ..raw }), WearError::DtOutOfRange);
+        assert_eq!(
+            e(WearRaw {
+                dt_q63: (1 << 63) + 1,
+                ..raw
+            }),
+            WearError::DtOutOfRange
+        );
+        assert!(
+            WearConfig::from_raw(WearRaw {
+                dt_q63: 1 << 63,
+                ..raw
+            })
+            .is_ok(),
+            "1 s"
+        );
+        for e0_q48 in [(1 << 48) - 1, E0_MAX_Q48 + 1] {
+            assert_eq!(
+                e(WearRaw { e0_q48, ..raw }),
+                WearError::BeddingEnergyOutOfRange
+            );
+        }
+        for bedding_recip in [0, raw.bedding_recip + raw.bedding_recip / 1000, u128::MAX] {
+            assert_eq!(
+                e(WearRaw {
+                    bedding_recip,
+                    ..raw
+                }),
+                WearError::BeddingEnergyOutOfRange,
+                "{bedding_recip}"
+            );
+        }
+        for (wear_mant, wear_shift) in [
+            (0, 1),
+            ((1 << 31) - 1, 10),
+            ((1 << 32) + 1, 10),
+            (1 << 31, 84),
+        ] {
+            assert_eq!(
+                e(WearRaw {
+                    wear_mant,
+                    wear_shift,
+                    ..raw
+                }),
+                WearError::WearRateOutOfRange,
+                "{wear_mant} >> {wear_shift}"
+            );
+        }
+        assert_eq!(
+            e(WearRaw {
+                minimum_thickness: raw.initial_thickness,
+                ..raw
+            }),
+            WearError::ThicknessLimits
+        );
+        assert_eq!(
+            e(WearRaw {
+                minimum_thickness: Metres::from_bits(-1),
+                ..raw
+            }),
+            WearError::ThicknessLimits
+        );
+    }
+
     proptest! {
+        // The u64 polynomial gives the very bits of the u128 one it replaced.
+        #[test]
+        fn bedding_step_same_bits_as_u128(x in 0u64..=(1 << 62), unbedded in 0u64..=(1 << 62)) {
+            let wide = {
+                let x = u128::from(x);
+                let x2 = (x * x) >> 62;
+                let x3 = (x2 * x) >> 62;
+                let x4 = (x3 * x) >> 62;
+                let g = (ONE_Q62 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62);
+                u64::try_from((u128::from(unbedded) * g) >> 62).unwrap_or(0).min(unbedded)
+            };
+            let x2 = mul_q62(x, x);
+            let x3 = mul_q62(x2, x);
+            let x4 = mul_q62(x3, x);
+            let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62_U64);
+            prop_assert_eq!(mul_q62(unbedded, g).min(unbedded), wide);
+        }
+
         // Bedding never decreases, never exceeds 1, and follows 1 − exp(−E/E₀) (the solution
         // of db = (1 − b)·dE/E₀) for any split of the energy into samples.
         #[test]

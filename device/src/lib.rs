@@ -8,6 +8,7 @@
 //! | [`column_units`] | units a trace column may carry, and their conversion |
 //! | [`build_core`] | config → the core's fixed-point tables, with the core's geometry |
 //! | [`emit`] | the tables as generated Rust source for a firmware, with a CRC-32 |
+//! | [`emit_device`] | a whole core `DeviceConfig` as Rust source of `const` items, with its checksum |
 //!
 //! It is deliberately light (the core, `fixed`, `serde`, `toml`, `crc`) so that a firmware's
 //! `build.rs` can build-depend on it.
@@ -36,6 +37,7 @@ pub mod build_core;
 pub mod column_units;
 pub mod config;
 pub mod emit;
+pub mod emit_device;
 
 /// The documented example config of the built-in demo device (an invented hoist brake).
 pub const DEMO_CONFIG: &str = include_str!("../../sim/configs/demo-hoist-brake.toml");

@@ -3,7 +3,9 @@
 //! Each sample the loop
 //! 1. reads 1 to 4 bridge-ADC channels through [`BridgeAdc`] (an [`SpiDevice`]),
 //! 2. reads the shaft speeds through [`ShaftSpeeds`] (embedded-hal has no trait for encoders or
-//!    tachometers, so the application names the one it needs),
+//!    tachometers, so the application names the one it needs), and whatever else the controller
+//!    has this sample (its actuator command, temperatures, a reference torque) through
+//!    [`AuxiliaryInputs`],
 //! 3. hands the readings to a [`Processor`] — the single place the per-sample estimation runs,
 //! 4. acts on its result: the fault output (an [`OutputPin`]) on lost clamp force, the warning
 //!    output (an [`OutputPin`]) on fade,
@@ -23,7 +25,8 @@
 
 use core::fmt;
 
-use clampwise_core::units::RadPerSec;
+use clampwise_core::sensor::ActuatorCommand;
+use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::OutputPin;
 use embedded_hal::spi::SpiDevice;
@@ -51,6 +54,38 @@ pub trait ShaftSpeeds {
     fn read(&mut self) -> Result<Speeds, Self::Error>;
 }
 
+/// Inputs besides clamp force and shaft speeds that a controller may have each sample; each is
+/// `None` when it does not.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Auxiliary {
+    /// The controller's own command to the actuator (its control output: motor current, line
+    /// pressure …, in the command's unit), for the sensor diagnostics and the force fallback.
+    pub actuator_command: Option<ActuatorCommand>,
+    /// A measured lining (or disc) temperature, °C.
+    pub lining_temperature: Option<Celsius>,
+    /// A measured ambient (cooling air or oil) temperature, °C.
+    pub ambient_temperature: Option<Celsius>,
+    /// A reference friction torque (a bench torque flange), N·m.
+    pub reference_torque: Option<NewtonMetres>,
+}
+
+/// A source of the [`Auxiliary`] inputs (the board's command variable, temperature inputs,
+/// torque flange). Reading cannot fail: an input that is not there this sample is `None`.
+pub trait AuxiliaryInputs {
+    /// The inputs at this sample.
+    fn read(&mut self) -> Auxiliary;
+}
+
+/// For a board that has none of the [`Auxiliary`] inputs.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct NoAuxiliary;
+
+impl AuxiliaryInputs for NoAuxiliary {
+    fn read(&mut self) -> Auxiliary {
+        Auxiliary::default()
+    }
+}
+
 /// One channel's reading for the processing step.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Reading {
@@ -69,6 +104,8 @@ pub struct Inputs<const CH: usize> {
     pub readings: [Reading; CH],
     /// Shaft speeds, `None` when they could not be read.
     pub speeds: Option<Speeds>,
+    /// Actuator command, temperatures, reference torque, where the controller has them.
+    pub auxiliary: Auxiliary,
 }
 
 /// The result of one processing step, as far as the loop needs it.
@@ -214,7 +251,7 @@ impl<const CH: usize> LoopConfig<CH> {
 /// The hardware the loop drives. A board fills it with its HAL's types; the QEMU build with the
 /// stub's (see [`crate::stub`]).
 #[derive(Debug)]
-pub struct Ports<SPI, FAULT, WARN, DELAY, SPEEDS> {
+pub struct Ports<SPI, FAULT, WARN, DELAY, SPEEDS, AUX> {
     /// The bridge ADC's SPI device (owns its chip select).
     pub adc: SPI,
     /// Fault output (see [`FaultPolarity`]).
@@ -225,6 +262,8 @@ pub struct Ports<SPI, FAULT, WARN, DELAY, SPEEDS> {
     pub delay: DELAY,
     /// Shaft speed inputs.
     pub speeds: SPEEDS,
+    /// Actuator command, temperatures, reference torque ([`NoAuxiliary`] when there are none).
+    pub auxiliary: AUX,
 }
 
 /// Counters over a run; all saturate.
@@ -284,12 +323,13 @@ pub struct Tick<E> {
 
 /// The fixed-rate loop. See the [module docs](self).
 #[derive(Debug)]
-pub struct ControlLoop<SPI, FAULT, WARN, DELAY, SPEEDS, P, const CH: usize> {
+pub struct ControlLoop<SPI, FAULT, WARN, DELAY, SPEEDS, AUX, P, const CH: usize> {
     adc: BridgeAdc<SPI>,
     fault: FAULT,
     warning: WARN,
     delay: DELAY,
     speeds: SPEEDS,
+    auxiliary: AUX,
     processor: P,
     config: LoopConfig<CH>,
     fault_latched: bool,
@@ -302,19 +342,20 @@ fn bump(counter: &mut u32) {
     *counter = counter.saturating_add(1);
 }
 
-impl<SPI, FAULT, WARN, DELAY, SPEEDS, P, const CH: usize>
-    ControlLoop<SPI, FAULT, WARN, DELAY, SPEEDS, P, CH>
+impl<SPI, FAULT, WARN, DELAY, SPEEDS, AUX, P, const CH: usize>
+    ControlLoop<SPI, FAULT, WARN, DELAY, SPEEDS, AUX, P, CH>
 where
     SPI: SpiDevice,
     FAULT: OutputPin,
     WARN: OutputPin,
     DELAY: DelayNs,
     SPEEDS: ShaftSpeeds,
+    AUX: AuxiliaryInputs,
     P: Processor<CH>,
 {
     /// Assemble the loop. No bus traffic until the first [`tick`](Self::tick).
     pub fn new(
-        ports: Ports<SPI, FAULT, WARN, DELAY, SPEEDS>,
+        ports: Ports<SPI, FAULT, WARN, DELAY, SPEEDS, AUX>,
         processor: P,
         config: LoopConfig<CH>,
     ) -> Self {
@@ -324,6 +365,7 @@ where
             warning: ports.warning,
             delay: ports.delay,
             speeds: ports.speeds,
+            auxiliary: ports.auxiliary,
             processor,
             config,
             fault_latched: true,
@@ -378,6 +420,7 @@ where
             sample: self.sample,
             readings,
             speeds,
+            auxiliary: self.auxiliary.read(),
         };
         let estimate = self.processor.step(&inputs);
 
@@ -459,7 +502,7 @@ where
     }
 
     /// Take the loop apart: the ports and the processor back.
-    pub fn release(self) -> (Ports<SPI, FAULT, WARN, DELAY, SPEEDS>, P) {
+    pub fn release(self) -> (Ports<SPI, FAULT, WARN, DELAY, SPEEDS, AUX>, P) {
         (
             Ports {
                 adc: self.adc.release(),
@@ -467,6 +510,7 @@ where
                 warning: self.warning,
                 delay: self.delay,
                 speeds: self.speeds,
+                auxiliary: self.auxiliary,
             },
             self.processor,
         )
@@ -589,6 +633,7 @@ mod tests {
             warning: PinMock::new(&warning_tx),
             delay: CheckedDelay::new(&delay_tx),
             speeds: FixedSpeeds,
+            auxiliary: NoAuxiliary,
         };
         let channels = [Channel::new(2).unwrap(), Channel::new(0).unwrap()];
         let config = LoopConfig::new(channels, 250_000, 2, FaultPolarity::ActiveLow).unwrap();
@@ -634,6 +679,7 @@ mod tests {
             ]),
             delay: CheckedDelay::new(&[DelayTx::delay_ns(1000)]),
             speeds: FixedSpeeds,
+            auxiliary: NoAuxiliary,
         };
         let config = LoopConfig::new(
             [Channel::new(1).unwrap()],

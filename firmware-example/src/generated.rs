@@ -1,104 +1,102 @@
-//! Constants generated at build time by `build.rs` from `config/demo.toml` (or the file named by
-//! `CLAMPWISE_FW_CONFIG`) and the trace it names: the configuration, the effective-radius table,
-//! their checksum and the recorded trace. All are `const` or `static`, so they live in flash.
+//! Constants generated at build time by `build.rs` from the simulator's device TOML (the file
+//! named by `CLAMPWISE_FW_CONFIG`, default `sim/configs/demo-hoist-brake.toml`) and a trace in
+//! the simulator's CSV format (`CLAMPWISE_FW_TRACE`, default `firmware-example/trace/demo.csv`).
 //!
-//! [`GENERATED_CRC32`] is CRC-32/ISO-HDLC over the little-endian 32-bit raw bits of, in order:
-//! the force breakpoints, the bedding breakpoints, the radius values row by row, the gains, the
-//! offsets, [`BEDDING`], [`FAULT_RELEASE_SAMPLES`] and [`SAMPLE_PERIOD_NS`]. [`checksum`]
-//! recomputes it from the constants as stored, so a table that does not match its generator
-//! (or flash that changed) is caught at start-up.
+//! * The device configuration, emitted by `clampwise_device::emit_device` as one `const`
+//!   expression over raw fixed-point bits (every constructor is the core's `const fn`, so a
+//!   configuration the core rejects fails the build): [`DEVICE`], its type [`Device`], its
+//!   sizes, and [`DEVICE_CHECKSUM`], the core's `DeviceConfig::checksum` computed on the host
+//!   from the TOML file. [`DEVICE_CONFIG`] is its one copy in flash.
+//! * The recorded trace the HAL stub replays, [`TRACE`], and its name.
+//!
+//! [`checksum`] recomputes the digest from the configuration as stored, so a configuration that
+//! does not match its generator (or flash that changed) is caught at start-up; equal digests on
+//! host and target mean both run the same numbers.
 //!
 //! ```
-//! use clampwise_firmware_example::generated::{checksum, GENERATED_CRC32};
-//! assert_eq!(checksum(), GENERATED_CRC32);
+//! use clampwise_firmware_example::generated::{checksum, DEVICE_CHECKSUM};
+//! assert_eq!(checksum(), DEVICE_CHECKSUM);
 //! ```
-#![allow(clippy::unreadable_literal)]
 
-use clampwise_core::table::Table2;
-use clampwise_core::units::{Metres, Newtons, RadPerSec, Ratio};
+use clampwise_core::sensor::ActuatorCommand;
+use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 
-use crate::processor::{Gain, RadiusTable};
+use crate::app::Auxiliary;
 use crate::stub::{TraceCell, TraceSample};
 
-include!(concat!(env!("OUT_DIR"), "/generated.rs"));
+include!(concat!(env!("OUT_DIR"), "/device.rs"));
+include!(concat!(env!("OUT_DIR"), "/trace.rs"));
 
-const CRC32: crc::Crc<u32, crc::NoTable> =
-    crc::Crc::<u32, crc::NoTable>::new(&crc::CRC_32_ISO_HDLC);
+/// The device configuration, kept once in flash; the estimator borrows it.
+pub static DEVICE_CONFIG: Device = DEVICE;
 
-/// CRC-32 of the generated configuration and table as stored (see the module docs).
+/// Control period of the fixed-rate loop in nanoseconds: the configuration's sample period
+/// (Q32 s) rounded to the nearest nanosecond.
+pub const SAMPLE_PERIOD_NS: u32 = {
+    let bits = DEVICE.sample_period().to_bits() as i128;
+    let ns = (bits * 1_000_000_000 + (1 << 31)) >> 32;
+    // The core accepts periods in (0, 1] s, so 1 ..= 10⁹ ns, inside u32.
+    assert!(ns >= 1 && ns <= 1_000_000_000);
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    let ns = ns as u32;
+    ns
+};
+
+/// Digest of the device configuration as stored (the core's `DeviceConfig::checksum`).
 pub fn checksum() -> u32 {
-    let mut digest = CRC32.digest();
-    let mut put = |bits: i32| digest.update(&bits.to_le_bytes());
-    RADIUS_TABLE
-        .x_breakpoints()
-        .iter()
-        .for_each(|v| put(v.to_bits()));
-    RADIUS_TABLE
-        .y_breakpoints()
-        .iter()
-        .for_each(|v| put(v.to_bits()));
-    RADIUS_TABLE
-        .values()
-        .iter()
-        .flatten()
-        .for_each(|v| put(v.to_bits()));
-    GAINS.iter().for_each(|v| put(v.to_bits()));
-    OFFSETS_COUNTS.iter().for_each(|&v| put(v));
-    put(BEDDING.to_bits());
-    put(i32::from(FAULT_RELEASE_SAMPLES));
-    put(i32::from_le_bytes(SAMPLE_PERIOD_NS.to_le_bytes()));
-    digest.finalize()
+    DEVICE_CONFIG.checksum()
 }
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    #![allow(
+        clippy::unwrap_used,
+        clippy::expect_used,
+        clippy::indexing_slicing,
+        clippy::float_cmp
+    )]
     use super::*;
 
     #[test]
-    fn crc32_matches_catalogue_check_value() {
-        // [pub] Greg Cook, "Catalogue of parametrised CRC algorithms": CRC-32/ISO-HDLC check
-        // ("123456789") = 0xCBF43926.
-        assert_eq!(CRC32.checksum(b"123456789"), 0xCBF4_3926);
+    fn stored_config_matches_its_checksum() {
+        assert_eq!(checksum(), DEVICE_CHECKSUM);
     }
 
     #[test]
-    fn stored_constants_match_their_checksum() {
-        assert_eq!(checksum(), GENERATED_CRC32);
-    }
-
-    #[test]
-    fn table_holds_the_annulus_radii() {
-        // [pub] Shigley's MED ch. 16, annulus: uniform pressure (bedding 0)
-        // r_e = (2/3)(Ro³−Ri³)/(Ro²−Ri²), uniform wear (bedding 1) r_e = (Ro+Ri)/2. The radii
-        // here are the stored (I8F24-rounded) ones, hence 1.5 LSB rather than ½.
-        let (ro, ri): (f64, f64) = (OUTER_RADIUS.to_num(), INNER_RADIUS.to_num());
-        let up = 2.0 / 3.0 * (ro.powi(3) - ri.powi(3)) / (ro.powi(2) - ri.powi(2));
-        let uw = 0.5 * (ro + ri);
-        let lsb = 1.0 / f64::from(1 << 24);
-        let bedding = RADIUS_TABLE.y_breakpoints();
-        for row in RADIUS_TABLE.values() {
-            for (r, b) in row.iter().zip(bedding) {
-                let b: f64 = b.to_num();
-                let expected = (1.0 - b) * up + b * uw;
-                let r: f64 = r.to_num();
-                assert!(
-                    (r - expected).abs() <= 1.5 * lsb,
-                    "{r} vs {expected} at bedding {b}"
-                );
-            }
-        }
+    fn the_compiled_config_equals_the_one_built_from_the_toml_at_run_time() {
+        // The emitter wrote raw bits; here the same TOML goes through the device crate at run
+        // time and the result must equal the compiled constant in every bit (`PartialEq`).
+        use clampwise_device::build_core::{ChannelDevice, CoreDevice};
+        let loaded =
+            clampwise_device::config::LoadedConfig::load(std::path::Path::new(CONFIG_PATH))
+                .unwrap();
+        let core = CoreDevice::build(&loaded.config).unwrap();
+        let built: &dyn std::any::Any = match &core.device {
+            ChannelDevice::One(d) => d,
+            ChannelDevice::Two(d) => d,
+            ChannelDevice::Three(d) => d,
+            ChannelDevice::Four(d) => d,
+        };
+        let built = built
+            .downcast_ref::<Device>()
+            .expect("the same channel count and table sizes");
+        assert_eq!(DEVICE_CONFIG, *built);
+        assert_eq!(built.checksum(), DEVICE_CHECKSUM);
+        // The start state too.
+        let record = core.initial.record(built);
+        assert_eq!(DEVICE_INITIAL_RECORD, record);
     }
 
     #[test]
     fn trace_has_the_configured_shape() {
         assert!(!TRACE.is_empty());
-        assert_eq!(GAINS.len(), CHANNELS);
         assert!(
             TRACE
                 .iter()
                 .flat_map(|s| s.counts.iter())
                 .any(|c| matches!(c, TraceCell::Counts(_)))
         );
+        let period_s: f64 = DEVICE.sample_period().to_num();
+        assert_eq!(f64::from(SAMPLE_PERIOD_NS), (period_s * 1e9).round());
     }
 }

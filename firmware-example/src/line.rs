@@ -73,6 +73,12 @@ impl Line {
         self.push_int(value);
     }
 
+    /// Append a lone `,`: a field with no value (an estimate that has none, e.g. no torque
+    /// while holding).
+    pub fn empty_field(&mut self) {
+        self.push_bytes(b",");
+    }
+
     /// Append `,name=value`.
     pub fn key_value(&mut self, name: &str, value: i64) {
         self.push_bytes(b",");

@@ -25,30 +25,44 @@
 
 use core::fmt;
 
+use clampwise_core::record::RecordError;
+
 use crate::adc::Channel;
 use crate::app::{
     ControlLoop, FaultPolarity, LoopConfig, LoopConfigError, Ports, Processor, Summary,
 };
 use crate::generated::{
-    self, BEDDING, BEDDING_BREAKPOINTS, CHANNELS, FAULT_RELEASE_SAMPLES, FORCE_BREAKPOINTS, GAINS,
-    GENERATED_CRC32, OFFSETS_COUNTS, RADIUS_TABLE, SAMPLE_PERIOD_NS, TRACE, TRACE_NAME,
+    self, CONFIG_NAME, DEVICE_CHANNELS, DEVICE_CHECKSUM, DEVICE_CONFIG, DEVICE_INITIAL_RECORD,
+    DEVICE_MU_SPEEDS, DEVICE_MU_TEMPERATURES, DEVICE_RADIUS_BEDDINGS, DEVICE_RADIUS_FORCES, Device,
+    SAMPLE_PERIOD_NS, TRACE, TRACE_NAME,
 };
 use crate::line::{Line, LineSink};
-use crate::processor::{ForceRadius, ForceRadiusError};
-use crate::stub::{StubPin, TraceAdc, TraceClock, TraceDelay, TraceSpeeds};
+use crate::processor::EstimatorStep;
+use crate::stub::{StubPin, TraceAdc, TraceAuxiliary, TraceClock, TraceDelay, TraceSpeeds};
 
-/// The interim processing step with this build's configuration and table.
-pub type DemoProcessor = ForceRadius<'static, CHANNELS, FORCE_BREAKPOINTS, BEDDING_BREAKPOINTS>;
+/// The core's estimator on this build's device configuration.
+pub type DemoProcessor = EstimatorStep<
+    'static,
+    DEVICE_CHANNELS,
+    DEVICE_RADIUS_FORCES,
+    DEVICE_RADIUS_BEDDINGS,
+    DEVICE_MU_TEMPERATURES,
+    DEVICE_MU_SPEEDS,
+>;
+
+/// Clean samples (20 ms at 1 kHz) before a latched fault output is released: the
+/// application's policy, not part of the device configuration.
+pub const FAULT_RELEASE_SAMPLES: u16 = 20;
 
 /// Why a replay could not run.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[non_exhaustive]
 pub enum ReplayError {
-    /// The generated constants do not match their checksum.
+    /// The device configuration in flash does not match the checksum the host computed.
     Checksum {
-        /// CRC-32 recomputed from the constants in flash.
+        /// CRC-32 recomputed from the configuration in flash.
         computed: u32,
-        /// CRC-32 the build script computed.
+        /// CRC-32 the build script computed from the TOML file.
         expected: u32,
     },
     /// The loop configuration was rejected.
@@ -62,7 +76,7 @@ impl fmt::Display for ReplayError {
         match self {
             Self::Checksum { computed, expected } => write!(
                 f,
-                "generated tables: checksum 0x{computed:08x} does not match 0x{expected:08x}"
+                "device configuration: checksum 0x{computed:08x} does not match 0x{expected:08x}"
             ),
             Self::Config(e) => write!(f, "loop configuration: {e}"),
             Self::TraceTooLong => write!(f, "trace: more samples than a u32 counts"),
@@ -72,13 +86,18 @@ impl fmt::Display for ReplayError {
 
 impl core::error::Error for ReplayError {}
 
-/// The interim processing step built from the generated configuration.
+/// The estimator on the device configuration kept in flash, started where the config says
+/// (a new lining at ambient, or the generated initial state record).
 ///
 /// # Errors
-/// When the generated gains, offsets or bedding are out of range (the build script checks them
-/// too, so this only fires on a generator bug).
-pub fn demo_processor() -> Result<DemoProcessor, ForceRadiusError> {
-    ForceRadius::new(GAINS, OFFSETS_COUNTS, BEDDING, &RADIUS_TABLE)
+/// The core's [`RecordError`] when the initial state record in flash is rejected (the build
+/// script checked it, so only changed flash gets here).
+pub fn demo_processor() -> Result<DemoProcessor, RecordError> {
+    // Opaque to the optimiser: the step is compiled for any configuration of this type, not
+    // folded around the demo's values, so the link-time panic check covers every branch of it
+    // (adaptation, fallback, temperature compensation …), not only those the demo uses.
+    let config: &'static Device = core::hint::black_box(&DEVICE_CONFIG);
+    EstimatorStep::resume(config, DEVICE_INITIAL_RECORD.as_ref().map(|r| &r[..]))
 }
 
 /// Channels `0..CH` in order, or `None` for more than the ADC has.
@@ -96,21 +115,22 @@ fn first_channels<const CH: usize>() -> Option<[Channel; CH]> {
 /// [`ReplayError`] before the first sample; once running, faults are counted, not returned.
 pub fn replay<P, S>(processor: P, sink: &mut S) -> Result<Summary, ReplayError>
 where
-    P: Processor<CHANNELS>,
+    P: Processor<DEVICE_CHANNELS>,
     S: LineSink,
 {
     let computed = generated::checksum();
-    if computed != GENERATED_CRC32 {
+    if computed != DEVICE_CHECKSUM {
         return Err(ReplayError::Checksum {
             computed,
-            expected: GENERATED_CRC32,
+            expected: DEVICE_CHECKSUM,
         });
     }
     let samples = u32::try_from(TRACE.len()).map_err(|_| ReplayError::TraceTooLong)?;
-    let channels =
-        first_channels::<CHANNELS>().ok_or(ReplayError::Config(LoopConfigError::ChannelCount {
-            count: CHANNELS,
-        }))?;
+    let channels = first_channels::<DEVICE_CHANNELS>().ok_or(ReplayError::Config(
+        LoopConfigError::ChannelCount {
+            count: DEVICE_CHANNELS,
+        },
+    ))?;
     let config = LoopConfig::new(
         channels,
         SAMPLE_PERIOD_NS,
@@ -125,12 +145,17 @@ where
     );
     sink.emit(line.as_bytes());
     let mut line = Line::new();
-    line.push_str("# clampwise-fw,trace=");
+    line.push_str("# clampwise-fw,config=");
+    line.push_str(CONFIG_NAME);
+    line.push_str(",trace=");
     line.push_str(TRACE_NAME);
     line.key_value("samples", i64::from(samples));
-    line.key_value("channels", i64::try_from(CHANNELS).unwrap_or(i64::MAX));
+    line.key_value(
+        "channels",
+        i64::try_from(DEVICE_CHANNELS).unwrap_or(i64::MAX),
+    );
     line.key_value("period_ns", i64::from(SAMPLE_PERIOD_NS));
-    line.key_hex32("generated_crc32", GENERATED_CRC32);
+    line.key_hex32("device_crc32", DEVICE_CHECKSUM);
     sink.emit(line.as_bytes());
 
     let clock = TraceClock::new(SAMPLE_PERIOD_NS);
@@ -140,6 +165,7 @@ where
         warning: StubPin::new(),
         delay: TraceDelay::new(&clock),
         speeds: TraceSpeeds::new(&clock, &TRACE),
+        auxiliary: TraceAuxiliary::new(&clock, &TRACE),
     };
     let mut app = ControlLoop::new(ports, processor, config);
     app.write_header(sink);
@@ -165,6 +191,7 @@ mod tests {
     use super::*;
     use crate::adc::AdcFault;
     use crate::stub::TraceCell;
+    use clampwise_core::flags::Flags;
 
     #[derive(Default)]
     struct Collect(Vec<String>);
@@ -174,69 +201,146 @@ mod tests {
         }
     }
 
+    /// The replay's sample lines, split into fields (`None` for an empty field).
+    fn rows() -> Vec<Vec<Option<i64>>> {
+        let mut out = Collect::default();
+        replay(demo_processor().unwrap(), &mut out).unwrap();
+        out.0
+            .iter()
+            .filter(|l| l.starts_with("est,"))
+            .map(|l| l.split(',').skip(1).map(|f| f.parse().ok()).collect())
+            .collect()
+    }
+
+    /// Column of a named field in the sample lines (after the `est` tag).
+    fn column(name: &str) -> usize {
+        let fixed = ["sample", "valid_mask", "fault_out", "warning_out"];
+        fixed
+            .iter()
+            .chain(<clampwise_core::estimator::Estimate as crate::app::Outcome>::FIELD_NAMES)
+            .position(|n| *n == name)
+            .unwrap()
+    }
+
+    fn all_invalid(s: &crate::stub::TraceSample<DEVICE_CHANNELS>) -> bool {
+        s.counts.iter().all(|c| !matches!(c, TraceCell::Counts(_)))
+    }
+
     #[test]
-    fn replay_counts_match_the_planted_faults_of_the_trace() {
+    fn adc_faults_match_the_trace_cells() {
         let mut out = Collect::default();
         let summary = replay(demo_processor().unwrap(), &mut out).unwrap();
         assert_eq!(summary.samples as usize, TRACE.len());
         assert_eq!(out.0.len(), TRACE.len() + 4);
-
-        // Independent tally straight from the trace cells.
-        let count = |want: fn(&TraceCell) -> bool| {
-            TRACE
-                .iter()
-                .flat_map(|s| s.counts.iter())
-                .filter(|c| want(c))
-                .count() as u32
-        };
-        let idx = |f: AdcFault| summary.adc_faults[f.index()];
-        assert_eq!(
-            idx(AdcFault::NotReady),
-            count(|c| *c == TraceCell::NotReady)
-        );
-        assert_eq!(
-            idx(AdcFault::Overrange),
-            count(|c| *c == TraceCell::Overrange)
-        );
-        assert_eq!(idx(AdcFault::Crc), count(|c| *c == TraceCell::BadCrc));
-        assert_eq!(
-            idx(AdcFault::ReferenceMissing),
-            count(|c| *c == TraceCell::ReferenceMissing)
-        );
-        let lost = TRACE
+        // Independent tally straight from the trace: every invalid cell is a not-ready frame.
+        let invalid = TRACE
             .iter()
-            .filter(|s| s.counts.iter().all(|c| !matches!(c, TraceCell::Counts(_))))
+            .flat_map(|s| s.counts.iter())
+            .filter(|c| **c == TraceCell::NotReady)
             .count() as u32;
-        assert_eq!(summary.force_lost_samples, lost);
+        assert!(invalid > 0, "the demo trace plants dropouts");
+        assert_eq!(summary.adc_faults[AdcFault::NotReady.index()], invalid);
+        assert_eq!(summary.adc_fault_total(), invalid);
         assert_eq!(summary.speed_errors, 0);
         assert_eq!(summary.truncated_lines, 0);
-        assert_eq!(
-            summary.warning_samples, 0,
-            "the interim step has no fade model"
-        );
+        // Valid mask per sample: bit i set iff channel i's cell is clean.
+        let rows = rows();
+        for (row, s) in rows.iter().zip(TRACE.iter()) {
+            let mask = s
+                .counts
+                .iter()
+                .enumerate()
+                .filter(|(_, c)| matches!(c, TraceCell::Counts(_)))
+                .fold(0, |m, (i, _)| m | (1 << i));
+            assert_eq!(row[column("valid_mask")], Some(mask));
+        }
+    }
+
+    #[test]
+    fn with_every_channel_out_the_force_falls_back_or_is_lost() {
+        let rows = rows();
+        let has = |k: usize, f: Flags| rows[k][column("flags")].unwrap() & i64::from(f.bits()) != 0;
+        // A channel that failed comes back only after `clear_after` clean samples (its invalid
+        // flag's debounce), so whenever no channel is usable, every channel failed within that
+        // window. The force then comes from the actuator command (fallback) if the trace has
+        // one this sample, and is lost (no torque, no capacity: the fault output) if not.
+        let clear = usize::from(DEVICE_CONFIG.sensor().limits().debounce.invalid.clear_after);
+        let mut no_channel = 0;
+        for k in 0..rows.len() {
+            let (lost, fallback) = (has(k, Flags::FORCE_LOST), has(k, Flags::FORCE_FALLBACK));
+            if !(lost || fallback) {
+                continue;
+            }
+            no_channel += 1;
+            for ch in 0..DEVICE_CHANNELS {
+                let failed = TRACE[k.saturating_sub(clear)..=k]
+                    .iter()
+                    .any(|s| !matches!(s.counts[ch], TraceCell::Counts(_)));
+                assert!(
+                    failed,
+                    "sample {k}: no channel used, channel {ch} clean throughout"
+                );
+            }
+            let command = TRACE[k].auxiliary.actuator_command.is_some();
+            assert_eq!(fallback, command, "sample {k}: fallback iff a command");
+            assert_eq!(lost, !command, "sample {k}: lost iff no command");
+            if lost {
+                assert_eq!(rows[k][column("state")], Some(3), "unavailable");
+                assert_eq!(rows[k][column("torque_bits")], None);
+            }
+        }
+        // The demo trace plants a stretch of all channels out longer than any hold.
+        let longest = TRACE
+            .iter()
+            .fold((0, 0), |(run, best), s| {
+                let run = if all_invalid(s) { run + 1 } else { 0 };
+                (run, best.max(run))
+            })
+            .1;
+        let hold = usize::from(DEVICE_CONFIG.sensor().limits().max_hold_samples);
+        assert!(longest > hold + 1, "trace: {longest} samples all out");
+        assert!(no_channel > 0);
     }
 
     #[test]
     fn fault_output_follows_lost_force_with_release_delay() {
-        let mut out = Collect::default();
-        replay(demo_processor().unwrap(), &mut out).unwrap();
-        let rows: Vec<Vec<i64>> = out
-            .0
+        let rows = rows();
+        let lost: Vec<bool> = rows
             .iter()
-            .filter(|l| l.starts_with("est,"))
-            .map(|l| l.split(',').skip(1).map(|f| f.parse().unwrap()).collect())
+            .map(|r| r[column("flags")].unwrap() & i64::from(Flags::FORCE_LOST.bits()) != 0)
             .collect();
         let release = usize::from(FAULT_RELEASE_SAMPLES);
         for (k, row) in rows.iter().enumerate() {
-            // Fault asserted iff a lost-force sample (or the start) lies within the last
-            // `release` samples, this one included.
+            // Asserted iff a lost-force sample (or the start) lies within the last `release`
+            // samples, this one included.
             let from = k.saturating_sub(release - 1);
-            let recent_loss = k < release - 1
-                || TRACE[from..=k]
-                    .iter()
-                    .any(|s| s.counts.iter().all(|c| !matches!(c, TraceCell::Counts(_))));
-            assert_eq!(row[2] == 1, recent_loss, "sample {k}: {row:?}");
+            let recent_loss = k < release - 1 || lost[from..=k].iter().any(|&l| l);
+            assert_eq!(
+                row[column("fault_out")] == Some(1),
+                recent_loss,
+                "sample {k}"
+            );
+            let fade = row[column("flags")].unwrap() & i64::from(Flags::FADE_WARNING.bits()) != 0;
+            assert_eq!(row[column("warning_out")] == Some(1), fade, "sample {k}");
         }
+    }
+
+    #[test]
+    fn slipping_torque_opposes_the_slip_and_stays_within_capacity() {
+        // [calc] slipping: T = −sign(v)·n·μ·F·r_e, and |T| ≤ n·μ_s·F·r_e (μ_s ≥ μ_k here).
+        let rows = rows();
+        let mut slipping = 0;
+        for (row, s) in rows.iter().zip(TRACE.iter()) {
+            if row[column("state")] == Some(0) {
+                slipping += 1;
+                let t = row[column("torque_bits")].unwrap();
+                let cap = row[column("holding_capacity_bits")].unwrap();
+                let v = s.omega_in.to_bits() - s.omega_out.to_bits();
+                assert!(t.signum() == -i64::from(v.signum()) || t == 0, "{row:?}");
+                assert!(t.abs() <= cap, "{row:?}");
+            }
+        }
+        assert!(slipping > 0, "the demo trace slips");
     }
 
     #[test]
@@ -248,6 +352,7 @@ mod tests {
             assert_eq!(l.split(',').count(), names, "{l}");
         }
         assert!(out.0[0].contains("not a certified safety function"));
+        assert!(out.0[1].contains(&format!("device_crc32=0x{DEVICE_CHECKSUM:08x}")));
         assert!(out.0.last().unwrap().starts_with("end,samples="));
     }
 }

@@ -7,7 +7,8 @@
 //!   A second read of one channel within a sample gets a frame without `RDY`, as a real
 //!   converter would give before its next conversion.
 //! * [`TraceDelay`] is a [`DelayNs`] that advances the trace's clock instead of waiting.
-//! * [`TraceSpeeds`] gives the trace's shaft speeds for the current sample.
+//! * [`TraceSpeeds`] gives the trace's shaft speeds for the current sample, and
+//!   [`TraceAuxiliary`] its actuator command, temperatures and reference torque.
 //! * [`StubPin`] is an [`OutputPin`] that remembers its level and counts its changes.
 //!
 //! All share one [`TraceClock`] by reference (a `Cell`, so no `unsafe` and no locking: the stub
@@ -23,8 +24,8 @@
 //! use embedded_hal::delay::DelayNs;
 //!
 //! static TRACE: [TraceSample<1>; 2] = [
-//!     TraceSample { counts: [TraceCell::Counts(7)], omega_in: RadPerSec::ZERO, omega_out: RadPerSec::ZERO },
-//!     TraceSample { counts: [TraceCell::NotReady], omega_in: RadPerSec::ZERO, omega_out: RadPerSec::ZERO },
+//!     TraceSample { counts: [TraceCell::Counts(7)], ..TraceSample::AT_REST },
+//!     TraceSample { counts: [TraceCell::NotReady], ..TraceSample::AT_REST },
 //! ];
 //! let clock = TraceClock::new(1_000_000);
 //! let mut adc = BridgeAdc::new(TraceAdc::new(&clock, &TRACE));
@@ -45,7 +46,7 @@ use embedded_hal::digital::{ErrorType as PinErrorType, OutputPin, StatefulOutput
 use embedded_hal::spi::{self, ErrorKind, ErrorType as SpiErrorType, Operation, SpiDevice};
 
 use crate::adc::{ADC_CHANNELS, CMD_READ, Channel, FRAME_LEN, FULL_SCALE, Status, encode_frame};
-use crate::app::{ShaftSpeeds, Speeds};
+use crate::app::{Auxiliary, AuxiliaryInputs, ShaftSpeeds, Speeds};
 
 /// One channel's entry in the recorded trace.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -71,6 +72,23 @@ pub struct TraceSample<const CH: usize> {
     pub omega_in: RadPerSec,
     /// Output shaft speed, rad/s.
     pub omega_out: RadPerSec,
+    /// Actuator command, temperatures, reference torque of this sample.
+    pub auxiliary: Auxiliary,
+}
+
+impl<const CH: usize> TraceSample<CH> {
+    /// Every channel not ready, both shafts at rest, no auxiliary input (a base for literals).
+    pub const AT_REST: Self = Self {
+        counts: [TraceCell::NotReady; CH],
+        omega_in: RadPerSec::ZERO,
+        omega_out: RadPerSec::ZERO,
+        auxiliary: Auxiliary {
+            actuator_command: None,
+            lining_temperature: None,
+            ambient_temperature: None,
+            reference_torque: None,
+        },
+    };
 }
 
 /// The stub's time base: elapsed nanoseconds, and from them the current sample.
@@ -279,6 +297,30 @@ impl<const CH: usize> ShaftSpeeds for TraceSpeeds<'_, CH> {
     }
 }
 
+/// The actuator command, temperatures and reference torque played back from the trace (none
+/// past its end).
+#[derive(Debug, Clone, Copy)]
+pub struct TraceAuxiliary<'a, const CH: usize> {
+    clock: &'a TraceClock,
+    trace: &'a [TraceSample<CH>],
+}
+
+impl<'a, const CH: usize> TraceAuxiliary<'a, CH> {
+    /// Inputs from `trace` at `clock`'s sample.
+    pub const fn new(clock: &'a TraceClock, trace: &'a [TraceSample<CH>]) -> Self {
+        Self { clock, trace }
+    }
+}
+
+impl<const CH: usize> AuxiliaryInputs for TraceAuxiliary<'_, CH> {
+    fn read(&mut self) -> Auxiliary {
+        self.trace
+            .get(self.clock.sample())
+            .map(|row| row.auxiliary)
+            .unwrap_or_default()
+    }
+}
+
 /// An output pin that remembers its level and counts level changes.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct StubPin {
@@ -334,9 +376,11 @@ impl StatefulOutputPin for StubPin {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used)]
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
     use super::*;
     use crate::adc::{AdcError, BridgeAdc};
+    use clampwise_core::sensor::ActuatorCommand;
+    use clampwise_core::units::{Celsius, NewtonMetres};
 
     const Z: RadPerSec = RadPerSec::ZERO;
     static TRACE: [TraceSample<2>; 3] = [
@@ -344,16 +388,22 @@ mod tests {
             counts: [TraceCell::Counts(-5), TraceCell::Overrange],
             omega_in: RadPerSec::lit("2.5"),
             omega_out: Z,
+            auxiliary: Auxiliary {
+                actuator_command: Some(ActuatorCommand::lit("0.5")),
+                lining_temperature: Some(Celsius::lit("80")),
+                ambient_temperature: None,
+                reference_torque: Some(NewtonMetres::lit("-1200")),
+            },
         },
         TraceSample {
             counts: [TraceCell::BadCrc, TraceCell::ReferenceMissing],
             omega_in: Z,
             omega_out: RadPerSec::lit("-1"),
+            ..TraceSample::AT_REST
         },
         TraceSample {
             counts: [TraceCell::Counts(FULL_SCALE), TraceCell::NotReady],
-            omega_in: Z,
-            omega_out: Z,
+            ..TraceSample::AT_REST
         },
     ];
 
@@ -376,6 +426,8 @@ mod tests {
             Err(AdcError::Overrange { counts: FULL_SCALE })
         );
         assert_eq!(speeds.read().unwrap().input, RadPerSec::lit("2.5"));
+        let mut aux = TraceAuxiliary::new(&clock, &TRACE);
+        assert_eq!(aux.read(), TRACE[0].auxiliary);
 
         delay.delay_ns(100);
         assert!(matches!(adc.read(c0), Err(AdcError::Crc { .. })));
@@ -391,6 +443,7 @@ mod tests {
         delay.delay_ns(100);
         assert_eq!(adc.read(c0), Err(AdcError::NotReady), "past the end");
         assert_eq!(speeds.read(), Err(EndOfTrace));
+        assert_eq!(aux.read(), Auxiliary::default(), "past the end");
         let c3 = Channel::new(3).unwrap();
         assert_eq!(
             adc.read(c3),

@@ -48,32 +48,52 @@ fn main() -> ! {
     canary();
 
     let mut out = Semihosting(cortex_m_semihosting::hio::hstdout().ok());
-    let ok = match demo_processor() {
-        Ok(p) => replay(p, &mut out).is_ok(),
-        Err(_) => false,
-    };
+    let ok = demo_processor().is_ok_and(|p| replay(p, &mut out).is_ok());
     let total = crate::stack::peak_use(painted);
 
     // A second, silent replay measures the processing step alone: each call is made from a
     // freshly painted stack and the depth below the call site is kept.
-    let step = match demo_processor() {
-        Ok(p) => {
-            let mut probe = crate::stack::StackProbe::new(p);
-            let ran = replay(&mut probe, &mut Discard).is_ok();
-            if ran { Some(probe.deepest()) } else { None }
-        }
-        Err(_) => None,
-    };
+    let step = demo_processor().ok().and_then(|p| {
+        let mut probe = crate::stack::StackProbe::new(p);
+        replay(&mut probe, &mut Discard)
+            .is_ok()
+            .then(|| probe.deepest())
+    });
 
+    let bytes = |n: usize| i64::try_from(n).unwrap_or(-1);
     let mut line = Line::new();
     line.push_str("#target stack");
     line.key_value("total_bytes", i64::from(total));
     line.key_value("step_bytes", step.map_or(-1, i64::from));
     line.key_value("painted_bytes", i64::from(painted.len_bytes()));
-    let processor_bytes = core::mem::size_of::<clampwise_firmware_example::replay::DemoProcessor>();
+    out.emit(line.as_bytes());
+    // Sizes on this target: the estimator's state (RAM, inside the loop's frame here), the
+    // adapter around it, and the device configuration (flash).
+    let mut line = Line::new();
+    line.push_str("#target sizes");
+    line.key_value(
+        "estimator_state_bytes",
+        bytes(core::mem::size_of::<
+            clampwise_core::estimator::EstimatorState<
+                { clampwise_firmware_example::generated::DEVICE_CHANNELS },
+            >,
+        >()),
+    );
     line.key_value(
         "processor_bytes",
-        i64::try_from(processor_bytes).unwrap_or(-1),
+        bytes(core::mem::size_of::<
+            clampwise_firmware_example::replay::DemoProcessor,
+        >()),
+    );
+    line.key_value(
+        "device_config_bytes",
+        bytes(core::mem::size_of::<
+            clampwise_firmware_example::generated::Device,
+        >()),
+    );
+    line.key_value(
+        "estimate_bytes",
+        bytes(core::mem::size_of::<clampwise_core::estimator::Estimate>()),
     );
     out.emit(line.as_bytes());
 
@@ -174,34 +194,37 @@ fn main() -> ! {
         cp.DCB.enable_trace();
         cp.DWT.enable_cycle_counter();
     }
-    match demo_processor() {
-        #[cfg(not(armv6m))]
-        Ok(p) => {
-            let mut probe = CycleProbe {
-                inner: p,
-                max: 0,
-                total: 0,
-                steps: 0,
-            };
-            match replay(&mut probe, &mut Defmt) {
-                Ok(s) => {
-                    let mean = probe.total / u64::from(probe.steps.max(1));
-                    defmt::info!(
-                        "replay done: {=u32} samples; step cycles max {=u32}, mean {=u64}",
-                        s.samples,
-                        probe.max,
-                        mean
-                    );
-                }
-                Err(_) => defmt::error!("replay could not start"),
-            }
+    let Ok(processor) = demo_processor() else {
+        defmt::error!("initial state record rejected");
+        loop {
+            cortex_m::asm::bkpt();
         }
-        #[cfg(armv6m)]
-        Ok(p) => match replay(p, &mut Defmt) {
-            Ok(s) => defmt::info!("replay done: {=u32} samples", s.samples),
+    };
+    #[cfg(not(armv6m))]
+    {
+        let mut probe = CycleProbe {
+            inner: processor,
+            max: 0,
+            total: 0,
+            steps: 0,
+        };
+        match replay(&mut probe, &mut Defmt) {
+            Ok(s) => {
+                let mean = probe.total / u64::from(probe.steps.max(1));
+                defmt::info!(
+                    "replay done: {=u32} samples; step cycles max {=u32}, mean {=u64}",
+                    s.samples,
+                    probe.max,
+                    mean
+                );
+            }
             Err(_) => defmt::error!("replay could not start"),
-        },
-        Err(_) => defmt::error!("configuration rejected"),
+        }
+    }
+    #[cfg(armv6m)]
+    match replay(processor, &mut Defmt) {
+        Ok(s) => defmt::info!("replay done: {=u32} samples", s.samples),
+        Err(_) => defmt::error!("replay could not start"),
     }
     loop {
         // Stops a probe runner (probe-rs) at the end of the replay.

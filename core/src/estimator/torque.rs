@@ -29,14 +29,17 @@ pub(crate) fn friction_torque(
     force: Newtons,
     lever_arm: Metres,
 ) -> Saturating<NewtonMetres> {
-    // Q30 · Q30 · Q8 · Q24 = Q92; each factor < 2³¹ in magnitude, so the product < 2¹²⁴.
-    let q92 = i128::from(correction.to_bits())
-        * i128::from(mu.to_bits())
-        * i128::from(force.to_bits())
-        * i128::from(lever_arm.to_bits());
-    // To Q12 (NewtonMetres) first, then the face count: |Q12 value| < 2⁴⁴, · 255 < 2⁵².
-    let per_face = q92.saturating_add(1i128 << 79) >> 80;
-    let (bits, saturated) = narrow(per_face.saturating_mul(i128::from(faces)));
+    // Q30 · Q30 · Q8 · Q24 = Q92; each factor < 2³¹ in magnitude, so each pair's product is
+    // exact in i64 (< 2⁶²) and the whole product < 2¹²⁴ in i128: one 64 × 64-bit widening
+    // multiply instead of a chain of 128-bit ones (the same value, far less code on a
+    // 32-bit core).
+    let ratios = i64::from(correction.to_bits()) * i64::from(mu.to_bits());
+    let moment = i64::from(force.to_bits()) * i64::from(lever_arm.to_bits());
+    let q92 = i128::from(ratios) * i128::from(moment);
+    // To Q12 (NewtonMetres) first, then the face count: |Q12 value| < 2⁴⁴, · 255 < 2⁵², so
+    // both fit i64.
+    let per_face = i64::try_from(q92.saturating_add(1i128 << 79) >> 80).unwrap_or(i64::MAX);
+    let (bits, saturated) = narrow(i128::from(per_face.saturating_mul(i64::from(faces))));
     Saturating {
         value: NewtonMetres::from_bits(bits),
         saturated,
@@ -45,9 +48,10 @@ pub(crate) fn friction_torque(
 
 /// |T · v| in W, the power dissipated in the contact.
 pub(crate) fn dissipated_power(torque: NewtonMetres, slip_speed: RadPerSec) -> Saturating<Watts> {
-    // Q12 · Q16 = Q28 → Watts is Q32: shift left by 4; |product| < 2⁶², so i128 is ample.
-    let q28 = i128::from(torque.to_bits()) * i128::from(slip_speed.to_bits());
-    let q32 = q28.unsigned_abs() << 4;
+    // Q12 · Q16 = Q28 → Watts is Q32: shift left by 4; |product| < 2⁶² is exact in i64, and
+    // shifted it is below 2⁶⁶, so it widens to u128 for the shift.
+    let q28 = i64::from(torque.to_bits()) * i64::from(slip_speed.to_bits());
+    let q32 = u128::from(q28.unsigned_abs()) << 4;
     match i64::try_from(q32) {
         Ok(bits) => Saturating {
             value: Watts::from_bits(bits),
@@ -97,6 +101,25 @@ mod tests {
     }
 
     proptest! {
+        // The 64-bit pairing gives the very bits of the plain 128-bit chain, over all inputs.
+        #[test]
+        fn same_bits_as_the_128_bit_chain(
+            k in any::<i32>(), mu in any::<i32>(), f in any::<i32>(), r in any::<i32>(),
+            faces in any::<u8>(), t in any::<i32>(), v in any::<i32>(),
+        ) {
+            let chain = i128::from(k) * i128::from(mu) * i128::from(f) * i128::from(r);
+            let per_face = chain.saturating_add(1i128 << 79) >> 80;
+            let (bits, saturated) = narrow(per_face.saturating_mul(i128::from(faces)));
+            let got = friction_torque(
+                faces, Ratio::from_bits(k), Ratio::from_bits(mu), Newtons::from_bits(f),
+                Metres::from_bits(r),
+            );
+            prop_assert_eq!(got, Saturating { value: NewtonMetres::from_bits(bits), saturated });
+            let q32 = (i128::from(t) * i128::from(v)).unsigned_abs() << 4;
+            let p = dissipated_power(NewtonMetres::from_bits(t), RadPerSec::from_bits(v));
+            prop_assert_eq!(i64::try_from(q32).ok(), (!p.saturated).then_some(p.value.to_bits()));
+        }
+
         // Within ½ LSB of the f64 product of the same fixed-point inputs (exact rounding).
         #[test]
         fn product_is_correctly_rounded(

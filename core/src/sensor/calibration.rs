@@ -204,30 +204,27 @@ impl ChannelCalibration {
     /// Counts → newtons with temperature compensation (`sensor_temp` in °C; `None`: ΔT = 0).
     /// O(1), integers only, any input.
     pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
-        // Q32 newtons. |counts · gain| ≤ 2³¹ · 2⁶³ = 2⁹⁴ and |offset| < 2³¹ · 2²⁴ for any
-        // input, so v stays below 2⁹⁵: wrapping is exact here (and far cheaper than a
-        // saturating i128 multiplication, which needs a full overflow test).
-        let mut v = i128::from(counts)
-            .wrapping_mul(i128::from(self.gain.to_bits()))
+        // Q32 newtons. |counts| < 2³¹ and |gain| < 2⁶³: the product is below 2⁹⁴, exact in
+        // i128 (a widening multiply, no overflow to saturate).
+        // The offset (below 2⁵⁵ in Q32) cannot take the sum near the i128 range either, so the
+        // sums here and in `round_shr` are exact: `wrapping_` (no overflow to handle, no panic
+        // path, little code on a 32-bit core).
+        let mut v = (i128::from(counts) * i128::from(self.gain.to_bits()))
             .wrapping_add(i128::from(self.offset.to_bits()) << 24);
         let mut temperature_clamped = false;
         if let (Some(tc), Some(t)) = (&self.temperature, sensor_temp) {
             let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
             let t = t.to_bits();
             temperature_clamped = t < lo || t > hi;
-            let dt = i128::from(t.clamp(lo, hi)) - i128::from(tc.reference.to_bits());
+            // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
+            // assertion (panic path) on the bounds' order in the per-sample code.
+            let dt = i128::from(t.max(lo).min(hi)) - i128::from(tc.reference.to_bits());
             // Q30 factor in [0.5, 1.5] (validated).
             let span = round_shr(i128::from(tc.span_per_kelvin.to_bits()) * dt, 16);
             let factor = (1i128 << 30).saturating_add(span);
             let zero = round_shr(i128::from(tc.zero_per_kelvin.to_bits()) * dt, 16);
-            // A validated factor is within [0.5, 1.5]·2³⁰, so |v · factor| < 2⁹⁵ · 2³¹: exact
-            // as a wrapping product. Only an unvalidated calibration takes the saturating one.
-            let scaled = if factor.unsigned_abs() <= 1 << 31 {
-                v.wrapping_mul(factor)
-            } else {
-                v.saturating_mul(factor)
-            };
-            v = round_shr(scaled, 30).saturating_add(zero);
+            // |v| < 2⁹⁵ and factor < 2³¹: the product is below 2¹²⁶, exact in i128.
+            v = round_shr(v * factor, 30).wrapping_add(zero);
         }
         let q8 = round_shr(v, 24);
         let bits = i32::try_from(q8).unwrap_or(if q8 < 0 { i32::MIN } else { i32::MAX });
@@ -239,9 +236,9 @@ impl ChannelCalibration {
     }
 }
 
-/// Round half up of `v / 2^s`.
+/// Round half up of `v / 2^s`, for |v| < 2¹²⁶ and 1 ≤ s ≤ 30 (the calls above).
 fn round_shr(v: i128, s: u32) -> i128 {
-    v.saturating_add(1i128 << (s - 1)) >> s
+    v.wrapping_add(1i128 << (s - 1)) >> s
 }
 
 /// Gain and offset from two known loads (host or start-up helper; floats, never per sample).
