@@ -7,7 +7,10 @@
 # generated trace and tables. Lines starting `#target` are target-only measurements (stack
 # use) and are left out of the comparison; everything else must match byte for byte.
 # The QEMU run goes through the runners in .cargo/config.toml (`cargo run --target …`), and
-# must exit with status 0 (semihosting exit).
+# must exit with status 0 (semihosting exit). The host replay itself is compared with the
+# simulator's replay of the same trace, field by field, by the crate's host test
+# `tests/simulator_replay.rs` (run by `cargo test --workspace`), so a match here is a match
+# with `clampwise replay` too.
 #
 # Usage: qemu-check.sh [TARGET...]   (default: thumbv7m-none-eabi)
 #   thumbv7m-none-eabi    on lm3s6965evb (Cortex-M3)
