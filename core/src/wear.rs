@@ -473,7 +473,11 @@ impl WearState {
     pub fn update(&mut self, cfg: &WearConfig, power: Watts) -> WearSample {
         // |P| (Q32) · dt (Q63) ≤ 2¹²⁷: Q95 → Q64.
         let step_q64 = (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
-        self.accumulate_q64(cfg, step_q64);
+        // No energy (holding, released without drag): nothing moves — the energy adds 0, the
+        // bedding factor is exactly 1 and the loss adds 0 — so skip the polynomial.
+        if step_q64 != 0 {
+            self.accumulate_q64(cfg, step_q64);
+        }
         self.sample(cfg)
     }
 
