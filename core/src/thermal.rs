@@ -648,23 +648,6 @@ fn narrow_q32(v: i128) -> i64 {
     i64::try_from(c).unwrap_or(0)
 }
 
-/// One node's next state: `state + (Γ·P − K·θ)` rounded from Q62 to Q32.
-fn advance_node(state: i64, k: &[i64; 2], gamma: i64, theta: &[i64; 2], p: i128) -> i64 {
-    // |θ| < 2⁴⁸ and |K| < 2⁶² (checked by `from_raw`): each K·θ is a 64 × 64-bit widening
-    // product below 2¹¹⁰, their sum below 2¹¹¹. 0 ≤ Γ < 2⁶² and P < 2⁶⁴: Γ·P < 2¹²⁶. Nothing
-    // comes near the i128 range, so every sum below is exact: `wrapping_` is the exact result
-    // here, states that no overflow is handled, and has no panic path (and costs far less code
-    // than `saturating_` on a 32-bit core).
-    let decay = (i128::from(k[0]) * i128::from(theta[0]))
-        .wrapping_add(i128::from(k[1]) * i128::from(theta[1]));
-    let delta = (i128::from(gamma) * p)
-        .wrapping_sub(decay)
-        .wrapping_add(1i128 << 61)
-        >> 62;
-    // |state| < 2⁴⁸ and |delta| < 2⁶⁵.
-    narrow_q32(i128::from(state).wrapping_add(delta))
-}
-
 impl ThermalState {
     /// Rotor and lining at ambient.
     ///
@@ -761,17 +744,26 @@ impl ThermalState {
             self.lining_q32.saturating_sub(amb),
             self.rotor_q32.saturating_sub(amb),
         ];
-        // One node: the lining follows the rotor, so its row of K (whose result would be
-        // discarded) is not computed at all.
-        let [k_lining, k_rotor] = &cfg.k;
-        let [gamma_lining, gamma_rotor] = cfg.gamma;
-        let rotor = advance_node(self.rotor_q32, k_rotor, gamma_rotor, &theta, p);
+        let mut next = [self.lining_q32, self.rotor_q32];
+        for ((out, krow), g) in next.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
+            // |θ| < 2⁴⁸ and |K| < 2⁶² (checked by `from_raw`): each K·θ is a 64 × 64-bit
+            // widening product below 2¹¹⁰, their sum below 2¹¹¹. 0 ≤ Γ < 2⁶² and P < 2⁶⁴:
+            // Γ·P < 2¹²⁶. Nothing comes near the i128 range, so every sum below is exact:
+            // `wrapping_` is the exact result here, states that no overflow is handled, and
+            // has no panic path (and costs far less code than `saturating_` on a 32-bit core).
+            let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
+                acc.wrapping_add(i128::from(*k) * i128::from(*t))
+            });
+            let delta = (i128::from(*g) * p)
+                .wrapping_sub(decay)
+                .wrapping_add(1i128 << 61)
+                >> 62;
+            // |state| < 2⁴⁸ and |delta| < 2⁶⁵.
+            *out = narrow_q32(i128::from(*out).wrapping_add(delta));
+        }
+        let [lining, rotor] = next;
         self.rotor_q32 = rotor;
-        self.lining_q32 = if cfg.two_node {
-            advance_node(self.lining_q32, k_lining, gamma_lining, &theta, p)
-        } else {
-            rotor
-        };
+        self.lining_q32 = if cfg.two_node { lining } else { rotor };
 
         let mut measured_used = false;
         let mut measured_rejected = false;
