@@ -43,7 +43,7 @@ pub fn full() -> Result<PlainFull, GeometryError> {
     for (o, a) in row.iter_mut().zip(arms) {
         *o = a?;
     }
-    let thermal = device::thermal_params(true);
+    let thermal = device::thermal_params(true, device::THERMAL_WEAR_EVERY);
     let wear = device::wear_params();
     let mut cfg = PlainConfig::from_parts(&PlainParts {
         radius: (&RADIUS_FORCES, &RADIUS_BEDDING, &[row; 3]),
@@ -81,7 +81,7 @@ pub fn full() -> Result<PlainFull, GeometryError> {
 pub fn minimal() -> Result<PlainMinimal, GeometryError> {
     let contact = device::contact()?;
     let row = [contact.lever_arm(0.0)?, contact.lever_arm(1.0)?];
-    let thermal = device::thermal_params(false);
+    let thermal = device::thermal_params(false, device::THERMAL_WEAR_EVERY);
     let wear = device::wear_params();
     let mut cfg = PlainConfig::from_parts(&PlainParts {
         radius: (&[0.0, 250e3], &[0.0, 1.0], &[row; 2]),

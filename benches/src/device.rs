@@ -12,6 +12,7 @@
 //! | μ table (temperature × slip speed) | 6 × 5, viscous and no-load drag | 3 × 3, dry |
 //! | thermal | rotor and lining nodes | rotor only |
 //! | wear and bedding | yes | yes (always part of the step) |
+//! | thermal and wear sub-rate | every 8 samples | every 8 samples |
 //! | adaptation | RLS with a reference torque every sample | none |
 //! | uncertainty | root-sum-square (integer square root) | worst case |
 
@@ -38,6 +39,9 @@ pub type MinimalDevice = DeviceConfig<1, 2, 2, 3, 3>;
 
 /// Sample period, s.
 pub const DT: f64 = 1e-3;
+/// Both devices advance the thermal and wear states every 8 samples (125 Hz): a sub-rate task
+/// inside the step, as a controller runs its slow models (`DeviceParts::thermal_wear_every`).
+pub const THERMAL_WEAR_EVERY: u8 = 8;
 /// Sample rate, Hz.
 pub const RATE_HZ: u32 = 1000;
 /// ADC counts per newton of clamp force (1 count = 1/256 N, the [`Newtons`] LSB, so a count
@@ -150,10 +154,11 @@ pub fn contact() -> Result<Contact<'static>, GeometryError> {
     )
 }
 
-/// Thermal parameters; `two_node` adds the lining node.
-pub fn thermal_params(two_node: bool) -> ThermalParams {
+/// Thermal parameters; `two_node` adds the lining node; built for a model advanced every
+/// `every` samples.
+pub fn thermal_params(two_node: bool, every: u8) -> ThermalParams {
     ThermalParams {
-        dt: DT,
+        dt: DT * f64::from(every),
         rotor_mass: 8.0,
         rotor_specific_heat: 460.0,
         rotor_share: 0.9,
@@ -257,10 +262,11 @@ pub fn full() -> Result<FullDevice, DeviceError> {
     let (lo, hi, lambda, fs, excitation) = ADAPT;
     Ok(DeviceConfig::new(DeviceParts {
         sample_period: Seconds::from_num(DT),
+        thermal_wear_every: THERMAL_WEAR_EVERY,
         faces: FACES,
         radius,
         friction: FrictionConfig::new(mu, &FULL_FRICTION)?,
-        thermal: ThermalConfig::new(&thermal_params(true))?,
+        thermal: ThermalConfig::new(&thermal_params(true, THERMAL_WEAR_EVERY))?,
         wear: WearConfig::new(&wear_params())?,
         sensor,
         adapt: Some(AdaptConfig::new(
@@ -303,10 +309,11 @@ pub fn minimal() -> Result<MinimalDevice, DeviceError> {
     )?;
     Ok(DeviceConfig::new(DeviceParts {
         sample_period: Seconds::from_num(DT),
+        thermal_wear_every: THERMAL_WEAR_EVERY,
         faces: FACES,
         radius,
         friction: FrictionConfig::new(mu, &MINIMAL_FRICTION)?,
-        thermal: ThermalConfig::new(&thermal_params(false))?,
+        thermal: ThermalConfig::new(&thermal_params(false, THERMAL_WEAR_EVERY))?,
         wear: WearConfig::new(&wear_params())?,
         sensor,
         adapt: None,

@@ -185,10 +185,11 @@ fn envelope_device(contact: &Contact<'_>) -> Result<EnvelopeDevice, Box<dyn Erro
     )?;
     Ok(DeviceConfig::new(DeviceParts {
         sample_period: Seconds::from_num(device::DT),
+        thermal_wear_every: 1,
         faces: device::FACES,
         radius,
         friction: FrictionConfig::new(mu, &FULL_FRICTION)?,
-        thermal: ThermalConfig::new(&device::thermal_params(true))?,
+        thermal: ThermalConfig::new(&device::thermal_params(true, 1))?,
         wear: WearConfig::new(&device::wear_params())?,
         sensor,
         adapt: None,

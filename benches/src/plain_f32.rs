@@ -221,6 +221,10 @@ pub struct PlainConfig<
     pub no_load_drag: f32,
     /// Sample period, s.
     pub dt: f32,
+    /// Thermal and wear models advanced every this many samples (as the fixed-point device).
+    pub thermal_wear_every: u32,
+    /// The thermal model's step, `dt` × `thermal_wear_every`, s.
+    pub thermal_dt: f32,
     /// Rotor heat capacity, J/K.
     pub c_rotor: f32,
     /// Lining heat capacity, J/K (`None`: single node).
@@ -305,7 +309,10 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             transition_speed: f.transition_speed as f32,
             viscous_drag: f.viscous_drag as f32,
             no_load_drag: f.no_load_drag as f32,
-            dt: t.dt as f32,
+            dt: p.wear.dt as f32,
+            #[allow(clippy::cast_sign_loss)]
+            thermal_wear_every: (t.dt / p.wear.dt).round().max(1.0) as u32,
+            thermal_dt: t.dt as f32,
             c_rotor: c_rotor as f32,
             c_lining: t.lining.map(|l| (l.mass * l.specific_heat) as f32),
             conductance: t.lining.map_or(0.0, |l| l.conductance_to_rotor as f32),
@@ -336,6 +343,9 @@ pub struct PlainEstimator<const C: usize> {
     lining: f32,
     rotor: f32,
     energy: f32,
+    bedding: f32,
+    pending_power: f32,
+    pending_samples: u32,
     k: f32,
     p: f32,
 }
@@ -352,6 +362,9 @@ impl<const C: usize> PlainEstimator<C> {
             lining: cfg.ambient,
             rotor: cfg.ambient,
             energy: 0.0,
+            bedding: 0.0,
+            pending_power: 0.0,
+            pending_samples: 0,
             k: 1.0,
             p: 0.1,
         }
@@ -430,7 +443,7 @@ impl<const C: usize> PlainEstimator<C> {
         };
 
         let Some(force) = force else {
-            self.cool(cfg, 0.0);
+            self.heat(cfg, 0.0);
             return PlainEstimate {
                 torque: None,
                 capacity: 0.0,
@@ -439,7 +452,7 @@ impl<const C: usize> PlainEstimator<C> {
                 radius: 0.0,
                 force: 0.0,
                 lining_temperature: self.lining,
-                bedding: self.bedding(cfg),
+                bedding: self.bedding,
                 wear: self.energy * cfg.wear_per_joule,
                 correction: self.k,
                 state: PlainState::Unavailable,
@@ -463,7 +476,7 @@ impl<const C: usize> PlainEstimator<C> {
         } else {
             -libm::copysignf(1.0, v) * (cfg.viscous_drag * speed + cfg.no_load_drag * phi)
         };
-        let bedding = self.bedding(cfg);
+        let bedding = self.bedding;
         let r = cfg.radius.lookup(force, bedding);
         let kinetic = cfg.faces * mu * force * r;
         let capacity = cfg.faces * mu_s * force * r;
@@ -479,8 +492,7 @@ impl<const C: usize> PlainEstimator<C> {
 
         // Heat and wear.
         let power = libm::fabsf((friction + drag) * v);
-        self.cool(cfg, power);
-        self.energy += power * cfg.dt;
+        self.heat(cfg, power);
         let wear = self.energy * cfg.wear_per_joule;
 
         // Adaptation: scalar RLS on k.
@@ -535,11 +547,23 @@ impl<const C: usize> PlainEstimator<C> {
         }
     }
 
-    fn bedding<const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
-        &self,
+    /// Sum the power; every `thermal_wear_every` samples advance the thermal nodes with the
+    /// mean and the energy and bedding with the sum (the fixed-point device's sub-rate).
+    #[allow(clippy::cast_precision_loss)]
+    fn heat<const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
+        &mut self,
         cfg: &PlainConfig<C, NF, NB, NT, NV>,
-    ) -> f32 {
-        1.0 - libm::expf(-self.energy / cfg.bedding_energy)
+        power: f32,
+    ) {
+        self.pending_power += power;
+        self.pending_samples += 1;
+        if self.pending_samples >= cfg.thermal_wear_every {
+            self.cool(cfg, self.pending_power / cfg.thermal_wear_every as f32);
+            self.energy += self.pending_power * cfg.dt;
+            self.bedding = 1.0 - libm::expf(-self.energy / cfg.bedding_energy);
+            self.pending_power = 0.0;
+            self.pending_samples = 0;
+        }
     }
 
     /// Explicit Euler on the lumped nodes.
@@ -552,11 +576,11 @@ impl<const C: usize> PlainEstimator<C> {
         match cfg.c_lining {
             Some(c_l) => {
                 let q = cfg.conductance * (self.lining - self.rotor);
-                self.lining += cfg.dt * ((1.0 - cfg.share) * power - q) / c_l;
-                self.rotor += cfg.dt * (cfg.share * power + q - out) / cfg.c_rotor;
+                self.lining += cfg.thermal_dt * ((1.0 - cfg.share) * power - q) / c_l;
+                self.rotor += cfg.thermal_dt * (cfg.share * power + q - out) / cfg.c_rotor;
             }
             None => {
-                self.rotor += cfg.dt * (cfg.share * power - out) / cfg.c_rotor;
+                self.rotor += cfg.thermal_dt * (cfg.share * power - out) / cfg.c_rotor;
                 self.lining = self.rotor;
             }
         }

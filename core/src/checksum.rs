@@ -78,7 +78,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     /// to hold the same numbers, and a configuration in flash can be checked at start-up.
     ///
     /// The digest runs over the little-endian raw bits of every stored value, in the order of
-    /// the parts: sample period, faces, radius table (x breakpoints, y breakpoints, values row
+    /// the parts: sample period, log₂ of the thermal and wear sub-rate, faces, radius table (x breakpoints, y breakpoints, values row
     /// by row), friction (μ table likewise, static ratio, slip and stick thresholds,
     /// transition speed, viscous and no-load drag), thermal ([`ThermalRaw`] field by field),
     /// wear ([`WearRaw`]), sensor (sample rate; per channel gain, offset, rails, temperature
@@ -128,7 +128,8 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     /// # let sensor = SensorConfig::new(1000, [channel], LowPass::new(200.0, 1000)?, limits,
     /// #     voting, None)?;
     /// let parts = DeviceParts {
-    ///     sample_period: Seconds::lit("0.001"), faces: 2, radius, friction, thermal, wear,
+    ///     sample_period: Seconds::lit("0.001"), thermal_wear_every: 1, faces: 2, radius,
+    ///     friction, thermal, wear,
     ///     sensor, adapt: None,
     ///     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
     ///     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
@@ -143,6 +144,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     pub fn checksum(&self) -> u32 {
         let mut f = Feed(CRC32.digest());
         f.i64(self.sample_period.to_bits());
+        f.u8(self.thermal_wear_shift);
         f.u8(self.faces);
         f.table(&self.radius);
 

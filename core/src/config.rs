@@ -28,8 +28,11 @@ pub enum ConfigError {
     Faces,
     /// `sample_period_s` must be positive and at most 1 s.
     SamplePeriod,
-    /// The thermal model was built for a different sample period.
+    /// The thermal model was built for a different period than `sample_period` ×
+    /// `thermal_wear_every`.
     ThermalSamplePeriod,
+    /// `thermal_wear_every` must be 1, 2, 4, 8, 16 or 32 samples.
+    ThermalWearEvery,
     /// The wear model was built for a different sample period.
     WearSamplePeriod,
     /// The sensor conditioning was built for a different sample rate.
@@ -51,6 +54,7 @@ impl ConfigError {
             Self::Faces => "contact.faces",
             Self::SamplePeriod => "sample_period_s",
             Self::ThermalSamplePeriod => "thermal (sample period)",
+            Self::ThermalWearEvery => "device.thermal_wear_every",
             Self::WearSamplePeriod => "wear (sample period)",
             Self::SensorSampleRate => "sensors (sample rate)",
             Self::TouchForce => "limits.touch_force_n",
@@ -66,7 +70,10 @@ impl fmt::Display for ConfigError {
         let why = match self {
             Self::Faces => "must be between 1 and 255 friction interfaces",
             Self::SamplePeriod => "must be positive and at most 1 s",
-            Self::ThermalSamplePeriod => "was built for a different sample period than the device",
+            Self::ThermalSamplePeriod => {
+                "was built for a different period than the device's sample period × thermal_wear_every"
+            }
+            Self::ThermalWearEvery => "must be 1, 2, 4, 8, 16 or 32 samples",
             Self::WearSamplePeriod => "was built for a different sample period than the device",
             Self::SensorSampleRate => "was built for a different sample rate than the device",
             Self::TouchForce => "must not be negative",
@@ -113,6 +120,8 @@ pub struct DeviceConfig<
     const NV: usize,
 > {
     pub(crate) sample_period: Seconds,
+    /// log₂ of `thermal_wear_every` (0 ..= 5).
+    pub(crate) thermal_wear_shift: u8,
     pub(crate) faces: u8,
     pub(crate) radius: RadiusTable<NF, NB>,
     pub(crate) friction: FrictionConfig<NT, NV>,
@@ -135,6 +144,11 @@ pub struct DeviceParts<
 > {
     /// Control-loop sample period (s).
     pub sample_period: Seconds,
+    /// The thermal and wear states advance once every this many samples (1, 2, 4, 8, 16 or
+    /// 32), with the energy of all of them: a sub-rate task inside the step. 1 advances them
+    /// every sample. The thermal model must be built for `sample_period` × this; the wear
+    /// model for `sample_period`.
+    pub thermal_wear_every: u8,
     /// Number of friction interfaces sharing the clamp force (1…255).
     pub faces: u8,
     /// Per-face lever arm r_e (m, already divided by sin α for a cone) over force × bedding.
@@ -178,7 +192,13 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
         if parts.faces == 0 {
             return Err(ConfigError::Faces);
         }
-        if !same_period(parts.thermal.dt(), parts.sample_period) {
+        let every = parts.thermal_wear_every;
+        if !every.is_power_of_two() || every > 32 {
+            return Err(ConfigError::ThermalWearEvery);
+        }
+        // period ≤ 2³² and every ≤ 2⁵: the product fits the i64 bits of `Seconds`.
+        let thermal_period = Seconds::from_bits(period * every as i64);
+        if !same_period(parts.thermal.dt(), thermal_period) {
             return Err(ConfigError::ThermalSamplePeriod);
         }
         if !same_period(parts.wear.dt(), parts.sample_period) {
@@ -210,8 +230,12 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
         if radius < 0 || radius >= Ratio::ONE.to_bits() {
             return Err(ConfigError::RadiusTolerance);
         }
+        // A power of two up to 32: the shift is 0 ..= 5.
+        #[allow(clippy::cast_possible_truncation)]
+        let thermal_wear_shift = every.trailing_zeros() as u8;
         Ok(Self {
             sample_period: parts.sample_period,
+            thermal_wear_shift,
             faces: parts.faces,
             radius: parts.radius,
             friction: parts.friction,
@@ -227,6 +251,11 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     /// Control-loop sample period (s).
     pub const fn sample_period(&self) -> Seconds {
         self.sample_period
+    }
+
+    /// The thermal and wear states advance once every this many samples.
+    pub const fn thermal_wear_every(&self) -> u8 {
+        1 << self.thermal_wear_shift
     }
 
     /// Number of friction interfaces.

@@ -94,8 +94,8 @@
 //! let voting = VotingLimits { tolerance: Newtons::lit("500"), channel_uncertainty: Newtons::lit("100") };
 //! let sensor = SensorConfig::new(1000, [channel], LowPass::new(200.0, 1000)?, limits, voting, None)?;
 //! let device = DeviceConfig::new(DeviceParts {
-//!     sample_period: Seconds::lit("0.001"), faces: contact.faces(), radius, friction, thermal,
-//!     wear, sensor, adapt: None,
+//!     sample_period: Seconds::lit("0.001"), thermal_wear_every: 1, faces: contact.faces(),
+//!     radius, friction, thermal, wear, sensor, adapt: None,
 //!     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
 //!     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
 //!         combination: Combination::WorstCase },

@@ -75,6 +75,14 @@ pub struct Device {
     pub kind: DeviceKind,
     /// Control-cycle period, s (0 < period ≤ 1).
     pub sample_period_s: f64,
+    /// The thermal and wear models advance every this many samples (1, 2, 4, 8, 16 or 32),
+    /// with the energy of all of them; 1 (the default) advances them every sample.
+    #[serde(default = "one_sample")]
+    pub thermal_wear_every: u8,
+}
+
+fn one_sample() -> u8 {
+    1
 }
 
 /// Brake or clutch.
@@ -891,6 +899,13 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
             );
         }
     }
+    let every = c.device.thermal_wear_every;
+    if !every.is_power_of_two() || every > 32 {
+        v.issue(
+            "device.thermal_wear_every",
+            format!("must be 1, 2, 4, 8, 16 or 32 samples, not {every}"),
+        );
+    }
     validate_contact(&c.contact, v);
     let f = &c.friction;
     v.within("friction.static_ratio", f.static_ratio, 0.5, 1.6);
@@ -1571,6 +1586,39 @@ mod tests {
             e.issues[0].key.as_deref(),
             Some("device.sample_period_s"),
             "{e}"
+        );
+        // A thermal and wear sub-rate that is not a power of two up to 32.
+        for bad in ["0", "3", "64"] {
+            let src = DEMO.replace(
+                "thermal_wear_every = 1 ",
+                &format!("thermal_wear_every = {bad} "),
+            );
+            let e = err(&src);
+            assert_eq!(
+                e.issues[0].key.as_deref(),
+                Some("device.thermal_wear_every"),
+                "{e}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_thermal_and_wear_sub_rate_builds_the_thermal_model_for_its_interval() {
+        let src = DEMO.replace("thermal_wear_every = 1 ", "thermal_wear_every = 8 ");
+        let loaded = LoadedConfig::from_str(&src, "t.toml").unwrap();
+        let dev = crate::build_core::CoreDevice::build(&loaded.config).unwrap();
+        let crate::build_core::ChannelDevice::Three(d) = &dev.device else {
+            unreachable!("the demo has three force channels")
+        };
+        assert_eq!(d.thermal_wear_every(), 8);
+        // 8 × 1 ms [calc].
+        assert_eq!(
+            d.thermal().dt(),
+            clampwise_core::units::Seconds::from_num(0.008)
+        );
+        assert!(
+            DEMO.contains("thermal_wear_every = 1 "),
+            "the demo states its sub-rate"
         );
     }
 

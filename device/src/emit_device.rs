@@ -41,6 +41,7 @@
 //! let mu = MuTable::<1, 2>::from_f64(&[20.0], &[0.0, 100.0], &[[0.40, 0.38]])?;
 //! let device = DeviceConfig::new(DeviceParts {
 //!     sample_period: Seconds::lit("0.001"),
+//!     thermal_wear_every: 1,
 //!     faces: contact.faces(),
 //!     radius: build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?,
 //!     friction: FrictionConfig::new(mu, &FrictionParams {
@@ -211,6 +212,7 @@ fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, co
     };
     DeviceConfig::new(DeviceParts {
         sample_period: cfg.sample_period(),
+        thermal_wear_every: cfg.thermal_wear_every(),
         faces: cfg.faces(),
         radius: table("radius", cfg.radius_table())?,
         friction,
@@ -602,6 +604,7 @@ pub fn device_config_source<
                 "sample_period",
                 bits("Seconds", cfg.sample_period().to_bits()),
             ),
+            ("thermal_wear_every", cfg.thermal_wear_every().to_string()),
             ("faces", cfg.faces().to_string()),
             (
                 "radius",
@@ -817,6 +820,7 @@ mod tests {
         .unwrap();
         DeviceParts {
             sample_period: Seconds::from_num(1e-3),
+            thermal_wear_every: 1,
             faces: contact.faces(),
             radius: build_radius_table::<2, 2>(&contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap(),
             friction,

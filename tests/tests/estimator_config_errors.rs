@@ -24,6 +24,7 @@ fn parts() -> Parts {
     });
     DeviceParts {
         sample_period: dev.sample_period(),
+        thermal_wear_every: dev.thermal_wear_every(),
         faces: dev.faces(),
         radius: *dev.radius_table(),
         friction: *dev.friction(),

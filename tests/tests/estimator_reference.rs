@@ -72,6 +72,7 @@ fn device_for(c: &Common, contact: &Contact<'_>, adapt: Option<AdaptConfig>) -> 
     let radius = build_radius_table::<2, 2>(contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
     DeviceConfig::new(DeviceParts {
         sample_period: Seconds::from_num(DT),
+        thermal_wear_every: 1,
         faces: contact.faces(),
         radius,
         friction: c.friction,

@@ -15,10 +15,14 @@
 //!
 //! Order within a sample: the thermal and bedding state used for this sample's μ and r_e are
 //! those left by the previous sample; this sample's dissipated energy updates them for the
-//! next. At 1 kHz the lag is one millisecond, far below the thermal time constants.
+//! next. At 1 kHz the lag is one millisecond, far below the thermal time constants. The thermal
+//! and wear states may also run as a sub-rate task, every `thermal_wear_every` samples, with
+//! the energy of all of them (see `DeviceParts::thermal_wear_every`); with 8 at 1 kHz the lag
+//! is up to 8 ms.
 
 mod estimate;
 mod inputs;
+mod sub_rate;
 mod torque;
 mod uncertainty;
 
@@ -36,6 +40,7 @@ use crate::thermal::ThermalState;
 use crate::units::{NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
 use crate::wear::WearState;
 
+use sub_rate::SubRate;
 use torque::{dissipated_power, friction_torque};
 use uncertainty::torque_uncertainty;
 
@@ -46,6 +51,7 @@ pub struct EstimatorState<const C: usize> {
     friction: FrictionState,
     thermal: ThermalState,
     wear: WearState,
+    sub_rate: SubRate,
     adapt: Option<AdaptState>,
 }
 
@@ -84,6 +90,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             friction: FrictionState::new(),
             thermal: ThermalState::new(&cfg.thermal),
             wear: WearState::new(),
+            sub_rate: SubRate::NEW,
             adapt: cfg.adapt.as_ref().map(AdaptState::new),
         };
         Self { cfg, state }
@@ -115,19 +122,19 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     }
 
     /// A state record to keep across power cycles (write it to non-volatile memory with a
-    /// rising `sequence`; keep two slots and load the newest valid one).
+    /// rising `sequence`; keep two slots and load the newest valid one). Energy still pending
+    /// in the thermal and wear sub-rate is added to the saved wear, so no energy is lost; the
+    /// temperatures are those of the last sub-rate update.
     pub fn save(&self, sequence: u32) -> [u8; RECORD_LEN] {
+        let mut wear = self.state.wear;
+        let pending = self.state.sub_rate.pending();
+        if pending > Watts::ZERO {
+            wear.update(&self.cfg.wear, pending);
+        }
         let (factor, covariance) = self.state.adapt.map_or((Ratio::ONE, 0), |a| {
             (a.factor(), i64::from(a.covariance().to_bits()))
         });
-        StateRecord::new(
-            sequence,
-            &self.state.wear,
-            &self.state.thermal,
-            factor,
-            covariance,
-        )
-        .to_bytes()
+        StateRecord::new(sequence, &wear, &self.state.thermal, factor, covariance).to_bytes()
     }
 
     /// The configuration.
@@ -228,19 +235,21 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         // 5. Heat and wear from this sample's dissipated power (friction + drag).
         let heat_torque = friction_power_torque.saturating_add(fric.drag_torque);
         let power = dissipated_power(heat_torque, slip_speed);
-        if power.saturated {
-            flags.insert(Flags::ARITHMETIC_SATURATED);
-        }
-        let thermal = st.thermal.update_with_ambient(
-            &cfg.thermal,
+        let slow = st.sub_rate.step(
+            cfg.thermal_wear_shift,
+            (&mut st.thermal, &cfg.thermal),
+            (&mut st.wear, &cfg.wear),
             power.value,
             inputs.lining_temperature,
             inputs.ambient_temperature,
         );
+        if power.saturated || slow.saturated {
+            flags.insert(Flags::ARITHMETIC_SATURATED);
+        }
+        let (thermal, wear) = (slow.thermal, slow.wear);
         flags.set(Flags::FADE_WARNING, thermal.fade_warning);
         flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
         flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
-        let wear = st.wear.update(&cfg.wear, power.value);
         flags.set(Flags::LINING_WORN, wear.worn_out);
 
         // 6. Adaptation: learn k only from clean slipping samples.
@@ -299,17 +308,20 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         correction: Ratio,
     ) -> Estimate {
         let st = &mut self.state;
-        let thermal = st.thermal.update_with_ambient(
-            &self.cfg.thermal,
+        let cfg = self.cfg;
+        let slow = st.sub_rate.step(
+            cfg.thermal_wear_shift,
+            (&mut st.thermal, &cfg.thermal),
+            (&mut st.wear, &cfg.wear),
             Watts::ZERO,
             inputs.lining_temperature,
             inputs.ambient_temperature,
         );
+        let (thermal, wear) = (slow.thermal, slow.wear);
         flags.set(Flags::FADE_WARNING, thermal.fade_warning);
         flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
         flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
         flags.insert(Flags::ADAPTATION_FROZEN);
-        let wear = st.wear.sample(&self.cfg.wear);
         flags.set(Flags::LINING_WORN, wear.worn_out);
         Estimate {
             torque: None,

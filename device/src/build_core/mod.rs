@@ -194,6 +194,7 @@ fn build_device<const C: usize>(
     let parts = DeviceParts {
         sample_period: Seconds::checked_from_num(period)
             .ok_or_else(|| BuildError::new("device.sample_period_s", "out of range"))?,
+        thermal_wear_every: c.device.thermal_wear_every,
         faces: u8::try_from(c.contact.faces)
             .map_err(|_| BuildError::new("contact.faces", "must be within 1 … 255"))?,
         radius: tables.radius,

@@ -155,7 +155,8 @@ pub fn thermal(c: &DeviceConfig) -> Result<ThermalConfig, BuildError> {
         }
     };
     let p = ThermalParams {
-        dt: c.device.sample_period_s,
+        // The thermal model advances once per sub-rate interval.
+        dt: c.device.sample_period_s * f64::from(c.device.thermal_wear_every),
         // Only the product m·c enters the model.
         rotor_mass: t.rotor_heat_capacity_j_per_k,
         rotor_specific_heat: 1.0,
@@ -438,6 +439,7 @@ pub fn config_error(e: ConfigError) -> BuildError {
         ConfigError::AdaptMinForce => "adaptation.min_clamp_force_n",
         ConfigError::MuTolerance => "friction.mu_tolerance_ratio",
         ConfigError::RadiusTolerance => "contact.radius_tolerance_ratio",
+        ConfigError::ThermalWearEvery => "device.thermal_wear_every",
         _ => "device.sample_period_s",
     };
     BuildError::new(key, e)

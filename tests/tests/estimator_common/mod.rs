@@ -150,13 +150,24 @@ pub fn sensor_config<const C: usize>(fallback: bool) -> SensorConfig<C> {
 }
 
 pub fn device<const C: usize>(spec: &Spec<'_>) -> Device<C> {
+    device_with_sub_rate(spec, 1)
+}
+
+/// As [`device`], with the thermal and wear states advanced every `every` samples (the
+/// thermal model built for `every` · DT).
+pub fn device_with_sub_rate<const C: usize>(spec: &Spec<'_>, every: u8) -> Device<C> {
     let radius = build_radius_table::<2, 2>(&spec.contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
+    let thermal = ThermalParams {
+        dt: DT * f64::from(every),
+        ..thermal_params()
+    };
     DeviceConfig::new(DeviceParts {
         sample_period: Seconds::from_num(DT),
+        thermal_wear_every: every,
         faces: spec.contact.faces(),
         radius,
         friction: FrictionConfig::new(mu_table(), &friction_params(spec)).unwrap(),
-        thermal: ThermalConfig::new(&thermal_params()).unwrap(),
+        thermal: ThermalConfig::new(&thermal).unwrap(),
         wear: WearConfig::new(&wear_params()).unwrap(),
         sensor: sensor_config::<C>(spec.fallback),
         adapt: spec.adapt.then(|| {

@@ -1,0 +1,90 @@
+//! The thermal and wear states as a sub-rate task inside the step.
+//!
+//! Heat and wear change over seconds to hours, so a controller need not advance them at the
+//! force-loop rate. Every sample's dissipated power is summed (saturating); every
+//! `thermal_wear_every`-th sample (n = 1, 2, 4, … 32) the thermal model advances over the whole
+//! interval with the interval's mean power (it is built for the period n·dt) and the wear model
+//! takes the energy of all n samples (its dt is the sample period, so the power sum times dt is
+//! their summed energy, truncated once instead of n times). Between updates the states are
+//! reported as they stand. With n = 1 this is the plain per-sample update, bit for bit.
+//!
+//! What the sub-rate changes against per-sample updates, for n > 1:
+//! - wear and bedding see the same energy (exp(−Σx) = Π exp(−x), so the bedding is the same
+//!   within the series' rounding);
+//! - the thermal state sees the interval's mean power instead of its shape within the
+//!   interval, a difference of order n·dt/τ of the interval's own temperature rise (τ the
+//!   shortest thermal time constant), and the mean is rounded down to 2⁻³² W;
+//! - the lining temperature that μ is read at, and the fade and over-temperature flags, lag by
+//!   up to n − 1 samples; a measured lining or ambient temperature is taken at the update
+//!   samples only (so only they can report it rejected).
+//!
+//! Cost: n − 1 of n samples add one power and read the states out; the n-th carries the whole
+//! thermal and wear update, so the worst-case step is the same as with n = 1 and only the mean
+//! falls.
+
+use crate::thermal::{ThermalConfig, ThermalSample, ThermalState};
+use crate::units::{Celsius, Watts};
+use crate::wear::{WearConfig, WearSample, WearState};
+
+/// The sum of power since the last update.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct SubRate {
+    /// Σ|P| of the samples since the last update (W, saturating).
+    pending: Watts,
+    /// Samples summed in `pending`.
+    samples: u8,
+}
+
+/// What one sample of the sub-rate task reports.
+pub(crate) struct SubRateSample {
+    pub thermal: ThermalSample,
+    pub wear: WearSample,
+    /// The power sum reached the top of [`Watts`].
+    pub saturated: bool,
+}
+
+impl SubRate {
+    /// Nothing pending.
+    pub(crate) const NEW: Self = Self {
+        pending: Watts::ZERO,
+        samples: 0,
+    };
+
+    /// The power summed since the last update (W).
+    pub(crate) const fn pending(&self) -> Watts {
+        self.pending
+    }
+
+    /// Add this sample's `power` (W, ≥ 0); on every `1 << shift`-th sample advance `thermal`
+    /// and `wear` with the sum.
+    pub(crate) fn step(
+        &mut self,
+        shift: u8,
+        (thermal, thermal_cfg): (&mut ThermalState, &ThermalConfig),
+        (wear, wear_cfg): (&mut WearState, &WearConfig),
+        power: Watts,
+        measured: Option<Celsius>,
+        ambient: Option<Celsius>,
+    ) -> SubRateSample {
+        let (sum, overflow) = self.pending.overflowing_add(power.max(Watts::ZERO));
+        let sum = if overflow { Watts::MAX } else { sum };
+        self.samples = self.samples.saturating_add(1);
+        let (thermal, wear) = if u32::from(self.samples) < 1u32 << shift {
+            self.pending = sum;
+            (thermal.sample(), wear.sample(wear_cfg))
+        } else {
+            // The mean over the interval, rounded down (exact for one sample).
+            let mean = Watts::from_bits(sum.to_bits() >> shift);
+            *self = Self::NEW;
+            (
+                thermal.update_with_ambient(thermal_cfg, mean, measured, ambient),
+                wear.update(wear_cfg, sum),
+            )
+        };
+        SubRateSample {
+            thermal,
+            wear,
+            saturated: overflow,
+        }
+    }
+}
