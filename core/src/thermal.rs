@@ -696,17 +696,14 @@ impl ThermalState {
         from_q32(self.lining_q32)
     }
 
-    /// The state as a sample, without advancing it (e.g. between the updates of a sub-rate
-    /// task): model temperatures and the latched flags; no measurement was used or rejected.
-    pub fn sample(&self) -> ThermalSample {
-        ThermalSample {
-            lining_temperature: from_q32(self.lining_q32),
-            rotor_temperature: from_q32(self.rotor_q32),
-            fade_warning: self.fade,
-            over_temperature: self.over,
-            measured_used: false,
-            measured_rejected: false,
-        }
+    /// The fade warning as last latched (see [`ThermalSample::fade_warning`]).
+    pub const fn fade_warning(&self) -> bool {
+        self.fade
+    }
+
+    /// The over-temperature flag as last latched (see [`ThermalSample::over_temperature`]).
+    pub const fn over_temperature(&self) -> bool {
+        self.over
     }
 
     /// One sample: heat with `power` (W; its magnitude is used) held over dt, cool, then take a

@@ -516,7 +516,7 @@ impl WearState {
     /// The state as a sample, without adding energy (e.g. while no force is known).
     pub fn sample(&self, cfg: &WearConfig) -> WearSample {
         let loss = self.thickness_loss();
-        let remaining = cfg.initial_thickness.saturating_sub(loss).max(Metres::ZERO);
+        let remaining = Self::remaining(cfg, loss);
         WearSample {
             energy: self.energy(),
             bedding: self.bedding(),
@@ -524,6 +524,16 @@ impl WearState {
             remaining_thickness: remaining,
             worn_out: remaining <= cfg.minimum_thickness,
         }
+    }
+
+    /// Whether the remaining thickness is at or below the minimum (see
+    /// [`WearSample::worn_out`]).
+    pub fn worn_out(&self, cfg: &WearConfig) -> bool {
+        Self::remaining(cfg, self.thickness_loss()) <= cfg.minimum_thickness
+    }
+
+    fn remaining(cfg: &WearConfig, loss: Metres) -> Metres {
+        cfg.initial_thickness.saturating_sub(loss).max(Metres::ZERO)
     }
 }
 

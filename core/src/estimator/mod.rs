@@ -246,11 +246,10 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         if power.saturated || slow.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
-        let (thermal, wear) = (slow.thermal, slow.wear);
-        flags.set(Flags::FADE_WARNING, thermal.fade_warning);
-        flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
-        flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
-        flags.set(Flags::LINING_WORN, wear.worn_out);
+        flags.set(Flags::FADE_WARNING, slow.fade_warning);
+        flags.set(Flags::OVER_TEMPERATURE, slow.over_temperature);
+        flags.set(Flags::TEMPERATURE_REJECTED, slow.measured_rejected);
+        flags.set(Flags::LINING_WORN, slow.worn_out);
 
         // 6. Adaptation: learn k only from clean slipping samples.
         let gate = AdaptGate {
@@ -290,9 +289,9 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             effective_radius: lever_arm,
             clamp_force: force,
             force_channels_used: channels_used,
-            lining_temperature: thermal.lining_temperature,
-            bedding: wear.bedding,
-            wear: wear.thickness_loss,
+            lining_temperature: slow.lining_temperature,
+            bedding: slow.bedding,
+            wear: slow.thickness_loss,
             correction,
             state,
             flags,
@@ -317,12 +316,11 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             inputs.lining_temperature,
             inputs.ambient_temperature,
         );
-        let (thermal, wear) = (slow.thermal, slow.wear);
-        flags.set(Flags::FADE_WARNING, thermal.fade_warning);
-        flags.set(Flags::OVER_TEMPERATURE, thermal.over_temperature);
-        flags.set(Flags::TEMPERATURE_REJECTED, thermal.measured_rejected);
+        flags.set(Flags::FADE_WARNING, slow.fade_warning);
+        flags.set(Flags::OVER_TEMPERATURE, slow.over_temperature);
+        flags.set(Flags::TEMPERATURE_REJECTED, slow.measured_rejected);
         flags.insert(Flags::ADAPTATION_FROZEN);
-        flags.set(Flags::LINING_WORN, wear.worn_out);
+        flags.set(Flags::LINING_WORN, slow.worn_out);
         Estimate {
             torque: None,
             holding_capacity: None,
@@ -331,9 +329,9 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             effective_radius: crate::units::Metres::ZERO,
             clamp_force: Newtons::ZERO,
             force_channels_used: ChannelMask::EMPTY,
-            lining_temperature: thermal.lining_temperature,
-            bedding: wear.bedding,
-            wear: wear.thickness_loss,
+            lining_temperature: slow.lining_temperature,
+            bedding: slow.bedding,
+            wear: slow.thickness_loss,
             correction,
             state: ContactState::Unavailable,
             flags,

@@ -22,9 +22,9 @@
 //! thermal and wear update, so the worst-case step is the same as with n = 1 and only the mean
 //! falls.
 
-use crate::thermal::{ThermalConfig, ThermalSample, ThermalState};
-use crate::units::{Celsius, Watts};
-use crate::wear::{WearConfig, WearSample, WearState};
+use crate::thermal::{ThermalConfig, ThermalState};
+use crate::units::{Celsius, Metres, Ratio, Watts};
+use crate::wear::{WearConfig, WearState};
 
 /// The sum of power since the last update.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -35,10 +35,17 @@ pub(crate) struct SubRate {
     samples: u8,
 }
 
-/// What one sample of the sub-rate task reports.
-pub(crate) struct SubRateSample {
-    pub thermal: ThermalSample,
-    pub wear: WearSample,
+/// What one sample of the sub-rate task reports: the part of the thermal and wear samples the
+/// estimate uses.
+pub(crate) struct SlowSample {
+    pub lining_temperature: Celsius,
+    pub fade_warning: bool,
+    pub over_temperature: bool,
+    /// A measured lining temperature was checked this sample and rejected.
+    pub measured_rejected: bool,
+    pub bedding: Ratio,
+    pub thickness_loss: Metres,
+    pub worn_out: bool,
     /// The power sum reached the top of [`Watts`].
     pub saturated: bool,
 }
@@ -65,25 +72,36 @@ impl SubRate {
         power: Watts,
         measured: Option<Celsius>,
         ambient: Option<Celsius>,
-    ) -> SubRateSample {
+    ) -> SlowSample {
         let (sum, overflow) = self.pending.overflowing_add(power.max(Watts::ZERO));
         let sum = if overflow { Watts::MAX } else { sum };
         self.samples = self.samples.saturating_add(1);
-        let (thermal, wear) = if u32::from(self.samples) < 1u32 << shift {
+        if u32::from(self.samples) < 1u32 << shift {
             self.pending = sum;
-            (thermal.sample(), wear.sample(wear_cfg))
-        } else {
-            // The mean over the interval, rounded down (exact for one sample).
-            let mean = Watts::from_bits(sum.to_bits() >> shift);
-            *self = Self::NEW;
-            (
-                thermal.update_with_ambient(thermal_cfg, mean, measured, ambient),
-                wear.update(wear_cfg, sum),
-            )
-        };
-        SubRateSample {
-            thermal,
-            wear,
+            return SlowSample {
+                lining_temperature: thermal.lining_temperature(),
+                fade_warning: thermal.fade_warning(),
+                over_temperature: thermal.over_temperature(),
+                measured_rejected: false,
+                bedding: wear.bedding(),
+                thickness_loss: wear.thickness_loss(),
+                worn_out: wear.worn_out(wear_cfg),
+                saturated: overflow,
+            };
+        }
+        // The mean over the interval, rounded down (exact for one sample).
+        let mean = Watts::from_bits(sum.to_bits() >> shift);
+        *self = Self::NEW;
+        let t = thermal.update_with_ambient(thermal_cfg, mean, measured, ambient);
+        let w = wear.update(wear_cfg, sum);
+        SlowSample {
+            lining_temperature: t.lining_temperature,
+            fade_warning: t.fade_warning,
+            over_temperature: t.over_temperature,
+            measured_rejected: t.measured_rejected,
+            bedding: w.bedding,
+            thickness_loss: w.thickness_loss,
+            worn_out: w.worn_out,
             saturated: overflow,
         }
     }
