@@ -380,22 +380,38 @@ pub struct FrictionState {
 
 const ONE_Q30: i64 = 1 << 30;
 
-/// Saturate an i64 into a Ratio's raw range; reports whether it saturated.
-fn ratio_from_i64(v: i64) -> (Ratio, bool) {
-    match i32::try_from(v) {
-        Ok(b) => (Ratio::from_bits(b), false),
-        Err(_) => (
-            Ratio::from_bits(if v < 0 { i32::MIN } else { i32::MAX }),
-            true,
-        ),
-    }
+/// Saturate a non-negative i64 into a Ratio's raw range; reports whether it saturated.
+///
+/// Only used on corrected μ values, which are ≥ 0 (table μ validated ≥ 0, interpolation stays
+/// between stored values, correction taken as ≥ 0, `static_to_kinetic` > 0, and the rounded
+/// product of non-negative values is non-negative), so only the upper bound can be reached.
+#[inline]
+fn ratio_from_non_negative(v: i64) -> (Ratio, bool) {
+    // v ≥ 0 and v.min(i32::MAX) ≤ i32::MAX: the cast is exact.
+    #[allow(clippy::cast_possible_truncation)]
+    let bits = v.min(i64::from(i32::MAX)) as i32;
+    (Ratio::from_bits(bits), v > i64::from(i32::MAX))
 }
 
-/// a·b for two Q30 values, rounded to nearest.
+/// a·b for two Q30 values, rounded to nearest, for |a·b| < 2⁶³ − 2²⁹.
+///
+/// Every use stays far inside that bound, so the wrapping forms are exact (and one multiply,
+/// not an overflow-checked one, which on Cortex-M0 is four library multiplies): the table μ is
+/// validated to [0, 1.2] (below 2^30.3), the correction below 2³¹, the corrected μ below 2^31.3,
+/// `static_to_kinetic` at most 1.6 (below 2^30.7), and a blend weight 1 − φ in [0, 2³⁰] times
+/// a difference of two i32 values below 2³²: every product is below 2⁶².
 fn mul_q30(a: i64, b: i64) -> i64 {
-    // |a|, |b| < 2³² (from i32 raw bits), so the product stays below 2⁶³; saturating keeps the
-    // path panic-free by construction.
-    a.saturating_mul(b).saturating_add(ONE_Q30 >> 1) >> 30
+    a.wrapping_mul(b).wrapping_add(ONE_Q30 >> 1) >> 30
+}
+
+/// A table μ times the correction factor (Q30). The estimator passes exactly 1, for which
+/// `mul_q30(a, 2³⁰) = ⌊a + ½⌋ = a`: skip the multiply, bit for bit the same.
+fn correct(mu: i64, corr: i64) -> i64 {
+    if corr == ONE_Q30 {
+        mu
+    } else {
+        mul_q30(mu, corr)
+    }
 }
 
 impl FrictionState {
@@ -444,8 +460,10 @@ impl FrictionState {
         correction: Ratio,
     ) -> FrictionSample {
         let v = slip_speed.to_bits();
-        // |i32::MIN| saturates to i32::MAX: far outside any table anyway.
-        let speed = v.saturating_abs();
+        // |i32::MIN| saturates to i32::MAX: far outside any table anyway. (The same as
+        // `saturating_abs`, in fewer instructions.)
+        #[allow(clippy::cast_possible_wrap)]
+        let speed = v.unsigned_abs().min(i32::MAX.unsigned_abs()) as i32;
         self.slipping = if self.slipping {
             speed >= cfg.stick_below
         } else {
@@ -455,18 +473,15 @@ impl FrictionState {
         let mut saturated = correction.to_bits() < 0;
         let corr = i64::from(correction.to_bits().max(0));
 
-        let table = &cfg.mu_kinetic;
-        let running = table.lookup(lining_temp, RadPerSec::from_bits(speed));
-        let v0 = table
-            .y_breakpoints()
-            .first()
-            .copied()
-            .unwrap_or(RadPerSec::ZERO);
-        let standstill = table.lookup(lining_temp, v0);
+        // One search of the temperature axis serves both the running and the standstill μ.
+        let (running, standstill) = cfg
+            .mu_kinetic
+            .lookup_with_first_y(lining_temp, RadPerSec::from_bits(speed));
 
-        let (mu_k, sat_k) = ratio_from_i64(mul_q30(i64::from(running.value.to_bits()), corr));
-        let mu_s_corr = mul_q30(i64::from(standstill.value.to_bits()), corr);
-        let (mu_s, sat_s) = ratio_from_i64(mul_q30(
+        let (mu_k, sat_k) =
+            ratio_from_non_negative(correct(i64::from(running.value.to_bits()), corr));
+        let mu_s_corr = correct(i64::from(standstill.value.to_bits()), corr);
+        let (mu_s, sat_s) = ratio_from_non_negative(mul_q30(
             mu_s_corr,
             i64::from(cfg.static_to_kinetic.to_bits()),
         ));
@@ -475,9 +490,11 @@ impl FrictionState {
         let phi = smoothstep_q30(speed, cfg.transition_speed.to_bits(), cfg.transition_recip);
         let mk = i64::from(mu_k.to_bits());
         let ms = i64::from(mu_s.to_bits());
-        // Lies between mk and ms, both valid Ratio bits: cannot saturate.
-        let (mu, _) = ratio_from_i64(
-            mk.saturating_add(mul_q30(ms.saturating_sub(mk), ONE_Q30.saturating_sub(phi))),
+        // mk + (ms − mk)·(1 − φ) rounded lies between mk and ms (0 ≤ 1 − φ ≤ 1), both Ratio
+        // bits: the narrowing is exact.
+        #[allow(clippy::cast_possible_truncation)]
+        let mu = Ratio::from_bits(
+            mk.wrapping_add(mul_q30(ms.wrapping_sub(mk), ONE_Q30.wrapping_sub(phi))) as i32,
         );
 
         let (drag_torque, sat_d) = drag(cfg, speed, phi, v);
@@ -506,11 +523,12 @@ fn smoothstep_q30(speed: i32, v_t: i32, recip: i64) -> i64 {
     if speed >= v_t {
         return ONE_Q30;
     }
-    // speed < v_t, recip ≤ 2⁴⁶/v_t: the product is below 2⁴⁶.
-    let s = (i64::from(speed).saturating_mul(recip) >> 16).clamp(0, ONE_Q30);
-    let s2 = s.saturating_mul(s) >> 30;
-    // s2 ≤ 2³⁰ and 3·2³⁰ − 2s ≤ 3·2³⁰: the product is below 2⁶².
-    (s2.saturating_mul((3 * ONE_Q30).saturating_sub(s.saturating_mul(2))) >> 30).clamp(0, ONE_Q30)
+    // 0 ≤ speed < v_t and 0 < recip ≤ 2⁴⁶/v_t: the product is in [0, 2⁴⁶), so s in [0, 2³⁰).
+    let s = i64::from(speed).wrapping_mul(recip) >> 16;
+    let s2 = s.wrapping_mul(s) >> 30;
+    // s2 ≤ s²/2³⁰ < 2³⁰ and 2³⁰ < 3·2³⁰ − 2s ≤ 3·2³⁰: the product is in [0, 2⁶²), and the result
+    // ≤ s²·(3·2³⁰ − 2s)/2⁶⁰ = 2³⁰·(3u² − 2u³) ≤ 2³⁰ (u = s/2³⁰ in [0, 1)): already in [0, 2³⁰].
+    s2.wrapping_mul((3 * ONE_Q30).wrapping_sub(s.wrapping_mul(2))) >> 30
 }
 
 /// Signed drag torque opposing slip, and whether it saturated.
@@ -523,19 +541,20 @@ fn drag<const NT: usize, const NV: usize>(
     if v == 0 {
         return (NewtonMetres::ZERO, false);
     }
-    // c_v (Q16) · |v| (Q16) is Q32, below 2⁶²; to Q12 rounded.
+    // c_v (Q16, ≥ 0) · |v| (Q16, ≥ 0) is Q32, in [0, 2⁶²); to Q12 rounded, below 2⁴².
     let viscous = i64::from(cfg.viscous_drag.to_bits())
-        .saturating_mul(i64::from(speed))
-        .saturating_add(1 << 19)
+        .wrapping_mul(i64::from(speed))
+        .wrapping_add(1 << 19)
         >> 20;
-    // T₀ (Q12) · φ (Q30) below 2⁶¹; to Q12 rounded.
+    // T₀ (Q12, ≥ 0) · φ (Q30, in [0, 2³⁰]) in [0, 2⁶¹]; to Q12 rounded, below 2³¹.
     let no_load = i64::from(cfg.no_load_drag.to_bits())
-        .saturating_mul(phi)
-        .saturating_add(ONE_Q30 >> 1)
+        .wrapping_mul(phi)
+        .wrapping_add(ONE_Q30 >> 1)
         >> 30;
-    let magnitude = viscous.saturating_add(no_load);
+    // Below 2⁴³: neither the sum nor the negation can wrap. Only the narrowing can saturate.
+    let magnitude = viscous.wrapping_add(no_load);
     let signed = if v > 0 {
-        magnitude.saturating_neg()
+        magnitude.wrapping_neg()
     } else {
         magnitude
     };

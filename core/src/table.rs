@@ -127,81 +127,205 @@ const fn validate_axis<F: LeEqU32>(axis: Axis, x: &[FixedI32<F>]) -> Result<(), 
     Ok(())
 }
 
-/// Where an input falls on an axis: the lower breakpoint index, the upper one, and the
-/// fraction between them as Q0.31 (0 ..= 2³¹).
+/// Per-segment division constants of one axis, fixed when the table is built, so a lookup
+/// multiplies instead of dividing (on Cortex-M0 a 64-bit division is a library call of several
+/// hundred instructions).
+///
+/// For segment `i` with span `d = x[i+1] − x[i]` (1 ≤ d < 2³², raw bits) and `L = ⌊log₂ d⌋`:
+/// `recip[i] = ⌊(2^(32+L) − 1) / d⌋` (below 2³² because d ≥ 2^L) and `shift[i] = L + 1`. The
+/// last entry of each array is unused (an axis of N breakpoints has N − 1 segments; stable Rust
+/// cannot size an array `N − 1`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+struct Divisors<const N: usize> {
+    recip: [u32; N],
+    shift: [u8; N],
+}
+
+impl<const N: usize> Divisors<N> {
+    /// Constants of a validated (strictly increasing) axis.
+    const fn of<F: LeEqU32>(x: &[FixedI32<F>; N]) -> Self {
+        let mut recip = [0u32; N];
+        let mut shift = [0u8; N];
+        let mut i = 0;
+        while i + 1 < N {
+            // i + 1 < N by the loop bound; `get` is not usable in a const fn.
+            #[allow(clippy::indexing_slicing)]
+            let (x0, x1) = (x[i].to_bits(), x[i + 1].to_bits());
+            // x1 > x0 (validated), so 1 ≤ x1 − x0 ≤ 2³² − 1: exact in u32 as a wrapping difference.
+            #[allow(clippy::cast_sign_loss)]
+            let d = x1.wrapping_sub(x0) as u32;
+            let l = 31 - d.leading_zeros();
+            // (2^(32+L) − 1) / d < 2^(32+L) / 2^L = 2³²: the cast is exact.
+            #[allow(clippy::cast_possible_truncation, clippy::indexing_slicing)]
+            {
+                recip[i] = (((1u64 << (32 + l)) - 1) / d as u64) as u32;
+                shift[i] = (l + 1) as u8;
+            }
+            i += 1;
+        }
+        Self { recip, shift }
+    }
+}
+
+/// ⌊r·2³¹ / d⌋ for 0 ≤ r ≤ d < 2³², from the segment's constants `recip`, `shift` (see
+/// [`Divisors`]); equal to the plain division for every input (property test
+/// `fraction_matches_division`, and the argument below).
+///
+/// With `m = recip = (2^(32+L) − 1 − ρ) / d`, 0 ≤ ρ < d, write m = 2^(32+L)/d − ε with
+/// 0 < ε = (1 + ρ)/d ≤ 1. Then r·m / 2^(L+1) = r·2³¹/d − r·ε/2^(L+1), and
+/// 0 ≤ r·ε/2^(L+1) ≤ d/2^(L+1) < 1 (d < 2^(L+1)), so the estimate `q̂ = ⌊r·m / 2^(L+1)⌋` is
+/// the quotient q or q − 1. The remainder r·2³¹ − q̂·d lies in [0, 2d) and decides: q = q̂ + 1
+/// exactly when it is ≥ d. r·m < 2⁶⁴ fits u64; q̂ < 2³¹ and q ≤ 2³¹ fit u32.
+#[inline]
+fn fraction_q31(r: u32, d: u32, recip: u32, shift: u8) -> u32 {
+    // r·m < d·2^(32+L)/d = 2^(32+L), so the estimate is below 2³¹: the cast is exact.
+    #[allow(clippy::cast_possible_truncation)]
+    let estimate = u64::from(r)
+        .wrapping_mul(u64::from(recip))
+        .wrapping_shr(u32::from(shift)) as u32;
+    estimate.wrapping_add(u32::from(remainder_reaches(r, d, estimate)))
+}
+
+/// Whether r·2³¹ − q̂·d ≥ d, for the estimate q̂ of [`fraction_q31`] (remainder in [0, 2d)).
+#[cfg(target_pointer_width = "64")]
+#[inline]
+fn remainder_reaches(r: u32, d: u32, estimate: u32) -> bool {
+    remainder_reaches_wide(r, d, estimate)
+}
+
+/// Whether r·2³¹ − q̂·d ≥ d, for the estimate q̂ of [`fraction_q31`] (remainder in [0, 2d)).
+#[cfg(not(target_pointer_width = "64"))]
+#[inline]
+fn remainder_reaches(r: u32, d: u32, estimate: u32) -> bool {
+    remainder_reaches_narrow(r, d, estimate)
+}
+
+/// The remainder test in u64: r·2³¹ < 2⁶³ and q̂·d ≤ r·2³¹, so it is exact (one multiply on a
+/// 64-bit target).
+#[inline]
+fn remainder_reaches_wide(r: u32, d: u32, estimate: u32) -> bool {
+    let rem = (u64::from(r) << 31).wrapping_sub(u64::from(estimate).wrapping_mul(u64::from(d)));
+    rem >= u64::from(d)
+}
+
+/// The remainder test for 32-bit targets, where a 64-bit multiply is a library call: for
+/// d ≤ 2³¹ the remainder is below 2d ≤ 2³², so it is exact modulo 2³² (one 32-bit multiply);
+/// only wider segments take the 64-bit form.
+#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
+#[inline]
+fn remainder_reaches_narrow(r: u32, d: u32, estimate: u32) -> bool {
+    if d <= 1 << 31 {
+        let rem = (r << 31).wrapping_sub(estimate.wrapping_mul(d));
+        rem >= d
+    } else {
+        remainder_reaches_wide(r, d, estimate)
+    }
+}
+
+/// Where an input falls on an axis: the segment (lower breakpoint index; 0 on a one-point
+/// axis) and the fraction towards its upper breakpoint as Q0.31 (0 ..= 2³¹). An input beyond
+/// the last breakpoint is placed at fraction 2³¹ of the last segment, which interpolates to the
+/// last value exactly.
 #[derive(Clone, Copy, Debug)]
 struct Position {
     lo: usize,
-    hi: usize,
-    frac_q31: i64,
+    frac_q31: u32,
     clamped: bool,
 }
 
-const ONE_Q31: i64 = 1 << 31;
+const HALF_Q31: i64 = 1 << 30;
 
-fn locate<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> Position {
-    let x = i64::from(x.to_bits());
-    let last = axis.len().saturating_sub(1);
-    let bits = |i: usize| axis.get(i).map_or(0, |v| i64::from(v.to_bits()));
-    if x <= bits(0) {
-        return Position {
-            lo: 0,
-            hi: 0,
-            frac_q31: 0,
-            clamped: x < bits(0),
-        };
-    }
-    if x >= bits(last) {
-        return Position {
-            lo: last,
-            hi: last,
-            frac_q31: 0,
-            clamped: x > bits(last),
-        };
-    }
-    // bits(0) < x < bits(last): a segment with x0 <= x < x1 exists. Linear scan: tables are
-    // short (tens of breakpoints) and the loop is bounded by the const length.
-    let lo = axis
-        .windows(2)
-        .position(|w| match w {
-            [_, x1] => x < i64::from(x1.to_bits()),
-            _ => false,
-        })
-        .unwrap_or(0);
-    let hi = lo.saturating_add(1);
-    let (x0, x1) = (bits(lo), bits(hi));
-    // 0 <= x − x0 < x1 − x0 < 2³², so the shifted numerator stays below 2⁶³.
-    // Saturating and checked forms are exact here; they only make the absence of overflow and
-    // division panics visible to the compiler (the firmware's link-time panic check).
-    let span = x1.saturating_sub(x0).max(1);
-    let frac_q31 = x
-        .saturating_sub(x0)
-        .saturating_mul(ONE_Q31)
-        .checked_div(span)
-        .unwrap_or(0);
+/// Raw bits of the first and last breakpoint (0 for an empty axis, which validation rejects).
+#[inline]
+fn ends<F: LeEqU32>(axis: &[FixedI32<F>]) -> (i32, i32) {
+    let first = axis.first().map_or(0, |v| v.to_bits());
+    let last = axis.last().map_or(0, |v| v.to_bits());
+    (first, last)
+}
+
+#[inline]
+fn locate<F: LeEqU32, const N: usize>(
+    axis: &[FixedI32<F>; N],
+    div: &Divisors<N>,
+    x: FixedI32<F>,
+) -> Position {
+    let x = x.to_bits();
+    let (first, last) = ends(axis);
+    // Breakpoints increase, so first ≤ last and this is a clamp (`clamp` itself would carry an
+    // assertion).
+    let at = x.max(first).min(last);
+    let clamped = at != x;
+    // The segment: the number of inner breakpoints at or below the clamped input, so
+    // 0 ..= N − 2. A branch-free count over a short axis, bounded by the const length.
+    let lo = axis.get(1..N.saturating_sub(1)).map_or(0, |inner| {
+        inner.iter().filter(|b| b.to_bits() <= at).count()
+    });
+    let frac_q31 = match (axis.get(lo..), div.recip.get(lo), div.shift.get(lo)) {
+        (Some([x0, x1, ..]), Some(&recip), Some(&shift)) => {
+            let x0 = x0.to_bits();
+            // x0 ≤ at ≤ x1 and x0 < x1: both differences are exact in u32 as wrapping
+            // differences of i32 bits.
+            #[allow(clippy::cast_sign_loss)]
+            let (r, d) = (
+                at.wrapping_sub(x0) as u32,
+                x1.to_bits().wrapping_sub(x0) as u32,
+            );
+            fraction_q31(r, d, recip, shift)
+        }
+        // A one-point axis: the value is the only one.
+        _ => 0,
+    };
     Position {
         lo,
-        hi,
         frac_q31,
-        clamped: false,
+        clamped,
     }
 }
 
-/// Round-to-nearest linear step between two raw values: a + (b − a)·t, t in Q0.31.
-fn lerp_bits(a: i64, b: i64, frac_q31: i64) -> i64 {
-    // |b − a| < 2³² and t <= 2³¹, so the product stays below 2⁶³.
-    let step = b
-        .saturating_sub(a)
-        .saturating_mul(frac_q31)
-        .saturating_add(ONE_Q31 >> 1)
-        >> 31;
-    a.saturating_add(step)
+/// The position on an axis along which the table does not change: only the clamped flag
+/// matters, the value is the same at every index.
+#[inline]
+fn position_flat<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> Position {
+    let (first, last) = ends(axis);
+    let x = x.to_bits();
+    Position {
+        lo: 0,
+        frac_q31: 0,
+        clamped: x < first || x > last,
+    }
 }
 
-/// Narrow an interpolated value back to 32 bits. It lies between two stored i32 values, so this
-/// never saturates in practice; saturating keeps it panic-free by construction.
+/// Round-to-nearest linear step between two raw values: a + (b − a)·t, t in Q0.31 (≤ 2³¹).
+#[inline]
+fn lerp_bits(a: i64, b: i64, frac_q31: u32) -> i64 {
+    // |b − a| ≤ 2³² − 1 (two i32 values) and t ≤ 2³¹: |(b − a)·t| + 2³⁰ < 2⁶³, so the wrapping
+    // forms are exact (and a single multiply, not an overflow-checked one).
+    let step = b
+        .wrapping_sub(a)
+        .wrapping_mul(i64::from(frac_q31))
+        .wrapping_add(HALF_Q31)
+        >> 31;
+    a.wrapping_add(step)
+}
+
+/// Interpolate `values` at a position.
+#[inline]
+fn interpolate<F: LeEqU32>(values: &[FixedI32<F>], p: Position) -> i64 {
+    match values.get(p.lo..) {
+        Some([a, b, ..]) => lerp_bits(i64::from(a.to_bits()), i64::from(b.to_bits()), p.frac_q31),
+        Some([a]) => i64::from(a.to_bits()),
+        _ => 0,
+    }
+}
+
+/// Narrow an interpolated value back to 32 bits: exact, because it lies between two stored
+/// i32 values (the rounded step ⌊(b − a)·t/2³¹ + ½⌋ lies between 0 and b − a for 0 ≤ t ≤ 2³¹,
+/// and a bilinear value between the two row values it interpolates).
+#[inline]
 fn narrow(v: i64) -> i32 {
-    i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX })
+    #[allow(clippy::cast_possible_truncation)]
+    let bits = v as i32;
+    bits
 }
 
 fn to_fixed_checked<F: LeEqU32>(v: f64) -> Option<FixedI32<F>> {
@@ -217,6 +341,7 @@ fn to_fixed_checked<F: LeEqU32>(v: f64) -> Option<FixedI32<F>> {
 pub struct Table1<XF: LeEqU32, YF: LeEqU32, const N: usize> {
     x: [FixedI32<XF>; N],
     y: [FixedI32<YF>; N],
+    x_div: Divisors<N>,
 }
 
 impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
@@ -227,7 +352,11 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     /// breakpoint that is not above its predecessor.
     pub const fn new(x: [FixedI32<XF>; N], y: [FixedI32<YF>; N]) -> Result<Self, TableError> {
         match validate_axis(Axis::X, &x) {
-            Ok(()) => Ok(Self { x, y }),
+            Ok(()) => Ok(Self {
+                x_div: Divisors::of(&x),
+                x,
+                y,
+            }),
             Err(e) => Err(e),
         }
     }
@@ -267,10 +396,10 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     }
 
     /// Interpolate at `x`; outside the breakpoints the end value is returned and flagged.
+    #[inline]
     pub fn lookup(&self, x: FixedI32<XF>) -> Lookup<FixedI32<YF>> {
-        let p = locate(&self.x, x);
-        let y = |i: usize| self.y.get(i).map_or(0, |v| i64::from(v.to_bits()));
-        let bits = lerp_bits(y(p.lo), y(p.hi), p.frac_q31);
+        let p = locate(&self.x, &self.x_div, x);
+        let bits = interpolate(&self.y, p);
         Lookup {
             value: FixedI32::from_bits(narrow(bits)),
             clamped: p.clamped,
@@ -285,6 +414,11 @@ pub struct Table2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const 
     x: [FixedI32<XF>; NX],
     y: [FixedI32<YF>; NY],
     z: [[FixedI32<ZF>; NY]; NX],
+    x_div: Divisors<NX>,
+    y_div: Divisors<NY>,
+    /// Every row equals the first: z does not depend on x (a geometric radius table), so a
+    /// lookup only compares x with the ends for the clamped flag.
+    x_flat: bool,
 }
 
 impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
@@ -303,7 +437,14 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
             return Err(e);
         }
         match validate_axis(Axis::Y, &y) {
-            Ok(()) => Ok(Self { x, y, z }),
+            Ok(()) => Ok(Self {
+                x_div: Divisors::of(&x),
+                y_div: Divisors::of(&y),
+                x_flat: rows_equal(&z),
+                x,
+                y,
+                z,
+            }),
             Err(e) => Err(e),
         }
     }
@@ -355,22 +496,105 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     }
 
     /// Interpolate at `(x, y)`; outside the grid the edge value is returned and flagged.
+    #[inline]
     pub fn lookup(&self, x: FixedI32<XF>, y: FixedI32<YF>) -> Lookup<FixedI32<ZF>> {
-        let px = locate(&self.x, x);
-        let py = locate(&self.y, y);
-        let z = |i: usize, j: usize| {
-            self.z
-                .get(i)
-                .and_then(|row| row.get(j))
-                .map_or(0, |v| i64::from(v.to_bits()))
-        };
-        let along_y = |i: usize| lerp_bits(z(i, py.lo), z(i, py.hi), py.frac_q31);
-        let bits = lerp_bits(along_y(px.lo), along_y(px.hi), px.frac_q31);
+        let px = self.position_x(x);
+        let py = locate(&self.y, &self.y_div, y);
         Lookup {
-            value: FixedI32::from_bits(narrow(bits)),
+            value: FixedI32::from_bits(narrow(self.interpolate(px, py))),
             clamped: px.clamped || py.clamped,
         }
     }
+
+    /// Interpolate at `(x, y)` and at `(x, y₀)`, y₀ the first breakpoint of the second axis,
+    /// with one search of the first axis: the pair `(lookup(x, y), lookup(x, y₀))`, bit for bit.
+    /// (The kinetic and the standstill μ of [`crate::friction`] at one lining temperature.)
+    ///
+    /// ```
+    /// use clampwise_core::table::Table2;
+    /// use clampwise_core::units::{Celsius, RadPerSec, Ratio};
+    /// use fixed::types::extra::{U16, U30};
+    ///
+    /// let mu = Table2::<U16, U16, U30, 2, 2>::from_f64(
+    ///     &[0.0, 400.0], &[0.0, 100.0], &[[0.40, 0.36], [0.30, 0.26]],
+    /// )?;
+    /// let (t, v) = (Celsius::lit("200"), RadPerSec::lit("50"));
+    /// let (running, standstill) = mu.lookup_with_first_y(t, v);
+    /// assert_eq!(running, mu.lookup(t, v));
+    /// assert_eq!(standstill, mu.lookup(t, RadPerSec::ZERO));
+    /// assert_eq!(standstill.value, Ratio::lit("0.35"));
+    /// # Ok::<(), clampwise_core::table::TableError>(())
+    /// ```
+    #[inline]
+    pub fn lookup_with_first_y(
+        &self,
+        x: FixedI32<XF>,
+        y: FixedI32<YF>,
+    ) -> (Lookup<FixedI32<ZF>>, Lookup<FixedI32<ZF>>) {
+        let px = self.position_x(x);
+        let py = locate(&self.y, &self.y_div, y);
+        // y₀ itself: index 0, no fraction, not clamped.
+        let p0 = Position {
+            lo: 0,
+            frac_q31: 0,
+            clamped: false,
+        };
+        (
+            Lookup {
+                value: FixedI32::from_bits(narrow(self.interpolate(px, py))),
+                clamped: px.clamped || py.clamped,
+            },
+            Lookup {
+                value: FixedI32::from_bits(narrow(self.interpolate(px, p0))),
+                clamped: px.clamped,
+            },
+        )
+    }
+
+    #[inline]
+    fn position_x(&self, x: FixedI32<XF>) -> Position {
+        if self.x_flat {
+            position_flat(&self.x, x)
+        } else {
+            locate(&self.x, &self.x_div, x)
+        }
+    }
+
+    /// Bilinear interpolation at two axis positions: along y in the rows of the x segment,
+    /// then along x (one row when z does not depend on x: the x step would return it as is).
+    #[inline]
+    fn interpolate(&self, px: Position, py: Position) -> i64 {
+        let along_y = |i: usize| self.z.get(i).map_or(0, |row| interpolate(row, py));
+        if self.x_flat || NX < 2 {
+            along_y(0)
+        } else {
+            lerp_bits(
+                along_y(px.lo),
+                along_y(px.lo.saturating_add(1)),
+                px.frac_q31,
+            )
+        }
+    }
+}
+
+/// Whether every row of a grid equals the first (the grid does not depend on x).
+const fn rows_equal<F: LeEqU32, const NX: usize, const NY: usize>(
+    z: &[[FixedI32<F>; NY]; NX],
+) -> bool {
+    let mut i = 1;
+    while i < NX {
+        let mut j = 0;
+        while j < NY {
+            // i < NX, j < NY by the loop bounds; `get` is not usable in a const fn.
+            #[allow(clippy::indexing_slicing)]
+            if z[i][j].to_bits() != z[0][j].to_bits() {
+                return false;
+            }
+            j += 1;
+        }
+        i += 1;
+    }
+    true
 }
 
 #[cfg(test)]
