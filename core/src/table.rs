@@ -9,6 +9,20 @@
 //! exact linear interpolant of the stored values, and a 2-D lookup within 1 LSB. A lookup at a
 //! breakpoint returns the stored value exactly.
 //!
+//! ## Cost
+//!
+//! No division at lookup time: each segment's span has a reciprocal and a shift fixed when the
+//! table is built (5 bytes per breakpoint and axis), and the fraction ⌊(x − x₀)·2³¹ / (x₁ − x₀)⌋
+//! is a multiply, a shift and one remainder correction — bit for bit the floor division (proof
+//! at `fraction_q31`, checked by property tests against the division and against the former
+//! dividing implementation). The segment is a branch-free count over the axis (O(N), bounded).
+//! A 2-D table whose rows are all equal (a radius table from geometry alone) is detected at
+//! construction and skips its first axis except for the clamped flag. Measured with callgrind
+//! on x86-64 (`benches/instructions.sh --hot`, bench device): the 3 × 3 radius lookup ~52
+//! instructions; the friction update's two μ lookups on the 6 × 5 table (one temperature search
+//! for both, [`Table2::lookup_with_first_y`]) about half of its ~200. On Cortex-M0 a lookup needs
+//! one `__aeabi_lmul` per axis and per linear step, and no 64-bit division.
+//!
 //! ```
 //! use clampwise_core::table::Table1;
 //! use clampwise_core::units::{Celsius, Ratio};
@@ -127,81 +141,211 @@ const fn validate_axis<F: LeEqU32>(axis: Axis, x: &[FixedI32<F>]) -> Result<(), 
     Ok(())
 }
 
-/// Where an input falls on an axis: the lower breakpoint index, the upper one, and the
-/// fraction between them as Q0.31 (0 ..= 2³¹).
+/// Per-segment division constants of one axis, fixed when the table is built, so a lookup
+/// multiplies instead of dividing (on Cortex-M0 a 64-bit division is a library call of several
+/// hundred instructions).
+///
+/// For segment `i` with span `d = x[i+1] − x[i]` (1 ≤ d < 2³², raw bits) and `L = ⌊log₂ d⌋`:
+/// `recip[i] = ⌊(2^(32+L) − 1) / d⌋` (below 2³² because d ≥ 2^L) and `shift[i] = L + 1`. The
+/// last entry of each array is unused (an axis of N breakpoints has N − 1 segments; stable Rust
+/// cannot size an array `N − 1`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+struct Divisors<const N: usize> {
+    recip: [u32; N],
+    shift: [u8; N],
+}
+
+impl<const N: usize> Divisors<N> {
+    /// Constants of a validated (strictly increasing) axis.
+    const fn of<F: LeEqU32>(x: &[FixedI32<F>; N]) -> Self {
+        let mut recip = [0u32; N];
+        let mut shift = [0u8; N];
+        let mut i = 0;
+        while i + 1 < N {
+            // i + 1 < N by the loop bound; `get` is not usable in a const fn.
+            #[allow(clippy::indexing_slicing)]
+            let (x0, x1) = (x[i].to_bits(), x[i + 1].to_bits());
+            // x1 > x0 (validated), so 1 ≤ x1 − x0 ≤ 2³² − 1: exact in u32 as a wrapping
+            // difference.
+            #[allow(clippy::cast_sign_loss)]
+            let (m, s) = segment_constants(x1.wrapping_sub(x0) as u32);
+            #[allow(clippy::indexing_slicing)]
+            {
+                recip[i] = m;
+                shift[i] = s;
+            }
+            i += 1;
+        }
+        Self { recip, shift }
+    }
+}
+
+/// `(⌊(2^(32+L) − 1) / d⌋, L + 1)` for a span d ≥ 1, `L = ⌊log₂ d⌋` (d = 0 gives `(0, 0)`; a
+/// validated axis has no such segment).
+const fn segment_constants(d: u32) -> (u32, u8) {
+    if d == 0 {
+        return (0, 0);
+    }
+    let l = 31 - d.leading_zeros();
+    // (2^(32+L) − 1) / d < 2^(32+L) / 2^L = 2³², and L + 1 ≤ 32: both casts are exact.
+    #[allow(clippy::cast_possible_truncation)]
+    ((((1u64 << (32 + l)) - 1) / d as u64) as u32, (l + 1) as u8)
+}
+
+/// ⌊r·2³¹ / d⌋ for 0 ≤ r ≤ d < 2³², from the segment's constants `recip`, `shift` (see
+/// [`Divisors`]); equal to the plain division for every input (property test
+/// `fraction_matches_division`, and the argument below).
+///
+/// With `m = recip = (2^(32+L) − 1 − ρ) / d`, 0 ≤ ρ < d, write m = 2^(32+L)/d − ε with
+/// 0 < ε = (1 + ρ)/d ≤ 1. Then r·m / 2^(L+1) = r·2³¹/d − r·ε/2^(L+1), and
+/// 0 ≤ r·ε/2^(L+1) ≤ d/2^(L+1) < 1 (d < 2^(L+1)), so the estimate `q̂ = ⌊r·m / 2^(L+1)⌋` is
+/// the quotient q or q − 1. The remainder r·2³¹ − q̂·d lies in [0, 2d) and decides: q = q̂ + 1
+/// exactly when it is ≥ d. r·m < 2⁶⁴ fits u64; q̂ < 2³¹ and q ≤ 2³¹ fit u32.
+#[inline]
+fn fraction_q31(r: u32, d: u32, recip: u32, shift: u8) -> u32 {
+    // r·m < d·2^(32+L)/d = 2^(32+L), so the estimate is below 2³¹: the cast is exact.
+    #[allow(clippy::cast_possible_truncation)]
+    let estimate = u64::from(r)
+        .wrapping_mul(u64::from(recip))
+        .wrapping_shr(u32::from(shift)) as u32;
+    estimate.wrapping_add(u32::from(remainder_reaches(r, d, estimate)))
+}
+
+/// Whether r·2³¹ − q̂·d ≥ d, for the estimate q̂ of [`fraction_q31`] (remainder in [0, 2d)).
+#[cfg(target_pointer_width = "64")]
+#[inline]
+fn remainder_reaches(r: u32, d: u32, estimate: u32) -> bool {
+    remainder_reaches_wide(r, d, estimate)
+}
+
+/// Whether r·2³¹ − q̂·d ≥ d, for the estimate q̂ of [`fraction_q31`] (remainder in [0, 2d)).
+#[cfg(not(target_pointer_width = "64"))]
+#[inline]
+fn remainder_reaches(r: u32, d: u32, estimate: u32) -> bool {
+    remainder_reaches_narrow(r, d, estimate)
+}
+
+/// The remainder test in u64: r·2³¹ < 2⁶³ and q̂·d ≤ r·2³¹, so it is exact (one multiply on a
+/// 64-bit target).
+#[inline]
+fn remainder_reaches_wide(r: u32, d: u32, estimate: u32) -> bool {
+    let rem = (u64::from(r) << 31).wrapping_sub(u64::from(estimate).wrapping_mul(u64::from(d)));
+    rem >= u64::from(d)
+}
+
+/// The remainder test for 32-bit targets, where a 64-bit multiply is a library call: for
+/// d ≤ 2³¹ the remainder is below 2d ≤ 2³², so it is exact modulo 2³² (one 32-bit multiply);
+/// only wider segments take the 64-bit form.
+#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
+#[inline]
+fn remainder_reaches_narrow(r: u32, d: u32, estimate: u32) -> bool {
+    if d <= 1 << 31 {
+        let rem = (r << 31).wrapping_sub(estimate.wrapping_mul(d));
+        rem >= d
+    } else {
+        remainder_reaches_wide(r, d, estimate)
+    }
+}
+
+/// Where an input falls on an axis: the segment (lower breakpoint index; 0 on a one-point
+/// axis) and the fraction towards its upper breakpoint as Q0.31 (0 ..= 2³¹). An input beyond
+/// the last breakpoint is placed at fraction 2³¹ of the last segment, which interpolates to the
+/// last value exactly.
 #[derive(Clone, Copy, Debug)]
 struct Position {
     lo: usize,
-    hi: usize,
-    frac_q31: i64,
+    frac_q31: u32,
     clamped: bool,
 }
 
-const ONE_Q31: i64 = 1 << 31;
+const HALF_Q31: i64 = 1 << 30;
 
-fn locate<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> Position {
-    let x = i64::from(x.to_bits());
-    let last = axis.len().saturating_sub(1);
-    let bits = |i: usize| axis.get(i).map_or(0, |v| i64::from(v.to_bits()));
-    if x <= bits(0) {
-        return Position {
-            lo: 0,
-            hi: 0,
-            frac_q31: 0,
-            clamped: x < bits(0),
-        };
-    }
-    if x >= bits(last) {
-        return Position {
-            lo: last,
-            hi: last,
-            frac_q31: 0,
-            clamped: x > bits(last),
-        };
-    }
-    // bits(0) < x < bits(last): a segment with x0 <= x < x1 exists. Linear scan: tables are
-    // short (tens of breakpoints) and the loop is bounded by the const length.
-    let lo = axis
-        .windows(2)
-        .position(|w| match w {
-            [_, x1] => x < i64::from(x1.to_bits()),
-            _ => false,
-        })
-        .unwrap_or(0);
-    let hi = lo.saturating_add(1);
-    let (x0, x1) = (bits(lo), bits(hi));
-    // 0 <= x − x0 < x1 − x0 < 2³², so the shifted numerator stays below 2⁶³.
-    // Saturating and checked forms are exact here; they only make the absence of overflow and
-    // division panics visible to the compiler (the firmware's link-time panic check).
-    let span = x1.saturating_sub(x0).max(1);
-    let frac_q31 = x
-        .saturating_sub(x0)
-        .saturating_mul(ONE_Q31)
-        .checked_div(span)
-        .unwrap_or(0);
+/// Raw bits of the first and last breakpoint (0 for an empty axis, which validation rejects).
+#[inline]
+fn ends<F: LeEqU32>(axis: &[FixedI32<F>]) -> (i32, i32) {
+    let first = axis.first().map_or(0, |v| v.to_bits());
+    let last = axis.last().map_or(0, |v| v.to_bits());
+    (first, last)
+}
+
+#[inline]
+fn locate<F: LeEqU32, const N: usize>(
+    axis: &[FixedI32<F>; N],
+    div: &Divisors<N>,
+    x: FixedI32<F>,
+) -> Position {
+    let x = x.to_bits();
+    let (first, last) = ends(axis);
+    // Breakpoints increase, so first ≤ last and this is a clamp (`clamp` itself would carry an
+    // assertion).
+    let at = x.max(first).min(last);
+    let clamped = at != x;
+    // The segment: the number of inner breakpoints at or below the clamped input, so
+    // 0 ..= N − 2. A branch-free count over a short axis, bounded by the const length.
+    let lo = axis.get(1..N.saturating_sub(1)).map_or(0, |inner| {
+        inner.iter().filter(|b| b.to_bits() <= at).count()
+    });
+    let frac_q31 = match (axis.get(lo..), div.recip.get(lo), div.shift.get(lo)) {
+        (Some([x0, x1, ..]), Some(&recip), Some(&shift)) => {
+            let x0 = x0.to_bits();
+            // x0 ≤ at ≤ x1 and x0 < x1: both differences are exact in u32 as wrapping
+            // differences of i32 bits.
+            #[allow(clippy::cast_sign_loss)]
+            let (r, d) = (
+                at.wrapping_sub(x0) as u32,
+                x1.to_bits().wrapping_sub(x0) as u32,
+            );
+            fraction_q31(r, d, recip, shift)
+        }
+        // A one-point axis: the value is the only one.
+        _ => 0,
+    };
     Position {
         lo,
-        hi,
         frac_q31,
-        clamped: false,
+        clamped,
     }
 }
 
-/// Round-to-nearest linear step between two raw values: a + (b − a)·t, t in Q0.31.
-fn lerp_bits(a: i64, b: i64, frac_q31: i64) -> i64 {
-    // |b − a| < 2³² and t <= 2³¹, so the product stays below 2⁶³.
-    let step = b
-        .saturating_sub(a)
-        .saturating_mul(frac_q31)
-        .saturating_add(ONE_Q31 >> 1)
-        >> 31;
-    a.saturating_add(step)
+/// Whether an input lies outside an axis (below the first or above the last breakpoint).
+#[inline]
+fn outside<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> bool {
+    let (first, last) = ends(axis);
+    let x = x.to_bits();
+    x < first || x > last
 }
 
-/// Narrow an interpolated value back to 32 bits. It lies between two stored i32 values, so this
-/// never saturates in practice; saturating keeps it panic-free by construction.
+/// Round-to-nearest linear step between two raw values: a + (b − a)·t, t in Q0.31 (≤ 2³¹).
+#[inline]
+fn lerp_bits(a: i64, b: i64, frac_q31: u32) -> i64 {
+    // |b − a| ≤ 2³² − 1 (two i32 values) and t ≤ 2³¹: |(b − a)·t| + 2³⁰ < 2⁶³, so the wrapping
+    // forms are exact (and a single multiply, not an overflow-checked one).
+    let step = b
+        .wrapping_sub(a)
+        .wrapping_mul(i64::from(frac_q31))
+        .wrapping_add(HALF_Q31)
+        >> 31;
+    a.wrapping_add(step)
+}
+
+/// Interpolate `values` at a position.
+#[inline]
+fn interpolate<F: LeEqU32>(values: &[FixedI32<F>], p: Position) -> i64 {
+    match values.get(p.lo..) {
+        Some([a, b, ..]) => lerp_bits(i64::from(a.to_bits()), i64::from(b.to_bits()), p.frac_q31),
+        Some([a]) => i64::from(a.to_bits()),
+        _ => 0,
+    }
+}
+
+/// Narrow an interpolated value back to 32 bits: exact, because it lies between two stored
+/// i32 values (the rounded step ⌊(b − a)·t/2³¹ + ½⌋ lies between 0 and b − a for 0 ≤ t ≤ 2³¹,
+/// and a bilinear value between the two row values it interpolates).
+#[inline]
 fn narrow(v: i64) -> i32 {
-    i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX })
+    #[allow(clippy::cast_possible_truncation)]
+    let bits = v as i32;
+    bits
 }
 
 fn to_fixed_checked<F: LeEqU32>(v: f64) -> Option<FixedI32<F>> {
@@ -217,6 +361,7 @@ fn to_fixed_checked<F: LeEqU32>(v: f64) -> Option<FixedI32<F>> {
 pub struct Table1<XF: LeEqU32, YF: LeEqU32, const N: usize> {
     x: [FixedI32<XF>; N],
     y: [FixedI32<YF>; N],
+    x_div: Divisors<N>,
 }
 
 impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
@@ -227,7 +372,11 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     /// breakpoint that is not above its predecessor.
     pub const fn new(x: [FixedI32<XF>; N], y: [FixedI32<YF>; N]) -> Result<Self, TableError> {
         match validate_axis(Axis::X, &x) {
-            Ok(()) => Ok(Self { x, y }),
+            Ok(()) => Ok(Self {
+                x_div: Divisors::of(&x),
+                x,
+                y,
+            }),
             Err(e) => Err(e),
         }
     }
@@ -267,10 +416,10 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     }
 
     /// Interpolate at `x`; outside the breakpoints the end value is returned and flagged.
+    #[inline]
     pub fn lookup(&self, x: FixedI32<XF>) -> Lookup<FixedI32<YF>> {
-        let p = locate(&self.x, x);
-        let y = |i: usize| self.y.get(i).map_or(0, |v| i64::from(v.to_bits()));
-        let bits = lerp_bits(y(p.lo), y(p.hi), p.frac_q31);
+        let p = locate(&self.x, &self.x_div, x);
+        let bits = interpolate(&self.y, p);
         Lookup {
             value: FixedI32::from_bits(narrow(bits)),
             clamped: p.clamped,
@@ -285,6 +434,11 @@ pub struct Table2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const 
     x: [FixedI32<XF>; NX],
     y: [FixedI32<YF>; NY],
     z: [[FixedI32<ZF>; NY]; NX],
+    x_div: Divisors<NX>,
+    y_div: Divisors<NY>,
+    /// Every row equals the first: z does not depend on x (a geometric radius table), so a
+    /// lookup only compares x with the ends for the clamped flag.
+    x_flat: bool,
 }
 
 impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
@@ -303,7 +457,14 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
             return Err(e);
         }
         match validate_axis(Axis::Y, &y) {
-            Ok(()) => Ok(Self { x, y, z }),
+            Ok(()) => Ok(Self {
+                x_div: Divisors::of(&x),
+                y_div: Divisors::of(&y),
+                x_flat: rows_equal(&z),
+                x,
+                y,
+                z,
+            }),
             Err(e) => Err(e),
         }
     }
@@ -355,21 +516,198 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     }
 
     /// Interpolate at `(x, y)`; outside the grid the edge value is returned and flagged.
+    #[inline]
     pub fn lookup(&self, x: FixedI32<XF>, y: FixedI32<YF>) -> Lookup<FixedI32<ZF>> {
-        let px = locate(&self.x, x);
-        let py = locate(&self.y, y);
-        let z = |i: usize, j: usize| {
-            self.z
-                .get(i)
-                .and_then(|row| row.get(j))
-                .map_or(0, |v| i64::from(v.to_bits()))
-        };
-        let along_y = |i: usize| lerp_bits(z(i, py.lo), z(i, py.hi), py.frac_q31);
-        let bits = lerp_bits(along_y(px.lo), along_y(px.hi), px.frac_q31);
+        let py = locate(&self.y, &self.y_div, y);
+        if self.x_flat {
+            return Lookup {
+                value: FixedI32::from_bits(narrow(self.along_y(0, py))),
+                clamped: py.clamped || outside(&self.x, x),
+            };
+        }
+        let px = locate(&self.x, &self.x_div, x);
         Lookup {
-            value: FixedI32::from_bits(narrow(bits)),
+            value: FixedI32::from_bits(narrow(self.interpolate(px, py))),
             clamped: px.clamped || py.clamped,
         }
+    }
+
+    /// Interpolate at `(x, y)` and at `(x, y₀)`, y₀ the first breakpoint of the second axis,
+    /// with one search of the first axis: the pair `(lookup(x, y), lookup(x, y₀))`, bit for bit.
+    /// (The kinetic and the standstill μ of [`crate::friction`] at one lining temperature.)
+    ///
+    /// ```
+    /// use clampwise_core::table::Table2;
+    /// use clampwise_core::units::{Celsius, RadPerSec, Ratio};
+    /// use fixed::types::extra::{U16, U30};
+    ///
+    /// let mu = Table2::<U16, U16, U30, 2, 2>::from_f64(
+    ///     &[0.0, 400.0], &[0.0, 100.0], &[[0.40, 0.36], [0.30, 0.26]],
+    /// )?;
+    /// let (t, v) = (Celsius::lit("200"), RadPerSec::lit("50"));
+    /// let (running, standstill) = mu.lookup_with_first_y(t, v);
+    /// assert_eq!(running, mu.lookup(t, v));
+    /// assert_eq!(standstill, mu.lookup(t, RadPerSec::ZERO));
+    /// // Midway between 0.40 and 0.30 at standstill, within the 1-LSB interpolation bound.
+    /// assert!((standstill.value - Ratio::lit("0.35")).abs() <= Ratio::DELTA);
+    /// # Ok::<(), clampwise_core::table::TableError>(())
+    /// ```
+    #[inline]
+    pub fn lookup_with_first_y(
+        &self,
+        x: FixedI32<XF>,
+        y: FixedI32<YF>,
+    ) -> (Lookup<FixedI32<ZF>>, Lookup<FixedI32<ZF>>) {
+        // No flat-x shortcut here: a μ table depends on temperature, and `locate` is exact on
+        // any table.
+        let px = locate(&self.x, &self.x_div, x);
+        let py = locate(&self.y, &self.y_div, y);
+        // y₀ itself: index 0, no fraction, not clamped.
+        let p0 = Position {
+            lo: 0,
+            frac_q31: 0,
+            clamped: false,
+        };
+        (
+            Lookup {
+                value: FixedI32::from_bits(narrow(self.interpolate(px, py))),
+                clamped: px.clamped || py.clamped,
+            },
+            Lookup {
+                value: FixedI32::from_bits(narrow(self.interpolate(px, p0))),
+                clamped: px.clamped,
+            },
+        )
+    }
+
+    /// Row `i` interpolated along y.
+    #[inline]
+    fn along_y(&self, i: usize, py: Position) -> i64 {
+        self.z.get(i).map_or(0, |row| interpolate(row, py))
+    }
+
+    /// Bilinear interpolation at two axis positions: along y in the two rows of the x segment,
+    /// then along x.
+    #[inline]
+    fn interpolate(&self, px: Position, py: Position) -> i64 {
+        match self.z.get(px.lo..) {
+            Some([r0, r1, ..]) => lerp_bits(interpolate(r0, py), interpolate(r1, py), px.frac_q31),
+            // One row (NX = 1, or row 0 of a flat table): no step along x.
+            Some([r0]) => interpolate(r0, py),
+            _ => 0,
+        }
+    }
+}
+
+/// Whether every row of a grid equals the first (the grid does not depend on x).
+const fn rows_equal<F: LeEqU32, const NX: usize, const NY: usize>(
+    z: &[[FixedI32<F>; NY]; NX],
+) -> bool {
+    let mut i = 1;
+    while i < NX {
+        let mut j = 0;
+        while j < NY {
+            // i < NX, j < NY by the loop bounds; `get` is not usable in a const fn.
+            #[allow(clippy::indexing_slicing)]
+            if z[i][j].to_bits() != z[0][j].to_bits() {
+                return false;
+            }
+            j += 1;
+        }
+        i += 1;
+    }
+    true
+}
+
+/// The former implementation (a 64-bit division per axis, every corner interpolated, saturating
+/// arithmetic), kept for the tests as the reference the division-free lookups must match bit for
+/// bit.
+#[cfg(test)]
+#[allow(clippy::indexing_slicing, clippy::unwrap_used)]
+pub(crate) mod reference {
+    use fixed::FixedI32;
+    use fixed::types::extra::LeEqU32;
+
+    struct Position {
+        lo: usize,
+        hi: usize,
+        frac_q31: i64,
+        clamped: bool,
+    }
+
+    fn locate<F: LeEqU32>(axis: &[FixedI32<F>], x: FixedI32<F>) -> Position {
+        let x = i64::from(x.to_bits());
+        let last = axis.len() - 1;
+        let bits = |i: usize| i64::from(axis[i].to_bits());
+        if x <= bits(0) {
+            return Position {
+                lo: 0,
+                hi: 0,
+                frac_q31: 0,
+                clamped: x < bits(0),
+            };
+        }
+        if x >= bits(last) {
+            return Position {
+                lo: last,
+                hi: last,
+                frac_q31: 0,
+                clamped: x > bits(last),
+            };
+        }
+        let lo = axis
+            .windows(2)
+            .position(|w| x < i64::from(w[1].to_bits()))
+            .unwrap();
+        let (x0, x1) = (bits(lo), bits(lo + 1));
+        Position {
+            lo,
+            hi: lo + 1,
+            frac_q31: ((x - x0) << 31) / (x1 - x0),
+            clamped: false,
+        }
+    }
+
+    fn lerp(a: i64, b: i64, t: i64) -> i64 {
+        a.saturating_add(
+            b.saturating_sub(a)
+                .saturating_mul(t)
+                .saturating_add(1 << 30)
+                >> 31,
+        )
+    }
+
+    fn narrow(v: i64) -> i32 {
+        i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX })
+    }
+
+    /// 1-D lookup: (raw value, clamped).
+    pub(crate) fn lookup1<XF: LeEqU32, YF: LeEqU32>(
+        x: &[FixedI32<XF>],
+        y: &[FixedI32<YF>],
+        at: FixedI32<XF>,
+    ) -> (i32, bool) {
+        let p = locate(x, at);
+        let v = |i: usize| i64::from(y[i].to_bits());
+        (narrow(lerp(v(p.lo), v(p.hi), p.frac_q31)), p.clamped)
+    }
+
+    /// 2-D lookup on a row-major grid: (raw value, clamped).
+    pub(crate) fn lookup2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NY: usize>(
+        x: &[FixedI32<XF>],
+        y: &[FixedI32<YF>; NY],
+        z: &[[FixedI32<ZF>; NY]],
+        at_x: FixedI32<XF>,
+        at_y: FixedI32<YF>,
+    ) -> (i32, bool) {
+        let px = locate(x, at_x);
+        let py = locate(y, at_y);
+        let v = |i: usize, j: usize| i64::from(z[i][j].to_bits());
+        let along_y = |i: usize| lerp(v(i, py.lo), v(i, py.hi), py.frac_q31);
+        (
+            narrow(lerp(along_y(px.lo), along_y(px.hi), px.frac_q31)),
+            px.clamped || py.clamped,
+        )
     }
 }
 
@@ -379,6 +717,7 @@ mod tests {
     use super::*;
     use fixed::types::extra::{U8, U16, U24};
     use proptest::prelude::*;
+    use std::vec::Vec;
 
     type T1 = Table1<U16, U24, 4>;
     type T2 = Table2<U8, U16, U24, 3, 2>;
@@ -476,6 +815,213 @@ mod tests {
             t.lookup(FixedI32::from_num(2), FixedI32::from_num(2.5))
                 .clamped
         );
+    }
+
+    /// ⌊r·2³¹/d⌋ by the plain division, the definition the reciprocal form must reproduce.
+    fn division(r: u32, d: u32) -> u32 {
+        u32::try_from((u64::from(r) << 31) / u64::from(d)).unwrap()
+    }
+
+    fn check_fraction(r: u32, d: u32) {
+        let (m, s) = segment_constants(d);
+        let want = division(r, d);
+        let estimate = u32::try_from((u64::from(r) * u64::from(m)) >> s).unwrap();
+        assert!(
+            estimate == want || estimate + 1 == want,
+            "estimate r={r} d={d}"
+        );
+        assert_eq!(fraction_q31(r, d, m, s), want, "r={r} d={d}");
+        // Both remainder tests (64-bit host form and 32-bit target form) agree with it.
+        for reaches in [remainder_reaches_wide, remainder_reaches_narrow] {
+            assert_eq!(
+                estimate + u32::from(reaches(r, d, estimate)),
+                want,
+                "r={r} d={d}"
+            );
+        }
+    }
+
+    #[test]
+    fn fraction_matches_division_at_the_edges() {
+        // Every span length class, its ends and neighbours, each with the extreme numerators
+        // (r = d gives exactly 2³¹: the clamped upper end).
+        for l in 0..32u32 {
+            let p = 1u64 << l;
+            for d in [
+                p,
+                p + 1,
+                p + 2,
+                2 * p - 1,
+                2 * p - 2,
+                p + p / 2,
+                p * 3 / 2 + 1,
+            ] {
+                let Ok(d) = u32::try_from(d) else { continue };
+                if u64::from(d) < p {
+                    continue;
+                }
+                for r in [0, 1, 2, d / 3, d / 2, d - 1, d.saturating_sub(2), d] {
+                    if r <= d {
+                        check_fraction(r, d);
+                    }
+                }
+            }
+        }
+        assert_eq!(
+            fraction_q31(u32::MAX, u32::MAX, segment_constants(u32::MAX).0, 32),
+            1 << 31
+        );
+    }
+
+    #[test]
+    fn fraction_matches_division_exhaustively_for_small_spans() {
+        for d in 1..=300u32 {
+            for r in 0..=d {
+                check_fraction(r, d);
+            }
+        }
+    }
+
+    /// A strictly increasing axis: either any distinct i32 values (spans up to 2³² − 1) or a
+    /// start plus increments of random bit length (short spans, powers of two among them).
+    fn axis_strategy<const N: usize>() -> impl Strategy<Value = [i32; N]> {
+        let wide = prop::collection::btree_set(any::<i32>(), N).prop_map(|set| {
+            let v: Vec<i32> = set.into_iter().collect();
+            <[i32; N]>::try_from(v).unwrap()
+        });
+        let narrow = (
+            any::<i32>(),
+            prop::collection::vec((0u32..=29, any::<u32>(), any::<bool>()), N),
+        )
+            .prop_map(|(start, steps)| {
+                let mut x = [0i64; N];
+                let mut at = i64::from(start);
+                for (o, (bits, raw, exact)) in x.iter_mut().zip(steps) {
+                    *o = at;
+                    let span = 1i64 << bits;
+                    at += if exact {
+                        span
+                    } else {
+                        1 + i64::from(raw) % span
+                    };
+                }
+                // Shift into i32 range (the total span is below 2³²).
+                let excess = (x[N - 1] - i64::from(i32::MAX)).max(0);
+                x.map(|v| i32::try_from(v - excess).unwrap())
+            });
+        prop_oneof![wide, narrow]
+    }
+
+    /// How to choose an input for an axis (kind, raw value, small offset).
+    type Pick = (u8, u32, i8);
+
+    /// An input for an axis: anywhere, on or next to a breakpoint, or inside a segment.
+    fn input_for(axis: &[i32], pick: Pick) -> i32 {
+        let (kind, raw, offset) = pick;
+        let i = raw as usize % axis.len();
+        match kind % 3 {
+            0 => raw.cast_signed(),
+            1 => axis[i].saturating_add(i32::from(offset % 3)),
+            _ => {
+                let (a, b) = (axis[i], axis[(i + 1).min(axis.len() - 1)]);
+                let span = (i64::from(b) - i64::from(a)).max(1);
+                i32::try_from(i64::from(a) + i64::from(raw) % span).unwrap()
+            }
+        }
+    }
+
+    fn fx<F: LeEqU32, const N: usize>(bits: [i32; N]) -> [FixedI32<F>; N] {
+        bits.map(FixedI32::from_bits)
+    }
+
+    /// The division-free lookups against the former dividing implementation, bit for bit, on
+    /// random tables (flat in x or not) and inputs.
+    fn check_table2<const NX: usize, const NY: usize>(
+        xs: [i32; NX],
+        ys: [i32; NY],
+        z: [[i32; NY]; NX],
+        flat: bool,
+        picks: &[(Pick, Pick)],
+    ) {
+        let z = if flat { [z[0]; NX] } else { z };
+        let t = Table2::<U8, U16, U24, NX, NY>::new(fx(xs), fx(ys), z.map(fx)).unwrap();
+        assert_eq!(t.x_flat, flat || NX == 1 || rows_equal(t.values()));
+        for &(px, py) in picks {
+            let (x, y) = (
+                FixedI32::<U8>::from_bits(input_for(&xs, px)),
+                FixedI32::<U16>::from_bits(input_for(&ys, py)),
+            );
+            let want = reference::lookup2(t.x_breakpoints(), t.y_breakpoints(), t.values(), x, y);
+            let got = t.lookup(x, y);
+            assert_eq!((got.value.to_bits(), got.clamped), want, "x={x:?} y={y:?}");
+            let (running, standstill) = t.lookup_with_first_y(x, y);
+            assert_eq!(running, got);
+            assert_eq!(standstill, t.lookup(x, t.y_breakpoints()[0]));
+        }
+    }
+
+    fn picks() -> impl Strategy<Value = Vec<(Pick, Pick)>> {
+        prop::collection::vec(
+            (
+                (any::<u8>(), any::<u32>(), any::<i8>()),
+                (any::<u8>(), any::<u32>(), any::<i8>()),
+            ),
+            32,
+        )
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(2000))]
+
+        // The reciprocal form against the floor division over the whole input range: spans of
+        // every bit length (uniform exponent) and numerators 0 ..= d.
+        #[test]
+        fn fraction_matches_division(bits in 0u32..32, raw in any::<u32>(), num in any::<u64>()) {
+            let d = ((raw >> (31 - bits)) | (1 << bits)).max(1);
+            let r = u32::try_from(num % (u64::from(d) + 1)).unwrap();
+            check_fraction(r, d);
+        }
+
+        #[test]
+        fn table1_matches_former_lookup(
+            xs in axis_strategy::<5>(),
+            ys in any::<[i32; 5]>(),
+            picks in prop::collection::vec((any::<u8>(), any::<u32>(), any::<i8>()), 32),
+        ) {
+            let t = Table1::<U16, U24, 5>::new(fx(xs), fx(ys)).unwrap();
+            for pick in picks {
+                let x = FixedI32::<U16>::from_bits(input_for(&xs, pick));
+                let got = t.lookup(x);
+                let want = reference::lookup1(t.breakpoints(), t.values(), x);
+                prop_assert_eq!((got.value.to_bits(), got.clamped), want);
+            }
+        }
+
+        #[test]
+        fn table2_matches_former_lookup(
+            xs in axis_strategy::<4>(),
+            ys in axis_strategy::<3>(),
+            z in any::<[[i32; 3]; 4]>(),
+            flat in any::<bool>(),
+            picks in picks(),
+        ) {
+            check_table2(xs, ys, z, flat, &picks);
+        }
+
+        #[test]
+        fn wide_and_degenerate_tables_match_former_lookup(
+            xs in axis_strategy::<6>(),
+            ys in axis_strategy::<5>(),
+            z in any::<[[i32; 5]; 6]>(),
+            flat in any::<bool>(),
+            picks in picks(),
+        ) {
+            check_table2(xs, ys, z, flat, &picks);
+            check_table2([xs[0]], ys, [z[0]], false, &picks);
+            check_table2(xs, [ys[0]], z.map(|r| [r[0]]), flat, &picks);
+            check_table2([xs[0], xs[5]], [ys[0], ys[4]], [[z[0][0], z[0][4]], [z[5][0], z[5][4]]], flat, &picks);
+            check_table2([xs[0]], [ys[0]], [[z[0][0]]], false, &picks);
+        }
     }
 
     proptest! {
