@@ -40,6 +40,7 @@
 
 use core::fmt;
 
+use crate::divide::ConstDivisor;
 use crate::units::{NewtonMetres, Ratio};
 
 /// Why an adaptation configuration was rejected.
@@ -89,6 +90,9 @@ pub struct AdaptConfig {
     initial_covariance: Ratio,
     min_covariance: Ratio,
     max_covariance: Ratio,
+    /// Derived: division by the full scale and by λ without a divide per sample.
+    full_scale_divisor: ConstDivisor,
+    forgetting_divisor: ConstDivisor,
 }
 
 const ONE_Q30: i64 = 1 << 30;
@@ -213,6 +217,9 @@ impl AdaptConfig {
         if p_min <= 0 || p0 < p_min || p_max < p0 {
             return Err(AdaptError::Covariance);
         }
+        // Both checked positive above, so the casts keep the value.
+        #[allow(clippy::cast_sign_loss)]
+        let (full_scale, forgetting) = (raw.torque_full_scale.to_bits() as u32, lambda as u32);
         Ok(Self {
             min_factor: raw.min_factor,
             max_factor: raw.max_factor,
@@ -222,6 +229,8 @@ impl AdaptConfig {
             initial_covariance: raw.initial_covariance,
             min_covariance: raw.min_covariance,
             max_covariance: raw.max_covariance,
+            full_scale_divisor: ConstDivisor::new(full_scale),
+            forgetting_divisor: ConstDivisor::new(forgetting),
         })
     }
 
@@ -288,12 +297,14 @@ fn narrow_q30(v: i64) -> Ratio {
     Ratio::from_bits(i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX }))
 }
 
-/// Normalise a torque to Q30 of the full scale, saturating at ±1.99.
-fn normalise(torque: NewtonMetres, full_scale: NewtonMetres) -> i64 {
-    let fs = i64::from(full_scale.to_bits()).max(1);
+/// Normalise a torque to Q30 of the full scale (`full_scale`: its divisor), saturating at
+/// ±1.99.
+fn normalise(torque: NewtonMetres, full_scale: ConstDivisor) -> i64 {
     let t = i64::from(torque.to_bits());
     // |t| < 2³¹, so t·2³⁰ < 2⁶¹.
-    ((t << 30) / fs).clamp(-2 * ONE_Q30 + 1, 2 * ONE_Q30 - 1)
+    full_scale
+        .div_toward_zero(t << 30)
+        .clamp(-2 * ONE_Q30 + 1, 2 * ONE_Q30 - 1)
 }
 
 impl AdaptState {
@@ -343,11 +354,11 @@ impl AdaptState {
         if !(gate.slipping && gate.force_sufficient && gate.sensors_healthy) {
             return held;
         }
-        let phi = normalise(model, cfg.torque_full_scale);
+        let phi = normalise(model, cfg.full_scale_divisor);
         if phi.abs() < i64::from(cfg.min_excitation.to_bits()) {
             return held;
         }
-        let y = normalise(reference, cfg.torque_full_scale);
+        let y = normalise(reference, cfg.full_scale_divisor);
         let p = i64::from(self.covariance.to_bits());
         let lambda = i64::from(cfg.forgetting.to_bits()).max(1);
         let k = i64::from(self.factor.to_bits());
@@ -358,7 +369,10 @@ impl AdaptState {
         let gain = (p_phi << 30) / denom;
         let innovation = y - ((phi * k) >> 30);
         let k_new = k + ((gain * innovation.clamp(-4 * ONE_Q30, 4 * ONE_Q30)) >> 30);
-        let p_new = ((p - ((gain * phi) >> 30) * p / ONE_Q30) << 30) / lambda;
+        // ÷ λ by its reciprocal: the same quotient as `/ lambda` (validated λ ≥ 0.9).
+        let p_new = cfg
+            .forgetting_divisor
+            .div_toward_zero((p - ((gain * phi) >> 30) * p / ONE_Q30) << 30);
 
         // `max`/`min` rather than `clamp`: the same value for validated bounds (min ≤ max),
         // and no assertion (panic path) on their order in the per-sample code.

@@ -153,6 +153,7 @@ extern crate std;
 pub mod adapt;
 mod checksum;
 pub mod config;
+mod divide;
 pub mod estimator;
 pub mod flags;
 pub mod friction;
