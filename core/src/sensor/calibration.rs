@@ -12,7 +12,8 @@
 //!
 //! ## Error bound
 //!
-//! All products are formed in i128 from the raw bits and rounded once at the end, so against
+//! All products are exact (formed from the raw bits in 64-bit or, with compensation, 128-bit
+//! work) and rounded once at the end, so against
 //! the same formula in f64 with the *stored* coefficients the result is within ½ LSB of
 //! [`Newtons`] (1.95 mN) plus 2⁻³⁰ of |F| for the span term. The stored gain differs from a
 //! float gain by at most 2⁻³³ N/count (I32F32) and the offset by ½ LSB, so against the f64 line
@@ -202,43 +203,79 @@ impl ChannelCalibration {
     }
 
     /// Counts → newtons with temperature compensation (`sensor_temp` in °C; `None`: ΔT = 0).
-    /// O(1), integers only, any input.
+    /// O(1), integers only, any input; exact to the error bound of the module for a
+    /// calibration that passes [`validate`](Self::validate) (for one that does not, only the
+    /// uncompensated line is exact, and a compensated result may saturate differently).
+    #[inline]
     pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
-        // Q32 newtons. |counts| < 2³¹ and |gain| < 2⁶³: the product is below 2⁹⁴, exact in
-        // i128 (a widening multiply, no overflow to saturate).
-        // The offset (below 2⁵⁵ in Q32) cannot take the sum near the i128 range either, so the
-        // sums here and in `round_shr` are exact: `wrapping_` (no overflow to handle, no panic
-        // path, little code on a 32-bit core).
-        let mut v = (i128::from(counts) * i128::from(self.gain.to_bits()))
-            .wrapping_add(i128::from(self.offset.to_bits()) << 24);
-        let mut temperature_clamped = false;
-        if let (Some(tc), Some(t)) = (&self.temperature, sensor_temp) {
-            let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
-            let t = t.to_bits();
-            temperature_clamped = t < lo || t > hi;
-            // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
-            // assertion (panic path) on the bounds' order in the per-sample code.
-            let dt = i128::from(t.max(lo).min(hi)) - i128::from(tc.reference.to_bits());
-            // Q30 factor in [0.5, 1.5] (validated).
-            let span = round_shr(i128::from(tc.span_per_kelvin.to_bits()) * dt, 16);
-            let factor = (1i128 << 30).saturating_add(span);
-            let zero = round_shr(i128::from(tc.zero_per_kelvin.to_bits()) * dt, 16);
-            // |v| < 2⁹⁵ and factor < 2³¹: the product is below 2¹²⁶, exact in i128.
-            v = round_shr(v * factor, 30).wrapping_add(zero);
-        }
-        let q8 = round_shr(v, 24);
+        let (gain, offset) = (self.gain.to_bits(), self.offset.to_bits());
+        let (q8, temperature_clamped) = match (&self.temperature, sensor_temp) {
+            (Some(tc), Some(t)) => compensated_q8(counts, gain, offset, tc, t.to_bits()),
+            _ => (line_q8(counts, gain, offset), false),
+        };
         let bits = i32::try_from(q8).unwrap_or(if q8 < 0 { i32::MIN } else { i32::MAX });
         Calibrated {
             force: Newtons::from_bits(bits),
-            saturated: i128::from(bits) != q8,
+            saturated: i64::from(bits) != q8,
             temperature_clamped,
         }
     }
 }
 
-/// Round half up of `v / 2^s`, for |v| < 2¹²⁶ and 1 ≤ s ≤ 30 (the calls above).
-fn round_shr(v: i128, s: u32) -> i128 {
-    v.wrapping_add(1i128 << (s - 1)) >> s
+/// round((counts·gain + offset·2²⁴) / 2²⁴), half up: the uncompensated line in Q8 newtons,
+/// exact where it lies within ±2³², else a value beyond that of the right sign (it saturates
+/// either way). 64-bit work only, for any counts, gain and offset.
+///
+/// With gain = h·2³² + l (h = gain >> 32, 0 ≤ l < 2³²) the Q32 line is c·h·2³² + c·l +
+/// offset·2²⁴, so the Q8 result is c·h·2⁸ + offset + ⌊(c·l + 2²³)/2²⁴⌋: |c·l| ≤ 2³¹(2³² − 1)
+/// keeps c·l + 2²³ inside i64, and c·h (≤ 2⁶² in magnitude) is clamped to ±2⁴⁰ before the
+/// shift, which leaves any result it decides beyond ±2⁴⁷, still saturating to the same side.
+#[inline]
+fn line_q8(counts: i32, gain: i64, offset: i32) -> i64 {
+    let c = i64::from(counts);
+    let whole = (c * (gain >> 32)).clamp(-(1 << 40), 1 << 40);
+    let fraction = (c * (gain & 0xffff_ffff) + (1 << 23)) >> 24;
+    (whole << 8) + i64::from(offset) + fraction
+}
+
+/// The compensated force in Q8 newtons (exact where within ±2³², else beyond that with the
+/// right sign), and whether the temperature (Q16 °C bits) was clamped.
+///
+/// F = round((round(F_lin·factor / 2³⁰) + zero) / 2²⁴) with F_lin the Q32 line (exact in
+/// i128, < 2⁹⁵), factor = 2³⁰ + round(span·ΔT / 2¹⁶) and zero = round(zero_per_kelvin·ΔT /
+/// 2¹⁶). Validated coefficients keep factor in [2²⁹, 1.5·2³⁰] and |zero| ≤ 2⁵⁵ (Q32), so
+/// |F_lin| ≥ 2⁵⁸ gives |F| ≥ (2⁵⁷ − 2⁵⁵ − 1)/2²⁴ > 2³²: saturated, with the sign of F_lin.
+/// Below that F_lin fits i64, F_lin·factor < 2⁸⁹ is one widening multiply and everything
+/// after it fits i64. (span·ΔT: |span| ≤ 2³¹, |ΔT| < 2³², exact in i64.)
+#[inline]
+fn compensated_q8(
+    counts: i32,
+    gain: i64,
+    offset: i32,
+    tc: &TemperatureCompensation,
+    t: i32,
+) -> (i64, bool) {
+    let line = i128::from(counts) * i128::from(gain) + (i128::from(offset) << 24);
+    let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
+    let clamped = t < lo || t > hi;
+    // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
+    // assertion (panic path) on the bounds' order in the per-sample code.
+    let dt = i64::from(t.max(lo).min(hi)) - i64::from(tc.reference.to_bits());
+    let factor = (1 << 30) + ((i64::from(tc.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16);
+    // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
+    #[allow(clippy::cast_possible_truncation)]
+    let zero =
+        ((i128::from(tc.zero_per_kelvin.to_bits()) * i128::from(dt) + (1 << 15)) >> 16) as i64;
+    if !(-(1i128 << 58)..1i128 << 58).contains(&line) {
+        return (if line < 0 { i64::MIN } else { i64::MAX }, clamped);
+    }
+    #[allow(clippy::cast_possible_truncation)] // |line| < 2⁵⁸, checked just above
+    let line = line as i64;
+    // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
+    #[allow(clippy::cast_possible_truncation)]
+    let scaled = ((i128::from(line) * i128::from(factor) + (1 << 29)) >> 30) as i64;
+    let v = scaled.wrapping_add(zero);
+    (v.wrapping_add(1 << 23) >> 24, clamped)
 }
 
 /// Gain and offset from two known loads (host or start-up helper; floats, never per sample).
