@@ -203,7 +203,10 @@ fn fallback_strategy() -> impl Strategy<Value = Option<ActuatorTransfer>> {
 #[derive(Clone, Debug)]
 struct Parts {
     rate: u32,
+    /// Calibrations; with `same`, every channel takes the first (a shared temperature
+    /// compensation is then evaluated once per sample).
     cals: [ChannelCalibration; 4],
+    same: bool,
     alpha: i64,
     limits: DiagnosticLimits,
     voting: VotingLimits,
@@ -213,26 +216,33 @@ struct Parts {
 fn parts_strategy() -> impl Strategy<Value = Parts> {
     (
         prop_oneof![Just(1000u32), 1u32..100_000],
-        prop::array::uniform4(calibration_strategy()),
+        (prop::array::uniform4(calibration_strategy()), any::<bool>()),
         prop_oneof![Just(1i64 << 60), (1i64 << 40)..(1i64 << 60)],
         limits_strategy(),
         voting_strategy(),
         fallback_strategy(),
     )
-        .prop_map(|(rate, cals, alpha, limits, voting, fallback)| Parts {
-            rate,
-            cals,
-            alpha,
-            limits,
-            voting,
-            fallback,
-        })
+        .prop_map(
+            |(rate, (cals, same), alpha, limits, voting, fallback)| Parts {
+                rate,
+                cals,
+                same,
+                alpha,
+                limits,
+                voting,
+                fallback,
+            },
+        )
 }
 
 impl Parts {
+    fn cal(&self, i: usize) -> &ChannelCalibration {
+        &self.cals[if self.same { 0 } else { i }]
+    }
+
     fn config<const C: usize>(&self) -> Option<SensorConfig<C>> {
         let filter = LowPass::from_coefficient_bits(self.alpha, self.rate).ok()?;
-        let cals: [ChannelCalibration; C] = core::array::from_fn(|i| self.cals[i]);
+        let cals: [ChannelCalibration; C] = core::array::from_fn(|i| *self.cal(i));
         SensorConfig::new(
             self.rate,
             cals,
@@ -314,7 +324,7 @@ fn raw_for<const C: usize>(parts: &Parts, level: i64, s: &Sample) -> [RawChannel
     core::array::from_fn(|i| {
         let (kind, x, valid) = s.channels[i];
         RawChannel {
-            counts: counts(&parts.cals[i], level, kind, x),
+            counts: counts(parts.cal(i), level, kind, x),
             valid,
         }
     })
@@ -344,7 +354,12 @@ fn run<const C: usize>(
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(400))]
+    // A third to a half of the drawn configurations are invalid (rejected, not run).
+    #![proptest_config(ProptestConfig {
+        cases: 400,
+        max_global_rejects: 100_000,
+        ..ProptestConfig::default()
+    })]
 
     #[test]
     fn one_channel_matches_the_definition(
@@ -448,7 +463,7 @@ fn the_inputs_reach_every_outcome() {
     let mut seen = std::collections::BTreeMap::<String, u32>::new();
     let mut mark = |k: String| *seen.entry(k).or_default() += 1;
     let mut configs = 0;
-    while configs < 150 {
+    while configs < 400 {
         let parts = parts_strategy().new_tree(&mut runner).unwrap().current();
         let Some(cfg) = parts.config::<3>() else {
             continue;

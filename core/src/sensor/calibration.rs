@@ -108,7 +108,50 @@ pub struct TemperatureCompensation {
     pub span_per_kelvin: PerKelvin,
 }
 
+/// A [`TemperatureCompensation`] evaluated at one sensor temperature: what the force of every
+/// channel sharing it needs in that sample.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Compensation {
+    /// 2³⁰ + round(span_per_kelvin·ΔT / 2¹⁶): the span factor in Q30, in [0.5, 1.5] for
+    /// validated coefficients.
+    factor: i64,
+    /// round(zero_per_kelvin·ΔT / 2¹⁶): the zero correction in Q32 newtons, |zero| ≤ 2⁵⁵ for
+    /// validated coefficients.
+    zero: i64,
+    /// The temperature lay outside `min ..= max` and was clamped.
+    clamped: bool,
+}
+
 impl TemperatureCompensation {
+    /// The compensation at sensor temperature `t` (°C), clamped to `min ..= max`.
+    #[inline(always)]
+    pub(crate) fn at(&self, t: Celsius) -> Compensation {
+        let (lo, hi, t) = (self.min.to_bits(), self.max.to_bits(), t.to_bits());
+        // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
+        // assertion (panic path) on the bounds' order in the per-sample code.
+        let dt = i64::from(t.max(lo).min(hi)) - i64::from(self.reference.to_bits());
+        // |span| ≤ 2³¹ and |ΔT| < 2³²: exact in i64.
+        let span = (i64::from(self.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16;
+        // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
+        #[allow(clippy::cast_possible_truncation)]
+        let zero = ((i128::from(self.zero_per_kelvin.to_bits()) * i128::from(dt) + (1 << 15)) >> 16)
+            as i64;
+        Compensation {
+            factor: (1 << 30) + span,
+            zero,
+            clamped: t < lo || t > hi,
+        }
+    }
+
+    /// Whether `other` holds the same coefficients (`const`, for the configuration).
+    pub(crate) const fn same_as(&self, other: &Self) -> bool {
+        self.reference.to_bits() == other.reference.to_bits()
+            && self.min.to_bits() == other.min.to_bits()
+            && self.max.to_bits() == other.max.to_bits()
+            && self.zero_per_kelvin.to_bits() == other.zero_per_kelvin.to_bits()
+            && self.span_per_kelvin.to_bits() == other.span_per_kelvin.to_bits()
+    }
+
     const fn validate(&self, channel: usize) -> Result<(), SensorError> {
         let (lo, hi, r) = (
             self.min.to_bits() as i64,
@@ -206,12 +249,24 @@ impl ChannelCalibration {
     /// O(1), integers only, any input; exact to the error bound of the module for a
     /// calibration that passes [`validate`](Self::validate) (for one that does not, only the
     /// uncompensated line is exact, and a compensated result may saturate differently).
-    #[inline]
+    // Always inlined: small, and called once per channel per sample by the diagnostics.
+    #[inline(always)]
     pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
+        let compensation = match (&self.temperature, sensor_temp) {
+            (Some(tc), Some(t)) => Some(tc.at(t)),
+            _ => None,
+        };
+        self.force_with(counts, compensation)
+    }
+
+    /// [`force`](Self::force) with the compensation already evaluated at this sample's
+    /// temperature (`None`: ΔT = 0), so channels sharing one evaluate it once.
+    #[inline(always)]
+    pub(crate) fn force_with(&self, counts: i32, compensation: Option<Compensation>) -> Calibrated {
         let (gain, offset) = (self.gain.to_bits(), self.offset.to_bits());
-        let (q8, temperature_clamped) = match (&self.temperature, sensor_temp) {
-            (Some(tc), Some(t)) => compensated_q8(counts, gain, offset, tc, t.to_bits()),
-            _ => (line_q8(counts, gain, offset), false),
+        let (q8, temperature_clamped) = match compensation {
+            Some(c) => (compensated_q8(counts, gain, offset, &c), c.clamped),
+            None => (line_q8(counts, gain, offset), false),
         };
         let bits = i32::try_from(q8).unwrap_or(if q8 < 0 { i32::MIN } else { i32::MAX });
         Calibrated {
@@ -222,60 +277,53 @@ impl ChannelCalibration {
     }
 }
 
-/// round((counts·gain + offset·2²⁴) / 2²⁴), half up: the uncompensated line in Q8 newtons,
-/// exact where it lies within ±2³², else a value beyond that of the right sign (it saturates
-/// either way). 64-bit work only, for any counts, gain and offset.
+/// The Q32 line counts·gain + offset·2²⁴ as (H, L) with line = H·2³² + L, in 64-bit work.
 ///
-/// With gain = h·2³² + l (h = gain >> 32, 0 ≤ l < 2³²) the Q32 line is c·h·2³² + c·l +
-/// offset·2²⁴, so the Q8 result is c·h·2⁸ + offset + ⌊(c·l + 2²³)/2²⁴⌋: |c·l| ≤ 2³¹(2³² − 1)
-/// keeps c·l + 2²³ inside i64, and c·h (≤ 2⁶² in magnitude) is clamped to ±2⁴⁰ before the
-/// shift, which leaves any result it decides beyond ±2⁴⁷, still saturating to the same side.
-#[inline]
-fn line_q8(counts: i32, gain: i64, offset: i32) -> i64 {
+/// With gain = g_h·2³² + g_l (g_h = gain >> 32, 0 ≤ g_l < 2³²) and P = c·g_l (|P| < 2⁶³):
+/// H = c·g_h + ⌊P/2³²⌋ (|H| ≤ 2⁶² + 2³¹) and L = (P mod 2³²) + offset·2²⁴ (|L| < 2⁵⁶).
+#[inline(always)]
+fn line_parts(counts: i32, gain: i64, offset: i32) -> (i64, i64) {
     let c = i64::from(counts);
-    let whole = (c * (gain >> 32)).clamp(-(1 << 40), 1 << 40);
-    let fraction = (c * (gain & 0xffff_ffff) + (1 << 23)) >> 24;
-    (whole << 8) + i64::from(offset) + fraction
+    let p = c * (gain & 0xffff_ffff);
+    let h = c * (gain >> 32) + (p >> 32);
+    let l = (p & 0xffff_ffff) + (i64::from(offset) << 24);
+    (h, l)
 }
 
-/// The compensated force in Q8 newtons (exact where within ±2³², else beyond that with the
-/// right sign), and whether the temperature (Q16 °C bits) was clamped.
+/// round(line / 2²⁴), half up: the uncompensated line in Q8 newtons, exact where it lies
+/// within ±2³², else a value beyond that of the right sign (it saturates either way), for any
+/// counts, gain and offset.
 ///
-/// F = round((round(F_lin·factor / 2³⁰) + zero) / 2²⁴) with F_lin the Q32 line (exact in
-/// i128, < 2⁹⁵), factor = 2³⁰ + round(span·ΔT / 2¹⁶) and zero = round(zero_per_kelvin·ΔT /
-/// 2¹⁶). Validated coefficients keep factor in [2²⁹, 1.5·2³⁰] and |zero| ≤ 2⁵⁵ (Q32), so
-/// |F_lin| ≥ 2⁵⁸ gives |F| ≥ (2⁵⁷ − 2⁵⁵ − 1)/2²⁴ > 2³²: saturated, with the sign of F_lin.
-/// Below that F_lin fits i64, F_lin·factor < 2⁸⁹ is one widening multiply and everything
-/// after it fits i64. (span·ΔT: |span| ≤ 2³¹, |ΔT| < 2³², exact in i64.)
-#[inline]
-fn compensated_q8(
-    counts: i32,
-    gain: i64,
-    offset: i32,
-    tc: &TemperatureCompensation,
-    t: i32,
-) -> (i64, bool) {
-    let line = i128::from(counts) * i128::from(gain) + (i128::from(offset) << 24);
-    let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
-    let clamped = t < lo || t > hi;
-    // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
-    // assertion (panic path) on the bounds' order in the per-sample code.
-    let dt = i64::from(t.max(lo).min(hi)) - i64::from(tc.reference.to_bits());
-    let factor = (1 << 30) + ((i64::from(tc.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16);
-    // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
-    #[allow(clippy::cast_possible_truncation)]
-    let zero =
-        ((i128::from(tc.zero_per_kelvin.to_bits()) * i128::from(dt) + (1 << 15)) >> 16) as i64;
-    if !(-(1i128 << 58)..1i128 << 58).contains(&line) {
-        return (if line < 0 { i64::MIN } else { i64::MAX }, clamped);
+/// H·2⁸ + ⌊(L + 2²³)/2²⁴⌋, with H clamped to ±2⁴⁰ before the shift: a larger |H| puts the
+/// result beyond ±2⁴⁷, saturating to the same side either way.
+#[inline(always)]
+fn line_q8(counts: i32, gain: i64, offset: i32) -> i64 {
+    let (h, l) = line_parts(counts, gain, offset);
+    (h.clamp(-(1 << 40), 1 << 40) << 8) + ((l + (1 << 23)) >> 24)
+}
+
+/// The compensated force in Q8 newtons, exact where within ±2³², else beyond that with the
+/// right sign.
+///
+/// F = round((round(line·factor / 2³⁰) + zero) / 2²⁴) (see [`Compensation`]). Validated
+/// coefficients keep factor in [2²⁹, 1.5·2³⁰] and |zero| ≤ 2⁵⁵, so |line| ≥ 2⁵⁸ gives |F| ≥
+/// (2⁵⁷ − 2⁵⁵ − 1)/2²⁴ > 2³²: saturated, with the sign of the line; |H| ≥ 2²⁷ is such a line
+/// (|L| < 2⁵⁶). Below that the line is H·2³² + L in i64, line·factor < 2⁸⁹ is one widening
+/// multiply, and everything after it fits i64.
+#[inline(always)]
+fn compensated_q8(counts: i32, gain: i64, offset: i32, c: &Compensation) -> i64 {
+    let (h, l) = line_parts(counts, gain, offset);
+    if h.unsigned_abs() >= 1 << 27 {
+        return if h < 0 { i64::MIN } else { i64::MAX };
     }
-    #[allow(clippy::cast_possible_truncation)] // |line| < 2⁵⁸, checked just above
-    let line = line as i64;
+    let line = (h << 32) + l;
+    if line.unsigned_abs() >= 1 << 58 {
+        return if line < 0 { i64::MIN } else { i64::MAX };
+    }
     // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
     #[allow(clippy::cast_possible_truncation)]
-    let scaled = ((i128::from(line) * i128::from(factor) + (1 << 29)) >> 30) as i64;
-    let v = scaled.wrapping_add(zero);
-    (v.wrapping_add(1 << 23) >> 24, clamped)
+    let scaled = ((i128::from(line) * i128::from(c.factor) + (1 << 29)) >> 30) as i64;
+    scaled.wrapping_add(c.zero).wrapping_add(1 << 23) >> 24
 }
 
 /// Gain and offset from two known loads (host or start-up helper; floats, never per sample).

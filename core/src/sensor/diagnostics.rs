@@ -41,11 +41,11 @@
 
 use bitflags::bitflags;
 
-use super::calibration::{ChannelCalibration, Rail};
+use super::calibration::{ChannelCalibration, Compensation, Rail};
 use super::debounce::{Debounce, DebounceBank, Evidence};
 use super::error::{Problem, SensorError};
 use super::{ActuatorCommand, NewtonsPerSecond, RawChannel};
-use crate::units::{Celsius, Newtons, Seconds};
+use crate::units::{Newtons, Seconds};
 
 bitflags! {
     /// Flag word of one channel for one sample.
@@ -340,6 +340,10 @@ impl Diagnostics {
     #[inline]
     pub(crate) fn allowance_q8(&self, samples: u32, round_up: bool) -> u64 {
         let noise = u64::from(self.limits.noise_band.to_bits().unsigned_abs());
+        if samples == 1 && !round_up {
+            // The sample after an accepted one, the usual case: l < 2²⁴ adds nothing.
+            return noise + u64::from(self.rate_q8);
+        }
         let k = u64::from(samples);
         let fraction = u64::from(self.rate_fraction) * k + if round_up { (1 << 24) - 1 } else { 0 };
         (u64::from(self.rate_q8) * k)
@@ -439,10 +443,10 @@ pub(crate) struct ChannelDiagnostics {
     stuck_window: StuckWindow,
     /// Last accepted calibrated force (Q8 bits).
     last_accepted: i32,
-    /// Sample periods since the last accepted sample (1 in the sample after it).
+    /// Sample periods since the last accepted sample: 0 when this sample was accepted (or
+    /// before the first), else the length of the run of rejected samples (≥ 1, saturating).
     since_accepted: u32,
     ever_accepted: bool,
-    rejected_now: bool,
 }
 
 impl ChannelDiagnostics {
@@ -453,27 +457,22 @@ impl ChannelDiagnostics {
             last_accepted: 0,
             since_accepted: 0,
             ever_accepted: false,
-            rejected_now: false,
         }
     }
 
     #[inline]
     fn stale(&self, d: &Diagnostics) -> bool {
-        // While rejected, `since_accepted` is the length of the run of rejected samples.
-        !self.ever_accepted
-            || (self.rejected_now && self.since_accepted > u32::from(d.limits.max_hold_samples))
+        // 0 while accepted, so the comparison is only true for a run of rejected samples.
+        !self.ever_accepted || self.since_accepted > u32::from(d.limits.max_hold_samples)
     }
 
     /// Samples since the last accepted sample (0 in the sample that was accepted).
     pub(crate) const fn held_for(&self) -> u32 {
-        if self.rejected_now {
-            self.since_accepted
-        } else {
-            0
-        }
+        self.since_accepted
     }
 
-    /// Run the instantaneous checks on one raw sample and debounce them.
+    /// Run the instantaneous checks on one raw sample (calibrated with `compensation`, the
+    /// channel's temperature compensation at this sample's temperature) and debounce them.
     // Always inlined: its one caller runs it per channel, and the result (`Checked`) and the
     // channel state then stay in registers instead of going through memory.
     #[inline(always)]
@@ -483,11 +482,11 @@ impl ChannelDiagnostics {
         cal: &ChannelCalibration,
         raw: RawChannel,
         command: Option<ActuatorCommand>,
-        sensor_temp: Option<Celsius>,
+        compensation: Option<Compensation>,
     ) -> Checked {
         let was_stale = self.stale(d);
+        // Rejected unless the checks below accept it (which sets it back to 0).
         self.since_accepted = self.since_accepted.saturating_add(1);
-        self.rejected_now = true;
         let mut out = Checked {
             accepted: None,
             was_stale,
@@ -510,7 +509,7 @@ impl ChannelDiagnostics {
                     break 'evidence (bit::RAIL_HIGH, bit::INVALID | bit::RAIL_LOW);
                 }
             }
-            let cal_out = cal.force(raw.counts, sensor_temp);
+            let cal_out = cal.force_with(raw.counts, compensation);
             out.saturated = cal_out.saturated;
             out.temperature_clamped = cal_out.temperature_clamped;
             let f = cal_out.force.to_bits();
@@ -549,7 +548,6 @@ impl ChannelDiagnostics {
                 }
             }
             if in_range && rate_ok {
-                self.rejected_now = false;
                 self.ever_accepted = true;
                 self.last_accepted = f;
                 self.since_accepted = 0;
@@ -576,14 +574,14 @@ impl ChannelDiagnostics {
 
     /// Whether this sample was accepted.
     pub(crate) const fn accepted_now(&self) -> bool {
-        !self.rejected_now
+        self.since_accepted == 0
     }
 
     /// The channel's flag word after this sample.
     #[inline]
     pub(crate) fn flags(&self, d: &Diagnostics) -> ChannelFlags {
         let mut f = ChannelFlags::from_bits_retain(u16::from(self.debounce.raised()));
-        f.set(ChannelFlags::REJECTED, self.rejected_now);
+        f.set(ChannelFlags::REJECTED, self.since_accepted != 0);
         f.set(ChannelFlags::STALE, self.stale(d));
         f
     }

@@ -255,6 +255,8 @@ pub struct SensorConfig<const C: usize> {
     diagnostics: Diagnostics,
     voting: VotingLimits,
     fallback: Option<ActuatorTransfer>,
+    /// Every channel has the same temperature compensation: it is evaluated once per sample.
+    shared_compensation: bool,
 }
 
 const fn field_err(field: &'static str, problem: Problem) -> SensorError {
@@ -311,6 +313,25 @@ impl<const C: usize> SensorConfig<C> {
         {
             return Err(e);
         }
+        let all: &[ChannelCalibration] = &channels;
+        let shared_compensation = match all {
+            [first, rest @ ..] => match &first.temperature {
+                Some(tc) => {
+                    let mut same = true;
+                    let mut rest: &[ChannelCalibration] = rest;
+                    while let [cal, tail @ ..] = rest {
+                        same &= match &cal.temperature {
+                            Some(other) => tc.same_as(other),
+                            None => false,
+                        };
+                        rest = tail;
+                    }
+                    same
+                }
+                None => false,
+            },
+            [] => false,
+        };
         Ok(Self {
             sample_rate_hz,
             channels,
@@ -318,6 +339,7 @@ impl<const C: usize> SensorConfig<C> {
             diagnostics,
             voting,
             fallback,
+            shared_compensation,
         })
     }
 
@@ -488,6 +510,7 @@ impl<const C: usize> SensorState<C> {
         let mut values = [0i32; MAX_CHANNELS];
         let mut usable = 0u8;
         let mut channel_force = [None; MAX_CHANNELS];
+        let mut compensation = None;
         for (i, (((ch, cal), r), (out, value))) in self
             .channels
             .iter_mut()
@@ -496,9 +519,16 @@ impl<const C: usize> SensorState<C> {
             .zip(channel_force.iter_mut().zip(values.iter_mut()))
             .enumerate()
         {
+            // A compensation every channel shares is evaluated once, for the first.
+            if i == 0 || !cfg.shared_compensation {
+                compensation = match (&cal.temperature, self.temperature) {
+                    (Some(tc), Some(t)) => Some(tc.at(t)),
+                    _ => None,
+                };
+            }
             let c = ch
                 .diagnostics
-                .check(d, cal, *r, actuator_command, self.temperature);
+                .check(d, cal, *r, actuator_command, compensation);
             saturated |= c.saturated;
             temperature_clamped |= c.temperature_clamped;
             *out = match c.accepted {
@@ -598,11 +628,16 @@ impl<const C: usize> SensorState<C> {
             } else {
                 Health::Degraded
             };
-            // channel_uncertainty ≥ 0 (validated) and spread ≥ 0: unsigned values are exact.
-            let u = u64::from(cfg.voting.channel_uncertainty.to_bits().unsigned_abs())
-                .saturating_add(held)
-                .saturating_add(u64::from(v.spread.to_bits().unsigned_abs()));
-            let u = i32::try_from(u).unwrap_or(i32::MAX);
+            let u = if held == 0 && v.spread == Newtons::ZERO {
+                cfg.voting.channel_uncertainty.to_bits()
+            } else {
+                // channel_uncertainty ≥ 0 (validated) and spread ≥ 0: unsigned values are
+                // exact.
+                let u = u64::from(cfg.voting.channel_uncertainty.to_bits().unsigned_abs())
+                    .saturating_add(held)
+                    .saturating_add(u64::from(v.spread.to_bits().unsigned_abs()));
+                i32::try_from(u).unwrap_or(i32::MAX)
+            };
             (
                 Some(v.force),
                 Newtons::from_bits(u),
