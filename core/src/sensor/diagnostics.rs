@@ -1,7 +1,10 @@
 //! Per-channel diagnostics: acquisition invalid bit, ADC rails, force range, rate of change,
 //! stuck signal, and (fed from the vote) disagreement with the other channels.
 //!
-//! Every sample, each check gives [`Evidence`] that is debounced on its own ([`DebounceSet`]).
+//! Every sample, each check gives [`Evidence`] that is debounced on its own ([`DebounceSet`]);
+//! the seven debounces of a channel share one bank of counters, so a sample whose evidence
+//! agrees with every flag's state (a healthy channel passing its checks) costs a few bit
+//! operations, not seven state machines.
 //! Independently of the debounce, a sample that fails an *instantaneous* check (invalid bit,
 //! rail, out of range, rate) is **rejected**: it never enters the channel's filter, and the
 //! channel's last accepted value may stand in for at most `max_hold_samples` samples (the

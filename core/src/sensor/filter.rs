@@ -228,11 +228,12 @@ impl LowPassState {
     }
 }
 
-/// Q32 state → Q8 newtons, round half up. The state stays within the range of past inputs
-/// (|acc| ≤ (2³¹ − 1)·2²⁴), so the sum cannot overflow and the result fits i32.
+/// Q32 state → Q8 newtons, round half up. The state stays within the range of past inputs,
+/// −2³¹·2²⁴ ≤ acc ≤ (2³¹ − 1)·2²⁴, so the sum cannot overflow and the result is within i32:
+/// at most (2⁵⁵ − 2²⁴ + 2²³) >> 24 = 2³¹ − 1.
+#[allow(clippy::cast_possible_truncation)] // within i32, shown above
 fn round_out(acc: i64) -> i32 {
-    let v = acc.wrapping_add(1 << (EXTRA - 1)) >> EXTRA;
-    i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX })
+    (acc.wrapping_add(1 << (EXTRA - 1)) >> EXTRA) as i32
 }
 
 #[cfg(test)]
