@@ -181,6 +181,7 @@ impl DebounceBank {
 
     /// The bits in `against` saw evidence against their state: count it, and change the state
     /// of those whose run is complete.
+    #[cold]
     #[inline(never)]
     fn count_against(&mut self, against: u8, cfg: impl Fn(usize) -> Debounce) {
         for (i, run) in self.runs.iter_mut().enumerate() {
