@@ -12,7 +12,8 @@
 //!
 //! ## Error bound
 //!
-//! All products are formed in i128 from the raw bits and rounded once at the end, so against
+//! All products are exact (formed from the raw bits in 64-bit or, with compensation, 128-bit
+//! work) and rounded once at the end, so against
 //! the same formula in f64 with the *stored* coefficients the result is within ½ LSB of
 //! [`Newtons`] (1.95 mN) plus 2⁻³⁰ of |F| for the span term. The stored gain differs from a
 //! float gain by at most 2⁻³³ N/count (I32F32) and the offset by ½ LSB, so against the f64 line
@@ -107,7 +108,50 @@ pub struct TemperatureCompensation {
     pub span_per_kelvin: PerKelvin,
 }
 
+/// A [`TemperatureCompensation`] evaluated at one sensor temperature: what the force of every
+/// channel sharing it needs in that sample.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Compensation {
+    /// 2³⁰ + round(span_per_kelvin·ΔT / 2¹⁶): the span factor in Q30, in [0.5, 1.5] for
+    /// validated coefficients.
+    factor: i64,
+    /// round(zero_per_kelvin·ΔT / 2¹⁶): the zero correction in Q32 newtons, |zero| ≤ 2⁵⁵ for
+    /// validated coefficients.
+    zero: i64,
+    /// The temperature lay outside `min ..= max` and was clamped.
+    clamped: bool,
+}
+
 impl TemperatureCompensation {
+    /// The compensation at sensor temperature `t` (°C), clamped to `min ..= max`.
+    #[inline(always)]
+    pub(crate) fn at(&self, t: Celsius) -> Compensation {
+        let (lo, hi, t) = (self.min.to_bits(), self.max.to_bits(), t.to_bits());
+        // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
+        // assertion (panic path) on the bounds' order in the per-sample code.
+        let dt = i64::from(t.max(lo).min(hi)) - i64::from(self.reference.to_bits());
+        // |span| ≤ 2³¹ and |ΔT| < 2³²: exact in i64.
+        let span = (i64::from(self.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16;
+        // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
+        #[allow(clippy::cast_possible_truncation)]
+        let zero = ((i128::from(self.zero_per_kelvin.to_bits()) * i128::from(dt) + (1 << 15)) >> 16)
+            as i64;
+        Compensation {
+            factor: (1 << 30) + span,
+            zero,
+            clamped: t < lo || t > hi,
+        }
+    }
+
+    /// Whether `other` holds the same coefficients (`const`, for the configuration).
+    pub(crate) const fn same_as(&self, other: &Self) -> bool {
+        self.reference.to_bits() == other.reference.to_bits()
+            && self.min.to_bits() == other.min.to_bits()
+            && self.max.to_bits() == other.max.to_bits()
+            && self.zero_per_kelvin.to_bits() == other.zero_per_kelvin.to_bits()
+            && self.span_per_kelvin.to_bits() == other.span_per_kelvin.to_bits()
+    }
+
     const fn validate(&self, channel: usize) -> Result<(), SensorError> {
         let (lo, hi, r) = (
             self.min.to_bits() as i64,
@@ -202,43 +246,84 @@ impl ChannelCalibration {
     }
 
     /// Counts → newtons with temperature compensation (`sensor_temp` in °C; `None`: ΔT = 0).
-    /// O(1), integers only, any input.
+    /// O(1), integers only, any input; exact to the error bound of the module for a
+    /// calibration that passes [`validate`](Self::validate) (for one that does not, only the
+    /// uncompensated line is exact, and a compensated result may saturate differently).
+    // Always inlined: small, and called once per channel per sample by the diagnostics.
+    #[inline(always)]
     pub fn force(&self, counts: i32, sensor_temp: Option<Celsius>) -> Calibrated {
-        // Q32 newtons. |counts| < 2³¹ and |gain| < 2⁶³: the product is below 2⁹⁴, exact in
-        // i128 (a widening multiply, no overflow to saturate).
-        // The offset (below 2⁵⁵ in Q32) cannot take the sum near the i128 range either, so the
-        // sums here and in `round_shr` are exact: `wrapping_` (no overflow to handle, no panic
-        // path, little code on a 32-bit core).
-        let mut v = (i128::from(counts) * i128::from(self.gain.to_bits()))
-            .wrapping_add(i128::from(self.offset.to_bits()) << 24);
-        let mut temperature_clamped = false;
-        if let (Some(tc), Some(t)) = (&self.temperature, sensor_temp) {
-            let (lo, hi) = (tc.min.to_bits(), tc.max.to_bits());
-            let t = t.to_bits();
-            temperature_clamped = t < lo || t > hi;
-            // `max`/`min` rather than `clamp`: the same value for lo ≤ hi (validated), and no
-            // assertion (panic path) on the bounds' order in the per-sample code.
-            let dt = i128::from(t.max(lo).min(hi)) - i128::from(tc.reference.to_bits());
-            // Q30 factor in [0.5, 1.5] (validated).
-            let span = round_shr(i128::from(tc.span_per_kelvin.to_bits()) * dt, 16);
-            let factor = (1i128 << 30).saturating_add(span);
-            let zero = round_shr(i128::from(tc.zero_per_kelvin.to_bits()) * dt, 16);
-            // |v| < 2⁹⁵ and factor < 2³¹: the product is below 2¹²⁶, exact in i128.
-            v = round_shr(v * factor, 30).wrapping_add(zero);
-        }
-        let q8 = round_shr(v, 24);
+        let compensation = match (&self.temperature, sensor_temp) {
+            (Some(tc), Some(t)) => Some(tc.at(t)),
+            _ => None,
+        };
+        self.force_with(counts, compensation)
+    }
+
+    /// [`force`](Self::force) with the compensation already evaluated at this sample's
+    /// temperature (`None`: ΔT = 0), so channels sharing one evaluate it once.
+    #[inline(always)]
+    pub(crate) fn force_with(&self, counts: i32, compensation: Option<Compensation>) -> Calibrated {
+        let (gain, offset) = (self.gain.to_bits(), self.offset.to_bits());
+        let (q8, temperature_clamped) = match compensation {
+            Some(c) => (compensated_q8(counts, gain, offset, &c), c.clamped),
+            None => (line_q8(counts, gain, offset), false),
+        };
         let bits = i32::try_from(q8).unwrap_or(if q8 < 0 { i32::MIN } else { i32::MAX });
         Calibrated {
             force: Newtons::from_bits(bits),
-            saturated: i128::from(bits) != q8,
+            saturated: i64::from(bits) != q8,
             temperature_clamped,
         }
     }
 }
 
-/// Round half up of `v / 2^s`, for |v| < 2¹²⁶ and 1 ≤ s ≤ 30 (the calls above).
-fn round_shr(v: i128, s: u32) -> i128 {
-    v.wrapping_add(1i128 << (s - 1)) >> s
+/// The Q32 line counts·gain + offset·2²⁴ as (H, L) with line = H·2³² + L, in 64-bit work.
+///
+/// With gain = g_h·2³² + g_l (g_h = gain >> 32, 0 ≤ g_l < 2³²) and P = c·g_l (|P| < 2⁶³):
+/// H = c·g_h + ⌊P/2³²⌋ (|H| ≤ 2⁶² + 2³¹) and L = (P mod 2³²) + offset·2²⁴ (|L| < 2⁵⁶).
+#[inline(always)]
+fn line_parts(counts: i32, gain: i64, offset: i32) -> (i64, i64) {
+    let c = i64::from(counts);
+    let p = c * (gain & 0xffff_ffff);
+    let h = c * (gain >> 32) + (p >> 32);
+    let l = (p & 0xffff_ffff) + (i64::from(offset) << 24);
+    (h, l)
+}
+
+/// round(line / 2²⁴), half up: the uncompensated line in Q8 newtons, exact where it lies
+/// within ±2³², else a value beyond that of the right sign (it saturates either way), for any
+/// counts, gain and offset.
+///
+/// H·2⁸ + ⌊(L + 2²³)/2²⁴⌋, with H clamped to ±2⁴⁰ before the shift: a larger |H| puts the
+/// result beyond ±2⁴⁷, saturating to the same side either way.
+#[inline(always)]
+fn line_q8(counts: i32, gain: i64, offset: i32) -> i64 {
+    let (h, l) = line_parts(counts, gain, offset);
+    (h.clamp(-(1 << 40), 1 << 40) << 8) + ((l + (1 << 23)) >> 24)
+}
+
+/// The compensated force in Q8 newtons, exact where within ±2³², else beyond that with the
+/// right sign.
+///
+/// F = round((round(line·factor / 2³⁰) + zero) / 2²⁴) (see [`Compensation`]). Validated
+/// coefficients keep factor in [2²⁹, 1.5·2³⁰] and |zero| ≤ 2⁵⁵, so |line| ≥ 2⁵⁸ gives |F| ≥
+/// (2⁵⁷ − 2⁵⁵ − 1)/2²⁴ > 2³²: saturated, with the sign of the line; |H| ≥ 2²⁷ is such a line
+/// (|L| < 2⁵⁶). Below that the line is H·2³² + L in i64, line·factor < 2⁸⁹ is one widening
+/// multiply, and everything after it fits i64.
+#[inline(always)]
+fn compensated_q8(counts: i32, gain: i64, offset: i32, c: &Compensation) -> i64 {
+    let (h, l) = line_parts(counts, gain, offset);
+    if h.unsigned_abs() >= 1 << 27 {
+        return if h < 0 { i64::MIN } else { i64::MAX };
+    }
+    let line = (h << 32) + l;
+    if line.unsigned_abs() >= 1 << 58 {
+        return if line < 0 { i64::MIN } else { i64::MAX };
+    }
+    // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
+    #[allow(clippy::cast_possible_truncation)]
+    let scaled = ((i128::from(line) * i128::from(c.factor) + (1 << 29)) >> 30) as i64;
+    scaled.wrapping_add(c.zero).wrapping_add(1 << 23) >> 24
 }
 
 /// Gain and offset from two known loads (host or start-up helper; floats, never per sample).

@@ -130,8 +130,86 @@ impl DebounceState {
     }
 }
 
+/// The debounce state of up to [`BANK`] diagnostics of one channel at once (bit i =
+/// diagnostic i), each behaving exactly as its own [`DebounceState`].
+///
+/// One sample's evidence comes as two bit masks (bad, good; a bit in neither is
+/// [`Evidence::None`]). A run is kept only for the bits in `counting`, so evidence that agrees
+/// with the current state (the common case: a healthy channel passing its checks) costs a few
+/// bit operations for the whole bank, and only a bit that sees evidence against its state
+/// touches its counter.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub(crate) struct DebounceBank {
+    /// Raised flags.
+    raised: u8,
+    /// Bits whose run (in `runs`) is non-zero; a run with its bit clear counts as 0.
+    counting: u8,
+    /// Consecutive samples of evidence against the current state, per bit.
+    runs: [u16; BANK],
+}
+
+/// Diagnostics a [`DebounceBank`] holds.
+pub(crate) const BANK: usize = 7;
+
+impl DebounceBank {
+    pub(crate) const fn new() -> Self {
+        Self {
+            raised: 0,
+            counting: 0,
+            runs: [0; BANK],
+        }
+    }
+
+    /// The raised flags (bit i = diagnostic i).
+    pub(crate) const fn raised(&self) -> u8 {
+        self.raised
+    }
+
+    /// Take one sample of evidence: `bad` and `good` are disjoint bit masks (a bit in both
+    /// counts as bad; bits from [`BANK`] on are ignored), `cfg(i)` gives diagnostic i's counts.
+    #[inline]
+    pub(crate) fn update(&mut self, bad: u8, good: u8, cfg: impl Fn(usize) -> Debounce) {
+        let good = good & !bad;
+        let against = (bad & !self.raised) | (good & self.raised);
+        // Evidence towards the current state ends any run against it.
+        self.counting &= !((bad | good) & !against);
+        if against != 0 {
+            self.count_against(against, cfg);
+        }
+    }
+
+    /// The bits in `against` saw evidence against their state: count it, and change the state
+    /// of those whose run is complete.
+    #[cold]
+    #[inline(never)]
+    fn count_against(&mut self, against: u8, cfg: impl Fn(usize) -> Debounce) {
+        for (i, run) in self.runs.iter_mut().enumerate() {
+            let bit = 1u8 << i;
+            if against & bit == 0 {
+                continue;
+            }
+            let before = if self.counting & bit != 0 { *run } else { 0 };
+            let now = before.saturating_add(1);
+            let c = cfg(i);
+            let needed = if self.raised & bit != 0 {
+                c.clear_after
+            } else {
+                c.raise_after
+            };
+            if now >= needed {
+                self.raised ^= bit;
+                self.counting &= !bit;
+            } else {
+                *run = now;
+                self.counting |= bit;
+            }
+        }
+    }
+}
+
 #[cfg(test)]
-#[allow(clippy::unwrap_used, clippy::float_cmp)]
+#[allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
 mod tests {
     use super::*;
 
@@ -170,6 +248,47 @@ mod tests {
             assert!(!s.update(&cfg, Evidence::Bad));
             assert!(!s.update(&cfg, Evidence::Bad));
             assert!(!s.update(&cfg, Evidence::Good));
+        }
+    }
+
+    proptest::proptest! {
+        // The bank against one DebounceState per diagnostic, over any evidence sequence and
+        // any counts (small ones, so flags rise and fall, and the extremes).
+        #[test]
+        fn a_bank_behaves_as_separate_states(
+            counts in proptest::collection::vec(
+                proptest::prop_oneof![
+                    4 => (1u16..5, 1u16..5),
+                    1 => (proptest::num::u16::ANY, proptest::num::u16::ANY),
+                ],
+                BANK,
+            ),
+            evidence in proptest::collection::vec((proptest::num::u8::ANY, proptest::num::u8::ANY), 0..400),
+        ) {
+            let cfg: Vec<Debounce> = counts
+                .iter()
+                .map(|&(r, c)| Debounce { raise_after: r.max(1), clear_after: c.max(1) })
+                .collect();
+            let mut bank = DebounceBank::new();
+            let mut one = [DebounceState::new(); BANK];
+            for &(bad, good) in &evidence {
+                bank.update(bad, good, |i| cfg[i]);
+                let mut want = 0u8;
+                for (i, s) in one.iter_mut().enumerate() {
+                    let bit = 1 << i;
+                    let e = if bad & bit != 0 {
+                        Evidence::Bad
+                    } else if good & bit != 0 {
+                        Evidence::Good
+                    } else {
+                        Evidence::None
+                    };
+                    if s.update(&cfg[i], e) {
+                        want |= bit;
+                    }
+                }
+                proptest::prop_assert_eq!(bank.raised(), want);
+            }
         }
     }
 

@@ -1,7 +1,10 @@
 //! Per-channel diagnostics: acquisition invalid bit, ADC rails, force range, rate of change,
 //! stuck signal, and (fed from the vote) disagreement with the other channels.
 //!
-//! Every sample, each check gives [`Evidence`] that is debounced on its own ([`DebounceSet`]).
+//! Every sample, each check gives [`Evidence`] that is debounced on its own ([`DebounceSet`]);
+//! the seven debounces of a channel share one bank of counters, so a sample whose evidence
+//! agrees with every flag's state (a healthy channel passing its checks) costs a few bit
+//! operations, not seven state machines.
 //! Independently of the debounce, a sample that fails an *instantaneous* check (invalid bit,
 //! rail, out of range, rate) is **rejected**: it never enters the channel's filter, and the
 //! channel's last accepted value may stand in for at most `max_hold_samples` samples (the
@@ -41,11 +44,11 @@
 
 use bitflags::bitflags;
 
-use super::calibration::{ChannelCalibration, Rail};
-use super::debounce::{Debounce, DebounceState, Evidence};
+use super::calibration::{ChannelCalibration, Compensation, Rail};
+use super::debounce::{Debounce, DebounceBank, Evidence};
 use super::error::{Problem, SensorError};
 use super::{ActuatorCommand, NewtonsPerSecond, RawChannel};
-use crate::units::{Celsius, Newtons, Seconds};
+use crate::units::{Newtons, Seconds};
 
 bitflags! {
     /// Flag word of one channel for one sample.
@@ -90,6 +93,48 @@ impl ChannelFlags {
 
     /// Bits that keep a channel out of the vote.
     pub const UNUSABLE: Self = Self::FAULTS.union(Self::STALE);
+}
+
+/// The debounced diagnostics as bits of a [`DebounceBank`]: the same bits as their flags, so
+/// the bank's raised set is the low byte of the flag word.
+mod bit {
+    pub(super) const INVALID: u8 = 1 << 0;
+    pub(super) const RAIL_LOW: u8 = 1 << 1;
+    pub(super) const RAIL_HIGH: u8 = 1 << 2;
+    pub(super) const RANGE: u8 = 1 << 3;
+    pub(super) const RATE: u8 = 1 << 4;
+    pub(super) const STUCK: u8 = 1 << 5;
+    pub(super) const DISAGREE: u8 = 1 << 6;
+}
+
+const _: () = {
+    let flags = [
+        (ChannelFlags::INVALID, bit::INVALID),
+        (ChannelFlags::RAIL_LOW, bit::RAIL_LOW),
+        (ChannelFlags::RAIL_HIGH, bit::RAIL_HIGH),
+        (ChannelFlags::OUT_OF_RANGE, bit::RANGE),
+        (ChannelFlags::RATE, bit::RATE),
+        (ChannelFlags::STUCK, bit::STUCK),
+        (ChannelFlags::DISAGREE, bit::DISAGREE),
+    ];
+    let mut rest: &[(ChannelFlags, u8)] = &flags;
+    while let [(flag, bit), tail @ ..] = rest {
+        assert!(flag.bits() == *bit as u16);
+        rest = tail;
+    }
+    assert!(ChannelFlags::FAULTS.bits() == 0x7f);
+};
+
+/// The counts of diagnostic `i` of a channel's [`DebounceBank`] (bit order of [`bit`]).
+fn debounce_of(set: &DebounceSet, i: usize) -> Debounce {
+    match i {
+        0 => set.invalid,
+        1 | 2 => set.rail,
+        3 => set.range,
+        4 => set.rate,
+        5 => set.stuck,
+        _ => set.disagreement,
+    }
 }
 
 #[cfg(feature = "defmt")]
@@ -192,6 +237,11 @@ pub(crate) struct Diagnostics {
     pub(crate) limits: DiagnosticLimits,
     /// `max_rate` / f_s in Q32 newtons per sample, rounded up.
     pub(crate) rate_per_sample_q32: i64,
+    /// Whole Q8 newtons of `rate_per_sample_q32` (its bits from 24 on), at most `u32::MAX`:
+    /// a larger rate allows any change after one sample anyway.
+    rate_q8: u32,
+    /// The bits of `rate_per_sample_q32` below Q8 (< 2²⁴).
+    rate_fraction: u32,
     /// Stuck window in samples (≥ 1), 0 when the check is off.
     stuck_window: u32,
 }
@@ -252,9 +302,22 @@ impl Diagnostics {
                 w
             }
         };
+        // rate ≥ 1 (validated), so rate_per_sample_q32 ≥ 1 and the shift and mask below are of
+        // a positive value.
+        let whole = rate_per_sample_q32 >> 24;
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let rate_q8 = if whole > u32::MAX as i64 {
+            u32::MAX
+        } else {
+            whole as u32
+        };
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let rate_fraction = (rate_per_sample_q32 & ((1 << 24) - 1)) as u32;
         Ok(Self {
             limits,
             rate_per_sample_q32,
+            rate_q8,
+            rate_fraction,
             stuck_window,
         })
     }
@@ -268,10 +331,27 @@ impl Diagnostics {
         }
     }
 
-    /// Largest change (Q32 N) a healthy channel can show over `samples` sample periods.
-    pub(crate) fn allowance_q32(&self, samples: u32) -> i128 {
-        (i128::from(self.limits.noise_band.to_bits()) << 24)
-            .saturating_add(i128::from(self.rate_per_sample_q32) * i128::from(samples))
+    /// Largest change a healthy channel can show over `samples` (≥ 1) sample periods,
+    /// A = `noise_band` + `max_rate`·k·T (Q32 N), as Q8 newtons rounded down (`round_up`
+    /// false) or up; saturated to `u64::MAX`, it is never below the exact value's when that
+    /// exceeds `u32::MAX`, so comparisons with any i32 difference and sums clamped to i32
+    /// are unchanged.
+    ///
+    /// With r = `rate_per_sample_q32` = h·2²⁴ + l (l < 2²⁴), A/2²⁴ = noise + h·k + l·k/2²⁴:
+    /// h ≤ 2³² − 1 (clamped, see `rate_q8`) and k < 2³² make h·k ≤ 2⁶⁴ − 2³³ + 1 and
+    /// l·k < 2⁵⁶, so everything is 32×32→64-bit work, exact.
+    #[inline]
+    pub(crate) fn allowance_q8(&self, samples: u32, round_up: bool) -> u64 {
+        let noise = u64::from(self.limits.noise_band.to_bits().unsigned_abs());
+        if samples == 1 && !round_up {
+            // The sample after an accepted one, the usual case: l < 2²⁴ adds nothing.
+            return noise + u64::from(self.rate_q8);
+        }
+        let k = u64::from(samples);
+        let fraction = u64::from(self.rate_fraction) * k + if round_up { (1 << 24) - 1 } else { 0 };
+        (u64::from(self.rate_q8) * k)
+            .saturating_add(noise)
+            .saturating_add(fraction >> 24)
     }
 }
 
@@ -284,10 +364,10 @@ struct StuckWindow {
     reference: i32,
     /// Samples since the start of the window.
     quiet: u32,
-    /// Command range seen in the window (Q16 bits), valid when `command_seen`.
+    /// Command range seen in the window (Q16 bits); `lo > hi` (empty) while no command has
+    /// been seen, so a first command sets both through the same `min`/`max`.
     command_lo: i32,
     command_hi: i32,
-    command_seen: bool,
 }
 
 impl StuckWindow {
@@ -296,12 +376,12 @@ impl StuckWindow {
             primed: false,
             reference: 0,
             quiet: 0,
-            command_lo: 0,
-            command_hi: 0,
-            command_seen: false,
+            command_lo: i32::MAX,
+            command_hi: i32::MIN,
         }
     }
 
+    #[inline]
     fn step(
         &mut self,
         force: i32,
@@ -310,34 +390,33 @@ impl StuckWindow {
         window: u32,
         span: i32,
     ) -> Evidence {
-        let moved = (i64::from(force) - i64::from(self.reference)).abs() > i64::from(band);
+        // `band` ≥ 0 (validated), so its unsigned value is exact.
+        let moved = force.abs_diff(self.reference) > band.unsigned_abs();
         if !self.primed || moved {
             let evidence = if self.primed {
                 Evidence::Good
             } else {
                 Evidence::None
             };
+            let (lo, hi) = command.map_or((i32::MAX, i32::MIN), |c| (c, c));
             *self = Self {
                 primed: true,
                 reference: force,
                 quiet: 0,
-                command_lo: command.unwrap_or(0),
-                command_hi: command.unwrap_or(0),
-                command_seen: command.is_some(),
+                command_lo: lo,
+                command_hi: hi,
             };
             return evidence;
         }
         self.quiet = self.quiet.saturating_add(1);
         if let Some(c) = command {
-            if self.command_seen {
-                self.command_lo = self.command_lo.min(c);
-                self.command_hi = self.command_hi.max(c);
-            } else {
-                (self.command_lo, self.command_hi, self.command_seen) = (c, c, true);
-            }
+            self.command_lo = self.command_lo.min(c);
+            self.command_hi = self.command_hi.max(c);
         }
-        let spanned = self.command_seen
-            && i64::from(self.command_hi) - i64::from(self.command_lo) >= i64::from(span);
+        // With a command seen, hi ≥ lo and the distance is hi − lo exactly; `span` > 0
+        // (validated).
+        let spanned = self.command_hi >= self.command_lo
+            && self.command_hi.abs_diff(self.command_lo) >= span.unsigned_abs();
         if self.quiet >= window && spanned {
             Evidence::Bad
         } else {
@@ -362,156 +441,150 @@ pub(crate) struct Checked {
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub(crate) struct ChannelDiagnostics {
-    invalid: DebounceState,
-    rail_low: DebounceState,
-    rail_high: DebounceState,
-    range: DebounceState,
-    rate: DebounceState,
-    stuck: DebounceState,
-    disagree: DebounceState,
+    /// The seven debounced diagnostics, bits as in [`bit`].
+    debounce: DebounceBank,
     stuck_window: StuckWindow,
-    ever_accepted: bool,
     /// Last accepted calibrated force (Q8 bits).
     last_accepted: i32,
-    /// Sample periods since the last accepted sample (1 in the sample after it).
+    /// Sample periods since the last accepted sample: 0 when this sample was accepted (or
+    /// before the first), else the length of the run of rejected samples (≥ 1, saturating).
     since_accepted: u32,
-    rejected_now: bool,
+    ever_accepted: bool,
 }
 
 impl ChannelDiagnostics {
     pub(crate) const fn new() -> Self {
         Self {
-            invalid: DebounceState::new(),
-            rail_low: DebounceState::new(),
-            rail_high: DebounceState::new(),
-            range: DebounceState::new(),
-            rate: DebounceState::new(),
-            stuck: DebounceState::new(),
-            disagree: DebounceState::new(),
+            debounce: DebounceBank::new(),
             stuck_window: StuckWindow::new(),
-            ever_accepted: false,
             last_accepted: 0,
             since_accepted: 0,
-            rejected_now: false,
+            ever_accepted: false,
         }
     }
 
+    #[inline]
     fn stale(&self, d: &Diagnostics) -> bool {
-        // While rejected, `since_accepted` is the length of the run of rejected samples.
-        !self.ever_accepted
-            || (self.rejected_now && self.since_accepted > u32::from(d.limits.max_hold_samples))
+        // 0 while accepted, so the comparison is only true for a run of rejected samples.
+        !self.ever_accepted || self.since_accepted > u32::from(d.limits.max_hold_samples)
     }
 
     /// Samples since the last accepted sample (0 in the sample that was accepted).
     pub(crate) const fn held_for(&self) -> u32 {
-        if self.rejected_now {
-            self.since_accepted
-        } else {
-            0
-        }
+        self.since_accepted
     }
 
-    /// Run the instantaneous checks on one raw sample and debounce them.
+    /// Run the instantaneous checks on one raw sample (calibrated with `compensation`, the
+    /// channel's temperature compensation at this sample's temperature) and debounce them.
+    // Always inlined: its one caller runs it per channel, and the result (`Checked`) and the
+    // channel state then stay in registers instead of going through memory.
+    #[inline(always)]
     pub(crate) fn check(
         &mut self,
         d: &Diagnostics,
         cal: &ChannelCalibration,
         raw: RawChannel,
         command: Option<ActuatorCommand>,
-        sensor_temp: Option<Celsius>,
+        compensation: Option<Compensation>,
     ) -> Checked {
         let was_stale = self.stale(d);
+        // Rejected unless the checks below accept it (which sets it back to 0).
         self.since_accepted = self.since_accepted.saturating_add(1);
-        let db = &d.limits.debounce;
         let mut out = Checked {
             accepted: None,
             was_stale,
             saturated: false,
             temperature_clamped: false,
         };
-        self.rejected_now = true;
-        if !raw.valid {
-            self.invalid.update(&db.invalid, Evidence::Bad);
-            return out;
-        }
-        self.invalid.update(&db.invalid, Evidence::Good);
-        let rail = cal.rails.classify(raw.counts);
-        let (low, high) = match rail {
-            Rail::Inside => (Evidence::Good, Evidence::Good),
-            Rail::Low => (Evidence::Bad, Evidence::Good),
-            Rail::High => (Evidence::Good, Evidence::Bad),
-        };
-        self.rail_low.update(&db.rail, low);
-        self.rail_high.update(&db.rail, high);
-        if rail != Rail::Inside {
-            out.saturated = true;
-            return out;
-        }
-        let cal_out = cal.force(raw.counts, sensor_temp);
-        out.saturated = cal_out.saturated;
-        out.temperature_clamped = cal_out.temperature_clamped;
-        let f = cal_out.force.to_bits();
-        let l = &d.limits;
-        let in_range = f >= l.force_min.to_bits() && f <= l.force_max.to_bits();
-        self.range.update(
-            &db.range,
+        // Evidence of this sample as (bad, good) bits; a check not made gives neither.
+        let (bad, good) = 'evidence: {
+            if !raw.valid {
+                break 'evidence (bit::INVALID, 0);
+            }
+            match cal.rails.classify(raw.counts) {
+                Rail::Inside => {}
+                Rail::Low => {
+                    out.saturated = true;
+                    break 'evidence (bit::RAIL_LOW, bit::INVALID | bit::RAIL_HIGH);
+                }
+                Rail::High => {
+                    out.saturated = true;
+                    break 'evidence (bit::RAIL_HIGH, bit::INVALID | bit::RAIL_LOW);
+                }
+            }
+            let cal_out = cal.force_with(raw.counts, compensation);
+            out.saturated = cal_out.saturated;
+            out.temperature_clamped = cal_out.temperature_clamped;
+            let f = cal_out.force.to_bits();
+            let l = &d.limits;
+            let mut bad = 0;
+            let mut good = bit::INVALID | bit::RAIL_LOW | bit::RAIL_HIGH;
+            let in_range = f >= l.force_min.to_bits() && f <= l.force_max.to_bits();
             if in_range {
-                Evidence::Good
+                good |= bit::RANGE;
             } else {
-                Evidence::Bad
-            },
-        );
-        let rate_ok = if self.ever_accepted {
-            let change = (i128::from(f) - i128::from(self.last_accepted)) << 24;
-            let ok = change.abs() <= d.allowance_q32(self.since_accepted);
-            self.rate
-                .update(&db.rate, if ok { Evidence::Good } else { Evidence::Bad });
-            ok
-        } else {
-            true
+                bad |= bit::RANGE;
+            }
+            // |F − F_last|·2²⁴ ≤ A ⇔ |F − F_last| ≤ ⌊A/2²⁴⌋: the change is a whole number of
+            // Q8 steps, and i32 differences fit u32 exactly.
+            let rate_ok = !self.ever_accepted
+                || u64::from(f.abs_diff(self.last_accepted))
+                    <= d.allowance_q8(self.since_accepted, false);
+            if self.ever_accepted {
+                if rate_ok {
+                    good |= bit::RATE;
+                } else {
+                    bad |= bit::RATE;
+                }
+            }
+            if let (Some(window), Some(s)) = (d.stuck_window(), &l.stuck) {
+                match self.stuck_window.step(
+                    f,
+                    command.map(|c| c.to_bits()),
+                    l.noise_band.to_bits(),
+                    window,
+                    s.command_span.to_bits(),
+                ) {
+                    Evidence::Bad => bad |= bit::STUCK,
+                    Evidence::Good => good |= bit::STUCK,
+                    Evidence::None => {}
+                }
+            }
+            if in_range && rate_ok {
+                self.ever_accepted = true;
+                self.last_accepted = f;
+                self.since_accepted = 0;
+                out.accepted = Some(cal_out.force);
+            }
+            (bad, good)
         };
-        if let (Some(window), Some(s)) = (d.stuck_window(), &l.stuck) {
-            let e = self.stuck_window.step(
-                f,
-                command.map(|c| c.to_bits()),
-                l.noise_band.to_bits(),
-                window,
-                s.command_span.to_bits(),
-            );
-            self.stuck.update(&db.stuck, e);
-        }
-        if in_range && rate_ok {
-            self.rejected_now = false;
-            self.ever_accepted = true;
-            self.last_accepted = f;
-            self.since_accepted = 0;
-            out.accepted = Some(cal_out.force);
-        }
+        let db = &d.limits.debounce;
+        self.debounce.update(bad, good, |i| debounce_of(db, i));
         out
     }
 
     /// Debounce the disagreement evidence from the vote.
+    #[inline]
     pub(crate) fn disagreement(&mut self, d: &Diagnostics, evidence: Evidence) {
-        self.disagree
-            .update(&d.limits.debounce.disagreement, evidence);
+        let (bad, good) = match evidence {
+            Evidence::Bad => (bit::DISAGREE, 0),
+            Evidence::Good => (0, bit::DISAGREE),
+            Evidence::None => return,
+        };
+        let db = &d.limits.debounce;
+        self.debounce.update(bad, good, |i| debounce_of(db, i));
     }
 
     /// Whether this sample was accepted.
     pub(crate) const fn accepted_now(&self) -> bool {
-        !self.rejected_now
+        self.since_accepted == 0
     }
 
     /// The channel's flag word after this sample.
+    #[inline]
     pub(crate) fn flags(&self, d: &Diagnostics) -> ChannelFlags {
-        let mut f = ChannelFlags::empty();
-        f.set(ChannelFlags::INVALID, self.invalid.raised());
-        f.set(ChannelFlags::RAIL_LOW, self.rail_low.raised());
-        f.set(ChannelFlags::RAIL_HIGH, self.rail_high.raised());
-        f.set(ChannelFlags::OUT_OF_RANGE, self.range.raised());
-        f.set(ChannelFlags::RATE, self.rate.raised());
-        f.set(ChannelFlags::STUCK, self.stuck.raised());
-        f.set(ChannelFlags::DISAGREE, self.disagree.raised());
-        f.set(ChannelFlags::REJECTED, self.rejected_now);
+        let mut f = ChannelFlags::from_bits_retain(u16::from(self.debounce.raised()));
+        f.set(ChannelFlags::REJECTED, self.since_accepted != 0);
         f.set(ChannelFlags::STALE, self.stale(d));
         f
     }

@@ -111,13 +111,11 @@ impl ActuatorModel {
 
     /// Predict the force for `command` (command units). O(1), integers only, any input.
     pub fn update(&mut self, tr: &ActuatorTransfer, command: ActuatorCommand) -> Predicted {
-        // Q16 · Q32 = Q48 → Q8, rounded half up.
-        let line = ((i128::from(command.to_bits()) * i128::from(tr.gain.to_bits()))
-            .saturating_add(1i128 << 39)
-            >> 40)
-            .saturating_add(i128::from(tr.offset.to_bits()));
-        let half = i128::from(tr.hysteresis.to_bits() / 2);
-        let f = i128::from(self.force);
+        let line = centre_line_q8(command.to_bits(), tr.gain.to_bits())
+            .wrapping_add(i64::from(tr.offset.to_bits()));
+        // |line| < 2⁵⁵ (below): the band edges and the result stay far inside i64.
+        let half = i64::from(tr.hysteresis.to_bits() / 2);
+        let f = i64::from(self.force);
         let next = if !self.primed {
             line
         } else if line - half > f {
@@ -132,9 +130,24 @@ impl ActuatorModel {
         self.force = bits;
         Predicted {
             force: Newtons::from_bits(bits),
-            saturated: i128::from(bits) != next,
+            saturated: i64::from(bits) != next,
         }
     }
+}
+
+/// round(c·g / 2⁴⁰), half up: Q16 command times Q32 gain to Q8 newtons, exactly, in 64-bit
+/// work (|result| ≤ 2⁵⁴).
+///
+/// With g = h·2³² + l (h = g >> 32, 0 ≤ l < 2³²) and P = c·l = P_h·2³² + P_l (0 ≤ P_l < 2³²):
+/// c·g + 2³⁹ = (c·h + P_h + 2⁷)·2³² + P_l, and as P_l < 2³² cannot carry into the bits from
+/// 2⁴⁰ on, ⌊(c·g + 2³⁹)/2⁴⁰⌋ = ⌊(c·h + P_h + 2⁷)/2⁸⌋. |c·h| ≤ 2⁶², |P| < 2⁶³, |P_h| < 2³¹:
+/// every term is exact in i64.
+fn centre_line_q8(command: i32, gain: i64) -> i64 {
+    let c = i64::from(command);
+    let high = gain >> 32;
+    let low = gain & 0xffff_ffff;
+    let p = c * low;
+    (c * high + (p >> 32) + (1 << 7)) >> 8
 }
 
 #[cfg(test)]
@@ -167,6 +180,18 @@ mod tests {
         assert_eq!(f(&mut m, 97.0), 24_100.0); // reversal inside the band: held
         assert_eq!(f(&mut m, 90.0), 22_000.0 + 400.0); // falling: upper branch
         assert_eq!(t.stated_uncertainty(), Newtons::from_num(2400));
+    }
+
+    proptest::proptest! {
+        // The 64-bit centre line against the product formed in i128.
+        #[test]
+        fn centre_line_is_the_rounded_product(
+            c in proptest::num::i32::ANY,
+            g in proptest::num::i64::ANY,
+        ) {
+            let want = (i128::from(c) * i128::from(g) + (1i128 << 39)) >> 40;
+            proptest::prop_assert_eq!(i128::from(centre_line_q8(c, g)), want);
+        }
     }
 
     #[test]

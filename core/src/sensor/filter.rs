@@ -214,22 +214,26 @@ impl LowPassState {
         if !self.primed {
             self.reset(x);
         } else {
-            // |x|, |acc| < 2⁵⁵, so e < 2⁵⁶ and α·e < 2¹¹⁶: no overflow in i128.
-            let e = (i64::from(x.to_bits()) << EXTRA).saturating_sub(self.acc);
+            // The state only ever moves from a past input towards the next one (|round(α·e)|
+            // ≤ |e| for 0 < α ≤ 1), so it stays within the range of past inputs, |acc| < 2⁵⁵:
+            // e < 2⁵⁶, α·e < 2¹¹⁶ in i128, the step fits i64 and the sums cannot overflow
+            // (`wrapping_`: no overflow to handle, no panic path).
+            let e = (i64::from(x.to_bits()) << EXTRA).wrapping_sub(self.acc);
             let prod = i128::from(e) * i128::from(cfg.alpha_q60) + (1i128 << (ALPHA_FRAC - 1));
-            // |round(α·e)| ≤ |e| for 0 < α ≤ 1, so the step fits i64.
-            let step = i64::try_from(prod >> ALPHA_FRAC).unwrap_or(e);
-            self.acc = self.acc.saturating_add(step);
+            #[allow(clippy::cast_possible_truncation)] // |step| ≤ |e| < 2⁵⁶, shown above
+            let step = (prod >> ALPHA_FRAC) as i64;
+            self.acc = self.acc.wrapping_add(step);
         }
         Newtons::from_bits(round_out(self.acc))
     }
 }
 
-/// Q32 state → Q8 newtons, round half up. The state stays within the range of past inputs, so
-/// the saturation only guards the proof.
+/// Q32 state → Q8 newtons, round half up. The state stays within the range of past inputs,
+/// −2³¹·2²⁴ ≤ acc ≤ (2³¹ − 1)·2²⁴, so the sum cannot overflow and the result is within i32:
+/// at most (2⁵⁵ − 2²⁴ + 2²³) >> 24 = 2³¹ − 1.
+#[allow(clippy::cast_possible_truncation)] // within i32, shown above
 fn round_out(acc: i64) -> i32 {
-    let v = acc.saturating_add(1 << (EXTRA - 1)) >> EXTRA;
-    i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX })
+    (acc.wrapping_add(1 << (EXTRA - 1)) >> EXTRA) as i32
 }
 
 #[cfg(test)]

@@ -1,8 +1,14 @@
 //! Voting among the usable force channels.
 //!
 //! The consensus is the **largest set of usable channels that all lie within `tolerance` of the
-//! set's median** (median of an even count: the mean of the middle two, rounded down). With at
-//! most four channels every subset is tried (≤ 15, each sorted in place: bounded, O(1)).
+//! set's median** (median of an even count: the mean of the middle two, rounded down).
+//!
+//! Cost: the full usable set is tried first, from its sum and extremes alone (no sort: with at
+//! most four values the median is the sum less the extremes, halved for four). When it agrees
+//! — the usual case — it is the unique largest agreeing set and the vote ends there. Only when
+//! it disagrees are the smaller subsets searched, largest first, stopping at the first size
+//! that has an agreeing set (≤ 14 subsets in all: bounded, O(1)). Both are compared with the
+//! every-subset definition by property tests.
 //!
 //! - 1 channel: passed through ([`Agreement::Single`]).
 //! - 2 channels: the mean while |a − b| ≤ 2·tolerance ([`Agreement::Unanimous`]); otherwise
@@ -87,66 +93,18 @@ impl Vote {
     }
 }
 
-/// The usable candidates in increasing order of value, each with its channel's mask bit
-/// (unused entries: bit 0). Sorted once per vote, by rank, so each subset below is gathered
-/// already in order instead of being sorted again.
-type Sorted = [(i32, u8); 4];
-
-fn sort_candidates(candidates: &[Option<Newtons>]) -> Sorted {
-    let mut vals = [None; 4];
-    for (v, c) in vals.iter_mut().zip(candidates.iter()) {
-        *v = c.map(|x| x.to_bits());
-    }
-    let mut out = [(0i32, 0u8); 4];
-    for (i, vi) in vals.iter().enumerate() {
-        let Some(x) = *vi else { continue };
-        // Rank: usable values below x, plus equal ones on an earlier channel.
-        let rank = vals
-            .iter()
-            .enumerate()
-            .filter(|&(j, vj)| vj.is_some_and(|y| y < x || (y == x && j < i)))
-            .count();
-        if let Some(slot) = out.get_mut(rank) {
-            *slot = (x, 1 << i);
-        }
-    }
-    out
-}
-
-/// Sorted values of the channels in `mask`, and how many.
-fn gather(sorted: &Sorted, mask: u8) -> ([i32; 4], usize) {
-    let mut v = [0i32; 4];
-    let mut n = 0usize;
-    for &(x, bit) in sorted {
-        if bit & mask != 0
-            && let Some(slot) = v.get_mut(n)
-        {
-            *slot = x;
-            n += 1;
-        }
-    }
-    (v, n)
-}
-
-/// Median of the first `n` sorted values (lower-rounded mean of the middle two when even).
-fn median(v: &[i32; 4], n: usize) -> i64 {
-    let at = |i: usize| v.get(i).map_or(0, |&x| i64::from(x));
-    if n == 0 {
-        0
-    } else if n % 2 == 1 {
-        at(n / 2)
-    } else {
-        (at(n / 2 - 1) + at(n / 2)) >> 1
-    }
-}
-
-/// Median and largest distance from it to a member.
-fn centre(sorted: &Sorted, mask: u8) -> (i64, i64, usize) {
-    let (v, n) = gather(sorted, mask);
-    let m = median(&v, n);
-    let lo = i64::from(v.first().copied().unwrap_or(0));
-    let hi = i64::from(v.get(n.saturating_sub(1)).copied().unwrap_or(0));
-    (m, (m - lo).max(hi - m), n)
+/// Median and reach (largest distance from the median to a member) of a set of `n` (1 ..= 4)
+/// values given by their sum and extremes: the median is the middle value (n = 3: the sum
+/// without the extremes), the lower-rounded mean of the middle two (n = 2, 4), or the value.
+#[inline(always)]
+fn median_reach(n: u32, sum: i64, lo: i64, hi: i64) -> (i64, i64) {
+    let m = match n {
+        1 => sum,
+        2 => sum >> 1,
+        3 => sum - lo - hi,
+        _ => (sum - lo - hi) >> 1,
+    };
+    (m, (m - lo).max(hi - m))
 }
 
 fn to_newtons(v: i64) -> Newtons {
@@ -159,12 +117,49 @@ fn to_newtons(v: i64) -> Newtons {
 /// the actuator model's predicted force (N), if any, to break ties. At most the first four
 /// entries are considered. O(1), integers only, any input.
 pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Newtons>) -> Vote {
-    let usable = candidates
-        .iter()
-        .take(4)
-        .enumerate()
-        .fold(0u8, |m, (i, c)| if c.is_some() { m | (1 << i) } else { m });
-    if usable == 0 {
+    let mut values = [0i32; 4];
+    let mut usable = 0u8;
+    for (i, (v, c)) in values.iter_mut().zip(candidates.iter()).enumerate() {
+        if let Some(x) = c {
+            *v = x.to_bits();
+            usable |= 1 << i;
+        }
+    }
+    vote_among(
+        &values,
+        usable,
+        tolerance.to_bits(),
+        model.map(|m| m.to_bits()),
+    )
+}
+
+/// [`vote`] on raw bits: `values` (Q8 N) of the channels in `usable` (bit i = channel i; the
+/// other entries are ignored), tolerance and model in Q8 N.
+///
+/// The full usable set is tried first, from its sum and extremes alone: when it agrees it is
+/// the unique largest agreeing set (no other set has as many members), which is what the
+/// search would find. Only when it disagrees are the smaller subsets searched, largest first,
+/// stopping at the first size with an agreeing set: the definition needs only the sets of the
+/// largest agreeing size.
+#[inline]
+pub(crate) fn vote_among(
+    values: &[i32; 4],
+    usable: u8,
+    tolerance: i32,
+    model: Option<i32>,
+) -> Vote {
+    let usable = usable & 0x0f;
+    let (mut lo, mut hi, mut sum) = (i64::MAX, i64::MIN, 0i64);
+    for (i, &v) in values.iter().enumerate() {
+        if usable & (1 << i) != 0 {
+            let v = i64::from(v);
+            lo = lo.min(v);
+            hi = hi.max(v);
+            sum += v;
+        }
+    }
+    let n = usable.count_ones();
+    if n == 0 {
         return Vote {
             used: ChannelMask::EMPTY,
             force: Newtons::ZERO,
@@ -172,87 +167,109 @@ pub fn vote(candidates: &[Option<Newtons>], tolerance: Newtons, model: Option<Ne
             spread: Newtons::ZERO,
         };
     }
-    let tol = i64::from(tolerance.to_bits());
-    if usable.count_ones() == 1 {
-        // One usable channel: the only candidate set is that channel alone, with spread 0. It
-        // passes when the tolerance is not negative; otherwise no set passes and the search
-        // below would report it unresolved. Same result, without the search.
-        let force = candidates
-            .get(usable.trailing_zeros() as usize)
-            .copied()
-            .flatten()
-            .unwrap_or(Newtons::ZERO);
+    let (m, reach) = median_reach(n, sum, lo, hi);
+    let tol = i64::from(tolerance);
+    if reach <= tol {
         return Vote {
             used: ChannelMask::from_bits(usable),
-            force,
-            agreement: if tol >= 0 {
+            force: to_newtons(m),
+            agreement: if n == 1 {
                 Agreement::Single
             } else {
-                Agreement::Unresolved
+                Agreement::Unanimous
             },
             spread: Newtons::ZERO,
         };
     }
-    let model = model.map(|m| i64::from(m.to_bits()));
-    let sorted = sort_candidates(candidates);
-    let mut best_size = 0usize;
-    let mut ties = 0u32;
-    let mut first = (0u8, 0i64);
-    // Nearest maximal set to the model: (mask, median, distance, unique).
-    let mut nearest: Option<(u8, i64, i64, bool)> = None;
-    for mask in 1u8..16 {
-        if mask & usable != mask {
-            continue;
-        }
-        let (m, reach, n) = centre(&sorted, mask);
-        if reach > tol || n < best_size {
-            continue;
-        }
-        if n > best_size {
-            (best_size, ties, first, nearest) = (n, 0, (mask, m), None);
-        }
-        ties += 1;
-        if let Some(p) = model {
-            let d = (m - p).abs();
-            nearest = match nearest {
-                Some((_, _, nd, _)) if d > nd => nearest,
-                Some((nm, nmed, nd, _)) if d == nd => Some((nm, nmed, nd, false)),
-                _ => Some((mask, m, d, true)),
-            };
-        }
-    }
-    let (mask, m, agreement) = if ties == 1 {
-        let agreement = if best_size == 1 && usable.count_ones() == 1 {
-            Agreement::Single
-        } else if first.0 == usable {
-            Agreement::Unanimous
-        } else {
-            Agreement::Majority
-        };
-        (first.0, first.1, agreement)
-    } else if let Some((nm, nmed, _, true)) = nearest {
-        (nm, nmed, Agreement::ModelTieBreak)
-    } else {
-        let (m, reach, _) = centre(&sorted, usable);
-        return Vote {
-            used: ChannelMask::from_bits(usable),
-            force: to_newtons(m),
-            agreement: Agreement::Unresolved,
-            spread: to_newtons(reach),
-        };
-    };
-    Vote {
-        used: ChannelMask::from_bits(mask),
+    search(values, usable, n, tol, model, m, reach)
+}
+
+/// The usable set (median `m`, reach `reach`) disagrees: the largest agreeing subsets, by
+/// decreasing size.
+#[inline(never)]
+fn search(
+    values: &[i32; 4],
+    usable: u8,
+    n: u32,
+    tol: i64,
+    model: Option<i32>,
+    m: i64,
+    reach: i64,
+) -> Vote {
+    let unresolved = Vote {
+        used: ChannelMask::from_bits(usable),
         force: to_newtons(m),
-        agreement,
-        spread: Newtons::ZERO,
+        agreement: Agreement::Unresolved,
+        spread: to_newtons(reach),
+    };
+    let model = model.map(i64::from);
+    for k in (1..n).rev() {
+        let mut ties = 0u32;
+        let mut first = (0u8, 0i64);
+        // Nearest agreeing set to the model: (mask, median, distance, unique).
+        let mut nearest: Option<(u8, i64, i64, bool)> = None;
+        for mask in 1u8..16 {
+            if mask & usable != mask || mask.count_ones() != k {
+                continue;
+            }
+            let (m, reach) = centre(values, mask, k);
+            if reach > tol {
+                continue;
+            }
+            ties += 1;
+            if ties == 1 {
+                first = (mask, m);
+            }
+            if let Some(p) = model {
+                let d = (m - p).abs();
+                nearest = match nearest {
+                    Some((_, _, nd, _)) if d > nd => nearest,
+                    Some((nm, nmed, nd, _)) if d == nd => Some((nm, nmed, nd, false)),
+                    _ => Some((mask, m, d, true)),
+                };
+            }
+        }
+        let (mask, m, agreement) = match (ties, nearest) {
+            (0, _) => continue,
+            (1, _) => (first.0, first.1, Agreement::Majority),
+            (_, Some((nm, nmed, _, true))) => (nm, nmed, Agreement::ModelTieBreak),
+            _ => return unresolved,
+        };
+        return Vote {
+            used: ChannelMask::from_bits(mask),
+            force: to_newtons(m),
+            agreement,
+            spread: Newtons::ZERO,
+        };
     }
+    // No set agrees (only with a negative tolerance: one channel alone always agrees).
+    unresolved
+}
+
+/// Median and reach of the `k` values in `mask`.
+fn centre(values: &[i32; 4], mask: u8, k: u32) -> (i64, i64) {
+    let (mut sum, mut lo, mut hi) = (0i64, i64::MAX, i64::MIN);
+    for (i, &v) in values.iter().enumerate() {
+        if mask & (1 << i) != 0 {
+            let v = i64::from(v);
+            sum += v;
+            lo = lo.min(v);
+            hi = hi.max(v);
+        }
+    }
+    median_reach(k, sum, lo, hi)
 }
 
 #[cfg(test)]
-#[allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
+#[allow(
+    clippy::unwrap_used,
+    clippy::float_cmp,
+    clippy::indexing_slicing,
+    clippy::cast_possible_truncation
+)]
 mod tests {
     use super::*;
+    use proptest::strategy::Strategy as _;
 
     fn n(v: i32) -> Option<Newtons> {
         Some(Newtons::from_num(v))
@@ -308,23 +325,146 @@ mod tests {
         assert!(v.reference().is_none());
     }
 
-    proptest::proptest! {
-        // The once-sorted gather gives each subset's values in order, exactly as collecting
-        // and sorting that subset does.
-        #[test]
-        fn gathered_subsets_are_sorted_subsets(
-            vals in proptest::collection::vec(proptest::option::of(proptest::num::i32::ANY), 0..=4),
-            mask in 1u8..16,
-        ) {
-            let c: Vec<Option<Newtons>> = vals.iter().map(|v| v.map(Newtons::from_bits)).collect();
-            let (got, n) = gather(&sort_candidates(&c), mask);
-            let mut want: Vec<i32> = vals
+    /// The vote by its definition: every subset of the usable channels, each sorted, its
+    /// median and reach taken from the sorted values; the largest agreeing sets compared.
+    fn by_definition(c: &[Option<Newtons>], tolerance: Newtons, model: Option<Newtons>) -> Vote {
+        let usable: Vec<(u8, i64)> = c
+            .iter()
+            .take(4)
+            .enumerate()
+            .filter_map(|(i, v)| v.map(|x| (1u8 << i, i64::from(x.to_bits()))))
+            .collect();
+        let all: u8 = usable.iter().map(|u| u.0).sum();
+        let centre = |mask: u8| {
+            let mut v: Vec<i64> = usable
                 .iter()
-                .enumerate()
-                .filter_map(|(i, v)| v.filter(|_| mask & (1 << i) != 0))
+                .filter(|u| u.0 & mask != 0)
+                .map(|u| u.1)
                 .collect();
-            want.sort_unstable();
-            proptest::prop_assert_eq!(&got[..n], &want[..]);
+            v.sort_unstable();
+            let n = v.len();
+            let m = if n % 2 == 1 {
+                v[n / 2]
+            } else {
+                (v[n / 2 - 1] + v[n / 2]) >> 1
+            };
+            (m, (m - v[0]).max(v[n - 1] - m), n)
+        };
+        let pick = |mask: u8, med: i64, agreement| Vote {
+            used: ChannelMask::from_bits(mask),
+            force: to_newtons(med),
+            agreement,
+            spread: Newtons::ZERO,
+        };
+        if all == 0 {
+            return pick(0, 0, Agreement::NoChannels);
+        }
+        let tol = i64::from(tolerance.to_bits());
+        let mut agreeing: Vec<(u8, i64, usize)> = (1u8..16)
+            .filter(|&m| m & all == m)
+            .filter_map(|m| {
+                let (med, reach, n) = centre(m);
+                (reach <= tol).then_some((m, med, n))
+            })
+            .collect();
+        let largest = agreeing.iter().map(|a| a.2).max().unwrap_or(0);
+        agreeing.retain(|a| a.2 == largest);
+        if let [(m, med, n)] = agreeing[..] {
+            let agreement = if n == 1 && all.count_ones() == 1 {
+                Agreement::Single
+            } else if m == all {
+                Agreement::Unanimous
+            } else {
+                Agreement::Majority
+            };
+            return pick(m, med, agreement);
+        }
+        if let Some(p) = model.map(|p| i64::from(p.to_bits())) {
+            let best = agreeing.iter().map(|a| (a.1 - p).abs()).min();
+            let nearest: Vec<_> = agreeing
+                .iter()
+                .filter(|a| Some((a.1 - p).abs()) == best)
+                .collect();
+            if let [&(m, med, _)] = nearest[..] {
+                return pick(m, med, Agreement::ModelTieBreak);
+            }
+        }
+        let (m, reach, _) = centre(all);
+        Vote {
+            used: ChannelMask::from_bits(all),
+            force: to_newtons(m),
+            agreement: Agreement::Unresolved,
+            spread: to_newtons(reach),
+        }
+    }
+
+    fn candidate() -> impl proptest::strategy::Strategy<Value = Option<Newtons>> {
+        use proptest::prelude::*;
+        // Clustered (agreeing sets, ties, models exactly half-way) or anything.
+        prop_oneof![
+            1 => Just(None),
+            4 => (0i32..40).prop_map(|v| Some(Newtons::from_bits(v * 64))),
+            1 => any::<i32>().prop_map(|v| Some(Newtons::from_bits(v))),
+            1 => prop_oneof![Just(i32::MIN), Just(i32::MAX)].prop_map(|v| Some(Newtons::from_bits(v))),
+        ]
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(10_000))]
+
+        // Median and reach from the sum and extremes are those of the sorted values.
+        #[test]
+        fn median_and_reach_from_sum_and_extremes(
+            vals in proptest::collection::vec(proptest::num::i32::ANY, 1..=4),
+        ) {
+            let mut v: Vec<i64> = vals.iter().map(|&x| i64::from(x)).collect();
+            v.sort_unstable();
+            let n = v.len();
+            let m = if n % 2 == 1 { v[n / 2] } else { (v[n / 2 - 1] + v[n / 2]) >> 1 };
+            let want = (m, (m - v[0]).max(v[n - 1] - m));
+            let got = median_reach(n as u32, v.iter().sum(), v[0], v[n - 1]);
+            proptest::prop_assert_eq!(got, want);
+        }
+
+        // The whole vote (fast path, then the search by decreasing size) against the
+        // definition, for any candidates, tolerance (also negative) and model.
+        #[test]
+        fn the_vote_is_its_definition(
+            c in proptest::collection::vec(candidate(), 0..=4),
+            tol in proptest::prop_oneof![
+                4 => (0i32..200).prop_map(|t| t * 16),
+                1 => proptest::num::i32::ANY,
+            ],
+            model in proptest::option::of(proptest::prop_oneof![
+                (0i32..80).prop_map(|v| v * 32),
+                proptest::num::i32::ANY,
+            ]),
+        ) {
+            let (tol, model) = (Newtons::from_bits(tol), model.map(Newtons::from_bits));
+            proptest::prop_assert_eq!(vote(&c, tol, model), by_definition(&c, tol, model));
+        }
+
+        // Channels all within the tolerance of one another's centre: the fast path answers,
+        // and its answer is the definition's.
+        #[test]
+        fn agreeing_channels_take_the_fast_path(
+            centre in -(1i32 << 30)..(1i32 << 30),
+            tol in 0i32..(1 << 20),
+            offsets in proptest::collection::vec(proptest::num::i32::ANY, 1..=4),
+            model in proptest::option::of(proptest::num::i32::ANY),
+        ) {
+            // All within tol/2 of `centre`, so within tol of one another and of their median
+            // (which lies between them).
+            let c: Vec<Option<Newtons>> = offsets
+                .iter()
+                .map(|o| Some(Newtons::from_bits(centre + o % (tol / 2 + 1))))
+                .collect();
+            let (tol, model) = (Newtons::from_bits(tol), model.map(Newtons::from_bits));
+            let v = vote(&c, tol, model);
+            proptest::prop_assert_eq!(v, by_definition(&c, tol, model));
+            let want = if c.len() == 1 { Agreement::Single } else { Agreement::Unanimous };
+            proptest::prop_assert_eq!(v.agreement, want);
+            proptest::prop_assert_eq!(v.used, ChannelMask::first(c.len()));
         }
 
         // One usable channel: used alone, passed through; unresolved only for a negative
