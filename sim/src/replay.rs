@@ -387,3 +387,75 @@ pub fn human(s: &ReplaySummary) -> String {
     ));
     o
 }
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    fn row(state: State, flags: Flags) -> EstimateRow {
+        EstimateRow {
+            line: 2,
+            t_s: 0.0,
+            torque_nm: Some(-5.0),
+            capacity_nm: Some(7.0),
+            uncertainty_nm: 1.0,
+            mu: 0.4,
+            radius_m: 0.6,
+            clamp_force_n: 100.0,
+            slip_speed_rad_s: 1.0,
+            lining_temp_c: 30.0,
+            bedding: 0.0,
+            wear_m: 0.0,
+            correction: 1.0,
+            state,
+            flags,
+            torque_ref_nm: None,
+        }
+    }
+
+    /// Counted by name as the summaries show them: only what occurred, each flag of a row
+    /// counted once, names sorted (the JSON keys of `summary.json`).
+    #[test]
+    fn tally_counts_states_and_flags_by_name() {
+        let mut t = Tally::default();
+        let both = Flags::TORQUE_BOUNDED | Flags::ADAPTATION_FROZEN;
+        t.add(&row(State::Holding, both));
+        t.add(&row(State::Holding, Flags::TORQUE_BOUNDED));
+        t.add(&row(State::Slipping, Flags::empty()));
+        t.add(&row(
+            State::Slipping,
+            Flags::LINING_WORN | Flags::SENSOR_DEGRADED,
+        ));
+        t.add(&row(State::Slipping, Flags::empty()));
+        let json = serde_json::to_value(&t).unwrap();
+        assert_eq!(
+            json,
+            serde_json::json!({
+                "rows": 5,
+                "states": {"holding": 2, "slipping": 3},
+                "flags": {
+                    "ADAPTATION_FROZEN": 1,
+                    "LINING_WORN": 1,
+                    "SENSOR_DEGRADED": 1,
+                    "TORQUE_BOUNDED": 2
+                },
+                "max_abs_torque_nm": 5.0,
+                "max_capacity_nm": 7.0,
+                "max_lining_temp_c": 30.0,
+                "max_clamp_force_n": 100.0
+            })
+        );
+        assert_eq!(t.states().get("released"), None);
+        let names: Vec<&str> = t.flags().into_keys().collect();
+        assert_eq!(
+            names,
+            [
+                "ADAPTATION_FROZEN",
+                "LINING_WORN",
+                "SENSOR_DEGRADED",
+                "TORQUE_BOUNDED"
+            ]
+        );
+    }
+}

@@ -304,14 +304,6 @@ where
     x.to_bits().to_f64() / scale::<T>()
 }
 
-fn sat<T>(v: f64) -> T
-where
-    T: Fixed,
-    T::Bits: FixedBits,
-{
-    saturating_fixed(v)
-}
-
 /// The core's [`Inputs`] for one trace sample (the boundary conversion of the module docs).
 pub fn core_inputs<const C: usize>(s: &TraceSample, cal: &[ChannelCal], brake: bool) -> Inputs<C> {
     let counts = channel_counts(s, cal);
@@ -330,17 +322,17 @@ pub fn core_inputs<const C: usize>(s: &TraceSample, cal: &[ChannelCal], brake: b
     }
     Inputs {
         force_channels,
-        input_speed: sat(s.omega_in_rad_s),
+        input_speed: saturating_fixed(s.omega_in_rad_s),
         output_speed: if brake {
             RadPerSec::ZERO
         } else {
-            sat(s.omega_out_rad_s)
+            saturating_fixed(s.omega_out_rad_s)
         },
-        actuator_command: s.command.map(sat::<I16F16>),
+        actuator_command: s.command.map(saturating_fixed::<I16F16>),
         sensor_temperature: None,
-        lining_temperature: s.temp_c.map(sat::<Celsius>),
-        ambient_temperature: s.ambient_c.map(sat::<Celsius>),
-        reference_torque: s.torque_ref_nm.map(sat::<NewtonMetres>),
+        lining_temperature: s.temp_c.map(saturating_fixed::<Celsius>),
+        ambient_temperature: s.ambient_c.map(saturating_fixed::<Celsius>),
+        reference_torque: s.torque_ref_nm.map(saturating_fixed::<NewtonMetres>),
     }
 }
 
