@@ -1,7 +1,17 @@
 #![allow(clippy::expect_used, clippy::panic)]
-//! Replay throughput on one core: parse a 10⁶-row synthetic trace and step every row through
-//! the estimator behind the seam (output discarded, so this measures parse + replay, not disk
-//! writes). `cargo bench -p clampwise-sim --bench replay`.
+//! Replay throughput on one core, on a 10⁶-row synthetic trace (hoist scenario, 112 MB).
+//! `cargo bench -p clampwise-sim --bench replay`. What each line measures:
+//!
+//! - `parse 1e6 rows`: `TraceReader::next_sample` over the file (CSV, cells, unit conversion,
+//!   time checks), samples discarded;
+//! - `parse+step 1e6 rows`: that, and every sample through the seam (`SampleEstimator::step`:
+//!   the conversions and the core's `Estimator::step`), rows discarded;
+//! - `replay 1e6 rows to /dev/null`: `replay::replay_file`, what `clampwise replay` runs for one
+//!   trace: parse, step, tally and the estimate CSV formatted and written to `/dev/null` (all
+//!   of the output work but the disk);
+//! - `step only 1e6 samples`: the seam's step on 10⁵ parsed samples, ten times;
+//! - `core Estimator::step only 1e6 samples`: the core's step on the same samples converted
+//!   beforehand (the seam's share is the difference to the line above).
 
 use std::hint::black_box;
 use std::path::PathBuf;
@@ -12,6 +22,7 @@ use clampwise_sim::config::LoadedConfig;
 use clampwise_sim::demo::DEMO_CONFIG;
 use clampwise_sim::plant::PlantOptions;
 use clampwise_sim::plant::scenario::Scenario;
+use clampwise_sim::replay::{self, ReplayOptions};
 use clampwise_sim::seam;
 use clampwise_sim::synth;
 use clampwise_sim::trace::{RowPolicy, TraceReader};
@@ -44,6 +55,17 @@ fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("replay");
     g.sample_size(10);
     g.throughput(Throughput::Elements(ROWS));
+    g.bench_function("parse 1e6 rows", |b| {
+        b.iter(|| {
+            let mut r =
+                TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
+            let mut acc = 0.0;
+            while let Some(s) = r.next_sample().expect("row") {
+                acc += s.t_s;
+            }
+            black_box(acc)
+        });
+    });
     g.bench_function("parse+step 1e6 rows", |b| {
         b.iter(|| {
             let mut r =
@@ -54,6 +76,21 @@ fn bench(c: &mut Criterion) {
                 acc += est.step(&s).uncertainty_nm;
             }
             black_box(acc)
+        });
+    });
+    g.bench_function("replay 1e6 rows to /dev/null", |b| {
+        b.iter(|| {
+            let summary = replay::replay_file(
+                &cfg,
+                &core,
+                &path,
+                "/dev/null",
+                &ReplayOptions::default(),
+                None,
+            )
+            .expect("replay");
+            assert_eq!(summary.tally.rows, ROWS);
+            black_box(summary.tally.max_abs_torque_nm)
         });
     });
     g.bench_function("step only 1e6 samples", |b| {

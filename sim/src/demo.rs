@@ -171,16 +171,16 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     ));
     let states: Vec<String> = rep
         .tally
-        .states
+        .states()
         .iter()
         .map(|(k, v)| format!("{k} {v}"))
         .collect();
     human.push_str(&format!("  states: {}\n", states.join(", ")));
     let fl: Vec<String> = rep
         .tally
-        .flags
+        .flags()
         .iter()
-        .filter(|(k, _)| k.as_str() != "ADAPTATION_FROZEN" && k.as_str() != "TORQUE_BOUNDED")
+        .filter(|(k, _)| **k != "ADAPTATION_FROZEN" && **k != "TORQUE_BOUNDED")
         .map(|(k, v)| format!("{k} {v}"))
         .collect();
     human.push_str(&format!(

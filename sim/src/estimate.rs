@@ -46,24 +46,68 @@ impl std::fmt::Write for FmtBytes<'_> {
     }
 }
 
+/// The text last written in one column, kept so that a run of equal values (a settled radius,
+/// bedding or correction, zero slip, a flags word that does not change) is formatted once.
+#[derive(Default)]
+struct LastText<K> {
+    key: Option<K>,
+    text: Vec<u8>,
+}
+
+impl<K: PartialEq + Copy> LastText<K> {
+    /// Append the text of `key`, formatting it with `format` only when it differs from the
+    /// previous one.
+    fn push(&mut self, buf: &mut Vec<u8>, key: K, format: impl FnOnce(&mut Vec<u8>)) {
+        if self.key != Some(key) {
+            self.text.clear();
+            format(&mut self.text);
+            self.key = Some(key);
+        }
+        buf.extend_from_slice(&self.text);
+    }
+}
+
+/// Number columns of a row, in file order after `line`: t_s, torque, capacity, uncertainty,
+/// mu, radius, clamp force, slip speed, lining temperature, bedding, wear, correction,
+/// reference torque.
+const NUMBER_COLUMNS: usize = 13;
+
 /// Streams [`EstimateRow`]s to a file.
 pub struct EstimateWriter {
     out: AtomicFile,
     buf: Vec<u8>,
+    numbers: [LastText<u64>; NUMBER_COLUMNS],
+    flags: LastText<Flags>,
 }
 
-/// Append the shortest decimal that reads back to exactly `v` (Ryū [pub: Adams, PLDI 2018]).
+/// Append the shortest decimal that reads back to exactly `v`, in Ryū's layout (`1.0`,
+/// `0.001`, `1e-7`, `1.5e16`) [pub: Adams, PLDI 2018]; `NaN` for a non-finite value.
+///
+/// The digits come from Żmij (the `zmij` crate), which finds the same shortest, closest
+/// digits as Ryū and lays them out the same except for a `+` in a positive exponent, taken
+/// out here; the property test `same_text_as_ryu` holds it to the `ryu` crate bit for bit.
 pub fn push_f64(buf: &mut Vec<u8>, v: f64) {
-    if v.is_finite() {
-        buf.extend_from_slice(ryu::Buffer::new().format_finite(v).as_bytes());
-    } else {
+    if !v.is_finite() {
         buf.extend_from_slice(b"NaN");
+        return;
+    }
+    let mut z = zmij::Buffer::new();
+    let text = z.format_finite(v).as_bytes();
+    // Both write plain decimals for 1e-5 ≤ |v| < 1e16, exponents outside.
+    if v.abs() >= 1e16
+        && let Some(at) = text.iter().position(|&b| b == b'+')
+    {
+        let (mantissa, exponent) = text.split_at(at);
+        buf.extend_from_slice(mantissa);
+        buf.extend_from_slice(exponent.get(1..).unwrap_or_default());
+    } else {
+        buf.extend_from_slice(text);
     }
 }
 
-fn opt(buf: &mut Vec<u8>, v: Option<f64>) {
+fn opt(col: &mut LastText<u64>, buf: &mut Vec<u8>, v: Option<f64>) {
     if let Some(v) = v {
-        push_f64(buf, v);
+        col.push(buf, v.to_bits(), |t| push_f64(t, v));
     }
 }
 
@@ -83,7 +127,12 @@ impl EstimateWriter {
         let _ = writeln!(buf, "{}", HEADER.join(","));
         out.write_all(&buf)?;
         buf.clear();
-        Ok(Self { out, buf })
+        Ok(Self {
+            out,
+            buf,
+            numbers: Default::default(),
+            flags: LastText::default(),
+        })
     }
 
     /// Append one row (buffered).
@@ -93,35 +142,52 @@ impl EstimateWriter {
     pub fn write(&mut self, r: &EstimateRow) -> Result<(), SimError> {
         let b = &mut self.buf;
         b.extend_from_slice(itoa::Buffer::new().format(r.line).as_bytes());
+        let [
+            t_s,
+            torque,
+            capacity,
+            uncertainty,
+            mu,
+            radius,
+            force,
+            slip,
+            temp,
+            bedding,
+            wear,
+            correction,
+            torque_ref,
+        ] = &mut self.numbers;
         b.push(b',');
-        push_f64(b, r.t_s);
+        t_s.push(b, r.t_s.to_bits(), |t| push_f64(t, r.t_s));
         b.push(b',');
-        opt(b, r.torque_nm);
+        opt(torque, b, r.torque_nm);
         b.push(b',');
-        opt(b, r.capacity_nm);
-        for v in [
-            r.uncertainty_nm,
-            r.mu,
-            r.radius_m,
-            r.clamp_force_n,
-            r.slip_speed_rad_s,
-            r.lining_temp_c,
-            r.bedding,
-            r.wear_m,
-            r.correction,
+        opt(capacity, b, r.capacity_nm);
+        for (col, v) in [
+            (uncertainty, r.uncertainty_nm),
+            (mu, r.mu),
+            (radius, r.radius_m),
+            (force, r.clamp_force_n),
+            (slip, r.slip_speed_rad_s),
+            (temp, r.lining_temp_c),
+            (bedding, r.bedding),
+            (wear, r.wear_m),
+            (correction, r.correction),
         ] {
             b.push(b',');
-            push_f64(b, v);
+            col.push(b, v.to_bits(), |t| push_f64(t, v));
         }
         b.push(b',');
         b.extend_from_slice(r.state.name().as_bytes());
         b.push(b',');
-        if !r.flags.is_empty() {
-            // Names only, never commas: bitflags' text form is `A | B`.
-            let _ = bitflags::parser::to_writer(&r.flags, &mut FmtBytes(b));
-        }
+        self.flags.push(b, r.flags, |t| {
+            if !r.flags.is_empty() {
+                // Names only, never commas: bitflags' text form is `A | B`.
+                let _ = bitflags::parser::to_writer(&r.flags, &mut FmtBytes(t));
+            }
+        });
         b.push(b',');
-        opt(b, r.torque_ref_nm);
+        opt(torque_ref, b, r.torque_ref_nm);
         b.push(b'\n');
         if b.len() >= 1 << 16 {
             self.out.write_all(&self.buf)?;
@@ -234,5 +300,137 @@ impl EstimateReader {
             flags,
             torque_ref_nm: o(15)?,
         }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    use super::*;
+    use proptest::prelude::*;
+
+    /// The text the writer had before Żmij: Ryū's, `NaN` for non-finite values.
+    fn ryu_text(v: f64) -> String {
+        if v.is_finite() {
+            ryu::Buffer::new().format_finite(v).to_string()
+        } else {
+            "NaN".into()
+        }
+    }
+
+    fn ours(v: f64) -> String {
+        let mut b = Vec::new();
+        push_f64(&mut b, v);
+        String::from_utf8(b).unwrap()
+    }
+
+    #[test]
+    fn same_text_as_ryu_at_the_layout_edges() {
+        let mut edges = vec![
+            0.0,
+            -0.0,
+            1.0,
+            -1.0,
+            f64::NAN,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::MAX,
+            f64::MIN,
+            f64::MIN_POSITIVE,
+            f64::EPSILON,
+            5e-324,
+            1e-5,
+            -1e-5,
+            1e16,
+            -1e16,
+            1.5e16,
+            1e21,
+            1e22,
+            1e23,
+            123_456_789_012_345_680.0,
+            0.1 + 0.2,
+            499.996_000_000_000_04,
+        ];
+        for e in [1e-5f64, 1e15, 1e16, 1e17] {
+            edges.extend([e, e.next_up(), e.next_down()]);
+        }
+        for v in edges {
+            assert_eq!(ours(v), ryu_text(v), "{v:e}");
+        }
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(50_000))]
+
+        /// Any f64 bit pattern, and values k / 2^F as the core's fixed-point results are.
+        #[test]
+        fn same_text_as_ryu(
+            bits in any::<u64>(),
+            k in any::<i64>(),
+            frac in prop::sample::select(vec![8u32, 12, 16, 24, 30, 32]),
+        ) {
+            let v = f64::from_bits(bits);
+            prop_assert_eq!(ours(v), ryu_text(v));
+            #[allow(clippy::cast_precision_loss)]
+            let fixed = (k >> 8) as f64 / f64::from_bits((1023 + u64::from(frac)) << 52);
+            prop_assert_eq!(ours(fixed), ryu_text(fixed));
+        }
+    }
+
+    fn row(t: f64, torque: Option<f64>, radius: f64, flags: Flags) -> EstimateRow {
+        EstimateRow {
+            line: 7,
+            t_s: t,
+            torque_nm: torque,
+            capacity_nm: None,
+            uncertainty_nm: 1.5,
+            mu: 0.4,
+            radius_m: radius,
+            clamp_force_n: 1000.0,
+            slip_speed_rad_s: 0.0,
+            lining_temp_c: 20.0,
+            bedding: 0.0,
+            wear_m: 0.0,
+            correction: 1.0,
+            state: State::Slipping,
+            flags,
+            torque_ref_nm: Some(-2.25),
+        }
+    }
+
+    /// A column whose value repeats, disappears and comes back, and a flags word that changes
+    /// and returns, are written exactly as each row says (the per-column text reuse never
+    /// shows a stale value).
+    #[test]
+    fn repeated_and_changing_values_are_written_as_given() {
+        let dir = std::env::temp_dir().join(format!("clampwise-estimate-{}", std::process::id()));
+        let path = dir.join("e.csv");
+        let path_s = path.display().to_string();
+        let mut w = EstimateWriter::create(&path_s, &[]).unwrap();
+        let f1 = Flags::TORQUE_BOUNDED | Flags::ADAPTATION_FROZEN;
+        let rows = [
+            row(0.0, Some(-3.0), 0.6, Flags::empty()),
+            row(0.001, Some(-3.0), 0.6, f1),
+            row(0.002, None, 0.6, f1),
+            row(0.003, Some(-3.0), -0.0, Flags::empty()),
+            row(0.004, Some(1e17), 0.0, f1),
+        ];
+        for r in &rows {
+            w.write(r).unwrap();
+        }
+        w.commit().unwrap();
+        let text = std::fs::read_to_string(&path).unwrap();
+        std::fs::remove_dir_all(&dir).unwrap();
+        let lines: Vec<&str> = text.lines().skip(1).collect();
+        assert_eq!(
+            lines,
+            [
+                "7,0.0,-3.0,,1.5,0.4,0.6,1000.0,0.0,20.0,0.0,0.0,1.0,slipping,,-2.25",
+                "7,0.001,-3.0,,1.5,0.4,0.6,1000.0,0.0,20.0,0.0,0.0,1.0,slipping,ADAPTATION_FROZEN | TORQUE_BOUNDED,-2.25",
+                "7,0.002,,,1.5,0.4,0.6,1000.0,0.0,20.0,0.0,0.0,1.0,slipping,ADAPTATION_FROZEN | TORQUE_BOUNDED,-2.25",
+                "7,0.003,-3.0,,1.5,0.4,-0.0,1000.0,0.0,20.0,0.0,0.0,1.0,slipping,,-2.25",
+                "7,0.004,1e17,,1.5,0.4,0.0,1000.0,0.0,20.0,0.0,0.0,1.0,slipping,ADAPTATION_FROZEN | TORQUE_BOUNDED,-2.25",
+            ]
+        );
     }
 }

@@ -71,14 +71,19 @@ impl From<&EstimateRow> for PlotPoint {
 }
 
 /// Counts and extremes of a replay.
-#[derive(Debug, Clone, Default, Serialize)]
+///
+/// Rows per state and per flag are counted in fixed arrays (no map lookup or allocation per
+/// row) and named only when read ([`Tally::states`], [`Tally::flags`]) or serialised; the
+/// JSON form is `{rows, states: {name: rows}, flags: {name: rows}, max_…}` with only the
+/// states and flags that occurred.
+#[derive(Debug, Clone, Default)]
 pub struct Tally {
     /// Rows replayed.
     pub rows: u64,
-    /// Rows per state.
-    pub states: BTreeMap<String, u64>,
-    /// Rows per flag.
-    pub flags: BTreeMap<String, u64>,
+    /// Rows per state, in [`State::ALL`] order.
+    state_rows: [u64; 4],
+    /// Rows per flag, by bit of the core's flags word.
+    flag_rows: [u64; 32],
     /// Largest |torque|, N·m.
     pub max_abs_torque_nm: f64,
     /// Largest capacity, N·m.
@@ -89,13 +94,28 @@ pub struct Tally {
     pub max_clamp_force_n: f64,
 }
 
+fn state_index(s: State) -> usize {
+    match s {
+        State::Slipping => 0,
+        State::Holding => 1,
+        State::Released => 2,
+        State::Unavailable => 3,
+    }
+}
+
 impl Tally {
     /// Count one row.
     pub fn add(&mut self, r: &EstimateRow) {
         self.rows += 1;
-        *self.states.entry(r.state.name().to_string()).or_default() += 1;
-        for name in seam::flag_names(r.flags) {
-            *self.flags.entry(name.to_string()).or_default() += 1;
+        if let Some(n) = self.state_rows.get_mut(state_index(r.state)) {
+            *n += 1;
+        }
+        let mut bits = r.flags.bits();
+        while bits != 0 {
+            if let Some(n) = self.flag_rows.get_mut(bits.trailing_zeros() as usize) {
+                *n += 1;
+            }
+            bits &= bits - 1;
         }
         if let Some(t) = r.torque_nm {
             self.max_abs_torque_nm = self.max_abs_torque_nm.max(t.abs());
@@ -105,6 +125,57 @@ impl Tally {
         }
         self.max_lining_temp_c = self.max_lining_temp_c.max(r.lining_temp_c);
         self.max_clamp_force_n = self.max_clamp_force_n.max(r.clamp_force_n);
+    }
+
+    /// Rows per state that occurred, by the state's name.
+    pub fn states(&self) -> BTreeMap<&'static str, u64> {
+        State::ALL
+            .into_iter()
+            .filter_map(|st| {
+                let n = self.state_rows.get(state_index(st)).copied().unwrap_or(0);
+                (n > 0).then_some((st.name(), n))
+            })
+            .collect()
+    }
+
+    /// Rows per flag that occurred, by the core's flag name.
+    pub fn flags(&self) -> BTreeMap<&'static str, u64> {
+        Flags::all()
+            .iter_names()
+            .filter_map(|(name, f)| {
+                let n = self
+                    .flag_rows
+                    .get(f.bits().trailing_zeros() as usize)
+                    .copied()
+                    .unwrap_or(0);
+                (n > 0).then_some((name, n))
+            })
+            .collect()
+    }
+}
+
+impl Serialize for Tally {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        #[derive(Serialize)]
+        struct View {
+            rows: u64,
+            states: BTreeMap<&'static str, u64>,
+            flags: BTreeMap<&'static str, u64>,
+            max_abs_torque_nm: f64,
+            max_capacity_nm: f64,
+            max_lining_temp_c: f64,
+            max_clamp_force_n: f64,
+        }
+        View {
+            rows: self.rows,
+            states: self.states(),
+            flags: self.flags(),
+            max_abs_torque_nm: self.max_abs_torque_nm,
+            max_capacity_nm: self.max_capacity_nm,
+            max_lining_temp_c: self.max_lining_temp_c,
+            max_clamp_force_n: self.max_clamp_force_n,
+        }
+        .serialize(s)
     }
 }
 
@@ -292,18 +363,14 @@ pub fn human(s: &ReplaySummary) -> String {
     }
     let states: Vec<String> = s
         .tally
-        .states
+        .states()
         .iter()
         .map(|(k, v)| format!("{k} {v}"))
         .collect();
     o.push_str(&format!("  states: {}\n", states.join(", ")));
-    if !s.tally.flags.is_empty() {
-        let f: Vec<String> = s
-            .tally
-            .flags
-            .iter()
-            .map(|(k, v)| format!("{k} {v}"))
-            .collect();
+    let flags = s.tally.flags();
+    if !flags.is_empty() {
+        let f: Vec<String> = flags.iter().map(|(k, v)| format!("{k} {v}")).collect();
         o.push_str(&format!("  flagged rows: {}\n", f.join(", ")));
     }
     o.push_str(&format!(
@@ -319,4 +386,76 @@ pub fn human(s: &ReplaySummary) -> String {
         s.estimator
     ));
     o
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    fn row(state: State, flags: Flags) -> EstimateRow {
+        EstimateRow {
+            line: 2,
+            t_s: 0.0,
+            torque_nm: Some(-5.0),
+            capacity_nm: Some(7.0),
+            uncertainty_nm: 1.0,
+            mu: 0.4,
+            radius_m: 0.6,
+            clamp_force_n: 100.0,
+            slip_speed_rad_s: 1.0,
+            lining_temp_c: 30.0,
+            bedding: 0.0,
+            wear_m: 0.0,
+            correction: 1.0,
+            state,
+            flags,
+            torque_ref_nm: None,
+        }
+    }
+
+    /// Counted by name as the summaries show them: only what occurred, each flag of a row
+    /// counted once, names sorted (the JSON keys of `summary.json`).
+    #[test]
+    fn tally_counts_states_and_flags_by_name() {
+        let mut t = Tally::default();
+        let both = Flags::TORQUE_BOUNDED | Flags::ADAPTATION_FROZEN;
+        t.add(&row(State::Holding, both));
+        t.add(&row(State::Holding, Flags::TORQUE_BOUNDED));
+        t.add(&row(State::Slipping, Flags::empty()));
+        t.add(&row(
+            State::Slipping,
+            Flags::LINING_WORN | Flags::SENSOR_DEGRADED,
+        ));
+        t.add(&row(State::Slipping, Flags::empty()));
+        let json = serde_json::to_value(&t).unwrap();
+        assert_eq!(
+            json,
+            serde_json::json!({
+                "rows": 5,
+                "states": {"holding": 2, "slipping": 3},
+                "flags": {
+                    "ADAPTATION_FROZEN": 1,
+                    "LINING_WORN": 1,
+                    "SENSOR_DEGRADED": 1,
+                    "TORQUE_BOUNDED": 2
+                },
+                "max_abs_torque_nm": 5.0,
+                "max_capacity_nm": 7.0,
+                "max_lining_temp_c": 30.0,
+                "max_clamp_force_n": 100.0
+            })
+        );
+        assert_eq!(t.states().get("released"), None);
+        let names: Vec<&str> = t.flags().into_keys().collect();
+        assert_eq!(
+            names,
+            [
+                "ADAPTATION_FROZEN",
+                "LINING_WORN",
+                "SENSOR_DEGRADED",
+                "TORQUE_BOUNDED"
+            ]
+        );
+    }
 }

@@ -7,7 +7,7 @@
 //!
 //! ```text
 //! TraceSample (f64, SI) ─ core_inputs ─► Inputs<C> (fixed point) ─ Estimator::step ─► Estimate
-//!                                                                    │ estimate_row (to_num, exact)
+//!                                                                    │ estimate_row (exact)
 //!                                                                    ▼
 //!                                                               EstimateRow (f64, SI)
 //! ```
@@ -15,12 +15,15 @@
 //! The boundary conversions are the only arithmetic here:
 //! - in: force channels as raw counts ([`channel_counts`]: counts columns pass through,
 //!   calibrated newton columns are turned back into the counts the ADC would have given);
-//!   speeds, command, temperatures and the reference torque with the fixed types'
-//!   `saturating_from_num` (round to nearest); a brake's output speed is 0 whatever the trace
+//!   speeds, command, temperatures and the reference torque as the fixed types'
+//!   `saturating_from_num` gives them (round to nearest, ties to even; NaN as 0), computed by
+//!   direct scaling in [`saturating_fixed`]; a brake's output speed is 0 whatever the trace
 //!   says.
-//! - out: every fixed-point value with `to_num::<f64>()`, which is exact (each I32- or
-//!   I64-based value used here has at most 53 significant bits), and the CSV writer prints the
-//!   shortest decimal that reads back to that f64, so an estimate file holds the core's bits.
+//! - out: every fixed-point value as `to_num::<f64>()` gives it, computed by direct scaling
+//!   in [`fixed_to_f64`]; exact (each I32- or I64-based value used here has at most 53
+//!   significant bits), and the CSV writer prints the shortest decimal that reads back to
+//!   that f64, so an estimate file holds the core's bits. The direct conversions are
+//!   bit-identical to the `fixed` crate's (property test over the types and ranges used).
 //!   The slip speed column is `input_speed − output_speed` as the core forms it
 //!   (`saturating_sub` in [`RadPerSec`]).
 //!
@@ -35,6 +38,7 @@ use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 use clampwise_device::build_core::{
     ChannelDevice, CoreDevice, Device, MU_POINTS, RADIUS_BEDDING_POINTS, RADIUS_FORCE_POINTS,
 };
+use fixed::traits::Fixed;
 use fixed::types::I16F16;
 
 use crate::config::{DeviceConfig, DeviceKind};
@@ -232,8 +236,72 @@ pub fn channel_counts(s: &TraceSample, cal: &[ChannelCal]) -> [Option<i32>; 4] {
     out
 }
 
-fn sat<T: fixed::traits::Fixed>(v: f64) -> T {
-    T::saturating_from_num(if v.is_nan() { 0.0 } else { v })
+/// The integer behind a fixed-point type, for the direct conversions below.
+pub trait FixedBits: Copy {
+    /// A rounded (integral) f64 to the integer, saturating, NaN → 0 (Rust's `as`).
+    fn saturating_from_rounded(x: f64) -> Self;
+    /// The integer as f64, rounded to nearest, ties to even (Rust's `as`; exact up to 2⁵³).
+    fn to_f64(self) -> f64;
+}
+
+impl FixedBits for i32 {
+    fn saturating_from_rounded(x: f64) -> Self {
+        // Rust's float → int `as` saturates and maps NaN to 0: exactly the saturation wanted.
+        #[allow(clippy::cast_possible_truncation)]
+        let n = x as i32;
+        n
+    }
+    fn to_f64(self) -> f64 {
+        f64::from(self)
+    }
+}
+
+impl FixedBits for i64 {
+    fn saturating_from_rounded(x: f64) -> Self {
+        // As for i32.
+        #[allow(clippy::cast_possible_truncation)]
+        let n = x as i64;
+        n
+    }
+    fn to_f64(self) -> f64 {
+        // Round to nearest, ties to even, as `to_num::<f64>` rounds a value of more than 53
+        // significant bits.
+        #[allow(clippy::cast_precision_loss)]
+        let f = self as f64;
+        f
+    }
+}
+
+/// 2^FRAC_NBITS as f64, built from its exponent field (exact; FRAC_NBITS ≤ 128 for every
+/// fixed type, far inside the normal exponent range).
+fn scale<T: Fixed>() -> f64 {
+    f64::from_bits((1023 + u64::from(T::FRAC_NBITS)) << 52)
+}
+
+/// `T::saturating_from_num(v)` with NaN taken as 0, by direct scaling: v · 2^F is exact (a
+/// power-of-two scale; an overflow goes to ±∞ and saturates all the same), rounded to nearest
+/// with ties to even as `from_num` rounds, then saturated to the integer's range. Bit-identical
+/// to `saturating_from_num` (property test `direct_conversions_match_the_fixed_crate`), without
+/// its generic float decomposition.
+pub fn saturating_fixed<T>(v: f64) -> T
+where
+    T: Fixed,
+    T::Bits: FixedBits,
+{
+    T::from_bits(T::Bits::saturating_from_rounded(
+        (v * scale::<T>()).round_ties_even(),
+    ))
+}
+
+/// `x.to_num::<f64>()` by direct scaling: the integer as f64 (exact for the 32-bit types,
+/// rounded to nearest-even above 2⁵³ as `to_num` does) times 2^−F (exact). Bit-identical to
+/// `to_num` (same property test).
+pub fn fixed_to_f64<T>(x: T) -> f64
+where
+    T: Fixed,
+    T::Bits: FixedBits,
+{
+    x.to_bits().to_f64() / scale::<T>()
 }
 
 /// The core's [`Inputs`] for one trace sample (the boundary conversion of the module docs).
@@ -254,21 +322,21 @@ pub fn core_inputs<const C: usize>(s: &TraceSample, cal: &[ChannelCal], brake: b
     }
     Inputs {
         force_channels,
-        input_speed: sat(s.omega_in_rad_s),
+        input_speed: saturating_fixed(s.omega_in_rad_s),
         output_speed: if brake {
             RadPerSec::ZERO
         } else {
-            sat(s.omega_out_rad_s)
+            saturating_fixed(s.omega_out_rad_s)
         },
-        actuator_command: s.command.map(sat::<I16F16>),
+        actuator_command: s.command.map(saturating_fixed::<I16F16>),
         sensor_temperature: None,
-        lining_temperature: s.temp_c.map(sat::<Celsius>),
-        ambient_temperature: s.ambient_c.map(sat::<Celsius>),
-        reference_torque: s.torque_ref_nm.map(sat::<NewtonMetres>),
+        lining_temperature: s.temp_c.map(saturating_fixed::<Celsius>),
+        ambient_temperature: s.ambient_c.map(saturating_fixed::<Celsius>),
+        reference_torque: s.torque_ref_nm.map(saturating_fixed::<NewtonMetres>),
     }
 }
 
-/// The estimate row of one core [`Estimate`] (exact `to_num` conversions).
+/// The estimate row of one core [`Estimate`] (exact conversions, as `to_num`).
 pub fn estimate_row<const C: usize>(
     s: &TraceSample,
     inputs: &Inputs<C>,
@@ -277,20 +345,17 @@ pub fn estimate_row<const C: usize>(
     EstimateRow {
         line: s.line,
         t_s: s.t_s,
-        torque_nm: e.torque.map(|t| t.to_num()),
-        capacity_nm: e.holding_capacity.map(|c| c.to_num()),
-        uncertainty_nm: e.uncertainty.to_num(),
-        mu: e.mu.to_num(),
-        radius_m: e.effective_radius.to_num(),
-        clamp_force_n: e.clamp_force.to_num(),
-        slip_speed_rad_s: inputs
-            .input_speed
-            .saturating_sub(inputs.output_speed)
-            .to_num(),
-        lining_temp_c: e.lining_temperature.to_num(),
-        bedding: e.bedding.to_num(),
-        wear_m: e.wear.to_num(),
-        correction: e.correction.to_num(),
+        torque_nm: e.torque.map(fixed_to_f64),
+        capacity_nm: e.holding_capacity.map(fixed_to_f64),
+        uncertainty_nm: fixed_to_f64(e.uncertainty),
+        mu: fixed_to_f64(e.mu),
+        radius_m: fixed_to_f64(e.effective_radius),
+        clamp_force_n: fixed_to_f64(e.clamp_force),
+        slip_speed_rad_s: fixed_to_f64(inputs.input_speed.saturating_sub(inputs.output_speed)),
+        lining_temp_c: fixed_to_f64(e.lining_temperature),
+        bedding: fixed_to_f64(e.bedding),
+        wear_m: fixed_to_f64(e.wear),
+        correction: fixed_to_f64(e.correction),
         state: e.state.into(),
         flags: e.flags,
         torque_ref_nm: s.torque_ref_nm,
@@ -395,6 +460,7 @@ mod tests {
     use super::*;
     use crate::config::LoadedConfig;
     use approx::assert_relative_eq;
+    use proptest::prelude::*;
 
     fn demo() -> (DeviceConfig, CoreDevice) {
         let c = LoadedConfig::from_str(crate::demo::DEMO_CONFIG, "d")
@@ -527,6 +593,100 @@ mod tests {
         assert_eq!(r.state, State::Unavailable);
         assert!(r.torque_nm.is_none() && r.capacity_nm.is_none());
         assert!(r.flags.contains(Flags::FORCE_LOST));
+    }
+
+    /// The `fixed` crate's conversions, as the seam used them before the direct ones.
+    fn via_crate<T: Fixed>(v: f64) -> T {
+        T::saturating_from_num(if v.is_nan() { 0.0 } else { v })
+    }
+
+    fn same_both_ways<T>(v: f64) -> Result<(), TestCaseError>
+    where
+        T: Fixed,
+        T::Bits: FixedBits + PartialEq + std::fmt::Debug,
+    {
+        let direct: T = saturating_fixed(v);
+        prop_assert_eq!(
+            direct.to_bits(),
+            via_crate::<T>(v).to_bits(),
+            "{} from {:e}",
+            T::FRAC_NBITS,
+            v
+        );
+        prop_assert_eq!(
+            fixed_to_f64(direct).to_bits(),
+            direct.to_num::<f64>().to_bits(),
+            "{} to f64 of {:e}",
+            T::FRAC_NBITS,
+            v
+        );
+        Ok(())
+    }
+
+    /// Every fixed type the seam converts (inputs and estimate fields), and the two I64-based
+    /// ones of the core's units.
+    fn all_types(v: f64) -> Result<(), TestCaseError> {
+        same_both_ways::<I16F16>(v)?; // RadPerSec, Celsius, actuator command
+        same_both_ways::<NewtonMetres>(v)?;
+        same_both_ways::<clampwise_core::units::Newtons>(v)?;
+        same_both_ways::<clampwise_core::units::Metres>(v)?;
+        same_both_ways::<clampwise_core::units::Ratio>(v)?;
+        same_both_ways::<clampwise_core::units::Watts>(v)?;
+        same_both_ways::<clampwise_core::units::Joules>(v)?;
+        Ok(())
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(20_000))]
+
+        /// Direct scaling against `saturating_from_num` / `to_num`: any f64 bit pattern
+        /// (NaN, ±∞, subnormals, huge), the ranges the traces use and well past them
+        /// (saturation), and exact half-LSB ties (round to even).
+        #[test]
+        fn direct_conversions_match_the_fixed_crate(
+            bits in any::<u64>(),
+            wide in -1e15f64..1e15,
+            near in -600_000.0f64..600_000.0,
+            n in any::<i64>(),
+            frac in prop::sample::select(vec![8u32, 12, 16, 24, 30, 32]),
+        ) {
+            all_types(f64::from_bits(bits))?;
+            all_types(wide)?;
+            all_types(near)?;
+            // A tie between two steps of 2^−frac, and its neighbours.
+            #[allow(clippy::cast_precision_loss)]
+            let tie = ((n >> 12) as f64 + 0.5) / f64::from_bits((1023 + u64::from(frac)) << 52);
+            all_types(tie)?;
+            all_types(tie.next_up())?;
+            all_types(tie.next_down())?;
+        }
+    }
+
+    #[test]
+    fn direct_conversions_at_the_edges() {
+        for v in [
+            0.0,
+            -0.0,
+            f64::NAN,
+            -f64::NAN,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::MAX,
+            f64::MIN,
+            f64::MIN_POSITIVE,
+            -f64::MIN_POSITIVE / 3.0,
+            32_767.999_99,
+            32_768.0,
+            -32_768.0,
+            -32_768.000_01,
+            524_287.999_9,
+            -524_288.000_1,
+            0.5 / 65_536.0,
+            1.5 / 65_536.0,
+            -2.5 / 65_536.0,
+        ] {
+            all_types(v).unwrap();
+        }
     }
 
     #[test]

@@ -303,14 +303,20 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
         .zip(l.force.iter().zip(&l.valid))
     {
         if let Some(vc) = vc {
-            *valid = match row.text(vc.index) {
-                "1" | "1.0" | "true" => true,
-                "0" | "0.0" | "false" => false,
-                other => {
-                    return Err(
-                        row.error(vc.index, format!("valid bit must be 0 or 1, got '{other}'"))
-                    );
-                }
+            // The usual spellings straight from the bytes; anything else (blanks to trim,
+            // other words) through the trimmed text, as before.
+            *valid = match row.bytes(vc.index) {
+                b"1" => true,
+                b"0" => false,
+                _ => match row.text(vc.index) {
+                    "1" | "1.0" | "true" => true,
+                    "0" | "0.0" | "false" => false,
+                    other => {
+                        return Err(
+                            row.error(vc.index, format!("valid bit must be 0 or 1, got '{other}'"))
+                        );
+                    }
+                },
             };
         }
         let Some(fc) = fc else { continue };
