@@ -623,6 +623,10 @@ pub struct ThermalSample {
 }
 
 /// Per-brake thermal state. Temperatures in Q32 °C.
+///
+/// Both temperatures stay within [−2⁴⁷, 2⁴⁷) (−32 768 … 32 768 °C): the model clamps them to
+/// −273 … 32 767 °C and an accepted measurement is a [`Celsius`]; the update and the output
+/// rounding rely on this bound.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct ThermalState {
@@ -638,14 +642,88 @@ fn to_q32(t: Celsius) -> i64 {
 }
 
 fn from_q32(t: i64) -> Celsius {
-    // The state is clamped to the Celsius range, so the rounded value fits; saturate anyway.
-    let bits = t.saturating_add(1 << 15) >> 16;
-    Celsius::from_bits(i32::try_from(bits).unwrap_or(if bits < 0 { i32::MIN } else { i32::MAX }))
+    // A state temperature lies in [−2⁴⁷, 2⁴⁷ − 2¹⁶] (see `ThermalState`), so adding ½ LSB
+    // cannot overflow and the rounded value lies in [−2³¹, 2³¹ − 1]: the cast is exact.
+    #[allow(clippy::cast_possible_truncation)]
+    Celsius::from_bits((t.wrapping_add(1 << 15) >> 16) as i32)
 }
 
-fn narrow_q32(v: i128) -> i64 {
-    let c = v.clamp(i128::from(T_FLOOR_Q32), i128::from(T_CEIL_Q32));
-    i64::try_from(c).unwrap_or(0)
+/// One node's update: `x − ⌊(Σ K·θ − Γ·P + 2⁶¹) / 2⁶²⌉`, clamped to the state's range, with
+/// `decay_gain = Γ·P − Σ K·θ` exact (below 2¹²⁷ in magnitude, see the update).
+fn node_step(x: i64, decay_gain: i128) -> i64 {
+    let delta = decay_gain.wrapping_add(1i128 << 61) >> 62;
+    // |x| < 2⁴⁷: a |delta| beyond 2⁶² leaves the range whichever way it is cut, so saturating
+    // it to i64 (and the sum) before the clamp gives the clamp of the exact sum.
+    let delta = i64::try_from(delta).unwrap_or(if delta < 0 { i64::MIN } else { i64::MAX });
+    x.saturating_add(delta).clamp(T_FLOOR_Q32, T_CEIL_Q32)
+}
+
+/// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_raw`) and P ≤ 2⁶³ give a product below 2¹²⁵.
+#[inline(always)]
+fn heating(gamma: i64, power: u64) -> i128 {
+    wide::mul_u64(gamma.unsigned_abs(), power).cast_signed()
+}
+
+/// K·θ, exact: |K| < 2⁶² and |θ| < 2⁴⁸ give a product below 2¹¹⁰ in magnitude.
+#[inline(always)]
+fn decay(k: i64, theta: i64) -> i128 {
+    wide::mul_i64(k, theta)
+}
+
+/// Widening products: the native 64 × 64 → 128-bit multiply on 64-bit targets, and on 32-bit
+/// targets four 32 × 32 → 64-bit products (the compiler's own i128 product of two sign-extended
+/// i64 takes six, each an `__aeabi_lmul` call on ARMv6-M). The same exact values either way
+/// (property-tested against the native product on the host).
+mod wide {
+    /// `a · b`, exact.
+    #[cfg(target_pointer_width = "64")]
+    #[inline(always)]
+    pub(super) fn mul_u64(a: u64, b: u64) -> u128 {
+        u128::from(a).wrapping_mul(u128::from(b))
+    }
+
+    /// `a · b`, exact (below 2¹²⁶ in magnitude).
+    #[cfg(target_pointer_width = "64")]
+    #[inline(always)]
+    pub(super) fn mul_i64(a: i64, b: i64) -> i128 {
+        i128::from(a).wrapping_mul(i128::from(b))
+    }
+
+    #[cfg(not(target_pointer_width = "64"))]
+    pub(super) use limbs::{mul_i64, mul_u64};
+
+    /// The products from 32-bit limbs (compiled on every target, so the host tests them).
+    #[cfg_attr(target_pointer_width = "64", allow(dead_code))]
+    pub(super) mod limbs {
+        /// 32 × 32 → 64 bits.
+        #[inline(always)]
+        fn mul_u32(a: u32, b: u32) -> u64 {
+            u64::from(a).wrapping_mul(u64::from(b))
+        }
+
+        /// `a · b`, exact, from four 32 × 32-bit products.
+        pub(in super::super) fn mul_u64(a: u64, b: u64) -> u128 {
+            #[allow(clippy::cast_possible_truncation)] // the low halves, by intent
+            let (a0, b0) = (a as u32, b as u32);
+            #[allow(clippy::cast_possible_truncation)] // below 2³² after the shift
+            let (a1, b1) = ((a >> 32) as u32, (b >> 32) as u32);
+            let low = mul_u32(a0, b0);
+            let (mid, mid_carry) = mul_u32(a0, b1).overflowing_add(mul_u32(a1, b0));
+            let (lo, lo_carry) = low.overflowing_add(mid << 32);
+            // The high half of a 128-bit product fits 64 bits: no wrap happens here.
+            let hi = mul_u32(a1, b1)
+                .wrapping_add(mid >> 32)
+                .wrapping_add(u64::from(mid_carry) << 32)
+                .wrapping_add(u64::from(lo_carry));
+            (u128::from(hi) << 64) | u128::from(lo)
+        }
+
+        /// `a · b`, exact: the product of the magnitudes (at most 2¹²⁶), signed.
+        pub(in super::super) fn mul_i64(a: i64, b: i64) -> i128 {
+            let m = mul_u64(a.unsigned_abs(), b.unsigned_abs()).cast_signed();
+            if (a ^ b) < 0 { m.wrapping_neg() } else { m }
+        }
+    }
 }
 
 impl ThermalState {
@@ -687,11 +765,13 @@ impl ThermalState {
     }
 
     /// Model rotor temperature (°C).
+    #[inline]
     pub fn rotor_temperature(&self) -> Celsius {
         from_q32(self.rotor_q32)
     }
 
     /// Model lining temperature (°C); the rotor's without a lining node.
+    #[inline]
     pub fn lining_temperature(&self) -> Celsius {
         from_q32(self.lining_q32)
     }
@@ -746,34 +826,54 @@ impl ThermalState {
         measured: Option<Celsius>,
         ambient: Option<Celsius>,
     ) -> ThermalSample {
-        let p = i128::from(power.to_bits().unsigned_abs());
-        let amb = to_q32(ambient.unwrap_or(cfg.ambient));
-        // Temperatures are held within −273 … 32 767 °C in Q32 (below 2⁴⁷ in magnitude), so
-        // each difference is exact in i64 (|θ| < 2⁴⁸).
-        let theta = [
-            self.lining_q32.saturating_sub(amb),
-            self.rotor_q32.saturating_sub(amb),
-        ];
-        let mut next = [self.lining_q32, self.rotor_q32];
-        for ((out, krow), g) in next.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
-            // |θ| < 2⁴⁸ and |K| < 2⁶² (checked by `from_raw`): each K·θ is a 64 × 64-bit
-            // widening product below 2¹¹⁰, their sum below 2¹¹¹. 0 ≤ Γ < 2⁶² and P < 2⁶⁴:
-            // Γ·P < 2¹²⁶. Nothing comes near the i128 range, so every sum below is exact:
-            // `wrapping_` is the exact result here, states that no overflow is handled, and
-            // has no panic path (and costs far less code than `saturating_` on a 32-bit core).
-            let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
-                acc.wrapping_add(i128::from(*k) * i128::from(*t))
-            });
-            let delta = (i128::from(*g) * p)
-                .wrapping_sub(decay)
-                .wrapping_add(1i128 << 61)
-                >> 62;
-            // |state| < 2⁴⁸ and |delta| < 2⁶⁵.
-            *out = narrow_q32(i128::from(*out).wrapping_add(delta));
+        let (measured_used, measured_rejected) = self.advance(cfg, power, measured, ambient);
+        ThermalSample {
+            lining_temperature: self.lining_temperature(),
+            rotor_temperature: self.rotor_temperature(),
+            fade_warning: self.fade,
+            over_temperature: self.over,
+            measured_used,
+            measured_rejected,
         }
-        let [lining, rotor] = next;
-        self.rotor_q32 = rotor;
-        self.lining_q32 = if cfg.two_node { lining } else { rotor };
+    }
+
+    /// [`ThermalState::update_with_ambient`] without building the sample, for callers that
+    /// read only part of it: `(measured_used, measured_rejected)`.
+    pub(crate) fn advance(
+        &mut self,
+        cfg: &ThermalConfig,
+        power: Watts,
+        measured: Option<Celsius>,
+        ambient: Option<Celsius>,
+    ) -> (bool, bool) {
+        let p = power.to_bits().unsigned_abs();
+        let amb = to_q32(ambient.unwrap_or(cfg.ambient));
+        // Temperatures lie within [−2⁴⁷, 2⁴⁷) in Q32 (see `ThermalState`) and so does the
+        // ambient, so each difference is exact (|θ| < 2⁴⁸). Every product below is exact and
+        // every sum stays far inside i128 (each K·θ below 2¹¹⁰, Γ·P below 2¹²⁵): `wrapping_`
+        // is the exact result here, states that no overflow is handled, and has no panic path.
+        let theta_r = self.rotor_q32.wrapping_sub(amb);
+        let [[k_ll, k_lr], [k_rl, k_rr]] = cfg.k;
+        let [g_l, g_r] = cfg.gamma;
+        if cfg.two_node {
+            let theta_l = self.lining_q32.wrapping_sub(amb);
+            let lining = heating(g_l, p)
+                .wrapping_sub(decay(k_ll, theta_l))
+                .wrapping_sub(decay(k_lr, theta_r));
+            let rotor = heating(g_r, p)
+                .wrapping_sub(decay(k_rl, theta_l))
+                .wrapping_sub(decay(k_rr, theta_r));
+            self.lining_q32 = node_step(self.lining_q32, lining);
+            self.rotor_q32 = node_step(self.rotor_q32, rotor);
+        } else {
+            // A single-node model has no lining coefficients (`from_raw` holds them at zero),
+            // so the rotor row is the whole update.
+            self.rotor_q32 = node_step(
+                self.rotor_q32,
+                heating(g_r, p).wrapping_sub(decay(k_rr, theta_r)),
+            );
+            self.lining_q32 = self.rotor_q32;
+        }
 
         let mut measured_used = false;
         let mut measured_rejected = false;
@@ -810,15 +910,7 @@ impl ThermalState {
         };
         self.fade = latch(self.fade, cfg.fade_warning);
         self.over = latch(self.over, cfg.over_temperature);
-
-        ThermalSample {
-            lining_temperature: from_q32(self.lining_q32),
-            rotor_temperature: from_q32(self.rotor_q32),
-            fade_warning: self.fade,
-            over_temperature: self.over,
-            measured_used,
-            measured_rejected,
-        }
+        (measured_used, measured_rejected)
     }
 }
 
@@ -832,6 +924,12 @@ impl ThermalState {
 )]
 mod tests {
     use super::*;
+
+    /// The clamp of the former i128 update, kept as the reference.
+    fn narrow_q32(v: i128) -> i64 {
+        let c = v.clamp(i128::from(T_FLOOR_Q32), i128::from(T_CEIL_Q32));
+        i64::try_from(c).unwrap_or(0)
+    }
 
     pub(crate) fn disc(dt: f64, cooling: Cooling) -> ThermalParams {
         // REFERENCES.md check vector [calc]: 8 kg, c = 460 J/(kg·K); h = 50, A = 0.12 → τ = 613 s.

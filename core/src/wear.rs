@@ -165,6 +165,8 @@ pub struct WearConfig {
     wear_shift: u32,
     initial_thickness: Metres,
     minimum_thickness: Metres,
+    /// `initial_thickness − minimum_thickness` (> 0): the loss at which the lining is worn out.
+    worn_loss: Metres,
 }
 
 fn finite(v: f64, field: &'static str) -> Result<f64, WearError> {
@@ -292,6 +294,8 @@ impl WearConfig {
             wear_shift: raw.wear_shift,
             initial_thickness: raw.initial_thickness,
             minimum_thickness: raw.minimum_thickness,
+            // 0 ≤ min < initial: the difference is positive and cannot overflow.
+            worn_loss: Metres::from_bits(initial.wrapping_sub(min)),
         })
     }
 
@@ -441,18 +445,22 @@ impl WearState {
     }
 
     /// Energy dissipated (J).
+    #[inline]
     pub fn energy(&self) -> Joules {
         // ≤ ENERGY_MAX_Q64, so the shifted value fits i64.
         Joules::from_bits(i64::try_from(self.energy_q64 >> 48).unwrap_or(i64::MAX))
     }
 
     /// Bedding 0 … 1.
+    #[inline]
     pub fn bedding(&self) -> Ratio {
-        let b = (ONE_Q62.saturating_sub(u128::from(self.unbedded_q62))) >> 32;
+        // At most 2⁶² >> 32 = 2³⁰: the conversion cannot fail.
+        let b = ONE_Q62_U64.saturating_sub(self.unbedded_q62) >> 32;
         Ratio::from_bits(i32::try_from(b).unwrap_or(1 << 30))
     }
 
     /// Thickness lost (m).
+    #[inline]
     pub fn thickness_loss(&self) -> Metres {
         Metres::from_bits(i32::try_from(self.loss_q96 >> 72).unwrap_or(i32::MAX))
     }
@@ -471,6 +479,13 @@ impl WearState {
     /// # Ok::<(), clampwise_core::wear::WearError>(())
     /// ```
     pub fn update(&mut self, cfg: &WearConfig, power: Watts) -> WearSample {
+        self.advance(cfg, power);
+        self.sample(cfg)
+    }
+
+    /// [`WearState::update`] without building the sample, for callers that read only part of
+    /// it.
+    pub(crate) fn advance(&mut self, cfg: &WearConfig, power: Watts) {
         // |P| (Q32) · dt (Q63) ≤ 2¹²⁷: Q95 → Q64.
         let step_q64 = (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
         // No energy (holding, released without drag): nothing moves — the energy adds 0, the
@@ -478,7 +493,6 @@ impl WearState {
         if step_q64 != 0 {
             self.accumulate_q64(cfg, step_q64);
         }
-        self.sample(cfg)
     }
 
     /// Add an energy directly (J; its magnitude is used), for callers that integrate power
@@ -522,14 +536,18 @@ impl WearState {
             bedding: self.bedding(),
             thickness_loss: loss,
             remaining_thickness: remaining,
-            worn_out: remaining <= cfg.minimum_thickness,
+            worn_out: loss >= cfg.worn_loss,
         }
     }
 
     /// Whether the remaining thickness is at or below the minimum (see
     /// [`WearSample::worn_out`]).
+    #[inline]
     pub fn worn_out(&self, cfg: &WearConfig) -> bool {
-        Self::remaining(cfg, self.thickness_loss()) <= cfg.minimum_thickness
+        // The loss is not negative and 0 ≤ minimum < initial, so `max(initial − loss, 0) ≤
+        // minimum` (the remaining thickness at or below the limit) is `loss ≥ initial −
+        // minimum`.
+        self.thickness_loss() >= cfg.worn_loss
     }
 
     fn remaining(cfg: &WearConfig, loss: Metres) -> Metres {
