@@ -166,3 +166,4 @@ pub mod table;
 pub mod thermal;
 pub mod units;
 pub mod wear;
+mod wide;

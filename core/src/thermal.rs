@@ -661,69 +661,13 @@ fn node_step(x: i64, decay_gain: i128) -> i64 {
 /// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_raw`) and P ≤ 2⁶³ give a product below 2¹²⁵.
 #[inline(always)]
 fn heating(gamma: i64, power: u64) -> i128 {
-    wide::mul_u64(gamma.unsigned_abs(), power).cast_signed()
+    crate::wide::mul_u64(gamma.unsigned_abs(), power).cast_signed()
 }
 
 /// K·θ, exact: |K| < 2⁶² and |θ| < 2⁴⁸ give a product below 2¹¹⁰ in magnitude.
 #[inline(always)]
 fn decay(k: i64, theta: i64) -> i128 {
-    wide::mul_i64(k, theta)
-}
-
-/// Widening products: the native 64 × 64 → 128-bit multiply on 64-bit targets, and on 32-bit
-/// targets four 32 × 32 → 64-bit products (the compiler's own i128 product of two sign-extended
-/// i64 takes six, each an `__aeabi_lmul` call on ARMv6-M). The same exact values either way
-/// (property-tested against the native product on the host).
-mod wide {
-    /// `a · b`, exact.
-    #[cfg(target_pointer_width = "64")]
-    #[inline(always)]
-    pub(super) fn mul_u64(a: u64, b: u64) -> u128 {
-        u128::from(a).wrapping_mul(u128::from(b))
-    }
-
-    /// `a · b`, exact (below 2¹²⁶ in magnitude).
-    #[cfg(target_pointer_width = "64")]
-    #[inline(always)]
-    pub(super) fn mul_i64(a: i64, b: i64) -> i128 {
-        i128::from(a).wrapping_mul(i128::from(b))
-    }
-
-    #[cfg(not(target_pointer_width = "64"))]
-    pub(super) use limbs::{mul_i64, mul_u64};
-
-    /// The products from 32-bit limbs (compiled on every target, so the host tests them).
-    #[cfg_attr(target_pointer_width = "64", allow(dead_code))]
-    pub(super) mod limbs {
-        /// 32 × 32 → 64 bits.
-        #[inline(always)]
-        fn mul_u32(a: u32, b: u32) -> u64 {
-            u64::from(a).wrapping_mul(u64::from(b))
-        }
-
-        /// `a · b`, exact, from four 32 × 32-bit products.
-        pub(in super::super) fn mul_u64(a: u64, b: u64) -> u128 {
-            #[allow(clippy::cast_possible_truncation)] // the low halves, by intent
-            let (a0, b0) = (a as u32, b as u32);
-            #[allow(clippy::cast_possible_truncation)] // below 2³² after the shift
-            let (a1, b1) = ((a >> 32) as u32, (b >> 32) as u32);
-            let low = mul_u32(a0, b0);
-            let (mid, mid_carry) = mul_u32(a0, b1).overflowing_add(mul_u32(a1, b0));
-            let (lo, lo_carry) = low.overflowing_add(mid << 32);
-            // The high half of a 128-bit product fits 64 bits: no wrap happens here.
-            let hi = mul_u32(a1, b1)
-                .wrapping_add(mid >> 32)
-                .wrapping_add(u64::from(mid_carry) << 32)
-                .wrapping_add(u64::from(lo_carry));
-            (u128::from(hi) << 64) | u128::from(lo)
-        }
-
-        /// `a · b`, exact: the product of the magnitudes (at most 2¹²⁶), signed.
-        pub(in super::super) fn mul_i64(a: i64, b: i64) -> i128 {
-            let m = mul_u64(a.unsigned_abs(), b.unsigned_abs()).cast_signed();
-            if (a ^ b) < 0 { m.wrapping_neg() } else { m }
-        }
-    }
+    crate::wide::mul_i64(k, theta)
 }
 
 impl ThermalState {

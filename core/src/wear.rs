@@ -39,6 +39,7 @@
 use core::fmt;
 
 use crate::units::{Joules, Metres, Ratio, Seconds, Watts};
+use crate::wide;
 
 /// 1 · 10⁻⁷ cm³/(N·m), the trade's unit of specific wear rate, in m³/J.
 pub const WEAR_RATE_UNIT: f64 = 1e-13;
@@ -48,8 +49,23 @@ const ONE_Q62_U64: u64 = 1 << 62;
 
 /// `a · b` in Q62 for `a, b ≤ 1` (2⁶²): the product, truncated, is at most 1 again.
 fn mul_q62(a: u64, b: u64) -> u64 {
-    u64::try_from((u128::from(a) * u128::from(b)) >> 62).unwrap_or(u64::MAX)
+    u64::try_from(wide::mul_u64(a, b) >> 62).unwrap_or(u64::MAX)
 }
+/// `1 − b` after a bedding step of `x = dE/E₀` (both Q62, at most 1): `unbedded · g(x)`, with
+/// `g` the fourth-order Taylor polynomial of `exp(−x)`, each power and the product truncated.
+fn bedding_step(unbedded: u64, x: u64) -> u64 {
+    let x2 = mul_q62(x, x);
+    let x3 = mul_q62(x2, x);
+    let x4 = mul_q62(x3, x);
+    // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
+    // Each term is at most 1 in Q62, so the sums stay below 2⁶³. ⌊n/6⌋ = ⌊⌊n/2⌋/3⌋ and
+    // ⌊n/24⌋ = ⌊⌊n/8⌋/3⌋ (a division by 3 is a multiply on a 32-bit core).
+    let g = (ONE_Q62_U64 + x2 / 2 + wide::div3(x4 >> 3))
+        .saturating_sub(x + wide::div3(x3 >> 1))
+        .min(ONE_Q62_U64);
+    mul_q62(unbedded, g).min(unbedded)
+}
+
 /// Energy the state can hold: the top of [`Joules`], in Q64.
 const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
 /// A single sample's energy is capped at 2³² J (4.3 GJ) before the wear product.
@@ -335,7 +351,7 @@ impl WearConfig {
         // Callers pass at most the state's energy (below 2⁹⁶ in Q48) and the mantissa is at
         // most 2³², so the product is below 2¹²⁸: a widening multiply of the 96-bit energy by
         // the 64-bit mantissa, exact.
-        (energy_q48.min(ENERGY_MAX_Q64 >> 16) * u128::from(self.wear_mant))
+        wide::mul_u96(energy_q48.min(ENERGY_MAX_Q64 >> 16), u128::from(self.wear_mant))
             .checked_shr(self.wear_shift)
             .unwrap_or(0)
     }
@@ -487,7 +503,7 @@ impl WearState {
     /// it.
     pub(crate) fn advance(&mut self, cfg: &WearConfig, power: Watts) {
         // |P| (Q32) · dt (Q63) ≤ 2¹²⁷: Q95 → Q64.
-        let step_q64 = (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
+        let step_q64 = wide::mul_u64(power.to_bits().unsigned_abs(), cfg.dt_q63) >> 31;
         // No energy (holding, released without drag): nothing moves — the energy adds 0, the
         // bedding factor is exactly 1 and the loss adds 0 — so skip the polynomial.
         if step_q64 != 0 {
@@ -510,19 +526,12 @@ impl WearState {
         // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
         // products (far less code on a 32-bit core than u128 × u128; the same values).
         // The product is at most e0_q48 · bedding_recip, which `WearConfig::from_raw` holds
-        // to 2¹²⁷ within 2⁷⁸: exact in u128.
-        let x = u64::try_from((step_q48.min(cfg.e0_q48) * cfg.bedding_recip) >> 65)
+        // to 2¹²⁷ within 2⁷⁸: exact in u128, and both factors are below 2⁹⁶ (e0_q48 < 2⁹²,
+        // so bedding_recip < 2⁸⁰), which is all `mul_u96` needs.
+        let x = u64::try_from(wide::mul_u96(step_q48.min(cfg.e0_q48), cfg.bedding_recip) >> 65)
             .unwrap_or(u64::MAX)
             .min(ONE_Q62_U64);
-        let x2 = mul_q62(x, x);
-        let x3 = mul_q62(x2, x);
-        let x4 = mul_q62(x3, x);
-        // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
-        // Each term is at most 1 in Q62, so the sums stay below 2⁶³.
-        let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24)
-            .saturating_sub(x + x3 / 6)
-            .min(ONE_Q62_U64);
-        self.unbedded_q62 = mul_q62(self.unbedded_q62, g).min(self.unbedded_q62);
+        self.unbedded_q62 = bedding_step(self.unbedded_q62, x);
 
         self.loss_q96 = self.loss_q96.saturating_add(cfg.loss_q96(step_q48));
     }
@@ -782,7 +791,8 @@ mod tests {
     }
 
     proptest! {
-        // The u64 polynomial gives the very bits of the u128 one it replaced.
+        // The u64 polynomial (with its divisions by 3) gives the very bits of the u128 one it
+        // replaced.
         #[test]
         fn bedding_step_same_bits_as_u128(x in 0u64..=(1 << 62), unbedded in 0u64..=(1 << 62)) {
             let wide = {
@@ -793,11 +803,7 @@ mod tests {
                 let g = (ONE_Q62 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62);
                 u64::try_from((u128::from(unbedded) * g) >> 62).unwrap_or(0).min(unbedded)
             };
-            let x2 = mul_q62(x, x);
-            let x3 = mul_q62(x2, x);
-            let x4 = mul_q62(x3, x);
-            let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62_U64);
-            prop_assert_eq!(mul_q62(unbedded, g).min(unbedded), wide);
+            prop_assert_eq!(bedding_step(unbedded, x), wide);
         }
 
         // Bedding never decreases, never exceeds 1, and follows 1 − exp(−E/E₀) (the solution
