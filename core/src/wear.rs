@@ -351,9 +351,12 @@ impl WearConfig {
         // Callers pass at most the state's energy (below 2⁹⁶ in Q48) and the mantissa is at
         // most 2³², so the product is below 2¹²⁸: a widening multiply of the 96-bit energy by
         // the 64-bit mantissa, exact.
-        wide::mul_u96(energy_q48.min(ENERGY_MAX_Q64 >> 16), u128::from(self.wear_mant))
-            .checked_shr(self.wear_shift)
-            .unwrap_or(0)
+        wide::mul_u96(
+            energy_q48.min(ENERGY_MAX_Q64 >> 16),
+            u128::from(self.wear_mant),
+        )
+        .checked_shr(self.wear_shift)
+        .unwrap_or(0)
     }
 }
 

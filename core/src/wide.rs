@@ -1,68 +1,48 @@
 //! Exact widening products and a division by 3 for the thermal and wear updates, cheap on
 //! 32-bit cores.
 //!
-//! On a 64-bit host a 64 × 64 → 128-bit product is one instruction and these are the plain
-//! operators. A 32-bit core builds the product from 32 × 32 → 64-bit pieces: the compiler takes
-//! four for an unsigned and six for a signed 64-bit pair, and on ARMv6-M (Cortex-M0/M0+), which
-//! has no long multiply, each piece is an `__aeabi_lmul` call (a full 64 × 64-bit routine). Here
-//! a signed product is the unsigned product of the magnitudes (four pieces), each piece on
-//! ARMv6-M is four 16 × 16-bit multiplies in line, and `⌊n/3⌋` on a 32-bit core is one
-//! wrapping multiply by the inverse of 3 instead of a 64-bit division routine.
+//! On a 64-bit host a 64 × 64 → 128-bit product is one instruction, and on a 32-bit core with a
+//! long multiply (Cortex-M3/M4, RISC-V with M) the compiler builds it well from 32 × 32 → 64-bit
+//! multiplies: there these are the plain operators. ARMv6-M (Cortex-M0/M0+) has no long
+//! multiply, and there each 32 × 32 → 64-bit piece of a wide product is an `__aeabi_lmul` call
+//! (a full 64 × 64-bit routine, 37 instructions), six of them for a signed 64-bit pair. Here, on
+//! ARMv6-M, a signed product is the unsigned product of the magnitudes (four pieces) and each
+//! piece four 16 × 16-bit multiplies in line (about 20 instructions). `⌊n/3⌋` on any 32-bit core
+//! is one wrapping multiply by the inverse of 3 instead of a 64-bit division routine.
+//!
+//! ARMv6-M is recognised as the Arm target without compare-and-swap atomics (the only one among
+//! the M-profile architectures; stable Rust exposes no `cfg` for the multiplier itself).
 //!
 //! Every function gives the exact result on every target; the 32-bit forms are compiled on the
 //! host too and property-tested there against the native operators.
 
-/// `a · b` (32 × 32 → 64 bits), exact.
-#[inline(always)]
-pub(crate) fn mul_u32(a: u32, b: u32) -> u64 {
-    #[cfg(all(target_arch = "arm", not(target_has_atomic = "32")))]
-    {
-        // ARMv6-M: the only Arm M-profile core without compare-and-swap, and without UMULL.
-        limbs::mul_u32(a, b)
-    }
-    #[cfg(not(all(target_arch = "arm", not(target_has_atomic = "32"))))]
-    {
-        u64::from(a).wrapping_mul(u64::from(b))
-    }
+/// Whether a target has a 32 × 32 → 64-bit multiply instruction (see the module docs).
+macro_rules! if_long_multiply {
+    ($yes:block else $no:block) => {{
+        #[cfg(not(all(target_arch = "arm", not(target_has_atomic = "32"))))]
+        $yes
+        #[cfg(all(target_arch = "arm", not(target_has_atomic = "32")))]
+        $no
+    }};
 }
 
 /// `a · b` (64 × 64 → 128 bits), exact.
 #[inline(always)]
 pub(crate) fn mul_u64(a: u64, b: u64) -> u128 {
-    #[cfg(target_pointer_width = "64")]
-    {
-        u128::from(a).wrapping_mul(u128::from(b))
-    }
-    #[cfg(not(target_pointer_width = "64"))]
-    {
-        limbs::mul_u64(a, b)
-    }
+    if_long_multiply!({ u128::from(a).wrapping_mul(u128::from(b)) } else { limbs::mul_u64(a, b) })
 }
 
 /// `a · b` (64 × 64 → 128 bits, signed), exact: at most 2¹²⁶ in magnitude.
 #[inline(always)]
 pub(crate) fn mul_i64(a: i64, b: i64) -> i128 {
-    #[cfg(target_pointer_width = "64")]
-    {
-        i128::from(a).wrapping_mul(i128::from(b))
-    }
-    #[cfg(not(target_pointer_width = "64"))]
-    {
-        limbs::mul_i64(a, b)
-    }
+    if_long_multiply!({ i128::from(a).wrapping_mul(i128::from(b)) } else { limbs::mul_i64(a, b) })
 }
 
-/// `a · b` for `a, b < 2⁹⁶` whose product is below 2¹²⁸ (the caller's bound), exact.
+/// `a · b mod 2¹²⁸` for `a, b < 2⁹⁶` (exact when the caller's bounds keep the product below
+/// 2¹²⁸).
 #[inline(always)]
 pub(crate) fn mul_u96(a: u128, b: u128) -> u128 {
-    #[cfg(target_pointer_width = "64")]
-    {
-        a.wrapping_mul(b)
-    }
-    #[cfg(not(target_pointer_width = "64"))]
-    {
-        limbs::mul_u96(a, b)
-    }
+    if_long_multiply!({ a.wrapping_mul(b) } else { limbs::mul_u96(a, b) })
 }
 
 /// `⌊n / 3⌋`, exact for every `n`.
@@ -78,14 +58,11 @@ pub(crate) fn div3(n: u64) -> u64 {
     }
 }
 
-/// The 32-bit forms (on every target, so the host tests them).
-#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
+/// The forms for cores without a long multiply, and the 32-bit division by 3 (on every target,
+/// so the host tests them).
+#[allow(dead_code)]
 mod limbs {
     /// 32 × 32 → 64 bits from four 16 × 16 → 32-bit multiplies (none can overflow).
-    #[cfg_attr(
-        not(all(target_arch = "arm", not(target_has_atomic = "32"))),
-        allow(dead_code)
-    )]
     #[inline(always)]
     pub(super) fn mul_u32(a: u32, b: u32) -> u64 {
         let (a0, a1) = (a & 0xFFFF, a >> 16);
@@ -105,10 +82,10 @@ mod limbs {
         let (a0, b0) = (a as u32, b as u32);
         #[allow(clippy::cast_possible_truncation)] // below 2³² after the shift
         let (a1, b1) = ((a >> 32) as u32, (b >> 32) as u32);
-        let (mid, mid_carry) = super::mul_u32(a0, b1).overflowing_add(super::mul_u32(a1, b0));
-        let (lo, lo_carry) = super::mul_u32(a0, b0).overflowing_add(mid << 32);
+        let (mid, mid_carry) = mul_u32(a0, b1).overflowing_add(mul_u32(a1, b0));
+        let (lo, lo_carry) = mul_u32(a0, b0).overflowing_add(mid << 32);
         // The high half of a 128-bit product fits 64 bits: none of these additions wraps.
-        let hi = super::mul_u32(a1, b1)
+        let hi = mul_u32(a1, b1)
             .wrapping_add(mid >> 32)
             .wrapping_add(u64::from(mid_carry) << 32)
             .wrapping_add(u64::from(lo_carry));
@@ -130,7 +107,7 @@ mod limbs {
     fn low_u64(a: u32, b: u64) -> u64 {
         #[allow(clippy::cast_possible_truncation)] // the halves, by intent
         let (b0, b1) = (b as u32, (b >> 32) as u32);
-        super::mul_u32(a, b0).wrapping_add(u64::from(a.wrapping_mul(b1)) << 32)
+        mul_u32(a, b0).wrapping_add(u64::from(a.wrapping_mul(b1)) << 32)
     }
 
     /// The product of the magnitudes (at most 2¹²⁶, so it fits i128), signed.
@@ -162,16 +139,35 @@ mod tests {
 
     #[test]
     fn edges() {
-        for a in [0, 1, 2, 3, u64::MAX / 3, u64::MAX - 2, u64::MAX - 1, u64::MAX, 1 << 63] {
+        for a in [
+            0,
+            1,
+            2,
+            3,
+            u64::MAX / 3,
+            u64::MAX - 2,
+            u64::MAX - 1,
+            u64::MAX,
+            1 << 63,
+        ] {
             assert_eq!(limbs::div3(a), a / 3, "{a}");
             for b in [0, 1, u64::MAX, 1 << 63, (1 << 32) - 1, 1 << 32] {
                 assert_eq!(limbs::mul_u64(a, b), u128::from(a) * u128::from(b));
             }
         }
-        for (a, b) in [(i64::MIN, i64::MIN), (i64::MIN, i64::MAX), (i64::MIN, -1), (-1, -1)] {
+        for (a, b) in [
+            (i64::MIN, i64::MIN),
+            (i64::MIN, i64::MAX),
+            (i64::MIN, -1),
+            (-1, -1),
+        ] {
             assert_eq!(limbs::mul_i64(a, b), i128::from(a) * i128::from(b));
         }
-        for (a, b) in [(u32::MAX, u32::MAX), (0xFFFF, 0x1_0000), (0x8000_8000, 0x8000_8000)] {
+        for (a, b) in [
+            (u32::MAX, u32::MAX),
+            (0xFFFF, 0x1_0000),
+            (0x8000_8000, 0x8000_8000),
+        ] {
             assert_eq!(limbs::mul_u32(a, b), u64::from(a) * u64::from(b));
         }
     }

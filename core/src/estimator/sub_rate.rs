@@ -83,7 +83,14 @@ impl SubRate {
             false
         } else {
             *self = Self::NEW;
-            advance(shift, (thermal, thermal_cfg), (wear, wear_cfg), sum, measured, ambient)
+            advance(
+                shift,
+                (thermal, thermal_cfg),
+                (wear, wear_cfg),
+                sum,
+                measured,
+                ambient,
+            )
         };
         SlowSample {
             lining_temperature: thermal.lining_temperature(),
