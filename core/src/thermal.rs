@@ -248,6 +248,9 @@ pub struct ThermalConfig {
     over_temperature: Celsius,
     flag_hysteresis: Celsius,
     measured: Option<Plausibility>,
+    /// The flag thresholds in Q32 °C, as the update compares them: `[fade, over]`, each
+    /// `(set above, clear below)` with the hysteresis taken off.
+    latch_q32: [(i64, i64); 2],
 }
 
 fn finite(v: f64, field: &'static str) -> Result<f64, ThermalError> {
@@ -488,7 +491,13 @@ impl ThermalConfig {
         {
             return Err(ThermalError::MeasuredLimits);
         }
+        let hysteresis = const_q32(raw.flag_hysteresis);
+        let (fade, over) = (const_q32(raw.fade_warning), const_q32(raw.over_temperature));
         Ok(Self {
+            latch_q32: [
+                (fade, fade.saturating_sub(hysteresis)),
+                (over, over.saturating_sub(hysteresis)),
+            ],
             dt: raw.dt,
             k: raw.k_q62,
             gamma: raw.gamma_q62,
@@ -639,6 +648,12 @@ pub struct ThermalState {
 
 fn to_q32(t: Celsius) -> i64 {
     i64::from(t.to_bits()) << 16
+}
+
+/// [`to_q32`] in a `const` context.
+const fn const_q32(t: Celsius) -> i64 {
+    // i32 → i64 is lossless (`From` is not available in `const`).
+    (t.to_bits() as i64) << 16
 }
 
 fn from_q32(t: i64) -> Celsius {
@@ -843,17 +858,12 @@ impl ThermalState {
         };
 
         let hottest = self.lining_q32.max(self.rotor_q32);
-        let hyst = to_q32(cfg.flag_hysteresis);
-        let latch = |on: bool, threshold: Celsius| {
-            let t = to_q32(threshold);
-            if on {
-                hottest >= t.saturating_sub(hyst)
-            } else {
-                hottest > t
-            }
+        let latch = |on: bool, (set, clear): (i64, i64)| {
+            if on { hottest >= clear } else { hottest > set }
         };
-        self.fade = latch(self.fade, cfg.fade_warning);
-        self.over = latch(self.over, cfg.over_temperature);
+        let [fade, over] = cfg.latch_q32;
+        self.fade = latch(self.fade, fade);
+        self.over = latch(self.over, over);
         (measured_used, measured_rejected)
     }
 }

@@ -348,15 +348,16 @@ impl WearConfig {
 
     /// Thickness loss for an energy in Q48 J: k·E/A, truncated to Q96 m.
     fn loss_q96(&self, energy_q48: u128) -> u128 {
-        // Callers pass at most the state's energy (below 2⁹⁶ in Q48) and the mantissa is at
-        // most 2³², so the product is below 2¹²⁸: a widening multiply of the 96-bit energy by
-        // the 64-bit mantissa, exact.
-        wide::mul_u96(
-            energy_q48.min(ENERGY_MAX_Q64 >> 16),
-            u128::from(self.wear_mant),
-        )
-        .checked_shr(self.wear_shift)
-        .unwrap_or(0)
+        // The state's energy is below 2⁹⁶ in Q48; the cap only states it.
+        self.step_loss_q96(energy_q48.min(ENERGY_MAX_Q64 >> 16))
+    }
+
+    /// [`WearConfig::loss_q96`] for an energy below 2⁹⁶ (Q48 J).
+    fn step_loss_q96(&self, energy_q48: u128) -> u128 {
+        // The energy is below 2⁹⁶ and the mantissa at most 2³², so the product is below 2¹²⁸:
+        // a widening multiply of the 96-bit energy by the 33-bit mantissa, exact. The shift is
+        // at most 83 (`from_raw`), so it never wraps.
+        wide::mul_u96(energy_q48, u128::from(self.wear_mant)).wrapping_shr(self.wear_shift)
     }
 }
 
@@ -510,20 +511,25 @@ impl WearState {
         // No energy (holding, released without drag): nothing moves — the energy adds 0, the
         // bedding factor is exactly 1 and the loss adds 0 — so skip the polynomial.
         if step_q64 != 0 {
-            self.accumulate_q64(cfg, step_q64);
+            // At most 2⁹⁵ >> 16 < 2⁸⁰: a sample's energy is inside the single-sample cap.
+            self.accumulate(cfg, step_q64, step_q64 >> 16);
         }
     }
 
     /// Add an energy directly (J; its magnitude is used), for callers that integrate power
     /// themselves. Integer-only, O(1).
     pub fn add_energy(&mut self, cfg: &WearConfig, energy: Joules) -> WearSample {
-        self.accumulate_q64(cfg, u128::from(energy.to_bits().unsigned_abs()) << 48);
+        let step_q64 = u128::from(energy.to_bits().unsigned_abs()) << 48;
+        self.accumulate(cfg, step_q64, (step_q64 >> 16).min(STEP_MAX_Q48));
         self.sample(cfg)
     }
 
-    fn accumulate_q64(&mut self, cfg: &WearConfig, step_q64: u128) {
-        self.energy_q64 = self.energy_q64.saturating_add(step_q64).min(ENERGY_MAX_Q64);
-        let step_q48 = (step_q64 >> 16).min(STEP_MAX_Q48);
+    /// Add a step of energy `step_q64` (Q64 J, at most 2¹¹¹), whose Q48 value capped at the
+    /// single-sample limit is `step_q48` (at most 2⁸⁰).
+    fn accumulate(&mut self, cfg: &WearConfig, step_q64: u128, step_q48: u128) {
+        // The state holds at most ENERGY_MAX_Q64 < 2¹¹¹ and a step is at most 2¹¹¹: the sum
+        // cannot wrap, and the cap keeps the invariant.
+        self.energy_q64 = self.energy_q64.wrapping_add(step_q64).min(ENERGY_MAX_Q64);
 
         // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷ before the shift. From here
         // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
@@ -536,7 +542,7 @@ impl WearState {
             .min(ONE_Q62_U64);
         self.unbedded_q62 = bedding_step(self.unbedded_q62, x);
 
-        self.loss_q96 = self.loss_q96.saturating_add(cfg.loss_q96(step_q48));
+        self.loss_q96 = self.loss_q96.saturating_add(cfg.step_loss_q96(step_q48));
     }
 
     /// The state as a sample, without adding energy (e.g. while no force is known).
