@@ -663,20 +663,26 @@ fn from_q32(t: i64) -> Celsius {
     Celsius::from_bits((t.wrapping_add(1 << 15) >> 16) as i32)
 }
 
-/// One node's update: `x − ⌊(Σ K·θ − Γ·P + 2⁶¹) / 2⁶²⌉`, clamped to the state's range, with
-/// `decay_gain = Γ·P − Σ K·θ` exact (below 2¹²⁷ in magnitude, see the update).
+/// One node's update: `x + ⌊(Γ·P − Σ K·θ + 2⁶¹) / 2⁶²⌋` (the Q62 change rounded to the
+/// nearest Q32 step), clamped to the state's range; `decay_gain = Γ·P − Σ K·θ` is exact (below
+/// 2¹²⁷ in magnitude, see the update).
+// Out of line on 32-bit cores: three copies of the i128 rounding cost more flash than calls.
+#[cfg_attr(not(target_pointer_width = "64"), inline(never))]
 fn node_step(x: i64, decay_gain: i128) -> i64 {
+    const LIMIT: i128 = 1 << 62;
     let delta = decay_gain.wrapping_add(1i128 << 61) >> 62;
-    // |x| < 2⁴⁷: a |delta| beyond 2⁶² leaves the range whichever way it is cut, so saturating
-    // it to i64 (and the sum) before the clamp gives the clamp of the exact sum.
-    let delta = i64::try_from(delta).unwrap_or(if delta < 0 { i64::MIN } else { i64::MAX });
-    x.saturating_add(delta).clamp(T_FLOOR_Q32, T_CEIL_Q32)
+    // |x| < 2⁴⁷: a |delta| beyond 2⁶² leaves the range whichever way it is cut, so limiting it
+    // to ±2⁶² first gives the clamp of the exact sum, and the sum then cannot wrap.
+    #[allow(clippy::cast_possible_truncation)] // within ±2⁶² after the clamp
+    let delta = delta.clamp(-LIMIT, LIMIT) as i64;
+    x.wrapping_add(delta).clamp(T_FLOOR_Q32, T_CEIL_Q32)
 }
 
-/// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_raw`) and P ≤ 2⁶³ give a product below 2¹²⁵.
+/// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_raw`, so the sign cast keeps the value) and
+/// P ≤ 2⁶³ give a product below 2¹²⁵.
 #[inline(always)]
 fn heating(gamma: i64, power: u64) -> i128 {
-    crate::wide::mul_u64(gamma.unsigned_abs(), power).cast_signed()
+    crate::wide::mul_u64(gamma.cast_unsigned(), power).cast_signed()
 }
 
 /// K·θ, exact: |K| < 2⁶² and |θ| < 2⁴⁸ give a product below 2¹¹⁰ in magnitude.
