@@ -167,3 +167,4 @@ pub mod table;
 pub mod thermal;
 pub mod units;
 pub mod wear;
+mod wide;

@@ -248,6 +248,9 @@ pub struct ThermalConfig {
     over_temperature: Celsius,
     flag_hysteresis: Celsius,
     measured: Option<Plausibility>,
+    /// The flag thresholds in Q32 °C, as the update compares them: `[fade, over]`, each
+    /// `(set above, clear below)` with the hysteresis taken off.
+    latch_q32: [(i64, i64); 2],
 }
 
 fn finite(v: f64, field: &'static str) -> Result<f64, ThermalError> {
@@ -488,7 +491,13 @@ impl ThermalConfig {
         {
             return Err(ThermalError::MeasuredLimits);
         }
+        let hysteresis = const_q32(raw.flag_hysteresis);
+        let (fade, over) = (const_q32(raw.fade_warning), const_q32(raw.over_temperature));
         Ok(Self {
+            latch_q32: [
+                (fade, fade.saturating_sub(hysteresis)),
+                (over, over.saturating_sub(hysteresis)),
+            ],
             dt: raw.dt,
             k: raw.k_q62,
             gamma: raw.gamma_q62,
@@ -623,6 +632,10 @@ pub struct ThermalSample {
 }
 
 /// Per-brake thermal state. Temperatures in Q32 °C.
+///
+/// Both temperatures stay within [−2⁴⁷, 2⁴⁷) (−32 768 … 32 768 °C): the model clamps them to
+/// −273 … 32 767 °C and an accepted measurement is a [`Celsius`]; the update and the output
+/// rounding rely on this bound.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct ThermalState {
@@ -637,15 +650,45 @@ fn to_q32(t: Celsius) -> i64 {
     i64::from(t.to_bits()) << 16
 }
 
-fn from_q32(t: i64) -> Celsius {
-    // The state is clamped to the Celsius range, so the rounded value fits; saturate anyway.
-    let bits = t.saturating_add(1 << 15) >> 16;
-    Celsius::from_bits(i32::try_from(bits).unwrap_or(if bits < 0 { i32::MIN } else { i32::MAX }))
+/// [`to_q32`] in a `const` context.
+const fn const_q32(t: Celsius) -> i64 {
+    // i32 → i64 is lossless (`From` is not available in `const`).
+    (t.to_bits() as i64) << 16
 }
 
-fn narrow_q32(v: i128) -> i64 {
-    let c = v.clamp(i128::from(T_FLOOR_Q32), i128::from(T_CEIL_Q32));
-    i64::try_from(c).unwrap_or(0)
+fn from_q32(t: i64) -> Celsius {
+    // A state temperature lies in [−2⁴⁷, 2⁴⁷ − 2¹⁶] (see `ThermalState`), so adding ½ LSB
+    // cannot overflow and the rounded value lies in [−2³¹, 2³¹ − 1]: the cast is exact.
+    #[allow(clippy::cast_possible_truncation)]
+    Celsius::from_bits((t.wrapping_add(1 << 15) >> 16) as i32)
+}
+
+/// One node's update: `x + ⌊(Γ·P − Σ K·θ + 2⁶¹) / 2⁶²⌋` (the Q62 change rounded to the
+/// nearest Q32 step), clamped to the state's range; `decay_gain = Γ·P − Σ K·θ` is exact (below
+/// 2¹²⁷ in magnitude, see the update).
+// Out of line on 32-bit cores: three copies of the i128 rounding cost more flash than calls.
+#[cfg_attr(not(target_pointer_width = "64"), inline(never))]
+fn node_step(x: i64, decay_gain: i128) -> i64 {
+    const LIMIT: i128 = 1 << 62;
+    let delta = decay_gain.wrapping_add(1i128 << 61) >> 62;
+    // |x| < 2⁴⁷: a |delta| beyond 2⁶² leaves the range whichever way it is cut, so limiting it
+    // to ±2⁶² first gives the clamp of the exact sum, and the sum then cannot wrap.
+    #[allow(clippy::cast_possible_truncation)] // within ±2⁶² after the clamp
+    let delta = delta.clamp(-LIMIT, LIMIT) as i64;
+    x.wrapping_add(delta).clamp(T_FLOOR_Q32, T_CEIL_Q32)
+}
+
+/// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_raw`, so the sign cast keeps the value) and
+/// P ≤ 2⁶³ give a product below 2¹²⁵.
+#[inline(always)]
+fn heating(gamma: i64, power: u64) -> i128 {
+    crate::wide::mul_u64(gamma.cast_unsigned(), power).cast_signed()
+}
+
+/// K·θ, exact: |K| < 2⁶² and |θ| < 2⁴⁸ give a product below 2¹¹⁰ in magnitude.
+#[inline(always)]
+fn decay(k: i64, theta: i64) -> i128 {
+    crate::wide::mul_i64(k, theta)
 }
 
 impl ThermalState {
@@ -687,11 +730,13 @@ impl ThermalState {
     }
 
     /// Model rotor temperature (°C).
+    #[inline]
     pub fn rotor_temperature(&self) -> Celsius {
         from_q32(self.rotor_q32)
     }
 
     /// Model lining temperature (°C); the rotor's without a lining node.
+    #[inline]
     pub fn lining_temperature(&self) -> Celsius {
         from_q32(self.lining_q32)
     }
@@ -746,34 +791,54 @@ impl ThermalState {
         measured: Option<Celsius>,
         ambient: Option<Celsius>,
     ) -> ThermalSample {
-        let p = i128::from(power.to_bits().unsigned_abs());
-        let amb = to_q32(ambient.unwrap_or(cfg.ambient));
-        // Temperatures are held within −273 … 32 767 °C in Q32 (below 2⁴⁷ in magnitude), so
-        // each difference is exact in i64 (|θ| < 2⁴⁸).
-        let theta = [
-            self.lining_q32.saturating_sub(amb),
-            self.rotor_q32.saturating_sub(amb),
-        ];
-        let mut next = [self.lining_q32, self.rotor_q32];
-        for ((out, krow), g) in next.iter_mut().zip(cfg.k.iter()).zip(cfg.gamma.iter()) {
-            // |θ| < 2⁴⁸ and |K| < 2⁶² (checked by `from_raw`): each K·θ is a 64 × 64-bit
-            // widening product below 2¹¹⁰, their sum below 2¹¹¹. 0 ≤ Γ < 2⁶² and P < 2⁶⁴:
-            // Γ·P < 2¹²⁶. Nothing comes near the i128 range, so every sum below is exact:
-            // `wrapping_` is the exact result here, states that no overflow is handled, and
-            // has no panic path (and costs far less code than `saturating_` on a 32-bit core).
-            let decay = krow.iter().zip(theta.iter()).fold(0i128, |acc, (k, t)| {
-                acc.wrapping_add(i128::from(*k) * i128::from(*t))
-            });
-            let delta = (i128::from(*g) * p)
-                .wrapping_sub(decay)
-                .wrapping_add(1i128 << 61)
-                >> 62;
-            // |state| < 2⁴⁸ and |delta| < 2⁶⁵.
-            *out = narrow_q32(i128::from(*out).wrapping_add(delta));
+        let (measured_used, measured_rejected) = self.advance(cfg, power, measured, ambient);
+        ThermalSample {
+            lining_temperature: self.lining_temperature(),
+            rotor_temperature: self.rotor_temperature(),
+            fade_warning: self.fade,
+            over_temperature: self.over,
+            measured_used,
+            measured_rejected,
         }
-        let [lining, rotor] = next;
-        self.rotor_q32 = rotor;
-        self.lining_q32 = if cfg.two_node { lining } else { rotor };
+    }
+
+    /// [`ThermalState::update_with_ambient`] without building the sample, for callers that
+    /// read only part of it: `(measured_used, measured_rejected)`.
+    pub(crate) fn advance(
+        &mut self,
+        cfg: &ThermalConfig,
+        power: Watts,
+        measured: Option<Celsius>,
+        ambient: Option<Celsius>,
+    ) -> (bool, bool) {
+        let p = power.to_bits().unsigned_abs();
+        let amb = to_q32(ambient.unwrap_or(cfg.ambient));
+        // Temperatures lie within [−2⁴⁷, 2⁴⁷) in Q32 (see `ThermalState`) and so does the
+        // ambient, so each difference is exact (|θ| < 2⁴⁸). Every product below is exact and
+        // every sum stays far inside i128 (each K·θ below 2¹¹⁰, Γ·P below 2¹²⁵): `wrapping_`
+        // is the exact result here, states that no overflow is handled, and has no panic path.
+        let theta_r = self.rotor_q32.wrapping_sub(amb);
+        let [[k_ll, k_lr], [k_rl, k_rr]] = cfg.k;
+        let [g_l, g_r] = cfg.gamma;
+        if cfg.two_node {
+            let theta_l = self.lining_q32.wrapping_sub(amb);
+            let lining = heating(g_l, p)
+                .wrapping_sub(decay(k_ll, theta_l))
+                .wrapping_sub(decay(k_lr, theta_r));
+            let rotor = heating(g_r, p)
+                .wrapping_sub(decay(k_rl, theta_l))
+                .wrapping_sub(decay(k_rr, theta_r));
+            self.lining_q32 = node_step(self.lining_q32, lining);
+            self.rotor_q32 = node_step(self.rotor_q32, rotor);
+        } else {
+            // A single-node model has no lining coefficients (`from_raw` holds them at zero),
+            // so the rotor row is the whole update.
+            self.rotor_q32 = node_step(
+                self.rotor_q32,
+                heating(g_r, p).wrapping_sub(decay(k_rr, theta_r)),
+            );
+            self.lining_q32 = self.rotor_q32;
+        }
 
         let mut measured_used = false;
         let mut measured_rejected = false;
@@ -799,26 +864,13 @@ impl ThermalState {
         };
 
         let hottest = self.lining_q32.max(self.rotor_q32);
-        let hyst = to_q32(cfg.flag_hysteresis);
-        let latch = |on: bool, threshold: Celsius| {
-            let t = to_q32(threshold);
-            if on {
-                hottest >= t.saturating_sub(hyst)
-            } else {
-                hottest > t
-            }
+        let latch = |on: bool, (set, clear): (i64, i64)| {
+            if on { hottest >= clear } else { hottest > set }
         };
-        self.fade = latch(self.fade, cfg.fade_warning);
-        self.over = latch(self.over, cfg.over_temperature);
-
-        ThermalSample {
-            lining_temperature: from_q32(self.lining_q32),
-            rotor_temperature: from_q32(self.rotor_q32),
-            fade_warning: self.fade,
-            over_temperature: self.over,
-            measured_used,
-            measured_rejected,
-        }
+        let [fade, over] = cfg.latch_q32;
+        self.fade = latch(self.fade, fade);
+        self.over = latch(self.over, over);
+        (measured_used, measured_rejected)
     }
 }
 
@@ -832,6 +884,12 @@ impl ThermalState {
 )]
 mod tests {
     use super::*;
+
+    /// The clamp of the former i128 update, kept as the reference.
+    fn narrow_q32(v: i128) -> i64 {
+        let c = v.clamp(i128::from(T_FLOOR_Q32), i128::from(T_CEIL_Q32));
+        i64::try_from(c).unwrap_or(0)
+    }
 
     pub(crate) fn disc(dt: f64, cooling: Cooling) -> ThermalParams {
         // REFERENCES.md check vector [calc]: 8 kg, c = 460 J/(kg·K); h = 50, A = 0.12 → τ = 613 s.

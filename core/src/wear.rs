@@ -39,6 +39,7 @@
 use core::fmt;
 
 use crate::units::{Joules, Metres, Ratio, Seconds, Watts};
+use crate::wide;
 
 /// 1 · 10⁻⁷ cm³/(N·m), the trade's unit of specific wear rate, in m³/J.
 pub const WEAR_RATE_UNIT: f64 = 1e-13;
@@ -48,8 +49,23 @@ const ONE_Q62_U64: u64 = 1 << 62;
 
 /// `a · b` in Q62 for `a, b ≤ 1` (2⁶²): the product, truncated, is at most 1 again.
 fn mul_q62(a: u64, b: u64) -> u64 {
-    u64::try_from((u128::from(a) * u128::from(b)) >> 62).unwrap_or(u64::MAX)
+    u64::try_from(wide::mul_u64(a, b) >> 62).unwrap_or(u64::MAX)
 }
+/// `1 − b` after a bedding step of `x = dE/E₀` (both Q62, at most 1): `unbedded · g(x)`, with
+/// `g` the fourth-order Taylor polynomial of `exp(−x)`, each power and the product truncated.
+fn bedding_step(unbedded: u64, x: u64) -> u64 {
+    let x2 = mul_q62(x, x);
+    let x3 = mul_q62(x2, x);
+    let x4 = mul_q62(x3, x);
+    // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
+    // Each term is at most 1 in Q62, so the sums stay below 2⁶³. ⌊n/6⌋ = ⌊⌊n/2⌋/3⌋ and
+    // ⌊n/24⌋ = ⌊⌊n/8⌋/3⌋ (a division by 3 is a multiply on a 32-bit core).
+    let g = (ONE_Q62_U64 + x2 / 2 + wide::div3(x4 >> 3))
+        .saturating_sub(x + wide::div3(x3 >> 1))
+        .min(ONE_Q62_U64);
+    mul_q62(unbedded, g).min(unbedded)
+}
+
 /// Energy the state can hold: the top of [`Joules`], in Q64.
 const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
 /// A single sample's energy is capped at 2³² J (4.3 GJ) before the wear product.
@@ -165,6 +181,8 @@ pub struct WearConfig {
     wear_shift: u32,
     initial_thickness: Metres,
     minimum_thickness: Metres,
+    /// `initial_thickness − minimum_thickness` (> 0): the loss at which the lining is worn out.
+    worn_loss: Metres,
 }
 
 fn finite(v: f64, field: &'static str) -> Result<f64, WearError> {
@@ -292,6 +310,8 @@ impl WearConfig {
             wear_shift: raw.wear_shift,
             initial_thickness: raw.initial_thickness,
             minimum_thickness: raw.minimum_thickness,
+            // 0 ≤ min < initial: the difference is positive and cannot overflow.
+            worn_loss: Metres::from_bits(initial.wrapping_sub(min)),
         })
     }
 
@@ -328,12 +348,16 @@ impl WearConfig {
 
     /// Thickness loss for an energy in Q48 J: k·E/A, truncated to Q96 m.
     fn loss_q96(&self, energy_q48: u128) -> u128 {
-        // Callers pass at most the state's energy (below 2⁹⁶ in Q48) and the mantissa is at
-        // most 2³², so the product is below 2¹²⁸: a widening multiply of the 96-bit energy by
-        // the 64-bit mantissa, exact.
-        (energy_q48.min(ENERGY_MAX_Q64 >> 16) * u128::from(self.wear_mant))
-            .checked_shr(self.wear_shift)
-            .unwrap_or(0)
+        // The state's energy is below 2⁹⁶ in Q48; the cap only states it.
+        self.step_loss_q96(energy_q48.min(ENERGY_MAX_Q64 >> 16))
+    }
+
+    /// [`WearConfig::loss_q96`] for an energy below 2⁹⁶ (Q48 J).
+    fn step_loss_q96(&self, energy_q48: u128) -> u128 {
+        // The energy is below 2⁹⁶ and the mantissa at most 2³², so the product is below 2¹²⁸:
+        // a widening multiply of the 96-bit energy by the 33-bit mantissa, exact. The shift is
+        // at most 83 (`from_raw`), so it never wraps.
+        wide::mul_u96(energy_q48, u128::from(self.wear_mant)).wrapping_shr(self.wear_shift)
     }
 }
 
@@ -441,18 +465,22 @@ impl WearState {
     }
 
     /// Energy dissipated (J).
+    #[inline]
     pub fn energy(&self) -> Joules {
         // ≤ ENERGY_MAX_Q64, so the shifted value fits i64.
         Joules::from_bits(i64::try_from(self.energy_q64 >> 48).unwrap_or(i64::MAX))
     }
 
     /// Bedding 0 … 1.
+    #[inline]
     pub fn bedding(&self) -> Ratio {
-        let b = (ONE_Q62.saturating_sub(u128::from(self.unbedded_q62))) >> 32;
+        // At most 2⁶² >> 32 = 2³⁰: the conversion cannot fail.
+        let b = ONE_Q62_U64.saturating_sub(self.unbedded_q62) >> 32;
         Ratio::from_bits(i32::try_from(b).unwrap_or(1 << 30))
     }
 
     /// Thickness lost (m).
+    #[inline]
     pub fn thickness_loss(&self) -> Metres {
         Metres::from_bits(i32::try_from(self.loss_q96 >> 72).unwrap_or(i32::MAX))
     }
@@ -471,46 +499,50 @@ impl WearState {
     /// # Ok::<(), clampwise_core::wear::WearError>(())
     /// ```
     pub fn update(&mut self, cfg: &WearConfig, power: Watts) -> WearSample {
+        self.advance(cfg, power);
+        self.sample(cfg)
+    }
+
+    /// [`WearState::update`] without building the sample, for callers that read only part of
+    /// it.
+    pub(crate) fn advance(&mut self, cfg: &WearConfig, power: Watts) {
         // |P| (Q32) · dt (Q63) ≤ 2¹²⁷: Q95 → Q64.
-        let step_q64 = (u128::from(power.to_bits().unsigned_abs()) * u128::from(cfg.dt_q63)) >> 31;
+        let step_q64 = wide::mul_u64(power.to_bits().unsigned_abs(), cfg.dt_q63) >> 31;
         // No energy (holding, released without drag): nothing moves — the energy adds 0, the
         // bedding factor is exactly 1 and the loss adds 0 — so skip the polynomial.
         if step_q64 != 0 {
-            self.accumulate_q64(cfg, step_q64);
+            // At most 2⁹⁵ >> 16 < 2⁸⁰: a sample's energy is inside the single-sample cap.
+            self.accumulate(cfg, step_q64, step_q64 >> 16);
         }
-        self.sample(cfg)
     }
 
     /// Add an energy directly (J; its magnitude is used), for callers that integrate power
     /// themselves. Integer-only, O(1).
     pub fn add_energy(&mut self, cfg: &WearConfig, energy: Joules) -> WearSample {
-        self.accumulate_q64(cfg, u128::from(energy.to_bits().unsigned_abs()) << 48);
+        let step_q64 = u128::from(energy.to_bits().unsigned_abs()) << 48;
+        self.accumulate(cfg, step_q64, (step_q64 >> 16).min(STEP_MAX_Q48));
         self.sample(cfg)
     }
 
-    fn accumulate_q64(&mut self, cfg: &WearConfig, step_q64: u128) {
-        self.energy_q64 = self.energy_q64.saturating_add(step_q64).min(ENERGY_MAX_Q64);
-        let step_q48 = (step_q64 >> 16).min(STEP_MAX_Q48);
+    /// Add a step of energy `step_q64` (Q64 J, at most 2¹¹¹), whose Q48 value capped at the
+    /// single-sample limit is `step_q48` (at most 2⁸⁰).
+    fn accumulate(&mut self, cfg: &WearConfig, step_q64: u128, step_q48: u128) {
+        // The state holds at most ENERGY_MAX_Q64 < 2¹¹¹ and a step is at most 2¹¹¹: the sum
+        // cannot wrap, and the cap keeps the invariant.
+        self.energy_q64 = self.energy_q64.wrapping_add(step_q64).min(ENERGY_MAX_Q64);
 
         // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷ before the shift. From here
         // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
         // products (far less code on a 32-bit core than u128 × u128; the same values).
         // The product is at most e0_q48 · bedding_recip, which `WearConfig::from_raw` holds
-        // to 2¹²⁷ within 2⁷⁸: exact in u128.
-        let x = u64::try_from((step_q48.min(cfg.e0_q48) * cfg.bedding_recip) >> 65)
+        // to 2¹²⁷ within 2⁷⁸: exact in u128, and both factors are below 2⁹⁶ (e0_q48 < 2⁹²,
+        // so bedding_recip < 2⁸⁰), which is all `mul_u96` needs.
+        let x = u64::try_from(wide::mul_u96(step_q48.min(cfg.e0_q48), cfg.bedding_recip) >> 65)
             .unwrap_or(u64::MAX)
             .min(ONE_Q62_U64);
-        let x2 = mul_q62(x, x);
-        let x3 = mul_q62(x2, x);
-        let x4 = mul_q62(x3, x);
-        // exp(−x) ≈ 1 − x + x²/2 − x³/6 + x⁴/24, in [3/8, 1] and decreasing for x ∈ [0, 1].
-        // Each term is at most 1 in Q62, so the sums stay below 2⁶³.
-        let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24)
-            .saturating_sub(x + x3 / 6)
-            .min(ONE_Q62_U64);
-        self.unbedded_q62 = mul_q62(self.unbedded_q62, g).min(self.unbedded_q62);
+        self.unbedded_q62 = bedding_step(self.unbedded_q62, x);
 
-        self.loss_q96 = self.loss_q96.saturating_add(cfg.loss_q96(step_q48));
+        self.loss_q96 = self.loss_q96.saturating_add(cfg.step_loss_q96(step_q48));
     }
 
     /// The state as a sample, without adding energy (e.g. while no force is known).
@@ -522,14 +554,18 @@ impl WearState {
             bedding: self.bedding(),
             thickness_loss: loss,
             remaining_thickness: remaining,
-            worn_out: remaining <= cfg.minimum_thickness,
+            worn_out: loss >= cfg.worn_loss,
         }
     }
 
     /// Whether the remaining thickness is at or below the minimum (see
     /// [`WearSample::worn_out`]).
+    #[inline]
     pub fn worn_out(&self, cfg: &WearConfig) -> bool {
-        Self::remaining(cfg, self.thickness_loss()) <= cfg.minimum_thickness
+        // The loss is not negative and 0 ≤ minimum < initial, so `max(initial − loss, 0) ≤
+        // minimum` (the remaining thickness at or below the limit) is `loss ≥ initial −
+        // minimum`.
+        self.thickness_loss() >= cfg.worn_loss
     }
 
     fn remaining(cfg: &WearConfig, loss: Metres) -> Metres {
@@ -764,7 +800,8 @@ mod tests {
     }
 
     proptest! {
-        // The u64 polynomial gives the very bits of the u128 one it replaced.
+        // The u64 polynomial (with its divisions by 3) gives the very bits of the u128 one it
+        // replaced.
         #[test]
         fn bedding_step_same_bits_as_u128(x in 0u64..=(1 << 62), unbedded in 0u64..=(1 << 62)) {
             let wide = {
@@ -775,11 +812,7 @@ mod tests {
                 let g = (ONE_Q62 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62);
                 u64::try_from((u128::from(unbedded) * g) >> 62).unwrap_or(0).min(unbedded)
             };
-            let x2 = mul_q62(x, x);
-            let x3 = mul_q62(x2, x);
-            let x4 = mul_q62(x3, x);
-            let g = (ONE_Q62_U64 + x2 / 2 + x4 / 24).saturating_sub(x + x3 / 6).min(ONE_Q62_U64);
-            prop_assert_eq!(mul_q62(unbedded, g).min(unbedded), wide);
+            prop_assert_eq!(bedding_step(unbedded, x), wide);
         }
 
         // Bedding never decreases, never exceeds 1, and follows 1 − exp(−E/E₀) (the solution

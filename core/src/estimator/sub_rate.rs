@@ -64,6 +64,7 @@ impl SubRate {
 
     /// Add this sample's `power` (W, ≥ 0); on every `1 << shift`-th sample advance `thermal`
     /// and `wear` with the sum.
+    #[inline(always)]
     pub(crate) fn step(
         &mut self,
         shift: u8,
@@ -75,34 +76,50 @@ impl SubRate {
     ) -> SlowSample {
         let (sum, overflow) = self.pending.overflowing_add(power.max(Watts::ZERO));
         let sum = if overflow { Watts::MAX } else { sum };
-        self.samples = self.samples.saturating_add(1);
-        if u32::from(self.samples) < 1u32 << shift {
+        let samples = self.samples.saturating_add(1);
+        let measured_rejected = if u32::from(samples) < 1u32 << shift {
             self.pending = sum;
-            return SlowSample {
-                lining_temperature: thermal.lining_temperature(),
-                fade_warning: thermal.fade_warning(),
-                over_temperature: thermal.over_temperature(),
-                measured_rejected: false,
-                bedding: wear.bedding(),
-                thickness_loss: wear.thickness_loss(),
-                worn_out: wear.worn_out(wear_cfg),
-                saturated: overflow,
-            };
-        }
-        // The mean over the interval, rounded down (exact for one sample).
-        let mean = Watts::from_bits(sum.to_bits() >> shift);
-        *self = Self::NEW;
-        let t = thermal.update_with_ambient(thermal_cfg, mean, measured, ambient);
-        let w = wear.update(wear_cfg, sum);
+            self.samples = samples;
+            false
+        } else {
+            *self = Self::NEW;
+            advance(
+                shift,
+                (thermal, thermal_cfg),
+                (wear, wear_cfg),
+                sum,
+                measured,
+                ambient,
+            )
+        };
         SlowSample {
-            lining_temperature: t.lining_temperature,
-            fade_warning: t.fade_warning,
-            over_temperature: t.over_temperature,
-            measured_rejected: t.measured_rejected,
-            bedding: w.bedding,
-            thickness_loss: w.thickness_loss,
-            worn_out: w.worn_out,
+            lining_temperature: thermal.lining_temperature(),
+            fade_warning: thermal.fade_warning(),
+            over_temperature: thermal.over_temperature(),
+            measured_rejected,
+            bedding: wear.bedding(),
+            thickness_loss: wear.thickness_loss(),
+            worn_out: wear.worn_out(wear_cfg),
             saturated: overflow,
         }
     }
+}
+
+/// The update sample: advance `thermal` with the mean of the power sum `sum` over `1 << shift`
+/// samples and `wear` with the sum; whether a measured temperature was rejected. Kept out of
+/// line so the samples in between, inlined into the step, carry none of its register load.
+#[inline(never)]
+fn advance(
+    shift: u8,
+    (thermal, thermal_cfg): (&mut ThermalState, &ThermalConfig),
+    (wear, wear_cfg): (&mut WearState, &WearConfig),
+    sum: Watts,
+    measured: Option<Celsius>,
+    ambient: Option<Celsius>,
+) -> bool {
+    // The mean over the interval, rounded down (exact for one sample).
+    let mean = Watts::from_bits(sum.to_bits() >> shift);
+    let (_, rejected) = thermal.advance(thermal_cfg, mean, measured, ambient);
+    wear.advance(wear_cfg, sum);
+    rejected
 }
