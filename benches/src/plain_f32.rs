@@ -311,7 +311,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             no_load_drag: f.no_load_drag as f32,
             dt: p.wear.dt as f32,
             #[allow(clippy::cast_sign_loss)]
-            thermal_wear_every: (t.dt / p.wear.dt).round().max(1.0) as u32,
+            thermal_wear_every: libm::round(t.dt / p.wear.dt).max(1.0) as u32,
             thermal_dt: t.dt as f32,
             c_rotor: c_rotor as f32,
             c_lining: t.lining.map(|l| (l.mass * l.specific_heat) as f32),
