@@ -18,9 +18,11 @@
 //!   up to n − 1 samples; a measured lining or ambient temperature is taken at the update
 //!   samples only (so only they can report it rejected).
 //!
-//! Cost: n − 1 of n samples add one power and read the states out; the n-th carries the whole
-//! thermal and wear update, so the worst-case step is the same as with n = 1 and only the mean
-//! falls.
+//! Cost: n − 1 of n samples add one power and read the states out (inlined into the step, about
+//! 20 instructions on x86-64); the n-th carries the whole thermal and wear update (out of line:
+//! about 280 instructions on x86-64 with a lining node and 210 without; about 2 360 on ARMv6-M
+//! for the example firmware's single-node model), so the worst-case step is the same as with
+//! n = 1 and only the mean falls.
 
 use crate::thermal::{ThermalConfig, ThermalState};
 use crate::units::{Celsius, Metres, Ratio, Watts};
