@@ -127,10 +127,8 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     /// temperatures are those of the last sub-rate update.
     pub fn save(&self, sequence: u32) -> [u8; RECORD_LEN] {
         let mut wear = self.state.wear;
-        let pending = self.state.sub_rate.pending();
-        if pending > Watts::ZERO {
-            wear.update(&self.cfg.wear, pending);
-        }
+        // No energy pending leaves the wear state as it is (`advance` skips it).
+        wear.advance(&self.cfg.wear, self.state.sub_rate.pending());
         let (factor, covariance) = self.state.adapt.map_or((Ratio::ONE, 0), |a| {
             (a.factor(), i64::from(a.covariance().to_bits()))
         });
@@ -246,10 +244,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         if power.saturated || slow.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
-        flags.set(Flags::FADE_WARNING, slow.fade_warning);
-        flags.set(Flags::OVER_TEMPERATURE, slow.over_temperature);
-        flags.set(Flags::TEMPERATURE_REJECTED, slow.measured_rejected);
-        flags.set(Flags::LINING_WORN, slow.worn_out);
+        slow.set_flags(&mut flags);
 
         // 6. Adaptation: learn k only from clean slipping samples.
         let gate = AdaptGate {
@@ -316,11 +311,8 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             inputs.lining_temperature,
             inputs.ambient_temperature,
         );
-        flags.set(Flags::FADE_WARNING, slow.fade_warning);
-        flags.set(Flags::OVER_TEMPERATURE, slow.over_temperature);
-        flags.set(Flags::TEMPERATURE_REJECTED, slow.measured_rejected);
+        slow.set_flags(&mut flags);
         flags.insert(Flags::ADAPTATION_FROZEN);
-        flags.set(Flags::LINING_WORN, slow.worn_out);
         Estimate {
             torque: None,
             holding_capacity: None,

@@ -24,6 +24,7 @@
 //! for the example firmware's single-node model), so the worst-case step is the same as with
 //! n = 1 and only the mean falls.
 
+use crate::flags::Flags;
 use crate::thermal::{ThermalConfig, ThermalState};
 use crate::units::{Celsius, Metres, Ratio, Watts};
 use crate::wear::{WearConfig, WearState};
@@ -50,6 +51,16 @@ pub(crate) struct SlowSample {
     pub worn_out: bool,
     /// The power sum reached the top of [`Watts`].
     pub saturated: bool,
+}
+
+impl SlowSample {
+    /// Set the thermal and wear flags of an estimate from this sample.
+    pub(crate) fn set_flags(&self, flags: &mut Flags) {
+        flags.set(Flags::FADE_WARNING, self.fade_warning);
+        flags.set(Flags::OVER_TEMPERATURE, self.over_temperature);
+        flags.set(Flags::TEMPERATURE_REJECTED, self.measured_rejected);
+        flags.set(Flags::LINING_WORN, self.worn_out);
+    }
 }
 
 impl SubRate {
