@@ -5,6 +5,10 @@
 //! [pub: JCGM 100:2008 (GUM) §5.1.2, law of propagation of uncertainty for a product of
 //! uncorrelated factors, first order]. The configuration chooses; the default is worst case,
 //! the conservative reading for a brake.
+//!
+//! Arithmetic: δF/F in Q30 (rounded down, 10⁻⁹); the worst-case sum exact; the root-sum-square
+//! rounded up, at most 1.7·10⁻⁴ of itself above the exact root (`root_sum_square_up`); the
+//! product with the torque rounded down (1 LSB, 0.25 mN·m). All in 32- and 64-bit integers.
 
 use crate::units::{NewtonMetres, Newtons, Ratio};
 
@@ -30,38 +34,30 @@ fn relative_force(force: Newtons, force_uncertainty: Newtons) -> i64 {
     ((u << 30) / f).min(i64::from(Ratio::MAX.to_bits()))
 }
 
-/// ⌊√n⌋. On 64-bit hosts `u64::isqrt` from `core` (a table-seeded Karatsuba root: a few
-/// well-predicted steps, where the digit loop below costs about 100 ns in mispredicted
-/// branches); elsewhere the digit loop, a fraction of that code on a core without a hardware
-/// divider or a 64-bit multiply. Both give the same value for every input (checked by the
-/// tests below), so results stay bit-identical across targets.
-#[cfg(target_pointer_width = "64")]
-fn isqrt(n: u64) -> u64 {
-    n.isqrt()
-}
-
-/// ⌊√n⌋, digit by digit (two bits per step, 32 steps).
-#[cfg(not(target_pointer_width = "64"))]
-fn isqrt(n: u64) -> u64 {
-    isqrt_digits(n)
-}
-
-/// ⌊√n⌋, digit by digit (two bits per step, 32 steps).
-#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
-fn isqrt_digits(n: u64) -> u64 {
-    let mut rem = n;
-    let mut root = 0u64;
-    let mut bit = 1u64 << 62;
-    while bit != 0 {
-        if rem >= root + bit {
-            rem -= root + bit;
-            root = (root >> 1) + bit;
-        } else {
-            root >>= 1;
-        }
-        bit >>= 2;
-    }
-    root
+/// √(a² + b² + c²) (Q30 relative tolerances, below 2³¹ here; any `u32` works), rounded **up**,
+/// in the same scale.
+///
+/// In 32 bits on every target: the three terms are shifted right (rounding up) until the largest
+/// has at most 15 bits, so each square is at most 2³⁰ and their sum below 2³², then the root of
+/// the sum is rounded up and shifted back. Every rounding goes up, so the result is never below
+/// the exact root of the inputs, and it is above by at most (√3 + 1) units of the shift, that is
+/// 1.7·10⁻⁴ of the root when a shift is needed (the largest term keeps at least 2¹⁴ units), and
+/// at most 1 LSB (10⁻⁹) otherwise. A ± bound rounded up stays a bound. The 32-bit form costs a
+/// few dozen instructions where a 64-bit root costs about 1 200 on a Cortex-M0+ (no long
+/// multiply), and the same value comes out on every target.
+fn root_sum_square_up(a: u32, b: u32, c: u32) -> u64 {
+    let largest = a.max(b).max(c);
+    // largest < 2^(32 − leading_zeros); after the shift it is below 2¹⁵, and ≤ 2¹⁵ rounded up.
+    let shift = 17u32.saturating_sub(largest.leading_zeros());
+    let below = (1u32 << shift) - 1;
+    let up = |v: u32| (v >> shift) + u32::from(v & below != 0);
+    let (a, b, c) = (up(a), up(b), up(c));
+    // Each term ≤ 2¹⁵: each square ≤ 2³⁰, the sum ≤ 3·2³⁰ < 2³², exact in u32.
+    let sum = a * a + b * b + c * c;
+    let root = sum.isqrt();
+    // root ≤ 55 427, so root² and (root + 1)² fit u32.
+    let root = root + u32::from(root * root < sum);
+    u64::from(root) << shift
 }
 
 /// ± uncertainty of `magnitude` (a torque or capacity) in N·m.
@@ -76,18 +72,17 @@ pub(crate) fn torque_uncertainty(
     let dmu = i64::from(mu_tolerance.to_bits()).abs();
     let dr = i64::from(radius_tolerance.to_bits()).abs();
     let df = relative_force(force, force_uncertainty);
-    let rel_q30: i64 = match combination {
-        Combination::WorstCase => dmu + df + dr,
+    let rel_q30: u64 = match combination {
+        // Each term in [0, 2³¹]: the sum is below 2³³.
+        Combination::WorstCase => dmu.unsigned_abs() + df.unsigned_abs() + dr.unsigned_abs(),
         Combination::RootSumSquare => {
-            // Each term < 2³¹, squares < 2⁶², sum of three < 2⁶⁴ as u64; isqrt → Q30.
-            let sq = |v: i64| v.unsigned_abs().saturating_mul(v.unsigned_abs());
-            let sum = sq(dmu).saturating_add(sq(df)).saturating_add(sq(dr));
-            i64::try_from(isqrt(sum)).unwrap_or(i64::MAX)
+            let q30 = |v: i64| u32::try_from(v).unwrap_or(u32::MAX >> 1);
+            root_sum_square_up(q30(dmu), q30(df), q30(dr))
         }
     };
-    let t = i64::from(magnitude.to_bits()).abs();
-    // t < 2³¹, rel < 2³³ → product < 2⁶⁴: use i128 to be exact, then narrow saturating.
-    let bits = (i128::from(t) * i128::from(rel_q30)) >> 30;
+    // t ≤ 2³¹ and rel < 3·2³¹, so the product is below 2⁶⁴: exact in u64.
+    let t = i64::from(magnitude.to_bits()).unsigned_abs();
+    let bits = (t * rel_q30) >> 30;
     NewtonMetres::from_bits(i32::try_from(bits).unwrap_or(i32::MAX))
 }
 
@@ -96,38 +91,61 @@ mod tests {
     use super::*;
     use proptest::prelude::*;
 
+    /// The exact root, rounded up: `u128::isqrt` from Rust's `core` as the reference.
+    fn exact_root_up(a: u32, b: u32, c: u32) -> u128 {
+        let sum = [a, b, c]
+            .iter()
+            .map(|&v| u128::from(v) * u128::from(v))
+            .sum::<u128>();
+        let r = sum.isqrt();
+        if r * r < sum { r + 1 } else { r }
+    }
+
+    /// Never below the exact root; above it by at most 1.7·10⁻⁴ of it, or 1 LSB when small.
+    fn check_root(a: u32, b: u32, c: u32) -> Result<(), TestCaseError> {
+        let got = u128::from(root_sum_square_up(a, b, c));
+        let exact = exact_root_up(a, b, c);
+        prop_assert!(got >= exact, "{a} {b} {c}: {got} < {exact}");
+        let excess = got - exact;
+        prop_assert!(
+            excess <= 1 || excess * 10_000 <= exact * 17 / 10,
+            "{a} {b} {c}: {got} vs {exact}"
+        );
+        Ok(())
+    }
+
     proptest! {
-        // Reference: the standard library's integer square root.
         #[test]
-        fn isqrt_is_std_isqrt(n in any::<u64>()) {
-            prop_assert_eq!(isqrt_digits(n), n.isqrt());
-            prop_assert_eq!(isqrt(n), n.isqrt());
+        fn root_sum_square_is_a_tight_upper_bound(a in any::<u32>(), b in any::<u32>(), c in any::<u32>()) {
+            check_root(a, b, c)?;
+        }
+
+        // Relative tolerances as configured: below 2 (2³¹ in Q30), most of them small.
+        #[test]
+        fn root_sum_square_of_small_tolerances(a in 0u32..(1 << 24), b in 0u32..(1 << 31), c in 0u32..(1 << 16)) {
+            check_root(a, b, c)?;
+            check_root(c, a, b)?;
         }
     }
 
     #[test]
-    fn isqrt_at_the_edges() {
-        for n in [
-            0u64,
-            1,
-            2,
-            3,
-            4,
-            15,
-            16,
-            17,
-            u64::MAX,
-            u64::MAX - 1,
-            1 << 62,
-            (1 << 32) - 1,
+    fn root_sum_square_at_the_edges() {
+        for (a, b, c) in [
+            (0, 0, 0),
+            (1, 0, 0),
+            (3, 4, 0),
+            ((1 << 15) - 1, 0, 0),
+            (1 << 15, 1 << 15, 1 << 15),
+            ((1 << 16) - 1, 1, 1),
+            (1 << 30, 1 << 30, 1 << 30),
+            (u32::MAX >> 1, u32::MAX >> 1, u32::MAX >> 1),
+            (u32::MAX, u32::MAX, u32::MAX),
         ] {
-            assert_eq!(isqrt(n), n.isqrt(), "{n}");
-            assert_eq!(isqrt_digits(n), n.isqrt(), "{n}");
+            check_root(a, b, c).unwrap();
         }
-        for r in [1u64, 2, 0xFFFF_FFFF, 3_037_000_499] {
-            assert_eq!(isqrt(r * r), r);
-            assert_eq!(isqrt(r * r - 1), r - 1);
-        }
+        // [calc] 3-4-5 and 2-3-6-7: exact roots come out exact.
+        assert_eq!(root_sum_square_up(3 << 20, 4 << 20, 0), 5 << 20);
+        assert_eq!(root_sum_square_up(2 << 25, 3 << 25, 6 << 25), 7 << 25);
     }
 
     #[test]
@@ -158,7 +176,10 @@ mod tests {
             args.4,
             Combination::RootSumSquare,
         );
-        assert!((rss.to_num::<f64>() - 201.246).abs() < 0.01, "{rss}");
+        // The root is rounded up (at most 1.7·10⁻⁴ of it, 0.034 N·m here) and the product
+        // rounded down (at most 1 LSB, 0.25 mN·m).
+        let excess = rss.to_num::<f64>() - 201.246;
+        assert!((-0.001..0.035).contains(&excess), "{rss}");
     }
 
     #[test]
