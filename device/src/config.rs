@@ -154,6 +154,39 @@ pub struct Contact {
     pub radius_tolerance_ratio: f64,
 }
 
+impl Contact {
+    /// A contact of `shape` on `faces` interfaces with no dimension set and no radius
+    /// tolerance: the start of one built in code rather than read from TOML. Set the keys the
+    /// shape needs; building the device names any that is missing.
+    ///
+    /// ```
+    /// use clampwise_device::config::{Contact, Shape};
+    /// use clampwise_device::build_core::contact_radii;
+    ///
+    /// let mut c = Contact::of_shape(Shape::Annulus, 2);
+    /// c.inner_radius_m = Some(0.06);
+    /// c.outer_radius_m = Some(0.10);
+    /// let (_, uniform_wear) = contact_radii(&c).unwrap();
+    /// // [pub: Shigley ch. 16] r_e = (Ro + Ri)/2 under uniform wear.
+    /// assert!((uniform_wear - 0.080).abs() < 1e-12);
+    /// ```
+    pub fn of_shape(shape: Shape, faces: u32) -> Self {
+        Self {
+            shape,
+            faces,
+            inner_radius_m: None,
+            outer_radius_m: None,
+            sector_angle_deg: None,
+            pad_radius_m: None,
+            pad_centre_radius_m: None,
+            button_model: None,
+            vertices_m: None,
+            half_angle_deg: None,
+            radius_tolerance_ratio: 0.0,
+        }
+    }
+}
+
 /// `contact.button_model`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "snake_case")]

@@ -181,19 +181,7 @@ mod tests {
     use approx::assert_relative_eq;
 
     fn contact(shape: Shape) -> Contact {
-        Contact {
-            shape,
-            faces: 1,
-            inner_radius_m: None,
-            outer_radius_m: None,
-            sector_angle_deg: None,
-            pad_radius_m: None,
-            pad_centre_radius_m: None,
-            button_model: None,
-            vertices_m: None,
-            half_angle_deg: None,
-            radius_tolerance_ratio: 0.0,
-        }
+        Contact::of_shape(shape, 1)
     }
 
     #[test]
