@@ -132,15 +132,11 @@ impl TemperatureCompensation {
         // assertion (panic path) on the bounds' order in the per-sample code.
         let dt = i64::from(t.max(lo).min(hi)) - i64::from(self.reference.to_bits());
         // |span| ≤ 2³¹ and |ΔT| < 2³²: exact in i64.
-        #[allow(clippy::cast_possible_truncation)] // |span · ΔT| < 2⁶³, shown above
-        let span = (wide::mul_i64_i32(dt, self.span_per_kelvin.to_bits()) as i64 + (1 << 15)) >> 16;
+        let span = (i64::from(self.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16;
         // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
         let zero_per_kelvin = self.zero_per_kelvin.to_bits();
-        let product = match i32::try_from(dt) {
-            // A temperature span within ±2¹⁵ K (every one in practice): a 64 × 32-bit product.
-            Ok(dt) => wide::mul_i64_i32(zero_per_kelvin, dt),
-            Err(_) => wide::mul_i64(zero_per_kelvin, dt),
-        };
+        // ΔT within ±2¹⁵ K (every one in practice) fits i32.
+        let product = wide::mul_i64_mostly_i32(zero_per_kelvin, dt);
         #[allow(clippy::cast_possible_truncation)]
         let zero = ((product + (1 << 15)) >> 16) as i64;
         Compensation {
@@ -329,11 +325,8 @@ fn compensated_q8(counts: i32, gain: i64, offset: i32, c: &Compensation) -> i64 
     }
     // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
     #[allow(clippy::cast_possible_truncation)]
-    let product = match i32::try_from(c.factor) {
-        // Always, for validated coefficients: a 64 × 32-bit product.
-        Ok(factor) => wide::mul_i64_i32(line, factor),
-        Err(_) => wide::mul_i64(line, c.factor),
-    };
+    // A validated factor fits 31 bits (above).
+    let product = wide::mul_i64_mostly_i32(line, c.factor);
     #[allow(clippy::cast_possible_truncation)]
     let scaled = ((product + (1 << 29)) >> 30) as i64;
     scaled.wrapping_add(c.zero).wrapping_add(1 << 23) >> 24
