@@ -43,7 +43,7 @@ impl ConstDivisor {
     pub(crate) fn div(self, n: u64) -> u64 {
         // The high half of a 64 × 64-bit product: one instruction on a 64-bit core.
         #[allow(clippy::cast_possible_truncation)]
-        let estimate = ((u128::from(n) * u128::from(self.magic)) >> 64) as u64 >> self.shift;
+        let estimate = (crate::wide::mul_u64(n, self.magic) >> 64) as u64 >> self.shift;
         // estimate ∈ {q − 1, q}: q̂·d ≤ n, and the remainder is below 2d.
         let remainder = n.wrapping_sub(estimate.wrapping_mul(self.divisor));
         estimate + u64::from(remainder >= self.divisor)

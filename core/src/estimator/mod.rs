@@ -41,7 +41,7 @@ use crate::units::{NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
 use crate::wear::WearState;
 
 use sub_rate::SubRate;
-use torque::{dissipated_power, friction_torque};
+use torque::{dissipated_power, friction_torque, ratio_product};
 use uncertainty::torque_uncertainty;
 
 /// Everything that persists between samples.
@@ -228,7 +228,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
                 NewtonMetres::ZERO,
             )
         };
-        let mu_used = mu.saturating_mul(correction);
+        let mu_used = ratio_product(mu, correction);
 
         // 5. Heat and wear from this sample's dissipated power (friction + drag).
         let heat_torque = friction_power_torque.saturating_add(fric.drag_torque);

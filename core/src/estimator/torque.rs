@@ -5,6 +5,7 @@
 //! product is within ½ LSB (0.12 mN·m) of the exact product of the fixed-point inputs.
 
 use crate::units::{Metres, NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
+use crate::wide;
 
 /// A fixed-point result and whether it saturated at the limit of its format.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -35,7 +36,7 @@ pub(crate) fn friction_torque(
     // 32-bit core).
     let ratios = i64::from(correction.to_bits()) * i64::from(mu.to_bits());
     let moment = i64::from(force.to_bits()) * i64::from(lever_arm.to_bits());
-    let q92 = i128::from(ratios) * i128::from(moment);
+    let q92 = wide::mul_i64(ratios, moment);
     // To Q12 (NewtonMetres) first, then the face count: |Q12 value| < 2⁴⁴, · 255 < 2⁵², so
     // both fit i64.
     let per_face = i64::try_from(q92.saturating_add(1i128 << 79) >> 80).unwrap_or(i64::MAX);
@@ -44,6 +45,17 @@ pub(crate) fn friction_torque(
         value: NewtonMetres::from_bits(bits),
         saturated,
     }
+}
+
+/// μ · k (Q30 · Q30 → Q30), rounded down and saturated: the very value of
+/// `Ratio::saturating_mul`, which widens to an overflow-checked 64-bit multiply (on Cortex-M0
+/// four library multiplies); here one exact 32 × 32 → 64-bit product (one library multiply
+/// there). ⌊a·b / 2³⁰⌋ lies within i32
+/// exactly when `a · (b·2²)` (the `fixed` crate's form) does not overflow i64, and an overflow
+/// has the sign of the product.
+pub(crate) fn ratio_product(a: Ratio, b: Ratio) -> Ratio {
+    let q30 = (i64::from(a.to_bits()) * i64::from(b.to_bits())) >> 30;
+    Ratio::from_bits(i32::try_from(q30).unwrap_or(if q30 < 0 { i32::MIN } else { i32::MAX }))
 }
 
 /// |T · v| in W, the power dissipated in the contact.
@@ -87,6 +99,27 @@ mod tests {
     }
 
     #[test]
+    fn ratio_product_edges() {
+        // Reference: the `fixed` crate's saturating multiply.
+        let edges = [
+            i32::MIN,
+            i32::MIN + 1,
+            -(1 << 30),
+            -1,
+            0,
+            1,
+            1 << 30,
+            1 << 29,
+            i32::MAX,
+        ];
+        for a in edges.map(Ratio::from_bits) {
+            for b in edges.map(Ratio::from_bits) {
+                assert_eq!(ratio_product(a, b), a.saturating_mul(b), "{a} {b}");
+            }
+        }
+    }
+
+    #[test]
     fn saturates_and_says_so() {
         let t = friction_torque(255, Ratio::MAX, Ratio::MAX, Newtons::MAX, Metres::MAX);
         assert!(t.saturated);
@@ -118,6 +151,13 @@ mod tests {
             let q32 = (i128::from(t) * i128::from(v)).unsigned_abs() << 4;
             let p = dissipated_power(NewtonMetres::from_bits(t), RadPerSec::from_bits(v));
             prop_assert_eq!(i64::try_from(q32).ok(), (!p.saturated).then_some(p.value.to_bits()));
+        }
+
+        // Reference: the `fixed` crate's saturating multiply, over all inputs.
+        #[test]
+        fn ratio_product_same_as_fixed(a in any::<i32>(), b in any::<i32>()) {
+            let (a, b) = (Ratio::from_bits(a), Ratio::from_bits(b));
+            prop_assert_eq!(ratio_product(a, b), a.saturating_mul(b));
         }
 
         // Within ½ LSB of the f64 product of the same fixed-point inputs (exact rounding).

@@ -37,6 +37,7 @@
 use super::error::{Problem, SensorError};
 use super::{NewtonsPerCount, NewtonsPerKelvin, PerKelvin};
 use crate::units::{Celsius, Newtons};
+use crate::wide;
 
 /// The ADC codes at which a channel is at its rails (open or short circuit, overload).
 ///
@@ -133,9 +134,11 @@ impl TemperatureCompensation {
         // |span| ≤ 2³¹ and |ΔT| < 2³²: exact in i64.
         let span = (i64::from(self.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16;
         // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
+        let zero_per_kelvin = self.zero_per_kelvin.to_bits();
+        // ΔT within ±2¹⁵ K (every one in practice) fits i32.
+        let product = wide::mul_i64_mostly_i32(zero_per_kelvin, dt);
         #[allow(clippy::cast_possible_truncation)]
-        let zero = ((i128::from(self.zero_per_kelvin.to_bits()) * i128::from(dt) + (1 << 15)) >> 16)
-            as i64;
+        let zero = ((product + (1 << 15)) >> 16) as i64;
         Compensation {
             factor: (1 << 30) + span,
             zero,
@@ -322,7 +325,10 @@ fn compensated_q8(counts: i32, gain: i64, offset: i32, c: &Compensation) -> i64 
     }
     // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
     #[allow(clippy::cast_possible_truncation)]
-    let scaled = ((i128::from(line) * i128::from(c.factor) + (1 << 29)) >> 30) as i64;
+    // A validated factor fits 31 bits (above).
+    let product = wide::mul_i64_mostly_i32(line, c.factor);
+    #[allow(clippy::cast_possible_truncation)]
+    let scaled = ((product + (1 << 29)) >> 30) as i64;
     scaled.wrapping_add(c.zero).wrapping_add(1 << 23) >> 24
 }
 

@@ -49,6 +49,7 @@
 
 use super::error::{Problem, SensorError};
 use crate::units::Newtons;
+use crate::wide;
 
 /// Fractional bits of α.
 const ALPHA_FRAC: u32 = 60;
@@ -219,7 +220,7 @@ impl LowPassState {
             // e < 2⁵⁶, α·e < 2¹¹⁶ in i128, the step fits i64 and the sums cannot overflow
             // (`wrapping_`: no overflow to handle, no panic path).
             let e = (i64::from(x.to_bits()) << EXTRA).wrapping_sub(self.acc);
-            let prod = i128::from(e) * i128::from(cfg.alpha_q60) + (1i128 << (ALPHA_FRAC - 1));
+            let prod = wide::mul_i64(e, cfg.alpha_q60) + (1i128 << (ALPHA_FRAC - 1));
             #[allow(clippy::cast_possible_truncation)] // |step| ≤ |e| < 2⁵⁶, shown above
             let step = (prod >> ALPHA_FRAC) as i64;
             self.acc = self.acc.wrapping_add(step);
