@@ -54,10 +54,44 @@ fn root_sum_square_up(a: u32, b: u32, c: u32) -> u64 {
     let (a, b, c) = (up(a), up(b), up(c));
     // Each term ≤ 2¹⁵: each square ≤ 2³⁰, the sum ≤ 3·2³⁰ < 2³², exact in u32.
     let sum = a * a + b * b + c * c;
-    let root = sum.isqrt();
+    let root = isqrt(sum);
     // root ≤ 55 427, so root² and (root + 1)² fit u32.
     let root = root + u32::from(root * root < sum);
     u64::from(root) << shift
+}
+
+/// ⌊√n⌋: `u32::isqrt` from `core` on 64-bit hosts (table-seeded, few branches to mispredict).
+#[cfg(target_pointer_width = "64")]
+fn isqrt(n: u32) -> u32 {
+    n.isqrt()
+}
+
+/// ⌊√n⌋ digit by digit on 32-bit targets: `core`'s form divides, a library call on cores
+/// without a divider (Cortex-M0+), where these 16 steps of shifts and compares cost less. The
+/// same value for every input (tested against `u32::isqrt`).
+#[cfg(not(target_pointer_width = "64"))]
+fn isqrt(n: u32) -> u32 {
+    isqrt_digits(n)
+}
+
+/// ⌊√n⌋, two bits per step, 16 steps.
+#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
+fn isqrt_digits(n: u32) -> u32 {
+    let mut rem = n;
+    let mut root = 0u32;
+    let mut bit = 1u32 << 30;
+    while bit != 0 {
+        // root + bit stays below 2³¹ (at most 1.25·2³⁰, at n = u32::MAX): no overflow; the
+        // tests run it with overflow checks on, u32::MAX included.
+        if rem >= root + bit {
+            rem -= root + bit;
+            root = (root >> 1) + bit;
+        } else {
+            root >>= 1;
+        }
+        bit >>= 2;
+    }
+    root
 }
 
 /// ± uncertainty of `magnitude` (a torque or capacity) in N·m.
@@ -87,6 +121,7 @@ pub(crate) fn torque_uncertainty(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
     use proptest::prelude::*;
@@ -115,6 +150,13 @@ mod tests {
     }
 
     proptest! {
+        // Reference: the standard library's integer square root.
+        #[test]
+        fn digit_root_is_std_isqrt(n in any::<u32>()) {
+            prop_assert_eq!(isqrt_digits(n), n.isqrt());
+            prop_assert_eq!(isqrt(n), n.isqrt());
+        }
+
         #[test]
         fn root_sum_square_is_a_tight_upper_bound(a in any::<u32>(), b in any::<u32>(), c in any::<u32>()) {
             check_root(a, b, c)?;
@@ -126,6 +168,21 @@ mod tests {
             check_root(a, b, c)?;
             check_root(c, a, b)?;
         }
+    }
+
+    #[test]
+    fn digit_root_at_squares_and_the_ends() {
+        for r in (0u32..=65_535)
+            .step_by(97)
+            .chain([255, 256, 65_534, 65_535])
+        {
+            let sq = r * r;
+            assert_eq!(isqrt_digits(sq), r, "{sq}");
+            if sq > 0 {
+                assert_eq!(isqrt_digits(sq - 1), r - 1, "{}", sq - 1);
+            }
+        }
+        assert_eq!(isqrt_digits(u32::MAX), 65_535);
     }
 
     #[test]
