@@ -24,6 +24,10 @@
 //! Every function gives the exact result on every target; the 32-bit forms are compiled on the
 //! host too and property-tested there against the native operators.
 
+/// Whether this is ARMv6-M (Cortex-M0/M0+/M1): no 32 × 32 → 64-bit multiply and no hardware
+/// divider, so a division is a library call (see the module docs for how it is recognised).
+pub(crate) const ARMV6M: bool = cfg!(all(target_arch = "arm", not(target_has_atomic = "32")));
+
 /// Whether a target has a 32 × 32 → 64-bit multiply instruction (see the module docs).
 macro_rules! if_long_multiply {
     ($yes:block else $no:block) => {{

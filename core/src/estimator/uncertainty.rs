@@ -60,22 +60,19 @@ fn root_sum_square_up(a: u32, b: u32, c: u32) -> u64 {
     u64::from(root) << shift
 }
 
-/// ⌊√n⌋: `u32::isqrt` from `core` on 64-bit hosts (table-seeded, few branches to mispredict).
-#[cfg(target_pointer_width = "64")]
+/// ⌊√n⌋: `u32::isqrt` from `core` (table-seeded, few branches to mispredict on a host, one
+/// hardware division on a Cortex-M3/M4), except on ARMv6-M, which has no divider: there the
+/// digit loop below, 16 steps of shifts and compares, costs less than `core`'s division call.
+/// The same value for every input (tested against `u32::isqrt`).
 fn isqrt(n: u32) -> u32 {
-    n.isqrt()
-}
-
-/// ⌊√n⌋ digit by digit on 32-bit targets: `core`'s form divides, a library call on cores
-/// without a divider (Cortex-M0+), where these 16 steps of shifts and compares cost less. The
-/// same value for every input (tested against `u32::isqrt`).
-#[cfg(not(target_pointer_width = "64"))]
-fn isqrt(n: u32) -> u32 {
-    isqrt_digits(n)
+    if crate::wide::ARMV6M {
+        isqrt_digits(n)
+    } else {
+        n.isqrt()
+    }
 }
 
 /// ⌊√n⌋, two bits per step, 16 steps.
-#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
 fn isqrt_digits(n: u32) -> u32 {
     let mut rem = n;
     let mut root = 0u32;
