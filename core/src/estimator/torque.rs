@@ -50,9 +50,8 @@ pub(crate) fn friction_torque(
 /// μ · k (Q30 · Q30 → Q30), rounded down and saturated: the very value of
 /// `Ratio::saturating_mul`, which widens to an overflow-checked 64-bit multiply (on Cortex-M0
 /// four library multiplies); here one exact 32 × 32 → 64-bit product (one library multiply
-/// there). ⌊a·b / 2³⁰⌋ lies within i32
-/// exactly when `a · (b·2²)` (the `fixed` crate's form) does not overflow i64, and an overflow
-/// has the sign of the product.
+/// there). ⌊a·b / 2³⁰⌋ lies within i32 exactly when `a · (b·2²)` (the `fixed` crate's form)
+/// does not overflow i64, and an overflow has the sign of the product.
 pub(crate) fn ratio_product(a: Ratio, b: Ratio) -> Ratio {
     let q30 = (i64::from(a.to_bits()) * i64::from(b.to_bits())) >> 30;
     Ratio::from_bits(i32::try_from(q30).unwrap_or(if q30 < 0 { i32::MIN } else { i32::MAX }))

@@ -133,10 +133,9 @@ impl TemperatureCompensation {
         let dt = i64::from(t.max(lo).min(hi)) - i64::from(self.reference.to_bits());
         // |span| ≤ 2³¹ and |ΔT| < 2³²: exact in i64.
         let span = (i64::from(self.span_per_kelvin.to_bits()) * dt + (1 << 15)) >> 16;
+        // ΔT within ±2¹⁵ K (every one in practice) fits i32: the cheap form on ARMv6-M.
+        let product = wide::mul_i64_mostly_i32(self.zero_per_kelvin.to_bits(), dt);
         // Within ±2⁵⁵ for validated coefficients; an unvalidated one only wraps (`as`).
-        let zero_per_kelvin = self.zero_per_kelvin.to_bits();
-        // ΔT within ±2¹⁵ K (every one in practice) fits i32.
-        let product = wide::mul_i64_mostly_i32(zero_per_kelvin, dt);
         #[allow(clippy::cast_possible_truncation)]
         let zero = ((product + (1 << 15)) >> 16) as i64;
         Compensation {
@@ -323,10 +322,9 @@ fn compensated_q8(counts: i32, gain: i64, offset: i32, c: &Compensation) -> i64 
     if line.unsigned_abs() >= 1 << 58 {
         return if line < 0 { i64::MIN } else { i64::MAX };
     }
-    // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
-    #[allow(clippy::cast_possible_truncation)]
-    // A validated factor fits 31 bits (above).
+    // A validated factor fits 31 bits (above): the cheap form on ARMv6-M.
     let product = wide::mul_i64_mostly_i32(line, c.factor);
+    // < 2⁵⁹ for validated coefficients (above); otherwise it only wraps.
     #[allow(clippy::cast_possible_truncation)]
     let scaled = ((product + (1 << 29)) >> 30) as i64;
     scaled.wrapping_add(c.zero).wrapping_add(1 << 23) >> 24
