@@ -28,13 +28,11 @@
 /// divider, so a division is a library call (see the module docs for how it is recognised).
 pub(crate) const ARMV6M: bool = cfg!(all(target_arch = "arm", not(target_has_atomic = "32")));
 
-/// Whether a target has a 32 × 32 → 64-bit multiply instruction (see the module docs).
+/// Whether a target has a 32 × 32 → 64-bit multiply instruction: all but ARMv6-M ([`ARMV6M`];
+/// `limbs` is compiled everywhere, so both arms always build and the constant picks one).
 macro_rules! if_long_multiply {
     ($yes:block else $no:block) => {{
-        #[cfg(not(all(target_arch = "arm", not(target_has_atomic = "32"))))]
-        $yes
-        #[cfg(all(target_arch = "arm", not(target_has_atomic = "32")))]
-        $no
+        if ARMV6M $no else $yes
     }};
 }
 
