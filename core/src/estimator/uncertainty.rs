@@ -24,17 +24,18 @@ pub enum Combination {
 }
 
 /// Relative tolerance of force: δF / F in Q30, saturating at 1.99 (force near zero).
-fn relative_force(force: Newtons, force_uncertainty: Newtons) -> i64 {
-    let f = i64::from(force.to_bits()).abs();
-    let u = i64::from(force_uncertainty.to_bits()).abs();
+fn relative_force(force: Newtons, force_uncertainty: Newtons) -> u32 {
+    let f = u64::from(force.to_bits().unsigned_abs());
+    let u = u64::from(force_uncertainty.to_bits().unsigned_abs());
+    let max = Ratio::MAX.to_bits().unsigned_abs();
     if f == 0 {
-        return i64::from(Ratio::MAX.to_bits());
+        return max;
     }
-    // u < 2³¹ so u·2³⁰ < 2⁶¹.
-    ((u << 30) / f).min(i64::from(Ratio::MAX.to_bits()))
+    // u ≤ 2³¹ so u·2³⁰ ≤ 2⁶¹; the quotient, at most `max`, fits u32.
+    u32::try_from((u << 30) / f).map_or(max, |q| q.min(max))
 }
 
-/// √(a² + b² + c²) (Q30 relative tolerances, below 2³¹ here; any `u32` works), rounded **up**,
+/// √(a² + b² + c²) (Q30 relative tolerances, at most 2³¹ here; any `u32` works), rounded **up**,
 /// in the same scale.
 ///
 /// In 32 bits on every target: the three terms are shifted right (rounding up) until the largest
@@ -101,16 +102,14 @@ pub(crate) fn torque_uncertainty(
     radius_tolerance: Ratio,
     combination: Combination,
 ) -> NewtonMetres {
-    let dmu = i64::from(mu_tolerance.to_bits()).abs();
-    let dr = i64::from(radius_tolerance.to_bits()).abs();
+    // Q30 terms, each in [0, 2³¹].
+    let dmu = mu_tolerance.to_bits().unsigned_abs();
+    let dr = radius_tolerance.to_bits().unsigned_abs();
     let df = relative_force(force, force_uncertainty);
     let rel_q30: u64 = match combination {
-        // Each term in [0, 2³¹]: the sum is below 2³³.
-        Combination::WorstCase => dmu.unsigned_abs() + df.unsigned_abs() + dr.unsigned_abs(),
-        Combination::RootSumSquare => {
-            let q30 = |v: i64| u32::try_from(v).unwrap_or(u32::MAX >> 1);
-            root_sum_square_up(q30(dmu), q30(df), q30(dr))
-        }
+        // The sum is below 2³³.
+        Combination::WorstCase => u64::from(dmu) + u64::from(df) + u64::from(dr),
+        Combination::RootSumSquare => root_sum_square_up(dmu, df, dr),
     };
     // t ≤ 2³¹ and rel < 3·2³¹, so the product is below 2⁶⁴: exact in u64.
     let t = i64::from(magnitude.to_bits()).unsigned_abs();
