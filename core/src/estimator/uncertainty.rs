@@ -32,7 +32,7 @@ fn relative_force(force: Newtons, force_uncertainty: Newtons) -> u32 {
         return max;
     }
     // u ≤ 2³¹ so u·2³⁰ ≤ 2⁶¹; the quotient, at most `max`, fits u32.
-    u32::try_from((u << 30) / f).map_or(max, |q| q.min(max))
+    u32::try_from(((u << 30) / f).min(u64::from(max))).unwrap_or(max)
 }
 
 /// √(a² + b² + c²) (Q30 relative tolerances, at most 2³¹ here; any `u32` works), rounded **up**,
