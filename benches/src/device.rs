@@ -228,6 +228,7 @@ pub const FALLBACK: ActuatorTransfer = ActuatorTransfer {
     offset: Newtons::ZERO,
     hysteresis: Newtons::lit("200"),
     uncertainty: Newtons::lit("3000"),
+    response_time: Seconds::ZERO,
 };
 
 /// Adaptation band, forgetting factor, torque full scale (N·m) and minimum excitation.

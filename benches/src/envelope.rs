@@ -242,7 +242,7 @@ pub fn run() -> Result<Envelope, Box<dyn Error>> {
                     let record = StateRecord::new(0, &wear, &thermal, Ratio::ONE, 0).to_bytes();
                     let mut est = Estimator::restore(&cfg, &record)?;
                     let mut inputs = Inputs::<1>::at_rest(counts);
-                    inputs.input_speed = v_fx;
+                    inputs.input_speed = Some(v_fx);
                     let e = est.step(&inputs);
 
                     // Reference: f64 models on the same SI data.

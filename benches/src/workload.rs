@@ -66,8 +66,8 @@ impl Sample {
         {
             *ch = RawChannel { counts, valid };
         }
-        i.input_speed = RadPerSec::saturating_from_num(self.input_speed);
-        i.output_speed = RadPerSec::saturating_from_num(self.output_speed);
+        i.input_speed = Some(RadPerSec::saturating_from_num(self.input_speed));
+        i.output_speed = Some(RadPerSec::saturating_from_num(self.output_speed));
         if full {
             i.actuator_command = Some(ActuatorCommand::saturating_from_num(self.command));
             i.sensor_temperature = Some(Celsius::saturating_from_num(self.sensor_temperature));

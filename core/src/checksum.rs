@@ -214,6 +214,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             f.i32(a.offset.to_bits());
             f.i32(a.hysteresis.to_bits());
             f.i32(a.uncertainty.to_bits());
+            f.i64(a.response_time.to_bits());
         }
 
         f.flag(self.adapt.is_some());

@@ -28,7 +28,7 @@ bitflags::bitflags! {
         const OVER_TEMPERATURE = 1 << 7;
         /// A measured temperature was present but implausible; the thermal model was kept.
         const TEMPERATURE_REJECTED = 1 << 8;
-        /// Online adaptation held its factor this step (or is not configured).
+        /// Online adaptation is configured and held its factor this step.
         const ADAPTATION_FROZEN = 1 << 9;
         /// Online adaptation is pressing against its band.
         const ADAPTATION_AT_LIMIT = 1 << 10;
@@ -37,6 +37,14 @@ bitflags::bitflags! {
         /// Standstill: the friction torque is set by the load and bounded by the reported
         /// holding capacity; no torque value is given.
         const TORQUE_BOUNDED = 1 << 12;
+        /// The force from the channels lies farther from the actuator model's prediction than
+        /// both allow: every channel may be wrong the same way (a shared excitation or gain
+        /// fault). The ± covers the model's band as well this sample; it may be wide.
+        const FORCE_IMPLAUSIBLE = 1 << 13;
+        /// A shaft speed was not known this sample: the contact may be holding or slipping, so
+        /// no torque is given and the state is `SlipUnknown`; the holding capacity is a bound
+        /// over every slip speed. No heat or wear is added while it lasts.
+        const SPEED_UNKNOWN = 1 << 14;
     }
 }
 

@@ -525,6 +525,62 @@ impl FrictionState {
     }
 }
 
+impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
+    /// A sample for a slip speed that is not known: the contact may be holding or slipping at
+    /// any speed, so both μ are the largest the lining can have at `lining_temp` — the static μ
+    /// or the kinetic μ at any speed breakpoint (bilinear interpolation peaks at a breakpoint),
+    /// times `correction`. Not slipping, no direction, no drag (it cannot be known without the
+    /// speed); the friction state is left as it is. O(NV), integers only.
+    ///
+    /// ```
+    /// use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
+    /// use clampwise_core::units::{Celsius, Ratio};
+    /// let mu = MuTable::<1, 2>::from_f64(&[20.0], &[0.0, 100.0], &[[0.30, 0.36]])?;
+    /// let p = FrictionParams {
+    ///     static_to_kinetic: 1.1, stick_speed: 0.05, stick_hysteresis: 0.04,
+    ///     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
+    /// };
+    /// let cfg = FrictionConfig::new(mu, &p)?;
+    /// // μ rises with slip here: the kinetic 0.36 at speed tops the static 0.33.
+    /// let s = cfg.slip_unknown(Celsius::lit("20"), Ratio::ONE);
+    /// assert!((s.mu_static.to_num::<f64>() - 0.36).abs() < 1e-8);
+    /// assert!(!s.slipping);
+    /// # Ok::<(), Box<dyn core::error::Error>>(())
+    /// ```
+    pub fn slip_unknown(&self, lining_temp: Celsius, correction: Ratio) -> FrictionSample {
+        let mut saturated = correction.to_bits() < 0;
+        let corr = i64::from(correction.to_bits().max(0));
+        let mut clamped = false;
+        let mut largest = 0i64;
+        let mut standstill = 0i64;
+        for (j, &speed) in self.mu_kinetic.y_breakpoints().iter().enumerate() {
+            let at = self.mu_kinetic.lookup(lining_temp, speed);
+            clamped |= at.clamped;
+            let mu = i64::from(at.value.to_bits());
+            if j == 0 {
+                standstill = mu;
+            }
+            largest = largest.max(mu);
+        }
+        let (kinetic, sat_k) = ratio_from_non_negative(correct(largest, corr));
+        let (stat, sat_s) = ratio_from_non_negative(mul_q30(
+            correct(standstill, corr),
+            i64::from(self.static_to_kinetic.to_bits()),
+        ));
+        saturated |= sat_k || sat_s;
+        let bound = kinetic.max(stat);
+        FrictionSample {
+            mu_kinetic: bound,
+            mu_static: bound,
+            slipping: false,
+            direction: 0,
+            drag_torque: NewtonMetres::ZERO,
+            clamped,
+            saturated,
+        }
+    }
+}
+
 /// φ(s) = 3s² − 2s³ in Q30 for s = min(speed / v_t, 1), speed and v_t in raw I16F16 bits ≥ 0.
 fn smoothstep_q30(speed: i32, v_t: i32, recip: i64) -> i64 {
     if speed >= v_t {

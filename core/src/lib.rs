@@ -103,7 +103,7 @@
 //!
 //! let mut estimator = Estimator::new(&device);
 //! let mut inputs = Inputs::<1>::at_rest(1_000_000); // 10 kN at 10 mN per count
-//! inputs.input_speed = RadPerSec::lit("50");          // the disc turns: the pads slip
+//! inputs.input_speed = Some(RadPerSec::lit("50"));          // the disc turns: the pads slip
 //! let mut estimate = estimator.step(&inputs);
 //! for _ in 0..50 {
 //!     estimate = estimator.step(&inputs);               // let the force filter settle

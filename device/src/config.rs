@@ -383,8 +383,15 @@ pub struct Actuator {
     pub force_offset_n: f64,
     /// Full width of the band between rising and falling branches, N (≥ 0).
     pub hysteresis_n: f64,
-    /// ± uncertainty of the transfer model, N (> `sensing.channel_uncertainty_n`).
+    /// ± uncertainty of the transfer model, N (> `sensing.channel_uncertainty_n`). With the
+    /// hysteresis it is also the band the force from the gauges must stay within: beyond it
+    /// the force is flagged implausible and its ± widened to cover the model.
     pub uncertainty_n: f64,
+    /// First-order time constant from command to clamp force, s (≥ 0; default 0, no lag).
+    /// Set it to the actuator's measured response so the plausibility check follows an apply
+    /// or a release instead of flagging it.
+    #[serde(default)]
+    pub response_time_s: f64,
 }
 
 /// `[adaptation]`: bounded online correction of μ from a reference torque (the core's

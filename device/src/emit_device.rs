@@ -393,6 +393,7 @@ fn fallback(a: Option<&ActuatorTransfer>) -> String {
                 ("offset", bits("Newtons", a.offset.to_bits())),
                 ("hysteresis", bits("Newtons", a.hysteresis.to_bits())),
                 ("uncertainty", bits("Newtons", a.uncertainty.to_bits())),
+                ("response_time", bits("Seconds", a.response_time.to_bits())),
             ],
         )
     }))
@@ -815,6 +816,7 @@ mod tests {
                 offset: Newtons::ZERO,
                 hysteresis: Newtons::from_num(100),
                 uncertainty: Newtons::from_num(2000),
+                response_time: Seconds::from_num(0.02),
             }),
         )
         .unwrap();

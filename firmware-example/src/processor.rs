@@ -41,7 +41,6 @@ use clampwise_core::estimator::{self, ContactState, Estimate, Estimator, Estimat
 use clampwise_core::flags::Flags;
 use clampwise_core::record::RecordError;
 use clampwise_core::sensor::RawChannel;
-use clampwise_core::units::RadPerSec;
 
 use crate::app::{Inputs, Outcome, Processor, Reading};
 use crate::line::Line;
@@ -105,9 +104,11 @@ pub fn core_inputs<const C: usize>(inputs: &Inputs<C>) -> estimator::Inputs<C> {
             };
         }
     }
+    // A failed speed read is an unknown speed, never a standstill: the core then reports no
+    // torque and no holding state, only a capacity bound.
     let (input_speed, output_speed) = inputs
         .speeds
-        .map_or((RadPerSec::ZERO, RadPerSec::ZERO), |s| (s.input, s.output));
+        .map_or((None, None), |s| (Some(s.input), Some(s.output)));
     estimator::Inputs {
         force_channels,
         input_speed,
@@ -137,6 +138,7 @@ pub const fn state_code(state: ContactState) -> i64 {
         ContactState::Holding => 1,
         ContactState::Released => 2,
         ContactState::Unavailable => 3,
+        ContactState::SlipUnknown => 4,
     }
 }
 
@@ -144,7 +146,7 @@ impl Outcome for Estimate {
     /// Raw bits: torque, capacity and uncertainty I20F12 N·m; μ, bedding and correction I2F30;
     /// r_e and wear I8F24 m; clamp force I24F8 N; lining temperature I16F16 °C. `torque_bits`
     /// and `holding_capacity_bits` are empty when the estimate has none; `state` is 0 slipping,
-    /// 1 holding, 2 released, 3 unavailable; `flags` the core's [`Flags`] bits.
+    /// 1 holding, 2 released, 3 unavailable, 4 slip unknown; `flags` the core's [`Flags`] bits.
     const FIELD_NAMES: &'static [&'static str] = &[
         "torque_bits",
         "holding_capacity_bits",
@@ -198,6 +200,7 @@ mod tests {
     use super::*;
     use crate::adc::AdcFault;
     use crate::app::Speeds;
+    use clampwise_core::units::RadPerSec;
     use crate::generated::{DEVICE, DEVICE_CHANNELS};
 
     fn speeds(v: &str) -> Option<Speeds> {
@@ -236,8 +239,8 @@ mod tests {
                 }
             );
         }
-        assert_eq!(core.input_speed, RadPerSec::lit("2.5"));
-        assert_eq!(core.output_speed, RadPerSec::ZERO);
+        assert_eq!(core.input_speed, Some(RadPerSec::lit("2.5")));
+        assert_eq!(core.output_speed, Some(RadPerSec::ZERO));
         assert_eq!(
             core.actuator_command,
             Some(clampwise_core::sensor::ActuatorCommand::lit("0.25"))
@@ -249,7 +252,9 @@ mod tests {
             speeds: None,
             auxiliary: Default::default(),
         });
-        assert_eq!(missing.input_speed, RadPerSec::ZERO);
+        // A failed speed read is unknown, never a standstill.
+        assert_eq!((missing.input_speed, missing.output_speed), (None, None));
+        assert_eq!(missing.slip_speed(), None);
     }
 
     #[test]

@@ -391,7 +391,7 @@ pub fn human(r: &CompareReport) -> String {
         .filter_map(|s| {
             let c = r.by_state.get(s.name())?;
             let what = match s {
-                State::Holding => "no torque: checked against ±capacity",
+                State::Holding | State::SlipUnknown => "no torque: checked against ±capacity",
                 State::Unavailable => "no estimate",
                 _ => "in the errors",
             };
@@ -400,7 +400,7 @@ pub fn human(r: &CompareReport) -> String {
                 s.name(),
                 c.rows,
                 c.with_reference,
-                if *s == State::Holding || *s == State::Unavailable {
+                if matches!(s, State::Holding | State::SlipUnknown | State::Unavailable) {
                     c.with_reference
                 } else {
                     c.with_error

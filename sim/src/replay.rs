@@ -81,7 +81,7 @@ pub struct Tally {
     /// Rows replayed.
     pub rows: u64,
     /// Rows per state, in [`State::ALL`] order.
-    state_rows: [u64; 4],
+    state_rows: [u64; 5],
     /// Rows per flag, by bit of the core's flags word.
     flag_rows: [u64; 32],
     /// Largest |torque|, N·m.
@@ -100,6 +100,7 @@ fn state_index(s: State) -> usize {
         State::Holding => 1,
         State::Released => 2,
         State::Unavailable => 3,
+        State::SlipUnknown => 4,
     }
 }
 

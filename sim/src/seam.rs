@@ -94,6 +94,9 @@ pub enum State {
     Released,
     /// No usable clamp force.
     Unavailable,
+    /// Clamp force known, slip speed not: no torque; |torque| ≤ capacity, a bound over every
+    /// slip speed.
+    SlipUnknown,
 }
 
 impl From<ContactState> for State {
@@ -103,6 +106,7 @@ impl From<ContactState> for State {
             ContactState::Holding => Self::Holding,
             ContactState::Released => Self::Released,
             ContactState::Unavailable => Self::Unavailable,
+            ContactState::SlipUnknown => Self::SlipUnknown,
         }
     }
 }
@@ -114,6 +118,7 @@ impl From<State> for ContactState {
             State::Holding => Self::Holding,
             State::Released => Self::Released,
             State::Unavailable => Self::Unavailable,
+            State::SlipUnknown => Self::SlipUnknown,
         }
     }
 }
@@ -130,10 +135,11 @@ impl State {
     }
 
     /// All states, in report order.
-    pub const ALL: [State; 4] = [
+    pub const ALL: [State; 5] = [
         Self::Slipping,
         Self::Holding,
         Self::Released,
+        Self::SlipUnknown,
         Self::Unavailable,
     ];
 }
@@ -322,12 +328,12 @@ pub fn core_inputs<const C: usize>(s: &TraceSample, cal: &[ChannelCal], brake: b
     }
     Inputs {
         force_channels,
-        input_speed: saturating_fixed(s.omega_in_rad_s),
-        output_speed: if brake {
+        input_speed: Some(saturating_fixed(s.omega_in_rad_s)),
+        output_speed: Some(if brake {
             RadPerSec::ZERO
         } else {
             saturating_fixed(s.omega_out_rad_s)
-        },
+        }),
         actuator_command: s.command.map(saturating_fixed::<I16F16>),
         sensor_temperature: None,
         lining_temperature: s.temp_c.map(saturating_fixed::<Celsius>),
@@ -351,7 +357,7 @@ pub fn estimate_row<const C: usize>(
         mu: fixed_to_f64(e.mu),
         radius_m: fixed_to_f64(e.effective_radius),
         clamp_force_n: fixed_to_f64(e.clamp_force),
-        slip_speed_rad_s: fixed_to_f64(inputs.input_speed.saturating_sub(inputs.output_speed)),
+        slip_speed_rad_s: fixed_to_f64(inputs.slip_speed().unwrap_or(RadPerSec::ZERO)),
         lining_temp_c: fixed_to_f64(e.lining_temperature),
         bedding: fixed_to_f64(e.bedding),
         wear_m: fixed_to_f64(e.wear),

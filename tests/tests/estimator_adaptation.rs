@@ -18,7 +18,7 @@ fn braking_inputs(i: u32) -> Inputs<1> {
     // Force ramps between 5 and 15 kN so the regressor varies; speed 80 rad/s.
     let force = 5_000.0 + 10_000.0 * f64::from(i % 400) / 400.0;
     let mut inputs = Inputs::<1>::at_rest(counts(force));
-    inputs.input_speed = RadPerSec::from_num(80);
+    inputs.input_speed = Some(RadPerSec::from_num(80));
     inputs
 }
 
@@ -103,7 +103,7 @@ fn freezes_on_a_sensor_fault_and_when_holding() {
     }
     // Standstill: μ is not observable.
     let mut inputs = braking_inputs(0);
-    inputs.input_speed = RadPerSec::ZERO;
+    inputs.input_speed = Some(RadPerSec::ZERO);
     inputs.reference_torque = Some(NewtonMetres::from_num(-100));
     let mut est = Estimator::new(&dev);
     for _ in 0..50 {

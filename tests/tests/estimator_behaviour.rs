@@ -17,7 +17,7 @@ fn steady<const C: usize>(
 ) -> clampwise_core::estimator::Estimate {
     let mut est = Estimator::new(dev);
     let mut inputs = Inputs::<C>::at_rest(counts(force_n));
-    inputs.input_speed = RadPerSec::from_num(slip);
+    inputs.input_speed = Some(RadPerSec::from_num(slip));
     let mut last = None;
     for _ in 0..samples {
         last = Some(est.step(&inputs));
@@ -146,8 +146,8 @@ fn direction_reversal_flips_the_sign() {
     // difference of the shafts, so equal speeds mean holding.
     let mut est = Estimator::new(&dev);
     let mut inputs = Inputs::<1>::at_rest(counts(10_000.0));
-    inputs.input_speed = RadPerSec::from_num(150);
-    inputs.output_speed = RadPerSec::from_num(150);
+    inputs.input_speed = Some(RadPerSec::from_num(150));
+    inputs.output_speed = Some(RadPerSec::from_num(150));
     for _ in 0..20 {
         est.step(&inputs);
     }
@@ -161,7 +161,7 @@ fn stick_slip_boundary_has_hysteresis() {
     let mut est = Estimator::new(&dev);
     let mut inputs = Inputs::<1>::at_rest(counts(10_000.0));
     let mut state_at = |v: f64, est: &mut Estimator<'_, 1, 2, 2, 3, 3>| {
-        inputs.input_speed = RadPerSec::from_num(v);
+        inputs.input_speed = Some(RadPerSec::from_num(v));
         est.step(&inputs).state
     };
     assert_eq!(state_at(0.06, &mut est), ContactState::Holding);
@@ -186,7 +186,7 @@ fn lost_force_reports_nothing_as_good() {
     let dev = device::<1>(&spec);
     let mut est = Estimator::new(&dev);
     let mut inputs = Inputs::<1>::at_rest(counts(10_000.0));
-    inputs.input_speed = RadPerSec::from_num(50);
+    inputs.input_speed = Some(RadPerSec::from_num(50));
     for _ in 0..20 {
         assert_eq!(est.step(&inputs).state, ContactState::Slipping);
     }

@@ -294,7 +294,7 @@ fn run_case(c: &Common, case: &Case) -> Result<Worst, String> {
     let energy = Joules::from_num(energy_for_bedding(case.bedding));
     let mut est = restored(&dev, temperature, energy);
     let mut inputs = Inputs::<1>::at_rest(counts);
-    inputs.input_speed = RadPerSec::from_num(case.slip_speed);
+    inputs.input_speed = Some(RadPerSec::from_num(case.slip_speed));
 
     // The reference gets exactly the fixed-point inputs: force in whole LSBs, the quantised
     // slip speed, temperature and energy.
@@ -302,7 +302,7 @@ fn run_case(c: &Common, case: &Case) -> Result<Worst, String> {
     let mut model = PipelineModel::with_condition(parts, temperature.to_num(), energy.to_num());
     let ref_inputs = PipelineInputs::slipping(
         f64::from(counts) / COUNTS_PER_NEWTON,
-        inputs.input_speed.to_num(),
+        inputs.input_speed.unwrap_or_default().to_num(),
         CHANNEL_UNCERTAINTY_N,
     );
 
@@ -414,8 +414,8 @@ fn braking_event_matches_the_f64_pipeline_sample_by_sample() {
         let force = 40_000.0 * ((t - 0.05) / 0.3).clamp(0.0, 1.0);
         let speed = (300.0 * (1.0 - t / 3.5)).max(0.0);
         let mut inputs = Inputs::<1>::at_rest(counts(force));
-        inputs.input_speed = RadPerSec::from_num(speed);
-        let v: f64 = inputs.input_speed.to_num();
+        inputs.input_speed = Some(RadPerSec::from_num(speed));
+        let v: f64 = inputs.input_speed.unwrap_or_default().to_num();
         let plant_out = plant.step(&PipelineInputs::slipping(force, v, CHANNEL_UNCERTAINTY_N));
         inputs.reference_torque = plant_out
             .torque

@@ -30,7 +30,7 @@ fn stop<const C: usize>(
     let mut out = Vec::with_capacity(stop + rest);
     for i in 0..stop + rest {
         let v = RadPerSec::from_num(v0 * (1.0 - i as f64 / stop as f64).max(0.0));
-        inputs.input_speed = v;
+        inputs.input_speed = Some(v);
         out.push((est.step(&inputs), v.to_num()));
     }
     out
@@ -129,7 +129,7 @@ fn pending_energy_is_saved() {
     let sub_rate = device_with_sub_rate::<1>(&spec, 8);
     let mut est = Estimator::new(&sub_rate);
     let mut inputs = Inputs::<1>::at_rest(counts(20_000.0));
-    inputs.input_speed = RadPerSec::from_num(100);
+    inputs.input_speed = Some(RadPerSec::from_num(100));
     let run: Vec<(Estimate, f64)> = (0..8 * 125 + 3)
         .map(|_| (est.step(&inputs), 100.0))
         .collect();

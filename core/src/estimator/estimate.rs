@@ -12,8 +12,13 @@ pub enum ContactState {
     Slipping,
     /// Standstill: the torque is set by the load, somewhere within ± the holding capacity.
     Holding,
-    /// Clamp force below the touch threshold: torque is the drag alone (0 for a dry contact).
+    /// Clamp force below the touch threshold: torque is the drag alone (0 for a dry contact);
+    /// the ± still covers the friction torque the force's upper bound could carry.
     Released,
+    /// Clamp force known, slip speed not ([`Flags::SPEED_UNKNOWN`]): the contact may hold or
+    /// slip, so no torque is given; its magnitude is at most the holding capacity, a bound
+    /// over every slip speed.
+    SlipUnknown,
     /// No clamp force is available: neither torque nor capacity can be given.
     Unavailable,
 }
@@ -25,6 +30,7 @@ impl ContactState {
             Self::Slipping => "slipping",
             Self::Holding => "holding",
             Self::Released => "released",
+            Self::SlipUnknown => "slip-unknown",
             Self::Unavailable => "unavailable",
         }
     }
@@ -35,13 +41,18 @@ impl ContactState {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Estimate {
     /// Friction torque on the input shaft, N·m, signed to oppose slip. `None` while holding
-    /// (the torque is bounded by [`Estimate::holding_capacity`], not known) or when force is
-    /// unavailable.
+    /// (the torque is bounded by [`Estimate::holding_capacity`], not known), when the slip
+    /// speed is unknown, or when force is unavailable.
     pub torque: Option<NewtonMetres>,
-    /// Largest torque the contact can hold without slipping, n · μ_s · F · r_e, N·m (≥ 0).
+    /// Largest torque the contact can hold without slipping, n · μ_s · F · r_e, N·m (≥ 0);
+    /// with the slip speed unknown, the largest friction torque at any slip speed.
     /// `None` when force is unavailable.
     pub holding_capacity: Option<NewtonMetres>,
-    /// ± uncertainty of the torque (slipping, released) or of the capacity (holding), N·m.
+    /// ± uncertainty of the torque (slipping, released) or of the capacity (holding, slip
+    /// unknown), N·m. With [`Combination::WorstCase`] a bound: the true value lies within it
+    /// unless a flag says the estimate cannot be trusted (see the crate docs).
+    ///
+    /// [`Combination::WorstCase`]: crate::estimator::Combination::WorstCase
     pub uncertainty: NewtonMetres,
     /// μ used: kinetic while slipping, static otherwise, with the adaptation's correction.
     pub mu: Ratio,

@@ -10,10 +10,12 @@ use crate::units::{Celsius, NewtonMetres, RadPerSec};
 pub struct Inputs<const C: usize> {
     /// Raw clamp-force channels (ADC counts and the acquisition's valid bit).
     pub force_channels: [RawChannel; C],
-    /// Input-shaft (rotor, driving plate) speed, rad/s.
-    pub input_speed: RadPerSec,
-    /// Output-shaft (driven plate) speed, rad/s; 0 for a brake, whose housing does not turn.
-    pub output_speed: RadPerSec,
+    /// Input-shaft (rotor, driving plate) speed, rad/s; `None` when it could not be read this
+    /// sample (never stand-in zero: a failed read is not a standstill).
+    pub input_speed: Option<RadPerSec>,
+    /// Output-shaft (driven plate) speed, rad/s; `Some(0)` for a brake, whose housing does not
+    /// turn; `None` when it could not be read.
+    pub output_speed: Option<RadPerSec>,
     /// Actuator command (motor current, line pressure …) for stuck detection, voting
     /// tie-breaks and the force fallback.
     pub actuator_command: Option<ActuatorCommand>,
@@ -38,13 +40,23 @@ impl<const C: usize> Inputs<C> {
                 counts,
                 valid: true,
             }; C],
-            input_speed: RadPerSec::ZERO,
-            output_speed: RadPerSec::ZERO,
+            input_speed: Some(RadPerSec::ZERO),
+            output_speed: Some(RadPerSec::ZERO),
             actuator_command: None,
             sensor_temperature: None,
             lining_temperature: None,
             ambient_temperature: None,
             reference_torque: None,
+        }
+    }
+}
+
+impl<const C: usize> Inputs<C> {
+    /// Slip speed v = ω_in − ω_out (rad/s, saturating), `None` unless both speeds are known.
+    pub fn slip_speed(&self) -> Option<RadPerSec> {
+        match (self.input_speed, self.output_speed) {
+            (Some(input), Some(output)) => Some(input.saturating_sub(output)),
+            _ => None,
         }
     }
 }

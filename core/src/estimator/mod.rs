@@ -164,17 +164,25 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             reading.source == ForceSource::ActuatorFallback,
         );
         flags.set(Flags::FORCE_SATURATED, reading.saturated);
+        flags.set(Flags::FORCE_IMPLAUSIBLE, reading.implausible);
         let channels_used = match reading.source {
             ForceSource::Channels { mask } => mask,
             _ => ChannelMask::EMPTY,
         };
 
-        // 2. Slip speed and μ at the lining temperature left by the previous sample.
-        let slip_speed: RadPerSec = inputs.input_speed.saturating_sub(inputs.output_speed);
+        // 2. Slip speed and μ at the lining temperature left by the previous sample. Without a
+        //    slip speed, μ is the largest the lining can have at that temperature.
+        let slip_speed = inputs.slip_speed();
         let lining_before = st.thermal.lining_temperature();
-        let fric = st
-            .friction
-            .update(&cfg.friction, slip_speed, lining_before, Ratio::ONE);
+        let fric = match slip_speed {
+            Some(v) => st
+                .friction
+                .update(&cfg.friction, v, lining_before, Ratio::ONE),
+            None => {
+                flags.insert(Flags::SPEED_UNKNOWN);
+                cfg.friction.slip_unknown(lining_before, Ratio::ONE)
+            }
+        };
         flags.set(Flags::OUT_OF_RANGE, fric.clamped);
         flags.set(Flags::ARITHMETIC_SATURATED, fric.saturated);
         let correction = st.adapt.map_or(Ratio::ONE, |a| a.factor());
@@ -203,45 +211,43 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
 
-        let released = force < cfg.limits.touch_force;
-        let (state, torque, mu, friction_power_torque) = if released {
-            (
-                ContactState::Released,
-                Some(fric.drag_torque),
-                fric.mu_kinetic,
-                NewtonMetres::ZERO,
-            )
+        let state = if slip_speed.is_none() {
+            ContactState::SlipUnknown
+        } else if force < cfg.limits.touch_force {
+            ContactState::Released
         } else if fric.slipping {
-            let t = signed(fric.direction, kinetic.value);
-            (
-                ContactState::Slipping,
-                Some(t.saturating_add(fric.drag_torque)),
-                fric.mu_kinetic,
-                t,
-            )
+            ContactState::Slipping
         } else {
-            flags.insert(Flags::TORQUE_BOUNDED);
-            (
-                ContactState::Holding,
-                None,
-                fric.mu_static,
-                NewtonMetres::ZERO,
-            )
+            ContactState::Holding
+        };
+        let (torque, mu, friction_power_torque) = match state {
+            ContactState::Released => (Some(fric.drag_torque), fric.mu_kinetic, NewtonMetres::ZERO),
+            ContactState::Slipping => {
+                let t = signed(fric.direction, kinetic.value);
+                (Some(t.saturating_add(fric.drag_torque)), fric.mu_kinetic, t)
+            }
+            _ => {
+                flags.insert(Flags::TORQUE_BOUNDED);
+                (None, fric.mu_static, NewtonMetres::ZERO)
+            }
         };
         let mu_used = ratio_product(mu, correction);
 
-        // 5. Heat and wear from this sample's dissipated power (friction + drag).
+        // 5. Heat from this sample's dissipated power (friction + drag); wear and bedding from
+        //    the friction part alone. Without a slip speed no power can be known.
+        let speed = slip_speed.unwrap_or(RadPerSec::ZERO);
         let heat_torque = friction_power_torque.saturating_add(fric.drag_torque);
-        let power = dissipated_power(heat_torque, slip_speed);
+        let power = dissipated_power(heat_torque, speed);
+        let wearing = dissipated_power(friction_power_torque, speed);
         let slow = st.sub_rate.step(
             cfg.thermal_wear_shift,
             (&mut st.thermal, &cfg.thermal),
             (&mut st.wear, &cfg.wear),
-            power.value,
+            (power.value, wearing.value),
             inputs.lining_temperature,
             inputs.ambient_temperature,
         );
-        if power.saturated || slow.saturated {
+        if power.saturated || wearing.saturated || slow.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
         slow.set_flags(&mut flags);
@@ -253,24 +259,49 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             sensors_healthy: reading.health == Health::Ok,
         };
         let model = signed(fric.direction, uncorrected.value);
-        match (st.adapt.as_mut(), cfg.adapt.as_ref()) {
-            (Some(a), Some(acfg)) => {
-                let out = a.update(acfg, model, inputs.reference_torque, gate);
-                flags.set(Flags::ADAPTATION_FROZEN, out.frozen);
-                flags.set(Flags::ADAPTATION_AT_LIMIT, out.at_band_limit);
-            }
-            _ => flags.insert(Flags::ADAPTATION_FROZEN),
+        if let (Some(a), Some(acfg)) = (st.adapt.as_mut(), cfg.adapt.as_ref()) {
+            let out = a.update(acfg, model, inputs.reference_torque, gate);
+            flags.set(Flags::ADAPTATION_FROZEN, out.frozen);
+            flags.set(Flags::ADAPTATION_AT_LIMIT, out.at_band_limit);
         }
 
-        // 7. Uncertainty of what is reported.
-        let reported = match state {
-            ContactState::Holding => capacity.value,
-            _ => torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
+        // 7. Uncertainty of what is reported. The force enters as the torque it could carry:
+        //    its uncertainty's share, or for a released contact the friction torque at the
+        //    force's upper bound (the larger μ of the two: it may be holding or slipping).
+        let (reported, force_term) = match state {
+            ContactState::Released => {
+                let upper = force.saturating_add(reading.uncertainty);
+                let mu_any = fric.mu_static.max(fric.mu_kinetic);
+                let t = friction_torque(cfg.faces, correction, mu_any, upper, lever_arm);
+                (fric.drag_torque.saturating_abs(), t)
+            }
+            ContactState::Slipping => (
+                torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
+                friction_torque(
+                    cfg.faces,
+                    correction,
+                    fric.mu_kinetic,
+                    reading.uncertainty,
+                    lever_arm,
+                ),
+            ),
+            _ => (
+                capacity.value,
+                friction_torque(
+                    cfg.faces,
+                    correction,
+                    fric.mu_static,
+                    reading.uncertainty,
+                    lever_arm,
+                ),
+            ),
         };
+        if force_term.saturated {
+            flags.insert(Flags::ARITHMETIC_SATURATED);
+        }
         let uncertainty = torque_uncertainty(
             reported,
-            force,
-            reading.uncertainty,
+            force_term.value,
             cfg.tolerances.mu,
             cfg.tolerances.radius,
             cfg.tolerances.combination,
@@ -307,12 +338,14 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             cfg.thermal_wear_shift,
             (&mut st.thermal, &cfg.thermal),
             (&mut st.wear, &cfg.wear),
-            Watts::ZERO,
+            (Watts::ZERO, Watts::ZERO),
             inputs.lining_temperature,
             inputs.ambient_temperature,
         );
         slow.set_flags(&mut flags);
-        flags.insert(Flags::ADAPTATION_FROZEN);
+        if cfg.adapt.is_some() {
+            flags.insert(Flags::ADAPTATION_FROZEN);
+        }
         Estimate {
             torque: None,
             holding_capacity: None,

@@ -29,11 +29,15 @@ use crate::thermal::{ThermalConfig, ThermalState};
 use crate::units::{Celsius, Metres, Ratio, Watts};
 use crate::wear::{WearConfig, WearState};
 
-/// The sum of power since the last update.
+/// The sums of power since the last update.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(crate) struct SubRate {
-    /// Σ|P| of the samples since the last update (W, saturating).
+    /// Σ|P| of the samples since the last update (W, saturating): all the heat, friction and
+    /// drag.
     pending: Watts,
+    /// The part of `pending` from solid friction, the only part that wears and beds the
+    /// lining (viscous drag of an open wet clutch shears oil, not lining).
+    pending_wear: Watts,
     /// Samples summed in `pending`.
     samples: u8,
 }
@@ -67,31 +71,39 @@ impl SubRate {
     /// Nothing pending.
     pub(crate) const NEW: Self = Self {
         pending: Watts::ZERO,
+        pending_wear: Watts::ZERO,
         samples: 0,
     };
 
-    /// The power summed since the last update (W).
+    /// The friction power summed since the last update (W): what the wear model has yet to
+    /// see.
     pub(crate) const fn pending(&self) -> Watts {
-        self.pending
+        self.pending_wear
     }
 
-    /// Add this sample's `power` (W, ≥ 0); on every `1 << shift`-th sample advance `thermal`
-    /// and `wear` with the sum.
+    /// Add this sample's `power` (W, ≥ 0; all the heat) and `wearing` (W, the part from solid
+    /// friction); on every `1 << shift`-th sample advance `thermal` with the heat and `wear`
+    /// with the friction energy.
     #[inline(always)]
     pub(crate) fn step(
         &mut self,
         shift: u8,
         (thermal, thermal_cfg): (&mut ThermalState, &ThermalConfig),
         (wear, wear_cfg): (&mut WearState, &WearConfig),
-        power: Watts,
+        (power, wearing): (Watts, Watts),
         measured: Option<Celsius>,
         ambient: Option<Celsius>,
     ) -> SlowSample {
         let (sum, overflow) = self.pending.overflowing_add(power.max(Watts::ZERO));
         let sum = if overflow { Watts::MAX } else { sum };
+        let wear_sum = self
+            .pending_wear
+            .saturating_add(wearing.max(Watts::ZERO))
+            .min(sum);
         let samples = self.samples.saturating_add(1);
         let measured_rejected = if u32::from(samples) < 1u32 << shift {
             self.pending = sum;
+            self.pending_wear = wear_sum;
             self.samples = samples;
             false
         } else {
@@ -100,7 +112,7 @@ impl SubRate {
                 shift,
                 (thermal, thermal_cfg),
                 (wear, wear_cfg),
-                sum,
+                (sum, wear_sum),
                 measured,
                 ambient,
             )
@@ -119,20 +131,21 @@ impl SubRate {
 }
 
 /// The update sample: advance `thermal` with the mean of the power sum `sum` over `1 << shift`
-/// samples and `wear` with the sum; whether a measured temperature was rejected. Kept out of
+/// samples and `wear` with the friction part `wear_sum`; whether a measured temperature was
+/// rejected. Kept out of
 /// line so the samples in between, inlined into the step, carry none of its register load.
 #[inline(never)]
 fn advance(
     shift: u8,
     (thermal, thermal_cfg): (&mut ThermalState, &ThermalConfig),
     (wear, wear_cfg): (&mut WearState, &WearConfig),
-    sum: Watts,
+    (sum, wear_sum): (Watts, Watts),
     measured: Option<Celsius>,
     ambient: Option<Celsius>,
 ) -> bool {
     // The mean over the interval, rounded down (exact for one sample).
     let mean = Watts::from_bits(sum.to_bits() >> shift);
     let (_, rejected) = thermal.advance(thermal_cfg, mean, measured, ambient);
-    wear.advance(wear_cfg, sum);
+    wear.advance(wear_cfg, wear_sum);
     rejected
 }

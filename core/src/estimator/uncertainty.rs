@@ -1,38 +1,47 @@
 //! The ± uncertainty of a torque (or capacity) from the tolerances of μ, F and r_e.
 //!
-//! Relative tolerances combine either as a worst-case sum, δT/T = δμ + δF/F + δr, or as a
-//! root-sum-square, δT/T = √(δμ² + (δF/F)² + δr²) for independent errors
-//! [pub: JCGM 100:2008 (GUM) §5.1.2, law of propagation of uncertainty for a product of
-//! uncorrelated factors, first order]. The configuration chooses; the default is worst case,
-//! the conservative reading for a brake.
+//! T = n·k·μ·F·r_e is a product, so with relative errors δμ and δr and a force known to ±U_F
+//! the true value lies within T·(1 + δμ)(1 + δr) + T_U·(1 + δμ)(1 + δr) of zero and no farther
+//! from T than
 //!
-//! Arithmetic: δF/F in Q30 (rounded down, 10⁻⁹); the worst-case sum exact; the root-sum-square
-//! rounded up, at most 1.7·10⁻⁴ of itself above the exact root (`root_sum_square_up`); the
-//! product with the torque rounded down (1 LSB, 0.25 mN·m). All in 32- and 64-bit integers.
+//! ```text
+//! worst case:  ±[ T·(δμ + δr + δμ·δr) + T_U·(1 + δμ)(1 + δr) ]     T_U = n·k·μ·U_F·r_e
+//! ```
+//!
+//! the exact bound of (1 + δμ)(1 + δF/F)(1 + δr) − 1 for the product's upper side (the lower
+//! side, 1 − (1 − δμ)(1 − δF/F)(1 − δr), is never larger) [calc]. The force enters as the
+//! torque its uncertainty carries, T_U, rather than as δF/F: no division, and the bound stays a
+//! bound at zero force or when the force uncertainty exceeds the force itself (a released
+//! brake whose clamp force could still be up to U_F carries up to T_U). The first-order sum
+//! δμ + δF/F + δr under-bounds the upper side (at 20 %, 5 %, 1 %: 26.0 % against 27.3 %).
+//!
+//! Root-sum-square, √((T·δμ)² + T_U² + (T·δr)²), is the first-order law of propagation for
+//! uncorrelated errors [pub: JCGM 100:2008 (GUM) §5.1.2]: a standard-uncertainty style
+//! estimate, **not** a bound. The configuration chooses; the default is worst case, the
+//! conservative reading for a brake.
+//!
+//! Arithmetic: every product rounded up, so a bound rounded stays a bound; the root rounded up,
+//! at most 1.7·10⁻⁴ of itself above the exact root (`root_sum_square_up`). All in 32- and
+//! 64-bit integers, saturating at the top of [`NewtonMetres`].
 
-use crate::units::{NewtonMetres, Newtons, Ratio};
+use crate::units::{NewtonMetres, Ratio};
 
 /// How relative tolerances combine.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum Combination {
-    /// δμ + δF/F + δr: a bound that holds whatever the correlation.
+    /// T·(δμ + δr + δμ·δr) + T_U·(1 + δμ)(1 + δr): a bound that holds whatever the
+    /// correlation.
     #[default]
     WorstCase,
-    /// √(δμ² + (δF/F)² + δr²): a standard-uncertainty style estimate for independent errors.
+    /// √((T·δμ)² + T_U² + (T·δr)²): a standard-uncertainty style estimate for independent
+    /// errors; not a bound.
     RootSumSquare,
 }
 
-/// Relative tolerance of force: δF / F in Q30, saturating at 1.99 (force near zero).
-fn relative_force(force: Newtons, force_uncertainty: Newtons) -> u32 {
-    let f = u64::from(force.to_bits().unsigned_abs());
-    let u = u64::from(force_uncertainty.to_bits().unsigned_abs());
-    let max = Ratio::MAX.to_bits().unsigned_abs();
-    if f == 0 {
-        return max;
-    }
-    // u ≤ 2³¹ so u·2³⁰ ≤ 2⁶¹; the quotient, at most `max`, fits u32.
-    u32::try_from(((u << 30) / f).min(u64::from(max))).unwrap_or(max)
+/// ⌈x·q / 2³⁰⌉ for a Q30 factor `q`, saturating at `u64::MAX`.
+fn times_q30_up(x: u64, q: u64) -> u64 {
+    x.saturating_mul(q).saturating_add((1 << 30) - 1) >> 30
 }
 
 /// √(a² + b² + c²) (Q30 relative tolerances, at most 2³¹ here; any `u32` works), rounded **up**,
@@ -93,27 +102,36 @@ fn isqrt_digits(n: u32) -> u32 {
     root
 }
 
-/// ± uncertainty of `magnitude` (a torque or capacity) in N·m.
+/// ± uncertainty (N·m) of `magnitude` (a torque or capacity, N·m) whose force is known to
+/// within the torque `force_term` (N·m: n·k·μ·U_F·r_e, or for a released contact the torque
+/// at the force's upper bound).
 pub(crate) fn torque_uncertainty(
     magnitude: NewtonMetres,
-    force: Newtons,
-    force_uncertainty: Newtons,
+    force_term: NewtonMetres,
     mu_tolerance: Ratio,
     radius_tolerance: Ratio,
     combination: Combination,
 ) -> NewtonMetres {
-    // Q30 terms, each in [0, 2³¹].
-    let dmu = mu_tolerance.to_bits().unsigned_abs();
-    let dr = radius_tolerance.to_bits().unsigned_abs();
-    let df = relative_force(force, force_uncertainty);
-    let rel_q30: u64 = match combination {
-        // The sum is below 2³³.
-        Combination::WorstCase => u64::from(dmu) + u64::from(df) + u64::from(dr),
-        Combination::RootSumSquare => root_sum_square_up(dmu, df, dr),
+    // Q30 tolerances, each in [0, 2³¹]; torques in Q12 bits, each in [0, 2³¹].
+    let dmu = u64::from(mu_tolerance.to_bits().unsigned_abs());
+    let dr = u64::from(radius_tolerance.to_bits().unsigned_abs());
+    let t = u64::from(magnitude.to_bits().unsigned_abs());
+    let tu = u64::from(force_term.to_bits().unsigned_abs());
+    let bits = match combination {
+        Combination::WorstCase => {
+            // δμ + δr + δμ·δr below 2³⁴; (1 + δμ)(1 + δr) = 1 + that.
+            let cross = dmu + dr + times_q30_up(dmu, dr);
+            times_q30_up(t, cross).saturating_add(times_q30_up(tu, (1 << 30) + cross))
+        }
+        Combination::RootSumSquare => {
+            let narrow = |v: u64| u32::try_from(v).unwrap_or(u32::MAX);
+            root_sum_square_up(
+                narrow(times_q30_up(t, dmu)),
+                narrow(tu),
+                narrow(times_q30_up(t, dr)),
+            )
+        }
     };
-    // t ≤ 2³¹ and rel < 3·2³¹, so the product is below 2⁶⁴: exact in u64.
-    let t = i64::from(magnitude.to_bits()).unsigned_abs();
-    let bits = (t * rel_q30) >> 30;
     NewtonMetres::from_bits(i32::try_from(bits).unwrap_or(i32::MAX))
 }
 
@@ -208,48 +226,88 @@ mod tests {
 
     #[test]
     fn worst_case_and_rss_against_hand_values() {
-        // [calc] T = 1000 N·m, δμ = 20 %, δF/F = 200 N / 10 kN = 2 %, δr = 1 %:
-        // worst case 23 % → 230 N·m; RSS √(0.04 + 0.0004 + 0.0001) = 0.201246 → 201.246 N·m.
-        let args = (
-            NewtonMetres::from_num(1000),
-            Newtons::from_num(10_000),
-            Newtons::from_num(200),
-            Ratio::from_num(0.20),
-            Ratio::from_num(0.01),
-        );
-        let wc = torque_uncertainty(
-            args.0,
-            args.1,
-            args.2,
-            args.3,
-            args.4,
-            Combination::WorstCase,
-        );
-        assert!((wc.to_num::<f64>() - 230.0).abs() < 0.01, "{wc}");
-        let rss = torque_uncertainty(
-            args.0,
-            args.1,
-            args.2,
-            args.3,
-            args.4,
-            Combination::RootSumSquare,
-        );
-        // The root is rounded up (at most 1.7·10⁻⁴ of it, 0.034 N·m here) and the product
-        // rounded down (at most 1 LSB, 0.25 mN·m).
+        // [calc] T = 1000 N·m, δμ = 20 %, δF/F = 200 N / 10 kN = 2 % (T_U = 20 N·m), δr = 1 %:
+        // worst case (1.2)(1.02)(1.01) − 1 = 23.624 % → 236.24 N·m;
+        // RSS √(200² + 20² + 10²) = 201.246 N·m.
+        let t = NewtonMetres::from_num(1000);
+        let tu = NewtonMetres::from_num(20);
+        let (dmu, dr) = (Ratio::from_num(0.20), Ratio::from_num(0.01));
+        let wc = torque_uncertainty(t, tu, dmu, dr, Combination::WorstCase);
+        // Each product rounded up: at most 3 LSB (0.75 mN·m) above.
+        let excess = wc.to_num::<f64>() - 236.24;
+        assert!((-0.001..0.002).contains(&excess), "{wc}");
+        let rss = torque_uncertainty(t, tu, dmu, dr, Combination::RootSumSquare);
+        // The root is rounded up (at most 1.7·10⁻⁴ of it, 0.034 N·m here).
         let excess = rss.to_num::<f64>() - 201.246;
         assert!((-0.001..0.035).contains(&excess), "{rss}");
     }
 
     #[test]
-    fn zero_force_gives_a_large_not_a_crashing_bound() {
+    fn worst_case_is_the_exact_product_bound() {
+        // [calc] δμ = 20 %, δF/F = 5 %, δr = 1 %: (1.2)(1.05)(1.01) − 1 = 27.26 %, where the
+        // first-order sum gives 26 %.
+        let t = NewtonMetres::from_num(10_000);
         let u = torque_uncertainty(
+            t,
+            NewtonMetres::from_num(500),
+            Ratio::from_num(0.20),
+            Ratio::from_num(0.01),
+            Combination::WorstCase,
+        );
+        assert!((u.to_num::<f64>() - 2726.0).abs() < 0.01, "{u}");
+    }
+
+    proptest! {
+        // [calc] the bound against the product formed in f64: T_true = T·(1 ± δμ)(1 ± δF/F)
+        // (1 ± δr) at every corner lies within T ± U.
+        #[test]
+        fn worst_case_covers_every_corner(
+            t in 0i32..(1 << 30),
+            rel_f in 0.0f64..3.0,
+            dmu in 0.0f64..1.0,
+            dr in 0.0f64..0.5,
+        ) {
+            let tq = NewtonMetres::from_bits(t);
+            let tf = tq.to_num::<f64>();
+            let tu = NewtonMetres::saturating_from_num(tf * rel_f);
+            let u = torque_uncertainty(
+                tq, tu, Ratio::from_num(dmu), Ratio::from_num(dr), Combination::WorstCase,
+            ).to_num::<f64>();
+            let (dmu, dr) = (Ratio::from_num(dmu).to_num::<f64>(), Ratio::from_num(dr).to_num::<f64>());
+            let rel_f = if tf > 0.0 { tu.to_num::<f64>() / tf } else { 0.0 };
+            for sm in [-1.0, 1.0] {
+                for sf in [-1.0, 1.0] {
+                    for sr in [-1.0, 1.0] {
+                        let truth = tf * (1.0 + sm * dmu) * (1.0 + sf * rel_f).max(0.0) * (1.0 + sr * dr);
+                        prop_assert!((truth - tf).abs() <= u + 1e-6 * tf.max(1.0), "{truth} {tf} {u}");
+                    }
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn zero_force_gives_a_bound_from_the_force_term() {
+        // A released brake: no torque reported, but the force could carry up to 10 N·m.
+        let u = torque_uncertainty(
+            NewtonMetres::ZERO,
             NewtonMetres::from_num(10),
-            Newtons::ZERO,
-            Newtons::from_num(5),
-            Ratio::ZERO,
+            Ratio::from_num(0.2),
             Ratio::ZERO,
             Combination::WorstCase,
         );
-        assert!(u > NewtonMetres::from_num(19));
+        assert!((u.to_num::<f64>() - 12.0).abs() < 0.001, "{u}");
+    }
+
+    #[test]
+    fn extremes_saturate() {
+        let u = torque_uncertainty(
+            NewtonMetres::MAX,
+            NewtonMetres::MAX,
+            Ratio::MAX,
+            Ratio::MAX,
+            Combination::WorstCase,
+        );
+        assert_eq!(u, NewtonMetres::MAX);
     }
 }

@@ -10,9 +10,19 @@
 //! known after start-up, and a reversal may not have been seen); construction requires
 //! `uncertainty` larger than a healthy channel's.
 //!
+//! The actuator does not reach its force at once (a spring pack behind a release cylinder, a
+//! motor and gear): `response_time` τ adds a first-order lag after the hysteresis, discretised
+//! backward-Euler, y += (x − y)·T/(τ + T) [calc], so that the prediction follows the force
+//! through an apply or a release instead of running ahead of it. 0 s means no lag.
+//!
+//! The same prediction checks the force from the channels: a voted force farther from it than
+//! the channels' own uncertainty plus the model's band (`uncertainty + hysteresis`) is
+//! implausible — every channel may be wrong the same way (a bridge excitation fault, a shared
+//! gain error), which no vote among them can see.
+//!
 //! ```
-//! use clampwise_core::sensor::{ActuatorModel, ActuatorTransfer, NewtonsPerCommand};
-//! use clampwise_core::units::Newtons;
+//! use clampwise_core::sensor::{ActuatorLag, ActuatorModel, ActuatorTransfer, NewtonsPerCommand};
+//! use clampwise_core::units::{Newtons, Seconds};
 //! use fixed::types::I16F16;
 //!
 //! // Fictional winch brake: 2 kN per ampere, 1 kN hysteresis band.
@@ -21,18 +31,20 @@
 //!     offset: Newtons::ZERO,
 //!     hysteresis: Newtons::from_num(1000),
 //!     uncertainty: Newtons::from_num(3000),
+//!     response_time: Seconds::ZERO,
 //! };
+//! let lag = ActuatorLag::NONE;
 //! let mut m = ActuatorModel::new();
-//! m.update(&tr, I16F16::from_num(5)); // primes at the centre line, 10 kN
-//! let rising = m.update(&tr, I16F16::from_num(6)).force;
+//! m.update(&tr, lag, I16F16::from_num(5)); // primes at the centre line, 10 kN
+//! let rising = m.update(&tr, lag, I16F16::from_num(6)).force;
 //! assert_eq!(rising, Newtons::from_num(11_500)); // 12 kN − 0.5 kN
-//! let falling = m.update(&tr, I16F16::from_num(5.9)).force;
+//! let falling = m.update(&tr, lag, I16F16::from_num(5.9)).force;
 //! assert_eq!(falling, Newtons::from_num(11_500)); // inside the band: stays
 //! ```
 
 use super::error::{Problem, SensorError};
 use super::{ActuatorCommand, NewtonsPerCommand};
-use crate::units::Newtons;
+use crate::units::{Newtons, Seconds};
 
 /// Transfer from actuator command to clamp force (configuration input).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -47,6 +59,9 @@ pub struct ActuatorTransfer {
     /// Uncertainty (±N) of the centre-line-with-hysteresis model itself, larger than a healthy
     /// channel's; the reported fallback uncertainty adds half the band to it.
     pub uncertainty: Newtons,
+    /// First-order time constant of the actuator from command to clamp force (s, ≥ 0; 0 = the
+    /// force follows the command at once).
+    pub response_time: Seconds,
 }
 
 const fn err(field: &'static str, problem: Problem) -> SensorError {
@@ -64,7 +79,24 @@ impl ActuatorTransfer {
         if self.uncertainty.to_bits() <= channel_uncertainty.to_bits() {
             return Err(err("fallback.uncertainty", Problem::UncertaintyNotLarger));
         }
+        if self.response_time.to_bits() < 0 {
+            return Err(err("fallback.response_time", Problem::Negative));
+        }
+        // τ below 2¹⁶ s: far beyond any actuator, and τ·f_s stays exact in the lag's u128 work.
+        if self.response_time.to_bits() >= 1 << 48 {
+            return Err(err("fallback.response_time", Problem::OutOfRange));
+        }
         Ok(())
+    }
+
+    /// The plausibility band of the model (±N): `uncertainty + hysteresis`, the whole
+    /// hysteresis band because the branch the actuator is on may not be known.
+    pub const fn plausibility_band(&self) -> Newtons {
+        Newtons::from_bits(
+            self.uncertainty
+                .to_bits()
+                .saturating_add(self.hysteresis.to_bits()),
+        )
     }
 
     /// Reported uncertainty of a fallback force: `uncertainty + hysteresis/2` (±N).
@@ -87,12 +119,47 @@ pub struct Predicted {
     pub saturated: bool,
 }
 
-/// State of the actuator model (the branch of the hysteresis band it is on).
+/// The actuator's first-order lag for one sample rate: the coefficient T/(τ + T) in Q32,
+/// fixed at configuration.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct ActuatorLag {
+    alpha_q32: u32,
+}
+
+/// Extra fractional bits of the lag state beyond those of [`Newtons`].
+const LAG_EXTRA: u32 = 16;
+
+impl ActuatorLag {
+    /// No lag: the prediction is the hysteresis output itself.
+    pub const NONE: Self = Self { alpha_q32: 0 };
+
+    /// The lag of time constant `response_time` (s; 0 or less: no lag) at `sample_rate_hz`:
+    /// α = 1 / (1 + τ·f_s), rounded to nearest in Q32, at least 2⁻³².
+    pub const fn new(response_time: Seconds, sample_rate_hz: u32) -> Self {
+        let tau = response_time.to_bits();
+        if tau <= 0 || sample_rate_hz == 0 {
+            return Self::NONE;
+        }
+        // τ in Q32 (> 0, < 2⁶³) times f_s (< 2³²): below 2⁹⁵, exact in u128.
+        let denominator = (1u128 << 32) + (tau as u128) * (sample_rate_hz as u128);
+        // 2⁶⁴ / (2³² + x) < 2³² for x ≥ 1: fits u32; 0 would mean "no lag", so at least 1.
+        let alpha = ((1u128 << 64) + denominator / 2) / denominator;
+        #[allow(clippy::cast_possible_truncation)]
+        let alpha_q32 = if alpha == 0 { 1 } else { alpha as u32 };
+        Self { alpha_q32 }
+    }
+}
+
+/// State of the actuator model (the branch of the hysteresis band it is on, and the lagged
+/// force).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct ActuatorModel {
     primed: bool,
     force: i32,
+    /// The lagged force in newtons with [`LAG_EXTRA`] more fractional bits (Q24).
+    lagged: i64,
 }
 
 impl ActuatorModel {
@@ -101,6 +168,7 @@ impl ActuatorModel {
         Self {
             primed: false,
             force: 0,
+            lagged: 0,
         }
     }
 
@@ -109,8 +177,42 @@ impl ActuatorModel {
         self.primed.then_some(Newtons::from_bits(self.force))
     }
 
-    /// Predict the force for `command` (command units). O(1), integers only, any input.
-    pub fn update(&mut self, tr: &ActuatorTransfer, command: ActuatorCommand) -> Predicted {
+    /// Predict the force for `command` (command units) through the hysteresis and then the
+    /// `lag`. O(1), integers only, any input.
+    pub fn update(
+        &mut self,
+        tr: &ActuatorTransfer,
+        lag: ActuatorLag,
+        command: ActuatorCommand,
+    ) -> Predicted {
+        let primed = self.primed;
+        let hysteresis = self.hysteresis(tr, command);
+        if lag.alpha_q32 == 0 {
+            return hysteresis;
+        }
+        let target = i64::from(hysteresis.force.to_bits()) << LAG_EXTRA;
+        self.lagged = if primed {
+            // |target − lagged| < 2⁴⁸ and α < 2³²: the product is exact in i128; rounded to
+            // nearest, the state stays between its old value and the target.
+            let step = (i128::from(target - self.lagged) * i128::from(lag.alpha_q32)
+                + (1i128 << 31))
+                >> 32;
+            // |step| ≤ |target − lagged| < 2⁴⁸.
+            self.lagged + i64::try_from(step).unwrap_or(0)
+        } else {
+            target
+        };
+        let rounded = (self.lagged + (1 << (LAG_EXTRA - 1))) >> LAG_EXTRA;
+        // Between two i32 values (the old state and the target): exact.
+        let bits = i32::try_from(rounded).unwrap_or(hysteresis.force.to_bits());
+        Predicted {
+            force: Newtons::from_bits(bits),
+            saturated: hysteresis.saturated,
+        }
+    }
+
+    /// The play operator: the force on the hysteresis band's branch for `command`.
+    fn hysteresis(&mut self, tr: &ActuatorTransfer, command: ActuatorCommand) -> Predicted {
         let line = centre_line_q8(command.to_bits(), tr.gain.to_bits())
             .wrapping_add(i64::from(tr.offset.to_bits()));
         // |line| < 2⁵⁵ (below): the band edges and the result stay far inside i64.
@@ -161,6 +263,7 @@ mod tests {
             offset: Newtons::from_num(-500),
             hysteresis: Newtons::from_num(800),
             uncertainty: Newtons::from_num(2000),
+            response_time: Seconds::ZERO,
         }
     }
 
@@ -170,7 +273,7 @@ mod tests {
         let t = tr();
         let mut m = ActuatorModel::new();
         let f = |m: &mut ActuatorModel, p: f64| {
-            m.update(&t, ActuatorCommand::from_num(p))
+            m.update(&t, ActuatorLag::NONE, ActuatorCommand::from_num(p))
                 .force
                 .to_num::<f64>()
         };
@@ -201,8 +304,11 @@ mod tests {
             ..tr()
         };
         let mut m = ActuatorModel::new();
-        assert!(m.update(&t, ActuatorCommand::MAX).saturated);
-        assert_eq!(m.update(&t, ActuatorCommand::MIN).force, Newtons::MIN);
+        assert!(m.update(&t, ActuatorLag::NONE, ActuatorCommand::MAX).saturated);
+        assert_eq!(
+            m.update(&t, ActuatorLag::NONE, ActuatorCommand::MIN).force,
+            Newtons::MIN
+        );
     }
 
     #[test]
@@ -214,5 +320,34 @@ mod tests {
             ..tr()
         };
         assert!(zero.validate(Newtons::ZERO).is_err());
+        let negative_lag = ActuatorTransfer {
+            response_time: Seconds::from_num(-0.01),
+            ..tr()
+        };
+        assert!(negative_lag.validate(Newtons::ZERO).is_err());
+    }
+
+    #[test]
+    fn lag_follows_a_step_as_a_first_order_system() {
+        // [calc] backward Euler of τ·ẏ = x − y: after n samples of a unit step from rest,
+        // y = 1 − (1 − α)ⁿ with α = T/(τ + T); τ = 50 ms at 1 kHz gives α = 1/51.
+        let t = ActuatorTransfer {
+            hysteresis: Newtons::ZERO,
+            offset: Newtons::ZERO,
+            response_time: Seconds::from_num(0.05),
+            ..tr()
+        };
+        let lag = ActuatorLag::new(t.response_time, 1000);
+        let mut m = ActuatorModel::new();
+        m.update(&t, lag, ActuatorCommand::ZERO);
+        let mut y = 0.0;
+        for _ in 0..100 {
+            y = m.update(&t, lag, ActuatorCommand::from_num(100)).force.to_num::<f64>();
+        }
+        let want = 25_000.0 * (1.0 - (1.0 - 1.0 / 51.0f64).powi(100));
+        assert!((y - want).abs() < 0.01, "{y} vs {want}");
+        // [calc] the continuous response 1 − e^(−t/τ) at t = 2τ is 0.8647: backward Euler at
+        // 1/50 of τ per sample is within 0.5 % of it.
+        assert!((y / 25_000.0 - 0.8647).abs() < 0.005, "{y}");
     }
 }

@@ -52,8 +52,11 @@
 //!   channel, health is [`Health::Lost`], and the force is the actuator fallback (when a
 //!   transfer is configured and a command is given) or absent.
 //! - Uncertainty (±N): `channel_uncertainty`, plus for a held channel the most the force can
-//!   have moved since its last accepted sample (`noise_band` + `max_rate`·k·T), plus, when the
-//!   vote is unresolved, the largest distance from the reported force to a used channel. For
+//!   have moved since its last accepted sample (`noise_band` + `max_rate`·k·T), plus the
+//!   largest distance from the reported force to a *witness*: a used channel, or a channel the
+//!   vote left out only for disagreeing (see `force_bound`): the ± holds as long as one
+//!   witness is healthy. Where the actuator model predicts a force, a voted force beyond its
+//!   band is [`ForceReading::implausible`] and the ± widens to cover the model too. For
 //!   the fallback: the transfer's `uncertainty + hysteresis/2`, which construction requires to
 //!   exceed `channel_uncertainty`. Without a force, [`Newtons::MAX`].
 //! - Detection latencies are stated exactly in [`diagnostics`] and checked by the
@@ -110,7 +113,7 @@ pub use calibration::{
 pub use debounce::{Debounce, DebounceState, Evidence};
 pub use diagnostics::{ChannelFlags, DebounceSet, DiagnosticLimits, StuckCheck};
 pub use error::{Problem, SensorError};
-pub use fallback::{ActuatorModel, ActuatorTransfer, Predicted};
+pub use fallback::{ActuatorLag, ActuatorModel, ActuatorTransfer, Predicted};
 pub use filter::{LowPass, LowPassState};
 pub use voting::{Agreement, Vote, VotingLimits, vote};
 
@@ -242,6 +245,10 @@ pub struct ForceReading {
     pub saturated: bool,
     /// A sensor temperature outside a channel's compensation range was clamped.
     pub temperature_clamped: bool,
+    /// The force from the channels lies farther from the actuator model's prediction than both
+    /// their uncertainties allow: every channel may be wrong the same way. The uncertainty
+    /// already covers the model's band as well.
+    pub implausible: bool,
 }
 
 impl ForceReading {
@@ -265,6 +272,8 @@ pub struct SensorConfig<const C: usize> {
     diagnostics: Diagnostics,
     voting: VotingLimits,
     fallback: Option<ActuatorTransfer>,
+    /// The actuator's lag at this sample rate (none without a fallback).
+    actuator_lag: ActuatorLag,
     /// Every channel has the same temperature compensation: it is evaluated once per sample.
     shared_compensation: bool,
 }
@@ -342,6 +351,10 @@ impl<const C: usize> SensorConfig<C> {
             },
             [] => false,
         };
+        let actuator_lag = match &fallback {
+            Some(tr) => ActuatorLag::new(tr.response_time, sample_rate_hz),
+            None => ActuatorLag::NONE,
+        };
         Ok(Self {
             sample_rate_hz,
             channels,
@@ -349,6 +362,7 @@ impl<const C: usize> SensorConfig<C> {
             diagnostics,
             voting,
             fallback,
+            actuator_lag,
             shared_compensation,
         })
     }
@@ -449,7 +463,7 @@ impl<const C: usize> SensorState<C> {
     ///
     /// ```
     /// use clampwise_core::sensor::*;
-    /// use clampwise_core::units::Newtons;
+    /// use clampwise_core::units::{Newtons, Seconds};
     ///
     /// # const CAL: ChannelCalibration = ChannelCalibration {
     /// #     gain: NewtonsPerCount::lit("0.01"),
@@ -476,6 +490,7 @@ impl<const C: usize> SensorState<C> {
     ///     offset: Newtons::ZERO,
     ///     hysteresis: Newtons::lit("100"),
     ///     uncertainty: Newtons::lit("1000"),
+    ///     response_time: Seconds::ZERO,
     /// };
     /// let filter = LowPass::new(100.0, 1000).unwrap();
     /// let cfg = SensorConfig::new(1000, [CAL; 2], filter, limits, voting, Some(transfer)).unwrap();
@@ -509,7 +524,7 @@ impl<const C: usize> SensorState<C> {
         let mut temperature_clamped = false;
         let predicted = match (&cfg.fallback, actuator_command) {
             (Some(tr), Some(c)) => {
-                let p = self.actuator.update(tr, c);
+                let p = self.actuator.update(tr, cfg.actuator_lag, c);
                 saturated |= p.saturated;
                 Some(p.force)
             }
@@ -619,40 +634,47 @@ impl<const C: usize> SensorState<C> {
             }
         }
 
-        let (force, uncertainty, health, source) = if v.used.is_empty() {
+        let (force, uncertainty, health, source, implausible) = if v.used.is_empty() {
             match (&cfg.fallback, predicted) {
                 (Some(tr), Some(p)) => (
                     Some(p),
                     tr.stated_uncertainty(),
                     Health::Lost,
                     ForceSource::ActuatorFallback,
+                    false,
                 ),
-                _ => (None, Newtons::MAX, Health::Lost, ForceSource::Unavailable),
+                _ => (
+                    None,
+                    Newtons::MAX,
+                    Health::Lost,
+                    ForceSource::Unavailable,
+                    false,
+                ),
             }
         } else {
+            let bound = force_bound(
+                cfg.voting.channel_uncertainty,
+                &v,
+                &channel_force,
+                &channel_flags,
+                held,
+                predicted.zip(cfg.fallback.as_ref()),
+            );
             let all_used = v.used == ChannelMask::first(C);
             let agreed = matches!(v.agreement, Agreement::Single | Agreement::Unanimous);
             // A temperature outside the compensation range leaves the calibration unproven.
-            let health = if clean && all_used && agreed && !temperature_clamped {
+            let health = if clean && all_used && agreed && !temperature_clamped && !bound.implausible
+            {
                 Health::Ok
             } else {
                 Health::Degraded
             };
-            let u = if held == 0 && v.spread == Newtons::ZERO {
-                cfg.voting.channel_uncertainty.to_bits()
-            } else {
-                // channel_uncertainty ≥ 0 (validated) and spread ≥ 0: unsigned values are
-                // exact.
-                let u = u64::from(cfg.voting.channel_uncertainty.to_bits().unsigned_abs())
-                    .saturating_add(held)
-                    .saturating_add(u64::from(v.spread.to_bits().unsigned_abs()));
-                i32::try_from(u).unwrap_or(i32::MAX)
-            };
             (
                 Some(v.force),
-                Newtons::from_bits(u),
+                bound.uncertainty,
                 health,
                 ForceSource::Channels { mask: v.used },
+                bound.implausible,
             )
         };
         ForceReading {
@@ -665,7 +687,84 @@ impl<const C: usize> SensorState<C> {
             channel_force,
             saturated,
             temperature_clamped,
+            implausible,
         }
+    }
+}
+
+/// The uncertainty of a voted force and whether the actuator model contradicts it.
+struct ForceBound {
+    uncertainty: Newtons,
+    implausible: bool,
+}
+
+/// What the vote cannot rule out, as a ± on the voted force (Q8 N, all in i64, saturated to
+/// the format at the end):
+///
+/// - `channel_uncertainty` plus the largest hold allowance of a used channel (`held`);
+/// - plus the largest distance from the voted force to a *witness*: a used channel, or one
+///   the vote left out only because it disagrees (its own checks pass). Agreeing channels may
+///   still differ by twice the tolerance, and an out-voted channel may be the one telling the
+///   truth (two channels failing the same way out-vote a healthy third): as long as one
+///   witness is healthy, the truth lies within `channel_uncertainty` of it. An out-voted
+///   channel stops being a witness only for a reason of its own — a raised invalid, rail,
+///   range, rate or stuck flag — or when the actuator model, where there is one, puts it
+///   beyond the model's band plus `channel_uncertainty`;
+/// - where the actuator model gives a prediction: a voted force farther from it than its own
+///   uncertainty (without the out-voted witnesses) plus the model's band is *implausible*
+///   (every channel may be wrong the same way), and the ± widens to cover the model's band as
+///   well, since then the model may be the one that is right.
+fn force_bound(
+    channel_uncertainty: Newtons,
+    v: &Vote,
+    channel_force: &[Option<Newtons>; MAX_CHANNELS],
+    channel_flags: &[ChannelFlags; MAX_CHANNELS],
+    held: u64,
+    model: Option<(Newtons, &ActuatorTransfer)>,
+) -> ForceBound {
+    let voted = i64::from(v.force.to_bits());
+    let own = i64::from(channel_uncertainty.to_bits());
+    let model = model.map(|(p, tr)| {
+        (
+            i64::from(p.to_bits()),
+            i64::from(tr.plausibility_band().to_bits()),
+        )
+    });
+    let mut spread_used = 0i64;
+    let mut spread_out = 0i64;
+    let local_fault = ChannelFlags::UNUSABLE.difference(ChannelFlags::DISAGREE);
+    for (i, (value, flags)) in channel_force.iter().zip(channel_flags.iter()).enumerate() {
+        let Some(x) = value else { continue };
+        let x = i64::from(x.to_bits());
+        let distance = (x - voted).abs();
+        if v.used.contains(i) {
+            spread_used = spread_used.max(distance);
+        } else if !flags.intersects(local_fault) {
+            let ruled_out = model.is_some_and(|(p, band)| (x - p).abs() > band + own);
+            if !ruled_out {
+                spread_out = spread_out.max(distance);
+            }
+        }
+    }
+    // held < 2⁶⁴ is a Q8 allowance already saturated by the diagnostics; the sums of i32-range
+    // values stay far inside i64.
+    let consensus = own
+        .saturating_add(i64::try_from(held).unwrap_or(i64::MAX))
+        .saturating_add(spread_used);
+    let mut bound = own
+        .saturating_add(i64::try_from(held).unwrap_or(i64::MAX))
+        .saturating_add(spread_used.max(spread_out));
+    let mut implausible = false;
+    if let Some((p, band)) = model {
+        let gap = (voted - p).abs();
+        if gap > consensus.saturating_add(band) {
+            implausible = true;
+            bound = bound.max(gap + band);
+        }
+    }
+    ForceBound {
+        uncertainty: Newtons::from_bits(i32::try_from(bound).unwrap_or(i32::MAX)),
+        implausible,
     }
 }
 
@@ -709,6 +808,7 @@ mod tests {
         offset: Newtons::ZERO,
         hysteresis: Newtons::lit("100"),
         uncertainty: Newtons::lit("1000"),
+        response_time: Seconds::ZERO,
     };
     // α = 1/16, from a build script for instance.
     const FILTER: LowPass = match LowPass::from_coefficient_bits(1 << 56, 1000) {

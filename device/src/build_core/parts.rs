@@ -272,6 +272,7 @@ fn sensor_key(e: &SensorError) -> String {
                 "fallback.offset" => "actuator.force_offset_n",
                 "fallback.hysteresis" => "actuator.hysteresis_n",
                 "fallback.uncertainty" => "actuator.uncertainty_n",
+                "fallback.response_time" => "actuator.response_time_s",
                 _ => "sensing",
             };
             k.into()
@@ -363,6 +364,9 @@ pub fn sensor<const C: usize>(c: &DeviceConfig) -> Result<SensorConfig<C>, Build
             offset: fx::<_>("actuator.force_offset_n", a.force_offset_n)?,
             hysteresis: fx::<_>("actuator.hysteresis_n", a.hysteresis_n)?,
             uncertainty: fx::<_>("actuator.uncertainty_n", a.uncertainty_n)?,
+            response_time: Seconds::checked_from_num(a.response_time_s).ok_or_else(|| {
+                BuildError::new("actuator.response_time_s", "out of range")
+            })?,
         }),
     };
     SensorConfig::new(rate, channels, filter, limits, voting, fallback)

@@ -145,6 +145,7 @@ pub fn sensor_config<const C: usize>(fallback: bool) -> SensorConfig<C> {
         offset: Newtons::ZERO,
         hysteresis: Newtons::from_num(100),
         uncertainty: Newtons::from_num(2000),
+        response_time: clampwise_core::units::Seconds::ZERO,
     });
     SensorConfig::new(1000, [cal; C], filter, limits, voting, fallback).unwrap()
 }

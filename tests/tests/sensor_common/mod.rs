@@ -76,6 +76,7 @@ pub const TRANSFER: ActuatorTransfer = ActuatorTransfer {
     offset: Newtons::ZERO,
     hysteresis: Newtons::lit("400"),
     uncertainty: Newtons::lit("2000"),
+    response_time: Seconds::ZERO,
 };
 
 /// 50 Hz at 1 kHz: α = 1 − e^(−π/10) = 0.2696.

@@ -648,6 +648,8 @@ impl<const C: usize> RefState<C> {
             channel_force,
             saturated,
             temperature_clamped,
+            // The conditioning as first written had no plausibility check.
+            implausible: false,
         }
     }
 }
