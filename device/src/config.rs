@@ -360,6 +360,12 @@ pub struct Sensing {
     pub channel_uncertainty_n: f64,
     /// Stuck-signal check (optional; needs an actuator command in the trace).
     pub stuck: Option<StuckCheck>,
+    /// A single gauge with neither `[sensing.stuck]` nor `[actuator]` cannot detect its own
+    /// faults (frozen, drifting, wrong gain): such a config is refused unless this is `true`,
+    /// acknowledging that the estimate's ± then holds only while the gauge is healthy
+    /// (default `false`).
+    #[serde(default)]
+    pub accept_undetectable_faults: bool,
 }
 
 /// `[sensing.stuck]`: a force that stays within the noise band while the command moves.
@@ -947,6 +953,7 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
         );
     }
     validate_contact(&c.contact, v);
+    validate_cone_release(c, v);
     let f = &c.friction;
     v.within("friction.static_ratio", f.static_ratio, 0.5, 1.6);
     v.positive("friction.stick_speed_rad_s", f.stick_speed_rad_s);
@@ -1168,6 +1175,19 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
         v.positive("sensing.stuck.time_s", s.time_s);
         v.positive("sensing.stuck.command_span", s.command_span);
     }
+    if c.sensors.len() == 1
+        && sn.stuck.is_none()
+        && c.actuator.is_none()
+        && !sn.accept_undetectable_faults
+    {
+        v.issue(
+            "sensing.stuck",
+            "a single gauge with no [sensing.stuck] check and no [actuator] model cannot detect \
+             its own faults (frozen, drifting, wrong gain), so its ± would hold only while it is \
+             healthy: add one of them, or set sensing.accept_undetectable_faults = true to \
+             acknowledge it",
+        );
+    }
     if let Some(a) = &c.actuator {
         v.positive("actuator.force_n_per_command", a.force_n_per_command);
         v.finite("actuator.force_offset_n", a.force_offset_n);
@@ -1230,6 +1250,38 @@ fn validate(c: &DeviceConfig, v: &mut Validator) {
         v.within("trace.gap_tolerance_ratio", g, 0.0, 100.0);
     }
     validate_columns(c, v);
+}
+
+/// A cone whose half-angle has tan α at or below the static μ self-locks: once engaged it stays
+/// engaged with no axial force, so the measured force no longer sets the torque [pub: Shigley,
+/// *Mechanical Engineering Design*, ch. 16, cone clutches: the engagement force
+/// F = p_a·π·d·(D − d)/2·(sin α + μ cos α) and the release force needs μ cos α < sin α]. Refused.
+fn validate_cone_release(c: &DeviceConfig, v: &mut Validator) {
+    let (Shape::Cone, Some(alpha)) = (c.contact.shape, c.contact.half_angle_deg) else {
+        return;
+    };
+    let mu_max = c
+        .friction
+        .mu
+        .values
+        .iter()
+        .flatten()
+        .copied()
+        .filter(|m| m.is_finite())
+        .fold(0.0f64, f64::max);
+    let mu_static = mu_max * c.friction.static_ratio.max(1.0);
+    let tan = alpha.to_radians().tan();
+    if alpha.is_finite() && mu_static.is_finite() && tan <= mu_static {
+        v.issue(
+            "contact.half_angle_deg",
+            format!(
+                "a cone of half-angle {alpha}° self-locks: tan α = {tan:.3} is not above the \
+                 largest static μ {mu_static:.3}, so it stays engaged with no clamp force and the \
+                 measured force no longer sets the torque; use a half-angle above {:.1}°",
+                mu_static.atan().to_degrees()
+            ),
+        );
+    }
 }
 
 fn validate_contact(ct: &Contact, v: &mut Validator) {

@@ -200,8 +200,8 @@ mod tests {
     use super::*;
     use crate::adc::AdcFault;
     use crate::app::Speeds;
-    use clampwise_core::units::RadPerSec;
     use crate::generated::{DEVICE, DEVICE_CHANNELS};
+    use clampwise_core::units::RadPerSec;
 
     fn speeds(v: &str) -> Option<Speeds> {
         Some(Speeds {

@@ -449,10 +449,11 @@ fn two_of_four_channels_lying() {
 #[test]
 fn two_channels() {
     let mut b = Bench::<2>::new(LIMITS);
-    // Mean while they agree (100 N apart ≤ 2·300 N).
+    // Mean while they agree (100 N apart ≤ 2·300 N), the ± widened to reach each of them
+    // (100 + 50 N): either may be the one telling the truth.
     let r = b.step([ok(counts(F0)), ok(counts(F0 + 100.0))], Some(10.0));
     assert_eq!((r.health, r.force), (Health::Ok, Some(n(F0 + 50.0))));
-    assert_eq!(r.uncertainty, n(100.0));
+    assert_eq!(r.uncertainty, n(150.0));
 
     // Channel 1 lies by +2 kN from power-up: the model picks channel 0; DISAGREE at k = 5.
     let mut b = Bench::<2>::new(LIMITS);

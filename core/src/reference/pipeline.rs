@@ -398,19 +398,16 @@ impl<'a, const NT: usize, const NV: usize> PipelineModel<'a, NT, NV> {
         self.adapt.as_ref()
     }
 
-    /// ± uncertainty of `magnitude` (N·m) from the relative tolerances.
-    fn uncertainty(&self, magnitude: f64, force: f64, force_uncertainty: f64) -> f64 {
-        let df = if force > 0.0 {
-            (force_uncertainty.abs() / force).min(NORMALISED_MAX)
-        } else {
-            NORMALISED_MAX
-        };
+    /// ± uncertainty of `magnitude` (N·m) from the relative tolerances of μ and r_e and the
+    /// torque `force_term` (N·m) the force's uncertainty carries: worst case
+    /// T·(δμ + δr + δμ·δr) + T_U·(1 + δμ)(1 + δr), or √((T·δμ)² + T_U² + (T·δr)²).
+    fn uncertainty(&self, magnitude: f64, force_term: f64) -> f64 {
         let (dmu, dr) = (self.mu_tolerance.abs(), self.radius_tolerance.abs());
-        let rel = match self.combination {
-            Combination::WorstCase => dmu + df + dr,
-            Combination::RootSumSquare => (dmu * dmu + df * df + dr * dr).sqrt(),
-        };
-        magnitude.abs() * rel
+        let (t, tu) = (magnitude.abs(), force_term.abs());
+        match self.combination {
+            Combination::WorstCase => t * (dmu + dr + dmu * dr) + tu * (1.0 + dmu) * (1.0 + dr),
+            Combination::RootSumSquare => ((t * dmu).powi(2) + tu * tu + (t * dr).powi(2)).sqrt(),
+        }
     }
 
     /// One sample.
@@ -473,9 +470,10 @@ impl<'a, const NT: usize, const NV: usize> PipelineModel<'a, NT, NV> {
             (ContactState::Holding, None, fric.mu_static, 0.0)
         };
 
+        // Friction and drag heat the lining; only friction wears and beds it.
         let power = ((friction_torque + fric.drag_torque) * v).abs();
         self.thermal.step(self.dt, power);
-        let w = self.wear.step(self.dt, power);
+        let w = self.wear.step(self.dt, (friction_torque * v).abs());
 
         let gate = state == ContactState::Slipping
             && force >= self.adapt_min_force
@@ -485,17 +483,26 @@ impl<'a, const NT: usize, const NV: usize> PipelineModel<'a, NT, NV> {
                 let out = a.update(direction * uncorrected, inputs.reference_torque, gate);
                 (out.frozen, out.at_band_limit)
             }
-            None => (true, false),
+            None => (false, false),
         };
 
-        let reported = match state {
-            ContactState::Holding => capacity,
-            _ => torque.unwrap_or(0.0),
+        let per_unit_force = self.faces * k * lever_arm;
+        let u_f = inputs.force_uncertainty.abs();
+        let (reported, force_term) = match state {
+            ContactState::Holding => (capacity, fric.mu_static * u_f * per_unit_force),
+            ContactState::Released => (
+                fric.drag_torque,
+                fric.mu_static.max(fric.mu_kinetic) * (force + u_f) * per_unit_force,
+            ),
+            _ => (
+                torque.unwrap_or(0.0),
+                fric.mu_kinetic * u_f * per_unit_force,
+            ),
         };
         PipelineEstimate {
             torque,
             holding_capacity: Some(capacity),
-            uncertainty: self.uncertainty(reported, force, inputs.force_uncertainty),
+            uncertainty: self.uncertainty(reported, force_term),
             mu: mu * k,
             effective_radius: lever_arm,
             clamp_force: force,

@@ -304,7 +304,10 @@ mod tests {
             ..tr()
         };
         let mut m = ActuatorModel::new();
-        assert!(m.update(&t, ActuatorLag::NONE, ActuatorCommand::MAX).saturated);
+        assert!(
+            m.update(&t, ActuatorLag::NONE, ActuatorCommand::MAX)
+                .saturated
+        );
         assert_eq!(
             m.update(&t, ActuatorLag::NONE, ActuatorCommand::MIN).force,
             Newtons::MIN
@@ -342,7 +345,10 @@ mod tests {
         m.update(&t, lag, ActuatorCommand::ZERO);
         let mut y = 0.0;
         for _ in 0..100 {
-            y = m.update(&t, lag, ActuatorCommand::from_num(100)).force.to_num::<f64>();
+            y = m
+                .update(&t, lag, ActuatorCommand::from_num(100))
+                .force
+                .to_num::<f64>();
         }
         let want = 25_000.0 * (1.0 - (1.0 - 1.0 / 51.0f64).powi(100));
         assert!((y - want).abs() < 0.01, "{y} vs {want}");

@@ -663,12 +663,12 @@ impl<const C: usize> SensorState<C> {
             let all_used = v.used == ChannelMask::first(C);
             let agreed = matches!(v.agreement, Agreement::Single | Agreement::Unanimous);
             // A temperature outside the compensation range leaves the calibration unproven.
-            let health = if clean && all_used && agreed && !temperature_clamped && !bound.implausible
-            {
-                Health::Ok
-            } else {
-                Health::Degraded
-            };
+            let health =
+                if clean && all_used && agreed && !temperature_clamped && !bound.implausible {
+                    Health::Ok
+                } else {
+                    Health::Degraded
+                };
             (
                 Some(v.force),
                 bound.uncertainty,

@@ -364,9 +364,8 @@ pub fn sensor<const C: usize>(c: &DeviceConfig) -> Result<SensorConfig<C>, Build
             offset: fx::<_>("actuator.force_offset_n", a.force_offset_n)?,
             hysteresis: fx::<_>("actuator.hysteresis_n", a.hysteresis_n)?,
             uncertainty: fx::<_>("actuator.uncertainty_n", a.uncertainty_n)?,
-            response_time: Seconds::checked_from_num(a.response_time_s).ok_or_else(|| {
-                BuildError::new("actuator.response_time_s", "out of range")
-            })?,
+            response_time: Seconds::checked_from_num(a.response_time_s)
+                .ok_or_else(|| BuildError::new("actuator.response_time_s", "out of range"))?,
         }),
     };
     SensorConfig::new(rate, channels, filter, limits, voting, fallback)
