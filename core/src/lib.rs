@@ -33,6 +33,34 @@
 //! path uses the fixed-point types of [`units`] and integer arithmetic only, so every target
 //! gives the same bits.
 //!
+//! ## The contract: every reported number lies within its ±, or a flag says why not
+//!
+//! With [`estimator::Combination::WorstCase`] (the default), a reported torque or holding
+//! capacity lies within its ± of the true value as long as the configured tolerances hold
+//! (μ within `tolerances.mu`, r_e within `tolerances.radius`, a healthy channel within
+//! `channel_uncertainty`) and at least one force channel the vote cannot rule out is healthy.
+//! How each threat is met:
+//!
+//! | threat | what the estimate does |
+//! |---|---|
+//! | agreeing gauges up to twice the vote tolerance apart | the force ± reaches every used gauge |
+//! | a healthy gauge out-voted by two that fail alike | the force ± reaches the out-voted gauge until a fault of its own (invalid, rail, range, rate, stuck) or the actuator model rules it out; `SENSOR_DEGRADED` |
+//! | two gauges that disagree | the ± reaches both, or the actuator model picks one |
+//! | every gauge wrong the same way (excitation, shared gain) | beyond the actuator model's band: [`flags::Flags::FORCE_IMPLAUSIBLE`], the ± covers the model's band as well |
+//! | a force below the touch force that may not be | `Released`: the ± covers the friction torque the force's upper bound could carry |
+//! | a speed that could not be read | `SlipUnknown` ([`flags::Flags::SPEED_UNKNOWN`]): no torque, the capacity a bound over every slip speed, no heat or wear added |
+//! | no usable force | `Unavailable` ([`flags::Flags::FORCE_LOST`]): neither torque nor capacity |
+//! | an arithmetic limit | [`flags::Flags::ARITHMETIC_SATURATED`] |
+//!
+//! The uncertainty is the exact worst case of the product, T·(δμ + δr + δμ·δr) +
+//! T_U·(1 + δμ)(1 + δr) with T_U the torque carried by the force's ± (see
+//! `estimator::uncertainty`). Limits of what can be detected, stated: a common-mode error of
+//! every gauge that stays inside the actuator model's band (`uncertainty + hysteresis`), or
+//! any common-mode error on a device without an actuator model, is not seen; a single gauge
+//! with neither a stuck check nor an actuator model cannot detect its own faults, so the
+//! device configuration refuses it unless acknowledged. `RootSumSquare` gives a
+//! standard-uncertainty style ±, not a bound.
+//!
 //! ## Units, ranges and resolutions
 //!
 //! | quantity | type | unit | Q format | range | resolution |

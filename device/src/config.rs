@@ -1575,6 +1575,65 @@ mod tests {
         assert_eq!(e.issues[0].key.as_deref(), Some("thermal.fade_temp_c"));
     }
 
+    /// The demo with only the first `[[sensor]]` table and no `[actuator]` table.
+    fn single_unmonitored_gauge() -> String {
+        let first = DEMO.find("[[sensor]]").unwrap();
+        let second = DEMO[first + 1..].find("[[sensor]]").unwrap() + first + 1;
+        let sensing = DEMO.find("[sensing]").unwrap();
+        let actuator = DEMO.find("[actuator]").unwrap();
+        let adaptation = DEMO.find("[adaptation]").unwrap();
+        format!(
+            "{}{}{}",
+            &DEMO[..second],
+            &DEMO[sensing..actuator],
+            &DEMO[adaptation..]
+        )
+        .lines()
+        .filter(|l| !l.starts_with("force_2") && !l.starts_with("force_3"))
+        .map(|l| format!("{l}\n"))
+        .collect()
+    }
+
+    #[test]
+    fn a_single_gauge_that_cannot_detect_its_faults_is_refused() {
+        let src = single_unmonitored_gauge();
+        let e = err(&src);
+        assert_eq!(e.issues.len(), 1, "{e}");
+        assert_eq!(e.issues[0].key.as_deref(), Some("sensing.stuck"));
+        assert!(e.issues[0].message.contains("cannot detect"), "{e}");
+        // Acknowledged explicitly, it is accepted.
+        let acknowledged = src.replace(
+            "[sensing]\n",
+            "[sensing]\naccept_undetectable_faults = true\n",
+        );
+        LoadedConfig::from_str(&acknowledged, "t.toml").unwrap();
+        // With a stuck check instead, it is accepted too.
+        let stuck = src.replace(
+            "[adaptation]",
+            "[sensing.stuck]\ntime_s = 0.5\ncommand_span = 0.2\n\n[adaptation]",
+        );
+        LoadedConfig::from_str(&stuck, "t.toml").unwrap();
+    }
+
+    #[test]
+    fn a_self_locking_cone_is_refused() {
+        // [calc] largest static μ of the demo: 0.43 × 1.25 = 0.5375, atan = 28.3°: a 12° cone
+        // self-locks, a 30° one releases.
+        let cone = |deg: f64| {
+            DEMO.replace("shape = \"sector\"", "shape = \"cone\"")
+                .replace(
+                    "sector_angle_deg = 30.0",
+                    &format!("half_angle_deg = {deg}"),
+                )
+        };
+        let e = err(&cone(12.0));
+        assert_eq!(e.issues.len(), 1, "{e}");
+        assert_eq!(e.issues[0].key.as_deref(), Some("contact.half_angle_deg"));
+        assert!(e.issues[0].message.contains("self-locks"), "{e}");
+        assert!(e.issues[0].message.contains("28.3°"), "{e}");
+        LoadedConfig::from_str(&cone(30.0), "t.toml").unwrap();
+    }
+
     #[test]
     fn validation_issue_is_located_at_the_value() {
         let src = DEMO.replace("static_ratio = 1.25", "static_ratio = 7.0");
