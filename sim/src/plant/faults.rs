@@ -154,7 +154,10 @@ impl std::str::FromStr for Fault {
                 let n = n as u32;
                 FaultKind::Flicker(n)
             }
-            _ => match kind.strip_prefix("copy").and_then(|k| k.parse::<usize>().ok()) {
+            _ => match kind
+                .strip_prefix("copy")
+                .and_then(|k| k.parse::<usize>().ok())
+            {
                 Some(source) if (1..=4).contains(&source) => {
                     if source == channel {
                         return Err(format!("fault '{s}': a channel cannot copy itself"));
@@ -165,9 +168,7 @@ impl std::str::FromStr for Fault {
                     }
                 }
                 _ => {
-                    return Err(format!(
-                        "fault '{s}': unknown kind '{kind}' ({KIND_NAMES})"
-                    ));
+                    return Err(format!("fault '{s}': unknown kind '{kind}' ({KIND_NAMES})"));
                 }
             },
         };
@@ -235,11 +236,21 @@ mod tests {
                 offset_counts: 0.0
             }
         );
-        assert!("copy3:3@0..1".parse::<Fault>().unwrap_err().contains("itself"));
+        assert!(
+            "copy3:3@0..1"
+                .parse::<Fault>()
+                .unwrap_err()
+                .contains("itself")
+        );
         assert!("copy5:1@0..1".parse::<Fault>().is_err());
         assert!("flicker:1@0..1=2.5".parse::<Fault>().is_err());
         assert!("flicker:1@0..1=0".parse::<Fault>().is_err());
-        assert!("gain:1@0..1".parse::<Fault>().unwrap_err().contains("needs =VALUE"));
+        assert!(
+            "gain:1@0..1"
+                .parse::<Fault>()
+                .unwrap_err()
+                .contains("needs =VALUE")
+        );
         assert!(
             "melt:1@0..1"
                 .parse::<Fault>()

@@ -420,7 +420,7 @@ impl Plant {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used)]
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
     use super::*;
     use crate::config::LoadedConfig;
     use approx::assert_relative_eq;
@@ -598,7 +598,9 @@ mod tests {
         let valid: Vec<bool> = rows.iter().take(12).map(|s| s.valid[1]).collect();
         assert_eq!(
             valid,
-            [false, false, false, true, true, true, false, false, false, true, true, true]
+            [
+                false, false, false, true, true, true, false, false, false, true, true, true
+            ]
         );
         assert!(rows.iter().all(|s| s.valid[0] && s.valid[2]));
     }
@@ -620,7 +622,10 @@ mod tests {
             (0..200).map(|_| p.step(&APPLIED)).collect::<Vec<_>>()
         };
         let clean = run(Vec::new());
-        let faulty = run(vec!["gain:1@0..1=0.5".parse().unwrap(), "flicker:3@0..1=2".parse().unwrap()]);
+        let faulty = run(vec![
+            "gain:1@0..1=0.5".parse().unwrap(),
+            "flicker:3@0..1=2".parse().unwrap(),
+        ]);
         for (a, b) in clean.iter().zip(&faulty) {
             assert_eq!(a.counts[1], b.counts[1]);
             assert_eq!(a.true_torque_nm.to_bits(), b.true_torque_nm.to_bits());
