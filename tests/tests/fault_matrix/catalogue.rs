@@ -58,6 +58,12 @@ pub const CASES: &[FaultCase] = &[
         specs: |c, d| drift_to(c, d, 0.8),
     },
     FaultCase {
+        name: "drift to the agreement edge",
+        what: "ch1 offset drifts to 1.97 × vote tolerance (2.95 kN; two gauges still agree)",
+        min_gauges: 1,
+        specs: |c, d| drift_to(c, d, 1.97),
+    },
+    FaultCase {
         name: "drift outside tolerance",
         what: "ch1 offset drifts to 3 × vote tolerance (4.5 kN) at the end",
         min_gauges: 1,

@@ -5,7 +5,7 @@ use rayon::prelude::*;
 
 use super::catalogue::{CASES, FAULT_START_S, faults};
 use super::devices::{self, Device};
-use super::run::{DURATION_S, RunTally, SCENARIOS, SEEDS, Verdict, run, tally};
+use super::run::{DURATION_S, RunTally, SCENARIOS, TRUTHS, Truth, Verdict, run, tally};
 
 /// One cell: a fault kind on one device in one scenario, over the seeds.
 pub struct Cell {
@@ -21,7 +21,7 @@ pub struct Cell {
 pub struct Baseline {
     pub device: usize,
     pub scenario: usize,
-    pub seed: u64,
+    pub truth: Truth,
     pub rows: u64,
     pub beyond: u64,
     /// The fault-free run's own tally (torque / capacity / false holding, worst excess).
@@ -51,24 +51,26 @@ fn add(a: &mut RunTally, b: &RunTally) {
     a.withheld += b.withheld;
     a.excluded += b.excluded;
     a.flags_seen |= b.flags_seen;
+    a.after_start += b.after_start;
+    a.flagged += b.flagged;
 }
 
 /// Run the matrix.
 pub fn run_matrix() -> Matrix {
     let devices = devices::all();
-    let groups: Vec<(usize, usize, u64)> = (0..devices.len())
-        .flat_map(|d| (0..SCENARIOS.len()).flat_map(move |s| SEEDS.map(|seed| (d, s, seed))))
+    let groups: Vec<(usize, usize, Truth)> = (0..devices.len())
+        .flat_map(|d| (0..SCENARIOS.len()).flat_map(move |s| TRUTHS.map(|t| (d, s, t))))
         .collect();
     let results: Vec<(Baseline, Vec<(usize, RunTally)>)> = groups
         .par_iter()
-        .map(|&(d, s, seed)| {
+        .map(|&(d, s, truth)| {
             let dev = &devices[d];
             let sc = &SCENARIOS[s];
-            let clean = run(dev, sc, seed, Vec::new());
+            let clean = run(dev, sc, truth, Vec::new());
             let baseline = Baseline {
                 device: d,
                 scenario: s,
-                seed,
+                truth,
                 rows: clean.verdicts.len() as u64,
                 beyond: clean.verdicts.iter().filter(|v| v.is_beyond()).count() as u64,
                 tally: tally(
@@ -82,7 +84,7 @@ pub fn run_matrix() -> Matrix {
                 .enumerate()
                 .filter(|(_, case)| dev.gauges >= case.min_gauges)
                 .map(|(k, case)| {
-                    let rows = run(dev, sc, seed, faults(case, &dev.config, DURATION_S));
+                    let rows = run(dev, sc, truth, faults(case, &dev.config, DURATION_S));
                     (k, tally(&rows, &clean.verdicts, FAULT_START_S))
                 })
                 .collect();

@@ -8,8 +8,13 @@ use clampwise_sim::seam::flag_names;
 use super::catalogue::{CASES, FAULT_START_S};
 use super::matrix::Matrix;
 use super::run::{
-    DETECTION_FLAG_NAMES, DURATION_S, RunTally, SCENARIOS, SEEDS, UNTRUSTED_FLAG_NAMES,
+    DETECTION_FLAG_NAMES, DURATION_S, RunTally, SCENARIOS, TRUTHS, UNTRUSTED_FLAG_NAMES,
 };
+
+#[allow(clippy::cast_precision_loss)]
+fn percent(part: u64, whole: u64) -> f64 {
+    100.0 * part as f64 / whole.max(1) as f64
+}
 
 fn ms(s: f64) -> String {
     format!("{:.0}", s * 1e3)
@@ -20,8 +25,8 @@ fn ms(s: f64) -> String {
 pub fn cell_table(m: &Matrix, only_beyond: bool) -> String {
     let mut out = String::new();
     out.push_str(
-        "| fault | device | scenario | rows checked | beyond ± | torque / capacity / false holding | worst excess N·m | first beyond s | detected | flags seen |\n\
-         |---|---|---|---:|---:|---|---:|---:|---|---|\n",
+        "| fault | device | scenario | rows checked | beyond ± | torque / capacity / false holding | worst excess N·m | first beyond s | detected | flagged % | flags seen |\n\
+         |---|---|---|---:|---:|---|---:|---:|---|---:|---|\n",
     );
     for c in m
         .cells
@@ -33,7 +38,7 @@ pub fn cell_table(m: &Matrix, only_beyond: bool) -> String {
         let flags: Vec<&str> = flag_names(t.flags_seen).collect();
         let _ = writeln!(
             out,
-            "| {} | {} | {} | {} | {} | {} / {} / {} | {:.0} | {} | {}/{} | {} |",
+            "| {} | {} | {} | {} | {} | {} / {} / {} | {:.0} | {} | {}/{} | {:.1} | {} |",
             CASES[c.case].name,
             m.devices[c.device].label(),
             SCENARIOS[c.scenario].name,
@@ -46,6 +51,7 @@ pub fn cell_table(m: &Matrix, only_beyond: bool) -> String {
             t.first_beyond_s.map_or("–".into(), |s| format!("{s:.3}")),
             detected,
             c.latencies_s.len(),
+            percent(t.flagged, t.after_start),
             if flags.is_empty() {
                 "–".into()
             } else {
@@ -163,18 +169,24 @@ pub fn markdown(m: &Matrix) -> String {
          hysteresis (\"false holding\"). The truth is the simulator's independent f64 \
          plant (an arithmetic check against our own model). Exempt: state Unavailable or a flag \
          of {:?}. Detection: the first row at or after the fault's start with a flag of {:?} \
-         (or an exempting one).\n",
+         (or an exempting one); \"flagged %\" is the share of rows from the fault's start on that name \
+         a fault.\n",
         UNTRUSTED_FLAG_NAMES, DETECTION_FLAG_NAMES
     );
     let _ = writeln!(
         out,
         "**Runs:** {} fault kinds × {} devices (demo config with 1–4 gauges; as shipped, with a \
-         stuck check, without the actuator model) × {} scenarios × seeds {:?}; {DURATION_S} s \
+         stuck check, without the actuator model) × {} scenarios × {} plant truths (seed, μ = table × (1 + share × μ tolerance)): {}; {DURATION_S} s \
          at 1 kHz; every fault from {FAULT_START_S} s to the end.\n",
         CASES.len(),
         m.devices.len(),
         SCENARIOS.len(),
-        SEEDS
+        TRUTHS.len(),
+        TRUTHS
+            .iter()
+            .map(|t| format!("seed {} share {:+}", t.seed, t.mu_share))
+            .collect::<Vec<_>>()
+            .join(", ")
     );
     for sc in &SCENARIOS {
         let _ = writeln!(out, "- `{}`: {}", sc.name, sc.what);

@@ -38,8 +38,30 @@ pub fn flags_named(names: &[&str]) -> Flags {
 /// Trace length, s (1 kHz: 16 000 rows).
 pub const DURATION_S: f64 = 16.0;
 
-/// Seeds of the plant's noise.
-pub const SEEDS: [u64; 3] = [11, 12, 13];
+/// The plant's truth in one run: the seed of its noise, and its μ as the config's table moved by
+/// `mu_share` × the config's μ tolerance (`friction.mu_tolerance_ratio`). A truth at the
+/// table's own μ leaves the whole μ share of the ± unspent, and a force error of up to that
+/// share would pass unseen; near its edges, the ± must be carried by the rest of the budget.
+#[derive(Clone, Copy, Debug)]
+pub struct Truth {
+    pub seed: u64,
+    pub mu_share: f64,
+}
+
+pub const TRUTHS: [Truth; 3] = [
+    Truth {
+        seed: 11,
+        mu_share: 0.0,
+    },
+    Truth {
+        seed: 12,
+        mu_share: -0.9,
+    },
+    Truth {
+        seed: 13,
+        mu_share: 0.9,
+    },
+];
 
 /// A plant scenario: a built-in scenario entered `offset_s` into its cycle.
 pub struct ScenarioCase {
@@ -181,12 +203,13 @@ pub struct Rows {
 }
 
 /// Step the plant and the estimator together over the scenario.
-pub fn run(dev: &Device, scenario: &ScenarioCase, seed: u64, faults: Vec<Fault>) -> Rows {
+pub fn run(dev: &Device, scenario: &ScenarioCase, truth: Truth, faults: Vec<Fault>) -> Rows {
     let c = &dev.config;
     let mut plant = Plant::new(
         c,
         PlantOptions {
-            seed,
+            seed: truth.seed,
+            mu_scale: 1.0 + truth.mu_share * c.friction.mu_tolerance_ratio,
             faults,
             ..PlantOptions::default()
         },
@@ -247,6 +270,10 @@ pub struct RunTally {
     pub flags_seen: Flags,
     /// Seconds from the fault's start to the first row naming a fault.
     pub latency_s: Option<f64>,
+    /// Rows at or after the fault's start.
+    pub after_start: u64,
+    /// Of those, rows naming a fault (a detection or untrusted flag, or Unavailable).
+    pub flagged: u64,
 }
 
 /// Tally a faulted run against the fault-free run's verdicts.
@@ -263,8 +290,10 @@ pub fn tally(rows: &Rows, baseline: &[Verdict], fault_start_s: f64) -> RunTally 
     {
         if ts >= fault_start_s {
             t.flags_seen |= f.difference(routine);
-            if t.latency_s.is_none() && (f.intersects(detection) || st == State::Unavailable) {
-                t.latency_s = Some(ts - fault_start_s);
+            t.after_start += 1;
+            if f.intersects(detection) || st == State::Unavailable {
+                t.flagged += 1;
+                t.latency_s.get_or_insert(ts - fault_start_s);
             }
         }
         if base.is_beyond() {
