@@ -197,7 +197,9 @@ pub struct SynthArgs {
     /// Force noise on each channel, N (σ).
     #[arg(long, default_value_t = 30.0)]
     pub force_noise_n: f64,
-    /// Inject a sensor fault, KIND:CHANNEL@START..END[=VALUE] (repeatable), e.g. stuck:2@30..35.
+    /// Inject a sensor fault, KIND:CHANNEL@START..END[=VALUE] (repeatable), e.g. stuck:2@30..35;
+    /// kinds: stuck, rail_high, rail_low, offset, noise, dropout, drift, gain, sign, spike,
+    /// flicker, copy1 … copy4 (sim/README.md).
     #[arg(long = "fault")]
     pub faults: Vec<String>,
 }

@@ -3,7 +3,8 @@
 //! Columns: `t_s`, `force_N_counts` and `force_N_valid` per channel, `omega_in_rad_s`,
 //! `omega_out_rad_s`, `command_pct`, `temp_C`, `ambient_C`, `torque_ref_Nm`, and the truth
 //! for diagnosis (`true_clamp_force_N`, `true_mu`, `true_radius_m`, `true_temp_C`,
-//! `true_bedding`, `fault_code`), which the estimator never reads.
+//! `true_bedding`, `true_torque_Nm` (before the reference sensor's noise), `true_capacity_Nm`
+//! (N·μ_s·F·r_e under the plant's own model), `fault_code`), which the estimator never reads.
 
 use std::io::Write;
 use std::time::Instant;
@@ -58,6 +59,8 @@ pub fn header(channels: usize) -> String {
             "true_radius_m",
             "true_temp_C",
             "true_bedding",
+            "true_torque_Nm",
+            "true_capacity_Nm",
             "fault_code",
         ]
         .map(String::from),
@@ -81,7 +84,7 @@ pub fn write_row(buf: &mut Vec<u8>, s: &PlantSample, channels: usize) {
     }
     let _ = writeln!(
         buf,
-        ",{},{},{},{},{},{:.3},{:.3},{:.6},{:.7},{:.3},{:.6},{}",
+        ",{},{},{},{},{},{:.3},{:.3},{:.6},{:.7},{:.3},{:.6},{:.3},{:.3},{}",
         s.omega_in,
         s.omega_out,
         s.command * 100.0,
@@ -93,6 +96,8 @@ pub fn write_row(buf: &mut Vec<u8>, s: &PlantSample, channels: usize) {
         s.true_radius_m,
         s.true_temp_c,
         s.true_bedding,
+        s.true_torque_nm,
+        s.true_capacity_nm,
         s.fault_code
     );
 }

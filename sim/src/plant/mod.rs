@@ -18,7 +18,7 @@ pub mod rng;
 pub mod scenario;
 
 use crate::config::{DeviceConfig, DeviceKind, MuTableSpec};
-use faults::{Fault, FaultKind};
+use faults::{Fault, FaultKind, SPIKE_PERIOD_SAMPLES};
 use rng::Rng;
 use scenario::ScenarioPoint;
 
@@ -98,6 +98,13 @@ pub struct PlantSample {
     pub true_temp_c: f64,
     /// True bedding.
     pub true_bedding: f64,
+    /// True friction torque on the rotor, N·m, before the reference sensor's noise.
+    pub true_torque_nm: f64,
+    /// True holding capacity N·μ_s·F·r_e, N·m, with the plant's own μ_s = static ratio × μ at
+    /// the present slip speed (the capacity the plant holds its load with).
+    pub true_capacity_nm: f64,
+    /// Whether the plant holds (|slip| at most half the config's stick speed).
+    pub true_holding: bool,
     /// Code of an active fault (0 = none), see [`Fault::code`].
     pub fault_code: u32,
 }
@@ -271,11 +278,12 @@ impl Plant {
         let fade = 1.0 - self.opts.mu_fade_per_k * (self.temp - self.fade).max(0.0);
         let mu = mu_of(&self.mu, self.temp, slip.abs()) * self.opts.mu_scale * fade.max(0.05);
         let kinetic = self.faces * mu * force * r_e;
-        let torque = if slip.abs() > self.stick {
-            -slip.signum() * (kinetic + self.drag.0 + self.drag.1 * slip.abs())
-        } else {
-            let capacity = kinetic * self.static_ratio;
+        let capacity = kinetic * self.static_ratio;
+        let holding = slip.abs() <= self.stick;
+        let torque = if holding {
             (-sp.load_nm).clamp(-capacity, capacity)
+        } else {
+            -slip.signum() * (kinetic + self.drag.0 + self.drag.1 * slip.abs())
         };
         let power = (torque * slip).abs();
         let decay = (-self.dt / self.tau).exp();
@@ -285,14 +293,18 @@ impl Plant {
         self.energy += power * self.dt;
         self.wear_m += self.wear_rate * power * self.dt / self.faces / self.pad_area;
 
-        let mut counts = [None; 4];
-        let mut valid = [false; 4];
+        // Pass 1, channel by channel (the random stream is drawn in the same order whatever
+        // the faults, except for `noise`): the reading in counts before rounding, with the
+        // channel's own faults.
+        let mut raw = [0.0; 4];
+        let mut ok = [false; 4];
+        let mut stuck_now = [false; 4];
         let mut fault_code = 0;
         for (ch, &(gain, offset, lo, hi)) in self.sensors.iter().enumerate() {
             let noise = self.opts.force_noise_n * self.rng.normal();
             let mut c = (force + noise) / gain + offset;
-            let mut ok = true;
-            let mut stuck_now = false;
+            let mut reading = true;
+            let mut frozen = false;
             for f in self
                 .opts
                 .faults
@@ -301,7 +313,7 @@ impl Plant {
             {
                 fault_code = f.code();
                 match f.kind {
-                    FaultKind::Stuck => stuck_now = true,
+                    FaultKind::Stuck => frozen = true,
                     // The ADC rails are i32-range integers: exact in f64.
                     #[allow(clippy::cast_precision_loss)]
                     FaultKind::RailHigh => c = hi as f64,
@@ -309,16 +321,65 @@ impl Plant {
                     FaultKind::RailLow => c = lo as f64,
                     FaultKind::Offset(v) => c += v,
                     FaultKind::Noise(s) => c += s * self.rng.normal(),
-                    FaultKind::Dropout => ok = false,
+                    FaultKind::Dropout => reading = false,
+                    FaultKind::Drift(rate) => c += rate * (t - f.start_s),
+                    FaultKind::Gain(k) => c = offset + (c - offset) * k,
+                    FaultKind::SignFlip => c = offset - (c - offset),
+                    FaultKind::Spike(v) => {
+                        if f.samples_since_start(t, self.dt) % SPIKE_PERIOD_SAMPLES == 0 {
+                            c += v;
+                        }
+                    }
+                    FaultKind::Flicker(n) => {
+                        if (f.samples_since_start(t, self.dt) / u64::from(n)) % 2 == 0 {
+                            reading = false;
+                        }
+                    }
+                    // Pass 2.
+                    FaultKind::Copy { .. } => {}
                 }
             }
+            if let (Some(r), Some(o), Some(s)) =
+                (raw.get_mut(ch), ok.get_mut(ch), stuck_now.get_mut(ch))
+            {
+                (*r, *o, *s) = (c, reading, frozen);
+            }
+        }
+        // Pass 2: copies read the other channel's pass-1 reading, as force, in their own
+        // calibration.
+        let own = raw;
+        for f in self.opts.faults.iter().filter(|f| f.active(t)) {
+            if let FaultKind::Copy {
+                source,
+                offset_counts,
+            } = f.kind
+                && let (Some(&(g_src, off_src, _, _)), Some(&src), Some(&(gain, offset, _, _))) = (
+                    self.sensors.get(source.wrapping_sub(1)),
+                    own.get(source.wrapping_sub(1)),
+                    self.sensors.get(f.channel.wrapping_sub(1)),
+                )
+                && let Some(r) = raw.get_mut(f.channel.wrapping_sub(1))
+            {
+                fault_code = f.code();
+                *r = (src - off_src) * g_src / gain + offset + offset_counts;
+            }
+        }
+        // Pass 3: rounding, the rails, frozen readings, valid bits.
+        let mut counts = [None; 4];
+        let mut valid = [false; 4];
+        for (ch, &(_, _, lo, hi)) in self.sensors.iter().enumerate() {
+            let (c, reading_ok, frozen) = (
+                raw.get(ch).copied().unwrap_or(0.0),
+                ok.get(ch).copied().unwrap_or(false),
+                stuck_now.get(ch).copied().unwrap_or(false),
+            );
             #[allow(clippy::cast_precision_loss)]
             let (lo_f, hi_f) = (lo as f64, hi as f64);
             // Clamped to the rails, which lie in the i32 range.
             #[allow(clippy::cast_possible_truncation)]
             let reading = c.round().clamp(lo_f, hi_f) as i64;
             let slot = self.stuck.get_mut(ch);
-            let reading = match (stuck_now, slot) {
+            let reading = match (frozen, slot) {
                 (true, Some(s)) => *s.get_or_insert(reading),
                 (false, Some(s)) => {
                     *s = None;
@@ -327,8 +388,8 @@ impl Plant {
                 (_, None) => reading,
             };
             if let (Some(o), Some(v)) = (counts.get_mut(ch), valid.get_mut(ch)) {
-                *o = if ok { Some(reading) } else { None };
-                *v = ok;
+                *o = if reading_ok { Some(reading) } else { None };
+                *v = reading_ok;
             }
         }
         let temp_meas =
@@ -349,6 +410,9 @@ impl Plant {
             true_radius_m: r_e,
             true_temp_c: self.temp,
             true_bedding: bedding,
+            true_torque_nm: torque,
+            true_capacity_nm: capacity,
+            true_holding: holding,
             fault_code,
         }
     }
@@ -356,7 +420,7 @@ impl Plant {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used)]
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
     use super::*;
     use crate::config::LoadedConfig;
     use approx::assert_relative_eq;
@@ -464,5 +528,131 @@ mod tests {
         assert_eq!(a.counts[1], b.counts[1]);
         assert_ne!(a.counts[2], b.counts[2]);
         assert_eq!((b.counts[0], b.valid[0]), (None, false));
+    }
+
+    fn quiet_plant(faults: &[&str]) -> Plant {
+        Plant::new(
+            &demo(),
+            PlantOptions {
+                force_noise_n: 0.0,
+                actuator_tau_s: 1e-6,
+                faults: faults.iter().map(|f| f.parse().unwrap()).collect(),
+                ..PlantOptions::default()
+            },
+        )
+        .unwrap()
+    }
+
+    const APPLIED: ScenarioPoint = ScenarioPoint {
+        omega_in: 2.0,
+        omega_out: 0.0,
+        command: 0.5,
+        load_nm: 0.0,
+    };
+
+    /// Force of channel `ch` (0-based) in the demo's calibration, N.
+    fn force_of(s: &PlantSample, ch: usize) -> f64 {
+        let c = demo();
+        let cal = &c.sensors[ch];
+        #[allow(clippy::cast_precision_loss)]
+        let counts = s.counts[ch].unwrap() as f64;
+        (counts - cal.offset_counts) * cal.gain_n_per_count
+    }
+
+    #[test]
+    fn gain_sign_drift_and_copy_act_on_the_force_span() {
+        // 30 kN true force (command 0.5 of 60 kN), noise off: each fault's effect in newtons
+        // [calc] from F = (counts − offset)·gain.
+        let mut p = quiet_plant(&[
+            "gain:1@0..1=0.8",
+            "sign:2@0..1",
+            "drift:3@0..1=100000",
+            "copy1:2@0.5..1=1000",
+        ]);
+        let a = p.step(&APPLIED);
+        assert_relative_eq!(force_of(&a, 0), 24_000.0, epsilon = 0.02);
+        assert_relative_eq!(force_of(&a, 1), -30_000.0, epsilon = 0.02);
+        assert_relative_eq!(force_of(&a, 2), 30_000.0, epsilon = 0.02);
+        for _ in 0..499 {
+            p.step(&APPLIED);
+        }
+        let b = p.step(&APPLIED); // t = 0.5 s
+        // Drift: 10⁵ counts/s × 0.5 s × 0.0102 N/count = 510 N.
+        assert_relative_eq!(force_of(&b, 2), 30_510.0, epsilon = 0.02);
+        // Copy of channel 1 (gain fault included) plus 1000 counts × 0.01 N/count.
+        assert_relative_eq!(force_of(&b, 1), 24_010.0, epsilon = 0.02);
+        assert_eq!(b.fault_code, 12);
+    }
+
+    #[test]
+    fn spikes_and_flicker_follow_their_sample_pattern() {
+        let mut p = quiet_plant(&["spike:1@0..1=50000", "flicker:2@0..1=3"]);
+        let rows: Vec<PlantSample> = (0..110).map(|_| p.step(&APPLIED)).collect();
+        let spiked: Vec<usize> = rows
+            .iter()
+            .enumerate()
+            .filter(|(_, s)| force_of(s, 0) > 30_250.0)
+            .map(|(i, _)| i)
+            .collect();
+        assert_eq!(spiked, vec![0, 50, 100]);
+        let valid: Vec<bool> = rows.iter().take(12).map(|s| s.valid[1]).collect();
+        assert_eq!(
+            valid,
+            [
+                false, false, false, true, true, true, false, false, false, true, true, true
+            ]
+        );
+        assert!(rows.iter().all(|s| s.valid[0] && s.valid[2]));
+    }
+
+    #[test]
+    fn faults_leave_the_noise_of_the_fault_free_run() {
+        // Same seed, with and without a gain fault on channel 1: channels 2 and 3 read the same
+        // counts sample for sample (no fault kind but `noise` draws random numbers).
+        let c = demo();
+        let run = |faults: Vec<Fault>| {
+            let mut p = Plant::new(
+                &c,
+                PlantOptions {
+                    faults,
+                    ..PlantOptions::default()
+                },
+            )
+            .unwrap();
+            (0..200).map(|_| p.step(&APPLIED)).collect::<Vec<_>>()
+        };
+        let clean = run(Vec::new());
+        let faulty = run(vec![
+            "gain:1@0..1=0.5".parse().unwrap(),
+            "flicker:3@0..1=2".parse().unwrap(),
+        ]);
+        for (a, b) in clean.iter().zip(&faulty) {
+            assert_eq!(a.counts[1], b.counts[1]);
+            assert_eq!(a.true_torque_nm.to_bits(), b.true_torque_nm.to_bits());
+        }
+    }
+
+    #[test]
+    fn truth_holds_the_load_within_the_static_capacity() {
+        // [pub] holding capacity = N·μ_s·F·r_e with μ_s = static ratio × μ; below it the
+        // friction torque equals the load.
+        let c = demo();
+        let mut p = quiet_plant(&[]);
+        let s = p.step(&ScenarioPoint {
+            omega_in: 0.0,
+            omega_out: 0.0,
+            command: 0.5,
+            load_nm: 5000.0,
+        });
+        let mu = mu_of(&c.friction.mu, 25.0, 0.0);
+        assert_relative_eq!(
+            s.true_capacity_nm,
+            2.0 * 1.25 * mu * 30_000.0 * p.radii().0,
+            max_relative = 1e-4
+        );
+        assert!(s.true_holding);
+        assert_relative_eq!(s.true_torque_nm, -5000.0, max_relative = 1e-12);
+        let slipping = p.step(&APPLIED);
+        assert!(!slipping.true_holding);
     }
 }
