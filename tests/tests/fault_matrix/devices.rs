@@ -108,9 +108,17 @@ pub fn device(gauges: usize, variant: Variant) -> Device {
     }
 }
 
-/// Every device of the matrix: 1–4 gauges × the variants.
+/// Whether the configuration refuses this combination: a single gauge with neither a stuck
+/// check nor an actuator model cannot detect its own faults.
+pub fn refused(gauges: usize, variant: Variant) -> bool {
+    gauges == 1 && variant == Variant::NoActuator
+}
+
+/// Every device of the matrix: 1–4 gauges × the variants the configuration accepts.
 pub fn all() -> Vec<Device> {
     (1..=4)
-        .flat_map(|g| Variant::ALL.map(|v| device(g, v)))
+        .flat_map(|g| Variant::ALL.map(move |v| (g, v)))
+        .filter(|&(g, v)| !refused(g, v))
+        .map(|(g, v)| device(g, v))
         .collect()
 }

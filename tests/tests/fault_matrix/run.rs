@@ -23,6 +23,7 @@ pub const DETECTION_FLAG_NAMES: &[&str] = &[
     "FORCE_FALLBACK",
     "FORCE_LOST",
     "FORCE_SATURATED",
+    "FORCE_IMPLAUSIBLE",
 ];
 
 /// Flags that describe the operating point rather than a fault; left out of "flags seen".
