@@ -365,6 +365,10 @@ pub struct FrictionSample {
     pub mu_kinetic: Ratio,
     /// Static μ for the holding capacity (corrected), 0…1.99.
     pub mu_static: Ratio,
+    /// How far the blend near zero slip moved `mu_kinetic` from the kinetic table's own μ at
+    /// this speed, |μ_blend − μ_k| (≥ 0; 0 at and above the transition speed): what the
+    /// transition model adds to μ's uncertainty.
+    pub transition_span: Ratio,
     /// True while the contact slips (decided with hysteresis).
     pub slipping: bool,
     /// Sign of the friction torque, opposing slip: −1 for v > 0, +1 for v < 0; 0 while holding.
@@ -516,6 +520,10 @@ impl FrictionState {
         FrictionSample {
             mu_kinetic: mu,
             mu_static: mu_s,
+            // Two non-negative Ratio values: their distance fits.
+            transition_span: Ratio::from_bits(
+                i32::try_from(mu.to_bits().abs_diff(mu_k.to_bits())).unwrap_or(i32::MAX),
+            ),
             slipping: self.slipping,
             direction,
             drag_torque,
@@ -572,6 +580,7 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
         FrictionSample {
             mu_kinetic: bound,
             mu_static: bound,
+            transition_span: Ratio::ZERO,
             slipping: false,
             direction: 0,
             drag_torque: NewtonMetres::ZERO,
@@ -921,6 +930,9 @@ mod tests {
             FrictionSample {
                 mu_kinetic: mu,
                 mu_static: mu_s,
+                transition_span: Ratio::from_bits(
+                    i32::try_from(mu.to_bits().abs_diff(mu_k.to_bits())).unwrap_or(i32::MAX),
+                ),
                 slipping: *slipping,
                 direction,
                 drag_torque,

@@ -41,7 +41,7 @@ use crate::units::{NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
 use crate::wear::WearState;
 
 use sub_rate::SubRate;
-use torque::{dissipated_power, friction_torque, ratio_product};
+use torque::{Saturating, dissipated_power, friction_torque, ratio_product};
 use uncertainty::torque_uncertainty;
 
 /// Everything that persists between samples.
@@ -268,6 +268,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         // 7. Uncertainty of what is reported. The force enters as the torque it could carry:
         //    its uncertainty's share, or for a released contact the friction torque at the
         //    force's upper bound (the larger μ of the two: it may be holding or slipping).
+        let mut model_term = NewtonMetres::ZERO;
         let (reported, force_term) = match state {
             ContactState::Released => {
                 let upper = force.saturating_add(reading.uncertainty);
@@ -275,16 +276,32 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
                 let t = friction_torque(cfg.faces, correction, mu_any, upper, lever_arm);
                 (fric.drag_torque.saturating_abs(), t)
             }
-            ContactState::Slipping => (
-                torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
-                friction_torque(
+            ContactState::Slipping => {
+                // Near zero slip μ blends from static to kinetic: the true μ may lie anywhere
+                // in that span.
+                let blend = friction_torque(
+                    cfg.faces,
+                    correction,
+                    fric.transition_span,
+                    force,
+                    lever_arm,
+                );
+                model_term = blend.value;
+                let t = friction_torque(
                     cfg.faces,
                     correction,
                     fric.mu_kinetic,
                     reading.uncertainty,
                     lever_arm,
-                ),
-            ),
+                );
+                (
+                    torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
+                    Saturating {
+                        value: t.value,
+                        saturated: t.saturated || blend.saturated,
+                    },
+                )
+            }
             _ => (
                 capacity.value,
                 friction_torque(
@@ -302,6 +319,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         let uncertainty = torque_uncertainty(
             reported,
             force_term.value,
+            model_term,
             cfg.tolerances.mu,
             cfg.tolerances.radius,
             cfg.tolerances.combination,

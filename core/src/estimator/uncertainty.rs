@@ -104,10 +104,13 @@ fn isqrt_digits(n: u32) -> u32 {
 
 /// ± uncertainty (N·m) of `magnitude` (a torque or capacity, N·m) whose force is known to
 /// within the torque `force_term` (N·m: n·k·μ·U_F·r_e, or for a released contact the torque
-/// at the force's upper bound).
+/// at the force's upper bound), and whose μ may also lie anywhere within the torque
+/// `model_term` (N·m: the span of the static-to-kinetic blend near zero slip, n·k·|μ_blend −
+/// μ_k|·F·r_e), which is added like the force term.
 pub(crate) fn torque_uncertainty(
     magnitude: NewtonMetres,
     force_term: NewtonMetres,
+    model_term: NewtonMetres,
     mu_tolerance: Ratio,
     radius_tolerance: Ratio,
     combination: Combination,
@@ -116,7 +119,8 @@ pub(crate) fn torque_uncertainty(
     let dmu = u64::from(mu_tolerance.to_bits().unsigned_abs());
     let dr = u64::from(radius_tolerance.to_bits().unsigned_abs());
     let t = u64::from(magnitude.to_bits().unsigned_abs());
-    let tu = u64::from(force_term.to_bits().unsigned_abs());
+    let tu = u64::from(force_term.to_bits().unsigned_abs())
+        .saturating_add(u64::from(model_term.to_bits().unsigned_abs()));
     let bits = match combination {
         Combination::WorstCase => {
             // δμ + δr + δμ·δr below 2³⁴; (1 + δμ)(1 + δr) = 1 + that.
@@ -232,11 +236,18 @@ mod tests {
         let t = NewtonMetres::from_num(1000);
         let tu = NewtonMetres::from_num(20);
         let (dmu, dr) = (Ratio::from_num(0.20), Ratio::from_num(0.01));
-        let wc = torque_uncertainty(t, tu, dmu, dr, Combination::WorstCase);
+        let wc = torque_uncertainty(t, tu, NewtonMetres::ZERO, dmu, dr, Combination::WorstCase);
         // Each product rounded up: at most 3 LSB (0.75 mN·m) above.
         let excess = wc.to_num::<f64>() - 236.24;
         assert!((-0.001..0.002).contains(&excess), "{wc}");
-        let rss = torque_uncertainty(t, tu, dmu, dr, Combination::RootSumSquare);
+        let rss = torque_uncertainty(
+            t,
+            tu,
+            NewtonMetres::ZERO,
+            dmu,
+            dr,
+            Combination::RootSumSquare,
+        );
         // The root is rounded up (at most 1.7·10⁻⁴ of it, 0.034 N·m here).
         let excess = rss.to_num::<f64>() - 201.246;
         assert!((-0.001..0.035).contains(&excess), "{rss}");
@@ -250,6 +261,7 @@ mod tests {
         let u = torque_uncertainty(
             t,
             NewtonMetres::from_num(500),
+            NewtonMetres::ZERO,
             Ratio::from_num(0.20),
             Ratio::from_num(0.01),
             Combination::WorstCase,
@@ -271,7 +283,7 @@ mod tests {
             let tf = tq.to_num::<f64>();
             let tu = NewtonMetres::saturating_from_num(tf * rel_f);
             let u = torque_uncertainty(
-                tq, tu, Ratio::from_num(dmu), Ratio::from_num(dr), Combination::WorstCase,
+                tq, tu, NewtonMetres::ZERO, Ratio::from_num(dmu), Ratio::from_num(dr), Combination::WorstCase,
             ).to_num::<f64>();
             let (dmu, dr) = (Ratio::from_num(dmu).to_num::<f64>(), Ratio::from_num(dr).to_num::<f64>());
             let rel_f = if tf > 0.0 { tu.to_num::<f64>() / tf } else { 0.0 };
@@ -298,6 +310,7 @@ mod tests {
         let u = torque_uncertainty(
             NewtonMetres::ZERO,
             NewtonMetres::from_num(10),
+            NewtonMetres::ZERO,
             Ratio::from_num(0.2),
             Ratio::ZERO,
             Combination::WorstCase,
@@ -310,6 +323,7 @@ mod tests {
         let u = torque_uncertainty(
             NewtonMetres::MAX,
             NewtonMetres::MAX,
+            NewtonMetres::ZERO,
             Ratio::MAX,
             Ratio::MAX,
             Combination::WorstCase,

@@ -17,6 +17,8 @@ pub struct FrictionOutput {
     pub mu_kinetic: f64,
     /// Static μ (corrected).
     pub mu_static: f64,
+    /// |μ_blend − μ_k|: how far the blend moved μ from the kinetic table's own value.
+    pub transition_span: f64,
     /// Slipping after this sample.
     pub slipping: bool,
     /// −1, 0, +1 opposing slip (0 while holding).
@@ -132,6 +134,7 @@ impl<const NT: usize, const NV: usize> FrictionModel<NT, NV> {
         FrictionOutput {
             mu_kinetic: mu,
             mu_static: mu_s,
+            transition_span: (mu - mu_k).abs(),
             slipping: self.slipping,
             direction: if self.slipping {
                 if slip_speed > 0.0 { -1 } else { 1 }

@@ -496,7 +496,8 @@ impl<'a, const NT: usize, const NV: usize> PipelineModel<'a, NT, NV> {
             ),
             _ => (
                 torque.unwrap_or(0.0),
-                fric.mu_kinetic * u_f * per_unit_force,
+                // The blend's span near zero slip is added like the force term.
+                (fric.mu_kinetic * u_f + fric.transition_span * force) * per_unit_force,
             ),
         };
         PipelineEstimate {

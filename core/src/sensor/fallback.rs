@@ -12,8 +12,9 @@
 //!
 //! The actuator does not reach its force at once (a spring pack behind a release cylinder, a
 //! motor and gear): `response_time` τ adds a first-order lag after the hysteresis, discretised
-//! backward-Euler, y += (x − y)·T/(τ + T) [calc], so that the prediction follows the force
-//! through an apply or a release instead of running ahead of it. 0 s means no lag.
+//! step-invariant, y += (x − y)·(1 − e^(−T/τ)) [calc: the exact response of τ·ẏ = x − y to an
+//! input held over each sample], so that the prediction follows the force through an apply or
+//! a release instead of running ahead of it. 0 s means no lag.
 //!
 //! The same prediction checks the force from the channels: a voted force farther from it than
 //! the channels' own uncertainty plus the model's band (`uncertainty + hysteresis`) is
@@ -135,18 +136,53 @@ impl ActuatorLag {
     pub const NONE: Self = Self { alpha_q32: 0 };
 
     /// The lag of time constant `response_time` (s; 0 or less: no lag) at `sample_rate_hz`:
-    /// α = 1 / (1 + τ·f_s), rounded to nearest in Q32, at least 2⁻³².
+    /// α = 1 − e^(−T/τ), the step-invariant (zero-order-hold) discretisation of the first-order
+    /// lag [calc], in Q32 rounded to nearest, at least 2⁻³². `const`: e^x is summed as its
+    /// series in 128-bit integers (x = T/τ ≤ 16 in the sum; beyond, α rounds to 1 − 2⁻³²).
     pub const fn new(response_time: Seconds, sample_rate_hz: u32) -> Self {
         let tau = response_time.to_bits();
         if tau <= 0 || sample_rate_hz == 0 {
             return Self::NONE;
         }
-        // τ in Q32 (> 0, < 2⁶³) times f_s (< 2³²): below 2⁹⁵, exact in u128.
-        let denominator = (1u128 << 32) + (tau as u128) * (sample_rate_hz as u128);
-        // 2⁶⁴ / (2³² + x) < 2³² for x ≥ 1: fits u32; 0 would mean "no lag", so at least 1.
-        let alpha = ((1u128 << 64) + denominator / 2) / denominator;
+        // τ·f_s in Q32: τ < 2⁶³ (Q32 bits) times f_s < 2³², below 2⁹⁵.
+        let tau_fs_q32 = (tau as u128) * (sample_rate_hz as u128);
+        // x = T/τ = 1/(τ·f_s) in Q32.
+        let x_q32 = (1u128 << 64) / tau_fs_q32;
+        if x_q32 > 16 << 32 {
+            return Self {
+                alpha_q32: u32::MAX,
+            };
+        }
+        // e^x in Q64 by its series: each term t_k = t_(k−1)·x/k; with x ≤ 16 the terms stay
+        // below e¹⁶·2⁶⁴ < 2⁸⁸ and t·x below 2¹²⁵. Truncation per term: far below 2⁻³².
+        let mut sum: u128 = 1 << 64;
+        let mut term: u128 = 1 << 64;
+        let mut k: u128 = 1;
+        while k < 120 {
+            term = term * x_q32 / (k << 32);
+            if term == 0 {
+                break;
+            }
+            sum += term;
+            k += 1;
+        }
+        // e^(−x) in Q64 (sum ≥ 2⁶⁴, so the quotient is at most 2⁶⁴).
+        let decay_q64 = u128::MAX / sum;
+        let decay_q64 = if decay_q64 > 1 << 64 {
+            1 << 64
+        } else {
+            decay_q64
+        };
+        let alpha_q64 = (1u128 << 64) - decay_q64;
+        let alpha = (alpha_q64 + (1 << 31)) >> 32;
         #[allow(clippy::cast_possible_truncation)]
-        let alpha_q32 = if alpha == 0 { 1 } else { alpha as u32 };
+        let alpha_q32 = if alpha == 0 {
+            1
+        } else if alpha > u32::MAX as u128 {
+            u32::MAX
+        } else {
+            alpha as u32
+        };
         Self { alpha_q32 }
     }
 }
@@ -332,8 +368,8 @@ mod tests {
 
     #[test]
     fn lag_follows_a_step_as_a_first_order_system() {
-        // [calc] backward Euler of τ·ẏ = x − y: after n samples of a unit step from rest,
-        // y = 1 − (1 − α)ⁿ with α = T/(τ + T); τ = 50 ms at 1 kHz gives α = 1/51.
+        // [calc] the step-invariant lag reproduces the continuous response 1 − e^(−t/τ) at the
+        // sample instants: τ = 50 ms at 1 kHz, after 100 samples (t = 2τ) 1 − e^(−2) = 0.864665.
         let t = ActuatorTransfer {
             hysteresis: Newtons::ZERO,
             offset: Newtons::ZERO,
@@ -350,10 +386,31 @@ mod tests {
                 .force
                 .to_num::<f64>();
         }
-        let want = 25_000.0 * (1.0 - (1.0 - 1.0 / 51.0f64).powi(100));
-        assert!((y - want).abs() < 0.01, "{y} vs {want}");
-        // [calc] the continuous response 1 − e^(−t/τ) at t = 2τ is 0.8647: backward Euler at
-        // 1/50 of τ per sample is within 0.5 % of it.
-        assert!((y / 25_000.0 - 0.8647).abs() < 0.005, "{y}");
+        let want = 25_000.0 * (1.0 - (-2.0f64).exp());
+        assert!((y - want).abs() < 0.05, "{y} vs {want}");
+    }
+
+    #[test]
+    fn lag_coefficient_against_libm() {
+        // Reference: libm's exp, over time constants from a tenth of a sample to 10⁵ samples.
+        for (tau, rate) in [
+            (1e-4, 1000),
+            (1e-3, 1000),
+            (0.05, 1000),
+            (0.05, 10_000),
+            (100.0, 1000),
+            (2.0, 50),
+        ] {
+            let tau_q32 = Seconds::from_num(tau);
+            let lag = ActuatorLag::new(tau_q32, rate);
+            // τ as stored (Q32 s), so only the coefficient's own arithmetic is measured.
+            let want = -libm::expm1(-1.0 / (tau_q32.to_num::<f64>() * f64::from(rate)));
+            let got = f64::from(lag.alpha_q32) / 4_294_967_296.0;
+            assert!(
+                (got - want).abs() <= 1.5 / 4_294_967_296.0,
+                "{tau} s at {rate} Hz: {got} vs {want}"
+            );
+        }
+        assert_eq!(ActuatorLag::new(Seconds::ZERO, 1000), ActuatorLag::NONE);
     }
 }

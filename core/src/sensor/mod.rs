@@ -52,7 +52,9 @@
 //!   channel, health is [`Health::Lost`], and the force is the actuator fallback (when a
 //!   transfer is configured and a command is given) or absent.
 //! - Uncertainty (±N): `channel_uncertainty`, plus for a held channel the most the force can
-//!   have moved since its last accepted sample (`noise_band` + `max_rate`·k·T), plus the
+//!   have moved since its last accepted sample (`noise_band` + `max_rate`·k·T), plus how far a
+//!   used channel's filter output trails its newest sample beyond half the `noise_band` (the
+//!   low-pass lags a moving force), plus the
 //!   largest distance from the reported force to a *witness*: a used channel, or a channel the
 //!   vote left out only for disagreeing (see `force_bound`): the ± holds as long as one
 //!   witness is healthy. Where the actuator model predicts a force, a voted force beyond its
@@ -533,15 +535,18 @@ impl<const C: usize> SensorState<C> {
 
         // One pass over the channels: checks, filter, and the usable values for the vote.
         let mut values = [0i32; MAX_CHANNELS];
+        // How far each channel's filter output trails its newest accepted sample (Q8 N).
+        let mut trail = [0i64; MAX_CHANNELS];
         let mut usable = 0u8;
         let mut channel_force = [None; MAX_CHANNELS];
         let mut compensation = None;
-        for (i, (((ch, cal), r), (out, value))) in self
+        for (i, ((((ch, cal), r), (out, value)), lag)) in self
             .channels
             .iter_mut()
             .zip(cfg.channels.iter())
             .zip(raw.iter())
             .zip(channel_force.iter_mut().zip(values.iter_mut()))
+            .zip(trail.iter_mut())
             .enumerate()
         {
             // A compensation every channel shares is evaluated once, for the first.
@@ -561,7 +566,11 @@ impl<const C: usize> SensorState<C> {
                     ch.filter.reset(f);
                     Some(f)
                 }
-                Some(f) => Some(ch.filter.update(&cfg.filter, f)),
+                Some(f) => {
+                    let y = ch.filter.update(&cfg.filter, f);
+                    *lag = (i64::from(f.to_bits()) - i64::from(y.to_bits())).abs();
+                    Some(y)
+                }
                 None => ch.filter.output(),
             };
             if let Some(x) = *out
@@ -652,12 +661,24 @@ impl<const C: usize> SensorState<C> {
                 ),
             }
         } else {
+            // The filter trails a moving force: what it trails its newest sample by beyond that
+            // sample's own noise (half the peak-to-peak `noise_band`; `channel_uncertainty`
+            // already covers the noise) is added like a hold allowance.
+            let noise = i64::from(d.limits.noise_band.to_bits()) / 2;
+            let trailing = trail
+                .iter()
+                .enumerate()
+                .filter(|&(i, _)| v.used.contains(i))
+                .map(|(_, &t)| t - noise)
+                .max()
+                .unwrap_or(0)
+                .max(0);
             let bound = force_bound(
                 cfg.voting.channel_uncertainty,
                 &v,
                 &channel_force,
                 &channel_flags,
-                held,
+                held.saturating_add(trailing.unsigned_abs()),
                 predicted.zip(cfg.fallback.as_ref()),
             );
             let all_used = v.used == ChannelMask::first(C);
@@ -711,9 +732,12 @@ struct ForceBound {
 ///   range, rate or stuck flag — or when the actuator model, where there is one, puts it
 ///   beyond the model's band plus `channel_uncertainty`;
 /// - where the actuator model gives a prediction: a voted force farther from it than its own
-///   uncertainty (without the out-voted witnesses) plus the model's band is *implausible*
-///   (every channel may be wrong the same way), and the ± widens to cover the model's band as
-///   well, since then the model may be the one that is right.
+///   uncertainty (without the out-voted witnesses) may be wrong alike on every channel, which
+///   no vote can see; the ± then widens to reach the model's band as well, since the model may
+///   be the one that is right. Farther than that plus the band, the two contradict each other
+///   and the force is *implausible*. A model whose band is honest and tight therefore keeps
+///   the ± tight and still covers a fault shared by every channel; one that disagrees with
+///   healthy channels by more than their ± widens it.
 fn force_bound(
     channel_uncertainty: Newtons,
     v: &Vote,
@@ -757,9 +781,12 @@ fn force_bound(
     let mut implausible = false;
     if let Some((p, band)) = model {
         let gap = (voted - p).abs();
-        if gap > consensus.saturating_add(band) {
-            implausible = true;
+        // Farther from the model than the channels' own ± reaches: the channels may all be
+        // wrong alike, so the ± covers the model's band too; beyond the band as well, the two
+        // contradict each other outright.
+        if gap > consensus {
             bound = bound.max(gap + band);
+            implausible = gap > consensus.saturating_add(band);
         }
     }
     ForceBound {

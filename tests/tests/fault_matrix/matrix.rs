@@ -3,8 +3,9 @@
 
 use rayon::prelude::*;
 
+use super::catalogue::FaultCase;
 use super::catalogue::{CASES, FAULT_START_S, faults};
-use super::devices::{self, Device};
+use super::devices::{self, Device, Variant};
 use super::run::{DURATION_S, RunTally, SCENARIOS, TRUTHS, Truth, Verdict, run, tally};
 
 /// One cell: a fault kind on one device in one scenario, over the seeds.
@@ -15,6 +16,24 @@ pub struct Cell {
     pub tally: RunTally,
     /// Detection latency of each seed's run (None: never detected).
     pub latencies_s: Vec<Option<f64>>,
+    /// Outside the estimate's contract by construction: every gauge of the device is faulted
+    /// and there is no actuator model, so no healthy witness remains and nothing outside the
+    /// gauges can tell (reported, not asserted).
+    pub outside_contract: bool,
+}
+
+/// Whether `case` faults every gauge of `dev` on a device without an actuator model.
+fn outside_contract(case: &FaultCase, dev: &Device) -> bool {
+    if dev.variant != Variant::NoActuator {
+        return false;
+    }
+    let specs = (case.specs)(&dev.config, DURATION_S);
+    (1..=dev.gauges).all(|ch| {
+        specs.iter().any(|s| {
+            s.split_once(':')
+                .is_some_and(|(_, rest)| rest.starts_with(&format!("{ch}@")))
+        })
+    })
 }
 
 /// The fault-free runs' own rows beyond ± (left out of every faulted run).
@@ -111,11 +130,15 @@ pub fn run_matrix() -> Matrix {
                     scenario: s,
                     latencies_s: vec![t.latency_s],
                     tally: t,
+                    outside_contract: false,
                 }),
             }
         }
     }
     cells.sort_by_key(|c| (c.case, c.device, c.scenario));
+    for c in &mut cells {
+        c.outside_contract = outside_contract(&CASES[c.case], &devices[c.device]);
+    }
     Matrix {
         devices,
         cells,
