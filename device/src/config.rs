@@ -147,7 +147,10 @@ pub struct Contact {
     #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-4, max = 10.0)))]
     pub outer_radius_m: Option<f64>,
     /// Angle of a sector pad, degrees (0 < angle ≤ 360).
-    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-3, max = 360.0)))]
+    #[cfg_attr(
+        any(test, feature = "schema"),
+        schemars(range(min = 1e-3, max = 360.0))
+    )]
     pub sector_angle_deg: Option<f64>,
     /// Radius of a circular pad, m.
     #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
@@ -474,7 +477,10 @@ pub struct Adaptation {
     #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub min_clamp_force_n: f64,
     /// Torque full scale the update is normalised by, N·m (> 0).
-    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-3, max = 500e3)))]
+    #[cfg_attr(
+        any(test, feature = "schema"),
+        schemars(range(min = 1e-3, max = 500e3))
+    )]
     pub torque_full_scale_nm: f64,
     /// Least |model torque| / full scale for an update to carry information (0 < x < 1).
     #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0, "exclusiveMaximum" = 1)))]

@@ -208,11 +208,10 @@ impl Walker<'_> {
             }
             other => other.to_string(),
         };
-        let allowed = d.get("enum").and_then(Value::as_array).map(|e| {
-            e.iter()
-                .map(|v| v.to_string())
-                .collect::<Vec<String>>()
-        });
+        let allowed = d
+            .get("enum")
+            .and_then(Value::as_array)
+            .map(|e| e.iter().map(|v| v.to_string()).collect::<Vec<String>>());
         (kind, allowed, String::new())
     }
 
@@ -261,7 +260,9 @@ impl Walker<'_> {
             let bound = |incl: &str, excl: &str| {
                 number(p.get(excl).or_else(|| bounded.get(excl)))
                     .map(|v| (v, false))
-                    .or_else(|| number(p.get(incl).or_else(|| bounded.get(incl))).map(|v| (v, true)))
+                    .or_else(|| {
+                        number(p.get(incl).or_else(|| bounded.get(incl))).map(|v| (v, true))
+                    })
             };
             let presence = match p.get("default") {
                 Some(v) => format!("default `{v}`"),
@@ -303,7 +304,10 @@ impl Walker<'_> {
 pub fn sections() -> Vec<Section> {
     let root = schema();
     let empty = Map::new();
-    let defs = root.get("$defs").and_then(Value::as_object).unwrap_or(&empty);
+    let defs = root
+        .get("$defs")
+        .and_then(Value::as_object)
+        .unwrap_or(&empty);
     let mut w = Walker {
         defs,
         sections: Vec::new(),
@@ -447,7 +451,9 @@ mod tests {
                 let found = sections
                     .iter()
                     .any(|s| s.path == path && s.keys.iter().any(|k| k.name == key))
-                    || sections.iter().any(|s| s.path == format!("{path}.{key}").trim_start_matches('.'))
+                    || sections
+                        .iter()
+                        .any(|s| s.path == format!("{path}.{key}").trim_start_matches('.'))
                     || path.starts_with("trace.columns");
                 if !found {
                     missing.push(format!("{path}.{key}"));
@@ -475,7 +481,11 @@ mod tests {
         for (k, v) in t {
             match v {
                 toml::Value::Table(sub) => {
-                    let p = if path.is_empty() { k.clone() } else { format!("{path}.{k}") };
+                    let p = if path.is_empty() {
+                        k.clone()
+                    } else {
+                        format!("{path}.{k}")
+                    };
                     walk_keys(sub, &p, f);
                 }
                 toml::Value::Array(a) if a.iter().all(toml::Value::is_table) && !a.is_empty() => {
@@ -501,7 +511,11 @@ mod tests {
                 for k in &s.keys {
                     let integer = k.kind == "integer";
                     let step = |v: f64| {
-                        if integer { 1.0 } else { (v.abs() * 1e-3).max(1e-9) }
+                        if integer {
+                            1.0
+                        } else {
+                            (v.abs() * 1e-3).max(1e-9)
+                        }
                     };
                     let mut outside = Vec::new();
                     if let Some((lo, incl)) = k.min {
@@ -544,7 +558,11 @@ mod tests {
         assert!(checked > 60, "{checked}");
     }
 
-    fn table_at<'a>(t: &'a mut toml::Table, path: &str, array: bool) -> Option<&'a mut toml::Table> {
+    fn table_at<'a>(
+        t: &'a mut toml::Table,
+        path: &str,
+        array: bool,
+    ) -> Option<&'a mut toml::Table> {
         let mut cur = t;
         for seg in path.split('.') {
             let v = cur.get_mut(seg)?;

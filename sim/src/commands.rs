@@ -189,7 +189,10 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
     let mut inputs = vec![("config", path_str(&a.config))];
     inputs.extend(jobs.iter().map(|j| ("trace", j.0.as_str())));
     let mut outputs: Vec<(&str, &str)> = jobs.iter().map(|j| ("estimate", j.1.as_str())).collect();
-    outputs.extend(jobs.iter().filter_map(|j| j.2.as_deref().map(|p| ("plot", p))));
+    outputs.extend(
+        jobs.iter()
+            .filter_map(|j| j.2.as_deref().map(|p| ("plot", p))),
+    );
     refuse_overwriting_inputs(&inputs, &outputs)?;
     let (cfg, core) = load(&a.config)?;
     let to_stdout = jobs.iter().any(|j| j.1 == "-");
@@ -259,11 +262,19 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// Config, data and I/O errors; threshold breaches are the outcome's failure (exit 3).
 pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
     let gate = GateSpec::parse(&a.gate_states, a.relative_floor_nm).map_err(SimError::Usage)?;
-    let mut inputs: Vec<(&str, &str)> = a.estimates.iter().map(|e| ("estimate", e.as_str())).collect();
+    let mut inputs: Vec<(&str, &str)> = a
+        .estimates
+        .iter()
+        .map(|e| ("estimate", e.as_str()))
+        .collect();
     if let Some(c) = &a.config {
         inputs.push(("config", path_str(c)));
     }
-    let outputs: Vec<(&str, &str)> = a.regions_csv.iter().map(|p| ("--regions-csv", p.as_str())).collect();
+    let outputs: Vec<(&str, &str)> = a
+        .regions_csv
+        .iter()
+        .map(|p| ("--regions-csv", p.as_str()))
+        .collect();
     refuse_overwriting_inputs(&inputs, &outputs)?;
     let cfg = match &a.config {
         Some(p) => Some(read_config(p)?),
@@ -370,10 +381,14 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// Config, data and I/O errors; incomplete coverage under `--require-full-coverage` is the
 /// outcome's failure (exit 3) and nothing is written.
 pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
-    let outputs: Vec<(&str, &str)> = [("--out", &a.out), ("--coverage-csv", &a.coverage_csv), ("--plot", &a.plot)]
-        .into_iter()
-        .filter_map(|(w, p)| p.as_deref().map(|p| (w, p)))
-        .collect();
+    let outputs: Vec<(&str, &str)> = [
+        ("--out", &a.out),
+        ("--coverage-csv", &a.coverage_csv),
+        ("--plot", &a.plot),
+    ]
+    .into_iter()
+    .filter_map(|(w, p)| p.as_deref().map(|p| (w, p)))
+    .collect();
     refuse_overwriting_inputs(
         &[("config", path_str(&a.config)), ("trace", a.trace.as_str())],
         &outputs,
@@ -678,7 +693,10 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
 /// # Errors
 /// Data, I/O and plotting errors.
 pub fn plot(a: &PlotArgs, quiet: bool) -> Result<Outcome, SimError> {
-    refuse_overwriting_inputs(&[("estimate", a.estimate.as_str())], &[("plot", a.out.as_str())])?;
+    refuse_overwriting_inputs(
+        &[("estimate", a.estimate.as_str())],
+        &[("plot", a.out.as_str())],
+    )?;
     let mut r = EstimateReader::open(&a.estimate)?;
     let mut d = Decimator::new(PLOT_POINTS);
     let pb = bar(quiet, None, &a.estimate);

@@ -138,15 +138,18 @@ impl ErrorStats {
             max_abs_nm: max,
             p95_nm: p95,
             p99_nm: p99,
-            relative: self.rel.figures().map(|(n, b, r, m, p95, p99)| RelativeReport {
-                n,
-                floor_nm: self.floor_nm,
-                bias_pct: b,
-                rms_pct: r,
-                max_abs_pct: m,
-                p95_pct: p95,
-                p99_pct: p99,
-            }),
+            relative: self
+                .rel
+                .figures()
+                .map(|(n, b, r, m, p95, p99)| RelativeReport {
+                    n,
+                    floor_nm: self.floor_nm,
+                    bias_pct: b,
+                    rms_pct: r,
+                    max_abs_pct: m,
+                    p95_pct: p95,
+                    p99_pct: p99,
+                }),
         })
     }
 }
@@ -751,7 +754,10 @@ mod tests {
         assert!((r.gated.as_ref().unwrap().rms_nm - 100.0).abs() < 1e-9);
         let b = th.breaches(&r);
         assert_eq!(b.len(), 1, "{b:?}");
-        assert!(b[0].starts_with("slipping: RMS 100.000 N·m exceeds 80"), "{b:?}");
+        assert!(
+            b[0].starts_with("slipping: RMS 100.000 N·m exceeds 80"),
+            "{b:?}"
+        );
         // Both states pooled, as asked.
         let gate = GateSpec::parse(&["slipping".into(), "released".into()], 10.0).unwrap();
         let mut c2 = Comparer::new(None, gate);
@@ -777,7 +783,10 @@ mod tests {
         };
         assert!(gate(2).breaches(&r).is_empty());
         let b = gate(1).breaches(&r);
-        assert!(b[0].contains("2 holding rows") && b[0].contains("-1698.0"), "{b:?}");
+        assert!(
+            b[0].contains("2 holding rows") && b[0].contains("-1698.0"),
+            "{b:?}"
+        );
     }
 
     /// [calc: errors +10 at 1000 N·m (1 %) and −4 at 200 N·m (−2 %); the row at 5 N·m is

@@ -72,7 +72,10 @@ fn main() -> ExitCode {
                         m.insert("error".into(), error_json(f));
                     }
                 }
-                format!("{}\n", serde_json::to_string_pretty(&js).unwrap_or_default())
+                format!(
+                    "{}\n",
+                    serde_json::to_string_pretty(&js).unwrap_or_default()
+                )
             } else {
                 o.human
             };
@@ -81,7 +84,10 @@ fn main() -> ExitCode {
         Err(e) => {
             let text = if cli.json {
                 let js = serde_json::json!({"ok": false, "error": error_json(&e)});
-                format!("{}\n", serde_json::to_string_pretty(&js).unwrap_or_default())
+                format!(
+                    "{}\n",
+                    serde_json::to_string_pretty(&js).unwrap_or_default()
+                )
             } else {
                 String::new()
             };

@@ -294,11 +294,16 @@ impl AtomicFile {
         };
         let marker = format!("{lead}# INCOMPLETE: {why}\n");
         // Best effort everywhere: the run has already failed, the error reported is the first.
-        let written = self.writer().write_all(marker.as_bytes()).is_ok() && self.writer().flush().is_ok();
+        let written =
+            self.writer().write_all(marker.as_bytes()).is_ok() && self.writer().flush().is_ok();
         match self.sink {
             Sink::File { target, w } => {
                 drop(w);
-                if written { target.publish_partial() } else { None }
+                if written {
+                    target.publish_partial()
+                } else {
+                    None
+                }
             }
             Sink::Stdout(_) | Sink::Direct(_) => None,
         }
@@ -391,8 +396,8 @@ pub fn refuse_overwriting_inputs(
     }
     for (i, (aw, ap)) in outs.iter().enumerate() {
         for (bw, bp) in outs.iter().skip(i + 1) {
-            let same = lexical(ap) == lexical(bp)
-                || identity(ap).is_some_and(|a| Some(a) == identity(bp));
+            let same =
+                lexical(ap) == lexical(bp) || identity(ap).is_some_and(|a| Some(a) == identity(bp));
             if same {
                 return Err(SimError::Usage(format!(
                     "{aw} and {bw} are both '{}': one would replace the other; nothing was written",
@@ -410,7 +415,8 @@ mod tests {
     use super::*;
 
     fn dir(name: &str) -> PathBuf {
-        let d = std::env::temp_dir().join(format!("clampwise-output-{name}-{}", std::process::id()));
+        let d =
+            std::env::temp_dir().join(format!("clampwise-output-{name}-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&d);
         std::fs::create_dir_all(&d).unwrap();
         d
@@ -496,7 +502,10 @@ mod tests {
             let e = refuse_overwriting_inputs(&input, &[("estimate", out.as_str())])
                 .unwrap_err()
                 .to_string();
-            assert!(e.contains("refusing to write estimate") && e.contains("trace"), "{e}");
+            assert!(
+                e.contains("refusing to write estimate") && e.contains("trace"),
+                "{e}"
+            );
         }
         let e = refuse_overwriting_inputs(&[], &[("a", other.as_str()), ("b", other.as_str())]);
         assert!(e.is_err());

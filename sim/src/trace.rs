@@ -334,9 +334,10 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
                     "1" | "1.0" | "true" => true,
                     "0" | "0.0" | "false" => false,
                     other => {
-                        return Err(
-                            row.error(vc.index, format!("valid bit must be 0 or 1, got '{}'", echo(other)))
-                        );
+                        return Err(row.error(
+                            vc.index,
+                            format!("valid bit must be 0 or 1, got '{}'", echo(other)),
+                        ));
                     }
                 },
             };

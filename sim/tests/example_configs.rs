@@ -20,11 +20,23 @@ fn wet_clutch_example_checks_synthesises_replays_and_compares() {
     let cfg = write(&d, "demo-wet-clutch.toml", CLUTCH);
     let (code, out, err) = run(&["check", &cfg]);
     assert_eq!(code, 0, "{out}{err}");
-    assert!(out.contains("(Clutch), annulus × 8 faces, 2 sensors"), "{out}");
+    assert!(
+        out.contains("(Clutch), annulus × 8 faces, 2 sensors"),
+        "{out}"
+    );
     for scenario in ["sweep", "steady"] {
         let tr = d.join(format!("{scenario}.csv")).display().to_string();
         let (code, _, err) = run(&[
-            "-q", "synth", "-c", &cfg, "-o", &tr, "--scenario", scenario, "--duration-s", "30",
+            "-q",
+            "synth",
+            "-c",
+            &cfg,
+            "-o",
+            &tr,
+            "--scenario",
+            scenario,
+            "--duration-s",
+            "30",
         ]);
         assert_eq!(code, 0, "{err}");
         let est = d.join(format!("{scenario}.est.csv")).display().to_string();
@@ -32,7 +44,10 @@ fn wet_clutch_example_checks_synthesises_replays_and_compares() {
         assert_eq!(code, 0, "{err}");
         let tally = &js["traces"][0]["summary"]["tally"];
         assert_eq!(tally["rows"], 30_000);
-        assert!(tally["states"]["slipping"].as_u64().unwrap() > 10_000, "{tally}");
+        assert!(
+            tally["states"]["slipping"].as_u64().unwrap() > 10_000,
+            "{tally}"
+        );
         let max_t = tally["max_abs_torque_nm"].as_f64().unwrap();
         // [calc: faces · μ · F · r_e = 8 · 0.12 · 20 kN · 0.09 m ≈ 1.7 kN·m] a plate clutch
         // of this size works in the low kN·m.
@@ -51,9 +66,16 @@ fn wet_clutch_example_checks_synthesises_replays_and_compares() {
 #[test]
 fn both_example_configs_are_listed_in_the_config_reference() {
     let reference = include_str!("../../device/CONFIG.md");
-    assert!(reference.contains("demo-hoist-brake.toml") && reference.contains("demo-wet-clutch.toml"));
+    assert!(
+        reference.contains("demo-hoist-brake.toml") && reference.contains("demo-wet-clutch.toml")
+    );
     // The clutch's own keys are documented there.
-    for key in ["`drag_torque_nm`", "`drag_viscous_nm_per_rad_s`", "`kind`", "`faces`"] {
+    for key in [
+        "`drag_torque_nm`",
+        "`drag_viscous_nm_per_rad_s`",
+        "`kind`",
+        "`faces`",
+    ] {
         assert!(reference.contains(key), "{key}");
     }
 }

@@ -62,7 +62,10 @@ fn skip_bad_rows_with_no_good_row_is_a_data_error() {
         "--skip-bad-rows",
     ]);
     assert_eq!(code, 2, "{err}");
-    assert!(err.contains("no good data row: all 3 rows were bad"), "{err}");
+    assert!(
+        err.contains("no good data row: all 3 rows were bad"),
+        "{err}"
+    );
     assert!(err.contains("line 3, column 2 (force_1_N)"), "{err}");
     assert!(!out.exists());
 }
@@ -80,7 +83,10 @@ fn fit_with_no_usable_sample_is_a_data_error_and_writes_nothing() {
     let fitted = d.join("fitted.toml");
     let (code, _, err) = run(&["-q", "fit", "-c", &cfg, &tr, "-o", fitted.to_str().unwrap()]);
     assert_eq!(code, 2, "{err}");
-    assert!(err.contains("no usable sample: of 500 rows, 500 were not slipping"), "{err}");
+    assert!(
+        err.contains("no usable sample: of 500 rows, 500 were not slipping"),
+        "{err}"
+    );
     assert!(!fitted.exists());
 }
 
@@ -102,7 +108,10 @@ fn fit_that_reaches_no_entry_fails_and_writes_nothing() {
         "1e9",
     ]);
     assert_eq!(code, 3, "{out}{err}");
-    assert!(err.contains("no table entry reached --min-coverage"), "{err}");
+    assert!(
+        err.contains("no table entry reached --min-coverage"),
+        "{err}"
+    );
     assert!(!fitted.exists());
 }
 
@@ -112,7 +121,14 @@ fn synth_of_zero_rows_is_a_usage_error() {
     let cfg = write(&d, "cfg.toml", DEMO);
     let out = d.join("t.csv");
     for extra in [["--rows", "0"], ["--duration-s", "0.0001"]] {
-        let mut args = vec!["-q", "synth", "-c", cfg.as_str(), "-o", out.to_str().unwrap()];
+        let mut args = vec![
+            "-q",
+            "synth",
+            "-c",
+            cfg.as_str(),
+            "-o",
+            out.to_str().unwrap(),
+        ];
         args.extend(extra);
         let (code, _, err) = run(&args);
         assert_eq!(code, 1, "{extra:?}: {err}");
@@ -129,7 +145,10 @@ fn a_dash_reads_the_config_from_standard_input() {
     let (code, out, _) = run_stdin(&["check", "-"], b"[device]\nname = 1\n");
     assert_eq!(code, 1);
     assert!(out.contains("-:2:"), "{out}");
-    let (code, out, err) = run_stdin(&["-q", "synth", "-c", "-", "-o", "-", "--rows", "10"], DEMO.as_bytes());
+    let (code, out, err) = run_stdin(
+        &["-q", "synth", "-c", "-", "-o", "-", "--rows", "10"],
+        DEMO.as_bytes(),
+    );
     assert_eq!(code, 0, "{err}");
     assert_eq!(out.lines().filter(|l| !l.starts_with('#')).count(), 11);
     // Standard input cannot feed both the config and the trace.
@@ -149,9 +168,17 @@ fn a_huge_bad_cell_is_echoed_cut_short() {
     let out = d.join("e.csv");
     let (code, stdout, err) = run(&["replay", "-q", "-c", &cfg, &tr, "-o", out.to_str().unwrap()]);
     assert_eq!(code, 2, "{}", &err[..err.len().min(500)]);
-    let echoed = format!("cannot read '{}… (5000000 bytes)' as a number", "x".repeat(64));
+    let echoed = format!(
+        "cannot read '{}… (5000000 bytes)' as a number",
+        "x".repeat(64)
+    );
     assert!(err.contains(&echoed), "{}", &err[..err.len().min(500)]);
-    assert!(err.len() < 2_000 && stdout.len() < 2_000, "{} {}", err.len(), stdout.len());
+    assert!(
+        err.len() < 2_000 && stdout.len() < 2_000,
+        "{} {}",
+        err.len(),
+        stdout.len()
+    );
     let partial = std::fs::read_to_string(format!("{}.partial", out.display())).unwrap();
     assert!(partial.len() < 10_000, "{}", partial.len());
     assert!(partial.trim_end().ends_with("as a number"));

@@ -47,7 +47,15 @@ fn replay_refuses_to_write_over_its_trace_or_config() {
     // The same file under another name: a hard link, and a path spelled differently.
     let link = d.join("link.csv");
     std::fs::hard_link(&tr, &link).unwrap();
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", link.to_str().unwrap()]);
+    let (code, _, err) = run(&[
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &tr,
+        "-o",
+        link.to_str().unwrap(),
+    ]);
     assert_refused(code, &err, &tr, &trace_text);
     assert!(err.contains("hard or symbolic link"), "{err}");
     let dotted = format!("{}/./t.csv", d.display());
@@ -77,7 +85,16 @@ fn other_commands_refuse_to_write_over_their_inputs() {
     assert_refused(code, &err, &cfg, &cfg_text);
     let truth = write(&d, "truth.toml", &cfg_text);
     let (code, _, err) = run(&[
-        "-q", "synth", "-c", &cfg, "--truth-config", &truth, "-o", &truth, "--rows", "10",
+        "-q",
+        "synth",
+        "-c",
+        &cfg,
+        "--truth-config",
+        &truth,
+        "-o",
+        &truth,
+        "--rows",
+        "10",
     ]);
     assert_refused(code, &err, &truth, &cfg_text);
     let trace_text = std::fs::read_to_string(&tr).unwrap();
@@ -104,7 +121,11 @@ fn a_failed_run_keeps_the_previous_good_output() {
     assert_eq!(std::fs::read_to_string(&est).unwrap(), good);
     let partial = std::fs::read_to_string(format!("{est_s}.partial")).unwrap();
     assert!(
-        partial.lines().last().unwrap().starts_with("# INCOMPLETE: "),
+        partial
+            .lines()
+            .last()
+            .unwrap()
+            .starts_with("# INCOMPLETE: "),
         "{partial}"
     );
     // No temporary file is left beside them; a later good run removes the stale .partial.
@@ -116,7 +137,10 @@ fn a_failed_run_keeps_the_previous_good_output() {
         v.sort();
         v
     };
-    assert_eq!(names(&d), ["bad.csv", "cfg.toml", "e.csv", "e.csv.partial", "t.csv"]);
+    assert_eq!(
+        names(&d),
+        ["bad.csv", "cfg.toml", "e.csv", "e.csv.partial", "t.csv"]
+    );
     assert_eq!(run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est_s]).0, 0);
     assert_eq!(names(&d), ["bad.csv", "cfg.toml", "e.csv", "t.csv"]);
 }
@@ -147,7 +171,16 @@ fn a_full_standard_output_is_an_io_error_not_a_panic() {
         vec!["check", cfg.as_str()],
         vec!["--json", "check", cfg.as_str()],
         vec!["-q", "replay", "-c", cfg.as_str(), tr.as_str(), "-o", "-"],
-        vec!["-q", "synth", "-c", cfg.as_str(), "-o", "-", "--rows", "5000"],
+        vec![
+            "-q",
+            "synth",
+            "-c",
+            cfg.as_str(),
+            "-o",
+            "-",
+            "--rows",
+            "5000",
+        ],
         vec!["-q", "tables", "-c", cfg.as_str(), "--emit", "-"],
     ] {
         let (code, err) = run_to_dev_full(&args);
@@ -161,7 +194,16 @@ fn a_full_standard_output_is_an_io_error_not_a_panic() {
 fn a_closed_standard_output_is_an_io_error_not_a_panic() {
     let (_, cfg, _) = setup("closed_pipe");
     for args in [
-        vec!["-q", "synth", "-c", cfg.as_str(), "-o", "-", "--rows", "200000"],
+        vec![
+            "-q",
+            "synth",
+            "-c",
+            cfg.as_str(),
+            "-o",
+            "-",
+            "--rows",
+            "200000",
+        ],
         vec!["-q", "check", "--units", cfg.as_str()],
     ] {
         let mut child = Command::new(BIN)
@@ -173,7 +215,12 @@ fn a_closed_standard_output_is_an_io_error_not_a_panic() {
         // The reader goes away before the writer is done.
         drop(child.stdout.take());
         let mut err = String::new();
-        child.stderr.take().unwrap().read_to_string(&mut err).unwrap();
+        child
+            .stderr
+            .take()
+            .unwrap()
+            .read_to_string(&mut err)
+            .unwrap();
         let code = child.wait().unwrap().code().unwrap_or(-1);
         assert_eq!(code, 4, "{args:?}: {err}");
         assert!(!err.contains("panicked"), "{args:?}: {err}");
@@ -190,8 +237,12 @@ fn json_summary_never_enters_the_data_stream() {
         .output()
         .unwrap();
     assert_eq!(replay.status.code(), Some(0));
-    let js: serde_json::Value = serde_json::from_slice(&replay.stderr)
-        .unwrap_or_else(|e| panic!("stderr is not JSON ({e}): {}", String::from_utf8_lossy(&replay.stderr)));
+    let js: serde_json::Value = serde_json::from_slice(&replay.stderr).unwrap_or_else(|e| {
+        panic!(
+            "stderr is not JSON ({e}): {}",
+            String::from_utf8_lossy(&replay.stderr)
+        )
+    });
     assert_eq!(js["traces"][0]["summary"]["tally"]["rows"], 200);
     let est = d.join("piped.csv");
     std::fs::write(&est, &replay.stdout).unwrap();
@@ -211,13 +262,27 @@ fn json_summary_never_enters_the_data_stream() {
         .output()
         .unwrap();
     assert!(up.wait().unwrap().success());
-    assert_eq!(down.status.code(), Some(0), "{}", String::from_utf8_lossy(&down.stderr));
+    assert_eq!(
+        down.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&down.stderr)
+    );
     let js: serde_json::Value = serde_json::from_slice(&down.stdout).unwrap();
     assert_eq!(js["files"][0]["report"]["rows"], 200);
     // A failing run with data on standard output: the error is in the JSON on stderr, and
     // stderr holds nothing else.
     let out = Command::new(BIN)
-        .args(["--json", "-q", "replay", "-c", &cfg, "missing.csv", "-o", "-"])
+        .args([
+            "--json",
+            "-q",
+            "replay",
+            "-c",
+            &cfg,
+            "missing.csv",
+            "-o",
+            "-",
+        ])
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(4));

@@ -33,7 +33,10 @@ fn demo_summary_matches_the_run_and_compare_gates_are_explicit() {
         out.contains("faults stuck:2@40..45, rail_high:3@120..121\n"),
         "{out}"
     );
-    assert!(!out.contains("dropout") && !out.contains("offset:2"), "{out}");
+    assert!(
+        !out.contains("dropout") && !out.contains("offset:2"),
+        "{out}"
+    );
     let js: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(dir.join("summary.json")).unwrap()).unwrap();
     // Every flag the replay counted is in the summary line, with its count.
@@ -44,7 +47,10 @@ fn demo_summary_matches_the_run_and_compare_gates_are_explicit() {
         .find(|l| l.trim_start().starts_with("flagged rows:"))
         .unwrap();
     for (name, n) in flags {
-        assert!(line.contains(&format!("{name} {n}")), "{name} {n} in {line}");
+        assert!(
+            line.contains(&format!("{name} {n}")),
+            "{name} {n} in {line}"
+        );
     }
     // 1 ms steps, as the trace says, not 0.0010000000000000009.
     let text = std::fs::read_to_string(dir.join("summary.json")).unwrap();
@@ -61,7 +67,10 @@ fn demo_summary_matches_the_run_and_compare_gates_are_explicit() {
     let r = &js["files"][0]["report"];
     assert_eq!(r["gated"], r["slipping"]);
     let rel = &r["gated"]["relative"];
-    assert!(rel["n"].as_u64().unwrap() > 1000 && rel["floor_nm"] == 10.0, "{rel}");
+    assert!(
+        rel["n"].as_u64().unwrap() > 1000 && rel["floor_nm"] == 10.0,
+        "{rel}"
+    );
     // Regions in numeric order: the temperature bands' lower edges increase.
     let lows: Vec<f64> = r["regions"]
         .as_array()
@@ -71,7 +80,10 @@ fn demo_summary_matches_the_run_and_compare_gates_are_explicit() {
         .filter_map(|g| g.strip_prefix("temperature "))
         .filter_map(|g| g.split(['–', ' ']).next().and_then(|x| x.parse().ok()))
         .collect();
-    assert!(lows.len() >= 2 && lows.windows(2).all(|w| w[0] < w[1]), "{lows:?}");
+    assert!(
+        lows.len() >= 2 && lows.windows(2).all(|w| w[0] < w[1]),
+        "{lows:?}"
+    );
     let (code, js, _) = run_json(&["compare", &est, "--gate-states", "slipping,released"]);
     assert_eq!(code, 0);
     let r = &js["files"][0]["report"];
@@ -79,12 +91,18 @@ fn demo_summary_matches_the_run_and_compare_gates_are_explicit() {
     // The holding gate: count and worst margin of the rows outside ±capacity.
     let outside = r["holding"]["outside_capacity"].as_u64().unwrap();
     let n = outside.to_string();
-    assert_eq!(run(&["-q", "compare", &est, "--max-holding-violations", &n]).0, 0);
+    assert_eq!(
+        run(&["-q", "compare", &est, "--max-holding-violations", &n]).0,
+        0
+    );
     if outside > 0 {
         let fewer = (outside - 1).to_string();
         let (code, out, _) = run(&["-q", "compare", &est, "--max-holding-violations", &fewer]);
         assert_eq!(code, 3);
-        assert!(out.contains(&format!("THRESHOLD FAILED: {outside} holding rows")), "{out}");
+        assert!(
+            out.contains(&format!("THRESHOLD FAILED: {outside} holding rows")),
+            "{out}"
+        );
     }
     let (code, _, err) = run(&["-q", "compare", &est, "--gate-states", "holding"]);
     assert_eq!(code, 1);
