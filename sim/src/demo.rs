@@ -173,7 +173,10 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
 
     let line = |r: &compare::CompareReport| {
         r.slipping.as_ref().map_or("no slipping rows".into(), |e| {
-            format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
+            let rel = e.relative.as_ref().map_or(String::new(), |r| {
+                format!(" (RMS {:.2} % of |reference| over {} rows ≥ {} N·m)", r.rms_pct, r.n, r.floor_nm)
+            });
+            format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows{rel}", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
         })
     };
     let mut human = String::new();

@@ -206,14 +206,16 @@ fn a_closed_standard_output_is_an_io_error_not_a_panic() {
         ],
         vec!["-q", "check", "--units", cfg.as_str()],
     ] {
+        // A pipe whose reader is closed before the program starts: every write to it fails
+        // with EPIPE, however small the output.
+        let (reader, writer) = std::io::pipe().unwrap();
+        drop(reader);
         let mut child = Command::new(BIN)
             .args(&args)
-            .stdout(Stdio::piped())
+            .stdout(writer)
             .stderr(Stdio::piped())
             .spawn()
             .unwrap();
-        // The reader goes away before the writer is done.
-        drop(child.stdout.take());
         let mut err = String::new();
         child
             .stderr
