@@ -33,6 +33,7 @@ pub const MAX_SENSORS: usize = 4;
 
 /// A whole device: geometry, friction, thermal, wear, sensors, adaptation, limits, trace layout.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct DeviceConfig {
     /// Name, kind and sample period.
@@ -67,6 +68,7 @@ pub struct DeviceConfig {
 
 /// `[device]`.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Device {
     /// Free text shown in summaries.
@@ -74,10 +76,12 @@ pub struct Device {
     /// Brake (stationary output) or clutch (two rotating members).
     pub kind: DeviceKind,
     /// Control-cycle period, s (0 < period ≤ 1).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-6, max = 1.0)))]
     pub sample_period_s: f64,
     /// The thermal and wear models advance every this many samples (1, 2, 4, 8, 16 or 32),
     /// with the energy of all of them; 1 (the default) advances them every sample.
     #[serde(default = "one_sample")]
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("enum" = [1, 2, 4, 8, 16, 32])))]
     pub thermal_wear_every: u8,
 }
 
@@ -87,6 +91,7 @@ fn one_sample() -> u8 {
 
 /// Brake or clutch.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(rename_all = "snake_case")]
 pub enum DeviceKind {
     /// Output member stationary: slip speed = input speed.
@@ -97,6 +102,7 @@ pub enum DeviceKind {
 
 /// Contact shape.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(rename_all = "snake_case")]
 pub enum Shape {
     /// Full annulus, `inner_radius_m`..`outer_radius_m`.
@@ -126,21 +132,31 @@ impl Shape {
 
 /// `[contact]`: the friction contact of one face; `faces` interfaces act in parallel.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Contact {
     /// Which shape; decides which of the keys below are required.
     pub shape: Shape,
     /// Number of friction interfaces N (1–64).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1, max = 64)))]
     pub faces: u32,
     /// Inner radius, m (annulus, sector, cone).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub inner_radius_m: Option<f64>,
     /// Outer radius, m (annulus, sector, cone).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-4, max = 10.0)))]
     pub outer_radius_m: Option<f64>,
     /// Angle of a sector pad, degrees (0 < angle ≤ 360).
+    #[cfg_attr(
+        any(test, feature = "schema"),
+        schemars(range(min = 1e-3, max = 360.0))
+    )]
     pub sector_angle_deg: Option<f64>,
     /// Radius of a circular pad, m.
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub pad_radius_m: Option<f64>,
     /// Distance of a circular pad's centre from the disc axis, m.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-4, max = 10.0)))]
     pub pad_centre_radius_m: Option<f64>,
     /// Which model of a circular pad's effective radius (button only; see
     /// `clampwise_core::geometry::button`: the published design table and the integrated
@@ -149,8 +165,10 @@ pub struct Contact {
     /// Outline of a polygon pad, m, disc axis at the origin (3–32 vertices, not enclosing it).
     pub vertices_m: Option<Vec<[f64; 2]>>,
     /// Cone half-angle, degrees (1–89).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1.0, max = 89.0)))]
     pub half_angle_deg: Option<f64>,
     /// Relative tolerance of the effective radius (0–1), for the uncertainty.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.0, max = 1.0)))]
     pub radius_tolerance_ratio: f64,
 }
 
@@ -189,6 +207,7 @@ impl Contact {
 
 /// `contact.button_model`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(rename_all = "snake_case")]
 pub enum ButtonModelName {
     /// r_e = δ(R/e)·e from the published design table [mem: Shigley ch. 16, after Fazekas],
@@ -200,25 +219,33 @@ pub enum ButtonModelName {
 
 /// `[friction]`.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Friction {
     /// μ_static / μ_kinetic at the first slip-speed breakpoint, for the holding capacity
     /// (0.5 … 1.6, the core's limit).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.5, max = 1.6)))]
     pub static_ratio: f64,
     /// Slip speed below which a slipping contact is taken as holding again, rad/s (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub stick_speed_rad_s: f64,
     /// Hysteresis of the stick/slip boundary, rad/s (0 < h): a holding contact slips only above
     /// `stick_speed_rad_s + stick_hysteresis_rad_s`. In the core's terms: a band of width h
     /// centred on stick + h/2.
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub stick_hysteresis_rad_s: f64,
     /// Slip speed over which μ moves from static to kinetic and the constant drag builds up,
     /// rad/s (> 0; the core's smoothstep transition).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub transition_speed_rad_s: f64,
     /// Constant (no-load) drag torque of a wet clutch at full transition, N·m (≥ 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub drag_torque_nm: f64,
     /// Viscous drag of a wet clutch, N·m per rad/s (≥ 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub drag_viscous_nm_per_rad_s: f64,
     /// Relative tolerance of the μ table (0 ≤ δ < 1), for the uncertainty.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0), extend("exclusiveMaximum" = 1)))]
     pub mu_tolerance_ratio: f64,
     /// The μ table.
     pub mu: MuTableSpec,
@@ -227,6 +254,7 @@ pub struct Friction {
 /// `[friction.mu]`: kinetic μ over lining temperature × |slip speed|, `values[i][j]` at
 /// (`temperature_c[i]`, `slip_speed_rad_s[j]`).
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct MuTableSpec {
     /// Temperature breakpoints, °C, strictly increasing (1–8).
@@ -240,28 +268,39 @@ pub struct MuTableSpec {
 /// `[thermal]`: lumped rotor (and optionally a lining node); give either
 /// `cooling_time_constant_s` or `heat_transfer_w_per_m2_k` with `cooling_area_m2`.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Thermal {
     /// m·c of the rotor, J/K (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub rotor_heat_capacity_j_per_k: f64,
     /// τ = m·c/(h·A), s.
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub cooling_time_constant_s: Option<f64>,
     /// h, W/(m²·K).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub heat_transfer_w_per_m2_k: Option<f64>,
     /// A, m².
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub cooling_area_m2: Option<f64>,
     /// Share γ of the heat that goes into the rotor (0 < γ ≤ 1); with a lining node the rest
     /// heats the lining, without one it leaves the model.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1e-3, max = 1.0)))]
     pub heat_into_rotor_ratio: f64,
     /// Ambient temperature, °C (the trace's ambient column overrides it per sample).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -50.0, max = 200.0)))]
     pub ambient_c: f64,
     /// Start temperature of rotor and lining, °C (ambient when absent).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -50.0, max = 1000.0)))]
     pub initial_temperature_c: Option<f64>,
     /// Fade warning threshold, °C.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -50.0, max = 1000.0)))]
     pub fade_c: f64,
     /// Over-temperature threshold, °C (> fade).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -50.0, max = 1000.0)))]
     pub over_temperature_c: f64,
     /// A fade or over-temperature flag clears only this far below its threshold, K (≥ 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.0, max = 500.0)))]
     pub flag_hysteresis_k: f64,
     /// Optional second node: the lining, heated by 1 − γ of the power.
     pub lining: Option<LiningNode>,
@@ -272,48 +311,63 @@ pub struct Thermal {
 
 /// `[thermal.lining]`.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct LiningNode {
     /// m·c of the lining (all pads or facings), J/K (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub heat_capacity_j_per_k: f64,
     /// Conductance from lining to rotor, W/K (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub conductance_to_rotor_w_per_k: f64,
 }
 
 /// `[thermal.measured]`: a measured temperature replaces the model while plausible.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct MeasuredTemperature {
     /// Lowest plausible reading, °C.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -273.0, max = 1500.0)))]
     pub min_c: f64,
     /// Highest plausible reading, °C (> min).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -273.0, max = 1500.0)))]
     pub max_c: f64,
     /// Largest plausible change between two readings, K/s (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub max_rate_k_per_s: f64,
 }
 
 /// `[wear]`: energy, bedding and lining wear. Bedding and wear both follow from the friction
 /// work E: bedding = 1 − exp(−E/E_bed), thickness loss = k·E/(faces · pad area).
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Wear {
     /// Energy constant of bedding E_bed, J (1 … 10¹³).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1.0, max = 1e13)))]
     pub bedding_energy_j: f64,
     /// Friction work the lining has already taken at the start of a trace, J (≥ 0; 0 for new
     /// pads). Sets the starting bedding and wear.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.0, max = 1e14)))]
     pub initial_energy_j: f64,
     /// Lining volume lost per joule of friction work, m³/J (≥ 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub specific_wear_rate_m3_per_j: f64,
     /// Lining area of one face, m² (> 0); the work is shared by all faces.
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub pad_area_m2: f64,
     /// New lining thickness, m (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub lining_thickness_m: f64,
     /// Replace-by thickness, m (< lining thickness).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub minimum_thickness_m: f64,
 }
 
 /// One `[[sensor]]`: a clamp-force channel, counts → N by `F = (counts − offset) · gain`.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Sensor {
     /// Free text.
@@ -323,8 +377,10 @@ pub struct Sensor {
     /// Counts at zero force.
     pub offset_counts: f64,
     /// Lowest code the ADC produces.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -2147483648, max = 2147483647)))]
     pub rail_low_counts: i64,
     /// Highest code the ADC produces.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = -2147483648, max = 2147483647)))]
     pub rail_high_counts: i64,
     /// Codes within this many counts of a rail count as at the rail (≥ 0).
     pub rail_margin_counts: u32,
@@ -332,31 +388,41 @@ pub struct Sensor {
 
 /// `[sensing]`: conditioning, diagnostics and voting shared by all channels.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Sensing {
     /// First-order filter cut-off, Hz (0 < f < Nyquist).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub filter_cutoff_hz: f64,
     /// Lowest plausible force, N.
     pub range_low_n: f64,
     /// Highest plausible force, N (> low).
     pub range_high_n: f64,
     /// Largest plausible rate of change of clamp force, N/s (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub rate_limit_n_per_s: f64,
     /// Peak-to-peak noise of a healthy channel, N (≥ 0): the rate check's allowance and the
     /// stuck check's band.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub noise_band_n: f64,
     /// Samples a rejected channel's last good value may stand in (0 … 65 535).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0, max = 65535)))]
     pub max_hold_samples: u32,
     /// Bad samples in a row that raise a channel fault (1 … 65 535).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1, max = 65535)))]
     pub debounce_raise_samples: u32,
     /// Good samples in a row that clear it (1 … 65 535).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1, max = 65535)))]
     pub debounce_clear_samples: u32,
     /// A channel agrees with the consensus when within this of its median, N (> 0; two
     /// channels agree when they differ by at most twice this).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub vote_tolerance_n: f64,
     /// Samples a disagreement must persist before it is declared (1 … 65 535).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1, max = 65535)))]
     pub disagreement_debounce_samples: u32,
     /// ± uncertainty of one healthy calibrated, filtered channel, N (≥ 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub channel_uncertainty_n: f64,
     /// Stuck-signal check (optional; needs an actuator command in the trace).
     pub stuck: Option<StuckCheck>,
@@ -370,24 +436,30 @@ pub struct Sensing {
 
 /// `[sensing.stuck]`: a force that stays within the noise band while the command moves.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct StuckCheck {
     /// How long the force must stay within the noise band, s (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub time_s: f64,
     /// How far the actuator command must move in that time, command units (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub command_span: f64,
 }
 
 /// `[actuator]`: fallback clamp force from the actuator command, `F = gain · command + offset`
 /// with a hysteresis band.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Actuator {
     /// N per command unit (> 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0)))]
     pub force_n_per_command: f64,
     /// N at zero command.
     pub force_offset_n: f64,
     /// Full width of the band between rising and falling branches, N (≥ 0).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub hysteresis_n: f64,
     /// ± uncertainty of the transfer model, N (> `sensing.channel_uncertainty_n`). With the
     /// hysteresis it is also the band the force from the gauges must stay within: beyond it
@@ -403,35 +475,48 @@ pub struct Actuator {
 /// `[adaptation]`: bounded online correction of μ from a reference torque (the core's
 /// scalar RLS with forgetting).
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Adaptation {
     /// Whether to adapt at all.
     pub enabled: bool,
     /// Largest correction, as a fraction of the table value (0 … 0.5): k ∈ [1 − b, 1 + b].
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.0, max = 0.5)))]
     pub band_ratio: f64,
     /// Forgetting factor λ (0.9 ≤ λ ≤ 1).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.9, max = 1.0)))]
     pub forgetting_factor: f64,
     /// Adapt only at or above this clamp force, N (≥ touch force).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub min_clamp_force_n: f64,
     /// Torque full scale the update is normalised by, N·m (> 0).
+    #[cfg_attr(
+        any(test, feature = "schema"),
+        schemars(range(min = 1e-3, max = 500e3))
+    )]
     pub torque_full_scale_nm: f64,
     /// Least |model torque| / full scale for an update to carry information (0 < x < 1).
+    #[cfg_attr(any(test, feature = "schema"), schemars(extend("exclusiveMinimum" = 0, "exclusiveMaximum" = 1)))]
     pub min_excitation_ratio: f64,
 }
 
 /// `[limits]`: operating envelope.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Limits {
     /// Largest clamp force, N (≤ 200 kN, the core's envelope); scales the compare bands and the
     /// synthetic plant.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1.0, max = 200e3)))]
     pub max_clamp_force_n: f64,
     /// Below this clamp force the device is released: zero torque (plus drag), N.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0)))]
     pub touch_force_n: f64,
 }
 
 /// `[uncertainty]`: how the relative tolerances of μ, clamp force and r_e combine.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct Uncertainty {
     /// `worst_case` (δμ + δF/F + δr) or `root_sum_square`.
@@ -440,6 +525,7 @@ pub struct Uncertainty {
 
 /// `uncertainty.combination`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(rename_all = "snake_case")]
 pub enum CombinationName {
     /// δμ + δF/F + δr: holds whatever the correlation.
@@ -452,6 +538,7 @@ pub enum CombinationName {
 /// 0 (new, uniform pressure) and 1 (bedded, uniform wear): r_e is linear in bedding, so the
 /// two carry the whole model (see [`crate::build_core`]).
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct RadiusTableSpec {
     /// Clamp-force breakpoints, N (1–8, increasing). A force outside them raises the core's
@@ -461,9 +548,11 @@ pub struct RadiusTableSpec {
 
 /// `[trace]`: how CSV traces are laid out.
 #[derive(Debug, Clone, Default, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct TraceSpec {
     /// A time step longer than (1 + this) sample periods is a gap (default 0.5).
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.0, max = 100.0)))]
     pub gap_tolerance_ratio: Option<f64>,
     /// Column mapping; canonical names where a quantity is not listed.
     #[serde(default)]
@@ -472,28 +561,44 @@ pub struct TraceSpec {
 
 /// `[trace.columns]`: one entry per quantity, `{ column = "...", unit = "..." }`.
 #[derive(Debug, Clone, Default, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
-#[allow(missing_docs)]
 pub struct Columns {
+    /// Time stamps (canonical column `t_s`, s).
     pub time: Option<ColumnMap>,
+    /// Clamp force of channel 1 (canonical `force_1_N`, N; or ADC counts, kN, lbf, bar with `piston_area_m2` …).
     pub force_1: Option<ColumnMap>,
+    /// Clamp force of channel 2 (canonical `force_2_N`).
     pub force_2: Option<ColumnMap>,
+    /// Clamp force of channel 3 (canonical `force_3_N`).
     pub force_3: Option<ColumnMap>,
+    /// Clamp force of channel 4 (canonical `force_4_N`).
     pub force_4: Option<ColumnMap>,
+    /// Valid bit of channel 1, 0 or 1 (canonical `force_1_valid`; optional).
     pub force_1_valid: Option<ColumnMap>,
+    /// Valid bit of channel 2 (canonical `force_2_valid`; optional).
     pub force_2_valid: Option<ColumnMap>,
+    /// Valid bit of channel 3 (canonical `force_3_valid`; optional).
     pub force_3_valid: Option<ColumnMap>,
+    /// Valid bit of channel 4 (canonical `force_4_valid`; optional).
     pub force_4_valid: Option<ColumnMap>,
+    /// Input-member speed (canonical `omega_in_rad_s`, rad/s).
     pub omega_in: Option<ColumnMap>,
+    /// Output-member speed (canonical `omega_out_rad_s`, rad/s; required for a clutch).
     pub omega_out: Option<ColumnMap>,
+    /// Actuator command (canonical `command`; optional).
     pub command: Option<ColumnMap>,
+    /// Measured lining temperature (canonical `temp_C`, °C; optional).
     pub temperature: Option<ColumnMap>,
+    /// Ambient temperature (canonical `ambient_C`, °C; optional).
     pub ambient: Option<ColumnMap>,
+    /// Reference torque (canonical `torque_ref_Nm`, N·m; needed by compare and fit).
     pub torque_ref: Option<ColumnMap>,
 }
 
 /// One column mapping.
 #[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
 #[serde(deny_unknown_fields)]
 pub struct ColumnMap {
     /// Header name in the CSV file.

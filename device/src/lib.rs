@@ -38,6 +38,8 @@ pub mod column_units;
 pub mod config;
 pub mod emit;
 pub mod emit_device;
+#[cfg(any(test, feature = "schema"))]
+pub mod reference;
 
 /// The documented example config of the built-in demo device (an invented hoist brake).
 pub const DEMO_CONFIG: &str = include_str!("../../sim/configs/demo-hoist-brake.toml");

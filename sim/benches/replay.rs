@@ -11,7 +11,9 @@
 //!   of the output work but the disk);
 //! - `step only 1e6 samples`: the seam's step on 10⁵ parsed samples, ten times;
 //! - `core Estimator::step only 1e6 samples`: the core's step on the same samples converted
-//!   beforehand (the seam's share is the difference to the line above).
+//!   beforehand (the seam's share is the difference to the line above);
+//! - `header/open 80 000 columns`: `CsvIn::open` on a header of 80 000 names (reading it and
+//!   checking it for duplicates, which must stay linear in the number of columns).
 
 use std::hint::black_box;
 use std::path::PathBuf;
@@ -140,5 +142,27 @@ fn bench(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, bench);
+fn wide_header(c: &mut Criterion) {
+    let path = std::env::temp_dir().join("clampwise-bench-header-80000.csv");
+    if !path.exists() {
+        let names: Vec<String> = (0..80_000).map(|i| format!("column_{i}")).collect();
+        std::fs::write(&path, format!("{}\n", names.join(","))).expect("write header");
+    }
+    let path = path.display().to_string();
+    let mut g = c.benchmark_group("header");
+    g.sample_size(10);
+    g.bench_function("open 80 000 columns", |b| {
+        b.iter(|| {
+            black_box(
+                clampwise_sim::csvin::CsvIn::open(&path)
+                    .expect("open")
+                    .headers()
+                    .len(),
+            )
+        });
+    });
+    g.finish();
+}
+
+criterion_group!(benches, bench, wide_header);
 criterion_main!(benches);

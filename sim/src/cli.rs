@@ -16,7 +16,8 @@ use clap::{Args, Parser, Subcommand};
 #[derive(Debug, Parser)]
 #[command(name = "clampwise", version, about, long_about = None, after_help = "Exit codes: 0 ok, 1 usage/config error, 2 data error, 3 threshold failed, 4 I/O error, 5 internal error.")]
 pub struct Cli {
-    /// Print a JSON summary on standard output instead of the human text.
+    /// Print a JSON summary instead of the human text: on standard output, or on standard
+    /// error when standard output carries data (`-o -`), never mixed with the data.
     #[arg(long, global = true)]
     pub json: bool,
     /// No progress bars.
@@ -50,6 +51,23 @@ pub enum Command {
     Plot(PlotArgs),
 }
 
+impl Command {
+    /// Whether the command writes data (a trace, estimates, CSV, source) to standard output;
+    /// the summary then goes to standard error.
+    pub fn writes_data_to_stdout(&self) -> bool {
+        let dash = |o: &Option<String>| o.as_deref() == Some("-");
+        match self {
+            Self::Replay(a) => dash(&a.out),
+            Self::Synth(a) => a.out == "-",
+            Self::Compare(a) => dash(&a.regions_csv),
+            Self::Fit(a) => dash(&a.out) || dash(&a.coverage_csv) || dash(&a.plot),
+            Self::Tables(a) => dash(&a.emit),
+            Self::Plot(a) => a.out == "-",
+            Self::Demo(_) | Self::Check(_) => false,
+        }
+    }
+}
+
 /// `demo`.
 #[derive(Debug, Args)]
 pub struct DemoArgs {
@@ -70,7 +88,7 @@ pub struct DemoArgs {
 /// `replay`.
 #[derive(Debug, Args)]
 pub struct ReplayArgs {
-    /// Device config (TOML).
+    /// Device config (TOML; `-` for standard input).
     #[arg(long, short)]
     pub config: PathBuf,
     /// Trace files (CSV; `-` for standard input).
@@ -105,19 +123,38 @@ pub struct CompareArgs {
     /// Config whose μ breakpoints and force limit define the region bands.
     #[arg(long, short)]
     pub config: Option<PathBuf>,
-    /// Fail (exit 3) when |bias| exceeds this, N·m.
+    /// Fail (exit 3) when |bias| of the gated rows exceeds this, N·m.
     #[arg(long)]
     pub max_bias_nm: Option<f64>,
-    /// Fail (exit 3) when the RMS error exceeds this, N·m.
+    /// Fail (exit 3) when the RMS error of the gated rows exceeds this, N·m.
     #[arg(long)]
     pub max_rms_nm: Option<f64>,
-    /// Fail (exit 3) when the P99 of |error| exceeds this, N·m.
+    /// Fail (exit 3) when the P99 of |error| of the gated rows exceeds this, N·m.
     #[arg(long)]
     pub max_p99_nm: Option<f64>,
-    /// Fail (exit 3) when the largest |error| exceeds this, N·m.
+    /// Fail (exit 3) when the largest |error| of the gated rows exceeds this, N·m.
     #[arg(long)]
     pub max_abs_nm: Option<f64>,
-    /// Write the per-region numbers as CSV.
+    /// Fail (exit 3) when the RMS of error / |reference| of the gated rows exceeds this, %
+    /// (rows with |reference| at or above --relative-floor-nm only).
+    #[arg(long)]
+    pub max_rms_pct: Option<f64>,
+    /// Fail (exit 3) when the P99 of |error| / |reference| of the gated rows exceeds this, %.
+    #[arg(long)]
+    pub max_p99_pct: Option<f64>,
+    /// Which core states the --max-* error gates apply to, comma-separated: slipping,
+    /// released.
+    #[arg(long, value_delimiter = ',', default_value = "slipping")]
+    pub gate_states: Vec<String>,
+    /// Fail (exit 3) when more than this many holding rows have a reference torque outside
+    /// ±capacity.
+    #[arg(long)]
+    pub max_holding_violations: Option<u64>,
+    /// Relative figures (% of |reference|) count only rows with |reference| at or above this,
+    /// N·m (small references would turn any error into a huge percentage).
+    #[arg(long, default_value_t = 10.0)]
+    pub relative_floor_nm: f64,
+    /// Write the per-region numbers as CSV (`-` for standard output).
     #[arg(long)]
     pub regions_csv: Option<String>,
 }
@@ -125,7 +162,7 @@ pub struct CompareArgs {
 /// `fit`.
 #[derive(Debug, Args)]
 pub struct FitArgs {
-    /// Device config (TOML) holding the prior μ table.
+    /// Device config (TOML; `-` for standard input) holding the prior μ table.
     #[arg(long, short)]
     pub config: PathBuf,
     /// Trace with a reference-torque column.
@@ -156,10 +193,10 @@ pub struct FitArgs {
 /// `tables`.
 #[derive(Debug, Args)]
 pub struct TablesArgs {
-    /// Device config (TOML).
+    /// Device config (TOML; `-` for standard input).
     #[arg(long, short)]
     pub config: PathBuf,
-    /// Write the tables as Rust source for the firmware.
+    /// Write the tables as Rust source for the firmware (`-` for standard output).
     #[arg(long)]
     pub emit: Option<String>,
 }
@@ -167,7 +204,7 @@ pub struct TablesArgs {
 /// `synth`.
 #[derive(Debug, Args)]
 pub struct SynthArgs {
-    /// Device config (TOML).
+    /// Device config (TOML; `-` for standard input).
     #[arg(long, short)]
     pub config: PathBuf,
     /// Output trace (`-` for standard output).
@@ -176,7 +213,7 @@ pub struct SynthArgs {
     /// Scenario: hoist, steady or sweep.
     #[arg(long, default_value = "hoist")]
     pub scenario: String,
-    /// Rows to write (overrides --duration-s).
+    /// Rows to write, at least 1 (overrides --duration-s).
     #[arg(long)]
     pub rows: Option<u64>,
     /// Seconds of scenario (default: one cycle).
@@ -207,7 +244,7 @@ pub struct SynthArgs {
 /// `check`.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Config files.
+    /// Config files (`-` for standard input).
     #[arg(required_unless_present = "units")]
     pub configs: Vec<PathBuf>,
     /// List the trace column units the mapping accepts.

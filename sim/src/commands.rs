@@ -10,13 +10,13 @@ use serde_json::{Value, json};
 use crate::build_core::CoreDevice;
 use crate::cli::{CheckArgs, CompareArgs, FitArgs, PlotArgs, ReplayArgs, SynthArgs, TablesArgs};
 use crate::column_units::Quantity;
-use crate::compare::{self, Thresholds};
-use crate::config::{CANONICAL, LoadedConfig};
+use crate::compare::{self, GateSpec, Thresholds};
+use crate::config::{CANONICAL, ConfigErrors, ConfigIssue, LoadedConfig};
 use crate::emit;
 use crate::error::SimError;
 use crate::estimate::EstimateReader;
 use crate::fit::{self, FitOptions};
-use crate::output::write_file;
+use crate::output::{refuse_overwriting_inputs, write_file};
 use crate::plant::PlantOptions;
 use crate::plant::faults::Fault;
 use crate::plant::scenario::{SCENARIOS, Scenario};
@@ -76,8 +76,37 @@ pub fn bar(quiet: bool, multi: Option<&MultiProgress>, label: &str) -> Option<Pr
     })
 }
 
+/// Read and validate a config; `-` reads it from standard input.
+///
+/// # Errors
+/// The config's located problems; an unreadable file or stream is one problem without a
+/// location.
+pub fn read_config(path: &Path) -> Result<LoadedConfig, ConfigErrors> {
+    if path.as_os_str() != "-" {
+        return LoadedConfig::load(path);
+    }
+    let mut text = String::new();
+    match std::io::Read::read_to_string(&mut std::io::stdin().lock(), &mut text) {
+        Ok(_) => LoadedConfig::from_str(&text, "-"),
+        Err(e) => Err(ConfigErrors {
+            file: "-".into(),
+            issues: vec![ConfigIssue {
+                key: None,
+                line: None,
+                column: None,
+                message: format!("cannot read the config from standard input: {e}"),
+                snippet: None,
+            }],
+        }),
+    }
+}
+
+fn path_str(p: &Path) -> &str {
+    p.to_str().unwrap_or("")
+}
+
 fn load(path: &Path) -> Result<(LoadedConfig, CoreDevice), SimError> {
-    let cfg = LoadedConfig::load(path)?;
+    let cfg = read_config(path)?;
     // Loading already ran the core's checks; a failure here is a bug.
     let core = CoreDevice::build(&cfg.config).map_err(|e| SimError::Internal(e.to_string()))?;
     Ok((cfg, core))
@@ -98,7 +127,6 @@ fn stem(p: &str) -> String {
 /// # Errors
 /// Usage, config, data and I/O errors (for several traces, the first failure after all ran).
 pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
-    let (cfg, core) = load(&a.config)?;
     let jobs: Vec<(String, String, Option<String>)> = if a.traces.len() == 1 {
         let t = a.traces.first().cloned().unwrap_or_default();
         let out = match (&a.out, &a.out_dir) {
@@ -158,6 +186,15 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
             })
             .collect()
     };
+    let mut inputs = vec![("config", path_str(&a.config))];
+    inputs.extend(jobs.iter().map(|j| ("trace", j.0.as_str())));
+    let mut outputs: Vec<(&str, &str)> = jobs.iter().map(|j| ("estimate", j.1.as_str())).collect();
+    outputs.extend(
+        jobs.iter()
+            .filter_map(|j| j.2.as_deref().map(|p| ("plot", p))),
+    );
+    refuse_overwriting_inputs(&inputs, &outputs)?;
+    let (cfg, core) = load(&a.config)?;
     let to_stdout = jobs.iter().any(|j| j.1 == "-");
     let multi = MultiProgress::with_draw_target(ProgressDrawTarget::stderr());
     let run = |(trace, out, plot_path): &(String, String, Option<String>)| {
@@ -224,8 +261,23 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// # Errors
 /// Config, data and I/O errors; threshold breaches are the outcome's failure (exit 3).
 pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
+    let gate = GateSpec::parse(&a.gate_states, a.relative_floor_nm).map_err(SimError::Usage)?;
+    let mut inputs: Vec<(&str, &str)> = a
+        .estimates
+        .iter()
+        .map(|e| ("estimate", e.as_str()))
+        .collect();
+    if let Some(c) = &a.config {
+        inputs.push(("config", path_str(c)));
+    }
+    let outputs: Vec<(&str, &str)> = a
+        .regions_csv
+        .iter()
+        .map(|p| ("--regions-csv", p.as_str()))
+        .collect();
+    refuse_overwriting_inputs(&inputs, &outputs)?;
     let cfg = match &a.config {
-        Some(p) => Some(LoadedConfig::load(p)?),
+        Some(p) => Some(read_config(p)?),
         None => None,
     };
     let th = Thresholds {
@@ -233,6 +285,9 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
         max_rms_nm: a.max_rms_nm,
         max_p99_nm: a.max_p99_nm,
         max_abs_nm: a.max_abs_nm,
+        max_rms_pct: a.max_rms_pct,
+        max_p99_pct: a.max_p99_pct,
+        max_holding_violations: a.max_holding_violations,
     };
     let multi = MultiProgress::with_draw_target(ProgressDrawTarget::stderr());
     let reports: Vec<Result<compare::CompareReport, SimError>> = a
@@ -240,7 +295,7 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
         .par_iter()
         .map(|e| {
             let pb = bar(quiet, Some(&multi), e);
-            let r = compare::compare_file(e, cfg.as_ref().map(|c| &c.config), pb.as_ref());
+            let r = compare::compare_file(e, cfg.as_ref().map(|c| &c.config), &gate, pb.as_ref());
             if let Some(pb) = pb {
                 pb.finish_and_clear();
             }
@@ -250,7 +305,9 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
     let mut human = String::new();
     let mut js = Vec::new();
     let mut breaches = Vec::new();
-    let mut csv = String::from("file,region,n,bias_Nm,rms_Nm,max_abs_Nm,p95_Nm,p99_Nm\n");
+    let mut csv = String::from(
+        "file,region,n,bias_Nm,rms_Nm,max_abs_Nm,p95_Nm,p99_Nm,relative_floor_Nm,relative_n,bias_pct,rms_pct,max_abs_pct,p95_pct,p99_pct\n",
+    );
     for r in reports {
         let r = r?;
         human.push_str(&compare::human(&r));
@@ -266,13 +323,32 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
         if let Some(o) = &r.slipping {
             rows.push(("slipping".into(), o));
         }
-        for (k, v) in &r.regions {
-            rows.push((k.clone(), v));
+        if let Some(o) = &r.gated {
+            rows.push((format!("gated {}", r.gate_states.join("+")), o));
+        }
+        for g in &r.regions {
+            rows.push((g.region.clone(), &g.report));
         }
         for (k, e) in rows {
+            let rel = e.relative.as_ref().map_or_else(
+                || format!("{},0,,,,,", gate.relative_floor_nm),
+                |x| {
+                    format!(
+                        "{},{},{},{},{},{},{}",
+                        x.floor_nm, x.n, x.bias_pct, x.rms_pct, x.max_abs_pct, x.p95_pct, x.p99_pct
+                    )
+                },
+            );
             csv.push_str(&format!(
-                "{},\"{}\",{},{},{},{},{},{}\n",
-                r.file, k, e.n, e.bias_nm, e.rms_nm, e.max_abs_nm, e.p95_nm, e.p99_nm
+                "\"{}\",\"{}\",{},{},{},{},{},{},{rel}\n",
+                r.file.replace('"', "\"\""),
+                k,
+                e.n,
+                e.bias_nm,
+                e.rms_nm,
+                e.max_abs_nm,
+                e.p95_nm,
+                e.p99_nm
             ));
         }
         js.push(json!({"report": to_json(&r), "breaches": b}));
@@ -281,6 +357,10 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
         write_file(p, csv.as_bytes())?;
         human.push_str(&format!("regions written to {p}\n"));
     }
+    human.push_str(&format!(
+        "gates (--max-*) apply to the {} rows; holding rows are judged by --max-holding-violations\n",
+        gate.label()
+    ));
     human.push_str(&format!("{CAUTION}\n"));
     let failure = if breaches.is_empty() {
         None
@@ -289,8 +369,8 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
     };
     Ok(Outcome {
         human,
-        json: json!({"command": "compare", "files": js}),
-        human_to_stderr: false,
+        json: json!({"command": "compare", "gate_states": gate.states.iter().map(|s| s.name()).collect::<Vec<_>>(), "relative_floor_nm": gate.relative_floor_nm, "files": js}),
+        human_to_stderr: a.regions_csv.as_deref() == Some("-"),
         failure,
     })
 }
@@ -301,6 +381,18 @@ pub fn compare(a: &CompareArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// Config, data and I/O errors; incomplete coverage under `--require-full-coverage` is the
 /// outcome's failure (exit 3) and nothing is written.
 pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
+    let outputs: Vec<(&str, &str)> = [
+        ("--out", &a.out),
+        ("--coverage-csv", &a.coverage_csv),
+        ("--plot", &a.plot),
+    ]
+    .into_iter()
+    .filter_map(|(w, p)| p.as_deref().map(|p| (w, p)))
+    .collect();
+    refuse_overwriting_inputs(
+        &[("config", path_str(&a.config)), ("trace", a.trace.as_str())],
+        &outputs,
+    )?;
     let (cfg, core) = load(&a.config)?;
     let opts = FitOptions {
         min_coverage: a.min_coverage,
@@ -322,7 +414,8 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
         cfg.config.friction.mu.slip_speed_rad_s.len(),
     );
     let mut human = fit::human(&r, nv);
-    let incomplete = a.require_full_coverage && !r.unreached.is_empty();
+    let nothing_fitted = r.cells.iter().all(|c| !c.reached);
+    let incomplete = (a.require_full_coverage && !r.unreached.is_empty()) || nothing_fitted;
     let mut written = Vec::new();
     if !incomplete {
         if let Some(p) = &a.out {
@@ -347,10 +440,17 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
         json: json!({"command": "fit", "report": to_json(&r), "written": written}),
         human_to_stderr: false,
         failure: incomplete.then(|| {
-            SimError::Threshold(format!(
-                "--require-full-coverage: {} entries not reached; nothing written",
-                r.unreached.len()
-            ))
+            SimError::Threshold(if nothing_fitted {
+                format!(
+                    "no table entry reached --min-coverage {} (the fitted table would be the prior unchanged); nothing written",
+                    a.min_coverage
+                )
+            } else {
+                format!(
+                    "--require-full-coverage: {} entries not reached; nothing written",
+                    r.unreached.len()
+                )
+            })
         }),
     })
 }
@@ -360,6 +460,8 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// # Errors
 /// Config and I/O errors.
 pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
+    let outputs: Vec<(&str, &str)> = a.emit.iter().map(|p| ("--emit", p.as_str())).collect();
+    refuse_overwriting_inputs(&[("config", path_str(&a.config))], &outputs)?;
     let (cfg, core) = load(&a.config)?;
     let t = &core.tables;
     let mut human = emit::human(&cfg, t);
@@ -390,6 +492,11 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
 /// # Errors
 /// Usage (scenario, fault spec), config and I/O errors.
 pub fn synth(a: &SynthArgs, quiet: bool) -> Result<Outcome, SimError> {
+    let mut inputs = vec![("config", path_str(&a.config))];
+    if let Some(t) = &a.truth_config {
+        inputs.push(("--truth-config", path_str(t)));
+    }
+    refuse_overwriting_inputs(&inputs, &[("trace", a.out.as_str())])?;
     let (cfg, _) = load(&a.config)?;
     let scenario = Scenario::builtin(&a.scenario).ok_or_else(|| {
         SimError::Usage(format!(
@@ -414,7 +521,7 @@ pub fn synth(a: &SynthArgs, quiet: bool) -> Result<Outcome, SimError> {
         }
     }
     let truth_mu = match &a.truth_config {
-        Some(p) => Some(LoadedConfig::load(p)?.config.friction.mu),
+        Some(p) => Some(read_config(p)?.config.friction.mu),
         None => None,
     };
     for (name, v) in [
@@ -443,6 +550,11 @@ pub fn synth(a: &SynthArgs, quiet: bool) -> Result<Outcome, SimError> {
             r
         }
     };
+    if rows == 0 {
+        return Err(SimError::Usage(
+            "no rows to synthesise: --rows must be at least 1 (and --duration-s at least one sample period)".into(),
+        ));
+    }
     let opts = PlantOptions {
         seed: a.seed,
         mu_scale: a.mu_scale,
@@ -515,9 +627,14 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
         );
         human.push('\n');
     }
+    if a.configs.iter().filter(|p| p.as_os_str() == "-").count() > 1 {
+        return Err(SimError::Usage(
+            "standard input ('-') can be read only once".into(),
+        ));
+    }
     let mut failure = None;
     for p in &a.configs {
-        match LoadedConfig::load(p).and_then(|c| {
+        match read_config(p).and_then(|c| {
             CoreDevice::build(&c.config)
                 .map(|d| (c, d.tables))
                 .map_err(|e| crate::config::ConfigErrors {
@@ -576,6 +693,10 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
 /// # Errors
 /// Data, I/O and plotting errors.
 pub fn plot(a: &PlotArgs, quiet: bool) -> Result<Outcome, SimError> {
+    refuse_overwriting_inputs(
+        &[("estimate", a.estimate.as_str())],
+        &[("plot", a.out.as_str())],
+    )?;
     let mut r = EstimateReader::open(&a.estimate)?;
     let mut d = Decimator::new(PLOT_POINTS);
     let pb = bar(quiet, None, &a.estimate);

@@ -98,15 +98,18 @@ impl CsvIn {
         // The header record's own position ignores the comment lines before it; the reader's
         // position after it is the start of the next line, which counts them.
         me.header_line = me.reader.position().line().saturating_sub(1).max(1);
+        // A set, not a scan of the names so far: linear in the number of columns.
+        let mut seen = std::collections::HashSet::with_capacity(h.len());
         for (i, f) in h.iter().enumerate() {
             let name = String::from_utf8_lossy(f).trim().to_string();
-            if me.headers.contains(&name) {
+            if !seen.insert(name.clone()) {
+                let shown = echo(&name).into_owned();
                 return Err(DataError {
                     file: me.file.clone(),
                     line: Some(me.header_line),
                     column: Some(i + 1),
-                    header: Some(name.clone()),
-                    message: format!("header name '{name}' appears twice"),
+                    header: Some(shown.clone()),
+                    message: format!("header name '{shown}' appears twice"),
                 }
                 .into());
             }
@@ -128,6 +131,20 @@ impl CsvIn {
     /// Line of the header.
     pub fn header_line(&self) -> u64 {
         self.header_line
+    }
+
+    /// The header names for a message: at most [`ECHO_NAMES`] of them, each cut by [`echo`].
+    pub fn headers_for_message(&self) -> String {
+        let mut s: Vec<String> = self
+            .headers
+            .iter()
+            .take(ECHO_NAMES)
+            .map(|h| echo(h).into_owned())
+            .collect();
+        if self.headers.len() > ECHO_NAMES {
+            s.push(format!("… ({} columns in all)", self.headers.len()));
+        }
+        s.join(", ")
     }
 
     /// Index of a header name.
@@ -156,7 +173,7 @@ impl CsvIn {
             file: self.file.clone(),
             line: Some(self.header_line),
             column: column.map(|c| c + 1),
-            header: column.and_then(|c| self.headers.get(c).cloned()),
+            header: column.and_then(|c| self.headers.get(c).map(|h| echo(h).into_owned())),
             message,
         }
     }
@@ -232,7 +249,7 @@ impl Row<'_> {
             file: self.file.to_string(),
             line: Some(self.line),
             column: Some(col + 1),
-            header: self.headers.get(col).cloned(),
+            header: self.headers.get(col).map(|h| echo(h).into_owned()),
             message,
         }
     }
@@ -278,9 +295,12 @@ impl Row<'_> {
             Ok(v) if v.is_finite() => Ok(Some(v)),
             Ok(_) => Err(self.error(
                 col,
-                format!("'{text}' is not a finite number (NaN and infinities are rejected)"),
+                format!(
+                    "'{}' is not a finite number (NaN and infinities are rejected)",
+                    echo(text)
+                ),
             )),
-            Err(_) => Err(self.error(col, format!("cannot read '{text}' as a number"))),
+            Err(_) => Err(self.error(col, format!("cannot read '{}' as a number", echo(text)))),
         }
     }
 
@@ -292,6 +312,32 @@ impl Row<'_> {
     pub fn required_f64(&self, col: usize) -> Result<f64, DataError> {
         self.f64(col)?
             .ok_or_else(|| self.error(col, "empty cell where a number is required".into()))
+    }
+}
+
+/// How many characters of a cell or header name a message repeats.
+pub const ECHO_CHARS: usize = 64;
+
+/// How many header names a message lists.
+pub const ECHO_NAMES: usize = 24;
+
+/// `text` as a message repeats it: whole when short, else its first [`ECHO_CHARS`] characters
+/// and its length, so that a huge bad cell is not copied into every message and file.
+///
+/// ```
+/// use clampwise_sim::csvin::echo;
+/// assert_eq!(echo("abc"), "abc");
+/// let big = "x".repeat(1000);
+/// assert_eq!(echo(&big), format!("{}… (1000 bytes)", "x".repeat(64)));
+/// ```
+pub fn echo(text: &str) -> std::borrow::Cow<'_, str> {
+    match text.char_indices().nth(ECHO_CHARS) {
+        None => std::borrow::Cow::Borrowed(text),
+        Some((at, _)) => std::borrow::Cow::Owned(format!(
+            "{}… ({} bytes)",
+            text.get(..at).unwrap_or_default(),
+            text.len()
+        )),
     }
 }
 

@@ -39,6 +39,26 @@ pub const DEMO_FAULTS: [&str; 4] = [
 /// How far the demo's "real" pads sit from the nominal table (invented).
 pub const DEMO_MU_SCALE: f64 = 0.93;
 
+/// The demo faults that start within the first `duration_s` seconds: their text and parsed
+/// form.
+///
+/// # Errors
+/// An internal error if a built-in fault text does not parse.
+pub fn faults_within(
+    duration_s: f64,
+) -> Result<(Vec<&'static str>, Vec<crate::plant::faults::Fault>), SimError> {
+    let mut names = Vec::new();
+    let mut faults = Vec::new();
+    for text in DEMO_FAULTS {
+        let f: crate::plant::faults::Fault = text.parse().map_err(SimError::Internal)?;
+        if f.start_s < duration_s {
+            names.push(text);
+            faults.push(f);
+        }
+    }
+    Ok((names, faults))
+}
+
 fn path(dir: &Path, name: &str) -> String {
     dir.join(name).display().to_string()
 }
@@ -61,14 +81,15 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     let trace = path(dir, "trace.csv");
     let scenario =
         Scenario::builtin("hoist").ok_or_else(|| SimError::Internal("hoist scenario".into()))?;
-    let faults = DEMO_FAULTS
-        .iter()
-        .map(|f| f.parse())
-        .collect::<Result<Vec<_>, _>>()
-        .map_err(SimError::Internal)?;
     // Positive and finite, checked above.
     #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
     let rows = (a.duration_s / cfg.config.device.sample_period_s).round() as u64;
+    if rows == 0 {
+        return Err(SimError::Usage(
+            "--duration-s is shorter than one sample period".into(),
+        ));
+    }
+    let (fault_names, faults) = faults_within(a.duration_s)?;
     let pb = bar(quiet, None, "synthesising");
     let syn = synth::synthesise(
         &cfg.config,
@@ -98,7 +119,8 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     if let Some(pb) = &opts.progress {
         pb.finish_and_clear();
     }
-    let before = compare::compare_file(&estimate, Some(&cfg.config), None)?;
+    let gate = compare::GateSpec::default();
+    let before = compare::compare_file(&estimate, Some(&cfg.config), &gate, None)?;
 
     let pb = bar(quiet, None, "fitting μ");
     let fitted = fit::fit_trace(&cfg, &core, &trace, &FitOptions::default(), pb.as_ref())?;
@@ -124,7 +146,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         &ReplayOptions::default(),
         Some(&mut dec2),
     )?;
-    let after = compare::compare_file(&estimate2, Some(&cfg2.config), None)?;
+    let after = compare::compare_file(&estimate2, Some(&cfg2.config), &gate, None)?;
 
     let mut plots = Vec::new();
     if !a.no_plots {
@@ -151,7 +173,10 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
 
     let line = |r: &compare::CompareReport| {
         r.slipping.as_ref().map_or("no slipping rows".into(), |e| {
-            format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
+            let rel = e.relative.as_ref().map_or(String::new(), |r| {
+                format!(" (RMS {:.2} % of |reference| over {} rows ≥ {} N·m)", r.rms_pct, r.n, r.floor_nm)
+            });
+            format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows{rel}", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
         })
     };
     let mut human = String::new();
@@ -163,7 +188,11 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         a.duration_s,
         1.0 / cfg.config.device.sample_period_s,
         ((1.0 - DEMO_MU_SCALE) * 100.0).round(),
-        DEMO_FAULTS.join(", ")
+        if fault_names.is_empty() {
+            "none (all start after the trace ends)".into()
+        } else {
+            fault_names.join(", ")
+        }
     ));
     human.push_str(&format!(
         "  max lining temperature {:.0} °C, max |torque| {:.0} N·m\n",
@@ -176,11 +205,11 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         .map(|(k, v)| format!("{k} {v}"))
         .collect();
     human.push_str(&format!("  states: {}\n", states.join(", ")));
+    // Every flag the replay counted, as the replay's own summary lists them.
     let fl: Vec<String> = rep
         .tally
         .flags()
         .iter()
-        .filter(|(k, _)| **k != "ADAPTATION_FROZEN" && **k != "TORQUE_BOUNDED")
         .map(|(k, v)| format!("{k} {v}"))
         .collect();
     human.push_str(&format!(
@@ -195,8 +224,11 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     human.push_str(&format!("  fitted table:  {}\n", line(&after)));
     if before.holding.n > 0 {
         human.push_str(&format!(
-            "  holding: {} rows; the load stayed within the estimated ±capacity in {} of them\n",
-            before.holding.n, before.holding.within_capacity
+            "  holding: {} rows; the load stayed within the estimated ±capacity in {} of them, outside in {} (worst margin {:.0} N·m)\n",
+            before.holding.n,
+            before.holding.within_capacity,
+            before.holding.outside_capacity,
+            before.holding.min_margin_nm.unwrap_or(0.0)
         ));
     }
     human.push_str(&format!(
@@ -223,6 +255,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         "command": "demo",
         "invented": true,
         "device": cfg.config.device.name,
+        "faults": fault_names,
         "synth": serde_json::to_value(&syn).unwrap_or_default(),
         "replay": serde_json::to_value(&rep).unwrap_or_default(),
         "compare_nominal": serde_json::to_value(&before).unwrap_or_default(),

@@ -11,7 +11,7 @@
 
 use std::io::Write;
 
-use crate::csvin::CsvIn;
+use crate::csvin::{CsvIn, echo};
 use crate::error::{DataError, SimError};
 use crate::output::AtomicFile;
 use crate::seam::{EstimateRow, Flags, State};
@@ -230,7 +230,7 @@ impl EstimateReader {
             *c = csv.column(name).ok_or_else(|| {
                 csv.header_error(
                     None,
-                    format!("missing column '{name}': not an estimate file written by `clampwise replay`? (header: {})", csv.headers().join(", ")),
+                    format!("missing column '{name}': not an estimate file written by `clampwise replay`? (header: {})", csv.headers_for_message()),
                 )
             })?;
         }
@@ -262,7 +262,7 @@ impl EstimateReader {
         let state = State::parse(row.text(state_col)).ok_or_else(|| {
             row.error(
                 state_col,
-                format!("unknown state '{}'", row.text(state_col)),
+                format!("unknown state '{}'", echo(row.text(state_col))),
             )
         })?;
         let flags_col = c.get(14).copied().unwrap_or(0);
@@ -274,7 +274,9 @@ impl EstimateReader {
                 row.error(
                     flags_col,
                     format!(
-                        "flags must be the core's flag names joined by ' | ', got '{text}': {e}"
+                        "flags must be the core's flag names joined by ' | ', got '{}': {}",
+                        echo(text),
+                        echo(&e.to_string())
                     ),
                 )
             })?

@@ -258,6 +258,18 @@ pub fn fit_trace(
         used += 1;
         Ok(())
     })?;
+    if used == 0 {
+        return Err(DataError {
+            file: trace.to_string(),
+            line: None,
+            column: None,
+            header: None,
+            message: format!(
+                "no usable sample: of {samples} rows, {excluded} were not slipping above the transition speed with a clamp force of at least {min_force} N, a reference torque and no sensor flag, and {outside} were outside the μ table; nothing fitted"
+            ),
+        }
+        .into());
+    }
 
     let prior: Vec<f64> = c.friction.mu.values.iter().flatten().copied().collect();
     let reached: Vec<usize> = (0..k).filter(|&p| cover[p] >= opts.min_coverage).collect();

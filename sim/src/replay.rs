@@ -351,12 +351,12 @@ pub fn human(s: &ReplaySummary) -> String {
         "  time: {:.3} … {:.3} s, median step {} s, {} duplicate stamps{}, {} gaps{} (largest step {} s), {} non-monotonic rows skipped\n",
         t.first_t_s.unwrap_or(0.0),
         t.last_t_s.unwrap_or(0.0),
-        t.median_step_s.map_or("?".into(), |m| format!("{m}")),
+        t.median_step_s.map_or("?".into(), crate::timestamps::step_text),
         t.duplicates,
         t.first_duplicate_line.map_or(String::new(), |l| format!(" (first at line {l})")),
         t.gaps,
         t.first_gap_line.map_or(String::new(), |l| format!(" (first at line {l})")),
-        t.largest_step_s,
+        crate::timestamps::step_text(t.largest_step_s),
         t.non_monotonic_skipped
     ));
     if let Some(l) = s.unterminated_last_line {

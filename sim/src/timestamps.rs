@@ -29,7 +29,9 @@ pub struct TimeReport {
     pub gaps: u64,
     /// Line of the first row after a gap.
     pub first_gap_line: Option<u64>,
-    /// Longest step, s.
+    /// Longest step, s (written to 12 significant digits: a difference of two time stamps
+    /// carries their rounding, e.g. 0.0010000000000000009 for 1 ms).
+    #[serde(serialize_with = "step_digits")]
     pub largest_step_s: f64,
     /// Rows dropped for going back in time (only with `--skip-bad-rows`).
     pub non_monotonic_skipped: u64,
@@ -37,8 +39,36 @@ pub struct TimeReport {
     pub first_t_s: Option<f64>,
     /// Last time stamp, s.
     pub last_t_s: Option<f64>,
-    /// Median of the first steps, s.
+    /// Median of the first steps, s (written to 12 significant digits).
+    #[serde(serialize_with = "optional_step_digits")]
     pub median_step_s: Option<f64>,
+}
+
+/// `x` to 12 significant digits, the precision of a time step taken as a difference of two
+/// stamps of a trace: 0.0010000000000000009 → 0.001.
+pub fn step_precision(x: f64) -> f64 {
+    if !x.is_finite() || x == 0.0 {
+        return x;
+    }
+    format!("{x:.11e}").parse().unwrap_or(x)
+}
+
+/// A time step for a human summary: 12 significant digits, shortest form (`0.001`).
+pub fn step_text(x: f64) -> String {
+    format!("{}", step_precision(x))
+}
+
+fn step_digits<S: serde::Serializer>(x: &f64, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_f64(step_precision(*x))
+}
+
+// serde's `serialize_with` hands the field by reference.
+#[allow(clippy::ref_option)]
+fn optional_step_digits<S: serde::Serializer>(x: &Option<f64>, s: S) -> Result<S::Ok, S::Error> {
+    match x {
+        Some(v) => s.serialize_some(&step_precision(*v)),
+        None => s.serialize_none(),
+    }
 }
 
 impl TimeCheck {
@@ -155,5 +185,22 @@ mod tests {
             }
         }
         assert!(err.unwrap().contains("wrong time unit"));
+    }
+
+    /// [calc: 9 · 0.001 − 0.008 in f64 is 0.0010000000000000009; 1 ms is what the trace says]
+    #[test]
+    fn steps_are_reported_without_float_noise() {
+        let dt = 9.0 * 0.001f64 - 0.008;
+        assert_eq!(format!("{dt}"), "0.0010000000000000009");
+        assert_eq!(step_text(dt), "0.001");
+        let r = TimeReport {
+            largest_step_s: dt,
+            median_step_s: Some(dt),
+            ..TimeReport::default()
+        };
+        let js = serde_json::to_string(&r).unwrap();
+        assert!(js.contains("\"largest_step_s\":0.001,"), "{js}");
+        assert!(js.contains("\"median_step_s\":0.001}"), "{js}");
+        assert_eq!(step_text(12.5), "12.5");
     }
 }

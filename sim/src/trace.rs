@@ -10,7 +10,7 @@ use serde::Serialize;
 
 use crate::column_units::{self, Conversion};
 use crate::config::{CANONICAL, DeviceConfig, DeviceKind};
-use crate::csvin::{CsvIn, Row};
+use crate::csvin::{CsvIn, Row, echo};
 use crate::error::{DataError, SimError};
 use crate::seam::{Channel, TraceSample};
 use crate::timestamps::{TimeCheck, TimeReport};
@@ -64,6 +64,7 @@ pub struct TraceReader {
     time: TimeCheck,
     skipped: SkipReport,
     rows_read: u64,
+    good_rows: u64,
 }
 
 fn find_column(
@@ -91,7 +92,7 @@ fn find_column(
                 q.name(),
                 if mapped { "trace.columns." } else { "" },
                 name,
-                csv.headers().join(", ")
+                csv.headers_for_message()
             );
             // Same stem, other unit: a wrong-units header. Say how to map it.
             let stem = col_name
@@ -165,6 +166,7 @@ impl TraceReader {
             ),
             skipped: SkipReport::default(),
             rows_read: 0,
+            good_rows: 0,
         })
     }
 
@@ -241,6 +243,23 @@ impl TraceReader {
                             message: "the trace has a header but no data rows".into(),
                         });
                     }
+                    if self.good_rows == 0 {
+                        // Every row was skipped: an empty result is not a success.
+                        return Err(DataError {
+                            file: self.csv.file().to_string(),
+                            line: None,
+                            column: None,
+                            header: None,
+                            message: format!(
+                                "no good data row: all {} rows were bad and skipped{}",
+                                self.rows_read,
+                                self.skipped
+                                    .first
+                                    .first()
+                                    .map_or(String::new(), |f| format!(" (first: {f})"))
+                            ),
+                        });
+                    }
                     return Ok(None);
                 }
                 Ok(Some(row)) => parse_row(&row, &self.layout),
@@ -249,7 +268,10 @@ impl TraceReader {
             self.rows_read += 1;
             match parsed {
                 Ok(s) => match self.time.check(s.t_s, s.line) {
-                    Ok(()) => return Ok(Some(s)),
+                    Ok(()) => {
+                        self.good_rows += 1;
+                        return Ok(Some(s));
+                    }
                     Err(msg) => {
                         let e = DataError {
                             file: self.csv.file().to_string(),
@@ -312,9 +334,10 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
                     "1" | "1.0" | "true" => true,
                     "0" | "0.0" | "false" => false,
                     other => {
-                        return Err(
-                            row.error(vc.index, format!("valid bit must be 0 or 1, got '{other}'"))
-                        );
+                        return Err(row.error(
+                            vc.index,
+                            format!("valid bit must be 0 or 1, got '{}'", echo(other)),
+                        ));
                     }
                 },
             };

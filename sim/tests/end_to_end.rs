@@ -109,18 +109,26 @@ fn synth_replay_compare() {
     assert_eq!(code, 0, "{err}");
     let r = &js["files"][0]["report"];
     assert!(r["slipping"]["n"].as_u64().unwrap() > 1000);
-    let regions = r["regions"].as_object().unwrap();
-    assert!(regions.keys().any(|k| k.starts_with("temperature")));
-    assert!(regions.keys().any(|k| k.starts_with("|slip speed|")));
-    assert!(regions.keys().any(|k| k.starts_with("clamp force")));
-    assert!(regions.contains_key("state slipping"));
+    let regions: Vec<&str> = r["regions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|g| g["region"].as_str().unwrap())
+        .collect();
+    assert!(regions.iter().any(|k| k.starts_with("temperature")));
+    assert!(regions.iter().any(|k| k.starts_with("|slip speed|")));
+    assert!(regions.iter().any(|k| k.starts_with("clamp force")));
+    assert!(regions.contains(&"state slipping"));
     assert!(r["holding"]["n"].as_u64().unwrap() > 1000);
     // States come from the core; holding rows never enter the error statistics.
     let holding = &r["by_state"]["holding"];
     assert_eq!(holding["with_error"], 0);
     assert_eq!(holding["with_reference"], r["holding"]["n"]);
     assert_eq!(r["by_state"]["slipping"]["with_error"], r["slipping"]["n"]);
-    assert!(!regions.contains_key("state holding"));
+    assert!(!regions.contains(&"state holding"));
+    // The gates judge the slipping rows by default.
+    assert_eq!(r["gate_states"], serde_json::json!(["slipping"]));
+    assert_eq!(r["gated"], r["slipping"]);
     // P99 ≥ P95 and max ≥ P99 (up to the sketch's 0.5 % accuracy).
     let o = &r["overall"];
     assert!(o["p99_nm"].as_f64().unwrap() >= o["p95_nm"].as_f64().unwrap());
@@ -140,7 +148,7 @@ fn synth_replay_compare() {
         &csv,
     ]);
     assert_eq!(code, 3, "{err}");
-    assert!(out.contains("THRESHOLD FAILED: RMS"), "{out}");
+    assert!(out.contains("THRESHOLD FAILED: slipping: RMS"), "{out}");
     assert!(std::fs::read_to_string(&csv).unwrap().lines().count() > 5);
     let (code, _, _) = run(&["-q", "compare", &est, "--max-rms-nm", "1e9"]);
     assert_eq!(code, 0);
