@@ -48,6 +48,9 @@ pub enum Command {
     Check(CheckArgs),
     /// Plot an estimate trace (SVG or PNG by extension).
     Plot(PlotArgs),
+    /// Write one self-contained HTML report: provenance, comparison, holding gate, flag
+    /// timelines, plots, fit coverage.
+    Report(crate::report::ReportArgs),
 }
 
 /// `demo`.
@@ -221,4 +224,7 @@ pub struct PlotArgs {
     /// Plot file (.svg or .png).
     #[arg(long, short)]
     pub out: String,
+    /// Time window.
+    #[command(flatten)]
+    pub window: crate::report::WindowArgs,
 }
