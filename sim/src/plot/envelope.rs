@@ -412,12 +412,14 @@ mod tests {
             .map(|(i, _)| i)
             .collect();
         assert_eq!(with_spike.len(), 1);
-        // [calc] column of t = 654.321 s in 0 … 999.999 s over 1200 columns: ⌊785.19⌋.
-        assert_eq!(with_spike[0], 785);
-        assert!(cols[785].flags == Flags::all());
+        // [calc] column of t = 654.321 s in 0 … 999.999 s over 1200 columns: ⌊785.19⌋ = 785;
+        // a bucket (here 512 rows = 0.512 s, under a column's 0.833 s) is placed by its first
+        // row, so the spike may show one column early.
+        assert!((784..=785).contains(&with_spike[0]), "{with_spike:?}");
+        assert!(cols[with_spike[0]].flags == Flags::all());
         assert!(cols.iter().all(|c| c.torque_nm.lo == 100.0 || c.rows == 0));
         // The error span carries the spike too (reference 100 N·m).
-        assert!(cols[785].error_nm.hi == 4900.0);
+        assert!(cols[with_spike[0]].error_nm.hi == 4900.0);
     }
 
     /// A 50 ms fault (50 rows at 1 kHz) in a 10⁶-row trace is raised in the columns.
@@ -433,7 +435,18 @@ mod tests {
             env.push(&r, None);
         }
         let cols = env.columns(0.0, 999.999, 1200);
-        assert_eq!(cols.iter().filter(|c| c.flags.contains(bit)).count(), 1);
+        let raised: Vec<usize> = cols
+            .iter()
+            .enumerate()
+            .filter(|(_, c)| c.flags.contains(bit))
+            .map(|(i, _)| i)
+            .collect();
+        // [calc] 300.000–300.049 s lies in column ⌊300.0003·1.2⌋ = 360; the bucket holding its
+        // start may begin in column 359 (placement by a bucket's first row).
+        assert!(
+            !raised.is_empty() && raised.iter().all(|i| (359..=360).contains(i)),
+            "{raised:?}"
+        );
     }
 
     #[test]

@@ -337,3 +337,199 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
     );
     Ok(o)
 }
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::indexing_slicing, clippy::unwrap_used)]
+    use super::*;
+    use crate::compare::Comparer;
+    use crate::fit::CellReport;
+    use crate::plot::{BUCKETS, Envelope, TimeWindow};
+    use crate::report::timeline::Timeline;
+    use crate::report::{CoverageSection, Provenance};
+    use crate::seam::{EstimateRow, Flags, State};
+
+    const HOSTILE: &str = "<script>alert('x')</script>&\"<img src=x onerror=y>";
+
+    fn row(i: u32) -> EstimateRow {
+        let t = f64::from(i) * 0.01;
+        let holding = i % 400 < 100;
+        EstimateRow {
+            line: u64::from(i) + 2,
+            t_s: t,
+            torque_nm: (!holding).then_some(-2000.0),
+            capacity_nm: Some(3000.0),
+            uncertainty_nm: 150.0,
+            mu: 0.4,
+            radius_m: 0.3,
+            clamp_force_n: 20_000.0,
+            slip_speed_rad_s: if holding { 0.0 } else { 3.0 },
+            lining_temp_c: 60.0,
+            bedding: 0.0,
+            wear_m: 0.0,
+            correction: 1.0,
+            state: if holding {
+                State::Holding
+            } else {
+                State::Slipping
+            },
+            flags: if (700..710).contains(&i) {
+                Flags::all().iter().next().unwrap()
+            } else {
+                Flags::empty()
+            },
+            // Holding rows at i % 400 ≥ 90 have a reference beyond the capacity.
+            torque_ref_nm: Some(if holding && i % 400 >= 90 {
+                3500.0
+            } else {
+                -1980.0
+            }),
+        }
+    }
+
+    fn data() -> ReportData {
+        let mut cmp = Comparer::new(None);
+        let mut tl = Timeline::default();
+        let mut env = Envelope::new(BUCKETS, TimeWindow::default());
+        for i in 0..2000 {
+            let r = row(i);
+            cmp.add(&r);
+            tl.add(&r);
+            env.push(&r, None);
+        }
+        let prov = |f: &str| Provenance {
+            file: f.to_string(),
+            bytes: 1,
+            sha256: "00".repeat(32),
+        };
+        ReportData {
+            device: format!("rig {HOSTILE}"),
+            device_kind: "HoldingBrake".into(),
+            config: prov("cfg.toml"),
+            tables_checksum: 0xDEAD_BEEF,
+            tool: "clampwise 0.1.0".into(),
+            estimator: "e".into(),
+            window: TimeWindow::default(),
+            estimates: vec![super::super::EstimateSection {
+                provenance: prov(&format!("run {HOSTILE}.csv")),
+                rows: 2000,
+                rows_in_window: 2000,
+                time_span_s: Some((0.0, 19.99)),
+                compare: cmp.report(&format!("run {HOSTILE}.csv")),
+                flags: tl.finish(),
+                envelope: env,
+            }],
+            coverage: Some(CoverageSection {
+                provenance: prov("coverage.csv"),
+                cells: (0..4)
+                    .map(|k| CellReport {
+                        i: k / 2,
+                        j: k % 2,
+                        temperature_c: 20.0 + 100.0 * (k / 2) as f64,
+                        slip_speed_rad_s: (k % 2) as f64,
+                        coverage: 100.0 * k as f64,
+                        reached: k != 0,
+                        prior: 0.4,
+                        fitted: 0.38,
+                        std_error: None,
+                    })
+                    .collect(),
+                nt: 2,
+                nv: 2,
+            }),
+        }
+    }
+
+    /// Opening and closing tags of the page's own elements balance, in order.
+    fn balanced(html: &str) -> Result<(), String> {
+        let void = ["meta", "br", "hr", "img", "link", "input", "!DOCTYPE"];
+        let mut stack: Vec<String> = Vec::new();
+        let mut rest = html;
+        while let Some(p) = rest.find('<') {
+            rest = &rest[p + 1..];
+            let end = rest.find('>').ok_or("unclosed <")?;
+            let tag = &rest[..end];
+            rest = &rest[end + 1..];
+            if tag.ends_with('/') {
+                continue;
+            }
+            let name: String = tag
+                .trim_start_matches('/')
+                .chars()
+                .take_while(|c| !c.is_whitespace())
+                .collect();
+            if void.contains(&name.as_str()) {
+                continue;
+            }
+            if tag.starts_with('/') {
+                match stack.pop() {
+                    Some(open) if open == name => {}
+                    other => return Err(format!("</{name}> closes {other:?}")),
+                }
+            } else {
+                stack.push(name);
+            }
+        }
+        if stack.is_empty() {
+            Ok(())
+        } else {
+            Err(format!("left open: {stack:?}"))
+        }
+    }
+
+    #[test]
+    fn page_is_well_formed_and_has_every_section() {
+        let html = document(&data()).unwrap();
+        assert!(html.starts_with("<!DOCTYPE html>"));
+        balanced(&html).unwrap();
+        for id in SECTIONS {
+            assert!(html.contains(&format!("<section id=\"{id}\">")), "{id}");
+        }
+        assert!(html.contains("not a certified safety function"));
+        assert!(html.contains("ISO 26262") && html.contains("IEC 61508"));
+        assert!(html.contains("0xDEADBEEF"));
+        // Two inline plots: the time series and the coverage map.
+        assert_eq!(html.matches("<svg").count(), 2);
+    }
+
+    #[test]
+    fn input_text_is_escaped_and_nothing_is_fetched_or_run() {
+        let html = document(&data()).unwrap();
+        let lower = html.to_ascii_lowercase();
+        assert!(!lower.contains("<script"), "a script element");
+        assert!(!lower.contains("http://") && !lower.contains("https://"));
+        for t in [
+            "<img", "<link", "<iframe", "<object", "<embed", "url(", "@import",
+        ] {
+            assert!(!lower.contains(t), "{t}");
+        }
+        assert!(!lower.contains("href="));
+        assert!(html.contains(
+            "run &lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;&amp;&quot;&lt;img src=x onerror=y&gt;"
+        ));
+    }
+
+    /// The holding gate counts holding rows beyond ±capacity and the worst margin.
+    #[test]
+    fn holding_gate_numbers() {
+        let d = data();
+        let h = &d.estimates[0].compare.holding;
+        // [calc] 2000 rows, holding where i mod 400 < 100: 5 × 100 rows; beyond the capacity
+        // where i mod 400 ≥ 90: 5 × 10 rows; margin 3000 − 3500 = −500 N·m.
+        assert_eq!(h.n, 500);
+        assert_eq!(h.n - h.within_capacity, 50);
+        assert_eq!(h.min_margin_nm, Some(-500.0));
+        let html = document(&d).unwrap();
+        assert!(html.contains("reference outside ±capacity on 50 holding rows"));
+        assert!(html.contains("<td>-500.0</td>"));
+    }
+
+    #[test]
+    fn flag_timeline_lists_the_interval() {
+        let html = document(&data()).unwrap();
+        let (name, _) = Flags::all().iter_names().next().unwrap();
+        assert!(html.contains(&format!("<code>{name}</code>")));
+        // [calc] raised at rows 700–709, 0.01 s apart: 7.000 s until the first clear row 7.100 s.
+        assert!(html.contains("7.000–7.100"), "flag interval");
+    }
+}
