@@ -360,7 +360,7 @@ impl Envelope {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::indexing_slicing, clippy::unwrap_used)]
+    #![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
 
     fn row(t: f64, torque: f64) -> EstimateRow {

@@ -78,7 +78,7 @@ where
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used)]
+    #![allow(clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
     use crate::plot::envelope::TimeWindow;
     use crate::seam::{EstimateRow, Flags, State};

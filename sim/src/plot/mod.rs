@@ -155,7 +155,7 @@ where
             Some(s) => {
                 let t = column_time(t0, t1, cols.len(), i);
                 cur.push((t, s.lo));
-                if s.hi != s.lo {
+                if s.hi > s.lo {
                     cur.push((t, s.hi));
                 }
             }

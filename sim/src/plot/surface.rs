@@ -284,7 +284,7 @@ pub fn surface_svg(cells: &[CellReport], nt: usize, nv: usize) -> Result<String,
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::indexing_slicing, clippy::unwrap_used)]
+    #![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
 
     fn cell(i: usize, j: usize, mu: f64, reached: bool) -> CellReport {

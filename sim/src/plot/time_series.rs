@@ -55,6 +55,9 @@ pub enum Panel {
     States,
 }
 
+/// Each panel drawn, with the pixel range its time axis spans (x from, x to).
+pub type PanelAxes = Vec<(Panel, (i32, i32))>;
+
 /// The time range drawn: the time window's ends where given, the data's otherwise.
 pub fn time_range(env: &Envelope) -> (f64, f64) {
     let w = env.window();
@@ -81,7 +84,7 @@ pub fn draw<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     env: &Envelope,
     title: &str,
-) -> Result<Vec<(Panel, (i32, i32))>, SimError>
+) -> Result<PanelAxes, SimError>
 where
     DB::ErrorType: 'static,
 {
@@ -141,7 +144,7 @@ pub fn time_series_svg(env: &Envelope, title: &str) -> Result<String, SimError> 
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::indexing_slicing, clippy::unwrap_used)]
+    #![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
     use crate::plot::envelope::{BUCKETS, TimeWindow};
     use crate::seam::{Channel, EstimateRow, Flags, State, TraceSample};

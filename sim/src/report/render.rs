@@ -340,7 +340,7 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::indexing_slicing, clippy::unwrap_used)]
+    #![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
     use crate::compare::Comparer;
     use crate::fit::CellReport;

@@ -93,7 +93,7 @@ fn close(h: &mut FlagHistory, start: f64, end: f64) {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::indexing_slicing)]
+    #![allow(clippy::indexing_slicing, clippy::float_cmp)]
     use super::*;
     use crate::seam::State;
 
