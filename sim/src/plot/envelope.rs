@@ -10,6 +10,26 @@
 //! rows stays visible (decimation by keeping every n-th sample would drop it).
 //!
 //! A [`TimeWindow`] keeps only the rows with `from_s ≤ t ≤ to_s`.
+//!
+//! ```
+//! use clampwise_sim::plot::{Envelope, TimeWindow, BUCKETS};
+//! use clampwise_sim::seam::{EstimateRow, Flags, State};
+//!
+//! let mut env = Envelope::new(BUCKETS, TimeWindow::default());
+//! for i in 0..100_000u32 {
+//!     let torque = if i == 40_000 { 9_000.0 } else { 1_000.0 }; // one-sample spike
+//!     let row = EstimateRow {
+//!         line: u64::from(i), t_s: f64::from(i) * 1e-3, torque_nm: Some(torque),
+//!         capacity_nm: None, uncertainty_nm: 50.0, mu: 0.4, radius_m: 0.2,
+//!         clamp_force_n: 10_000.0, slip_speed_rad_s: 2.0, lining_temp_c: 80.0, bedding: 1.0,
+//!         wear_m: 0.0, correction: 1.0, state: State::Slipping, flags: Flags::empty(),
+//!         torque_ref_nm: None,
+//!     };
+//!     env.push(&row, None);
+//! }
+//! let cols = env.columns(0.0, 99.999, 800); // one per pixel column
+//! assert!(cols.iter().any(|c| c.torque_nm.hi == 9_000.0));
+//! ```
 
 use crate::seam::{Channel, ChannelCal, EstimateRow, Flags, State, TraceSample};
 
