@@ -28,6 +28,8 @@ fn inputs<T: Clone>(make: impl Fn(&clampwise_benches::workload::Sample) -> T, ze
 }
 
 fn step(c: &mut Criterion) {
+    // Criterion draws its plots with plotters, which reads no system font.
+    clampwise_benches::envelope::register_plot_font();
     let full = device::full().expect("full device");
     let minimal = device::minimal().expect("minimal device");
     let plain_full = baseline::full().expect("full f32 device");
@@ -131,6 +133,7 @@ fn spread(lo: f64, hi: f64, seed: u64) -> Vec<f64> {
 
 #[allow(clippy::cast_possible_truncation)]
 fn lookup(c: &mut Criterion) {
+    clampwise_benches::envelope::register_plot_font();
     let full = device::full().expect("full device");
     let plain = baseline::full().expect("full f32 device");
     // Table1: μ against temperature, 8 breakpoints (the doc example of `table`, extended).

@@ -501,6 +501,7 @@ impl Envelope {
     /// # Errors
     /// The plot could not be drawn or written.
     pub fn plot(&self, path: &Path) -> Result<(), Box<dyn Error>> {
+        register_plot_font();
         let png = path
             .extension()
             .is_some_and(|e| e.eq_ignore_ascii_case("png"));
@@ -623,4 +624,17 @@ fn label_at(labels: &[String], x: f64) -> String {
     }
     #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
     labels.get(i as usize).cloned().unwrap_or_default()
+}
+
+/// Register the DejaVu Sans font compiled in from `sim/fonts` (licence beside it) as
+/// "sans-serif": plotters draws text with its `ab_glyph` feature and reads no system font, for
+/// these plots and for criterion's.
+pub fn register_plot_font() {
+    static FONT: &[u8] = include_bytes!("../../sim/fonts/DejaVuSans.ttf");
+    static ONCE: std::sync::Once = std::sync::Once::new();
+    ONCE.call_once(|| {
+        // A font that does not parse leaves text undrawn; plotters then reports the error.
+        let _ =
+            plotters::style::register_font("sans-serif", plotters::style::FontStyle::Normal, FONT);
+    });
 }

@@ -51,6 +51,8 @@ fn trace(cfg: &LoadedConfig) -> PathBuf {
 }
 
 fn bench(c: &mut Criterion) {
+    // Criterion draws its plots with plotters, which reads no system font.
+    clampwise_sim::plot::font::register();
     let cfg = LoadedConfig::from_str(DEMO_CONFIG, "demo.toml").expect("demo config");
     let core = CoreDevice::build(&cfg.config).expect("core device");
     let path = trace(&cfg).display().to_string();

@@ -49,6 +49,9 @@ pub enum Command {
     Check(CheckArgs),
     /// Plot an estimate trace (SVG or PNG by extension).
     Plot(PlotArgs),
+    /// Write one self-contained HTML report: provenance, comparison, holding gate, flag
+    /// timelines, plots, fit coverage.
+    Report(crate::report::ReportArgs),
 }
 
 impl Command {
@@ -63,7 +66,7 @@ impl Command {
             Self::Fit(a) => dash(&a.out) || dash(&a.coverage_csv) || dash(&a.plot),
             Self::Tables(a) => dash(&a.emit),
             Self::Plot(a) => a.out == "-",
-            Self::Demo(_) | Self::Check(_) => false,
+            Self::Demo(_) | Self::Check(_) | Self::Report(_) => false,
         }
     }
 }
@@ -260,4 +263,7 @@ pub struct PlotArgs {
     /// Plot file (.svg or .png).
     #[arg(long, short)]
     pub out: String,
+    /// Time window.
+    #[command(flatten)]
+    pub window: crate::report::WindowArgs,
 }

@@ -21,8 +21,9 @@ use crate::plant::PlantOptions;
 use crate::plant::faults::Fault;
 use crate::plant::scenario::{SCENARIOS, Scenario};
 use crate::plot;
-use crate::replay::{self, CAUTION, PLOT_POINTS, PlotPoint, ReplayOptions};
-use crate::series::Decimator;
+use crate::plot::{BUCKETS, Envelope, TimeWindow};
+use crate::replay::{self, CAUTION, ReplayOptions};
+use crate::seam::ChannelCal;
 use crate::synth;
 
 /// What a subcommand produced.
@@ -202,19 +203,16 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
             skip_bad_rows: a.skip_bad_rows,
             progress: bar(quiet, Some(&multi), trace),
         };
-        let mut dec = plot_path
-            .as_ref()
-            .map(|_| Decimator::<PlotPoint>::new(PLOT_POINTS));
+        let mut dec = plot_path.as_ref().map(|_| {
+            Envelope::new(BUCKETS, TimeWindow::default())
+                .with_calibration(ChannelCal::of(&cfg.config))
+        });
         let s = replay::replay_file(&cfg, &core, trace, out, &opts, dec.as_mut())?;
         if let Some(pb) = &opts.progress {
             pb.finish_and_clear();
         }
         if let (Some(p), Some(d)) = (plot_path, &dec) {
-            plot::time_series_file(
-                p,
-                d.points(),
-                &format!("{} — {}", cfg.config.device.name, trace),
-            )?;
+            plot::time_series_file(p, d, &format!("{} — {}", cfg.config.device.name, trace))?;
         }
         Ok::<_, SimError>(s)
     };
@@ -427,7 +425,7 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
             written.push(p.clone());
         }
         if let Some(p) = &a.plot {
-            plot::surface_file(p, &r, nt, nv)?;
+            plot::surface_file(p, &r.cells, nt, nv)?;
             written.push(p.clone());
         }
     }
@@ -697,26 +695,33 @@ pub fn plot(a: &PlotArgs, quiet: bool) -> Result<Outcome, SimError> {
         &[("estimate", a.estimate.as_str())],
         &[("plot", a.out.as_str())],
     )?;
+    let window = a.window.window()?;
     let mut r = EstimateReader::open(&a.estimate)?;
-    let mut d = Decimator::new(PLOT_POINTS);
+    let mut d = Envelope::new(BUCKETS, window);
     let pb = bar(quiet, None, &a.estimate);
     if let (Some(pb), (Some(l), _)) = (&pb, r.progress()) {
         pb.set_length(l);
     }
     while let Some(row) = r.next_row()? {
-        d.push(PlotPoint::from(&row));
+        d.push(&row, None);
     }
     if let Some(pb) = pb {
         pb.finish_and_clear();
     }
-    plot::time_series_file(&a.out, d.points(), &a.estimate)?;
+    if d.kept() == 0 {
+        return Err(SimError::Usage(format!(
+            "no row of {} lies in the time window",
+            a.estimate
+        )));
+    }
+    plot::time_series_file(&a.out, &d, &a.estimate)?;
     Ok(Outcome::ok(
         format!(
-            "plotted {} points of {} rows → {}\n",
-            d.points().len(),
+            "plotted {} of {} rows (min/max per pixel column) → {}\n",
+            d.kept(),
             d.seen(),
             a.out
         ),
-        json!({"command": "plot", "file": a.out, "points": d.points().len(), "rows": d.seen()}),
+        json!({"command": "plot", "file": a.out, "rows_plotted": d.kept(), "rows": d.seen()}),
     ))
 }

@@ -183,7 +183,7 @@ impl GateSpec {
         for n in names.iter().map(|n| n.trim()).filter(|n| !n.is_empty()) {
             let s = match State::parse(n) {
                 Some(s @ (State::Slipping | State::Released)) => s,
-                Some(State::Holding) => return Err("--gate-states: holding rows have no torque estimate (only a capacity); gate them with --max-holding-violations".into()),
+                Some(State::Holding | State::SlipUnknown) => return Err("--gate-states: holding rows have no torque estimate (only a capacity); gate them with --max-holding-violations".into()),
                 Some(State::Unavailable) => return Err("--gate-states: unavailable rows have no estimate to gate".into()),
                 None => return Err(format!("--gate-states: unknown state '{n}' (choose slipping, released)")),
             };

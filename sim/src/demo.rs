@@ -21,8 +21,9 @@ use crate::output::write_file;
 use crate::plant::PlantOptions;
 use crate::plant::scenario::Scenario;
 use crate::plot;
-use crate::replay::{self, CAUTION, PLOT_POINTS, PlotPoint, ReplayOptions};
-use crate::series::Decimator;
+use crate::plot::{BUCKETS, Envelope, TimeWindow};
+use crate::replay::{self, CAUTION, ReplayOptions};
+use crate::seam::ChannelCal;
 use crate::synth;
 
 /// The demo device's config text.
@@ -110,7 +111,8 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     }
 
     let estimate = path(dir, "estimate.csv");
-    let mut dec = Decimator::<PlotPoint>::new(PLOT_POINTS);
+    let mut dec =
+        Envelope::new(BUCKETS, TimeWindow::default()).with_calibration(ChannelCal::of(&cfg.config));
     let opts = ReplayOptions {
         skip_bad_rows: false,
         progress: bar(quiet, None, "replaying"),
@@ -137,7 +139,8 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     let cfg2 = LoadedConfig::from_str(&fitted_text, &fitted_path)?;
     let core2 = CoreDevice::build(&cfg2.config).map_err(|e| SimError::Internal(e.to_string()))?;
     let estimate2 = path(dir, "estimate-fitted.csv");
-    let mut dec2 = Decimator::<PlotPoint>::new(PLOT_POINTS);
+    let mut dec2 =
+        Envelope::new(BUCKETS, TimeWindow::default()).with_calibration(ChannelCal::of(&cfg.config));
     let rep2 = replay::replay_file(
         &cfg2,
         &core2,
@@ -157,7 +160,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
             ("estimate-fitted.svg", &dec2, "fitted table"),
         ] {
             let p = path(dir, f);
-            plot::time_series_file(&p, d.points(), &format!("{name} — {what}"))?;
+            plot::time_series_file(&p, d, &format!("{name} — {what}"))?;
             plots.push(p);
         }
         let (nt, nv) = (
@@ -166,7 +169,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         );
         for f in ["mu-surface.svg", "mu-surface.png"] {
             let p = path(dir, f);
-            plot::surface_file(&p, &fitted, nt, nv)?;
+            plot::surface_file(&p, &fitted.cells, nt, nv)?;
             plots.push(p);
         }
     }

@@ -19,7 +19,8 @@
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
 //! | [`replay`], [`compare`], [`sketch`], [`fit`] | the subcommands' work |
 //! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
-//! | [`plot`], [`series`] | plots, bounded-memory decimation |
+//! | [`plot`] | plots: bounded-memory min/max envelope, one file per panel kind |
+//! | [`report`] | the self-contained HTML report |
 //! | [`cli`], [`commands`], [`demo`], [`error`] | the command line, exit codes |
 //!
 //! ## Example
@@ -60,8 +61,8 @@ pub mod output;
 pub mod plant;
 pub mod plot;
 pub mod replay;
+pub mod report;
 pub mod seam;
-pub mod series;
 pub mod sketch;
 pub mod synth;
 pub mod timestamps;

@@ -61,6 +61,7 @@ fn main() -> ExitCode {
         Command::Synth(a) => commands::synth(a, q),
         Command::Check(a) => commands::check(a),
         Command::Plot(a) => commands::plot(a, q),
+        Command::Report(a) => clampwise_sim::report::run(a, q),
     };
     let (summary, failure, human_to_stderr) = match result {
         Ok(o) => {

@@ -11,8 +11,8 @@ use crate::build_core::CoreDevice;
 use crate::config::LoadedConfig;
 use crate::error::SimError;
 use crate::estimate::EstimateWriter;
+use crate::plot::Envelope;
 use crate::seam::{self, EstimateRow, Flags, SampleEstimator, State, TraceSample};
-use crate::series::Decimator;
 use crate::timestamps::TimeReport;
 use crate::trace::{RowPolicy, SkipReport, TraceReader};
 
@@ -21,54 +21,6 @@ pub use clampwise_device::CAUTION;
 
 /// Name of the estimator in use, written into outputs so a reader knows what produced them.
 pub const ESTIMATOR_NAME: &str = "clampwise_core::estimator::Estimator::step";
-
-/// How many points a plot keeps, whatever the trace length.
-pub const PLOT_POINTS: usize = 4000;
-
-/// One plotted instant.
-#[derive(Debug, Clone, Copy)]
-pub struct PlotPoint {
-    /// Time, s.
-    pub t_s: f64,
-    /// Estimated torque, N·m (None while holding).
-    pub torque_nm: Option<f64>,
-    /// Reference torque, N·m.
-    pub reference_nm: Option<f64>,
-    /// Holding capacity, N·m (None without a clamp force).
-    pub capacity_nm: Option<f64>,
-    /// Uncertainty, N·m.
-    pub uncertainty_nm: f64,
-    /// Lining temperature used, °C.
-    pub temp_c: f64,
-    /// μ used.
-    pub mu: f64,
-    /// Clamp force, N.
-    pub force_n: f64,
-    /// Slip speed, rad/s.
-    pub slip_rad_s: f64,
-    /// State.
-    pub state: State,
-    /// Flags.
-    pub flags: Flags,
-}
-
-impl From<&EstimateRow> for PlotPoint {
-    fn from(r: &EstimateRow) -> Self {
-        Self {
-            t_s: r.t_s,
-            torque_nm: r.torque_nm,
-            reference_nm: r.torque_ref_nm,
-            capacity_nm: r.capacity_nm,
-            uncertainty_nm: r.uncertainty_nm,
-            temp_c: r.lining_temp_c,
-            mu: r.mu,
-            force_n: r.clamp_force_n,
-            slip_rad_s: r.slip_speed_rad_s,
-            state: r.state,
-            flags: r.flags,
-        }
-    }
-}
 
 /// Counts and extremes of a replay.
 ///
@@ -257,7 +209,7 @@ pub fn replay_file(
     input: &str,
     output: &str,
     opts: &ReplayOptions,
-    mut plot: Option<&mut Decimator<PlotPoint>>,
+    mut plot: Option<&mut Envelope>,
 ) -> Result<ReplaySummary, SimError> {
     let start = Instant::now();
     let policy = if opts.skip_bad_rows {
@@ -280,10 +232,10 @@ pub fn replay_file(
         &mut reader,
         est.as_mut(),
         opts.progress.as_ref(),
-        |_, row| {
+        |sample, row| {
             tally.add(row);
             if let Some(d) = plot.as_deref_mut() {
-                d.push(PlotPoint::from(row));
+                d.push(row, Some(sample));
             }
             writer.write(row)
         },
