@@ -321,7 +321,7 @@ pub struct Comparer {
     /// Keyed by (variable, band index): numeric order, whatever the labels.
     regions: BTreeMap<(usize, usize), (String, ErrorStats)>,
     holding: HoldingReport,
-    by_state: [StateCount; 4],
+    by_state: [StateCount; State::ALL.len()],
     rows: u64,
     no_reference: u64,
     unavailable: u64,

@@ -515,10 +515,11 @@ mod tests {
         // Bedding after 0.4 s at ~20 kW is ~0.004: r_e moves by ~1e-5 relative.
         assert_relative_eq!(row.torque_nm.unwrap(), expected, max_relative = 1e-4);
         assert_relative_eq!(row.mu, 0.40, max_relative = 1e-8);
-        // Worst case: δμ + δF/F + δr = 0.20 + 400 N / 40 kN + 0.01 [calc].
+        // Worst case, the exact product bound: (1 + δμ)(1 + δF/F)(1 + δr) − 1 with δμ = 0.20,
+        // δF/F = 400 N / 40 kN, δr = 0.01 [calc].
         assert_relative_eq!(
             row.uncertainty_nm,
-            row.torque_nm.unwrap().abs() * (0.20 + 0.01 + 0.01),
+            row.torque_nm.unwrap().abs() * (1.20 * 1.01 * 1.01 - 1.0),
             max_relative = 1e-6
         );
     }

@@ -678,7 +678,7 @@ impl<const C: usize> SensorState<C> {
                 &v,
                 &channel_force,
                 &channel_flags,
-                held.saturating_add(trailing.unsigned_abs()),
+                (held, trailing.unsigned_abs()),
                 predicted.zip(cfg.fallback.as_ref()),
             );
             let all_used = v.used == ChannelMask::first(C);
@@ -743,7 +743,7 @@ fn force_bound(
     v: &Vote,
     channel_force: &[Option<Newtons>; MAX_CHANNELS],
     channel_flags: &[ChannelFlags; MAX_CHANNELS],
-    held: u64,
+    (held, trailing): (u64, u64),
     model: Option<(Newtons, &ActuatorTransfer)>,
 ) -> ForceBound {
     let voted = i64::from(v.force.to_bits());
@@ -770,22 +770,26 @@ fn force_bound(
             }
         }
     }
-    // held < 2⁶⁴ is a Q8 allowance already saturated by the diagnostics; the sums of i32-range
-    // values stay far inside i64.
-    let consensus = own
-        .saturating_add(i64::try_from(held).unwrap_or(i64::MAX))
-        .saturating_add(spread_used);
+    // held and trailing are Q8 allowances already saturated by the diagnostics; the sums of
+    // i32-range values stay far inside i64.
+    let held = i64::try_from(held).unwrap_or(i64::MAX);
+    let trailing = i64::try_from(trailing).unwrap_or(i64::MAX);
+    // What the channels that were used claim on their own, before the filter's trail.
+    let own_claim = own.saturating_add(held).saturating_add(spread_used);
+    let consensus = own_claim.saturating_add(trailing);
     let mut bound = own
-        .saturating_add(i64::try_from(held).unwrap_or(i64::MAX))
+        .saturating_add(held)
+        .saturating_add(trailing)
         .saturating_add(spread_used.max(spread_out));
     let mut implausible = false;
     if let Some((p, band)) = model {
         let gap = (voted - p).abs();
-        // Farther from the model than the channels' own ± reaches: the channels may all be
-        // wrong alike, so the ± covers the model's band too; beyond the band as well, the two
+        // Farther from the model than the channels' own ± reaches (a filter trailing a moving
+        // force is no reason to trust them more): every channel may be wrong alike, so the ±
+        // covers the model's band too. Beyond the trail and the band as well, the two
         // contradict each other outright.
-        if gap > consensus {
-            bound = bound.max(gap + band);
+        if gap > own_claim {
+            bound = bound.max(gap.saturating_add(band));
             implausible = gap > consensus.saturating_add(band);
         }
     }
