@@ -159,6 +159,7 @@ pub mod flags;
 pub mod friction;
 pub mod geometry;
 pub mod record;
+pub mod record_store;
 #[cfg(feature = "std")]
 pub mod reference;
 pub mod sae_j866;
