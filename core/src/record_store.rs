@@ -207,8 +207,9 @@ pub struct RecordStore<F> {
     slot_len: u32,
     /// Bytes per half-frame: [`RECORD_LEN`] rounded up to the read and write units.
     half: usize,
-    /// `None` until the slots have been read; then the newest valid one, if any.
-    newest: Option<Option<Newest>>,
+    /// `None` until the slots have been read; then the checksum of the configuration they
+    /// were checked against and the newest valid one for it, if any.
+    newest: Option<(u32, Option<Newest>)>,
 }
 
 impl<F: NorFlash> RecordStore<F> {
@@ -264,6 +265,12 @@ impl<F: NorFlash> RecordStore<F> {
         2 * self.half
     }
 
+    /// The flash, e.g. for other data outside the two slots. Writing the slots through it
+    /// leaves the store's idea of the newest record stale: build a new store after that.
+    pub fn flash_mut(&mut self) -> &mut F {
+        &mut self.flash
+    }
+
     /// The flash, e.g. to hand it back to the HAL.
     pub fn into_inner(self) -> F {
         self.flash
@@ -302,10 +309,11 @@ impl<F: NorFlash> RecordStore<F> {
             [None, Some(b)] => Some((1, b)),
             [None, None] => None,
         };
-        self.newest = Some(newest.map(|(slot, r)| Newest {
+        let found = newest.map(|(slot, r)| Newest {
             slot,
             sequence: r.sequence(),
-        }));
+        });
+        self.newest = Some((cfg.checksum(), found));
         newest
             .map(|(_, r)| r)
             .ok_or(LoadError::NoValidRecord { slots: states })
@@ -335,8 +343,8 @@ impl<F: NorFlash> RecordStore<F> {
 
     /// Save the estimator's state: erase the slot that does not hold the newest valid record,
     /// write the new record (sequence = newest + 1, wrapping; 0 when there is none) and its
-    /// complement, read them back. Returns the sequence written. Reads both slots first if
-    /// neither [`RecordStore::load`] nor a save has yet.
+    /// complement, read them back. Returns the sequence written. Reads both slots first unless
+    /// a [`RecordStore::load`] or a save for the same configuration has.
     ///
     /// # Errors
     /// [`StoreError::Flash`], [`StoreError::Verify`]. On an error the newest valid record is
@@ -351,10 +359,13 @@ impl<F: NorFlash> RecordStore<F> {
         &mut self,
         estimator: &Estimator<'_, C, NF, NB, NT, NV>,
     ) -> Result<u32, StoreError<F::Error>> {
+        let config = estimator.config();
+        let checksum = config.checksum();
         let newest = match self.newest {
-            Some(n) => n,
-            None => match self.load(estimator.config()) {
-                Ok(_) | Err(LoadError::NoValidRecord { .. }) => self.newest.flatten(),
+            Some((c, n)) if c == checksum => n,
+            // Not read yet, or read for another configuration: what is valid depends on it.
+            _ => match self.load(config) {
+                Ok(_) | Err(LoadError::NoValidRecord { .. }) => self.newest.and_then(|(_, n)| n),
                 Err(LoadError::Flash(e)) => return Err(StoreError::Flash(e)),
             },
         };
@@ -362,7 +373,7 @@ impl<F: NorFlash> RecordStore<F> {
         let at = self.slots.get(slot).copied().unwrap_or(0);
         let record = estimator.save(sequence);
         self.write_frame(at, &record)?;
-        self.newest = Some(Some(Newest { slot, sequence }));
+        self.newest = Some((checksum, Some(Newest { slot, sequence })));
         Ok(sequence)
     }
 
