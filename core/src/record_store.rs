@@ -369,7 +369,7 @@ impl<F: NorFlash> RecordStore<F> {
                 Err(LoadError::Flash(e)) => return Err(StoreError::Flash(e)),
             },
         };
-        let (slot, sequence) = newest.map_or((0, 0), |n| (1 - n.slot, n.sequence.wrapping_add(1)));
+        let (slot, sequence) = newest.map_or((0, 0), |n| (n.slot ^ 1, n.sequence.wrapping_add(1)));
         let at = self.slots.get(slot).copied().unwrap_or(0);
         let record = estimator.save(sequence);
         self.write_frame(at, &record)?;

@@ -63,7 +63,7 @@ fn mul_q62(a: u64, b: u64) -> u64 {
 fn exp_neg_fraction(f: u64) -> u64 {
     let mut t = ONE_Q62;
     for k in (1..=20u64).rev() {
-        t = ONE_Q62.saturating_sub(mul_q62(f, t) / k);
+        t = ONE_Q62.saturating_sub(mul_q62(f, t).checked_div(k).unwrap_or(0));
     }
     t
 }
