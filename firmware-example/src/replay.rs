@@ -124,6 +124,12 @@ fn first_channels<const CH: usize>() -> Option<[Channel; CH]> {
     Some(out)
 }
 
+/// The saved-state store of the demo over the stub's flash.
+fn demo_store(flash: &mut DemoFlash) -> Result<SavedState<&mut DemoFlash>, ReplayError> {
+    SavedState::new(flash, SLOTS, SLOT_LEN, SAVE_INTERVAL_MS, SAMPLE_PERIOD_NS)
+        .map_err(ReplayError::SavedState)
+}
+
 /// Replay the whole recorded trace through `processor`, emitting every line to `sink`: restore
 /// its state from the saved-state flash at start (keeping it as given when there is no valid
 /// record), save every [`SAVE_INTERVAL_MS`] and once on request at the end, then restart over
@@ -177,11 +183,9 @@ where
     sink.emit(line.as_bytes());
 
     // Power-on: the stub's flash is erased; a board's keeps the records of earlier runs.
-    let new_store = |flash| {
-        SavedState::new(flash, SLOTS, SLOT_LEN, SAVE_INTERVAL_MS, SAMPLE_PERIOD_NS)
-            .map_err(ReplayError::SavedState)
-    };
-    let mut saved = new_store(DemoFlash::new())?;
+    // Borrowed by each store, so the 512 bytes are not moved (and copied) into it.
+    let mut flash = DemoFlash::new();
+    let mut saved = demo_store(&mut flash)?;
     let start = saved.restore(&mut processor);
     let mut line = Line::new();
     line.push_str("# state");
@@ -221,7 +225,8 @@ where
     let mut line = Line::new();
     line.push_str("state");
     saved.write_fields(&mut line);
-    let mut again = new_store(saved.into_flash())?;
+    drop(saved);
+    let mut again = demo_store(&mut flash)?;
     let reload = demo_processor()
         .ok()
         .map(|mut p| (again.restore(&mut p), p));
