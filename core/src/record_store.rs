@@ -44,8 +44,8 @@
 //! reports written, writes in the order asked, and that nothing else writes these slots; the
 //! trait's contract that a cut write leaves "the rest of the page unchanged" keeps slot A
 //! intact while B is written. Tested in `clampwise-tests` (`record_store_power_cut`): a
-//! simulated flash cut at every byte of every erase and write of a save, and over 10⁴ random
-//! cycles.
+//! simulated flash cut at every byte of every erase and write of a save, and over 2·10⁴ random
+//! saves.
 //!
 //! ```
 //! use clampwise_core::record_store::{HALF_MAX, RecordStore};

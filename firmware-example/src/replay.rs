@@ -225,7 +225,6 @@ where
     let mut line = Line::new();
     line.push_str("state");
     saved.write_fields(&mut line);
-    drop(saved);
     let mut again = demo_store(&mut flash)?;
     let reload = demo_processor()
         .ok()

@@ -7,6 +7,7 @@
 //! flash whole) or the last record whose save completed, byte for byte — never a torn one,
 //! never an older one, and no record at all only before the first save ever completed.
 #![allow(
+    clippy::panic,
     clippy::unwrap_used,
     clippy::expect_used,
     clippy::indexing_slicing,
