@@ -19,7 +19,7 @@ const ONE_Q62: u64 = 1 << 62;
 /// `1 − b` by `g(x) = 1 − x + x²/2 − x³/6 + x⁴/24 ≥ exp(−x)` for `x = dE/E₀ ∈ [0, 1]` (the
 /// alternating Taylor series' first omitted term is negative), a step above E₀ is taken as
 /// `x = 1`, and `x` itself is truncated. What moves it ahead is truncation only — a few 2⁻⁶²
-/// per step, below 2⁻²⁰ for 2⁴⁰ steps (35 years at 1 kHz) [calc] — and energy that stops at
+/// per step, below 2⁻²⁰ for 2⁴⁰ steps (35 years at 1 kHz) \[calc\] — and energy that stops at
 /// the top of [`Joules`](crate::units::Joules) while bedding goes on, where
 /// `exp(−E/E₀) ≤ exp(−14) < 2⁻²⁰` already. A record of energy 0 and bedding 1 is 1 − 2⁻²⁰
 /// ahead.
@@ -31,7 +31,7 @@ const BEDDING_AHEAD_Q62: u64 = 1 << 42;
 ///
 /// With `r(x) = g(x)·eˣ − 1`, convex on [0, 1] and 0.0194 at `x = 1`, every history whose single
 /// steps are at most E₀ gives `1 − b ≤ exp(−0.9806·E/E₀)`, so the lag is at most
-/// `max_X (e^{−0.9806·X} − e^{−X}) = 0.0074` at `X ≈ 1` [calc]. A history with steps above E₀
+/// `max_X (e^{−0.9806·X} − e^{−X}) = 0.0074` at `X ≈ 1` \[calc\]. A history with steps above E₀
 /// (a lump of energy through `WearState::add_energy`, or a sample dissipating more than E₀)
 /// can lag further and is refused: its bedding is not the model's.
 pub const BEDDING_BEHIND: Ratio = Ratio::from_bits(1 << 23);
@@ -41,14 +41,14 @@ const BEDDING_BEHIND_Q62: u64 = 1 << 55;
 /// either way.
 ///
 /// The state sums each step's loss truncated, from each step's energy truncated to Q48 J: below
-/// 2³³ Q96 m per step, below 2⁻²⁰ m for 2⁴³ steps [calc]. A loss past the lining is kept at the
+/// 2³³ Q96 m per step, below 2⁻²⁰ m for 2⁴³ steps \[calc\]. A loss past the lining is kept at the
 /// lining's thickness by [`Estimator::save`](crate::estimator::Estimator::save), so a lining run
 /// past its end stays worn out after a restart. Once the energy stops at the top of
 /// [`Joules`](crate::units::Joules) the loss goes on: only the lower side is checked then.
 pub const LOSS_TOLERANCE: Metres = Metres::from_bits(1 << 4);
 const LOSS_TOLERANCE_Q96: u128 = 1 << 76;
 
-/// `e⁻¹` in Q62, rounded to nearest [calc: e⁻¹ = 0.367 879 441 171 442 32…].
+/// `e⁻¹` in Q62, rounded to nearest \[calc: e⁻¹ = 0.367 879 441 171 442 32…].
 const INV_E_Q62: u64 = 1_696_544_475_317_221_319;
 /// Beyond `E = 40·E₀`, `exp(−E/E₀) < 2⁻⁵⁷`: taken as 0 (far inside [`BEDDING_AHEAD`]).
 const X_MAX: u64 = 40;

@@ -134,7 +134,7 @@ pub enum RecordError {
     },
     /// The reserved word is not zero.
     ReservedNotZero,
-    /// The energy is beyond the top of [`Joules`](crate::units::Joules).
+    /// The energy is beyond the top of [`Joules`].
     EnergyOutOfRange,
     /// `1 − bedding` is above 1 (bedding below 0).
     BeddingOutOfRange,
