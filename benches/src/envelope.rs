@@ -239,7 +239,15 @@ pub fn run() -> Result<Envelope, Box<dyn Error>> {
                     // Fixed point: restore the state, one step.
                     let wear = WearState::with_history(cfg.wear(), Joules::from_num(energy));
                     let thermal = ThermalState::with_temperatures(t_fx, t_fx);
-                    let record = StateRecord::new(0, &wear, &thermal, Ratio::ONE, 0).to_bytes();
+                    let record = StateRecord::new(
+                        0,
+                        cfg.checksum(),
+                        &wear,
+                        &thermal,
+                        Ratio::ONE,
+                        Ratio::ZERO,
+                    )
+                    .to_bytes();
                     let mut est = Estimator::restore(&cfg, &record)?;
                     let mut inputs = Inputs::<1>::at_rest(counts);
                     inputs.input_speed = Some(v_fx);

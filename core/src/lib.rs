@@ -27,6 +27,11 @@
 //!   |T · v| ─► thermal (T_lining) and wear (energy, bedding, thickness)
 //!   reference torque ─► adapt: bounded RLS correction k of μ, frozen on faults
 //!   ─► Estimate { torque, capacity, ±, μ, r_e, F, T_lining, bedding, wear, state, flags }
+//!
+//! across power cycles (integers only, at start-up and every few seconds or minutes):
+//!   Estimator::save ─► record::StateRecord (88 B, CRC-32, config checksum)
+//!     ─► record_store::RecordStore (two NOR flash slots, A/B, power-cut safe)
+//!     ─► RecordStore::restore: newest valid record, checked against the config
 //! ```
 //!
 //! Floats (via `libm`) appear only where tables and coefficients are built; the per-sample
@@ -187,6 +192,7 @@ pub mod flags;
 pub mod friction;
 pub mod geometry;
 pub mod record;
+pub mod record_store;
 #[cfg(feature = "std")]
 pub mod reference;
 pub mod sae_j866;

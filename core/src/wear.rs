@@ -75,7 +75,7 @@ fn bedding_step(unbedded: u64, x: u64) -> u64 {
 }
 
 /// Energy the state can hold: the top of [`Joules`], in Q64.
-const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
+pub(crate) const ENERGY_MAX_Q64: u128 = (i64::MAX as u128) << 48;
 /// A single sample's energy is capped at 2³² J (4.3 GJ) before the wear product.
 const STEP_MAX_Q48: u128 = 1 << 80;
 
@@ -355,7 +355,7 @@ impl WearConfig {
     }
 
     /// Thickness loss for an energy in Q48 J: k·E/A, truncated to Q96 m.
-    fn loss_q96(&self, energy_q48: u128) -> u128 {
+    pub(crate) fn loss_q96(&self, energy_q48: u128) -> u128 {
         // The state's energy is below 2⁹⁶ in Q48; the cap only states it.
         self.step_loss_q96(energy_q48.min(ENERGY_MAX_Q64 >> 16))
     }

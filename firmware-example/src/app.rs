@@ -496,6 +496,11 @@ where
         self.summary
     }
 
+    /// The processing step (e.g. to save its state between samples).
+    pub const fn processor(&self) -> &P {
+        &self.processor
+    }
+
     /// The counters so far.
     pub const fn summary(&self) -> &Summary {
         &self.summary

@@ -39,11 +39,14 @@
 use clampwise_core::config::DeviceConfig;
 use clampwise_core::estimator::{self, ContactState, Estimate, Estimator, EstimatorState};
 use clampwise_core::flags::Flags;
-use clampwise_core::record::RecordError;
+use clampwise_core::record::{RecordError, StateRecord};
+use clampwise_core::record_store::{LoadError, RecordStore, SlotState, StoreError};
 use clampwise_core::sensor::RawChannel;
+use embedded_storage::nor_flash::NorFlash;
 
 use crate::app::{Inputs, Outcome, Processor, Reading};
 use crate::line::Line;
+use crate::saved_state::Persist;
 
 /// The core's estimator as the loop's processing step, for a device with `C` force channels.
 #[derive(Clone, Debug)]
@@ -87,6 +90,40 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     /// The state the estimator carries between samples.
     pub const fn state(&self) -> &EstimatorState<C> {
         self.estimator.state()
+    }
+
+    /// The core's estimator.
+    pub const fn estimator(&self) -> &Estimator<'c, C, NF, NB, NT, NV> {
+        &self.estimator
+    }
+}
+
+impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize> Persist
+    for EstimatorStep<'_, C, NF, NB, NT, NV>
+{
+    fn state_record(&self, sequence: u32) -> StateRecord {
+        self.estimator.record(sequence)
+    }
+
+    fn save_state<F: NorFlash>(
+        &self,
+        store: &mut RecordStore<F>,
+    ) -> Result<u32, StoreError<F::Error>> {
+        store.save(&self.estimator)
+    }
+
+    fn restore_state<F: NorFlash>(
+        &mut self,
+        store: &mut RecordStore<F>,
+    ) -> Result<u32, LoadError<F::Error>> {
+        let config = self.estimator.config();
+        let record = store.load(config)?;
+        // `load` checked the record against this configuration: `resume` accepts it.
+        self.estimator =
+            Estimator::resume(config, &record).map_err(|e| LoadError::NoValidRecord {
+                slots: [SlotState::Rejected(e); 2],
+            })?;
+        Ok(record.sequence())
     }
 }
 

@@ -5,10 +5,17 @@
 //! Output, one line each:
 //! * `# clampwise-fw …` — a caution, then the trace name, sample count, channels, period and
 //!   the generated checksum;
+//! * `# state,restore=…` — how the estimator started: from the saved record (its sequence), or
+//!   without one and what each slot of the saved-state flash held (the stub's flash starts
+//!   erased, so the replay starts `restore=none,slot0=erased,slot1=erased`);
 //! * `# est,…` — the names of the sample line's fields;
 //! * `est,<sample>,<valid_mask>,<fault_out>,<warning_out>,<processor fields…>` per sample, all
 //!   integers (fixed-point values as their raw bits);
-//! * `end,samples=…,…` — the loop's counters and the output pins' level changes.
+//! * `end,samples=…,…` — the loop's counters and the output pins' level changes;
+//! * `state,saves=…,save_errors=…,last_sequence=…,reload_sequence=…,reload_same=…` — the
+//!   saved state: saves every [`SAVE_INTERVAL_MS`] and one on request at the end, then a
+//!   restart over the same flash: the sequence it restores and whether the restored state is
+//!   the running one (1) or not (0).
 //!
 //! ```
 //! use clampwise_firmware_example::line::LineSink;
@@ -20,7 +27,7 @@
 //! }
 //! let mut lines = Count(0);
 //! let summary = replay(demo_processor().unwrap(), &mut lines).unwrap();
-//! assert_eq!(lines.0, summary.samples as usize + 4);
+//! assert_eq!(lines.0, summary.samples as usize + 6);
 //! ```
 
 use core::fmt;
@@ -38,7 +45,12 @@ use crate::generated::{
 };
 use crate::line::{Line, LineSink};
 use crate::processor::EstimatorStep;
+use crate::saved_state::{
+    DemoFlash, Persist, SAVE_INTERVAL_MS, SLOT_LEN, SLOTS, SavedState, Start,
+};
 use crate::stub::{StubPin, TraceAdc, TraceAuxiliary, TraceClock, TraceDelay, TraceSpeeds};
+use clampwise_core::record_store::StoreError;
+use embedded_storage::nor_flash::NorFlashErrorKind;
 
 /// The core's estimator on this build's device configuration.
 pub type DemoProcessor = EstimatorStep<
@@ -69,6 +81,8 @@ pub enum ReplayError {
     Config(LoopConfigError),
     /// The trace is longer than a `u32` sample counter.
     TraceTooLong,
+    /// The saved-state slots do not fit the flash.
+    SavedState(StoreError<NorFlashErrorKind>),
 }
 
 impl fmt::Display for ReplayError {
@@ -80,6 +94,7 @@ impl fmt::Display for ReplayError {
             ),
             Self::Config(e) => write!(f, "loop configuration: {e}"),
             Self::TraceTooLong => write!(f, "trace: more samples than a u32 counts"),
+            Self::SavedState(e) => write!(f, "saved state: {e}"),
         }
     }
 }
@@ -109,13 +124,22 @@ fn first_channels<const CH: usize>() -> Option<[Channel; CH]> {
     Some(out)
 }
 
-/// Replay the whole recorded trace through `processor`, emitting every line to `sink`.
+/// The saved-state store of the demo over the stub's flash.
+fn demo_store(flash: &mut DemoFlash) -> Result<SavedState<&mut DemoFlash>, ReplayError> {
+    SavedState::new(flash, SLOTS, SLOT_LEN, SAVE_INTERVAL_MS, SAMPLE_PERIOD_NS)
+        .map_err(ReplayError::SavedState)
+}
+
+/// Replay the whole recorded trace through `processor`, emitting every line to `sink`: restore
+/// its state from the saved-state flash at start (keeping it as given when there is no valid
+/// record), save every [`SAVE_INTERVAL_MS`] and once on request at the end, then restart over
+/// the same flash and check that what a restart restores is the running state.
 ///
 /// # Errors
 /// [`ReplayError`] before the first sample; once running, faults are counted, not returned.
-pub fn replay<P, S>(processor: P, sink: &mut S) -> Result<Summary, ReplayError>
+pub fn replay<P, S>(mut processor: P, sink: &mut S) -> Result<Summary, ReplayError>
 where
-    P: Processor<DEVICE_CHANNELS>,
+    P: Processor<DEVICE_CHANNELS> + Persist,
     S: LineSink,
 {
     let computed = generated::checksum();
@@ -158,6 +182,16 @@ where
     line.key_hex32("device_crc32", DEVICE_CHECKSUM);
     sink.emit(line.as_bytes());
 
+    // Power-on: the stub's flash is erased; a board's keeps the records of earlier runs.
+    // Borrowed by each store, so the 512 bytes are not moved (and copied) into it.
+    let mut flash = DemoFlash::new();
+    let mut saved = demo_store(&mut flash)?;
+    let start = saved.restore(&mut processor);
+    let mut line = Line::new();
+    line.push_str("# state");
+    start.write_fields(&mut line);
+    sink.emit(line.as_bytes());
+
     let clock = TraceClock::new(SAMPLE_PERIOD_NS);
     let ports = Ports {
         adc: TraceAdc::new(&clock, &TRACE),
@@ -169,14 +203,41 @@ where
     };
     let mut app = ControlLoop::new(ports, processor, config);
     app.write_header(sink);
-    let summary = app.run(samples, sink);
-    let (ports, _) = app.release();
+    for _ in 0..samples {
+        let _ = app.tick(sink);
+        // Between samples, in the period's slack (a board: its idle loop).
+        let _ = saved.after_sample(app.processor());
+    }
+    // The application's save on request (here: at the end of the run, as at a shutdown).
+    saved.request();
+    let _ = saved.service(app.processor());
+    let summary = *app.summary();
+    let (ports, processor) = app.release();
 
     let mut line = Line::new();
     line.push_str("end");
     summary.write_fields(&mut line);
     line.key_value("fault_pin_changes", i64::from(ports.fault.changes()));
     line.key_value("warning_pin_changes", i64::from(ports.warning.changes()));
+    sink.emit(line.as_bytes());
+
+    // Restart over the same flash: a new estimator resumes from the newest record.
+    let mut line = Line::new();
+    line.push_str("state");
+    saved.write_fields(&mut line);
+    let mut again = demo_store(&mut flash)?;
+    let reload = demo_processor()
+        .ok()
+        .map(|mut p| (again.restore(&mut p), p));
+    let (sequence, same) = match reload {
+        Some((Start::Restored { sequence }, p)) => (
+            i64::from(sequence),
+            p.state_record(sequence) == processor.state_record(sequence),
+        ),
+        _ => (-1, false),
+    };
+    line.key_value("reload_sequence", sequence);
+    line.key_value("reload_same", i64::from(same));
     sink.emit(line.as_bytes());
     Ok(summary)
 }
@@ -231,7 +292,7 @@ mod tests {
         let mut out = Collect::default();
         let summary = replay(demo_processor().unwrap(), &mut out).unwrap();
         assert_eq!(summary.samples as usize, TRACE.len());
-        assert_eq!(out.0.len(), TRACE.len() + 4);
+        assert_eq!(out.0.len(), TRACE.len() + 6);
         // Independent tally straight from the trace: every invalid cell is a not-ready frame.
         let invalid = TRACE
             .iter()
@@ -347,12 +408,33 @@ mod tests {
     fn header_names_every_field() {
         let mut out = Collect::default();
         replay(demo_processor().unwrap(), &mut out).unwrap();
-        let names = out.0[2].split(',').count();
+        assert!(out.0[3].starts_with("# est,"));
+        let names = out.0[3].split(',').count();
         for l in out.0.iter().filter(|l| l.starts_with("est,")) {
             assert_eq!(l.split(',').count(), names, "{l}");
         }
         assert!(out.0[0].contains("not a certified safety function"));
         assert!(out.0[1].contains(&format!("device_crc32=0x{DEVICE_CHECKSUM:08x}")));
-        assert!(out.0.last().unwrap().starts_with("end,samples="));
+        assert!(out.0[out.0.len() - 2].starts_with("end,samples="));
+    }
+
+    // The saved state over a run: the stub flash starts erased, so the start says so; one save
+    // per SAVE_INTERVAL_MS of samples plus the one on request at the end, sequences from 0;
+    // a restart over the same flash restores the last and it is the running state.
+    #[test]
+    fn the_state_is_saved_on_schedule_and_a_restart_restores_it() {
+        let mut out = Collect::default();
+        replay(demo_processor().unwrap(), &mut out).unwrap();
+        assert_eq!(out.0[2], "# state,restore=none,slot0=erased,slot1=erased");
+        let per_save = SAVE_INTERVAL_MS as usize * 1_000_000 / SAMPLE_PERIOD_NS as usize;
+        let saves = TRACE.len() / per_save + 1;
+        assert_eq!(
+            out.0.last().unwrap(),
+            &format!(
+                "state,saves={saves},save_errors=0,last_sequence={},reload_sequence={},reload_same=1",
+                saves - 1,
+                saves - 1
+            )
+        );
     }
 }

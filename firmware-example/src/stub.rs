@@ -10,12 +10,15 @@
 //! * [`TraceSpeeds`] gives the trace's shaft speeds for the current sample, and
 //!   [`TraceAuxiliary`] its actuator command, temperatures and reference torque.
 //! * [`StubPin`] is an [`OutputPin`] that remembers its level and counts its changes.
+//! * [`RamFlash`] is a [`NorFlash`] in RAM that behaves like NOR flash (erase to all ones, a
+//!   write can only clear bits), for the saved-state store of [`crate::saved_state`].
 //!
 //! All share one [`TraceClock`] by reference (a `Cell`, so no `unsafe` and no locking: the stub
 //! is single-threaded like the loop that uses it).
 //!
 //! A board replaces these types with its HAL's (an `SpiDevice` from its SPI bus and chip-select
-//! pin, two GPIO outputs, its delay or timer, its encoder inputs) and keeps the application.
+//! pin, two GPIO outputs, its delay or timer, its encoder inputs, the `NorFlash` of its internal
+//! or an external flash) and keeps the application.
 //!
 //! ```
 //! use clampwise_firmware_example::adc::{BridgeAdc, Channel};
@@ -44,6 +47,10 @@ use clampwise_core::units::RadPerSec;
 use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::{ErrorType as PinErrorType, OutputPin, StatefulOutputPin};
 use embedded_hal::spi::{self, ErrorKind, ErrorType as SpiErrorType, Operation, SpiDevice};
+use embedded_storage::nor_flash::{
+    ErrorType as FlashErrorType, NorFlash, NorFlashErrorKind, ReadNorFlash, check_erase,
+    check_read, check_write,
+};
 
 use crate::adc::{ADC_CHANNELS, CMD_READ, Channel, FRAME_LEN, FULL_SCALE, Status, encode_frame};
 use crate::app::{Auxiliary, AuxiliaryInputs, ShaftSpeeds, Speeds};
@@ -487,5 +494,95 @@ mod tests {
         pin.set_low().unwrap();
         assert!(pin.is_set_low().unwrap());
         assert_eq!(pin.changes(), 2);
+    }
+}
+
+/// NOR flash in RAM: `N` bytes in erase units of [`RamFlash::ERASE_UNIT`] bytes, written in
+/// 4-byte words, read by the byte. An erase sets every bit of its units; a write ANDs into the
+/// cells (it can only clear bits), as NOR flash does. Its contents survive what the
+/// application calls a restart (a new store over the same `RamFlash`), not a power cycle.
+///
+/// ```
+/// use clampwise_firmware_example::stub::RamFlash;
+/// use embedded_storage::nor_flash::{NorFlash, ReadNorFlash};
+/// let mut flash = RamFlash::<512>::new();
+/// flash.write(0, &[0x0F, 0xF0, 0x00, 0xFF])?;
+/// flash.write(0, &[0xFF, 0x3C, 0xFF, 0x0F])?; // only clears: AND
+/// let mut got = [0; 4];
+/// flash.read(0, &mut got)?;
+/// assert_eq!(got, [0x0F, 0x30, 0x00, 0x0F]);
+/// flash.erase(0, 256)?;
+/// flash.read(0, &mut got)?;
+/// assert_eq!(got, [0xFF; 4]);
+/// # Ok::<(), embedded_storage::nor_flash::NorFlashErrorKind>(())
+/// ```
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct RamFlash<const N: usize> {
+    cells: [u8; N],
+}
+
+impl<const N: usize> RamFlash<N> {
+    /// Bytes per erase unit (a small flash page).
+    pub const ERASE_UNIT: usize = 256;
+
+    /// Erased flash: all ones.
+    pub const fn new() -> Self {
+        Self { cells: [0xFF; N] }
+    }
+
+    fn cells(&mut self, offset: u32, len: usize) -> Result<&mut [u8], NorFlashErrorKind> {
+        let at = usize::try_from(offset).map_err(|_| NorFlashErrorKind::OutOfBounds)?;
+        self.cells
+            .get_mut(at..at.saturating_add(len))
+            .ok_or(NorFlashErrorKind::OutOfBounds)
+    }
+}
+
+impl<const N: usize> Default for RamFlash<N> {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+impl<const N: usize> FlashErrorType for RamFlash<N> {
+    type Error = NorFlashErrorKind;
+}
+
+impl<const N: usize> ReadNorFlash for RamFlash<N> {
+    const READ_SIZE: usize = 1;
+
+    fn read(&mut self, offset: u32, bytes: &mut [u8]) -> Result<(), Self::Error> {
+        check_read(self, offset, bytes.len())?;
+        // Element by element: `copy_from_slice` would keep a length-mismatch panic path.
+        let len = bytes.len();
+        for (dst, src) in bytes.iter_mut().zip(self.cells(offset, len)?.iter()) {
+            *dst = *src;
+        }
+        Ok(())
+    }
+
+    fn capacity(&self) -> usize {
+        N
+    }
+}
+
+impl<const N: usize> NorFlash for RamFlash<N> {
+    const WRITE_SIZE: usize = 4;
+    const ERASE_SIZE: usize = Self::ERASE_UNIT;
+
+    fn erase(&mut self, from: u32, to: u32) -> Result<(), Self::Error> {
+        check_erase(self, from, to)?;
+        let len =
+            usize::try_from(to.saturating_sub(from)).map_err(|_| NorFlashErrorKind::OutOfBounds)?;
+        self.cells(from, len)?.fill(0xFF);
+        Ok(())
+    }
+
+    fn write(&mut self, offset: u32, bytes: &[u8]) -> Result<(), Self::Error> {
+        check_write(self, offset, bytes.len())?;
+        for (cell, b) in self.cells(offset, bytes.len())?.iter_mut().zip(bytes) {
+            *cell &= b;
+        }
+        Ok(())
     }
 }

@@ -269,10 +269,11 @@ fn case() -> impl Strategy<Value = Case> {
 fn restored(dev: &Device<1>, temperature: Celsius, energy: Joules) -> Estimator<'_, 1, 2, 2, 3, 3> {
     let record = StateRecord::new(
         0,
+        dev.checksum(),
         &WearState::with_history(dev.wear(), energy),
         &ThermalState::with_temperatures(temperature, temperature),
         Ratio::ONE,
-        0,
+        Ratio::ZERO,
     );
     Estimator::restore(dev, &record.to_bytes()).unwrap()
 }

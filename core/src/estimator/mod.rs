@@ -22,6 +22,7 @@
 
 mod estimate;
 mod inputs;
+mod persist;
 mod sub_rate;
 mod torque;
 mod uncertainty;
@@ -34,7 +35,6 @@ use crate::adapt::{AdaptGate, AdaptState};
 use crate::config::DeviceConfig;
 use crate::flags::Flags;
 use crate::friction::FrictionState;
-use crate::record::{RECORD_LEN, RecordError, StateRecord};
 use crate::sensor::{ChannelMask, ForceSource, Health, SensorState};
 use crate::thermal::ThermalState;
 use crate::units::{NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
@@ -94,45 +94,6 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
             adapt: cfg.adapt.as_ref().map(AdaptState::new),
         };
         Self { cfg, state }
-    }
-
-    /// Resume from a saved state record (see [`Estimator::save`]): wear, bedding, temperatures
-    /// and the adaptation's factor and covariance. Sensor filters and the stick/slip decision
-    /// start afresh. A record that is corrupt, truncated or of another version is rejected.
-    ///
-    /// # Errors
-    /// The [`RecordError`] saying why the record was not loaded.
-    pub fn restore(
-        cfg: &'c DeviceConfig<C, NF, NB, NT, NV>,
-        record: &[u8],
-    ) -> Result<Self, RecordError> {
-        let rec = StateRecord::from_bytes(record)?;
-        let mut est = Self::new(cfg);
-        est.state.thermal = rec.thermal();
-        est.state.wear = rec.wear();
-        if let Some(acfg) = cfg.adapt.as_ref() {
-            let covariance = i32::try_from(rec.estimator_covariance()).unwrap_or(i32::MAX);
-            est.state.adapt = Some(AdaptState::restore(
-                acfg,
-                rec.adaptation_factor(),
-                Ratio::from_bits(covariance),
-            ));
-        }
-        Ok(est)
-    }
-
-    /// A state record to keep across power cycles (write it to non-volatile memory with a
-    /// rising `sequence`; keep two slots and load the newest valid one). Energy still pending
-    /// in the thermal and wear sub-rate is added to the saved wear, so no energy is lost; the
-    /// temperatures are those of the last sub-rate update.
-    pub fn save(&self, sequence: u32) -> [u8; RECORD_LEN] {
-        let mut wear = self.state.wear;
-        // No energy pending leaves the wear state as it is (`advance` skips it).
-        wear.advance(&self.cfg.wear, self.state.sub_rate.pending());
-        let (factor, covariance) = self.state.adapt.map_or((Ratio::ONE, 0), |a| {
-            (a.factor(), i64::from(a.covariance().to_bits()))
-        });
-        StateRecord::new(sequence, &wear, &self.state.thermal, factor, covariance).to_bytes()
     }
 
     /// The configuration.

@@ -160,10 +160,11 @@ impl InitialState {
         let t = self.temperature.unwrap_or(dev.thermal().ambient());
         let covariance = dev
             .adapt()
-            .map_or(0, |a| i64::from(AdaptState::new(a).covariance().to_bits()));
+            .map_or(Ratio::ZERO, |a| AdaptState::new(a).covariance());
         Some(
             StateRecord::new(
                 0,
+                dev.checksum(),
                 &WearState::with_history(dev.wear(), self.energy),
                 &ThermalState::with_temperatures(t, t),
                 Ratio::ONE,
