@@ -43,7 +43,8 @@ bitflags::bitflags! {
         const FORCE_IMPLAUSIBLE = 1 << 13;
         /// A shaft speed was not known this sample: the contact may be holding or slipping, so
         /// no torque is given and the state is `SlipUnknown`; the holding capacity is a bound
-        /// over every slip speed. No heat or wear is added while it lasts.
+        /// over every slip speed and temperature of the μ table. No heat or wear is added while
+        /// it lasts.
         const SPEED_UNKNOWN = 1 << 14;
     }
 }

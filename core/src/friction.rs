@@ -168,6 +168,9 @@ pub struct FrictionConfig<const NT: usize, const NV: usize> {
     transition_recip: i64,
     viscous_drag: ViscousDrag,
     no_load_drag: NewtonMetres,
+    /// The largest μ the lining can show anywhere in the table, static or kinetic: the table's
+    /// largest value times max(1, `static_to_kinetic`), rounded up (Q30 bits).
+    mu_ceiling: i64,
 }
 
 fn fixed_from_f64<F: fixed::types::extra::LeEqU32>(
@@ -247,6 +250,7 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
         no_load_drag: NewtonMetres,
     ) -> Result<Self, FrictionError> {
         let z = mu_kinetic.values();
+        let mut largest = 0i64;
         let mut i = 0;
         while i < NT {
             let mut j = 0;
@@ -259,6 +263,9 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
                         temperature: i,
                         speed: j,
                     });
+                }
+                if v as i64 > largest {
+                    largest = v as i64;
                 }
                 j += 1;
             }
@@ -310,6 +317,12 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
             transition_recip: (1i64 << 46) / v_t as i64,
             viscous_drag,
             no_load_drag,
+            // μ ≤ 1.2 and the ratio ≤ 1.6 (validated): the product is far inside i64.
+            mu_ceiling: if r > 1 << 30 {
+                (largest * r as i64 + (1 << 30) - 1) >> 30
+            } else {
+                largest
+            },
         })
     }
 
@@ -535,48 +548,31 @@ impl FrictionState {
 
 impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
     /// A sample for a slip speed that is not known: the contact may be holding or slipping at
-    /// any speed, so both μ are the largest the lining can have at `lining_temp` — the static μ
-    /// or the kinetic μ at any speed breakpoint (bilinear interpolation peaks at a breakpoint),
-    /// times `correction`. Not slipping, no direction, no drag (it cannot be known without the
-    /// speed); the friction state is left as it is. O(NV), integers only.
+    /// any speed and temperature the table knows, so both μ are the ceiling of the whole table
+    /// (its largest value, times the static ratio when that is above 1, rounded up), times
+    /// `correction` — a bound, looser than the μ at this temperature but one that needs no
+    /// search. Not slipping, no direction, no drag (it cannot be known without the speed); the
+    /// friction state is left as it is. O(1), integers only.
     ///
     /// ```
     /// use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
-    /// use clampwise_core::units::{Celsius, Ratio};
+    /// use clampwise_core::units::Ratio;
     /// let mu = MuTable::<1, 2>::from_f64(&[20.0], &[0.0, 100.0], &[[0.30, 0.36]])?;
     /// let p = FrictionParams {
     ///     static_to_kinetic: 1.1, stick_speed: 0.05, stick_hysteresis: 0.04,
     ///     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
     /// };
     /// let cfg = FrictionConfig::new(mu, &p)?;
-    /// // μ rises with slip here: the kinetic 0.36 at speed tops the static 0.33.
-    /// let s = cfg.slip_unknown(Celsius::lit("20"), Ratio::ONE);
-    /// assert!((s.mu_static.to_num::<f64>() - 0.36).abs() < 1e-8);
+    /// // The table's largest μ, 0.36, times the static ratio 1.1: at least any μ it can give.
+    /// let s = cfg.slip_unknown(Ratio::ONE);
+    /// assert!((s.mu_static.to_num::<f64>() - 0.396).abs() < 1e-8);
     /// assert!(!s.slipping);
     /// # Ok::<(), Box<dyn core::error::Error>>(())
     /// ```
-    pub fn slip_unknown(&self, lining_temp: Celsius, correction: Ratio) -> FrictionSample {
-        let mut saturated = correction.to_bits() < 0;
+    pub fn slip_unknown(&self, correction: Ratio) -> FrictionSample {
+        let saturated = correction.to_bits() < 0;
         let corr = i64::from(correction.to_bits().max(0));
-        let mut clamped = false;
-        let mut largest = 0i64;
-        let mut standstill = 0i64;
-        for (j, &speed) in self.mu_kinetic.y_breakpoints().iter().enumerate() {
-            let at = self.mu_kinetic.lookup(lining_temp, speed);
-            clamped |= at.clamped;
-            let mu = i64::from(at.value.to_bits());
-            if j == 0 {
-                standstill = mu;
-            }
-            largest = largest.max(mu);
-        }
-        let (kinetic, sat_k) = ratio_from_non_negative(correct(largest, corr));
-        let (stat, sat_s) = ratio_from_non_negative(mul_q30(
-            correct(standstill, corr),
-            i64::from(self.static_to_kinetic.to_bits()),
-        ));
-        saturated |= sat_k || sat_s;
-        let bound = kinetic.max(stat);
+        let (bound, sat) = ratio_from_non_negative(correct(self.mu_ceiling, corr));
         FrictionSample {
             mu_kinetic: bound,
             mu_static: bound,
@@ -584,8 +580,8 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
             slipping: false,
             direction: 0,
             drag_torque: NewtonMetres::ZERO,
-            clamped,
-            saturated,
+            clamped: false,
+            saturated: saturated || sat,
         }
     }
 }

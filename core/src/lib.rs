@@ -53,7 +53,7 @@
 //! | two gauges that disagree | the ± reaches both, or the actuator model picks one |
 //! | every gauge wrong the same way (excitation, shared gain) | beyond the actuator model's band: [`flags::Flags::FORCE_IMPLAUSIBLE`], the ± covers the model's band as well |
 //! | a force below the touch force that may not be | `Released`: the ± covers the friction torque the force's upper bound could carry |
-//! | a speed that could not be read | `SlipUnknown` ([`flags::Flags::SPEED_UNKNOWN`]): no torque, the capacity a bound over every slip speed, no heat or wear added |
+//! | a speed that could not be read | `SlipUnknown` ([`flags::Flags::SPEED_UNKNOWN`]): no torque, the capacity a bound over every slip speed and temperature of the μ table, no heat or wear added |
 //! | no usable force | `Unavailable` ([`flags::Flags::FORCE_LOST`]): neither torque nor capacity |
 //! | an arithmetic limit | [`flags::Flags::ARITHMETIC_SATURATED`] |
 //!

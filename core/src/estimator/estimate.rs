@@ -45,7 +45,7 @@ pub struct Estimate {
     /// speed is unknown, or when force is unavailable.
     pub torque: Option<NewtonMetres>,
     /// Largest torque the contact can hold without slipping, n · μ_s · F · r_e, N·m (≥ 0);
-    /// with the slip speed unknown, the largest friction torque at any slip speed.
+    /// with the slip speed unknown, the largest friction torque at any slip speed and table temperature (a bound).
     /// `None` when force is unavailable.
     pub holding_capacity: Option<NewtonMetres>,
     /// ± uncertainty of the torque (slipping, released) or of the capacity (holding, slip

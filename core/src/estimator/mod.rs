@@ -141,7 +141,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
                 .update(&cfg.friction, v, lining_before, Ratio::ONE),
             None => {
                 flags.insert(Flags::SPEED_UNKNOWN);
-                cfg.friction.slip_unknown(lining_before, Ratio::ONE)
+                cfg.friction.slip_unknown(Ratio::ONE)
             }
         };
         flags.set(Flags::OUT_OF_RANGE, fric.clamped);

@@ -64,7 +64,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         let cfg = self.cfg;
         let mut wear = self.state.wear;
         // No energy pending leaves the wear state as it is (`advance` skips it).
-        wear.advance(&cfg.wear, self.state.sub_rate.pending());
+        wear.advance(&cfg.wear, self.state.sub_rate.pending_wear());
         let (energy, unbedded, loss) = wear.raw();
         // The initial thickness is positive (`WearConfig` holds 0 ≤ minimum < initial).
         let lining_q96 = u128::from(cfg.wear.initial_thickness().to_bits().unsigned_abs()) << 72;

@@ -77,7 +77,7 @@ impl SubRate {
 
     /// The friction power summed since the last update (W): what the wear model has yet to
     /// see.
-    pub(crate) const fn pending(&self) -> Watts {
+    pub(crate) const fn pending_wear(&self) -> Watts {
         self.pending_wear
     }
 

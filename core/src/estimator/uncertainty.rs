@@ -39,9 +39,15 @@ pub enum Combination {
     RootSumSquare,
 }
 
-/// ⌈x·q / 2³⁰⌉ for a Q30 factor `q`, saturating at `u64::MAX`.
+/// Largest torque bits (|i32|) and largest factor (Q30, 8 − 2⁻³⁰) the products take: the
+/// product of the two stays below 2⁶⁴, one plain 64-bit multiply (no overflow test, which on
+/// ARMv6-M is a 128-bit product); a bound that large saturates the torque format anyway.
+const T_MAX: u64 = 1 << 31;
+const Q_MAX: u64 = (1 << 33) - 1;
+
+/// ⌈x·q / 2³⁰⌉ for a torque `x` (Q12 bits) and a Q30 factor `q`, both capped as above.
 fn times_q30_up(x: u64, q: u64) -> u64 {
-    x.saturating_mul(q).saturating_add((1 << 30) - 1) >> 30
+    (x.min(T_MAX) * q.min(Q_MAX) + ((1 << 30) - 1)) >> 30
 }
 
 /// √(a² + b² + c²) (Q30 relative tolerances, at most 2³¹ here; any `u32` works), rounded **up**,
@@ -282,14 +288,15 @@ mod tests {
             let tq = NewtonMetres::from_bits(t);
             let tf = tq.to_num::<f64>();
             let tu = NewtonMetres::saturating_from_num(tf * rel_f);
-            let u = torque_uncertainty(
+            let bound = torque_uncertainty(
                 tq, tu, NewtonMetres::ZERO, Ratio::from_num(dmu), Ratio::from_num(dr), Combination::WorstCase,
-            ).to_num::<f64>();
+            );
+            let u = bound.to_num::<f64>();
             let (dmu, dr) = (Ratio::from_num(dmu).to_num::<f64>(), Ratio::from_num(dr).to_num::<f64>());
             let rel_f = if tf > 0.0 { tu.to_num::<f64>() / tf } else { 0.0 };
             // A bound beyond the torque format saturates at its top (and is then no tighter).
             let exact = tf * (dmu + dr + dmu * dr) + tu.to_num::<f64>() * (1.0 + dmu) * (1.0 + dr);
-            if u == NewtonMetres::MAX.to_num::<f64>() {
+            if bound == NewtonMetres::MAX {
                 prop_assert!(exact >= u - 1e-3, "{exact} saturated at {u}");
                 return Ok(());
             }

@@ -120,12 +120,12 @@ pub struct Predicted {
     pub saturated: bool,
 }
 
-/// The actuator's first-order lag for one sample rate: the coefficient T/(τ + T) in Q32,
+/// The actuator's first-order lag for one sample rate: the coefficient 1 − e^(−T/τ) in Q31,
 /// fixed at configuration.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct ActuatorLag {
-    alpha_q32: u32,
+    alpha_q31: i32,
 }
 
 /// Extra fractional bits of the lag state beyond those of [`Newtons`].
@@ -133,24 +133,25 @@ const LAG_EXTRA: u32 = 16;
 
 impl ActuatorLag {
     /// No lag: the prediction is the hysteresis output itself.
-    pub const NONE: Self = Self { alpha_q32: 0 };
+    pub const NONE: Self = Self { alpha_q31: 0 };
 
     /// The lag of time constant `response_time` (s; 0 or less: no lag) at `sample_rate_hz`:
     /// α = 1 − e^(−T/τ), the step-invariant (zero-order-hold) discretisation of the first-order
-    /// lag [calc], in Q32 rounded to nearest, at least 2⁻³². `const`: e^x is summed as its
-    /// series in 128-bit integers (x = T/τ ≤ 16 in the sum; beyond, α rounds to 1 − 2⁻³²).
+    /// lag [calc], in Q31 rounded to nearest, at least 2⁻³¹. `const`: e^x is summed as its
+    /// series in 128-bit integers (x = T/τ ≤ 16 in the sum; beyond, α rounds to 1 − 2⁻³¹).
     pub const fn new(response_time: Seconds, sample_rate_hz: u32) -> Self {
         let tau = response_time.to_bits();
         if tau <= 0 || sample_rate_hz == 0 {
             return Self::NONE;
         }
-        // τ·f_s in Q32: τ < 2⁶³ (Q32 bits) times f_s < 2³², below 2⁹⁵.
+        // τ·f_s in Q32: 0 < τ < 2⁶³ (Q32 bits, checked above) times f_s < 2³², below 2⁹⁵.
+        #[allow(clippy::cast_sign_loss)]
         let tau_fs_q32 = (tau as u128) * (sample_rate_hz as u128);
         // x = T/τ = 1/(τ·f_s) in Q32.
         let x_q32 = (1u128 << 64) / tau_fs_q32;
         if x_q32 > 16 << 32 {
             return Self {
-                alpha_q32: u32::MAX,
+                alpha_q31: i32::MAX,
             };
         }
         // e^x in Q64 by its series: each term t_k = t_(k−1)·x/k; with x ≤ 16 the terms stay
@@ -174,16 +175,16 @@ impl ActuatorLag {
             decay_q64
         };
         let alpha_q64 = (1u128 << 64) - decay_q64;
-        let alpha = (alpha_q64 + (1 << 31)) >> 32;
-        #[allow(clippy::cast_possible_truncation)]
-        let alpha_q32 = if alpha == 0 {
+        let alpha = (alpha_q64 + (1 << 32)) >> 33;
+        #[allow(clippy::cast_possible_truncation, clippy::cast_possible_wrap)]
+        let alpha_q31 = if alpha == 0 {
             1
-        } else if alpha > u32::MAX as u128 {
-            u32::MAX
+        } else if alpha > i32::MAX as u128 {
+            i32::MAX
         } else {
-            alpha as u32
+            alpha as i32
         };
-        Self { alpha_q32 }
+        Self { alpha_q31 }
     }
 }
 
@@ -223,18 +224,18 @@ impl ActuatorModel {
     ) -> Predicted {
         let primed = self.primed;
         let hysteresis = self.hysteresis(tr, command);
-        if lag.alpha_q32 == 0 {
+        if lag.alpha_q31 == 0 {
             return hysteresis;
         }
         let target = i64::from(hysteresis.force.to_bits()) << LAG_EXTRA;
         self.lagged = if primed {
-            // |target − lagged| < 2⁴⁸ and α < 2³²: the product is exact in i128; rounded to
-            // nearest, the state stays between its old value and the target.
-            let step = (i128::from(target - self.lagged) * i128::from(lag.alpha_q32)
-                + (1i128 << 31))
-                >> 32;
-            // |step| ≤ |target − lagged| < 2⁴⁸.
-            self.lagged + i64::try_from(step).unwrap_or(0)
+            // The distance to the target in Q8 N (its extra bits dropped, below 1 LSB of the
+            // force): |d| < 2³³, clamped below 2³², times α < 2³¹ stays below 2⁶³, one plain
+            // 64-bit multiply; back to Q24 rounded to nearest. |step| ≤ |d|·2¹⁶: the state
+            // moves toward the target and never past it.
+            let d = ((target - self.lagged) >> LAG_EXTRA).clamp(-(1 << 32) + 1, (1 << 32) - 1);
+            let step = (d * i64::from(lag.alpha_q31) + (1 << 14)) >> 15;
+            self.lagged + step
         } else {
             target
         };
@@ -405,9 +406,9 @@ mod tests {
             let lag = ActuatorLag::new(tau_q32, rate);
             // τ as stored (Q32 s), so only the coefficient's own arithmetic is measured.
             let want = -libm::expm1(-1.0 / (tau_q32.to_num::<f64>() * f64::from(rate)));
-            let got = f64::from(lag.alpha_q32) / 4_294_967_296.0;
+            let got = f64::from(lag.alpha_q31) / 2_147_483_648.0;
             assert!(
-                (got - want).abs() <= 1.5 / 4_294_967_296.0,
+                (got - want).abs() <= 1.5 / 2_147_483_648.0,
                 "{tau} s at {rate} Hz: {got} vs {want}"
             );
         }

@@ -746,34 +746,30 @@ fn force_bound(
     (held, trailing): (u64, u64),
     model: Option<(Newtons, &ActuatorTransfer)>,
 ) -> ForceBound {
-    let voted = i64::from(v.force.to_bits());
-    let own = i64::from(channel_uncertainty.to_bits());
-    let model = model.map(|(p, tr)| {
-        (
-            i64::from(p.to_bits()),
-            i64::from(tr.plausibility_band().to_bits()),
-        )
-    });
-    let mut spread_used = 0i64;
-    let mut spread_out = 0i64;
+    // Distances between i32 values are exact in u32; every sum saturates (at the top the ±
+    // is the whole format anyway). All in 32 bits: single instructions on a Cortex-M0.
+    let voted = v.force.to_bits();
+    // channel_uncertainty ≥ 0 and the band's parts ≥ 0 (validated): exact.
+    let own = channel_uncertainty.to_bits().unsigned_abs();
+    let model = model.map(|(p, tr)| (p.to_bits(), tr.plausibility_band().to_bits().unsigned_abs()));
+    let mut spread_used = 0u32;
+    let mut spread_out = 0u32;
     let local_fault = ChannelFlags::UNUSABLE.difference(ChannelFlags::DISAGREE);
     for (i, (value, flags)) in channel_force.iter().zip(channel_flags.iter()).enumerate() {
         let Some(x) = value else { continue };
-        let x = i64::from(x.to_bits());
-        let distance = (x - voted).abs();
+        let x = x.to_bits();
+        let distance = x.abs_diff(voted);
         if v.used.contains(i) {
             spread_used = spread_used.max(distance);
         } else if !flags.intersects(local_fault) {
-            let ruled_out = model.is_some_and(|(p, band)| (x - p).abs() > band + own);
+            let ruled_out = model.is_some_and(|(p, band)| x.abs_diff(p) > band.saturating_add(own));
             if !ruled_out {
                 spread_out = spread_out.max(distance);
             }
         }
     }
-    // held and trailing are Q8 allowances already saturated by the diagnostics; the sums of
-    // i32-range values stay far inside i64.
-    let held = i64::try_from(held).unwrap_or(i64::MAX);
-    let trailing = i64::try_from(trailing).unwrap_or(i64::MAX);
+    let held = u32::try_from(held).unwrap_or(u32::MAX);
+    let trailing = u32::try_from(trailing).unwrap_or(u32::MAX);
     // What the channels that were used claim on their own, before the filter's trail.
     let own_claim = own.saturating_add(held).saturating_add(spread_used);
     let consensus = own_claim.saturating_add(trailing);
@@ -783,7 +779,7 @@ fn force_bound(
         .saturating_add(spread_used.max(spread_out));
     let mut implausible = false;
     if let Some((p, band)) = model {
-        let gap = (voted - p).abs();
+        let gap = voted.abs_diff(p);
         // Farther from the model than the channels' own ± reaches (a filter trailing a moving
         // force is no reason to trust them more): every channel may be wrong alike, so the ±
         // covers the model's band too. Beyond the trail and the band as well, the two
