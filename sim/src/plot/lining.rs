@@ -4,8 +4,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::envelope::Envelope;
-use super::pixel_x_range;
-use super::{column_count, draw_envelope, padded, span_of, time_chart};
+use super::panel::single;
 use crate::error::SimError;
 
 /// Lining temperature used (modelled, or measured while plausible).
@@ -20,24 +19,14 @@ pub fn temperature<DB: DrawingBackend>(
 where
     DB::ErrorType: 'static,
 {
-    let cols = env.columns(range.0, range.1, column_count(area));
-    let s = span_of(cols.iter().map(|c| &c.temp_c));
-    let mut ch = time_chart(
+    single(
         area,
-        "lining temperature used",
+        env,
         range,
-        padded(s.lo, s.hi),
-        "°C",
-    )?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
+        ("lining temperature used", "°C"),
         |b| b.temp_c,
         RED.stroke_width(1),
-        None,
-    )?;
-    Ok(pixel_x_range(&ch))
+    )
 }
 
 /// μ used (with the adaptation's correction).
@@ -52,16 +41,12 @@ pub fn mu<DB: DrawingBackend>(
 where
     DB::ErrorType: 'static,
 {
-    let cols = env.columns(range.0, range.1, column_count(area));
-    let s = span_of(cols.iter().map(|c| &c.mu));
-    let mut ch = time_chart(area, "μ used", range, padded(s.lo, s.hi), "μ")?;
-    draw_envelope(
-        &mut ch,
-        &cols,
+    single(
+        area,
+        env,
         range,
+        ("μ used", "μ"),
         |b| b.mu,
         RGBColor(31, 119, 180).stroke_width(1),
-        None,
-    )?;
-    Ok(pixel_x_range(&ch))
+    )
 }
