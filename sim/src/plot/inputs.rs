@@ -7,7 +7,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::envelope::{Bucket, Envelope, Span};
-use super::panel::{TimePanel, columns, single};
+use super::panel::{SinglePanel, TimePanel, columns};
 use super::{padded, span_of};
 use crate::error::SimError;
 
@@ -59,45 +59,17 @@ where
 }
 
 /// Slip speed ω_in − ω_out.
-///
-/// # Errors
-/// Drawing errors.
-pub fn slip<DB: DrawingBackend>(
-    area: &DrawingArea<DB, Shift>,
-    env: &Envelope,
-    range: (f64, f64),
-) -> Result<(i32, i32), SimError>
-where
-    DB::ErrorType: 'static,
-{
-    single(
-        area,
-        env,
-        range,
-        ("slip speed ω_in − ω_out", "rad/s"),
-        |b| b.slip_rad_s,
-        RGBColor(23, 190, 207).stroke_width(1),
-    )
-}
+pub const SLIP: SinglePanel = SinglePanel {
+    caption: "slip speed ω_in − ω_out",
+    y_desc: "rad/s",
+    pick: |b| b.slip_rad_s,
+    colour: RGBColor(23, 190, 207),
+};
 
 /// Actuator command (in the trace's converted unit).
-///
-/// # Errors
-/// Drawing errors.
-pub fn command<DB: DrawingBackend>(
-    area: &DrawingArea<DB, Shift>,
-    env: &Envelope,
-    range: (f64, f64),
-) -> Result<(i32, i32), SimError>
-where
-    DB::ErrorType: 'static,
-{
-    single(
-        area,
-        env,
-        range,
-        ("actuator command", "command"),
-        |b| b.command,
-        RGBColor(127, 127, 127).stroke_width(1),
-    )
-}
+pub const COMMAND: SinglePanel = SinglePanel {
+    caption: "actuator command",
+    y_desc: "command",
+    pick: |b| b.command,
+    colour: RGBColor(127, 127, 127),
+};

@@ -80,28 +80,42 @@ where
     }
 }
 
-/// A panel of one quantity, on an axis padded around its range, without a legend; returns
-/// the pixel range of its time axis.
-///
-/// # Errors
-/// Drawing errors.
-pub(crate) fn single<DB: DrawingBackend>(
-    area: &DrawingArea<DB, Shift>,
-    env: &Envelope,
-    range: (f64, f64),
-    (caption, y_desc): (&str, &str),
-    pick: impl Fn(&Bucket) -> Span,
-    style: ShapeStyle,
-) -> Result<(i32, i32), SimError>
-where
-    DB::ErrorType: 'static,
-{
-    let cols = columns(area, env, range);
-    let mut s = Span::EMPTY;
-    for c in &cols {
-        s.merge(&pick(c));
+/// A panel of one quantity on an axis padded around its range, drawn at 1 px without a
+/// legend: what it shows and how.
+#[derive(Debug, Clone, Copy)]
+pub struct SinglePanel {
+    /// Caption above the panel.
+    pub caption: &'static str,
+    /// Value axis label (unit).
+    pub y_desc: &'static str,
+    /// The quantity, per column.
+    pub pick: fn(&Bucket) -> Span,
+    /// Line colour.
+    pub colour: RGBColor,
+}
+
+impl SinglePanel {
+    /// Draw the panel; returns the pixel range of its time axis.
+    ///
+    /// # Errors
+    /// Drawing errors.
+    pub fn draw<DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        env: &Envelope,
+        range: (f64, f64),
+    ) -> Result<(i32, i32), SimError>
+    where
+        DB::ErrorType: 'static,
+    {
+        let cols = columns(area, env, range);
+        let mut s = Span::EMPTY;
+        for c in &cols {
+            s.merge(&(self.pick)(c));
+        }
+        let y = padded(s.lo, s.hi);
+        let mut p = TimePanel::new(area, &cols, range, self.caption, y, self.y_desc)?;
+        p.envelope(self.pick, self.colour.stroke_width(1), None)?;
+        Ok(p.finish())
     }
-    let mut p = TimePanel::new(area, &cols, range, caption, padded(s.lo, s.hi), y_desc)?;
-    p.envelope(pick, style, None)?;
-    Ok(p.finish())
 }
