@@ -6,8 +6,8 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::envelope::Envelope;
-use super::pixel_x_range;
-use super::{column_count, column_edges, draw_envelope, legend, padded, span_of, time_chart};
+use super::panel::{TimePanel, columns};
+use super::{column_count, column_edges, padded, span_of};
 use crate::error::SimError;
 
 /// The y range of the panel: the error's own range, padded; `None` without errors.
@@ -31,9 +31,8 @@ pub fn draw<DB: DrawingBackend>(
 where
     DB::ErrorType: 'static,
 {
-    let n = column_count(area);
-    let cols = env.columns(range.0, range.1, n);
-    let (y0, y1) = error_axis(env, range, n).unwrap_or((-1.0, 1.0));
+    let cols = columns(area, env, range);
+    let (y0, y1) = error_axis(env, range, column_count(area)).unwrap_or((-1.0, 1.0));
     let band = span_of(cols.iter().map(|c| &c.error_band_nm));
     let clipped = !band.is_empty() && (band.hi > y1 || -band.hi < y0);
     let caption = if band.is_empty() {
@@ -46,34 +45,28 @@ where
     } else {
         "error = estimate − reference; shaded: ± uncertainty".to_string()
     };
-    let mut ch = time_chart(area, &caption, range, (y0, y1), "N·m")?;
+    let mut p = TimePanel::new(area, &cols, range, &caption, (y0, y1), "N·m")?;
     let shade = RGBColor(200, 200, 200).mix(0.6);
-    ch.draw_series(cols.iter().enumerate().filter_map(|(i, c)| {
-        let u = c.error_band_nm.get()?.hi;
-        let (a, b) = column_edges(range.0, range.1, cols.len(), i);
-        Some(Rectangle::new(
-            [(a, u.min(y1)), (b, (-u).max(y0))],
-            shade.filled(),
+    p.chart()
+        .draw_series(cols.iter().enumerate().filter_map(|(i, c)| {
+            let u = c.error_band_nm.get()?.hi;
+            let (a, b) = column_edges(range.0, range.1, cols.len(), i);
+            Some(Rectangle::new(
+                [(a, u.min(y1)), (b, (-u).max(y0))],
+                shade.filled(),
+            ))
+        }))
+        .map_err(super::err)?
+        .label("± uncertainty")
+        .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 18, y + 5)], shade.filled()));
+    p.chart()
+        .draw_series(LineSeries::new(
+            [(range.0, 0.0), (range.1, 0.0)],
+            BLACK.stroke_width(1),
         ))
-    }))
-    .map_err(super::err)?
-    .label("± uncertainty")
-    .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 18, y + 5)], shade.filled()));
-    ch.draw_series(LineSeries::new(
-        [(range.0, 0.0), (range.1, 0.0)],
-        BLACK.stroke_width(1),
-    ))
-    .map_err(super::err)?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
-        |b| b.error_nm,
-        RED.stroke_width(1),
-        Some("error"),
-    )?;
-    legend(&mut ch)?;
-    Ok(pixel_x_range(&ch))
+        .map_err(super::err)?;
+    p.envelope(|b| b.error_nm, RED.stroke_width(1), Some("error"))?;
+    p.finish_with_legend()
 }
 
 #[cfg(test)]

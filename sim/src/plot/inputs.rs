@@ -7,7 +7,8 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::envelope::{Bucket, Envelope, Span};
-use super::{column_count, draw_envelope, legend, padded, pixel_x_range, span_of, time_chart};
+use super::panel::{SinglePanel, TimePanel, columns};
+use super::{padded, span_of};
 use crate::error::SimError;
 
 /// Colours of channels 1–4.
@@ -30,103 +31,45 @@ pub fn force<DB: DrawingBackend>(
 where
     DB::ErrorType: 'static,
 {
-    let cols = env.columns(range.0, range.1, column_count(area));
+    let cols = columns(area, env, range);
     let all = span_of(cols.iter().flat_map(|c| {
         c.channel_force_n
             .iter()
             .chain(std::iter::once(&c.clamp_force_n))
     }));
-    let mut ch = time_chart(
+    let mut p = TimePanel::new(
         area,
-        "clamp force: per channel as logged, and as used (filtered, voted)",
+        &cols,
         range,
+        "clamp force: per channel as logged, and as used (filtered, voted)",
         padded(all.lo, all.hi),
         "N",
     )?;
     for (k, colour) in CHANNEL.iter().enumerate() {
         let pick = move |b: &Bucket| b.channel_force_n.get(k).copied().unwrap_or(Span::EMPTY);
         let label = format!("channel {}", k + 1);
-        draw_envelope(
-            &mut ch,
-            &cols,
-            range,
-            pick,
-            colour.stroke_width(1),
-            Some(&label),
-        )?;
+        p.envelope(pick, colour.stroke_width(1), Some(&label))?;
     }
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
+    p.envelope(
         |b| b.clamp_force_n,
         BLACK.stroke_width(1),
         Some("used by the estimator"),
     )?;
-    legend(&mut ch)?;
-    Ok(pixel_x_range(&ch))
+    p.finish_with_legend()
 }
 
 /// Slip speed ω_in − ω_out.
-///
-/// # Errors
-/// Drawing errors.
-pub fn slip<DB: DrawingBackend>(
-    area: &DrawingArea<DB, Shift>,
-    env: &Envelope,
-    range: (f64, f64),
-) -> Result<(i32, i32), SimError>
-where
-    DB::ErrorType: 'static,
-{
-    let cols = env.columns(range.0, range.1, column_count(area));
-    let s = span_of(cols.iter().map(|c| &c.slip_rad_s));
-    let mut ch = time_chart(
-        area,
-        "slip speed ω_in − ω_out",
-        range,
-        padded(s.lo, s.hi),
-        "rad/s",
-    )?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
-        |b| b.slip_rad_s,
-        RGBColor(23, 190, 207).stroke_width(1),
-        None,
-    )?;
-    Ok(pixel_x_range(&ch))
-}
+pub const SLIP: SinglePanel = SinglePanel {
+    caption: "slip speed ω_in − ω_out",
+    y_desc: "rad/s",
+    pick: |b| b.slip_rad_s,
+    colour: RGBColor(23, 190, 207),
+};
 
 /// Actuator command (in the trace's converted unit).
-///
-/// # Errors
-/// Drawing errors.
-pub fn command<DB: DrawingBackend>(
-    area: &DrawingArea<DB, Shift>,
-    env: &Envelope,
-    range: (f64, f64),
-) -> Result<(i32, i32), SimError>
-where
-    DB::ErrorType: 'static,
-{
-    let cols = env.columns(range.0, range.1, column_count(area));
-    let s = span_of(cols.iter().map(|c| &c.command));
-    let mut ch = time_chart(
-        area,
-        "actuator command",
-        range,
-        padded(s.lo, s.hi),
-        "command",
-    )?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
-        |b| b.command,
-        RGBColor(127, 127, 127).stroke_width(1),
-        None,
-    )?;
-    Ok(pixel_x_range(&ch))
-}
+pub const COMMAND: SinglePanel = SinglePanel {
+    caption: "actuator command",
+    y_desc: "command",
+    pick: |b| b.command,
+    colour: RGBColor(127, 127, 127),
+};

@@ -17,6 +17,7 @@
 //! | [`torque`] | estimate, reference, ±holding capacity |
 //! | [`error`] | estimate − reference with the ± uncertainty band, scaled to the error |
 //! | [`lining`] | lining temperature and μ used |
+//! | [`panel`] | the shared shape of a time panel: columns, chart, envelopes, legend |
 //! | [`states`] | one lane per state and per raised flag |
 //! | [`surface`] | the μ map and its coverage, colour bars, hatched "not reached" cells |
 
@@ -25,6 +26,7 @@ pub mod error;
 pub mod font;
 pub mod inputs;
 pub mod lining;
+pub mod panel;
 pub mod states;
 pub mod surface;
 pub mod time_series;

@@ -101,12 +101,12 @@ where
         rest = below;
         let x = match panel {
             Panel::Force => inputs::force(&area, env, range)?,
-            Panel::Slip => inputs::slip(&area, env, range)?,
-            Panel::Command => inputs::command(&area, env, range)?,
+            Panel::Slip => inputs::SLIP.draw(&area, env, range)?,
+            Panel::Command => inputs::COMMAND.draw(&area, env, range)?,
             Panel::Torque => torque::draw(&area, env, range)?,
             Panel::Error => super::error::draw(&area, env, range)?,
-            Panel::Temperature => lining::temperature(&area, env, range)?,
-            Panel::Mu => lining::mu(&area, env, range)?,
+            Panel::Temperature => lining::TEMPERATURE.draw(&area, env, range)?,
+            Panel::Mu => lining::MU.draw(&area, env, range)?,
             Panel::States => states::draw(&area, env, range, &lanes)?,
         };
         out.push((panel, x));

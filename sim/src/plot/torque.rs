@@ -5,8 +5,8 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::envelope::{Envelope, Span};
-use super::pixel_x_range;
-use super::{column_count, draw_envelope, legend, padded, span_of, time_chart};
+use super::panel::{TimePanel, columns};
+use super::{padded, span_of};
 use crate::error::SimError;
 
 /// Draw the panel; returns its time axis' pixel range.
@@ -21,7 +21,7 @@ pub fn draw<DB: DrawingBackend>(
 where
     DB::ErrorType: 'static,
 {
-    let cols = env.columns(range.0, range.1, column_count(area));
+    let cols = columns(area, env, range);
     let mut all = span_of(
         cols.iter()
             .flat_map(|c| [&c.torque_nm, &c.reference_nm, &c.holding_capacity_nm]),
@@ -30,26 +30,21 @@ where
     if !cap.is_empty() {
         all.add(-cap.hi);
     }
-    let mut ch = time_chart(
+    let mut p = TimePanel::new(
         area,
-        "friction torque: estimate, reference, ±holding capacity while holding",
+        &cols,
         range,
+        "friction torque: estimate, reference, ±holding capacity while holding",
         padded(all.lo, all.hi),
         "N·m",
     )?;
     let grey = RGBColor(150, 150, 150);
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
+    p.envelope(
         |b| b.holding_capacity_nm,
         grey.stroke_width(1),
         Some("±holding capacity"),
     )?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
+    p.envelope(
         |b| {
             b.holding_capacity_nm.get().map_or(Span::EMPTY, |s| Span {
                 lo: -s.hi,
@@ -59,22 +54,15 @@ where
         grey.stroke_width(1),
         None,
     )?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
+    p.envelope(
         |b| b.reference_nm,
         RGBColor(255, 127, 14).stroke_width(2),
         Some("reference"),
     )?;
-    draw_envelope(
-        &mut ch,
-        &cols,
-        range,
+    p.envelope(
         |b| b.torque_nm,
         RGBColor(31, 119, 180).stroke_width(1),
         Some("estimate"),
     )?;
-    legend(&mut ch)?;
-    Ok(pixel_x_range(&ch))
+    p.finish_with_legend()
 }
