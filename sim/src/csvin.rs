@@ -148,7 +148,10 @@ const DIALECT_OPTIONS: &str =
 /// Whether `cell` is digits, `mark`, digits (a number with a fraction in that mark).
 fn has_fraction(cell: &[u8], mark: u8) -> bool {
     let cell = cell.trim_ascii();
-    let cell = cell.strip_prefix(b"-").or_else(|| cell.strip_prefix(b"+")).unwrap_or(cell);
+    let cell = cell
+        .strip_prefix(b"-")
+        .or_else(|| cell.strip_prefix(b"+"))
+        .unwrap_or(cell);
     match cell.iter().position(|&b| b == mark) {
         Some(at) => {
             let (int, frac) = cell.split_at(at);
@@ -232,7 +235,9 @@ pub fn sniff(
             let consistent: Vec<Delimiter> = present
                 .iter()
                 .copied()
-                .filter(|&d| !rows.is_empty() && rows.iter().all(|r| count(r.1, d) == count(header, d)))
+                .filter(|&d| {
+                    !rows.is_empty() && rows.iter().all(|r| count(r.1, d) == count(header, d))
+                })
                 .collect();
             match (present.as_slice(), consistent.as_slice()) {
                 ([d], _) | (_, [d]) => (*d, DialectSource::Sniffed),
@@ -240,12 +245,21 @@ pub fn sniff(
                     let text = String::from_utf8_lossy(header);
                     let mut others: Vec<char> = text
                         .chars()
-                        .filter(|c| c.is_ascii_punctuation() && !matches!(c, '_' | '.' | '-' | '(' | ')' | '[' | ']' | '/' | '%' | '°'))
+                        .filter(|c| {
+                            c.is_ascii_punctuation()
+                                && !matches!(
+                                    c,
+                                    '_' | '.' | '-' | '(' | ')' | '[' | ']' | '/' | '%' | '°'
+                                )
+                        })
                         .collect();
                     others.sort_unstable();
                     others.dedup();
                     let seen = if others.is_empty() {
-                        format!("the header line '{}' has no ',', ';' or tab (a single column)", echo(&text))
+                        format!(
+                            "the header line '{}' has no ',', ';' or tab (a single column)",
+                            echo(&text)
+                        )
                     } else {
                         let list: Vec<String> = others
                             .iter()
@@ -889,14 +903,29 @@ mod tests {
     #[test]
     fn sniffs_separator_and_decimal_mark() {
         let d = sniffed("# c,o;m\tment\nt_s;f_N\n0;1,5\n0,001;2\n").unwrap();
-        assert_eq!((d.delimiter, d.decimal), (Delimiter::Semicolon, DecimalMark::Comma));
-        assert_eq!((d.delimiter_from, d.decimal_from), (DialectSource::Sniffed, DialectSource::Sniffed));
+        assert_eq!(
+            (d.delimiter, d.decimal),
+            (Delimiter::Semicolon, DecimalMark::Comma)
+        );
+        assert_eq!(
+            (d.delimiter_from, d.decimal_from),
+            (DialectSource::Sniffed, DialectSource::Sniffed)
+        );
         let d = sniffed("t_s\tf_N\r\n0\t1.5\r\n").unwrap();
-        assert_eq!((d.delimiter, d.decimal), (Delimiter::Tab, DecimalMark::Point));
+        assert_eq!(
+            (d.delimiter, d.decimal),
+            (Delimiter::Tab, DecimalMark::Point)
+        );
         let d = sniffed("t_s;f_N\n0;1\n").unwrap();
-        assert_eq!((d.decimal, d.decimal_from), (DecimalMark::Point, DialectSource::Default));
+        assert_eq!(
+            (d.decimal, d.decimal_from),
+            (DecimalMark::Point, DialectSource::Default)
+        );
         let d = sniffed("t_s,f_N\n0,1.5\n").unwrap();
-        assert_eq!((d.delimiter, d.decimal), (Delimiter::Comma, DecimalMark::Point));
+        assert_eq!(
+            (d.delimiter, d.decimal),
+            (Delimiter::Comma, DecimalMark::Point)
+        );
         // A header name with a comma in a ';' file: the rows settle it.
         let d = sniffed("t_s;force, kN\n0;1,5\n0,001;2,5\n").unwrap();
         assert_eq!(d.delimiter, Delimiter::Semicolon);
@@ -905,11 +934,25 @@ mod tests {
         let e = sniffed("\n# x\nt_s|f_N|g\n0|1|2\n").unwrap_err();
         assert!(e.contains("t.csv:3:") && e.contains("'|' 2 times"), "{e}");
         // A cut last line of an incomplete head is not looked at.
-        let d = sniff("t", b"t_s;f_N\n0;1,5\n0;2.", false, DialectChoice::default()).unwrap();
+        let d = sniff(
+            "t",
+            b"t_s;f_N\n0;1,5\n0;2.",
+            false,
+            DialectChoice::default(),
+        )
+        .unwrap();
         assert_eq!(d.decimal, DecimalMark::Comma);
-        let e = sniff("t", b"t_s,f\n", true, DialectChoice { delimiter: None, decimal: Some(DecimalMark::Comma) })
-            .unwrap_err()
-            .to_string();
+        let e = sniff(
+            "t",
+            b"t_s,f\n",
+            true,
+            DialectChoice {
+                delimiter: None,
+                decimal: Some(DecimalMark::Comma),
+            },
+        )
+        .unwrap_err()
+        .to_string();
         assert!(e.contains("','-separated"), "{e}");
     }
 

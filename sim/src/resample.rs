@@ -193,7 +193,12 @@ impl Resampler {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::float_cmp)]
+    #![allow(
+        clippy::unwrap_used,
+        clippy::float_cmp,
+        clippy::indexing_slicing,
+        clippy::panic
+    )]
     use super::*;
 
     fn sample(line: u64, t: f64, f: f64, counts: i32, r: Option<f64>) -> TraceSample {
@@ -279,7 +284,10 @@ mod tests {
     fn linear_weights_by_time() {
         let out = run(
             Resample::Linear,
-            vec![sample(2, 0.0, 100.0, 0, None), sample(3, 0.003, 400.0, 0, None)],
+            vec![
+                sample(2, 0.0, 100.0, 0, None),
+                sample(3, 0.003, 400.0, 0, None),
+            ],
             0.001,
         );
         assert_eq!(out.len(), 4);

@@ -33,19 +33,21 @@ impl std::str::FromStr for ColumnOverride {
     /// `QUANTITY=NAME[:UNIT]`; the unit follows the last `:` (a name with a `:` in it needs
     /// the unit written out).
     fn from_str(s: &str) -> Result<Self, String> {
-        let names = || {
-            CANONICAL
-                .iter()
-                .map(|e| e.0)
-                .collect::<Vec<_>>()
-                .join(", ")
-        };
-        let (q, rest) = s
-            .split_once('=')
-            .ok_or_else(|| format!("'{}' is not QUANTITY=NAME[:UNIT] (quantities: {})", echo(s), names()))?;
+        let names = || CANONICAL.iter().map(|e| e.0).collect::<Vec<_>>().join(", ");
+        let (q, rest) = s.split_once('=').ok_or_else(|| {
+            format!(
+                "'{}' is not QUANTITY=NAME[:UNIT] (quantities: {})",
+                echo(s),
+                names()
+            )
+        })?;
         let q = q.trim();
         if !CANONICAL.iter().any(|e| e.0 == q) {
-            return Err(format!("unknown quantity '{}' (quantities: {})", echo(q), names()));
+            return Err(format!(
+                "unknown quantity '{}' (quantities: {})",
+                echo(q),
+                names()
+            ));
         }
         let (column, unit) = match rest.rsplit_once(':') {
             Some((c, u)) => (c, Some(u.trim().to_string())),
@@ -301,7 +303,13 @@ impl TraceReader {
             valid,
             omega_in: find_column(&csv, c, ov, "omega_in", true)?
                 .ok_or_else(|| csv.header_error(None, "no omega_in column".into()))?,
-            omega_out: find_column(&csv, c, ov, "omega_out", c.device.kind == DeviceKind::Clutch)?,
+            omega_out: find_column(
+                &csv,
+                c,
+                ov,
+                "omega_out",
+                c.device.kind == DeviceKind::Clutch,
+            )?,
             command: find_column(&csv, c, ov, "command", false)?,
             temperature: find_column(&csv, c, ov, "temperature", false)?,
             ambient: find_column(&csv, c, ov, "ambient", false)?,
@@ -310,9 +318,9 @@ impl TraceReader {
         let period = opts.sample_period_s.unwrap_or(c.device.sample_period_s);
         Ok(Self {
             csv,
-            resampler: opts.resample.map(|m| {
-                Resampler::new(m, period, c.device.sample_period_s)
-            }),
+            resampler: opts
+                .resample
+                .map(|m| Resampler::new(m, period, c.device.sample_period_s)),
             layout,
             policy,
             time: TimeCheck::new(

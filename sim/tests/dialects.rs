@@ -121,16 +121,38 @@ fn dialect_set_by_option() {
         "comma",
     ]);
     assert_eq!(code, 0, "{err}");
-    assert_eq!(v["traces"][0]["summary"]["dialect"]["delimiter_from"], "option");
-    assert_eq!(v["traces"][0]["summary"]["dialect"]["decimal_from"], "option");
+    assert_eq!(
+        v["traces"][0]["summary"]["dialect"]["delimiter_from"],
+        "option"
+    );
+    assert_eq!(
+        v["traces"][0]["summary"]["dialect"]["decimal_from"],
+        "option"
+    );
     // Read with the wrong mark: the cell's error says which mark is in use and how to set it.
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &semi, "-o", &out, "--decimal", "point",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &semi,
+        "-o",
+        &out,
+        "--decimal",
+        "point",
     ]);
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("--decimal comma"), "{err}");
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &tr, "-o", &out, "--decimal", "comma",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &tr,
+        "-o",
+        &out,
+        "--decimal",
+        "comma",
     ]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("','-separated"), "{err}");
@@ -146,7 +168,12 @@ fn unrecognised_dialects_are_named_and_located() {
     let good = small_trace(50);
     let out = d.join("est.csv").display().to_string();
     let cases: Vec<(&str, String, &str, &str)> = vec![
-        ("pipe.csv", text(&good).replace(',', "|"), ":2:", "'|' 6 times"),
+        (
+            "pipe.csv",
+            text(&good).replace(',', "|"),
+            ":2:",
+            "'|' 6 times",
+        ),
         (
             "mixed_header.csv",
             text(&good).replacen("force_1_N,", "force_1_N;", 1),
@@ -182,7 +209,8 @@ fn unrecognised_dialects_are_named_and_located() {
         assert!(err.contains(&format!("{name}{at}")), "{name}: {err}");
         assert!(err.contains(seen), "{name}: {err}");
         assert!(
-            err.contains("--delimiter comma|semicolon|tab") && err.contains("--decimal point|comma"),
+            err.contains("--delimiter comma|semicolon|tab")
+                && err.contains("--decimal point|comma"),
             "{name}: {err}"
         );
         assert!(!Path::new(&out).exists());
@@ -226,11 +254,29 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
     );
     // Stating the rate alone is not enough: the estimator would step at the wrong period.
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t, "-o", &out, "--sample-period-s", "0.002",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t,
+        "-o",
+        &out,
+        "--sample-period-s",
+        "0.002",
     ]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("--resample"), "{err}");
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &t, "-o", &out, "--resample", "hold"]);
+    let (code, _, err) = run(&[
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t,
+        "-o",
+        &out,
+        "--resample",
+        "hold",
+    ]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("--sample-period-s"), "{err}");
 
@@ -254,7 +300,10 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
     let est = data_lines(&out);
     assert_eq!(est.len(), 2002);
     // Source line of data row j: the lines before the first data row, plus j, plus 1.
-    let first_data = lines.iter().position(|l| !l.starts_with('#') && !l.starts_with("t_s")).unwrap();
+    let first_data = lines
+        .iter()
+        .position(|l| !l.starts_with('#') && !l.starts_with("t_s"))
+        .unwrap();
     for (k, row) in est.iter().skip(1).enumerate() {
         let cells: Vec<&str> = row.split(',').collect();
         let line: usize = cells[0].parse().unwrap();
@@ -263,12 +312,22 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
         assert!((t - k as f64 * 0.001).abs() < 1e-12, "tick {k}: {t}");
     }
     let (code, stdout, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t, "-o", &out, "--sample-period-s", "0.002", "--resample",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t,
+        "-o",
+        &out,
+        "--sample-period-s",
+        "0.002",
+        "--resample",
         "hold",
     ]);
     assert_eq!(code, 0, "{err}");
     assert!(
-        stdout.contains("resampled (zero-order hold)") && stdout.contains("1001 samples in, 2001 out"),
+        stdout.contains("resampled (zero-order hold)")
+            && stdout.contains("1001 samples in, 2001 out"),
         "{stdout}"
     );
 }
@@ -281,15 +340,27 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
 fn linear_resampling_matches_hand_computed_values() {
     let d = scratch("resample_linear");
     let cfg = write(&d, "cfg.toml", &newton_config());
-    let mut lines = vec!["t_s,force_1_N,force_2_N,force_3_N,omega_in_rad_s,temp_C,torque_ref_Nm".to_string()];
+    let mut lines =
+        vec!["t_s,force_1_N,force_2_N,force_3_N,omega_in_rad_s,temp_C,torque_ref_Nm".to_string()];
     for i in 0..40 {
         let t = i as f64 * 0.002;
-        lines.push(format!("{t},30000,30010,29990,2.0,100.0,{}", -14500 + 10 * i));
+        lines.push(format!(
+            "{t},30000,30010,29990,2.0,100.0,{}",
+            -14500 + 10 * i
+        ));
     }
     let t = write(&d, "t500.csv", &text(&lines));
     let out = d.join("est.csv").display().to_string();
     let (code, v, err) = replay_json(&[
-        "-c", &cfg, &t, "-o", &out, "--sample-period-s", "0.002", "--resample", "linear",
+        "-c",
+        &cfg,
+        &t,
+        "-o",
+        &out,
+        "--sample-period-s",
+        "0.002",
+        "--resample",
+        "linear",
     ]);
     assert_eq!(code, 0, "{err}");
     assert_eq!(v["traces"][0]["summary"]["resample"]["output_rows"], 79);
@@ -301,7 +372,10 @@ fn linear_resampling_matches_hand_computed_values() {
         let cells: Vec<&str> = row.split(',').collect();
         let expected = -14500.0 + 5.0 * k as f64;
         let got: f64 = cells[col].parse().unwrap();
-        assert!((got - expected).abs() < 1e-9, "tick {k}: {got} vs {expected}");
+        assert!(
+            (got - expected).abs() < 1e-9,
+            "tick {k}: {got} vs {expected}"
+        );
         assert_eq!(cells[0], format!("{}", k / 2 + 2), "tick {k}");
     }
 }
@@ -330,17 +404,44 @@ fn column_override_on_the_command_line() {
     assert_eq!(code, 2);
     assert!(err.contains("missing column 'force_1_N'"), "{err}");
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t2, "-o", &out, "--column", "force_1=Kraft1:kN",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t2,
+        "-o",
+        &out,
+        "--column",
+        "force_1=Kraft1:kN",
     ]);
     assert_eq!(code, 0, "{err}");
     assert_eq!(data_lines(&out), data_lines(&base));
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t2, "-o", &out, "--column", "force_9=Kraft1:kN",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t2,
+        "-o",
+        &out,
+        "--column",
+        "force_9=Kraft1:kN",
     ]);
     assert_eq!(code, 1, "{err}");
-    assert!(err.contains("unknown quantity 'force_9'") && err.contains("omega_in"), "{err}");
+    assert!(
+        err.contains("unknown quantity 'force_9'") && err.contains("omega_in"),
+        "{err}"
+    );
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t2, "-o", &out, "--column", "force_1=Kraft1:furlongs",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t2,
+        "-o",
+        &out,
+        "--column",
+        "force_1=Kraft1:furlongs",
     ]);
     assert_ne!(code, 0, "{err}");
     assert!(err.contains("--column force_1"), "{err}");
@@ -357,7 +458,15 @@ fn columns_subset() {
     assert_eq!(run(&["-q", "replay", "-c", &cfg, &t, "-o", &full]).0, 0);
     let sub = d.join("sub.csv").display().to_string();
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t, "-o", &sub, "--columns", "state,t_s,torque_Nm,flags",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t,
+        "-o",
+        &sub,
+        "--columns",
+        "state,t_s,torque_Nm,flags",
     ]);
     assert_eq!(code, 0, "{err}");
     let full = data_lines(&full);
@@ -372,7 +481,15 @@ fn columns_subset() {
         assert_eq!(s.split(',').collect::<Vec<_>>(), want);
     }
     let (code, _, err) = run(&[
-        "-q", "replay", "-c", &cfg, &t, "-o", "/dev/null", "--columns", "t_s,torque",
+        "-q",
+        "replay",
+        "-c",
+        &cfg,
+        &t,
+        "-o",
+        "/dev/null",
+        "--columns",
+        "t_s,torque",
     ]);
     assert_eq!(code, 1, "{err}");
     assert!(
