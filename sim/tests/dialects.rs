@@ -497,3 +497,49 @@ fn columns_subset() {
         "{err}"
     );
 }
+
+/// `fit` reads a `;`/decimal-comma trace as the original: the same fitted table.
+#[test]
+fn fit_reads_the_dialects_too() {
+    let d = scratch("dialect_fit");
+    let cfg = write(&d, "demo.toml", DEMO);
+    let tr = d.join("trace.csv").display().to_string();
+    let (code, _, err) = run(&[
+        "-q",
+        "synth",
+        "-c",
+        &cfg,
+        "-o",
+        &tr,
+        "--scenario",
+        "steady",
+        "--rows",
+        "4000",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let semi = write(
+        &d,
+        "semi.csv",
+        &redialect(&std::fs::read_to_string(&tr).unwrap(), ";", ","),
+    );
+    let fit = |t: &str, out: &str| {
+        let out = d.join(out).display().to_string();
+        let (code, _, err) = run(&[
+            "-q",
+            "fit",
+            "-c",
+            &cfg,
+            t,
+            "-o",
+            &out,
+            "--min-coverage",
+            "1",
+        ]);
+        assert_eq!(code, 0, "{err}");
+        // The fitted config names its trace in a comment.
+        std::fs::read_to_string(&out).unwrap().replace(t, "TRACE")
+    };
+    let (a, b) = (fit(&tr, "a.toml"), fit(&semi, "b.toml"));
+    assert!(a.contains("from TRACE"), "{a}");
+    assert_eq!(a, b);
+}
