@@ -200,6 +200,26 @@ mod tests {
         assert!(err.unwrap().contains("wrong time unit"));
     }
 
+    /// A median step beyond the gap threshold (1 + 0.5 periods) either way is another rate:
+    /// 2 ms against 1 ms (a 500 Hz log on a 1 kHz device) fails and says how to resample;
+    /// 1.4 ms and 0.7 ms pass (jitter).
+    #[test]
+    fn another_rate_is_refused_with_the_way_to_resample() {
+        let run = |step: f64| {
+            let mut c = TimeCheck::new(0.001, 0.5, 1.5, "device.sample_period_s");
+            for i in 0..100u32 {
+                c.check(f64::from(i) * step, u64::from(i) + 2)?;
+            }
+            c.finish().map(|_| ())
+        };
+        let e = run(0.002).unwrap_err();
+        assert!(e.contains("--sample-period-s 0.002 --resample hold"), "{e}");
+        assert!(run(0.0016).is_err());
+        assert!(run(0.0006).is_err());
+        assert!(run(0.0014).is_ok());
+        assert!(run(0.0007).is_ok());
+    }
+
     /// [calc: 9 · 0.001 − 0.008 in f64 is 0.0010000000000000009; 1 ms is what the trace says]
     #[test]
     fn steps_are_reported_without_float_noise() {
