@@ -115,6 +115,52 @@ pub struct ReplayArgs {
     /// Parallel jobs (default: all cores).
     #[arg(long, short)]
     pub jobs: Option<usize>,
+    /// Write only these estimate columns, comma-separated, in this order (e.g.
+    /// t_s,torque_Nm,uncertainty_Nm).
+    #[arg(long, value_delimiter = ',')]
+    pub columns: Option<Vec<String>>,
+    /// How the traces are read.
+    #[command(flatten)]
+    pub reading: TraceArgs,
+}
+
+/// How a trace is read: dialect, time base, column map, resampling (`replay`, `fit`).
+#[derive(Debug, Args, Default)]
+pub struct TraceArgs {
+    /// Column separator (default: sniffed from the header and the first rows).
+    #[arg(long, value_enum)]
+    pub delimiter: Option<crate::csvin::Delimiter>,
+    /// Decimal mark of the numbers (default: sniffed; a ','-separated file has a point).
+    #[arg(long, value_enum)]
+    pub decimal: Option<crate::csvin::DecimalMark>,
+    /// The trace's own sample period, s: the time check's base instead of
+    /// device.sample_period_s (another rate needs --resample).
+    #[arg(long)]
+    pub sample_period_s: Option<f64>,
+    /// Map a quantity to a trace column, QUANTITY=NAME[:UNIT] (repeatable), over the config's
+    /// [trace.columns]; UNIT as in the config (default: the quantity's canonical unit), e.g.
+    /// force_1=Kraft1:kN.
+    #[arg(long = "column", id = "column", value_name = "QUANTITY=NAME[:UNIT]")]
+    pub column_map: Vec<crate::trace::ColumnOverride>,
+    /// Resample a trace recorded at another rate (--sample-period-s) onto the device's
+    /// period: hold = the last sample at or before each tick, linear = interpolated.
+    #[arg(long, value_enum)]
+    pub resample: Option<crate::resample::Resample>,
+}
+
+impl TraceArgs {
+    /// The options for [`crate::trace::TraceReader::open_with`].
+    pub fn options(&self) -> crate::trace::TraceOptions {
+        crate::trace::TraceOptions {
+            dialect: crate::csvin::DialectChoice {
+                delimiter: self.delimiter,
+                decimal: self.decimal,
+            },
+            sample_period_s: self.sample_period_s,
+            columns: self.column_map.clone(),
+            resample: self.resample,
+        }
+    }
 }
 
 /// `compare`.
@@ -191,6 +237,9 @@ pub struct FitArgs {
     /// Skip bad rows (counted) instead of stopping.
     #[arg(long)]
     pub skip_bad_rows: bool,
+    /// How the trace is read.
+    #[command(flatten)]
+    pub reading: TraceArgs,
 }
 
 /// `tables`.

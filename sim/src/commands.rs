@@ -195,13 +195,23 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
             .filter_map(|j| j.2.as_deref().map(|p| ("plot", p))),
     );
     refuse_overwriting_inputs(&inputs, &outputs)?;
+    let columns = a
+        .columns
+        .as_ref()
+        .map(|c| crate::estimate::select_columns(c))
+        .transpose()
+        .map_err(SimError::Usage)?;
+    let trace_opts = a.reading.options();
     let (cfg, core) = load(&a.config)?;
+    trace_opts.check(&cfg.config)?;
     let to_stdout = jobs.iter().any(|j| j.1 == "-");
     let multi = MultiProgress::with_draw_target(ProgressDrawTarget::stderr());
     let run = |(trace, out, plot_path): &(String, String, Option<String>)| {
         let opts = ReplayOptions {
             skip_bad_rows: a.skip_bad_rows,
             progress: bar(quiet, Some(&multi), trace),
+            trace: trace_opts.clone(),
+            columns: columns.clone(),
         };
         let mut dec = plot_path.as_ref().map(|_| {
             Envelope::new(BUCKETS, TimeWindow::default())
@@ -396,7 +406,9 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
         min_coverage: a.min_coverage,
         min_force_n: a.min_force_n,
         skip_bad_rows: a.skip_bad_rows,
+        trace: a.reading.options(),
     };
+    opts.trace.check(&cfg.config)?;
     if !(a.min_coverage.is_finite() && a.min_coverage > 0.0) {
         return Err(SimError::Usage(
             "--min-coverage must be a positive number".into(),

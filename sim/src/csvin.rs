@@ -13,11 +13,351 @@
 //! bits as `str::parse::<f64>`, which is itself correctly rounded. Every other cell (exponents,
 //! blanks to trim, long mantissas, anything malformed) takes `str::parse`, so what is accepted
 //! and every error message are unchanged.
+//!
+//! Dialects: the column separator (`,` `;` or tab) and the decimal mark (`.` or `,`) are
+//! sniffed from the header and the first data rows (after the `#` comment lines) by
+//! [`sniff`], or set by a [`DialectChoice`]; see [`Dialect`]. A decimal-comma cell is read
+//! as the same text with a point would be, bit for bit.
 
 use std::fs::File;
 use std::io::{Read, Seek, SeekFrom};
 
+use serde::Serialize;
+
 use crate::error::{DataError, SimError};
+
+/// The column separator of a CSV file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, clap::ValueEnum)]
+#[serde(rename_all = "lowercase")]
+pub enum Delimiter {
+    /// `,`
+    Comma,
+    /// `;` (spreadsheet exports in locales whose decimal mark is a comma)
+    Semicolon,
+    /// a tab character
+    Tab,
+}
+
+impl Delimiter {
+    /// The separator byte.
+    pub fn byte(self) -> u8 {
+        match self {
+            Self::Comma => b',',
+            Self::Semicolon => b';',
+            Self::Tab => b'\t',
+        }
+    }
+
+    /// How a message shows it.
+    pub fn shown(self) -> &'static str {
+        match self {
+            Self::Comma => "','",
+            Self::Semicolon => "';'",
+            Self::Tab => "tab",
+        }
+    }
+
+    const ALL: [Self; 3] = [Self::Comma, Self::Semicolon, Self::Tab];
+}
+
+/// The decimal mark of the numbers in a CSV file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, clap::ValueEnum)]
+#[serde(rename_all = "lowercase")]
+pub enum DecimalMark {
+    /// `1.5`
+    Point,
+    /// `1,5` (never in a `,`-separated file)
+    Comma,
+}
+
+/// Where a part of the [`Dialect`] came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum DialectSource {
+    /// Read from the header and the first data rows.
+    Sniffed,
+    /// Set on the command line (`--delimiter`, `--decimal`).
+    Option,
+    /// Nothing to tell it by: a `,`-separated file, or no number with a fraction in the
+    /// first rows, is read with a decimal point.
+    Default,
+}
+
+/// What the command line sets of the dialect; `None` parts are sniffed.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct DialectChoice {
+    /// `--delimiter`
+    pub delimiter: Option<Delimiter>,
+    /// `--decimal`
+    pub decimal: Option<DecimalMark>,
+}
+
+/// The dialect a file is read with, and where each part came from (shown in summaries).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub struct Dialect {
+    /// Column separator.
+    pub delimiter: Delimiter,
+    /// Where it came from.
+    pub delimiter_from: DialectSource,
+    /// Decimal mark.
+    pub decimal: DecimalMark,
+    /// Where it came from.
+    pub decimal_from: DialectSource,
+}
+
+impl Default for Dialect {
+    fn default() -> Self {
+        Self {
+            delimiter: Delimiter::Comma,
+            delimiter_from: DialectSource::Default,
+            decimal: DecimalMark::Point,
+            decimal_from: DialectSource::Default,
+        }
+    }
+}
+
+impl std::fmt::Display for Dialect {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let from = |s: DialectSource| match s {
+            DialectSource::Sniffed => "sniffed",
+            DialectSource::Option => "set by option",
+            DialectSource::Default => "default",
+        };
+        write!(
+            f,
+            "{}-separated ({}), decimal {} ({})",
+            self.delimiter.shown(),
+            from(self.delimiter_from),
+            match self.decimal {
+                DecimalMark::Point => "point",
+                DecimalMark::Comma => "comma",
+            },
+            from(self.decimal_from)
+        )
+    }
+}
+
+/// How much of the start of a file [`sniff`] looks at.
+pub const SNIFF_BYTES: usize = 64 * 1024;
+/// How many data rows after the header [`sniff`] looks at.
+pub const SNIFF_ROWS: usize = 16;
+
+const DIALECT_OPTIONS: &str =
+    "set it with --delimiter comma|semicolon|tab and --decimal point|comma";
+
+/// Whether `cell` is digits, `mark`, digits (a number with a fraction in that mark).
+fn has_fraction(cell: &[u8], mark: u8) -> bool {
+    let cell = cell.trim_ascii();
+    let cell = cell
+        .strip_prefix(b"-")
+        .or_else(|| cell.strip_prefix(b"+"))
+        .unwrap_or(cell);
+    match cell.iter().position(|&b| b == mark) {
+        Some(at) => {
+            let (int, frac) = cell.split_at(at);
+            let frac = frac.get(1..).unwrap_or_default();
+            !int.is_empty()
+                && !frac.is_empty()
+                && int.iter().all(u8::is_ascii_digit)
+                && frac.iter().take_while(|b| b.is_ascii_digit()).count() > 0
+                && !frac.contains(&mark)
+        }
+        None => false,
+    }
+}
+
+/// Tell the dialect of a file from its first bytes `head` (`complete`: `head` is the whole
+/// file, so its last line is whole too), with what `choice` sets kept as it is.
+///
+/// The separator is the one of `,` `;` tab that the header line contains; a header with
+/// several of them is settled by the data rows (the one that splits every sniffed row into as
+/// many fields as the header), a header with none is an unrecognised dialect. A data row that
+/// another separator would split into the header's number of fields, but the chosen one does
+/// not, is a mixed dialect. The decimal mark is a point in a `,`-separated file; otherwise a
+/// comma when a cell of the first rows reads `digits,digits`, a point when one reads
+/// `digits.digits`, both an error.
+///
+/// # Errors
+/// A located [`DataError`] (`unrecognised CSV dialect: …`, naming what was seen and the
+/// options that set it), or [`SimError::Usage`] for `--decimal comma` with `,` separators.
+pub fn sniff(
+    file: &str,
+    head: &[u8],
+    complete: bool,
+    choice: DialectChoice,
+) -> Result<Dialect, SimError> {
+    if choice.delimiter == Some(Delimiter::Comma) && choice.decimal == Some(DecimalMark::Comma) {
+        return Err(SimError::Usage(
+            "--decimal comma cannot go with --delimiter comma: in a ','-separated file a comma always separates columns".into(),
+        ));
+    }
+    let mut lines: Vec<(u64, &[u8])> = Vec::new();
+    let mut pieces = head.split(|&b| b == b'\n').peekable();
+    let mut number = 0u64;
+    while let Some(l) = pieces.next() {
+        number += 1;
+        // A last piece of an incomplete head may be cut anywhere.
+        if pieces.peek().is_none() && !complete {
+            break;
+        }
+        let l = l.strip_suffix(b"\r").unwrap_or(l);
+        if l.is_empty() || l.first() == Some(&b'#') {
+            continue;
+        }
+        lines.push((number, l));
+        if lines.len() > SNIFF_ROWS {
+            break;
+        }
+    }
+    let Some(&(header_line, header)) = lines.first() else {
+        // Empty or comments only: the reader reports it.
+        return Ok(Dialect::default());
+    };
+    let rows = lines.get(1..).unwrap_or_default();
+    let count = |l: &[u8], d: Delimiter| l.iter().filter(|&&b| b == d.byte()).count();
+    let err = |line: u64, message: String| -> SimError {
+        DataError {
+            file: file.to_string(),
+            line: Some(line),
+            column: None,
+            header: None,
+            message: format!("unrecognised CSV dialect: {message}; {DIALECT_OPTIONS}"),
+        }
+        .into()
+    };
+    let (delimiter, delimiter_from) = match choice.delimiter {
+        Some(d) => (d, DialectSource::Option),
+        None => {
+            let present: Vec<Delimiter> = Delimiter::ALL
+                .into_iter()
+                .filter(|&d| count(header, d) > 0)
+                .collect();
+            let consistent: Vec<Delimiter> = present
+                .iter()
+                .copied()
+                .filter(|&d| {
+                    !rows.is_empty() && rows.iter().all(|r| count(r.1, d) == count(header, d))
+                })
+                .collect();
+            match (present.as_slice(), consistent.as_slice()) {
+                ([d], _) | (_, [d]) => (*d, DialectSource::Sniffed),
+                ([], _) => {
+                    let text = String::from_utf8_lossy(header);
+                    let mut others: Vec<char> = text
+                        .chars()
+                        .filter(|c| {
+                            c.is_ascii_punctuation()
+                                && !matches!(
+                                    c,
+                                    '_' | '.' | '-' | '(' | ')' | '[' | ']' | '/' | '%' | '°'
+                                )
+                        })
+                        .collect();
+                    others.sort_unstable();
+                    others.dedup();
+                    let seen = if others.is_empty() {
+                        format!(
+                            "the header line '{}' has no ',', ';' or tab (a single column)",
+                            echo(&text)
+                        )
+                    } else {
+                        let list: Vec<String> = others
+                            .iter()
+                            .map(|c| format!("'{c}' {} times", text.matches(*c).count()))
+                            .collect();
+                        format!(
+                            "the header line has no ',', ';' or tab but {} (separators clampwise does not read)",
+                            list.join(", ")
+                        )
+                    };
+                    return Err(err(header_line, seen));
+                }
+                _ => {
+                    let list: Vec<String> = present
+                        .iter()
+                        .map(|&d| format!("{} {} times", d.shown(), count(header, d)))
+                        .collect();
+                    return Err(err(
+                        header_line,
+                        format!(
+                            "the header line mixes separators ({}) and the data rows do not tell which one separates columns",
+                            list.join(", ")
+                        ),
+                    ));
+                }
+            }
+        }
+    };
+    let fields = count(header, delimiter);
+    for &(line, row) in rows {
+        if count(row, delimiter) != fields
+            && let Some(other) = Delimiter::ALL
+                .into_iter()
+                .find(|&d| d != delimiter && count(row, d) == fields && fields > 0)
+        {
+            return Err(err(
+                line,
+                format!(
+                    "mixed separators: the header is {}-separated ({} columns) but this line splits into as many only at {}",
+                    delimiter.shown(),
+                    fields + 1,
+                    other.shown()
+                ),
+            ));
+        }
+    }
+    let (decimal, decimal_from) = match (choice.decimal, delimiter) {
+        (Some(DecimalMark::Comma), Delimiter::Comma) => {
+            return Err(SimError::Usage(
+                "--decimal comma cannot read a ','-separated file: a comma there always separates columns (the file was sniffed as ','-separated; set --delimiter semicolon or tab if it is not)".into(),
+            ));
+        }
+        (Some(m), _) => (m, DialectSource::Option),
+        (None, Delimiter::Comma) => (DecimalMark::Point, DialectSource::Default),
+        (None, d) => {
+            let mut comma_at = None;
+            let mut point_at = None;
+            for &(line, row) in rows {
+                for cell in row.split(|&b| b == d.byte()) {
+                    if comma_at.is_none() && has_fraction(cell, b',') {
+                        comma_at = Some((line, String::from_utf8_lossy(cell).trim().to_string()));
+                    }
+                    if point_at.is_none() && has_fraction(cell, b'.') {
+                        point_at = Some((line, String::from_utf8_lossy(cell).trim().to_string()));
+                    }
+                }
+            }
+            match (comma_at, point_at) {
+                (Some((lc, c)), Some((lp, p))) => {
+                    return Err(err(
+                        lc.max(lp),
+                        format!(
+                            "mixed decimal marks: line {lc} has '{}' (decimal comma) and line {lp} has '{}' (decimal point)",
+                            echo(&c),
+                            echo(&p)
+                        ),
+                    ));
+                }
+                (Some(_), None) => (DecimalMark::Comma, DialectSource::Sniffed),
+                (None, Some(_)) => (DecimalMark::Point, DialectSource::Sniffed),
+                (None, None) => (DecimalMark::Point, DialectSource::Default),
+            }
+        }
+    };
+    Ok(Dialect {
+        delimiter,
+        delimiter_from,
+        decimal,
+        decimal_from,
+    })
+}
+
+/// Read up to [`SNIFF_BYTES`] from `r`; `true` with them when that was the whole input.
+fn read_head(r: &mut dyn Read) -> std::io::Result<(Vec<u8>, bool)> {
+    let mut head = Vec::with_capacity(SNIFF_BYTES);
+    let n = r.take(SNIFF_BYTES as u64).read_to_end(&mut head)?;
+    Ok((head, n < SNIFF_BYTES))
+}
 
 /// A CSV file (or standard input, `-`) opened for row-by-row reading.
 pub struct CsvIn {
@@ -29,6 +369,7 @@ pub struct CsvIn {
     len: Option<u64>,
     ends_with_newline: Option<bool>,
     unterminated_last_line: Option<u64>,
+    dialect: Dialect,
 }
 
 fn last_byte(path: &str) -> std::io::Result<(u64, Option<u8>)> {
@@ -44,13 +385,23 @@ fn last_byte(path: &str) -> std::io::Result<(u64, Option<u8>)> {
 }
 
 impl CsvIn {
-    /// Open `path` (`-` for standard input) and read its header line.
+    /// Open `path` (`-` for standard input) and read its header line, the dialect sniffed.
     ///
     /// # Errors
-    /// [`SimError::Io`] when the file cannot be opened; [`SimError::Data`] for an empty file,
-    /// a file of comments only, an unreadable or duplicated header.
+    /// As [`CsvIn::open_with`].
     pub fn open(path: &str) -> Result<Self, SimError> {
-        let (input, len, ends_with_newline): (Box<dyn Read + Send>, _, _) = if path == "-" {
+        Self::open_with(path, DialectChoice::default())
+    }
+
+    /// Open `path` (`-` for standard input) with the dialect parts `choice` sets and the
+    /// others sniffed ([`sniff`]), and read its header line.
+    ///
+    /// # Errors
+    /// [`SimError::Io`] when the file cannot be opened; [`SimError::Data`] for an
+    /// unrecognised dialect, an empty file, a file of comments only, an unreadable or
+    /// duplicated header; [`SimError::Usage`] for a decimal comma in a `,`-separated file.
+    pub fn open_with(path: &str, choice: DialectChoice) -> Result<Self, SimError> {
+        let (mut raw, len, ends_with_newline): (Box<dyn Read + Send>, _, _) = if path == "-" {
             (Box::new(std::io::stdin()), None, None)
         } else {
             let f = File::open(path).map_err(|e| SimError::io(path, e))?;
@@ -58,8 +409,13 @@ impl CsvIn {
             // The csv reader buffers itself (64 KiB below): a second buffer would only copy.
             (Box::new(f), Some(len), Some(last == Some(b'\n')))
         };
+        // The sniffed head is read again by the CSV reader, so standard input works too.
+        let (head, complete) = read_head(&mut raw).map_err(|e| SimError::io(path, e))?;
+        let dialect = sniff(path, &head, complete, choice)?;
+        let input: Box<dyn Read + Send> = Box::new(std::io::Cursor::new(head).chain(raw));
         let reader = csv::ReaderBuilder::new()
             .buffer_capacity(1 << 16)
+            .delimiter(dialect.delimiter.byte())
             .comment(Some(b'#'))
             .flexible(true)
             .has_headers(true)
@@ -73,6 +429,7 @@ impl CsvIn {
             len,
             ends_with_newline,
             unterminated_last_line: None,
+            dialect,
         };
         let err = |m: &Self, line: Option<u64>, message: String| DataError {
             file: m.file.clone(),
@@ -121,6 +478,11 @@ impl CsvIn {
     /// File name as given.
     pub fn file(&self) -> &str {
         &self.file
+    }
+
+    /// The dialect the file is read with.
+    pub fn dialect(&self) -> Dialect {
+        self.dialect
     }
 
     /// Header names, trimmed.
@@ -220,6 +582,7 @@ impl CsvIn {
                     headers: &self.headers,
                     file: &self.file,
                     line,
+                    decimal_comma: self.dialect.decimal == DecimalMark::Comma,
                 }))
             }
             Err(e) => Err(DataError {
@@ -240,6 +603,7 @@ pub struct Row<'a> {
     file: &'a str,
     /// 1-based line of the row.
     pub line: u64,
+    decimal_comma: bool,
 }
 
 impl Row<'_> {
@@ -274,7 +638,12 @@ impl Row<'_> {
     #[inline]
     pub fn f64(&self, col: usize) -> Result<Option<f64>, DataError> {
         let raw = self.record.get(col).unwrap_or(b"");
-        match plain_decimal(raw) {
+        let fast = if self.decimal_comma {
+            plain_decimal_comma(raw)
+        } else {
+            plain_decimal(raw)
+        };
+        match fast {
             Some(v) => Ok(Some(v)),
             None if raw.is_empty() => Ok(None),
             None => self.parse_text(col, raw),
@@ -291,12 +660,35 @@ impl Row<'_> {
         if text.is_empty() {
             return Ok(None);
         }
-        match text.parse::<f64>() {
+        let with_point;
+        let parsed = if self.decimal_comma {
+            if text.contains('.') {
+                return Err(self.error(
+                    col,
+                    format!(
+                        "'{}' has a '.' but the file is read with a decimal comma (thousands separators are not read; --decimal sets the mark)",
+                        echo(text)
+                    ),
+                ));
+            }
+            with_point = text.replace(',', ".");
+            with_point.parse::<f64>()
+        } else {
+            text.parse::<f64>()
+        };
+        match parsed {
             Ok(v) if v.is_finite() => Ok(Some(v)),
             Ok(_) => Err(self.error(
                 col,
                 format!(
                     "'{}' is not a finite number (NaN and infinities are rejected)",
+                    echo(text)
+                ),
+            )),
+            Err(_) if !self.decimal_comma && has_fraction(text.as_bytes(), b',') => Err(self.error(
+                col,
+                format!(
+                    "cannot read '{}' as a number: the file is read with a decimal point (a decimal comma? set --decimal comma)",
                     echo(text)
                 ),
             )),
@@ -357,6 +749,19 @@ const POW10: [f64; 23] = [
 /// is applied after, so `-0` is −0.0 as in `str::parse`.
 #[inline]
 pub fn plain_decimal(cell: &[u8]) -> Option<f64> {
+    plain_decimal_with::<b'.'>(cell)
+}
+
+/// [`plain_decimal`] with a decimal comma (`-12,345`): the same bits as `str::parse::<f64>`
+/// of the text with its comma replaced by a point; `None` for anything else (a point
+/// included).
+#[inline]
+pub fn plain_decimal_comma(cell: &[u8]) -> Option<f64> {
+    plain_decimal_with::<b','>(cell)
+}
+
+#[inline(always)]
+fn plain_decimal_with<const MARK: u8>(cell: &[u8]) -> Option<f64> {
     let (negative, body) = match cell.split_first()? {
         (b'-', rest) => (true, rest),
         (b'+', rest) => (false, rest),
@@ -372,7 +777,7 @@ pub fn plain_decimal(cell: &[u8]) -> Option<f64> {
         let digit = b.wrapping_sub(b'0');
         if digit <= 9 {
             mantissa = mantissa * 10 + u64::from(digit);
-        } else if b == b'.' && point.is_none() {
+        } else if b == MARK && point.is_none() {
             point = Some(i);
         } else {
             return None;
@@ -465,8 +870,115 @@ mod tests {
         }
     }
 
+    /// A decimal-comma cell gives the bits `str::parse` gives the same text with a point.
+    fn agrees_with_comma(text: &str) {
+        let with_comma = text.replace('.', ",");
+        if let Some(v) = plain_decimal_comma(with_comma.as_bytes()) {
+            let std = text.parse::<f64>().unwrap();
+            assert_eq!(v.to_bits(), std.to_bits(), "{with_comma}: {v} vs {std}");
+        }
+        assert_eq!(
+            plain_decimal_comma(with_comma.as_bytes()).map(f64::to_bits),
+            plain_decimal(text.as_bytes()).map(f64::to_bits),
+            "{text}"
+        );
+    }
+
+    #[test]
+    fn decimal_commas_read_as_points_do() {
+        for text in ["-750.459", "0.001", "499.996", "-0.000", "+1.5", "129404"] {
+            agrees_with_comma(text);
+            assert!(plain_decimal_comma(text.replace('.', ",").as_bytes()).is_some());
+        }
+        // A point is not a decimal comma's business (thousands separators are not read).
+        for text in ["1.5", "1,5,0", ",5", "1,", "1.000,5"] {
+            assert_eq!(plain_decimal_comma(text.as_bytes()), None, "{text}");
+        }
+    }
+
+    fn sniffed(head: &str) -> Result<Dialect, String> {
+        sniff("t.csv", head.as_bytes(), true, DialectChoice::default()).map_err(|e| e.to_string())
+    }
+
+    #[test]
+    fn sniffs_separator_and_decimal_mark() {
+        let d = sniffed("# c,o;m\tment\nt_s;f_N\n0;1,5\n0,001;2\n").unwrap();
+        assert_eq!(
+            (d.delimiter, d.decimal),
+            (Delimiter::Semicolon, DecimalMark::Comma)
+        );
+        assert_eq!(
+            (d.delimiter_from, d.decimal_from),
+            (DialectSource::Sniffed, DialectSource::Sniffed)
+        );
+        let d = sniffed("t_s\tf_N\r\n0\t1.5\r\n").unwrap();
+        assert_eq!(
+            (d.delimiter, d.decimal),
+            (Delimiter::Tab, DecimalMark::Point)
+        );
+        let d = sniffed("t_s;f_N\n0;1\n").unwrap();
+        assert_eq!(
+            (d.decimal, d.decimal_from),
+            (DecimalMark::Point, DialectSource::Default)
+        );
+        let d = sniffed("t_s,f_N\n0,1.5\n").unwrap();
+        assert_eq!(
+            (d.delimiter, d.decimal),
+            (Delimiter::Comma, DecimalMark::Point)
+        );
+        // A header name with a comma in a ';' file: the rows settle it.
+        let d = sniffed("t_s;force, kN\n0;1,5\n0,001;2,5\n").unwrap();
+        assert_eq!(d.delimiter, Delimiter::Semicolon);
+        // An empty file is left to the reader's own message.
+        assert_eq!(sniffed("").unwrap(), Dialect::default());
+        let e = sniffed("\n# x\nt_s|f_N|g\n0|1|2\n").unwrap_err();
+        assert!(e.contains("t.csv:3:") && e.contains("'|' 2 times"), "{e}");
+        // A cut last line of an incomplete head is not looked at.
+        let d = sniff(
+            "t",
+            b"t_s;f_N\n0;1,5\n0;2.",
+            false,
+            DialectChoice::default(),
+        )
+        .unwrap();
+        assert_eq!(d.decimal, DecimalMark::Comma);
+        let e = sniff(
+            "t",
+            b"t_s,f\n",
+            true,
+            DialectChoice {
+                delimiter: None,
+                decimal: Some(DecimalMark::Comma),
+            },
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(e.contains("','-separated"), "{e}");
+    }
+
     proptest! {
         #![proptest_config(ProptestConfig::with_cases(20_000))]
+
+        #[test]
+        fn decimal_comma_matches_str_parse_of_the_point_text(
+            int in 0u64..10_000_000_000,
+            frac in proptest::option::of("[0-9]{1,12}"),
+            sign in prop_oneof![Just(""), Just("-"), Just("+")],
+        ) {
+            let text = match &frac {
+                Some(f) => format!("{sign}{int}.{f}"),
+                None => format!("{sign}{int}"),
+            };
+            agrees_with_comma(&text);
+        }
+
+        #[test]
+        fn decimal_comma_matches_on_printed_floats(bits in any::<u64>()) {
+            let v = f64::from_bits(bits);
+            prop_assume!(v.is_finite());
+            agrees_with_comma(&format!("{v}"));
+            agrees_with_comma(&format!("{v:.3}"));
+        }
 
         #[test]
         fn fast_path_matches_str_parse_on_decimal_text(

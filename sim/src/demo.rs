@@ -116,6 +116,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     let opts = ReplayOptions {
         skip_bad_rows: false,
         progress: bar(quiet, None, "replaying"),
+        ..ReplayOptions::default()
     };
     let rep = replay::replay_file(&cfg, &core, &trace, &estimate, &opts, Some(&mut dec))?;
     if let Some(pb) = &opts.progress {

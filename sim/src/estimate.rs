@@ -36,6 +36,42 @@ pub const HEADER: [&str; 16] = [
     "torque_ref_Nm",
 ];
 
+/// The [`HEADER`] indices of the estimate columns `names` asks for, in its order
+/// (`replay --columns`).
+///
+/// # Errors
+/// A message naming an unknown or repeated column and listing the valid ones.
+///
+/// ```
+/// use clampwise_sim::estimate::select_columns;
+/// assert_eq!(select_columns(&["t_s", "torque_Nm"]).unwrap(), [1, 2]);
+/// assert!(select_columns(&["torque"]).unwrap_err().contains("torque_Nm"));
+/// ```
+pub fn select_columns<S: AsRef<str>>(names: &[S]) -> Result<Vec<usize>, String> {
+    let mut out = Vec::with_capacity(names.len());
+    for n in names {
+        let n = n.as_ref().trim();
+        let i = HEADER.iter().position(|h| *h == n).ok_or_else(|| {
+            format!(
+                "--columns: unknown estimate column '{}'; the columns are: {}",
+                echo(n),
+                HEADER.join(", ")
+            )
+        })?;
+        if out.contains(&i) {
+            return Err(format!("--columns: '{n}' is named twice"));
+        }
+        out.push(i);
+    }
+    if out.is_empty() {
+        return Err(format!(
+            "--columns: no column named; the columns are: {}",
+            HEADER.join(", ")
+        ));
+    }
+    Ok(out)
+}
+
 /// `fmt::Write` into a byte buffer.
 struct FmtBytes<'a>(&'a mut Vec<u8>);
 
@@ -76,6 +112,9 @@ const NUMBER_COLUMNS: usize = 13;
 pub struct EstimateWriter {
     out: AtomicFile,
     buf: Vec<u8>,
+    /// `--columns`: indices into [`HEADER`] in output order.
+    select: Option<Vec<usize>>,
+    row: Vec<u8>,
     numbers: [LastText<u64>; NUMBER_COLUMNS],
     flags: LastText<Flags>,
 }
@@ -117,6 +156,19 @@ impl EstimateWriter {
     /// # Errors
     /// [`SimError::Io`].
     pub fn create(path: &str, comments: &[String]) -> Result<Self, SimError> {
+        Self::create_with_columns(path, comments, None)
+    }
+
+    /// [`EstimateWriter::create`] writing only the columns `select` names, as indices into
+    /// [`HEADER`] in output order (`None`: all of them).
+    ///
+    /// # Errors
+    /// [`SimError::Io`].
+    pub fn create_with_columns(
+        path: &str,
+        comments: &[String],
+        select: Option<Vec<usize>>,
+    ) -> Result<Self, SimError> {
         let mut out = AtomicFile::create(path)?;
         let mut buf = Vec::with_capacity(1 << 16);
         for c in comments {
@@ -124,12 +176,22 @@ impl EstimateWriter {
                 let _ = writeln!(buf, "# {l}");
             }
         }
-        let _ = writeln!(buf, "{}", HEADER.join(","));
+        match &select {
+            None => {
+                let _ = writeln!(buf, "{}", HEADER.join(","));
+            }
+            Some(sel) => {
+                let names: Vec<&str> = sel.iter().filter_map(|&i| HEADER.get(i).copied()).collect();
+                let _ = writeln!(buf, "{}", names.join(","));
+            }
+        }
         out.write_all(&buf)?;
         buf.clear();
         Ok(Self {
             out,
             buf,
+            select,
+            row: Vec::new(),
             numbers: Default::default(),
             flags: LastText::default(),
         })
@@ -140,6 +202,7 @@ impl EstimateWriter {
     /// # Errors
     /// [`SimError::Io`].
     pub fn write(&mut self, r: &EstimateRow) -> Result<(), SimError> {
+        let start = self.buf.len();
         let b = &mut self.buf;
         b.extend_from_slice(itoa::Buffer::new().format(r.line).as_bytes());
         let [
@@ -189,6 +252,23 @@ impl EstimateWriter {
         b.push(b',');
         opt(torque_ref, b, r.torque_ref_nm);
         b.push(b'\n');
+        if let Some(sel) = &self.select {
+            // No field holds a comma (flags are joined by ` | `): split the row written above.
+            self.row.clear();
+            self.row
+                .extend_from_slice(self.buf.get(start..self.buf.len() - 1).unwrap_or_default());
+            self.buf.truncate(start);
+            let fields: Vec<&[u8]> = self.row.split(|&c| c == b',').collect();
+            for (n, &i) in sel.iter().enumerate() {
+                if n > 0 {
+                    self.buf.push(b',');
+                }
+                self.buf
+                    .extend_from_slice(fields.get(i).copied().unwrap_or_default());
+            }
+            self.buf.push(b'\n');
+        }
+        let b = &mut self.buf;
         if b.len() >= 1 << 16 {
             self.out.write_all(&self.buf)?;
             self.buf.clear();

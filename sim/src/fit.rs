@@ -26,7 +26,7 @@ use crate::config::{KeyPath, LoadedConfig, value_span};
 use crate::error::{DataError, SimError};
 use crate::replay::run_stream;
 use crate::seam::{self, Flags, State};
-use crate::trace::{RowPolicy, SkipReport, TraceReader};
+use crate::trace::{RowPolicy, SkipReport, TraceOptions, TraceReader};
 
 /// Options of a fit.
 #[derive(Debug, Clone)]
@@ -37,6 +37,8 @@ pub struct FitOptions {
     pub min_force_n: Option<f64>,
     /// Skip and count bad rows.
     pub skip_bad_rows: bool,
+    /// Dialect, time base, column overrides and resampling of the trace.
+    pub trace: TraceOptions,
 }
 
 impl Default for FitOptions {
@@ -45,6 +47,7 @@ impl Default for FitOptions {
             min_coverage: 200.0,
             min_force_n: None,
             skip_bad_rows: false,
+            trace: TraceOptions::default(),
         }
     }
 }
@@ -184,7 +187,7 @@ pub fn fit_trace(
     } else {
         RowPolicy::Stop
     };
-    let mut reader = TraceReader::open(trace, c, policy, true)?;
+    let mut reader = TraceReader::open_with(trace, c, policy, true, &opts.trace)?;
     let ts = &c.friction.mu.temperature_c;
     let vs = &c.friction.mu.slip_speed_rad_s;
     let (nt, nv) = (ts.len(), vs.len());

@@ -15,7 +15,7 @@
 //! |---|---|
 //! | [`config`], [`column_units`], [`build_core`], [`emit`] | re-exported from `clampwise-device`: the TOML schema, config → core, firmware table emitter |
 //! | [`seam`] | **the seam**: `SampleEstimator::step`, implemented by `CoreEstimator` (the core's `Estimator::step`) |
-//! | [`csvin`], [`trace`], [`timestamps`] | located, streaming CSV input; column mapping; time checks |
+//! | [`csvin`], [`trace`], [`timestamps`], [`resample`] | located, streaming CSV input and its dialect; column mapping; time checks; resampling onto the device period |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
 //! | [`replay`], [`compare`], [`sketch`], [`fit`] | the subcommands' work |
 //! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
@@ -62,6 +62,7 @@ pub mod plant;
 pub mod plot;
 pub mod replay;
 pub mod report;
+pub mod resample;
 pub mod seam;
 pub mod sketch;
 pub mod synth;

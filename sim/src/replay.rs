@@ -9,12 +9,14 @@ use serde::Serialize;
 
 use crate::build_core::CoreDevice;
 use crate::config::LoadedConfig;
+use crate::csvin::Dialect;
 use crate::error::SimError;
 use crate::estimate::EstimateWriter;
 use crate::plot::Envelope;
+use crate::resample::ResampleReport;
 use crate::seam::{self, EstimateRow, Flags, SampleEstimator, State, TraceSample};
 use crate::timestamps::TimeReport;
-use crate::trace::{RowPolicy, SkipReport, TraceReader};
+use crate::trace::{RowPolicy, SkipReport, TraceOptions, TraceReader};
 
 /// The caution printed with every human summary.
 pub use clampwise_device::CAUTION;
@@ -141,6 +143,14 @@ pub struct ReplaySummary {
     pub output: String,
     /// Estimator used.
     pub estimator: &'static str,
+    /// Separator and decimal mark the trace was read with, and where each came from.
+    pub dialect: Dialect,
+    /// The trace's period stated with `--sample-period-s`, s (the time check's base).
+    pub sample_period_s: Option<f64>,
+    /// Resampling onto the device's period (`--resample`): method, periods, rows in and out.
+    pub resample: Option<ResampleReport>,
+    /// The estimate columns written (`--columns`); `None`: all of them.
+    pub columns: Option<Vec<String>>,
     /// Data rows read (good and skipped).
     pub rows_read: u64,
     /// Counts and extremes.
@@ -166,6 +176,11 @@ pub struct ReplayOptions {
     pub skip_bad_rows: bool,
     /// Progress bar to drive (by bytes read).
     pub progress: Option<ProgressBar>,
+    /// Dialect, time base, column overrides and resampling of the trace.
+    pub trace: TraceOptions,
+    /// Estimate columns to write, as indices into [`crate::estimate::HEADER`] in output
+    /// order (`--columns`); `None`: all.
+    pub columns: Option<Vec<usize>>,
 }
 
 /// Run every sample of `reader` through `est`, handing each pair to `sink`.
@@ -217,14 +232,14 @@ pub fn replay_file(
     } else {
         RowPolicy::Stop
     };
-    let mut reader = TraceReader::open(input, &cfg.config, policy, false)?;
+    let mut reader = TraceReader::open_with(input, &cfg.config, policy, false, &opts.trace)?;
     let comments = vec![
         format!("clampwise estimate of {input} with config {}", cfg.file),
         format!("device: {}", cfg.config.device.name),
         format!("estimator: {ESTIMATOR_NAME}"),
         CAUTION.to_string(),
     ];
-    let mut writer = EstimateWriter::create(output, &comments)?;
+    let mut writer = EstimateWriter::create_with_columns(output, &comments, opts.columns.clone())?;
     let mut est = seam::new_estimator(&cfg.config, core)
         .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     let mut tally = Tally::default();
@@ -262,6 +277,14 @@ pub fn replay_file(
         trace: input.to_string(),
         output: output.to_string(),
         estimator: ESTIMATOR_NAME,
+        dialect: reader.dialect(),
+        sample_period_s: opts.trace.sample_period_s,
+        resample: reader.resampled().cloned(),
+        columns: opts.columns.as_ref().map(|c| {
+            c.iter()
+                .filter_map(|&i| crate::estimate::HEADER.get(i).map(|h| (*h).to_string()))
+                .collect()
+        }),
         rows_read: reader.rows_read(),
         rows_per_s: rows_per_s(tally.rows, elapsed),
         tally,
@@ -285,6 +308,29 @@ pub fn rows_per_s(rows: u64, elapsed_s: f64) -> f64 {
 pub fn human(s: &ReplaySummary) -> String {
     let mut o = String::new();
     o.push_str(&format!("replayed {} → {}\n", s.trace, s.output));
+    o.push_str(&format!("  read as: {}\n", s.dialect));
+    if let Some(r) = &s.resample {
+        o.push_str(&format!(
+            "  resampled ({}) from the trace's {} s to the device's {} s period: {} samples in, {} out (the estimate's line is the source line of the sample {})\n",
+            match r.method {
+                crate::resample::Resample::Hold => "zero-order hold",
+                crate::resample::Resample::Linear => "linear interpolation",
+            },
+            r.trace_period_s,
+            r.device_period_s,
+            r.input_rows,
+            r.output_rows,
+            match r.method {
+                crate::resample::Resample::Hold => "held",
+                crate::resample::Resample::Linear => "before each tick",
+            }
+        ));
+    } else if let Some(p) = s.sample_period_s {
+        o.push_str(&format!("  time base: {p} s (--sample-period-s)\n"));
+    }
+    if let Some(c) = &s.columns {
+        o.push_str(&format!("  columns written: {}\n", c.join(", ")));
+    }
     o.push_str(&format!(
         "  rows: {} read, {} replayed, {} skipped\n",
         s.rows_read, s.tally.rows, s.skipped.count

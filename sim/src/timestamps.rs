@@ -11,6 +11,8 @@ const PERIOD_WINDOW: usize = 64;
 #[derive(Debug, Clone)]
 pub struct TimeCheck {
     period_s: f64,
+    tolerance: f64,
+    period_name: &'static str,
     gap_s: f64,
     prev: Option<f64>,
     first_steps: Vec<f64>,
@@ -72,10 +74,19 @@ fn optional_step_digits<S: serde::Serializer>(x: &Option<f64>, s: S) -> Result<S
 }
 
 impl TimeCheck {
-    /// Checks against `period_s`; a step above `(1 + gap_tolerance) · period` is a gap.
-    pub fn new(period_s: f64, gap_tolerance: f64) -> Self {
+    /// Checks against `period_s` (called `period_name` in messages); a step above `(1 +
+    /// gap_tolerance) · period` is a gap; a median step more than `tolerance` times the
+    /// period, or less than its `1/tolerance`, is an error.
+    pub fn new(
+        period_s: f64,
+        gap_tolerance: f64,
+        tolerance: f64,
+        period_name: &'static str,
+    ) -> Self {
         Self {
             period_s,
+            tolerance,
+            period_name,
             gap_s: period_s * (1.0 + gap_tolerance),
             prev: None,
             first_steps: Vec::with_capacity(PERIOD_WINDOW),
@@ -129,10 +140,12 @@ impl TimeCheck {
         let median = s.get(s.len() / 2).copied().unwrap_or(self.period_s);
         self.report.median_step_s = Some(median);
         let ratio = median / self.period_s;
-        if !(0.5..=2.0).contains(&ratio) {
+        if !(1.0 / self.tolerance..=self.tolerance).contains(&ratio) {
+            let step = step_text(median);
             return Err(format!(
-                "time stamps step by {median} s (median of the first {} steps) but device.sample_period_s is {} s: wrong time unit for the time column?",
+                "time stamps step by {step} s (median of the first {} steps) but {} is {} s: wrong time unit for the time column? If the trace was recorded at another rate, state its period and resample it to the device's: --sample-period-s {step} --resample hold (or linear)",
                 s.len(),
+                self.period_name,
                 self.period_s
             ));
         }
@@ -163,7 +176,7 @@ mod tests {
 
     #[test]
     fn duplicates_gaps_and_backwards() {
-        let mut c = TimeCheck::new(0.001, 0.5);
+        let mut c = TimeCheck::new(0.001, 0.5, 1.5, "device.sample_period_s");
         for (i, t) in [0.0, 0.001, 0.001, 0.002, 0.010, 0.011].iter().enumerate() {
             c.check(*t, i as u64 + 2).unwrap();
         }
@@ -176,7 +189,7 @@ mod tests {
 
     #[test]
     fn wrong_time_unit() {
-        let mut c = TimeCheck::new(0.001, 0.5);
+        let mut c = TimeCheck::new(0.001, 0.5, 1.5, "device.sample_period_s");
         let mut err = None;
         for i in 0..100 {
             if let Err(e) = c.check(f64::from(i), 2 + u64::try_from(i).unwrap()) {
@@ -185,6 +198,26 @@ mod tests {
             }
         }
         assert!(err.unwrap().contains("wrong time unit"));
+    }
+
+    /// A median step beyond the gap threshold (1 + 0.5 periods) either way is another rate:
+    /// 2 ms against 1 ms (a 500 Hz log on a 1 kHz device) fails and says how to resample;
+    /// 1.4 ms and 0.7 ms pass (jitter).
+    #[test]
+    fn another_rate_is_refused_with_the_way_to_resample() {
+        let run = |step: f64| {
+            let mut c = TimeCheck::new(0.001, 0.5, 1.5, "device.sample_period_s");
+            for i in 0..100u32 {
+                c.check(f64::from(i) * step, u64::from(i) + 2)?;
+            }
+            c.finish().map(|_| ())
+        };
+        let e = run(0.002).unwrap_err();
+        assert!(e.contains("--sample-period-s 0.002 --resample hold"), "{e}");
+        assert!(run(0.0016).is_err());
+        assert!(run(0.0006).is_err());
+        assert!(run(0.0014).is_ok());
+        assert!(run(0.0007).is_ok());
     }
 
     /// [calc: 9 · 0.001 − 0.008 in f64 is 0.0010000000000000009; 1 ms is what the trace says]

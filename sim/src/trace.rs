@@ -9,11 +9,134 @@
 use serde::Serialize;
 
 use crate::column_units::{self, Conversion};
-use crate::config::{CANONICAL, DeviceConfig, DeviceKind};
-use crate::csvin::{CsvIn, Row, echo};
+use crate::config::{CANONICAL, ColumnMap, DeviceConfig, DeviceKind};
+use crate::csvin::{CsvIn, Dialect, DialectChoice, Row, echo};
 use crate::error::{DataError, SimError};
+use crate::resample::{Resample, ResampleReport, Resampler};
 use crate::seam::{Channel, TraceSample};
 use crate::timestamps::{TimeCheck, TimeReport};
+
+/// A `--column QUANTITY=NAME[:UNIT]` override of one `[trace.columns]` entry.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ColumnOverride {
+    /// Quantity name as in `[trace.columns]` (`force_1`, `time`, …).
+    pub quantity: String,
+    /// Header name in the trace.
+    pub column: String,
+    /// Unit (the config's unit names); `None`: the quantity's canonical unit.
+    pub unit: Option<String>,
+}
+
+impl std::str::FromStr for ColumnOverride {
+    type Err = String;
+
+    /// `QUANTITY=NAME[:UNIT]`; the unit follows the last `:` (a name with a `:` in it needs
+    /// the unit written out).
+    fn from_str(s: &str) -> Result<Self, String> {
+        let names = || CANONICAL.iter().map(|e| e.0).collect::<Vec<_>>().join(", ");
+        let (q, rest) = s.split_once('=').ok_or_else(|| {
+            format!(
+                "'{}' is not QUANTITY=NAME[:UNIT] (quantities: {})",
+                echo(s),
+                names()
+            )
+        })?;
+        let q = q.trim();
+        if !CANONICAL.iter().any(|e| e.0 == q) {
+            return Err(format!(
+                "unknown quantity '{}' (quantities: {})",
+                echo(q),
+                names()
+            ));
+        }
+        let (column, unit) = match rest.rsplit_once(':') {
+            Some((c, u)) => (c, Some(u.trim().to_string())),
+            None => (rest, None),
+        };
+        if column.trim().is_empty() {
+            return Err(format!("'{}': empty column name", echo(s)));
+        }
+        Ok(Self {
+            quantity: q.to_string(),
+            column: column.trim().to_string(),
+            unit,
+        })
+    }
+}
+
+/// Command-line settings of how one trace is read, over the config's `[trace]`.
+#[derive(Debug, Clone, Default)]
+pub struct TraceOptions {
+    /// Separator and decimal mark set on the command line (the rest is sniffed).
+    pub dialect: DialectChoice,
+    /// The trace's own sample period, s (`--sample-period-s`): the time check's base
+    /// instead of `device.sample_period_s`.
+    pub sample_period_s: Option<f64>,
+    /// Column map entries replacing the config's.
+    pub columns: Vec<ColumnOverride>,
+    /// Resample onto the device's ticks (needs `sample_period_s`).
+    pub resample: Option<Resample>,
+}
+
+impl TraceOptions {
+    /// Check the options against the config before any file is read.
+    ///
+    /// # Errors
+    /// [`SimError::Usage`] for a period that is not a positive number, `--resample` without
+    /// `--sample-period-s`, a stated period the estimator would be stepped at wrongly (another
+    /// rate without `--resample`), a `--column` for a force channel the config does not have
+    /// or given twice.
+    pub fn check(&self, c: &DeviceConfig) -> Result<(), SimError> {
+        let device = c.device.sample_period_s;
+        if let Some(p) = self.sample_period_s {
+            if !(p.is_finite() && p > 0.0) {
+                return Err(SimError::Usage(format!(
+                    "--sample-period-s must be a positive number of seconds, got {p}"
+                )));
+            }
+            let tolerance = period_tolerance(c);
+            let ratio = p / device;
+            if self.resample.is_none() && !(1.0 / tolerance..=tolerance).contains(&ratio) {
+                return Err(SimError::Usage(format!(
+                    "--sample-period-s {p} is another rate than device.sample_period_s {device} s, at which the estimator steps: add --resample hold (zero-order hold) or --resample linear to bring the trace to the device's period"
+                )));
+            }
+        } else if self.resample.is_some() {
+            return Err(SimError::Usage(
+                "--resample needs the trace's own period, --sample-period-s S (checked against its time stamps)".into(),
+            ));
+        }
+        let mut seen = std::collections::HashSet::new();
+        for o in &self.columns {
+            if !seen.insert(o.quantity.as_str()) {
+                return Err(SimError::Usage(format!(
+                    "--column {} is given twice",
+                    o.quantity
+                )));
+            }
+            if let Some(ch) = o
+                .quantity
+                .strip_prefix("force_")
+                .and_then(|s| s.chars().next())
+                .and_then(|d| d.to_digit(10))
+                && ch as usize > c.sensors.len()
+            {
+                return Err(SimError::Usage(format!(
+                    "--column {}: the config has {} force channel(s)",
+                    o.quantity,
+                    c.sensors.len()
+                )));
+            }
+        }
+        Ok(())
+    }
+}
+
+/// The largest ratio of a trace's time step to the expected period that is not a gap: the
+/// period check accepts a median step within this ratio either way.
+fn period_tolerance(c: &DeviceConfig) -> f64 {
+    (1.0 + c.trace.gap_tolerance_ratio.unwrap_or(0.5)).min(2.0)
+}
 
 /// What to do with a bad data row.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -59,6 +182,7 @@ struct Layout {
 /// A trace opened against a config.
 pub struct TraceReader {
     csv: CsvIn,
+    resampler: Option<Resampler>,
     layout: Layout,
     policy: RowPolicy,
     time: TimeCheck,
@@ -70,6 +194,7 @@ pub struct TraceReader {
 fn find_column(
     csv: &CsvIn,
     c: &DeviceConfig,
+    overrides: &[ColumnOverride],
     name: &str,
     required: bool,
 ) -> Result<Option<Col>, DataError> {
@@ -77,21 +202,32 @@ fn find_column(
         .iter()
         .find(|e| e.0 == name)
         .ok_or_else(|| csv.header_error(None, format!("internal: unknown quantity {name}")))?;
-    let (col_name, unit, area, mapped) = match c.trace.columns.get(name) {
-        Some(m) => (m.column.as_str(), m.unit.as_str(), m.piston_area_m2, true),
-        None => (canon_col, canon_unit, None, false),
+    let from_config: Option<&ColumnMap> = c.trace.columns.get(name);
+    let over = overrides.iter().find(|o| o.quantity == name);
+    let (col_name, unit, area, source) = match (over, from_config) {
+        (Some(o), m) => (
+            o.column.as_str(),
+            o.unit.as_deref().unwrap_or(canon_unit),
+            m.and_then(|m| m.piston_area_m2),
+            format!("--column {name}"),
+        ),
+        (None, Some(m)) => (
+            m.column.as_str(),
+            m.unit.as_str(),
+            m.piston_area_m2,
+            format!("trace.columns.{name}"),
+        ),
+        (None, None) => (canon_col, canon_unit, None, name.to_string()),
     };
     let conv = column_units::conversion(q, unit, area)
-        .map_err(|m| csv.header_error(None, format!("trace.columns.{name}: {m}")))?;
+        .map_err(|m| csv.header_error(None, format!("{source}: {m}")))?;
     match csv.column(col_name) {
         Some(index) => Ok(Some(Col { index, conv })),
         None if !required => Ok(None),
         None => {
             let mut msg = format!(
-                "missing column '{col_name}' ({} for {}{}); the header has: {}",
+                "missing column '{col_name}' ({} for {source}); the header has: {}",
                 q.name(),
-                if mapped { "trace.columns." } else { "" },
-                name,
                 csv.headers_for_message()
             );
             // Same stem, other unit: a wrong-units header. Say how to map it.
@@ -106,7 +242,7 @@ fn find_column(
             {
                 let u = column_units::unit_suffix(q, other).unwrap_or("?");
                 msg = format!(
-                    "missing column '{col_name}': the trace has '{other}' in unit '{u}' instead; map it in the config: [trace.columns] {name} = {{ column = \"{other}\", unit = \"{u}\" }}"
+                    "missing column '{col_name}': the trace has '{other}' in unit '{u}' instead; map it in the config: [trace.columns] {name} = {{ column = \"{other}\", unit = \"{u}\" }}, or on the command line: --column {name}={other}:{u}"
                 );
             }
             if csv.headers().iter().all(|h| h.parse::<f64>().is_ok()) {
@@ -130,39 +266,72 @@ impl TraceReader {
         policy: RowPolicy,
         need_reference: bool,
     ) -> Result<Self, SimError> {
-        let csv = CsvIn::open(path)?;
-        let time = find_column(&csv, c, "time", true)?
+        Self::open_with(path, c, policy, need_reference, &TraceOptions::default())
+    }
+
+    /// [`TraceReader::open`] with command-line [`TraceOptions`] (dialect, time base, column
+    /// overrides, resampling).
+    ///
+    /// # Errors
+    /// As [`TraceReader::open`], and the usage errors of [`TraceOptions::check`].
+    pub fn open_with(
+        path: &str,
+        c: &DeviceConfig,
+        policy: RowPolicy,
+        need_reference: bool,
+        opts: &TraceOptions,
+    ) -> Result<Self, SimError> {
+        opts.check(c)?;
+        let csv = CsvIn::open_with(path, opts.dialect)?;
+        let ov = opts.columns.as_slice();
+        let time = find_column(&csv, c, ov, "time", true)?
             .ok_or_else(|| csv.header_error(None, "no time column".into()))?;
         let n = c.sensors.len();
         let mut force = [None; 4];
         let mut valid = [None; 4];
         for i in 0..n.min(4) {
             if let Some(slot) = force.get_mut(i) {
-                *slot = find_column(&csv, c, &format!("force_{}", i + 1), true)?;
+                *slot = find_column(&csv, c, ov, &format!("force_{}", i + 1), true)?;
             }
             if let Some(slot) = valid.get_mut(i) {
-                *slot = find_column(&csv, c, &format!("force_{}_valid", i + 1), false)?;
+                *slot = find_column(&csv, c, ov, &format!("force_{}_valid", i + 1), false)?;
             }
         }
         let layout = Layout {
             time,
             force,
             valid,
-            omega_in: find_column(&csv, c, "omega_in", true)?
+            omega_in: find_column(&csv, c, ov, "omega_in", true)?
                 .ok_or_else(|| csv.header_error(None, "no omega_in column".into()))?,
-            omega_out: find_column(&csv, c, "omega_out", c.device.kind == DeviceKind::Clutch)?,
-            command: find_column(&csv, c, "command", false)?,
-            temperature: find_column(&csv, c, "temperature", false)?,
-            ambient: find_column(&csv, c, "ambient", false)?,
-            torque_ref: find_column(&csv, c, "torque_ref", need_reference)?,
+            omega_out: find_column(
+                &csv,
+                c,
+                ov,
+                "omega_out",
+                c.device.kind == DeviceKind::Clutch,
+            )?,
+            command: find_column(&csv, c, ov, "command", false)?,
+            temperature: find_column(&csv, c, ov, "temperature", false)?,
+            ambient: find_column(&csv, c, ov, "ambient", false)?,
+            torque_ref: find_column(&csv, c, ov, "torque_ref", need_reference)?,
         };
+        let period = opts.sample_period_s.unwrap_or(c.device.sample_period_s);
         Ok(Self {
             csv,
+            resampler: opts
+                .resample
+                .map(|m| Resampler::new(m, period, c.device.sample_period_s)),
             layout,
             policy,
             time: TimeCheck::new(
-                c.device.sample_period_s,
+                period,
                 c.trace.gap_tolerance_ratio.unwrap_or(0.5),
+                period_tolerance(c),
+                if opts.sample_period_s.is_some() {
+                    "--sample-period-s"
+                } else {
+                    "device.sample_period_s"
+                },
             ),
             skipped: SkipReport::default(),
             rows_read: 0,
@@ -173,6 +342,16 @@ impl TraceReader {
     /// File name as given.
     pub fn file(&self) -> &str {
         self.csv.file()
+    }
+
+    /// The dialect the trace is read with.
+    pub fn dialect(&self) -> Dialect {
+        self.csv.dialect()
+    }
+
+    /// What resampling did, when it is on.
+    pub fn resampled(&self) -> Option<&ResampleReport> {
+        self.resampler.as_ref().map(Resampler::report)
     }
 
     /// Whether the trace has a reference-torque column.
@@ -225,11 +404,25 @@ impl TraceReader {
         }
     }
 
-    /// The next good sample; `Ok(None)` at the end.
+    /// The next good sample (resampled onto the device's ticks when asked); `Ok(None)` at
+    /// the end.
     ///
     /// # Errors
     /// The located error of a bad row under [`RowPolicy::Stop`].
+    #[inline]
     pub fn next_sample(&mut self) -> Result<Option<TraceSample>, DataError> {
+        match self.resampler.take() {
+            None => self.next_trace_sample(),
+            Some(mut r) => {
+                let s = r.next(&mut || self.next_trace_sample());
+                self.resampler = Some(r);
+                s
+            }
+        }
+    }
+
+    /// The next good sample of the file as it is.
+    fn next_trace_sample(&mut self) -> Result<Option<TraceSample>, DataError> {
         loop {
             let parsed = match self.csv.next_row() {
                 Ok(None) => {
