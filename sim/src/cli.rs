@@ -137,8 +137,8 @@ pub struct TraceArgs {
     /// device.sample_period_s (another rate needs --resample).
     #[arg(long)]
     pub sample_period_s: Option<f64>,
-    /// Map a quantity to a trace column, QUANTITY=NAME[:UNIT] (repeatable), over the config's
-    /// [trace.columns]; UNIT as in the config (default: the quantity's canonical unit), e.g.
+    /// Map a quantity to a trace column, `QUANTITY=NAME[:UNIT]` (repeatable), over the config's
+    /// `[trace.columns]`; UNIT as in the config (default: the quantity's canonical unit), e.g.
     /// force_1=Kraft1:kN.
     #[arg(long = "column", id = "column", value_name = "QUANTITY=NAME[:UNIT]")]
     pub column_map: Vec<crate::trace::ColumnOverride>,

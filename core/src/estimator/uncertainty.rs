@@ -9,7 +9,7 @@
 //! ```
 //!
 //! the exact bound of (1 + δμ)(1 + δF/F)(1 + δr) − 1 for the product's upper side (the lower
-//! side, 1 − (1 − δμ)(1 − δF/F)(1 − δr), is never larger) [calc]. The force enters as the
+//! side, 1 − (1 − δμ)(1 − δF/F)(1 − δr), is never larger) \[calc\]. The force enters as the
 //! torque its uncertainty carries, T_U, rather than as δF/F: no division, and the bound stays a
 //! bound at zero force or when the force uncertainty exceeds the force itself (a released
 //! brake whose clamp force could still be up to U_F carries up to T_U). The first-order sum

@@ -137,7 +137,7 @@ impl ActuatorLag {
 
     /// The lag of time constant `response_time` (s; 0 or less: no lag) at `sample_rate_hz`:
     /// α = 1 − e^(−T/τ), the step-invariant (zero-order-hold) discretisation of the first-order
-    /// lag [calc], in Q31 rounded to nearest, at least 2⁻³¹. `const`: e^x is summed as its
+    /// lag \[calc\], in Q31 rounded to nearest, at least 2⁻³¹. `const`: e^x is summed as its
     /// series in 128-bit integers (x = T/τ ≤ 16 in the sum; beyond, α rounds to 1 − 2⁻³¹).
     pub const fn new(response_time: Seconds, sample_rate_hz: u32) -> Self {
         let tau = response_time.to_bits();

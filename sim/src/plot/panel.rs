@@ -1,7 +1,7 @@
 //! The shared shape of a time panel: the columns of its data area (one per pixel), a chart
 //! with the shared layout, min/max envelopes drawn over it, and its legend.
 //!
-//! Data flow: [`Envelope`] → [`columns`] (one [`Bucket`] per pixel column) → [`TimePanel`]
+//! Data flow: [`Envelope`] → `columns` (one [`Bucket`] per pixel column) → `TimePanel`
 //! (chart, envelopes, legend) → the pixel range of its time axis.
 
 use plotters::coord::Shift;
