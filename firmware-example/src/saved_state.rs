@@ -38,9 +38,12 @@
 //! # Ok::<(), clampwise_core::record_store::StoreError<embedded_storage::nor_flash::NorFlashErrorKind>>(())
 //! ```
 
-use clampwise_core::record::{RecordError, StateRecord};
-use clampwise_core::record_store::{LoadError, RecordStore, SlotState, StoreError};
-use embedded_storage::nor_flash::NorFlash;
+use clampwise_core::record::RecordError;
+// The types of `Persist`'s signatures, named here so `forward_persist!` can reach them.
+pub use clampwise_core::record::StateRecord;
+use clampwise_core::record_store::SlotState;
+pub use clampwise_core::record_store::{LoadError, RecordStore, StoreError};
+pub use embedded_storage::nor_flash::NorFlash;
 
 use crate::line::Line;
 use crate::stub::RamFlash;
@@ -75,6 +78,39 @@ pub trait Persist {
         &mut self,
         store: &mut RecordStore<F>,
     ) -> Result<u32, LoadError<F::Error>>;
+}
+
+/// `impl Persist for $wrapper<P>` that forwards every method to its `$field: P`: for the
+/// probes and recorders that wrap a processor (stack and cycle probes, test recorders).
+///
+/// ```
+/// use clampwise_firmware_example::forward_persist;
+/// struct Logged<P> {
+///     inner: P,
+/// }
+/// forward_persist!(Logged, inner);
+/// ```
+#[macro_export]
+macro_rules! forward_persist {
+    ($wrapper:ident, $field:ident) => {
+        impl<P: $crate::saved_state::Persist> $crate::saved_state::Persist for $wrapper<P> {
+            fn state_record(&self, sequence: u32) -> $crate::saved_state::StateRecord {
+                self.$field.state_record(sequence)
+            }
+            fn save_state<F: $crate::saved_state::NorFlash>(
+                &self,
+                store: &mut $crate::saved_state::RecordStore<F>,
+            ) -> Result<u32, $crate::saved_state::StoreError<F::Error>> {
+                self.$field.save_state(store)
+            }
+            fn restore_state<F: $crate::saved_state::NorFlash>(
+                &mut self,
+                store: &mut $crate::saved_state::RecordStore<F>,
+            ) -> Result<u32, $crate::saved_state::LoadError<F::Error>> {
+                self.$field.restore_state(store)
+            }
+        }
+    };
 }
 
 impl<P: Persist> Persist for &mut P {

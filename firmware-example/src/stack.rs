@@ -146,22 +146,4 @@ impl<P: Processor<CH>, const CH: usize> Processor<CH> for StackProbe<P> {
     }
 }
 
-impl<P: clampwise_firmware_example::saved_state::Persist>
-    clampwise_firmware_example::saved_state::Persist for StackProbe<P>
-{
-    fn state_record(&self, sequence: u32) -> clampwise_core::record::StateRecord {
-        self.inner.state_record(sequence)
-    }
-    fn save_state<F: embedded_storage::nor_flash::NorFlash>(
-        &self,
-        store: &mut clampwise_core::record_store::RecordStore<F>,
-    ) -> Result<u32, clampwise_core::record_store::StoreError<F::Error>> {
-        self.inner.save_state(store)
-    }
-    fn restore_state<F: embedded_storage::nor_flash::NorFlash>(
-        &mut self,
-        store: &mut clampwise_core::record_store::RecordStore<F>,
-    ) -> Result<u32, clampwise_core::record_store::LoadError<F::Error>> {
-        self.inner.restore_state(store)
-    }
-}
+clampwise_firmware_example::forward_persist!(StackProbe, inner);

@@ -187,25 +187,7 @@ impl<P: clampwise_firmware_example::app::Processor<CH>, const CH: usize>
 }
 
 #[cfg(all(feature = "defmt", not(armv6m)))]
-impl<P: clampwise_firmware_example::saved_state::Persist>
-    clampwise_firmware_example::saved_state::Persist for CycleProbe<P>
-{
-    fn state_record(&self, sequence: u32) -> clampwise_core::record::StateRecord {
-        self.inner.state_record(sequence)
-    }
-    fn save_state<F: embedded_storage::nor_flash::NorFlash>(
-        &self,
-        store: &mut clampwise_core::record_store::RecordStore<F>,
-    ) -> Result<u32, clampwise_core::record_store::StoreError<F::Error>> {
-        self.inner.save_state(store)
-    }
-    fn restore_state<F: embedded_storage::nor_flash::NorFlash>(
-        &mut self,
-        store: &mut clampwise_core::record_store::RecordStore<F>,
-    ) -> Result<u32, clampwise_core::record_store::LoadError<F::Error>> {
-        self.inner.restore_state(store)
-    }
-}
+clampwise_firmware_example::forward_persist!(CycleProbe, inner);
 
 #[cfg(feature = "defmt")]
 #[entry]

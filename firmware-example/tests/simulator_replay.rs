@@ -42,25 +42,7 @@ impl<P: Processor<DEVICE_CHANNELS, Estimate = Estimate>> Processor<DEVICE_CHANNE
     }
 }
 
-impl<P: clampwise_firmware_example::saved_state::Persist>
-    clampwise_firmware_example::saved_state::Persist for Recorder<P>
-{
-    fn state_record(&self, sequence: u32) -> clampwise_core::record::StateRecord {
-        self.inner.state_record(sequence)
-    }
-    fn save_state<F: embedded_storage::nor_flash::NorFlash>(
-        &self,
-        store: &mut clampwise_core::record_store::RecordStore<F>,
-    ) -> Result<u32, clampwise_core::record_store::StoreError<F::Error>> {
-        self.inner.save_state(store)
-    }
-    fn restore_state<F: embedded_storage::nor_flash::NorFlash>(
-        &mut self,
-        store: &mut clampwise_core::record_store::RecordStore<F>,
-    ) -> Result<u32, clampwise_core::record_store::LoadError<F::Error>> {
-        self.inner.restore_state(store)
-    }
-}
+clampwise_firmware_example::forward_persist!(Recorder, inner);
 
 #[test]
 fn firmware_estimates_equal_the_simulators_replay() {
