@@ -68,8 +68,8 @@ pub const TRUTHS: [Truth; 3] = [
 pub struct ScenarioCase {
     pub name: &'static str,
     pub what: &'static str,
-    pub builtin: &'static str,
-    pub offset_s: f64,
+    builtin: &'static str,
+    offset_s: f64,
 }
 
 pub const SCENARIOS: [ScenarioCase; 2] = [
@@ -173,7 +173,7 @@ pub fn verdict(
 }
 
 /// The sample a logger would record (as `synth` writes it and `replay` reads it back).
-pub fn trace_sample(p: &PlantSample, line: u64, gauges: usize) -> TraceSample {
+fn trace_sample(p: &PlantSample, line: u64, gauges: usize) -> TraceSample {
     let mut s = TraceSample {
         line,
         t_s: p.t_s,
