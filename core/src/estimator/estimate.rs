@@ -4,8 +4,8 @@ use crate::flags::Flags;
 use crate::sensor::ChannelMask;
 use crate::units::{Celsius, Metres, NewtonMetres, Newtons, Ratio};
 
-/// The friction contact's state this sample.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+/// The friction contact's state this sample. Ordered as [`ContactState::ALL`] lists them.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum ContactState {
     /// The contact slips: torque = −sign(v) · n · μ · F · r_e (+ drag).
@@ -24,6 +24,28 @@ pub enum ContactState {
 }
 
 impl ContactState {
+    /// Every state, in declaration (and `Ord`) order.
+    pub const ALL: [Self; 5] = [
+        Self::Slipping,
+        Self::Holding,
+        Self::Released,
+        Self::SlipUnknown,
+        Self::Unavailable,
+    ];
+
+    /// The state whose [`ContactState::name`] is `name`.
+    ///
+    /// ```
+    /// use clampwise_core::estimator::ContactState;
+    /// for state in ContactState::ALL {
+    ///     assert_eq!(ContactState::from_name(state.name()), Some(state));
+    /// }
+    /// assert_eq!(ContactState::from_name("stuck"), None);
+    /// ```
+    pub fn from_name(name: &str) -> Option<Self> {
+        Self::ALL.into_iter().find(|s| s.name() == name)
+    }
+
     /// A short lower-case name for logs and CSV files.
     pub const fn name(self) -> &'static str {
         match self {
