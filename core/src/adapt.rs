@@ -102,7 +102,7 @@ const FORGETTING_MIN_BITS: i32 = 966_367_642;
 /// An [`AdaptConfig`] as its fixed-point values, for configurations computed once (on the
 /// host or in a build script) and kept in flash as `const` items.
 ///
-/// [`AdaptConfig::to_raw`] gives them; [`AdaptConfig::from_raw`] checks them and builds the
+/// [`AdaptConfig::to_raw`] gives them; [`AdaptConfig::from_bits`] checks them and builds the
 /// configuration in a `const` context.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct AdaptRaw {
@@ -153,8 +153,8 @@ impl AdaptConfig {
         }
         let ratio = |v: f64| Ratio::saturating_from_num(v);
         // A setting that rounds to the edge of its range in Q30 (e.g. a band end below one
-        // LSB) is rejected by `from_raw`, with the same error.
-        Self::from_raw(AdaptRaw {
+        // LSB) is rejected by `from_bits`, with the same error.
+        Self::from_bits(AdaptRaw {
             min_factor: ratio(min_factor),
             max_factor: ratio(max_factor),
             forgetting: ratio(forgetting_factor),
@@ -185,14 +185,14 @@ impl AdaptConfig {
     ///     min_excitation: Ratio::lit("0.05"), initial_covariance: Ratio::ONE,
     ///     min_covariance: Ratio::lit("0.000001"), max_covariance: Ratio::lit("1.9"),
     /// };
-    /// const CFG: AdaptConfig = match AdaptConfig::from_raw(RAW) {
+    /// const CFG: AdaptConfig = match AdaptConfig::from_bits(RAW) {
     ///     Ok(c) => c,
     ///     Err(_) => panic!("bad adaptation settings"),
     /// };
     /// assert_eq!(CFG.to_raw(), RAW);
-    /// assert!(AdaptConfig::from_raw(AdaptRaw { max_factor: Ratio::lit("0.9"), ..RAW }).is_err());
+    /// assert!(AdaptConfig::from_bits(AdaptRaw { max_factor: Ratio::lit("0.9"), ..RAW }).is_err());
     /// ```
-    pub const fn from_raw(raw: AdaptRaw) -> Result<Self, AdaptError> {
+    pub const fn from_bits(raw: AdaptRaw) -> Result<Self, AdaptError> {
         let one = Ratio::ONE.to_bits();
         let (lo, hi) = (raw.min_factor.to_bits(), raw.max_factor.to_bits());
         if lo <= 0 || lo > one || hi < one {
@@ -234,8 +234,8 @@ impl AdaptConfig {
         })
     }
 
-    /// The fixed-point settings, for [`AdaptConfig::from_raw`] (e.g. to emit them as Rust
-    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    /// The fixed-point settings, for [`AdaptConfig::from_bits`] (e.g. to emit them as Rust
+    /// source); `from_bits(cfg.to_raw())` gives `cfg` back, equal in every bit.
     pub const fn to_raw(&self) -> AdaptRaw {
         AdaptRaw {
             min_factor: self.min_factor,
@@ -517,14 +517,14 @@ mod tests {
             AdaptConfig::new(1.0, 1.0, 1.0, fs, 0.5).unwrap(),
             AdaptConfig::new(0.5, 1.999, 0.9, NewtonMetres::MAX, 0.999).unwrap(),
         ] {
-            assert_eq!(AdaptConfig::from_raw(c.to_raw()), Ok(c));
+            assert_eq!(AdaptConfig::from_bits(c.to_raw()), Ok(c));
         }
     }
 
     #[test]
     fn raw_rejects_each_bad_setting() {
         let raw = cfg().to_raw();
-        let e = |r: AdaptRaw| AdaptConfig::from_raw(r).unwrap_err();
+        let e = |r: AdaptRaw| AdaptConfig::from_bits(r).unwrap_err();
         let bits = Ratio::from_bits;
         let one = Ratio::ONE.to_bits();
         for (lo, hi) in [(0, one), (one + 1, one + 2), (one / 2, one - 1)] {

@@ -2,11 +2,9 @@
 
 use crc::{CRC_32_ISO_HDLC, Crc, Digest, NoTable};
 
-use crate::config::DeviceConfig;
+use crate::config::{DeviceConfig, TableSet};
 use crate::estimator::Combination;
 use crate::sensor::{Debounce, DiagnosticLimits};
-use crate::table::Table2;
-use fixed::types::extra::LeEqU32;
 
 const CRC32: Crc<u32, NoTable> = Crc::<u32, NoTable>::new(&CRC_32_ISO_HDLC);
 
@@ -37,17 +35,6 @@ impl Feed<'_> {
     fn u128(&mut self, v: u128) {
         self.bytes(&v.to_le_bytes());
     }
-    fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
-        &mut self,
-        t: &Table2<X, Y, Z, NX, NY>,
-    ) {
-        t.x_breakpoints().iter().for_each(|v| self.i32(v.to_bits()));
-        t.y_breakpoints().iter().for_each(|v| self.i32(v.to_bits()));
-        t.values()
-            .iter()
-            .flatten()
-            .for_each(|v| self.i32(v.to_bits()));
-    }
     fn debounce(&mut self, d: Debounce) {
         self.bytes(&d.raise_after.to_le_bytes());
         self.bytes(&d.clear_after.to_le_bytes());
@@ -70,9 +57,7 @@ impl Feed<'_> {
     }
 }
 
-impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
-    DeviceConfig<C, NF, NB, NT, NV>
-{
+impl<T: TableSet, const C: usize> DeviceConfig<T, C> {
     /// CRC-32/ISO-HDLC over every number of the configuration, so that two copies of it (the
     /// one a host built from a TOML file and the one a firmware keeps in flash) can be shown
     /// to hold the same numbers, and a configuration in flash can be checked at start-up.
@@ -94,7 +79,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     /// [`AdaptRaw`]: crate::adapt::AdaptRaw
     ///
     /// ```
-    /// # use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+    /// # use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
     /// # use clampwise_core::estimator::Combination;
     /// # use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
     /// # use clampwise_core::geometry::{Annulus, Contact, Shape, build_radius_table};
@@ -104,17 +89,17 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     /// # use clampwise_core::wear::{WearConfig, WearParams};
     /// # let contact = Contact::new(Shape::Annulus(Annulus::new(0.060, 0.100)?), 2, None)?;
     /// # let radius = build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?;
-    /// # let mu = MuTable::<1, 1>::from_f64(&[20.0], &[0.0], &[[0.40]])?;
+    /// # let mu = MuTable::<1, 1>::new(&[20.0], &[0.0], &[[0.40]])?;
     /// # let friction = FrictionConfig::new(mu, &FrictionParams { static_to_kinetic: 1.2,
     /// #     stick_speed: 0.05, stick_hysteresis: 0.04, transition_speed: 0.5,
     /// #     viscous_drag: 0.0, no_load_drag: 0.0 })?;
-    /// # let thermal = ThermalConfig::new(&ThermalParams { dt: 1e-3, rotor_mass: 8.0,
+    /// # let thermal = ThermalConfig::new(&ThermalParams { rotor_mass: 8.0,
     /// #     rotor_specific_heat: 460.0, rotor_share: 0.9, cooling: Cooling::TimeConstant(600.0),
     /// #     ambient: 20.0, lining: None, fade_warning: 350.0, over_temperature: 500.0,
-    /// #     flag_hysteresis: 10.0, measured: None })?;
-    /// # let wear = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
+    /// #     flag_hysteresis: 10.0, measured: None }, 1e-3)?;
+    /// # let wear = WearConfig::new(&WearParams { bedding_energy: 5e6,
     /// #     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.010,
-    /// #     minimum_thickness: 0.002 })?;
+    /// #     minimum_thickness: 0.002 }, 1e-3)?;
     /// # let channel = ChannelCalibration { gain: NewtonsPerCount::lit("0.01"),
     /// #     offset: Newtons::ZERO, rails: AdcRails { low: -8_388_608, high: 8_388_607, margin: 8 },
     /// #     temperature: None };
@@ -128,16 +113,16 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
     /// # let sensor = SensorConfig::new(1000, [channel], LowPass::new(200.0, 1000)?, limits,
     /// #     voting, None)?;
     /// let parts = DeviceParts {
-    ///     sample_period: Seconds::lit("0.001"), thermal_wear_every: 1, faces: 2, radius,
-    ///     friction, thermal, wear,
+    ///     sample_period: Seconds::lit("0.001"), thermal_wear_every: 1, faces: 2,
+    ///     tables: Tables::new(radius, friction), thermal, wear,
     ///     sensor, adapt: None,
     ///     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
     ///     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
     ///         combination: Combination::WorstCase },
     /// };
-    /// let a = DeviceConfig::new(parts)?;
-    /// let b = DeviceConfig::new(DeviceParts { faces: 4, ..parts })?;
-    /// assert_eq!(a.checksum(), DeviceConfig::new(parts)?.checksum());
+    /// let a = DeviceConfig::from_parts(parts)?;
+    /// let b = DeviceConfig::from_parts(DeviceParts { faces: 4, ..parts })?;
+    /// assert_eq!(a.checksum(), DeviceConfig::from_parts(parts)?.checksum());
     /// assert_ne!(a.checksum(), b.checksum());
     /// # Ok::<(), Box<dyn core::error::Error>>(())
     /// ```
@@ -146,16 +131,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
         f.i64(self.sample_period.to_bits());
         f.u8(self.thermal_wear_shift);
         f.u8(self.faces);
-        f.table(&self.radius);
-
-        let fr = &self.friction;
-        f.table(fr.mu_kinetic());
-        f.i32(fr.static_to_kinetic().to_bits());
-        f.i32(fr.slip_threshold().to_bits());
-        f.i32(fr.stick_threshold().to_bits());
-        f.i32(fr.transition_speed().to_bits());
-        f.i32(fr.viscous_drag().to_bits());
-        f.i32(fr.no_load_drag().to_bits());
+        self.tables.feed_bits(&mut |b| f.bytes(b));
 
         let th = self.thermal.to_raw();
         f.i64(th.dt.to_bits());

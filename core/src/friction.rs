@@ -189,12 +189,12 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
     ///
     /// # Errors
     /// [`FrictionError::NotRepresentable`] for non-finite or out-of-range values, then as
-    /// [`FrictionConfig::from_fixed`].
+    /// [`FrictionConfig::from_bits`].
     ///
     /// ```
     /// use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
     /// // Demo lining (invented numbers): μ fades with heat, dips slightly with slip speed.
-    /// let mu = MuTable::<2, 2>::from_f64(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
+    /// let mu = MuTable::<2, 2>::new(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
     /// let p = FrictionParams {
     ///     static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
     ///     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
@@ -204,7 +204,7 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
     /// # Ok::<(), Box<dyn core::error::Error>>(())
     /// ```
     pub fn new(mu_kinetic: MuTable<NT, NV>, p: &FrictionParams) -> Result<Self, FrictionError> {
-        Self::from_fixed(
+        Self::from_bits(
             mu_kinetic,
             fixed_from_f64(p.static_to_kinetic, "static_to_kinetic")?,
             fixed_from_f64(p.stick_speed, "stick_speed")?,
@@ -226,11 +226,11 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
     /// ```
     /// use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
     /// use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec, Ratio};
-    /// const MU: MuTable<1, 1> = match MuTable::new([Celsius::lit("20")], [RadPerSec::ZERO], [[Ratio::lit("0.35")]]) {
+    /// const MU: MuTable<1, 1> = match MuTable::from_bits([Celsius::lit("20")], [RadPerSec::ZERO], [[Ratio::lit("0.35")]]) {
     ///     Ok(t) => t,
     ///     Err(_) => panic!("bad table"),
     /// };
-    /// const CFG: FrictionConfig<1, 1> = match FrictionConfig::from_fixed(
+    /// const CFG: FrictionConfig<1, 1> = match FrictionConfig::from_bits(
     ///     MU, Ratio::lit("1.15"), RadPerSec::lit("0.05"), RadPerSec::lit("0.04"),
     ///     RadPerSec::lit("0.5"), ViscousDrag::ZERO, NewtonMetres::ZERO,
     /// ) {
@@ -240,7 +240,7 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
     /// assert_eq!(CFG.stick_speed(), RadPerSec::lit("0.05"));
     /// ```
     #[allow(clippy::too_many_arguments)]
-    pub const fn from_fixed(
+    pub const fn from_bits(
         mu_kinetic: MuTable<NT, NV>,
         static_to_kinetic: Ratio,
         stick_speed: RadPerSec,
@@ -462,7 +462,7 @@ impl FrictionState {
     /// ```
     /// use clampwise_core::friction::{FrictionConfig, FrictionParams, FrictionState, MuTable};
     /// use clampwise_core::units::{Celsius, RadPerSec, Ratio};
-    /// let mu = MuTable::<2, 2>::from_f64(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
+    /// let mu = MuTable::<2, 2>::new(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
     /// let p = FrictionParams {
     ///     static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
     ///     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
@@ -557,7 +557,7 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
     /// ```
     /// use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
     /// use clampwise_core::units::Ratio;
-    /// let mu = MuTable::<1, 2>::from_f64(&[20.0], &[0.0, 100.0], &[[0.30, 0.36]])?;
+    /// let mu = MuTable::<1, 2>::new(&[20.0], &[0.0, 100.0], &[[0.30, 0.36]])?;
     /// let p = FrictionParams {
     ///     static_to_kinetic: 1.1, stick_speed: 0.05, stick_hysteresis: 0.04,
     ///     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
@@ -644,7 +644,7 @@ mod tests {
     /// Demo lining (invented numbers, not a product's data): a resin-like dry lining whose μ
     /// falls above about 230 °C, the onset of drift for resin-bonded linings \[pub: Day ch. 2\].
     pub(crate) fn demo_table() -> MuTable<5, 4> {
-        MuTable::from_f64(
+        MuTable::new(
             &[-40.0, 100.0, 230.0, 400.0, 650.0],
             &[0.0, 10.0, 100.0, 1000.0],
             &[
@@ -796,7 +796,7 @@ mod tests {
                 field: "no_load_drag",
             },
         );
-        let bad = MuTable::<1, 1>::from_f64(&[0.0], &[0.0], &[[1.5]]).unwrap();
+        let bad = MuTable::<1, 1>::new(&[0.0], &[0.0], &[[1.5]]).unwrap();
         assert_eq!(
             FrictionConfig::new(bad, &base).unwrap_err(),
             FrictionError::MuOutOfRange {
@@ -804,7 +804,7 @@ mod tests {
                 speed: 0
             }
         );
-        let neg = MuTable::<1, 2>::from_f64(&[0.0], &[-1.0, 1.0], &[[0.3, 0.3]]).unwrap();
+        let neg = MuTable::<1, 2>::new(&[0.0], &[-1.0, 1.0], &[[0.3, 0.3]]).unwrap();
         assert_eq!(
             FrictionConfig::new(neg, &base).unwrap_err(),
             FrictionError::NegativeSpeedBreakpoint
@@ -983,14 +983,14 @@ mod tests {
             let ts = axis3(t_axis.0, t_axis.1);
             let vs = axis3(v_axis.0, v_axis.1.map(|s| s >> 6));
             let z = [[mu[0], mu[1], mu[2]], [mu[3], mu[4], mu[5]], [mu[6], mu[7], mu[8]]];
-            let table = MuTable::<3, 3>::new(
+            let table = MuTable::<3, 3>::from_bits(
                 ts.map(Celsius::from_bits),
                 vs.map(RadPerSec::from_bits),
                 z.map(|r| r.map(Ratio::from_bits)),
             ).unwrap();
             // Hysteresis in (0, 2·stick): 1 + hyst mod (2·stick − 1).
             let h = 1 + i32::try_from(i64::from(hyst) % (2 * i64::from(stick) - 1).max(1)).unwrap();
-            let cfg = FrictionConfig::from_fixed(
+            let cfg = FrictionConfig::from_bits(
                 table, Ratio::from_bits(ratio), RadPerSec::from_bits(stick), RadPerSec::from_bits(h),
                 RadPerSec::from_bits(v_t), ViscousDrag::from_bits(drags.0),
                 NewtonMetres::from_bits(drags.1),

@@ -87,48 +87,41 @@
 //!
 //! ## Example: build a device and step it
 //!
+//! Everything a device needs comes from [`prelude`]; the sample period is stated once, in
+//! [`config::DeviceParams`], and each model is built for it.
+//!
 //! ```
-//! use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
-//! use clampwise_core::estimator::{Combination, ContactState, Estimator, Inputs};
-//! use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
-//! use clampwise_core::geometry::{Annulus, Contact, Shape, build_radius_table};
-//! use clampwise_core::sensor::*;
-//! use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
-//! use clampwise_core::units::{Newtons, RadPerSec, Ratio, Seconds};
-//! use clampwise_core::wear::{WearConfig, WearParams};
+//! use clampwise_core::prelude::*;
 //!
 //! // A fictional test-rig brake (demo numbers): one annular face pair, 1 kHz loop.
 //! let contact = Contact::new(Shape::Annulus(Annulus::new(0.060, 0.100)?), 2, None)?;
-//! let radius = build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?;
-//! let mu = MuTable::<2, 2>::from_f64(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
-//! let friction = FrictionConfig::new(mu, &FrictionParams {
-//!     static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
-//!     transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
-//! })?;
-//! let thermal = ThermalConfig::new(&ThermalParams {
-//!     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
-//!     cooling: Cooling::TimeConstant(600.0), ambient: 20.0, lining: None,
-//!     fade_warning: 350.0, over_temperature: 500.0, flag_hysteresis: 10.0, measured: None,
-//! })?;
-//! let wear = WearConfig::new(&WearParams {
-//!     dt: 1e-3, bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
-//!     initial_thickness: 0.010, minimum_thickness: 0.002,
-//! })?;
-//! let channel = ChannelCalibration {
-//!     gain: NewtonsPerCount::lit("0.01"), offset: Newtons::ZERO,
-//!     rails: AdcRails { low: -8_388_608, high: 8_388_607, margin: 8 }, temperature: None,
-//! };
-//! let limits = DiagnosticLimits {
-//!     force_min: Newtons::lit("-2000"), force_max: Newtons::lit("60000"),
-//!     max_rate: NewtonsPerSecond::lit("5000000"), noise_band: Newtons::lit("20"), stuck: None,
-//!     debounce: DebounceSet::uniform(Debounce { raise_after: 3, clear_after: 10 }),
-//!     max_hold_samples: 2,
-//! };
-//! let voting = VotingLimits { tolerance: Newtons::lit("500"), channel_uncertainty: Newtons::lit("100") };
-//! let sensor = SensorConfig::new(1000, [channel], LowPass::new(200.0, 1000)?, limits, voting, None)?;
-//! let device = DeviceConfig::new(DeviceParts {
-//!     sample_period: Seconds::lit("0.001"), thermal_wear_every: 1, faces: contact.faces(),
-//!     radius, friction, thermal, wear, sensor, adapt: None,
+//! let mu = MuTable::<2, 2>::new(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
+//! let tables = Tables::new(
+//!     build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?,
+//!     FrictionConfig::new(mu, &FrictionParams {
+//!         static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
+//!         transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
+//!     })?,
+//! );
+//! let device = DeviceConfig::new(&DeviceParams {
+//!     sample_period_s: 1e-3, thermal_wear_every: 1, faces: contact.faces(), tables,
+//!     thermal: ThermalParams {
+//!         rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
+//!         cooling: Cooling::TimeConstant(600.0), ambient: 20.0, lining: None,
+//!         fade_warning: 350.0, over_temperature: 500.0, flag_hysteresis: 10.0, measured: None,
+//!     },
+//!     wear: WearParams {
+//!         bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
+//!         initial_thickness: 0.010, minimum_thickness: 0.002,
+//!     },
+//!     sensor: SensorParams {
+//!         channels: [ChannelCalibration::linear(0.01, 0.0, AdcRails::signed_bits(24, 8))?],
+//!         filter_cutoff_hz: 200.0,
+//!         limits: DiagnosticLimits::new(-2000.0, 60_000.0, 5e6, 20.0)?,
+//!         voting: VotingLimits { tolerance: Newtons::lit("500"), channel_uncertainty: Newtons::lit("100") },
+//!         fallback: None,
+//!     },
+//!     adapt: None,
 //!     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
 //!     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
 //!         combination: Combination::WorstCase },
@@ -191,6 +184,7 @@ pub mod estimator;
 pub mod flags;
 pub mod friction;
 pub mod geometry;
+pub mod prelude;
 pub mod record;
 pub mod record_store;
 #[cfg(feature = "std")]

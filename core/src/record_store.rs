@@ -76,7 +76,7 @@ use core::fmt;
 
 use embedded_storage::nor_flash::{NorFlash, NorFlashError};
 
-use crate::config::DeviceConfig;
+use crate::config::{DeviceConfig, TableSet};
 use crate::estimator::Estimator;
 use crate::record::{RECORD_LEN, RecordError, StateRecord};
 
@@ -282,15 +282,9 @@ impl<F: NorFlash> RecordStore<F> {
     /// [`LoadError::NoValidRecord`] with what each slot held (erased, torn, or the
     /// [`RecordError`] that refused it, e.g. [`RecordError::ConfigMismatch`] after a change
     /// of configuration); [`LoadError::Flash`].
-    pub fn load<
-        const C: usize,
-        const NF: usize,
-        const NB: usize,
-        const NT: usize,
-        const NV: usize,
-    >(
+    pub fn load<T: TableSet, const C: usize>(
         &mut self,
-        cfg: &DeviceConfig<C, NF, NB, NT, NV>,
+        cfg: &DeviceConfig<T, C>,
     ) -> Result<StateRecord, LoadError<F::Error>> {
         let mut states = [SlotState::Erased; 2];
         let mut records = [None; 2];
@@ -323,17 +317,10 @@ impl<F: NorFlash> RecordStore<F> {
     ///
     /// # Errors
     /// As [`RecordStore::load`].
-    pub fn restore<
-        'c,
-        const C: usize,
-        const NF: usize,
-        const NB: usize,
-        const NT: usize,
-        const NV: usize,
-    >(
+    pub fn restore<'c, T: TableSet, const C: usize>(
         &mut self,
-        cfg: &'c DeviceConfig<C, NF, NB, NT, NV>,
-    ) -> Result<Estimator<'c, C, NF, NB, NT, NV>, LoadError<F::Error>> {
+        cfg: &'c DeviceConfig<T, C>,
+    ) -> Result<Estimator<'c, T, C>, LoadError<F::Error>> {
         let record = self.load(cfg)?;
         // `load` has run the same check: `resume` cannot refuse this record.
         Estimator::resume(cfg, &record).map_err(|e| LoadError::NoValidRecord {
@@ -349,15 +336,9 @@ impl<F: NorFlash> RecordStore<F> {
     /// # Errors
     /// [`StoreError::Flash`], [`StoreError::Verify`]. On an error the newest valid record is
     /// unchanged and the next save goes to the same slot.
-    pub fn save<
-        const C: usize,
-        const NF: usize,
-        const NB: usize,
-        const NT: usize,
-        const NV: usize,
-    >(
+    pub fn save<T: TableSet, const C: usize>(
         &mut self,
-        estimator: &Estimator<'_, C, NF, NB, NT, NV>,
+        estimator: &Estimator<'_, T, C>,
     ) -> Result<u32, StoreError<F::Error>> {
         let config = estimator.config();
         let checksum = config.checksum();
@@ -415,16 +396,10 @@ impl<F: NorFlash> RecordStore<F> {
     }
 
     /// Read one slot: `Ok(Ok(record))` if valid, `Ok(Err(state))` if not.
-    fn read_slot<
-        const C: usize,
-        const NF: usize,
-        const NB: usize,
-        const NT: usize,
-        const NV: usize,
-    >(
+    fn read_slot<T: TableSet, const C: usize>(
         &mut self,
         at: u32,
-        cfg: &DeviceConfig<C, NF, NB, NT, NV>,
+        cfg: &DeviceConfig<T, C>,
     ) -> Result<Result<StateRecord, SlotState>, F::Error> {
         let half = self.half;
         let half_u32 = u32::try_from(half).unwrap_or(u32::MAX);

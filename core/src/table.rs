@@ -29,7 +29,7 @@
 //! use fixed::types::extra::{U16, U30};
 //!
 //! // μ against lining temperature, kept in flash.
-//! const MU_VS_TEMP: Table1<U16, U30, 3> = match Table1::new(
+//! const MU_VS_TEMP: Table1<U16, U30, 3> = match Table1::from_bits(
 //!     [Celsius::lit("0"), Celsius::lit("200"), Celsius::lit("400")],
 //!     [Ratio::lit("0.40"), Ratio::lit("0.38"), Ratio::lit("0.30")],
 //! ) {
@@ -370,7 +370,7 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     /// # Errors
     /// [`TableError::Empty`] for `N == 0`, [`TableError::NotIncreasing`] naming the first
     /// breakpoint that is not above its predecessor.
-    pub const fn new(x: [FixedI32<XF>; N], y: [FixedI32<YF>; N]) -> Result<Self, TableError> {
+    pub const fn from_bits(x: [FixedI32<XF>; N], y: [FixedI32<YF>; N]) -> Result<Self, TableError> {
         match validate_axis(Axis::X, &x) {
             Ok(()) => Ok(Self {
                 x_div: Divisors::of(&x),
@@ -387,7 +387,7 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     /// # Errors
     /// [`TableError::NotRepresentable`] for NaN, infinite or out-of-range entries, then as
     /// [`Table1::new`].
-    pub fn from_f64(x: &[f64; N], y: &[f64; N]) -> Result<Self, TableError> {
+    pub fn new(x: &[f64; N], y: &[f64; N]) -> Result<Self, TableError> {
         let mut xs = [FixedI32::<XF>::ZERO; N];
         let mut ys = [FixedI32::<YF>::ZERO; N];
         for (index, ((xo, yo), (&xi, &yi))) in xs
@@ -402,7 +402,7 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
             })?;
             *yo = to_fixed_checked(yi).ok_or(TableError::NotRepresentable { axis: None, index })?;
         }
-        Self::new(xs, ys)
+        Self::from_bits(xs, ys)
     }
 
     /// The breakpoints.
@@ -448,7 +448,7 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     ///
     /// # Errors
     /// [`TableError::Empty`] or [`TableError::NotIncreasing`] naming the axis and breakpoint.
-    pub const fn new(
+    pub const fn from_bits(
         x: [FixedI32<XF>; NX],
         y: [FixedI32<YF>; NY],
         z: [[FixedI32<ZF>; NY]; NX],
@@ -473,8 +473,8 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     ///
     /// # Errors
     /// [`TableError::NotRepresentable`] for NaN, infinite or out-of-range entries (values are
-    /// indexed row-major, `i * NY + j`), then as [`Table2::new`].
-    pub fn from_f64(x: &[f64; NX], y: &[f64; NY], z: &[[f64; NY]; NX]) -> Result<Self, TableError> {
+    /// indexed row-major, `i * NY + j`), then as [`Table2::from_bits`].
+    pub fn new(x: &[f64; NX], y: &[f64; NY], z: &[[f64; NY]; NX]) -> Result<Self, TableError> {
         let mut xs = [FixedI32::<XF>::ZERO; NX];
         let mut ys = [FixedI32::<YF>::ZERO; NY];
         let mut zs = [[FixedI32::<ZF>::ZERO; NY]; NX];
@@ -497,7 +497,7 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
         for (index, (o, &v)) in cells.enumerate() {
             *o = to_fixed_checked(v).ok_or(TableError::NotRepresentable { axis: None, index })?;
         }
-        Self::new(xs, ys, zs)
+        Self::from_bits(xs, ys, zs)
     }
 
     /// The breakpoints of the first axis.
@@ -541,7 +541,7 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     /// use clampwise_core::units::{Celsius, RadPerSec, Ratio};
     /// use fixed::types::extra::{U16, U30};
     ///
-    /// let mu = Table2::<U16, U16, U30, 2, 2>::from_f64(
+    /// let mu = Table2::<U16, U16, U30, 2, 2>::new(
     ///     &[0.0, 400.0], &[0.0, 100.0], &[[0.40, 0.36], [0.30, 0.26]],
     /// )?;
     /// let (t, v) = (Celsius::lit("200"), RadPerSec::lit("50"));
@@ -723,7 +723,7 @@ mod tests {
     type T2 = Table2<U8, U16, U24, 3, 2>;
 
     fn t1() -> T1 {
-        T1::from_f64(&[0.0, 10.0, 20.0, 50.0], &[1.0, 2.0, -3.0, 4.0]).unwrap()
+        T1::new(&[0.0, 10.0, 20.0, 50.0], &[1.0, 2.0, -3.0, 4.0]).unwrap()
     }
 
     #[test]
@@ -750,7 +750,7 @@ mod tests {
 
     #[test]
     fn rejects_non_increasing_and_non_finite() {
-        let e = T1::from_f64(&[0.0, 1.0, 1.0, 2.0], &[0.0; 4]).unwrap_err();
+        let e = T1::new(&[0.0, 1.0, 1.0, 2.0], &[0.0; 4]).unwrap_err();
         assert_eq!(
             e,
             TableError::NotIncreasing {
@@ -758,7 +758,7 @@ mod tests {
                 index: 2
             }
         );
-        let e = T1::from_f64(&[0.0, 1.0, f64::NAN, 2.0], &[0.0; 4]).unwrap_err();
+        let e = T1::new(&[0.0, 1.0, f64::NAN, 2.0], &[0.0; 4]).unwrap_err();
         assert_eq!(
             e,
             TableError::NotRepresentable {
@@ -766,7 +766,7 @@ mod tests {
                 index: 2
             }
         );
-        let e = T1::from_f64(&[0.0, 1.0, 2.0, 3.0], &[0.0, 1e300, 0.0, 0.0]).unwrap_err();
+        let e = T1::new(&[0.0, 1.0, 2.0, 3.0], &[0.0, 1e300, 0.0, 0.0]).unwrap_err();
         assert_eq!(
             e,
             TableError::NotRepresentable {
@@ -774,7 +774,7 @@ mod tests {
                 index: 1
             }
         );
-        let e = T2::from_f64(&[0.0, 1.0, 2.0], &[5.0, 4.0], &[[0.0; 2]; 3]).unwrap_err();
+        let e = T2::new(&[0.0, 1.0, 2.0], &[5.0, 4.0], &[[0.0; 2]; 3]).unwrap_err();
         assert_eq!(
             e,
             TableError::NotIncreasing {
@@ -783,14 +783,14 @@ mod tests {
             }
         );
         assert_eq!(
-            Table1::<U16, U16, 0>::new([], []).unwrap_err(),
+            Table1::<U16, U16, 0>::from_bits([], []).unwrap_err(),
             TableError::Empty { axis: Axis::X }
         );
     }
 
     #[test]
     fn single_breakpoint_is_a_constant() {
-        let t = Table1::<U16, U16, 1>::from_f64(&[3.0], &[7.5]).unwrap();
+        let t = Table1::<U16, U16, 1>::new(&[3.0], &[7.5]).unwrap();
         assert_eq!(
             t.lookup(FixedI32::from_num(3)).value,
             FixedI32::<U16>::from_num(7.5)
@@ -802,7 +802,7 @@ mod tests {
     fn bilinear_matches_hand_value() {
         // z = x + 10·y on the grid is reproduced exactly inside a cell (bilinear is exact for
         // functions linear in each variable).
-        let t = T2::from_f64(
+        let t = T2::new(
             &[0.0, 1.0, 3.0],
             &[0.0, 2.0],
             &[[0.0, 20.0], [1.0, 21.0], [3.0, 23.0]],
@@ -944,7 +944,7 @@ mod tests {
         picks: &[(Pick, Pick)],
     ) {
         let z = if flat { [z[0]; NX] } else { z };
-        let t = Table2::<U8, U16, U24, NX, NY>::new(fx(xs), fx(ys), z.map(fx)).unwrap();
+        let t = Table2::<U8, U16, U24, NX, NY>::from_bits(fx(xs), fx(ys), z.map(fx)).unwrap();
         assert_eq!(t.x_flat, flat || NX == 1 || rows_equal(t.values()));
         for &(px, py) in picks {
             let (x, y) = (
@@ -988,7 +988,7 @@ mod tests {
             ys in any::<[i32; 5]>(),
             picks in prop::collection::vec((any::<u8>(), any::<u32>(), any::<i8>()), 32),
         ) {
-            let t = Table1::<U16, U24, 5>::new(fx(xs), fx(ys)).unwrap();
+            let t = Table1::<U16, U24, 5>::from_bits(fx(xs), fx(ys)).unwrap();
             for pick in picks {
                 let x = FixedI32::<U16>::from_bits(input_for(&xs, pick));
                 let got = t.lookup(x);
@@ -1045,7 +1045,7 @@ mod tests {
 
         #[test]
         fn lookup_never_leaves_value_range(bits in any::<i32>(), ybits in any::<i32>()) {
-            let t = T2::from_f64(&[0.0, 1.0, 3.0], &[0.0, 2.0], &[[0.0, 20.0], [1.0, -21.0], [3.0, 23.0]])
+            let t = T2::new(&[0.0, 1.0, 3.0], &[0.0, 2.0], &[[0.0, 20.0], [1.0, -21.0], [3.0, 23.0]])
                 .unwrap();
             let v: f64 = t.lookup(FixedI32::from_bits(bits), FixedI32::from_bits(ybits)).value.to_num();
             prop_assert!((-21.0..=23.0).contains(&v));

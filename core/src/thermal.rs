@@ -97,8 +97,6 @@ pub struct MeasuredPlausibility {
 /// Thermal parameters in SI units as f64 (host, start-up or build time; never per sample).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct ThermalParams {
-    /// Sample period in seconds, (0, 1].
-    pub dt: f64,
     /// Rotor mass in kg, > 0.
     pub rotor_mass: f64,
     /// Rotor specific heat in J/(kg·K) (grey cast iron ≈ 460–500 \[mem\]), > 0.
@@ -218,7 +216,7 @@ pub struct Plausibility {
 /// A [`ThermalConfig`] as its integer coefficients, for configurations computed once (on the
 /// host or in a build script) and kept in flash as `const` items.
 ///
-/// [`ThermalConfig::to_raw`] gives them; [`ThermalConfig::from_raw`] checks them and builds the
+/// [`ThermalConfig::to_raw`] gives them; [`ThermalConfig::from_bits`] checks them and builds the
 /// configuration in a `const` context. State order of the 2 × 2 arrays: `[lining, rotor]`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct ThermalRaw {
@@ -313,15 +311,15 @@ impl ThermalConfig {
     /// use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
     /// // Demo winch brake disc (invented): 8 kg cast iron, τ = 613 s.
     /// let cfg = ThermalConfig::new(&ThermalParams {
-    ///     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
+    ///     rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
     ///     cooling: Cooling::TimeConstant(613.0), ambient: 20.0, lining: None,
     ///     fade_warning: 300.0, over_temperature: 450.0, flag_hysteresis: 10.0, measured: None,
-    /// })?;
+    /// }, 1e-3)?;
     /// assert!(!cfg.has_lining_node());
     /// # Ok::<(), clampwise_core::thermal::ThermalError>(())
     /// ```
-    pub fn new(p: &ThermalParams) -> Result<Self, ThermalError> {
-        let dt = positive(p.dt, "dt")?;
+    pub fn new(p: &ThermalParams, dt_s: f64) -> Result<Self, ThermalError> {
+        let dt = positive(dt_s, "dt")?;
         if dt > 1.0 {
             return Err(ThermalError::DtTooLong);
         }
@@ -406,7 +404,7 @@ impl ThermalConfig {
                 })
             }
         };
-        Self::from_raw(ThermalRaw {
+        Self::from_bits(ThermalRaw {
             dt: Seconds::checked_from_num(dt)
                 .ok_or(ThermalError::NotRepresentable { field: "dt" })?,
             k_q62: k,
@@ -439,19 +437,19 @@ impl ThermalConfig {
     /// ```
     /// use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
     /// let built = ThermalConfig::new(&ThermalParams {
-    ///     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
+    ///     rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
     ///     cooling: Cooling::TimeConstant(613.0), ambient: 20.0, lining: None,
     ///     fade_warning: 300.0, over_temperature: 450.0, flag_hysteresis: 10.0, measured: None,
-    /// })?;
+    /// }, 1e-3)?;
     /// // In a firmware the raw values are literals emitted at build time.
     /// let raw = built.to_raw();
-    /// assert_eq!(ThermalConfig::from_raw(raw), Ok(built));
+    /// assert_eq!(ThermalConfig::from_bits(raw), Ok(built));
     /// let mut bad = raw;
     /// bad.k_q62[1][1] = -1;
-    /// assert!(ThermalConfig::from_raw(bad).is_err());
+    /// assert!(ThermalConfig::from_bits(bad).is_err());
     /// # Ok::<(), clampwise_core::thermal::ThermalError>(())
     /// ```
-    pub const fn from_raw(raw: ThermalRaw) -> Result<Self, ThermalError> {
+    pub const fn from_bits(raw: ThermalRaw) -> Result<Self, ThermalError> {
         const ONE: i64 = 1 << 62;
         let dt = raw.dt.to_bits();
         if dt <= 0 {
@@ -519,8 +517,8 @@ impl ThermalConfig {
         })
     }
 
-    /// The integer coefficients, for [`ThermalConfig::from_raw`] (e.g. to emit them as Rust
-    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    /// The integer coefficients, for [`ThermalConfig::from_bits`] (e.g. to emit them as Rust
+    /// source); `from_bits(cfg.to_raw())` gives `cfg` back, equal in every bit.
     pub const fn to_raw(&self) -> ThermalRaw {
         ThermalRaw {
             dt: self.dt,
@@ -687,7 +685,7 @@ fn node_step(x: i64, decay_gain: i128) -> i64 {
     x.wrapping_add(delta).clamp(T_FLOOR_Q32, T_CEIL_Q32)
 }
 
-/// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_raw`, so the sign cast keeps the value) and
+/// Γ·P, exact: 0 ≤ Γ < 2⁶² (checked by `from_bits`, so the sign cast keeps the value) and
 /// P ≤ 2⁶³ give a product below 2¹²⁵.
 #[inline(always)]
 fn heating(gamma: i64, power: u64) -> i128 {
@@ -706,10 +704,10 @@ impl ThermalState {
     /// ```
     /// use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams, ThermalState};
     /// # let cfg = ThermalConfig::new(&ThermalParams {
-    /// #     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
+    /// #     rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
     /// #     cooling: Cooling::TimeConstant(613.0), ambient: 20.0, lining: None,
     /// #     fade_warning: 300.0, over_temperature: 450.0, flag_hysteresis: 10.0, measured: None,
-    /// # })?;
+    /// # }, 1e-3)?;
     /// let s = ThermalState::new(&cfg);
     /// assert_eq!(s.rotor_temperature(), cfg.ambient());
     /// # Ok::<(), clampwise_core::thermal::ThermalError>(())
@@ -720,11 +718,11 @@ impl ThermalState {
 
     /// Start from known temperatures (°C), e.g. after a power cycle.
     pub fn with_temperatures(rotor: Celsius, lining: Celsius) -> Self {
-        Self::from_raw(to_q32(rotor), to_q32(lining))
+        Self::from_bits(to_q32(rotor), to_q32(lining))
     }
 
     /// Restore from Q32 °C values (as saved by [`crate::record`]); clamped to the state's range.
-    pub(crate) fn from_raw(rotor_q32: i64, lining_q32: i64) -> Self {
+    pub(crate) fn from_bits(rotor_q32: i64, lining_q32: i64) -> Self {
         Self {
             lining_q32: lining_q32.clamp(T_FLOOR_Q32, T_CEIL_Q32),
             rotor_q32: rotor_q32.clamp(T_FLOOR_Q32, T_CEIL_Q32),
@@ -770,10 +768,10 @@ impl ThermalState {
     /// use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams, ThermalState};
     /// use clampwise_core::units::Watts;
     /// let cfg = ThermalConfig::new(&ThermalParams {
-    ///     dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
+    ///     rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 1.0,
     ///     cooling: Cooling::Adiabatic, ambient: 20.0, lining: None,
     ///     fade_warning: 300.0, over_temperature: 450.0, flag_hysteresis: 10.0, measured: None,
-    /// })?;
+    /// }, 1e-3)?;
     /// let mut s = ThermalState::new(&cfg);
     /// // 202.5 kJ as 67.5 kW over 3 s → +55.03 K (202.5e3 / (8 · 460)).
     /// let mut out = s.update(&cfg, Watts::from_num(67_500), None);
@@ -840,7 +838,7 @@ impl ThermalState {
             self.lining_q32 = node_step(self.lining_q32, lining);
             self.rotor_q32 = node_step(self.rotor_q32, rotor);
         } else {
-            // A single-node model has no lining coefficients (`from_raw` holds them at zero),
+            // A single-node model has no lining coefficients (`from_bits` holds them at zero),
             // so the rotor row is the whole update.
             self.rotor_q32 = node_step(
                 self.rotor_q32,
@@ -1206,7 +1204,7 @@ mod tests {
             rotor in state_q32(), amb in proptest::prelude::any::<i32>(),
             power in proptest::prelude::any::<i64>(), k in 0i64..(1i64 << 62), g in 0i64..(1i64 << 62),
         ) {
-            let cfg = ThermalConfig::from_raw(ThermalRaw {
+            let cfg = ThermalConfig::from_bits(ThermalRaw {
                 k_q62: [[0, 0], [0, k.max(K_MIN_Q62)]],
                 gamma_q62: [0, g],
                 ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap().to_raw()
@@ -1230,7 +1228,7 @@ mod tests {
                 flag_hysteresis: Celsius::from_bits(hyst),
                 ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap().to_raw()
             };
-            let cfg = ThermalConfig::from_raw(raw).unwrap();
+            let cfg = ThermalConfig::from_bits(raw).unwrap();
 
             let mut s = ThermalState {
                 lining_q32: t, rotor_q32: t, fade: was_fade, over: was_over, ..ThermalState::new(&cfg)
@@ -1265,9 +1263,9 @@ mod tests {
         ] {
             let cfg = ThermalConfig::new(&p).unwrap();
             let raw = cfg.to_raw();
-            assert_eq!(ThermalConfig::from_raw(raw), Ok(cfg), "{p:?}");
+            assert_eq!(ThermalConfig::from_bits(raw), Ok(cfg), "{p:?}");
             // Same coefficients, so the same bits out of the update.
-            let back = ThermalConfig::from_raw(raw).unwrap();
+            let back = ThermalConfig::from_bits(raw).unwrap();
             let (mut a, mut b) = (ThermalState::new(&cfg), ThermalState::new(&back));
             for _ in 0..100 {
                 assert_eq!(
@@ -1291,7 +1289,7 @@ mod tests {
             flag_hysteresis: Celsius::lit("10"),
             measured: None,
         };
-        const CFG: ThermalConfig = match ThermalConfig::from_raw(RAW) {
+        const CFG: ThermalConfig = match ThermalConfig::from_bits(RAW) {
             Ok(c) => c,
             Err(_) => panic!("bad thermal config"),
         };
@@ -1304,7 +1302,7 @@ mod tests {
             .unwrap()
             .to_raw();
         let two = ThermalConfig::new(&two_node_measured()).unwrap().to_raw();
-        let e = |r: ThermalRaw| ThermalConfig::from_raw(r).unwrap_err();
+        let e = |r: ThermalRaw| ThermalConfig::from_bits(r).unwrap_err();
         let coefficient = |field| ThermalError::Coefficient { field };
         assert_eq!(
             e(ThermalRaw {
@@ -1364,7 +1362,7 @@ mod tests {
         r.k_q62[1][1] = K_MIN_Q62 - 1;
         assert_eq!(e(r), ThermalError::TimeConstantTooLongForDt);
         r.k_q62[1][1] = 0;
-        assert!(ThermalConfig::from_raw(r).is_ok(), "adiabatic");
+        assert!(ThermalConfig::from_bits(r).is_ok(), "adiabatic");
         assert_eq!(
             e(ThermalRaw {
                 over_temperature: one.fade_warning,

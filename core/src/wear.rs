@@ -82,8 +82,6 @@ const STEP_MAX_Q48: u128 = 1 << 80;
 /// Wear parameters in SI units as f64 (host, start-up or build time; never per sample).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct WearParams {
-    /// Sample period in seconds, (0, 1].
-    pub dt: f64,
     /// Bedding energy constant E₀ in J, 1 … 10¹³.
     pub bedding_energy: f64,
     /// Specific wear rate in m³/J, ≥ 0 (× [`WEAR_RATE_UNIT`] from 10⁻⁷ cm³/(N·m)).
@@ -154,7 +152,7 @@ const WEAR_SHIFT_MAX: u32 = 83;
 /// A [`WearConfig`] as its integer coefficients, for configurations computed once (on the host
 /// or in a build script) and kept in flash as `const` items.
 ///
-/// [`WearConfig::to_raw`] gives them; [`WearConfig::from_raw`] checks them and builds the
+/// [`WearConfig::to_raw`] gives them; [`WearConfig::from_bits`] checks them and builds the
 /// configuration in a `const` context.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct WearRaw {
@@ -215,14 +213,14 @@ impl WearConfig {
     /// use clampwise_core::wear::{WearConfig, WearParams, WEAR_RATE_UNIT};
     /// // Demo holding-brake pads (invented): 0.4·10⁻⁷ cm³/(N·m), 2 pads of 40 cm², 10 mm thick.
     /// let cfg = WearConfig::new(&WearParams {
-    ///     dt: 1e-3, bedding_energy: 5e6, specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
+    ///     bedding_energy: 5e6, specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
     ///     lining_area: 2.0 * 40e-4, initial_thickness: 0.010, minimum_thickness: 0.002,
-    /// })?;
+    /// }, 1e-3)?;
     /// assert!((cfg.minimum_thickness().to_num::<f64>() - 0.002).abs() < 1e-7);
     /// # Ok::<(), clampwise_core::wear::WearError>(())
     /// ```
-    pub fn new(p: &WearParams) -> Result<Self, WearError> {
-        let dt = finite(p.dt, "dt")?;
+    pub fn new(p: &WearParams, dt_s: f64) -> Result<Self, WearError> {
+        let dt = finite(dt_s, "dt")?;
         if !(dt > 0.0 && dt <= 1.0) {
             return Err(WearError::DtOutOfRange);
         }
@@ -248,7 +246,7 @@ impl WearConfig {
             libm::round(e0 * 281_474_976_710_656.0) as u128,
             libm::round(libm::ldexp(1.0, 79) / e0) as u128,
         );
-        Self::from_raw(WearRaw {
+        Self::from_bits(WearRaw {
             dt_q63,
             e0_q48,
             bedding_recip,
@@ -271,17 +269,17 @@ impl WearConfig {
     ///
     /// ```
     /// use clampwise_core::wear::{WearConfig, WearParams};
-    /// let built = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
+    /// let built = WearConfig::new(&WearParams { bedding_energy: 5e6,
     ///     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01,
-    ///     minimum_thickness: 0.002 })?;
+    ///     minimum_thickness: 0.002 }, 1e-3)?;
     /// let raw = built.to_raw();
-    /// assert_eq!(WearConfig::from_raw(raw), Ok(built));
+    /// assert_eq!(WearConfig::from_bits(raw), Ok(built));
     /// let mut bad = raw;
     /// bad.bedding_recip *= 2; // belongs to E₀/2, not E₀
-    /// assert!(WearConfig::from_raw(bad).is_err());
+    /// assert!(WearConfig::from_bits(bad).is_err());
     /// # Ok::<(), clampwise_core::wear::WearError>(())
     /// ```
-    pub const fn from_raw(raw: WearRaw) -> Result<Self, WearError> {
+    pub const fn from_bits(raw: WearRaw) -> Result<Self, WearError> {
         if raw.dt_q63 == 0 || raw.dt_q63 > 1 << 63 {
             return Err(WearError::DtOutOfRange);
         }
@@ -323,8 +321,8 @@ impl WearConfig {
         })
     }
 
-    /// The integer coefficients, for [`WearConfig::from_raw`] (e.g. to emit them as Rust
-    /// source); `from_raw(cfg.to_raw())` gives `cfg` back, equal in every bit.
+    /// The integer coefficients, for [`WearConfig::from_bits`] (e.g. to emit them as Rust
+    /// source); `from_bits(cfg.to_raw())` gives `cfg` back, equal in every bit.
     pub const fn to_raw(&self) -> WearRaw {
         WearRaw {
             dt_q63: self.dt_q63,
@@ -364,7 +362,7 @@ impl WearConfig {
     fn step_loss_q96(&self, energy_q48: u128) -> u128 {
         // The energy is below 2⁹⁶ and the mantissa at most 2³², so the product is below 2¹²⁸:
         // a widening multiply of the 96-bit energy by the 33-bit mantissa, exact. The shift is
-        // at most 83 (`from_raw`), so it never wraps.
+        // at most 83 (`from_bits`), so it never wraps.
         wide::mul_u96(energy_q48, u128::from(self.wear_mant)).wrapping_shr(self.wear_shift)
     }
 }
@@ -439,8 +437,8 @@ impl WearState {
     /// ```
     /// use clampwise_core::wear::{WearConfig, WearParams, WearState};
     /// use clampwise_core::units::Joules;
-    /// # let cfg = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
-    /// #     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01, minimum_thickness: 0.002 })?;
+    /// # let cfg = WearConfig::new(&WearParams { bedding_energy: 5e6,
+    /// #     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01, minimum_thickness: 0.002 }, 1e-3)?;
     /// let s = WearState::with_history(&cfg, Joules::from_num(5e6));
     /// assert!((s.bedding().to_num::<f64>() - (1.0 - (-1.0f64).exp())).abs() < 1e-8);
     /// # Ok::<(), clampwise_core::wear::WearError>(())
@@ -460,7 +458,7 @@ impl WearState {
     }
 
     /// Restore from raw state words (as saved by [`crate::record`]); `None` if out of range.
-    pub(crate) fn from_raw(energy_q64: u128, unbedded_q62: u64, loss_q96: u128) -> Option<Self> {
+    pub(crate) fn from_bits(energy_q64: u128, unbedded_q62: u64, loss_q96: u128) -> Option<Self> {
         (energy_q64 <= ENERGY_MAX_Q64 && u128::from(unbedded_q62) <= ONE_Q62).then_some(Self {
             energy_q64,
             unbedded_q62,
@@ -498,8 +496,8 @@ impl WearState {
     /// ```
     /// use clampwise_core::wear::{WearConfig, WearParams, WearState};
     /// use clampwise_core::units::Watts;
-    /// let cfg = WearConfig::new(&WearParams { dt: 1e-3, bedding_energy: 5e6,
-    ///     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01, minimum_thickness: 0.002 })?;
+    /// let cfg = WearConfig::new(&WearParams { bedding_energy: 5e6,
+    ///     specific_wear_rate: 4e-14, lining_area: 8e-3, initial_thickness: 0.01, minimum_thickness: 0.002 }, 1e-3)?;
     /// let mut s = WearState::new();
     /// let out = s.update(&cfg, Watts::from_num(-50_000)); // sign does not matter
     /// assert_eq!(out.energy.to_num::<f64>(), 50.0);
@@ -542,7 +540,7 @@ impl WearState {
         // x = dE/E₀ in Q62, capped at 1; ≤ E₀·2⁴⁸ · 2⁷⁹/E₀ ≈ 2¹²⁷ before the shift. From here
         // on every factor is at most 1 in Q62, so the polynomial runs on u64 with 64 × 64-bit
         // products (far less code on a 32-bit core than u128 × u128; the same values).
-        // The product is at most e0_q48 · bedding_recip, which `WearConfig::from_raw` holds
+        // The product is at most e0_q48 · bedding_recip, which `WearConfig::from_bits` holds
         // to 2¹²⁷ within 2⁷⁸: exact in u128, and both factors are below 2⁹⁶ (e0_q48 < 2⁹²,
         // so bedding_recip < 2⁸⁰), which is all `mul_u96` needs.
         let x = u64::try_from(wide::mul_u96(step_q48.min(cfg.e0_q48), cfg.bedding_recip) >> 65)
@@ -716,7 +714,7 @@ mod tests {
         ] {
             let cfg = WearConfig::new(&p).unwrap();
             let raw = cfg.to_raw();
-            assert_eq!(WearConfig::from_raw(raw), Ok(cfg), "{p:?}");
+            assert_eq!(WearConfig::from_bits(raw), Ok(cfg), "{p:?}");
         }
     }
 
@@ -731,7 +729,7 @@ mod tests {
             initial_thickness: Metres::lit("0.01"),
             minimum_thickness: Metres::lit("0.002"),
         };
-        const CFG: WearConfig = match WearConfig::from_raw(RAW) {
+        const CFG: WearConfig = match WearConfig::from_bits(RAW) {
             Ok(c) => c,
             Err(_) => panic!("bad wear config"),
         };
@@ -742,7 +740,7 @@ mod tests {
     #[test]
     fn raw_rejects_what_new_would_not_build() {
         let raw = WearConfig::new(&demo()).unwrap().to_raw();
-        let e = |r: WearRaw| WearConfig::from_raw(r).unwrap_err();
+        let e = |r: WearRaw| WearConfig::from_bits(r).unwrap_err();
         assert_eq!(e(WearRaw { dt_q63: 0, ..raw }), WearError::DtOutOfRange);
         assert_eq!(
             e(WearRaw {
@@ -752,7 +750,7 @@ mod tests {
             WearError::DtOutOfRange
         );
         assert!(
-            WearConfig::from_raw(WearRaw {
+            WearConfig::from_bits(WearRaw {
                 dt_q63: 1 << 63,
                 ..raw
             })
@@ -830,12 +828,12 @@ mod tests {
             unbedded in 0u64..=(1 << 62), loss in 0u128..(1 << 105), min in 0i32..i32::MAX,
             span in 1i32..i32::MAX,
         ) {
-            let cfg = WearConfig::from_raw(WearRaw {
+            let cfg = WearConfig::from_bits(WearRaw {
                 minimum_thickness: Metres::from_bits(min),
                 initial_thickness: Metres::from_bits(min.saturating_add(span).max(min + 1)),
                 ..WearConfig::new(&demo()).unwrap().to_raw()
             }).unwrap();
-            let s = WearState::from_raw(0, unbedded, loss).unwrap();
+            let s = WearState::from_bits(0, unbedded, loss).unwrap();
             let b = (ONE_Q62.saturating_sub(u128::from(unbedded))) >> 32;
             prop_assert_eq!(s.bedding(), Ratio::from_bits(i32::try_from(b).unwrap()));
             let remaining = cfg.initial_thickness.saturating_sub(s.thickness_loss()).max(Metres::ZERO);

@@ -32,7 +32,7 @@ pub use inputs::Inputs;
 pub use uncertainty::Combination;
 
 use crate::adapt::{AdaptGate, AdaptState};
-use crate::config::DeviceConfig;
+use crate::config::{DeviceConfig, TableSet};
 use crate::flags::Flags;
 use crate::friction::FrictionState;
 use crate::sensor::{ChannelMask, ForceSource, Health, SensorState};
@@ -58,15 +58,8 @@ pub struct EstimatorState<const C: usize> {
 /// The estimator for one device: a borrowed, validated configuration (in flash on a target)
 /// and the mutable state.
 #[derive(Clone, Debug)]
-pub struct Estimator<
-    'c,
-    const C: usize,
-    const NF: usize,
-    const NB: usize,
-    const NT: usize,
-    const NV: usize,
-> {
-    cfg: &'c DeviceConfig<C, NF, NB, NT, NV>,
+pub struct Estimator<'c, T, const C: usize> {
+    cfg: &'c DeviceConfig<T, C>,
     state: EstimatorState<C>,
 }
 
@@ -79,12 +72,10 @@ fn signed(direction: i8, magnitude: NewtonMetres) -> NewtonMetres {
     }
 }
 
-impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
-    Estimator<'c, C, NF, NB, NT, NV>
-{
+impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     /// A new estimator: lining at ambient temperature, new (bedding 0, no wear), holding,
     /// adaptation factor 1.
-    pub fn new(cfg: &'c DeviceConfig<C, NF, NB, NT, NV>) -> Self {
+    pub fn new(cfg: &'c DeviceConfig<T, C>) -> Self {
         let state = EstimatorState {
             sensor: SensorState::new(),
             friction: FrictionState::new(),
@@ -97,7 +88,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     }
 
     /// The configuration.
-    pub const fn config(&self) -> &'c DeviceConfig<C, NF, NB, NT, NV> {
+    pub const fn config(&self) -> &'c DeviceConfig<T, C> {
         self.cfg
     }
 
@@ -136,12 +127,12 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         let slip_speed = inputs.slip_speed();
         let lining_before = st.thermal.lining_temperature();
         let fric = match slip_speed {
-            Some(v) => st
-                .friction
-                .update(&cfg.friction, v, lining_before, Ratio::ONE),
+            Some(v) => cfg
+                .tables
+                .friction_sample(&mut st.friction, v, lining_before, Ratio::ONE),
             None => {
                 flags.insert(Flags::SPEED_UNKNOWN);
-                cfg.friction.slip_unknown(Ratio::ONE)
+                cfg.tables.slip_unknown(Ratio::ONE)
             }
         };
         flags.set(Flags::OUT_OF_RANGE, fric.clamped);
@@ -157,7 +148,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         let force = force.max(Newtons::ZERO);
 
         // 3. Effective radius at this force and bedding.
-        let radius = cfg.radius.lookup(force, bedding);
+        let radius = cfg.tables.lever_arm(force, bedding);
         flags.set(
             Flags::OUT_OF_RANGE,
             flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,

@@ -4,14 +4,12 @@
 
 use super::Estimator;
 use crate::adapt::AdaptState;
-use crate::config::DeviceConfig;
+use crate::config::{DeviceConfig, TableSet};
 use crate::record::{RECORD_LEN, RecordError, StateRecord};
 use crate::units::Ratio;
 use crate::wear::WearState;
 
-impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
-    Estimator<'c, C, NF, NB, NT, NV>
-{
+impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     /// Resume from a saved state record (see [`Estimator::save`]): wear, bedding, temperatures
     /// and the adaptation's factor and covariance. Sensor filters and the stick/slip decision
     /// start afresh. Integer-only, cannot panic.
@@ -20,10 +18,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     /// The [`RecordError`] saying why the record was not loaded: corrupt, truncated or of
     /// another version ([`StateRecord::from_bytes`]), made for another configuration, or
     /// holding values this configuration cannot produce ([`StateRecord::check`]).
-    pub fn restore(
-        cfg: &'c DeviceConfig<C, NF, NB, NT, NV>,
-        record: &[u8],
-    ) -> Result<Self, RecordError> {
+    pub fn restore(cfg: &'c DeviceConfig<T, C>, record: &[u8]) -> Result<Self, RecordError> {
         Self::resume(cfg, &StateRecord::from_bytes(record)?)
     }
 
@@ -31,10 +26,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     ///
     /// # Errors
     /// The [`RecordError`] of [`StateRecord::check`].
-    pub fn resume(
-        cfg: &'c DeviceConfig<C, NF, NB, NT, NV>,
-        record: &StateRecord,
-    ) -> Result<Self, RecordError> {
+    pub fn resume(cfg: &'c DeviceConfig<T, C>, record: &StateRecord) -> Result<Self, RecordError> {
         record.check(cfg)?;
         let mut est = Self::new(cfg);
         est.state.thermal = record.thermal();
@@ -68,7 +60,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
         let (energy, unbedded, loss) = wear.raw();
         // The initial thickness is positive (`WearConfig` holds 0 ≤ minimum < initial).
         let lining_q96 = u128::from(cfg.wear.initial_thickness().to_bits().unsigned_abs()) << 72;
-        let wear = WearState::from_raw(energy, unbedded, loss.min(lining_q96)).unwrap_or(wear);
+        let wear = WearState::from_bits(energy, unbedded, loss.min(lining_q96)).unwrap_or(wear);
         let (factor, covariance) = self
             .state
             .adapt

@@ -88,7 +88,7 @@ pub fn build_radius_table<const NF: usize, const NB: usize>(
         *arm = contact.lever_arm(b)?;
     }
     let z = [arms; NF];
-    Ok(RadiusTable::from_f64(
+    Ok(RadiusTable::new(
         force_breakpoints_n,
         bedding_breakpoints,
         &z,

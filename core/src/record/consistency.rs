@@ -4,7 +4,7 @@
 //! Integers only: the expected bedding `exp(−E/E₀)` comes from a Horner-form Taylor series in
 //! Q62 and a power of `e⁻¹`, not from `libm`, so the check runs on the target at start-up.
 
-use crate::config::DeviceConfig;
+use crate::config::{DeviceConfig, TableSet};
 use crate::units::{Metres, Ratio};
 use crate::wear::{ENERGY_MAX_Q64, WearConfig};
 
@@ -112,15 +112,9 @@ impl StateRecord {
     /// [`RecordError::BeddingContradictsEnergy`], [`RecordError::ThicknessLossBeyondLining`],
     /// [`RecordError::ThicknessLossContradictsEnergy`], [`RecordError::TwoTemperaturesOneNode`],
     /// [`RecordError::CorrectionOutOfBand`], [`RecordError::CovarianceOutOfRange`].
-    pub fn check<
-        const C: usize,
-        const NF: usize,
-        const NB: usize,
-        const NT: usize,
-        const NV: usize,
-    >(
+    pub fn check<T: TableSet, const C: usize>(
         &self,
-        cfg: &DeviceConfig<C, NF, NB, NT, NV>,
+        cfg: &DeviceConfig<T, C>,
     ) -> Result<(), RecordError> {
         let config = cfg.checksum();
         if self.config_checksum != config {
@@ -214,14 +208,16 @@ mod tests {
     const Q62: f64 = 4_611_686_018_427_387_904.0;
 
     fn wear_cfg(bedding_energy: f64, dt: f64) -> WearConfig {
-        WearConfig::new(&WearParams {
+        WearConfig::new(
+            &WearParams {
+                bedding_energy,
+                specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
+                lining_area: 80e-4,
+                initial_thickness: 0.010,
+                minimum_thickness: 0.002,
+            },
             dt,
-            bedding_energy,
-            specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
-            lining_area: 80e-4,
-            initial_thickness: 0.010,
-            minimum_thickness: 0.002,
-        })
+        )
         .unwrap()
     }
 

@@ -317,7 +317,7 @@ impl StateRecord {
             sequence,
             config_checksum,
             wear: *wear,
-            thermal: ThermalState::from_raw(rotor, lining),
+            thermal: ThermalState::from_bits(rotor, lining),
             adaptation_factor,
             adaptation_covariance,
         }
@@ -436,11 +436,11 @@ impl StateRecord {
         if energy > crate::wear::ENERGY_MAX_Q64 {
             return Err(RecordError::EnergyOutOfRange);
         }
-        let wear = WearState::from_raw(energy, unbedded, u128::from_le_bytes(take(b, 32)))
+        let wear = WearState::from_bits(energy, unbedded, u128::from_le_bytes(take(b, 32)))
             .ok_or(RecordError::BeddingOutOfRange)?;
         let rotor = i64::from_le_bytes(take(b, 56));
         let lining = i64::from_le_bytes(take(b, 64));
-        let thermal = ThermalState::from_raw(rotor, lining);
+        let thermal = ThermalState::from_bits(rotor, lining);
         let (rotor_held, lining_held) = thermal.raw();
         if rotor_held != rotor {
             return Err(RecordError::TemperatureOutOfRange {
@@ -471,14 +471,16 @@ mod tests {
     use crate::wear::{WEAR_RATE_UNIT, WearConfig, WearParams};
 
     fn sample_record() -> StateRecord {
-        let cfg = WearConfig::new(&WearParams {
-            dt: 1e-3,
-            bedding_energy: 5e6,
-            specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
-            lining_area: 80e-4,
-            initial_thickness: 0.01,
-            minimum_thickness: 0.002,
-        })
+        let cfg = WearConfig::new(
+            &WearParams {
+                bedding_energy: 5e6,
+                specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
+                lining_area: 80e-4,
+                initial_thickness: 0.01,
+                minimum_thickness: 0.002,
+            },
+            1e-3,
+        )
         .unwrap();
         let mut wear = WearState::with_history(&cfg, Joules::from_num(3.3e6));
         wear.update(&cfg, Watts::from_num(12_345.678));

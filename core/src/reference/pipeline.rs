@@ -67,12 +67,12 @@
 //!     contact: Contact::new(Annulus::new(0.060, 0.100)?, 6, None)?,
 //!     friction,
 //!     thermal: ThermalParams {
-//!         dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
+//!         rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
 //!         cooling: Cooling::TimeConstant(613.0), ambient: 20.0, lining: None,
 //!         fade_warning: 350.0, over_temperature: 500.0, flag_hysteresis: 10.0, measured: None,
 //!     },
 //!     wear: WearParams {
-//!         dt: 1e-3, bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
+//!         bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
 //!         initial_thickness: 0.010, minimum_thickness: 0.002,
 //!     },
 //!     adapt: None,
@@ -89,7 +89,7 @@
 //! # Ok::<(), clampwise_core::geometry::GeometryError>(())
 //! ```
 
-use crate::config::DeviceConfig;
+use crate::config::{DeviceConfig, Tables};
 use crate::estimator::{Combination, ContactState};
 use crate::geometry::Contact;
 use crate::thermal::ThermalParams;
@@ -232,9 +232,9 @@ pub struct PipelineParts<'a, const NT: usize, const NV: usize> {
     pub contact: Contact<'a>,
     /// μ model (with its stick/slip state).
     pub friction: FrictionModel<NT, NV>,
-    /// Thermal parameters (ambient, capacities, cooling); `dt` is ignored for `sample_period`.
+    /// Thermal parameters (ambient, capacities, cooling); stepped at `sample_period`.
     pub thermal: ThermalParams,
-    /// Wear parameters; `dt` is ignored for `sample_period`.
+    /// Wear parameters; stepped at `sample_period`.
     pub wear: WearParams,
     /// Adaptation, when configured.
     pub adapt: Option<RlsParams>,
@@ -256,7 +256,7 @@ impl<'a, const NT: usize, const NV: usize> PipelineParts<'a, NT, NV> {
     /// geometry, thermal and wear models (which the device holds only as fixed-point
     /// coefficients) from their SI parameters, and the adaptation from `adapt`.
     pub fn from_device<const C: usize, const NF: usize, const NB: usize>(
-        cfg: &DeviceConfig<C, NF, NB, NT, NV>,
+        cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
         contact: Contact<'a>,
         thermal: &ThermalParams,
         wear: &WearParams,
@@ -265,7 +265,7 @@ impl<'a, const NT: usize, const NV: usize> PipelineParts<'a, NT, NV> {
         Self {
             sample_period: cfg.sample_period().to_num(),
             contact,
-            friction: FrictionModel::from_config(cfg.friction()),
+            friction: FrictionModel::from_config(cfg.tables().friction()),
             thermal: *thermal,
             wear: *wear,
             adapt,

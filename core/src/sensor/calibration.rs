@@ -224,7 +224,73 @@ pub struct Calibrated {
     pub temperature_clamped: bool,
 }
 
+impl AdcRails {
+    /// The rails of a two's-complement converter of `bits` bits (1…32), with codes within
+    /// `margin` of either end counting as at the rail.
+    ///
+    /// ```
+    /// use clampwise_core::sensor::AdcRails;
+    /// let r = AdcRails::signed_bits(24, 8);
+    /// assert_eq!((r.low, r.high, r.margin), (-8_388_608, 8_388_607, 8));
+    /// ```
+    pub const fn signed_bits(bits: u8, margin: u32) -> Self {
+        let bits = if bits == 0 {
+            1
+        } else if bits > 32 {
+            32
+        } else {
+            bits
+        };
+        let half = 1i64 << (bits - 1);
+        // −2^(bits−1) and 2^(bits−1) − 1 lie within i32 for bits ≤ 32.
+        #[allow(clippy::cast_possible_truncation)]
+        Self {
+            low: -half as i32,
+            high: (half - 1) as i32,
+            margin,
+        }
+    }
+}
+
 impl ChannelCalibration {
+    /// A linear calibration from SI values: `gain_n_per_count` newtons per ADC count
+    /// (non-zero; negative for an inverted bridge) and `offset_n` newtons at zero counts, with
+    /// no temperature compensation.
+    ///
+    /// # Errors
+    /// [`SensorError::Channel`] (channel 0) for a value that is not finite, not representable
+    /// or zero, or rails that [`ChannelCalibration::validate`] refuses.
+    pub fn linear(
+        gain_n_per_count: f64,
+        offset_n: f64,
+        rails: AdcRails,
+    ) -> Result<Self, SensorError> {
+        let bad = |field, problem| SensorError::Channel {
+            channel: 0,
+            field,
+            problem,
+        };
+        let gain = if gain_n_per_count.is_finite() {
+            NewtonsPerCount::checked_from_num(gain_n_per_count)
+                .ok_or(bad("gain", Problem::OutOfRange))?
+        } else {
+            return Err(bad("gain", Problem::NotFinite));
+        };
+        let offset = if offset_n.is_finite() {
+            Newtons::checked_from_num(offset_n).ok_or(bad("offset", Problem::OutOfRange))?
+        } else {
+            return Err(bad("offset", Problem::NotFinite));
+        };
+        let cal = Self {
+            gain,
+            offset,
+            rails,
+            temperature: None,
+        };
+        cal.validate(0)?;
+        Ok(cal)
+    }
+
     /// Check the calibration of channel `channel` (used by [`super::SensorConfig::new`]).
     ///
     /// # Errors

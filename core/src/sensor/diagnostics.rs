@@ -230,6 +230,43 @@ pub struct DiagnosticLimits {
     pub max_hold_samples: u16,
 }
 
+impl DiagnosticLimits {
+    /// Limits from SI values with the usual settings for the rest \[practice\]: each
+    /// diagnostic raised after 3 samples in a row and cleared after 10, a rejected sample held
+    /// for at most 2 samples, no stuck check. `force_min_n` … `force_max_n` is the plausible
+    /// clamp force (N), `max_rate_n_per_s` the fastest change the actuator can make (N/s) and
+    /// `noise_band_n` a healthy channel's peak-to-peak noise (N).
+    ///
+    /// # Errors
+    /// [`SensorError::Field`] naming a value that is not finite or not representable; the
+    /// relations between them are checked by [`super::SensorConfig::new`].
+    pub fn new(
+        force_min_n: f64,
+        force_max_n: f64,
+        max_rate_n_per_s: f64,
+        noise_band_n: f64,
+    ) -> Result<Self, SensorError> {
+        fn fixed<T: fixed::traits::Fixed>(v: f64, field: &'static str) -> Result<T, SensorError> {
+            if !v.is_finite() {
+                return Err(field_err(field, Problem::NotFinite));
+            }
+            T::checked_from_num(v).ok_or(field_err(field, Problem::OutOfRange))
+        }
+        Ok(Self {
+            force_min: fixed(force_min_n, "limits.force_min")?,
+            force_max: fixed(force_max_n, "limits.force_max")?,
+            max_rate: fixed(max_rate_n_per_s, "limits.max_rate")?,
+            noise_band: fixed(noise_band_n, "limits.noise_band")?,
+            stuck: None,
+            debounce: DebounceSet::uniform(Debounce {
+                raise_after: 3,
+                clear_after: 10,
+            }),
+            max_hold_samples: 2,
+        })
+    }
+}
+
 /// Validated limits with the per-sample constants derived from the sample rate.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]

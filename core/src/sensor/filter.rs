@@ -110,7 +110,7 @@ impl LowPass {
                 field,
                 problem: Problem::OutOfRange,
             })?;
-        Self::from_coefficient_bits(bits, sample_rate_hz).map_err(|e| match e {
+        Self::from_bits(bits, sample_rate_hz).map_err(|e| match e {
             SensorError::Field {
                 problem: Problem::CutOffTooLow,
                 ..
@@ -127,7 +127,7 @@ impl LowPass {
     /// # Errors
     /// `filter.sample_rate_hz` zero.
     pub const fn pass_through(sample_rate_hz: u32) -> Result<Self, SensorError> {
-        Self::from_coefficient_bits(ALPHA_ONE, sample_rate_hz)
+        Self::from_bits(ALPHA_ONE, sample_rate_hz)
     }
 
     /// From a coefficient already computed (Q4.60 bits of α, 2⁻²⁰ ≤ α ≤ 1), e.g. emitted by a
@@ -136,10 +136,7 @@ impl LowPass {
     /// # Errors
     /// `filter.sample_rate_hz` zero; `filter.coefficient` above 1 ([`Problem::OutOfRange`]) or
     /// below 2⁻²⁰ ([`Problem::CutOffTooLow`]).
-    pub const fn from_coefficient_bits(
-        alpha_q60: i64,
-        sample_rate_hz: u32,
-    ) -> Result<Self, SensorError> {
+    pub const fn from_bits(alpha_q60: i64, sample_rate_hz: u32) -> Result<Self, SensorError> {
         if sample_rate_hz == 0 {
             return Err(SensorError::Field {
                 field: "filter.sample_rate_hz",
@@ -287,7 +284,7 @@ mod tests {
                 problem: Problem::CutOffTooLow
             })
         );
-        assert!(LowPass::from_coefficient_bits(ALPHA_ONE + 1, 1000).is_err());
+        assert!(LowPass::from_bits(ALPHA_ONE + 1, 1000).is_err());
     }
 
     #[test]

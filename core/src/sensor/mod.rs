@@ -838,7 +838,7 @@ mod tests {
         response_time: Seconds::ZERO,
     };
     // α = 1/16, from a build script for instance.
-    const FILTER: LowPass = match LowPass::from_coefficient_bits(1 << 56, 1000) {
+    const FILTER: LowPass = match LowPass::from_bits(1 << 56, 1000) {
         Ok(f) => f,
         Err(_) => panic!("bad filter"),
     };
@@ -888,7 +888,7 @@ mod tests {
             build([CAL; 5], FILTER, LIMITS, VOTING, t),
             SensorError::ChannelCount { channels: 5 }
         );
-        let other_rate = LowPass::from_coefficient_bits(1 << 56, 2000).unwrap();
+        let other_rate = LowPass::from_bits(1 << 56, 2000).unwrap();
         assert_eq!(
             build([CAL; 1], other_rate, LIMITS, VOTING, t),
             field("filter", Problem::SampleRateMismatch)

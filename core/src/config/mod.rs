@@ -10,10 +10,14 @@
 
 use core::fmt;
 
+mod params;
+mod tables;
+
+pub use params::{DeviceError, DeviceParams, SensorParams};
+pub use tables::{TableSet, Tables};
+
 use crate::adapt::AdaptConfig;
 use crate::estimator::Combination;
-use crate::friction::FrictionConfig;
-use crate::geometry::RadiusTable;
 use crate::sensor::SensorConfig;
 use crate::thermal::ThermalConfig;
 use crate::units::{Newtons, Ratio, Seconds};
@@ -109,22 +113,15 @@ pub struct Tolerances {
     pub combination: Combination,
 }
 
-/// The whole device: `C` force channels, an `NF` × `NB` friction-radius table (force ×
-/// bedding) and an `NT` × `NV` μ table (temperature × slip speed).
+/// The whole device: its tables `T` (usually [`Tables`], at their exact sizes) and `C` force
+/// channels.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct DeviceConfig<
-    const C: usize,
-    const NF: usize,
-    const NB: usize,
-    const NT: usize,
-    const NV: usize,
-> {
+pub struct DeviceConfig<T, const C: usize> {
     pub(crate) sample_period: Seconds,
     /// log₂ of `thermal_wear_every` (0 ..= 5).
     pub(crate) thermal_wear_shift: u8,
     pub(crate) faces: u8,
-    pub(crate) radius: RadiusTable<NF, NB>,
-    pub(crate) friction: FrictionConfig<NT, NV>,
+    pub(crate) tables: T,
     pub(crate) thermal: ThermalConfig,
     pub(crate) wear: WearConfig,
     pub(crate) sensor: SensorConfig<C>,
@@ -135,13 +132,7 @@ pub struct DeviceConfig<
 
 /// The parts of a [`DeviceConfig`], each already validated by its own constructor.
 #[derive(Clone, Copy, Debug)]
-pub struct DeviceParts<
-    const C: usize,
-    const NF: usize,
-    const NB: usize,
-    const NT: usize,
-    const NV: usize,
-> {
+pub struct DeviceParts<T, const C: usize> {
     /// Control-loop sample period (s).
     pub sample_period: Seconds,
     /// The thermal and wear states advance once every this many samples (1, 2, 4, 8, 16 or
@@ -151,10 +142,9 @@ pub struct DeviceParts<
     pub thermal_wear_every: u8,
     /// Number of friction interfaces sharing the clamp force (1…255).
     pub faces: u8,
-    /// Per-face lever arm r_e (m, already divided by sin α for a cone) over force × bedding.
-    pub radius: RadiusTable<NF, NB>,
-    /// μ model.
-    pub friction: FrictionConfig<NT, NV>,
+    /// The friction-radius table (per-face lever arm r_e in m, already divided by sin α for a
+    /// cone, over force × bedding) and the μ model.
+    pub tables: T,
     /// Thermal model.
     pub thermal: ThermalConfig,
     /// Wear and bedding model.
@@ -177,14 +167,12 @@ const fn same_period(a: Seconds, b: Seconds) -> bool {
     diff <= a / 1_000_000 + 1
 }
 
-impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
-    DeviceConfig<C, NF, NB, NT, NV>
-{
+impl<T: TableSet, const C: usize> DeviceConfig<T, C> {
     /// Check the parts against each other and build the device configuration.
     ///
     /// # Errors
     /// The [`ConfigError`] naming the first field at fault.
-    pub const fn new(parts: DeviceParts<C, NF, NB, NT, NV>) -> Result<Self, ConfigError> {
+    pub const fn from_parts(parts: DeviceParts<T, C>) -> Result<Self, ConfigError> {
         let period = parts.sample_period.to_bits();
         if period <= 0 || period > Seconds::ONE.to_bits() {
             return Err(ConfigError::SamplePeriod);
@@ -237,8 +225,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             sample_period: parts.sample_period,
             thermal_wear_shift,
             faces: parts.faces,
-            radius: parts.radius,
-            friction: parts.friction,
+            tables: parts.tables,
             thermal: parts.thermal,
             wear: parts.wear,
             sensor: parts.sensor,
@@ -263,14 +250,9 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
         self.faces
     }
 
-    /// The friction-radius table.
-    pub const fn radius_table(&self) -> &RadiusTable<NF, NB> {
-        &self.radius
-    }
-
-    /// The μ model.
-    pub const fn friction(&self) -> &FrictionConfig<NT, NV> {
-        &self.friction
+    /// The friction-radius and μ tables.
+    pub const fn tables(&self) -> &T {
+        &self.tables
     }
 
     /// The thermal model.
