@@ -139,7 +139,7 @@ fn lookup(c: &mut Criterion) {
     // Table1: μ against temperature, 8 breakpoints (the doc example of `table`, extended).
     let t1x = [-40.0, 50.0, 100.0, 200.0, 300.0, 400.0, 600.0, 900.0];
     let t1y = [0.36, 0.38, 0.38, 0.37, 0.33, 0.30, 0.24, 0.18];
-    let t1 = Table1::<U16, U30, 8>::from_f64(&t1x, &t1y).expect("table1");
+    let t1 = Table1::<U16, U30, 8>::new(&t1x, &t1y).expect("table1");
     let t1f = Table1F32 {
         x: t1x.map(|v| v as f32),
         y: t1y.map(|v| v as f32),
@@ -148,7 +148,7 @@ fn lookup(c: &mut Criterion) {
     let ax: [f64; 8] = core::array::from_fn(|i| (i * i) as f64 * 10.0);
     let z: [[f64; 8]; 8] =
         core::array::from_fn(|i| core::array::from_fn(|j| ((i + 2 * j) as f64).sqrt()));
-    let t2 = Table2::<U16, U16, U24, 8, 8>::from_f64(&ax, &ax, &z).expect("table2");
+    let t2 = Table2::<U16, U16, U24, 8, 8>::new(&ax, &ax, &z).expect("table2");
     let t2f = Table2F32::from_f64(&ax, &ax, &z);
 
     let temps = spread(-60.0, 950.0, 3);

@@ -43,7 +43,7 @@ pub fn full() -> Result<PlainFull, GeometryError> {
     for (o, a) in row.iter_mut().zip(arms) {
         *o = a?;
     }
-    let thermal = device::thermal_params(true, device::THERMAL_WEAR_EVERY);
+    let thermal = device::thermal_params(true);
     let wear = device::wear_params();
     let mut cfg = PlainConfig::from_parts(&PlainParts {
         radius: (&RADIUS_FORCES, &RADIUS_BEDDING, &[row; 3]),
@@ -51,6 +51,8 @@ pub fn full() -> Result<PlainFull, GeometryError> {
         friction: &FULL_FRICTION,
         thermal: &thermal,
         wear: &wear,
+        sample_period_s: device::DT,
+        thermal_wear_every: device::THERMAL_WEAR_EVERY,
     });
     sensor(&mut cfg);
     cfg.compensation = Some(PlainCompensation {
@@ -81,7 +83,7 @@ pub fn full() -> Result<PlainFull, GeometryError> {
 pub fn minimal() -> Result<PlainMinimal, GeometryError> {
     let contact = device::contact()?;
     let row = [contact.lever_arm(0.0)?, contact.lever_arm(1.0)?];
-    let thermal = device::thermal_params(false, device::THERMAL_WEAR_EVERY);
+    let thermal = device::thermal_params(false);
     let wear = device::wear_params();
     let mut cfg = PlainConfig::from_parts(&PlainParts {
         radius: (&[0.0, 250e3], &[0.0, 1.0], &[row; 2]),
@@ -93,6 +95,8 @@ pub fn minimal() -> Result<PlainMinimal, GeometryError> {
         friction: &MINIMAL_FRICTION,
         thermal: &thermal,
         wear: &wear,
+        sample_period_s: device::DT,
+        thermal_wear_every: device::THERMAL_WEAR_EVERY,
     });
     sensor(&mut cfg);
     Ok(cfg)

@@ -17,25 +17,27 @@
 //! | uncertainty | root-sum-square (integer square root) | worst case |
 
 use clampwise_core::adapt::{AdaptConfig, AdaptError};
-use clampwise_core::config::{ConfigError, DeviceConfig, DeviceParts, Limits, Tolerances};
+use clampwise_core::config::{
+    DeviceConfig, DeviceError as CoreDeviceError, DeviceParams, Limits, SensorParams, Tables,
+    Tolerances,
+};
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::{FrictionConfig, FrictionError, FrictionParams, MuTable};
 use clampwise_core::geometry::{Annulus, Contact, GeometryError, Shape, build_radius_table};
 use clampwise_core::sensor::{
     ActuatorCommand, ActuatorTransfer, AdcRails, ChannelCalibration, Debounce, DebounceSet,
-    DiagnosticLimits, LowPass, NewtonsPerCommand, NewtonsPerCount, NewtonsPerKelvin,
-    NewtonsPerSecond, PerKelvin, SensorConfig, SensorError, StuckCheck, TemperatureCompensation,
-    VotingLimits,
+    DiagnosticLimits, NewtonsPerCommand, NewtonsPerCount, NewtonsPerKelvin, NewtonsPerSecond,
+    PerKelvin, SensorError, StuckCheck, TemperatureCompensation, VotingLimits,
 };
 use clampwise_core::table::TableError;
-use clampwise_core::thermal::{Cooling, LiningNode, ThermalConfig, ThermalError, ThermalParams};
+use clampwise_core::thermal::{Cooling, LiningNode, ThermalError, ThermalParams};
 use clampwise_core::units::{Celsius, NewtonMetres, Newtons, Ratio, Seconds};
-use clampwise_core::wear::{WearConfig, WearError, WearParams};
+use clampwise_core::wear::{WearError, WearParams};
 
 /// The fully featured device: 3 channels, 3 × 3 radius table, 6 × 5 μ table.
-pub type FullDevice = DeviceConfig<3, 3, 3, 6, 5>;
+pub type FullDevice = DeviceConfig<Tables<3, 3, 6, 5>, 3>;
 /// The minimal device: 1 channel, 2 × 2 radius table, 3 × 3 μ table.
-pub type MinimalDevice = DeviceConfig<1, 2, 2, 3, 3>;
+pub type MinimalDevice = DeviceConfig<Tables<2, 2, 3, 3>, 1>;
 
 /// Sample period, s.
 pub const DT: f64 = 1e-3;
@@ -106,8 +108,8 @@ pub enum DeviceError {
     Sensor(SensorError),
     /// Adaptation.
     Adapt(AdaptError),
-    /// The device as a whole.
-    Config(ConfigError),
+    /// The device as a whole (period, thermal, wear, sensors).
+    Device(CoreDeviceError),
 }
 
 impl core::fmt::Display for DeviceError {
@@ -120,7 +122,7 @@ impl core::fmt::Display for DeviceError {
             Self::Wear(e) => write!(f, "wear: {e}"),
             Self::Sensor(e) => write!(f, "sensor: {e}"),
             Self::Adapt(e) => write!(f, "adaptation: {e}"),
-            Self::Config(e) => write!(f, "device: {e}"),
+            Self::Device(e) => write!(f, "{e}"),
         }
     }
 }
@@ -139,7 +141,7 @@ macro_rules! from_error {
 from_error!(
     GeometryError => Geometry, TableError => Table, FrictionError => Friction,
     ThermalError => Thermal, WearError => Wear, SensorError => Sensor, AdaptError => Adapt,
-    ConfigError => Config,
+    CoreDeviceError => Device,
 );
 
 /// The caliper's contact: the annular track on both faces of the disc.
@@ -154,11 +156,9 @@ pub fn contact() -> Result<Contact<'static>, GeometryError> {
     )
 }
 
-/// Thermal parameters; `two_node` adds the lining node; built for a model advanced every
-/// `every` samples.
-pub fn thermal_params(two_node: bool, every: u8) -> ThermalParams {
+/// Thermal parameters; `two_node` adds the lining node.
+pub fn thermal_params(two_node: bool) -> ThermalParams {
     ThermalParams {
-        dt: DT * f64::from(every),
         rotor_mass: 8.0,
         rotor_specific_heat: 460.0,
         rotor_share: 0.9,
@@ -179,7 +179,6 @@ pub fn thermal_params(two_node: bool, every: u8) -> ThermalParams {
 /// Wear parameters (demo lining).
 pub const fn wear_params() -> WearParams {
     WearParams {
-        dt: DT,
         bedding_energy: BEDDING_ENERGY,
         specific_wear_rate: 4e-14,
         lining_area: 8e-3,
@@ -240,7 +239,7 @@ pub const ADAPT: (f64, f64, f64, f64, f64) = (0.7, 1.3, 0.995, 5000.0, 0.02);
 /// Only if the constants above are wrong.
 pub fn full() -> Result<FullDevice, DeviceError> {
     let radius = build_radius_table(&contact()?, &RADIUS_FORCES, &RADIUS_BEDDING)?;
-    let mu = MuTable::from_f64(&MU_TEMPERATURES, &MU_SPEEDS, &MU_VALUES)?;
+    let mu = MuTable::new(&MU_TEMPERATURES, &MU_SPEEDS, &MU_VALUES)?;
     let compensation = TemperatureCompensation {
         reference: Celsius::from_num(20),
         min: Celsius::from_num(-40),
@@ -252,23 +251,21 @@ pub fn full() -> Result<FullDevice, DeviceError> {
         time: Seconds::from_num(0.5),
         command_span: ActuatorCommand::from_num(2),
     };
-    let sensor = SensorConfig::new(
-        RATE_HZ,
-        [channel(Some(compensation)); 3],
-        LowPass::new(200.0, RATE_HZ)?,
-        limits(Some(stuck)),
-        VOTING,
-        Some(FALLBACK),
-    )?;
+    let sensor = SensorParams {
+        channels: [channel(Some(compensation)); 3],
+        filter_cutoff_hz: 200.0,
+        limits: limits(Some(stuck)),
+        voting: VOTING,
+        fallback: Some(FALLBACK),
+    };
     let (lo, hi, lambda, fs, excitation) = ADAPT;
-    Ok(DeviceConfig::new(DeviceParts {
-        sample_period: Seconds::from_num(DT),
+    Ok(DeviceConfig::new(&DeviceParams {
+        sample_period_s: DT,
         thermal_wear_every: THERMAL_WEAR_EVERY,
         faces: FACES,
-        radius,
-        friction: FrictionConfig::new(mu, &FULL_FRICTION)?,
-        thermal: ThermalConfig::new(&thermal_params(true, THERMAL_WEAR_EVERY))?,
-        wear: WearConfig::new(&wear_params())?,
+        tables: Tables::new(radius, FrictionConfig::new(mu, &FULL_FRICTION)?),
+        thermal: thermal_params(true),
+        wear: wear_params(),
         sensor,
         adapt: Some(AdaptConfig::new(
             lo,
@@ -295,27 +292,25 @@ pub fn full() -> Result<FullDevice, DeviceError> {
 /// Only if the constants above are wrong.
 pub fn minimal() -> Result<MinimalDevice, DeviceError> {
     let radius = build_radius_table(&contact()?, &[0.0, 250e3], &[0.0, 1.0])?;
-    let mu = MuTable::from_f64(
+    let mu = MuTable::new(
         &[0.0, 200.0, 400.0],
         &[0.0, 50.0, 200.0],
         &[[0.40, 0.39, 0.37], [0.38, 0.37, 0.35], [0.30, 0.29, 0.27]],
     )?;
-    let sensor = SensorConfig::new(
-        RATE_HZ,
-        [channel(None)],
-        LowPass::new(200.0, RATE_HZ)?,
-        limits(None),
-        VOTING,
-        None,
-    )?;
-    Ok(DeviceConfig::new(DeviceParts {
-        sample_period: Seconds::from_num(DT),
+    let sensor = SensorParams {
+        channels: [channel(None)],
+        filter_cutoff_hz: 200.0,
+        limits: limits(None),
+        voting: VOTING,
+        fallback: None,
+    };
+    Ok(DeviceConfig::new(&DeviceParams {
+        sample_period_s: DT,
         thermal_wear_every: THERMAL_WEAR_EVERY,
         faces: FACES,
-        radius,
-        friction: FrictionConfig::new(mu, &MINIMAL_FRICTION)?,
-        thermal: ThermalConfig::new(&thermal_params(false, THERMAL_WEAR_EVERY))?,
-        wear: WearConfig::new(&wear_params())?,
+        tables: Tables::new(radius, FrictionConfig::new(mu, &MINIMAL_FRICTION)?),
+        thermal: thermal_params(false),
+        wear: wear_params(),
         sensor,
         adapt: None,
         limits: Limits {

@@ -38,7 +38,7 @@ use std::error::Error;
 use std::fmt::Write as _;
 use std::path::Path;
 
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
 use clampwise_core::estimator::{Combination, ContactState, Estimator, Inputs};
 use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
 use clampwise_core::geometry::{Contact, build_radius_table};
@@ -75,7 +75,7 @@ pub const BOUND: f64 = 1e-3;
 /// Fraction of full scale above which [`BOUND`] applies.
 pub const BOUND_FROM: f64 = 0.05;
 
-type EnvelopeDevice = DeviceConfig<1, 3, 3, 6, 5>;
+type EnvelopeDevice = DeviceConfig<Tables<3, 3, 6, 5>, 1>;
 
 /// One grid cell.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -148,7 +148,7 @@ pub struct Envelope {
 
 fn envelope_device(contact: &Contact<'_>) -> Result<EnvelopeDevice, Box<dyn Error>> {
     let radius = build_radius_table(contact, &RADIUS_FORCES, &RADIUS_BEDDING)?;
-    let mu = MuTable::from_f64(&MU_TEMPERATURES, &MU_SPEEDS, &MU_VALUES)?;
+    let mu = MuTable::new(&MU_TEMPERATURES, &MU_SPEEDS, &MU_VALUES)?;
     let channel = ChannelCalibration {
         gain: NewtonsPerCount::from_num(1.0 / COUNTS_PER_NEWTON),
         offset: Newtons::ZERO,
@@ -183,14 +183,13 @@ fn envelope_device(contact: &Contact<'_>) -> Result<EnvelopeDevice, Box<dyn Erro
         voting,
         None,
     )?;
-    Ok(DeviceConfig::new(DeviceParts {
+    Ok(DeviceConfig::from_parts(DeviceParts {
         sample_period: Seconds::from_num(device::DT),
         thermal_wear_every: 1,
         faces: device::FACES,
-        radius,
-        friction: FrictionConfig::new(mu, &FULL_FRICTION)?,
-        thermal: ThermalConfig::new(&device::thermal_params(true, 1))?,
-        wear: WearConfig::new(&device::wear_params())?,
+        tables: Tables::new(radius, FrictionConfig::new(mu, &FULL_FRICTION)?),
+        thermal: ThermalConfig::new(&device::thermal_params(true), device::DT)?,
+        wear: WearConfig::new(&device::wear_params(), device::DT)?,
         sensor,
         adapt: None,
         limits: Limits {

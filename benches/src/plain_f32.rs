@@ -274,6 +274,10 @@ pub struct PlainParts<'a, const NF: usize, const NB: usize, const NT: usize, con
     pub thermal: &'a ThermalParams,
     /// Wear parameters.
     pub wear: &'a WearParams,
+    /// Sample period, s.
+    pub sample_period_s: f64,
+    /// The thermal and wear models advance once every this many samples.
+    pub thermal_wear_every: u8,
 }
 
 #[allow(clippy::cast_possible_truncation)]
@@ -309,10 +313,9 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             transition_speed: f.transition_speed as f32,
             viscous_drag: f.viscous_drag as f32,
             no_load_drag: f.no_load_drag as f32,
-            dt: p.wear.dt as f32,
-            #[allow(clippy::cast_sign_loss)]
-            thermal_wear_every: libm::round(t.dt / p.wear.dt).max(1.0) as u32,
-            thermal_dt: t.dt as f32,
+            dt: p.sample_period_s as f32,
+            thermal_wear_every: u32::from(p.thermal_wear_every),
+            thermal_dt: (p.sample_period_s * f64::from(p.thermal_wear_every)) as f32,
             c_rotor: c_rotor as f32,
             c_lining: t.lining.map(|l| (l.mass * l.specific_heat) as f32),
             conductance: t.lining.map_or(0.0, |l| l.conductance_to_rotor as f32),

@@ -5,6 +5,7 @@
 //! wraps, so the lining does not heat without end over millions of samples and every pass sees
 //! the same operating points.
 
+use clampwise_core::config::Tables;
 use clampwise_core::estimator::{Estimate, Estimator, Inputs};
 
 use crate::baseline::{PlainFull, PlainMinimal};
@@ -65,13 +66,19 @@ pub fn fill<T>(out: &mut [T], make: impl Fn(&crate::workload::Sample) -> T) {
 /// One step of the fully featured fixed-point device. Not inlined, so that callgrind and the
 /// QEMU counter see one call per sample.
 #[inline(never)]
-pub fn step_fixed_full(est: &mut Estimator<'_, 3, 3, 3, 6, 5>, inputs: &Inputs<3>) -> Estimate {
+pub fn step_fixed_full(
+    est: &mut Estimator<'_, Tables<3, 3, 6, 5>, 3>,
+    inputs: &Inputs<3>,
+) -> Estimate {
     est.step(inputs)
 }
 
 /// One step of the minimal fixed-point device (not inlined).
 #[inline(never)]
-pub fn step_fixed_minimal(est: &mut Estimator<'_, 1, 2, 2, 3, 3>, inputs: &Inputs<1>) -> Estimate {
+pub fn step_fixed_minimal(
+    est: &mut Estimator<'_, Tables<2, 2, 3, 3>, 1>,
+    inputs: &Inputs<1>,
+) -> Estimate {
     est.step(inputs)
 }
 

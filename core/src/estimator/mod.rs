@@ -34,13 +34,13 @@ pub use uncertainty::Combination;
 use crate::adapt::{AdaptGate, AdaptState};
 use crate::config::{DeviceConfig, TableSet};
 use crate::flags::Flags;
-use crate::friction::FrictionState;
-use crate::sensor::{ChannelMask, ForceSource, Health, SensorState};
+use crate::friction::{FrictionSample, FrictionState};
+use crate::sensor::{ChannelMask, ForceReading, ForceSource, Health, SensorState};
 use crate::thermal::ThermalState;
-use crate::units::{NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
+use crate::units::{Metres, NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
 use crate::wear::WearState;
 
-use sub_rate::SubRate;
+use sub_rate::{SlowSample, SubRate};
 use torque::{Saturating, dissipated_power, friction_torque, ratio_product};
 use uncertainty::torque_uncertainty;
 
@@ -72,6 +72,77 @@ fn signed(direction: i8, magnitude: NewtonMetres) -> NewtonMetres {
     }
 }
 
+/// Where the contact operates this sample: what every torque product shares.
+#[derive(Clone, Copy)]
+struct Operating {
+    faces: u8,
+    correction: Ratio,
+    force: Newtons,
+    lever_arm: Metres,
+}
+
+impl Operating {
+    /// n · k · μ · F · r_e.
+    #[inline]
+    fn torque(self, mu: Ratio) -> Saturating<NewtonMetres> {
+        friction_torque(self.faces, self.correction, mu, self.force, self.lever_arm)
+    }
+
+    /// The same contact carrying `force` instead.
+    #[inline]
+    fn with_force(self, force: Newtons) -> Self {
+        Self { force, ..self }
+    }
+}
+
+/// The torque a sample reports and the parts of it the later stages need.
+struct Reported {
+    /// The reported torque (`None` while holding or when the slip speed is unknown).
+    torque: Option<NewtonMetres>,
+    /// μ behind what is reported (kinetic for a torque, static for a capacity).
+    mu: Ratio,
+    /// The signed friction torque that dissipates power (zero unless slipping).
+    friction_part: NewtonMetres,
+    /// n · μ_k · F · r_e without the adaptation's correction (the adaptation's model).
+    uncorrected: NewtonMetres,
+}
+
+/// The torque of each contact state; flags a bounded (holding, slip-unknown) torque and
+/// saturated products.
+fn reported_torque(
+    state: ContactState,
+    fric: &FrictionSample,
+    at: Operating,
+    flags: &mut Flags,
+) -> Reported {
+    let kinetic = at.torque(fric.mu_kinetic);
+    let uncorrected = Operating {
+        correction: Ratio::ONE,
+        ..at
+    }
+    .torque(fric.mu_kinetic);
+    if kinetic.saturated || uncorrected.saturated {
+        flags.insert(Flags::ARITHMETIC_SATURATED);
+    }
+    let (torque, mu, friction_part) = match state {
+        ContactState::Released => (Some(fric.drag_torque), fric.mu_kinetic, NewtonMetres::ZERO),
+        ContactState::Slipping => {
+            let t = signed(fric.direction, kinetic.value);
+            (Some(t.saturating_add(fric.drag_torque)), fric.mu_kinetic, t)
+        }
+        _ => {
+            flags.insert(Flags::TORQUE_BOUNDED);
+            (None, fric.mu_static, NewtonMetres::ZERO)
+        }
+    };
+    Reported {
+        torque,
+        mu,
+        friction_part,
+        uncorrected: uncorrected.value,
+    }
+}
+
 impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     /// A new estimator: lining at ambient temperature, new (bedding 0, no wear), holding,
     /// adaptation factor 1.
@@ -99,13 +170,101 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
 
     /// One control cycle. O(1), integer-only, no allocation, cannot panic.
     pub fn step(&mut self, inputs: &Inputs<C>) -> Estimate {
-        let cfg = self.cfg;
-        let st = &mut self.state;
         let mut flags = Flags::empty();
-
         // 1. Clamp force.
-        let reading = st.sensor.update(
-            &cfg.sensor,
+        let reading = self.read_force(inputs, &mut flags);
+        let channels_used = match reading.source {
+            ForceSource::Channels { mask } => mask,
+            _ => ChannelMask::EMPTY,
+        };
+        // 2. Slip speed and μ at the lining temperature left by the previous sample.
+        let slip_speed = inputs.slip_speed();
+        let fric = self.friction_sample(slip_speed, &mut flags);
+        let correction = self.state.adapt.map_or(Ratio::ONE, |a| a.factor());
+        let bedding = self.state.wear.bedding();
+
+        let Some(force) = reading.force else {
+            flags.insert(Flags::FORCE_LOST);
+            // No force, no dissipated power that can be known: the thermal model only cools.
+            return self.finish_unavailable(inputs, flags, correction);
+        };
+        let force = force.max(Newtons::ZERO);
+
+        // 3. Effective radius at this force and bedding.
+        let radius = self.cfg.tables.lever_arm(force, bedding);
+        flags.set(
+            Flags::OUT_OF_RANGE,
+            flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,
+        );
+        let at = Operating {
+            faces: self.cfg.faces,
+            correction,
+            force,
+            lever_arm: radius.value,
+        };
+
+        // 4. Torque or capacity.
+        let capacity = at.torque(fric.mu_static);
+        let state = self.contact_state(slip_speed, force, &fric);
+        let reported = reported_torque(state, &fric, at, &mut flags);
+        if capacity.saturated {
+            flags.insert(Flags::ARITHMETIC_SATURATED);
+        }
+
+        // 5. Heat from this sample's dissipated power (friction + drag); wear and bedding from
+        //    the friction part alone. Without a slip speed no power can be known.
+        let slow = self.advance_heat_and_wear(
+            inputs,
+            slip_speed.unwrap_or(RadPerSec::ZERO),
+            reported.friction_part,
+            fric.drag_torque,
+            &mut flags,
+        );
+
+        // 6. Adaptation: learn k only from clean slipping samples.
+        let gate = AdaptGate {
+            slipping: state == ContactState::Slipping,
+            force_sufficient: force >= self.cfg.limits.adapt_min_force,
+            sensors_healthy: reading.health == Health::Ok,
+        };
+        self.adapt(
+            inputs,
+            signed(fric.direction, reported.uncorrected),
+            gate,
+            &mut flags,
+        );
+
+        // 7. Uncertainty of what is reported.
+        let uncertainty = self.uncertainty(
+            state,
+            &fric,
+            at,
+            reading.uncertainty,
+            (reported.torque, capacity.value),
+            &mut flags,
+        );
+
+        Estimate {
+            torque: reported.torque,
+            holding_capacity: Some(capacity.value),
+            uncertainty,
+            mu: ratio_product(reported.mu, correction),
+            effective_radius: at.lever_arm,
+            clamp_force: force,
+            force_channels_used: channels_used,
+            lining_temperature: slow.lining_temperature,
+            bedding: slow.bedding,
+            wear: slow.thickness_loss,
+            correction,
+            state,
+            flags,
+        }
+    }
+
+    /// The conditioned clamp force and the sensor flags it raises.
+    fn read_force(&mut self, inputs: &Inputs<C>, flags: &mut Flags) -> ForceReading {
+        let reading = self.state.sensor.update(
+            &self.cfg.sensor,
             &inputs.force_channels,
             inputs.actuator_command,
             inputs.sensor_temperature,
@@ -117,80 +276,67 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         );
         flags.set(Flags::FORCE_SATURATED, reading.saturated);
         flags.set(Flags::FORCE_IMPLAUSIBLE, reading.implausible);
-        let channels_used = match reading.source {
-            ForceSource::Channels { mask } => mask,
-            _ => ChannelMask::EMPTY,
-        };
+        reading
+    }
 
-        // 2. Slip speed and μ at the lining temperature left by the previous sample. Without a
-        //    slip speed, μ is the largest the lining can have at that temperature.
-        let slip_speed = inputs.slip_speed();
-        let lining_before = st.thermal.lining_temperature();
+    /// μ at the lining temperature left by the previous sample. Without a slip speed, μ is the
+    /// largest the lining can have anywhere in its table.
+    fn friction_sample(
+        &mut self,
+        slip_speed: Option<RadPerSec>,
+        flags: &mut Flags,
+    ) -> FrictionSample {
+        let tables = &self.cfg.tables;
+        let st = &mut self.state;
         let fric = match slip_speed {
-            Some(v) => cfg
-                .tables
-                .friction_sample(&mut st.friction, v, lining_before, Ratio::ONE),
+            Some(v) => tables.friction_sample(
+                &mut st.friction,
+                v,
+                st.thermal.lining_temperature(),
+                Ratio::ONE,
+            ),
             None => {
                 flags.insert(Flags::SPEED_UNKNOWN);
-                cfg.tables.slip_unknown(Ratio::ONE)
+                tables.slip_unknown(Ratio::ONE)
             }
         };
         flags.set(Flags::OUT_OF_RANGE, fric.clamped);
         flags.set(Flags::ARITHMETIC_SATURATED, fric.saturated);
-        let correction = st.adapt.map_or(Ratio::ONE, |a| a.factor());
-        let bedding = st.wear.bedding();
+        fric
+    }
 
-        let Some(force) = reading.force else {
-            flags.insert(Flags::FORCE_LOST);
-            // No force, no dissipated power that can be known: the thermal model only cools.
-            return self.finish_unavailable(inputs, flags, correction);
-        };
-        let force = force.max(Newtons::ZERO);
-
-        // 3. Effective radius at this force and bedding.
-        let radius = cfg.tables.lever_arm(force, bedding);
-        flags.set(
-            Flags::OUT_OF_RANGE,
-            flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,
-        );
-        let lever_arm = radius.value;
-
-        // 4. Torque or capacity.
-        let kinetic = friction_torque(cfg.faces, correction, fric.mu_kinetic, force, lever_arm);
-        let capacity = friction_torque(cfg.faces, correction, fric.mu_static, force, lever_arm);
-        let uncorrected = friction_torque(cfg.faces, Ratio::ONE, fric.mu_kinetic, force, lever_arm);
-        if kinetic.saturated || capacity.saturated || uncorrected.saturated {
-            flags.insert(Flags::ARITHMETIC_SATURATED);
-        }
-
-        let state = if slip_speed.is_none() {
+    /// Which of the contact states this sample is in, given a clamp force.
+    fn contact_state(
+        &self,
+        slip_speed: Option<RadPerSec>,
+        force: Newtons,
+        fric: &FrictionSample,
+    ) -> ContactState {
+        if slip_speed.is_none() {
             ContactState::SlipUnknown
-        } else if force < cfg.limits.touch_force {
+        } else if force < self.cfg.limits.touch_force {
             ContactState::Released
         } else if fric.slipping {
             ContactState::Slipping
         } else {
             ContactState::Holding
-        };
-        let (torque, mu, friction_power_torque) = match state {
-            ContactState::Released => (Some(fric.drag_torque), fric.mu_kinetic, NewtonMetres::ZERO),
-            ContactState::Slipping => {
-                let t = signed(fric.direction, kinetic.value);
-                (Some(t.saturating_add(fric.drag_torque)), fric.mu_kinetic, t)
-            }
-            _ => {
-                flags.insert(Flags::TORQUE_BOUNDED);
-                (None, fric.mu_static, NewtonMetres::ZERO)
-            }
-        };
-        let mu_used = ratio_product(mu, correction);
+        }
+    }
 
-        // 5. Heat from this sample's dissipated power (friction + drag); wear and bedding from
-        //    the friction part alone. Without a slip speed no power can be known.
-        let speed = slip_speed.unwrap_or(RadPerSec::ZERO);
-        let heat_torque = friction_power_torque.saturating_add(fric.drag_torque);
-        let power = dissipated_power(heat_torque, speed);
-        let wearing = dissipated_power(friction_power_torque, speed);
+    /// Advance the thermal and wear states (every sample or as the sub-rate task) with this
+    /// sample's power.
+    fn advance_heat_and_wear(
+        &mut self,
+        inputs: &Inputs<C>,
+        speed: RadPerSec,
+        friction_part: NewtonMetres,
+        drag: NewtonMetres,
+        flags: &mut Flags,
+    ) -> SlowSample {
+        let cfg = self.cfg;
+        let st = &mut self.state;
+        let power = dissipated_power(friction_part.saturating_add(drag), speed);
+        let wearing = dissipated_power(friction_part, speed);
         let slow = st.sub_rate.step(
             cfg.thermal_wear_shift,
             (&mut st.thermal, &cfg.thermal),
@@ -202,50 +348,53 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         if power.saturated || wearing.saturated || slow.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
-        slow.set_flags(&mut flags);
+        slow.set_flags(flags);
+        slow
+    }
 
-        // 6. Adaptation: learn k only from clean slipping samples.
-        let gate = AdaptGate {
-            slipping: state == ContactState::Slipping,
-            force_sufficient: force >= cfg.limits.adapt_min_force,
-            sensors_healthy: reading.health == Health::Ok,
-        };
-        let model = signed(fric.direction, uncorrected.value);
-        if let (Some(a), Some(acfg)) = (st.adapt.as_mut(), cfg.adapt.as_ref()) {
+    /// Let the adaptation learn from this sample's model torque (uncorrected, signed).
+    fn adapt(
+        &mut self,
+        inputs: &Inputs<C>,
+        model: NewtonMetres,
+        gate: AdaptGate,
+        flags: &mut Flags,
+    ) {
+        if let (Some(a), Some(acfg)) = (self.state.adapt.as_mut(), self.cfg.adapt.as_ref()) {
             let out = a.update(acfg, model, inputs.reference_torque, gate);
             flags.set(Flags::ADAPTATION_FROZEN, out.frozen);
             flags.set(Flags::ADAPTATION_AT_LIMIT, out.at_band_limit);
         }
+    }
 
-        // 7. Uncertainty of what is reported. The force enters as the torque it could carry:
-        //    its uncertainty's share, or for a released contact the friction torque at the
-        //    force's upper bound (the larger μ of the two: it may be holding or slipping).
+    /// The ± of what is reported. The force enters as the torque it could carry: its
+    /// uncertainty's share, or for a released contact the friction torque at the force's
+    /// upper bound (the larger μ of the two: it may be holding or slipping).
+    fn uncertainty(
+        &self,
+        state: ContactState,
+        fric: &FrictionSample,
+        at: Operating,
+        force_uncertainty: Newtons,
+        (torque, capacity): (Option<NewtonMetres>, NewtonMetres),
+        flags: &mut Flags,
+    ) -> NewtonMetres {
         let mut model_term = NewtonMetres::ZERO;
         let (reported, force_term) = match state {
             ContactState::Released => {
-                let upper = force.saturating_add(reading.uncertainty);
-                let mu_any = fric.mu_static.max(fric.mu_kinetic);
-                let t = friction_torque(cfg.faces, correction, mu_any, upper, lever_arm);
+                let upper = Operating {
+                    force: at.force.saturating_add(force_uncertainty),
+                    ..at
+                };
+                let t = upper.torque(fric.mu_static.max(fric.mu_kinetic));
                 (fric.drag_torque.saturating_abs(), t)
             }
             ContactState::Slipping => {
                 // Near zero slip μ blends from static to kinetic: the true μ may lie anywhere
                 // in that span.
-                let blend = friction_torque(
-                    cfg.faces,
-                    correction,
-                    fric.transition_span,
-                    force,
-                    lever_arm,
-                );
+                let blend = at.torque(fric.transition_span);
                 model_term = blend.value;
-                let t = friction_torque(
-                    cfg.faces,
-                    correction,
-                    fric.mu_kinetic,
-                    reading.uncertainty,
-                    lever_arm,
-                );
+                let t = at.with_force(force_uncertainty).torque(fric.mu_kinetic);
                 (
                     torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
                     Saturating {
@@ -255,43 +404,22 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
                 )
             }
             _ => (
-                capacity.value,
-                friction_torque(
-                    cfg.faces,
-                    correction,
-                    fric.mu_static,
-                    reading.uncertainty,
-                    lever_arm,
-                ),
+                capacity,
+                at.with_force(force_uncertainty).torque(fric.mu_static),
             ),
         };
         if force_term.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
-        let uncertainty = torque_uncertainty(
+        let tol = &self.cfg.tolerances;
+        torque_uncertainty(
             reported,
             force_term.value,
             model_term,
-            cfg.tolerances.mu,
-            cfg.tolerances.radius,
-            cfg.tolerances.combination,
-        );
-
-        Estimate {
-            torque,
-            holding_capacity: Some(capacity.value),
-            uncertainty,
-            mu: mu_used,
-            effective_radius: lever_arm,
-            clamp_force: force,
-            force_channels_used: channels_used,
-            lining_temperature: slow.lining_temperature,
-            bedding: slow.bedding,
-            wear: slow.thickness_loss,
-            correction,
-            state,
-            flags,
-        }
+            tol.mu,
+            tol.radius,
+            tol.combination,
+        )
     }
 
     /// The rest of a sample without force: cool the lining, freeze the adaptation, report

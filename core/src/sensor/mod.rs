@@ -521,32 +521,100 @@ impl<const C: usize> SensorState<C> {
         if sensor_temp.is_some() {
             self.temperature = sensor_temp;
         }
-        let d = &cfg.diagnostics;
-        let mut saturated = false;
-        let mut temperature_clamped = false;
         let predicted = match (&cfg.fallback, actuator_command) {
-            (Some(tr), Some(c)) => {
-                let p = self.actuator.update(tr, cfg.actuator_lag, c);
-                saturated |= p.saturated;
-                Some(p.force)
-            }
+            (Some(tr), Some(c)) => Some(self.actuator.update(tr, cfg.actuator_lag, c)),
             _ => None,
         };
+        let pass = self.condition_channels(cfg, raw, actuator_command);
+        let predicted_force = predicted.map(|p| p.force);
+        let v = vote_usable::<C>(cfg, &pass, predicted_force);
+        let judged = self.judge_channels(cfg, &v, &pass.channel_force);
 
-        // One pass over the channels: checks, filter, and the usable values for the vote.
-        let mut values = [0i32; MAX_CHANNELS];
-        // How far each channel's filter output trails its newest accepted sample (Q8 N).
-        let mut trail = [0i64; MAX_CHANNELS];
-        let mut usable = 0u8;
-        let mut channel_force = [None; MAX_CHANNELS];
+        let (force, uncertainty, health, source, implausible) = if v.used.is_empty() {
+            match (&cfg.fallback, predicted_force) {
+                (Some(tr), Some(p)) => (
+                    Some(p),
+                    tr.stated_uncertainty(),
+                    Health::Lost,
+                    ForceSource::ActuatorFallback,
+                    false,
+                ),
+                _ => (
+                    None,
+                    Newtons::MAX,
+                    Health::Lost,
+                    ForceSource::Unavailable,
+                    false,
+                ),
+            }
+        } else {
+            let bound = force_bound(
+                cfg.voting.channel_uncertainty,
+                &v,
+                &pass.channel_force,
+                &judged.flags,
+                (judged.held, pass.trailing_beyond_noise(cfg, v.used)),
+                predicted_force.zip(cfg.fallback.as_ref()),
+            );
+            let all_used = v.used == ChannelMask::first(C);
+            let agreed = matches!(v.agreement, Agreement::Single | Agreement::Unanimous);
+            // A temperature outside the compensation range leaves the calibration unproven.
+            let health = if judged.clean
+                && all_used
+                && agreed
+                && !pass.temperature_clamped
+                && !bound.implausible
+            {
+                Health::Ok
+            } else {
+                Health::Degraded
+            };
+            (
+                Some(v.force),
+                bound.uncertainty,
+                health,
+                ForceSource::Channels { mask: v.used },
+                bound.implausible,
+            )
+        };
+        ForceReading {
+            force,
+            uncertainty,
+            health,
+            source,
+            agreement: v.agreement,
+            channel_flags: judged.flags,
+            channel_force: pass.channel_force,
+            saturated: pass.saturated || predicted.is_some_and(|p| p.saturated),
+            temperature_clamped: pass.temperature_clamped,
+            implausible,
+        }
+    }
+
+    /// One pass over the channels: checks, filter, and the usable values for the vote.
+    fn condition_channels(
+        &mut self,
+        cfg: &SensorConfig<C>,
+        raw: &[RawChannel; C],
+        actuator_command: Option<ActuatorCommand>,
+    ) -> ChannelPass {
+        let d = &cfg.diagnostics;
+        let mut pass = ChannelPass {
+            values: [0; MAX_CHANNELS],
+            trail: [0; MAX_CHANNELS],
+            usable: 0,
+            channel_force: [None; MAX_CHANNELS],
+            saturated: false,
+            temperature_clamped: false,
+        };
         let mut compensation = None;
         for (i, ((((ch, cal), r), (out, value)), lag)) in self
             .channels
             .iter_mut()
             .zip(cfg.channels.iter())
             .zip(raw.iter())
-            .zip(channel_force.iter_mut().zip(values.iter_mut()))
-            .zip(trail.iter_mut())
+            .zip(pass.channel_force.iter_mut().zip(pass.values.iter_mut()))
+            .zip(pass.trail.iter_mut())
             .enumerate()
         {
             // A compensation every channel shares is evaluated once, for the first.
@@ -559,8 +627,8 @@ impl<const C: usize> SensorState<C> {
             let c = ch
                 .diagnostics
                 .check(d, cal, *r, actuator_command, compensation);
-            saturated |= c.saturated;
-            temperature_clamped |= c.temperature_clamped;
+            pass.saturated |= c.saturated;
+            pass.temperature_clamped |= c.temperature_clamped;
             *out = match c.accepted {
                 Some(f) if c.was_stale => {
                     ch.filter.reset(f);
@@ -577,48 +645,34 @@ impl<const C: usize> SensorState<C> {
                 && !ch.diagnostics.flags(d).intersects(ChannelFlags::UNUSABLE)
             {
                 *value = x.to_bits();
-                usable |= 1 << i;
+                pass.usable |= 1 << i;
             }
         }
+        pass
+    }
 
-        let v = if C == 1 {
-            // One channel: passed through when usable (tolerance > 0, validated), as the vote
-            // would.
-            match (usable, values.first()) {
-                (1, Some(&x)) => Vote {
-                    used: ChannelMask::from_bits(1),
-                    force: Newtons::from_bits(x),
-                    agreement: Agreement::Single,
-                    spread: Newtons::ZERO,
-                },
-                _ => Vote {
-                    used: ChannelMask::EMPTY,
-                    force: Newtons::ZERO,
-                    agreement: Agreement::NoChannels,
-                    spread: Newtons::ZERO,
-                },
-            }
-        } else {
-            voting::vote_among(
-                &values,
-                usable,
-                cfg.voting.tolerance.to_bits(),
-                predicted.map(|p| p.to_bits()),
-            )
-        };
-
+    /// Each channel against the vote: the disagreement evidence, its flags, whether every
+    /// channel is clean, and the largest hold allowance of a used channel.
+    fn judge_channels(
+        &mut self,
+        cfg: &SensorConfig<C>,
+        v: &Vote,
+        channel_force: &[Option<Newtons>; MAX_CHANNELS],
+    ) -> Judged {
+        let d = &cfg.diagnostics;
         // tolerance > 0 (validated): its unsigned value is exact.
         let tol = cfg.voting.tolerance.to_bits().unsigned_abs();
         let reference = v.reference().map(|m| m.to_bits());
-        let mut channel_flags = [ChannelFlags::empty(); MAX_CHANNELS];
-        let mut clean = true;
-        // Largest hold allowance of a used channel, Q8 N rounded up (saturated).
-        let mut held = 0u64;
+        let mut judged = Judged {
+            flags: [ChannelFlags::empty(); MAX_CHANNELS],
+            clean: true,
+            held: 0,
+        };
         for (i, ((ch, out), flags)) in self
             .channels
             .iter_mut()
             .zip(channel_force.iter())
-            .zip(channel_flags.iter_mut())
+            .zip(judged.flags.iter_mut())
             .enumerate()
         {
             // One channel has no other to disagree with.
@@ -636,80 +690,89 @@ impl<const C: usize> SensorState<C> {
                 ch.diagnostics.disagreement(d, evidence);
             }
             *flags = ch.diagnostics.flags(d);
-            clean &= flags.is_empty();
+            judged.clean &= flags.is_empty();
             let k = ch.diagnostics.held_for();
             if k > 0 && v.used.contains(i) {
-                held = held.max(d.allowance_q8(k, true));
+                judged.held = judged.held.max(d.allowance_q8(k, true));
             }
         }
+        judged
+    }
+}
 
-        let (force, uncertainty, health, source, implausible) = if v.used.is_empty() {
-            match (&cfg.fallback, predicted) {
-                (Some(tr), Some(p)) => (
-                    Some(p),
-                    tr.stated_uncertainty(),
-                    Health::Lost,
-                    ForceSource::ActuatorFallback,
-                    false,
-                ),
-                _ => (
-                    None,
-                    Newtons::MAX,
-                    Health::Lost,
-                    ForceSource::Unavailable,
-                    false,
-                ),
-            }
-        } else {
-            // The filter trails a moving force: what it trails its newest sample by beyond that
-            // sample's own noise (half the peak-to-peak `noise_band`; `channel_uncertainty`
-            // already covers the noise) is added like a hold allowance.
-            let noise = i64::from(d.limits.noise_band.to_bits()) / 2;
-            let trailing = trail
-                .iter()
-                .enumerate()
-                .filter(|&(i, _)| v.used.contains(i))
-                .map(|(_, &t)| t - noise)
-                .max()
-                .unwrap_or(0)
-                .max(0);
-            let bound = force_bound(
-                cfg.voting.channel_uncertainty,
-                &v,
-                &channel_force,
-                &channel_flags,
-                (held, trailing.unsigned_abs()),
-                predicted.zip(cfg.fallback.as_ref()),
-            );
-            let all_used = v.used == ChannelMask::first(C);
-            let agreed = matches!(v.agreement, Agreement::Single | Agreement::Unanimous);
-            // A temperature outside the compensation range leaves the calibration unproven.
-            let health =
-                if clean && all_used && agreed && !temperature_clamped && !bound.implausible {
-                    Health::Ok
-                } else {
-                    Health::Degraded
-                };
-            (
-                Some(v.force),
-                bound.uncertainty,
-                health,
-                ForceSource::Channels { mask: v.used },
-                bound.implausible,
-            )
-        };
-        ForceReading {
-            force,
-            uncertainty,
-            health,
-            source,
-            agreement: v.agreement,
-            channel_flags,
-            channel_force,
-            saturated,
-            temperature_clamped,
-            implausible,
+/// What one pass over the channels leaves for the vote.
+struct ChannelPass {
+    /// Filtered force of each usable channel (raw `Newtons` bits).
+    values: [i32; MAX_CHANNELS],
+    /// How far each channel's filter output trails its newest accepted sample (Q8 N).
+    trail: [i64; MAX_CHANNELS],
+    /// Bit i set: channel i may vote.
+    usable: u8,
+    /// Each channel's filtered force, when it has one.
+    channel_force: [Option<Newtons>; MAX_CHANNELS],
+    saturated: bool,
+    temperature_clamped: bool,
+}
+
+impl ChannelPass {
+    /// The filter trails a moving force: what it trails its newest sample by beyond that
+    /// sample's own noise (half the peak-to-peak `noise_band`; `channel_uncertainty` already
+    /// covers the noise), largest over the used channels (Q8 N, ≥ 0).
+    fn trailing_beyond_noise<const C: usize>(
+        &self,
+        cfg: &SensorConfig<C>,
+        used: ChannelMask,
+    ) -> u64 {
+        let noise = i64::from(cfg.diagnostics.limits.noise_band.to_bits()) / 2;
+        self.trail
+            .iter()
+            .enumerate()
+            .filter(|&(i, _)| used.contains(i))
+            .map(|(_, &t)| t - noise)
+            .max()
+            .unwrap_or(0)
+            .max(0)
+            .unsigned_abs()
+    }
+}
+
+/// Each channel judged against the vote.
+struct Judged {
+    flags: [ChannelFlags; MAX_CHANNELS],
+    clean: bool,
+    /// Largest hold allowance of a used channel, Q8 N rounded up (saturated).
+    held: u64,
+}
+
+/// The vote among the usable channels; one channel is passed through when usable
+/// (tolerance > 0, validated), as the vote would.
+fn vote_usable<const C: usize>(
+    cfg: &SensorConfig<C>,
+    pass: &ChannelPass,
+    predicted: Option<Newtons>,
+) -> Vote {
+    if C == 1 {
+        match (pass.usable, pass.values.first()) {
+            (1, Some(&x)) => Vote {
+                used: ChannelMask::from_bits(1),
+                force: Newtons::from_bits(x),
+                agreement: Agreement::Single,
+                spread: Newtons::ZERO,
+            },
+            _ => Vote {
+                used: ChannelMask::EMPTY,
+                force: Newtons::ZERO,
+                agreement: Agreement::NoChannels,
+                spread: Newtons::ZERO,
+            },
         }
+    } else {
+        voting::vote_among(
+            &pass.values,
+            pass.usable,
+            cfg.voting.tolerance.to_bits(),
+            predicted.map(|p| p.to_bits()),
+        )
     }
 }
 
