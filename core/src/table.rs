@@ -45,6 +45,7 @@
 
 use core::fmt;
 
+use crate::divide::{fraction_q31, segment_constants};
 use fixed::FixedI32;
 use fixed::types::extra::LeEqU32;
 
@@ -177,73 +178,6 @@ impl<const N: usize> Divisors<N> {
             i += 1;
         }
         Self { recip, shift }
-    }
-}
-
-/// `(⌊(2^(32+L) − 1) / d⌋, L + 1)` for a span d ≥ 1, `L = ⌊log₂ d⌋` (d = 0 gives `(0, 0)`; a
-/// validated axis has no such segment).
-const fn segment_constants(d: u32) -> (u32, u8) {
-    if d == 0 {
-        return (0, 0);
-    }
-    let l = 31 - d.leading_zeros();
-    // (2^(32+L) − 1) / d < 2^(32+L) / 2^L = 2³², and L + 1 ≤ 32: both casts are exact.
-    #[allow(clippy::cast_possible_truncation)]
-    ((((1u64 << (32 + l)) - 1) / d as u64) as u32, (l + 1) as u8)
-}
-
-/// ⌊r·2³¹ / d⌋ for 0 ≤ r ≤ d < 2³², from the segment's constants `recip`, `shift` (see
-/// [`Divisors`]); equal to the plain division for every input (property test
-/// `fraction_matches_division`, and the argument below).
-///
-/// With `m = recip = (2^(32+L) − 1 − ρ) / d`, 0 ≤ ρ < d, write m = 2^(32+L)/d − ε with
-/// 0 < ε = (1 + ρ)/d ≤ 1. Then r·m / 2^(L+1) = r·2³¹/d − r·ε/2^(L+1), and
-/// 0 ≤ r·ε/2^(L+1) ≤ d/2^(L+1) < 1 (d < 2^(L+1)), so the estimate `q̂ = ⌊r·m / 2^(L+1)⌋` is
-/// the quotient q or q − 1. The remainder r·2³¹ − q̂·d lies in [0, 2d) and decides: q = q̂ + 1
-/// exactly when it is ≥ d. r·m < 2⁶⁴ fits u64; q̂ < 2³¹ and q ≤ 2³¹ fit u32.
-#[inline]
-fn fraction_q31(r: u32, d: u32, recip: u32, shift: u8) -> u32 {
-    // r·m < d·2^(32+L)/d = 2^(32+L), so the estimate is below 2³¹: the cast is exact.
-    #[allow(clippy::cast_possible_truncation)]
-    let estimate = u64::from(r)
-        .wrapping_mul(u64::from(recip))
-        .wrapping_shr(u32::from(shift)) as u32;
-    estimate.wrapping_add(u32::from(remainder_reaches(r, d, estimate)))
-}
-
-/// Whether r·2³¹ − q̂·d ≥ d, for the estimate q̂ of [`fraction_q31`] (remainder in [0, 2d)).
-#[cfg(target_pointer_width = "64")]
-#[inline]
-fn remainder_reaches(r: u32, d: u32, estimate: u32) -> bool {
-    remainder_reaches_wide(r, d, estimate)
-}
-
-/// Whether r·2³¹ − q̂·d ≥ d, for the estimate q̂ of [`fraction_q31`] (remainder in [0, 2d)).
-#[cfg(not(target_pointer_width = "64"))]
-#[inline]
-fn remainder_reaches(r: u32, d: u32, estimate: u32) -> bool {
-    remainder_reaches_narrow(r, d, estimate)
-}
-
-/// The remainder test in u64: r·2³¹ < 2⁶³ and q̂·d ≤ r·2³¹, so it is exact (one multiply on a
-/// 64-bit target).
-#[inline]
-fn remainder_reaches_wide(r: u32, d: u32, estimate: u32) -> bool {
-    let rem = (u64::from(r) << 31).wrapping_sub(u64::from(estimate).wrapping_mul(u64::from(d)));
-    rem >= u64::from(d)
-}
-
-/// The remainder test for 32-bit targets, where a 64-bit multiply is a library call: for
-/// d ≤ 2³¹ the remainder is below 2d ≤ 2³², so it is exact modulo 2³² (one 32-bit multiply);
-/// only wider segments take the 64-bit form.
-#[cfg_attr(target_pointer_width = "64", allow(dead_code))]
-#[inline]
-fn remainder_reaches_narrow(r: u32, d: u32, estimate: u32) -> bool {
-    if d <= 1 << 31 {
-        let rem = (r << 31).wrapping_sub(estimate.wrapping_mul(d));
-        rem >= d
-    } else {
-        remainder_reaches_wide(r, d, estimate)
     }
 }
 
@@ -817,70 +751,8 @@ mod tests {
         );
     }
 
-    /// ⌊r·2³¹/d⌋ by the plain division, the definition the reciprocal form must reproduce.
-    fn division(r: u32, d: u32) -> u32 {
-        u32::try_from((u64::from(r) << 31) / u64::from(d)).unwrap()
-    }
-
-    fn check_fraction(r: u32, d: u32) {
-        let (m, s) = segment_constants(d);
-        let want = division(r, d);
-        let estimate = u32::try_from((u64::from(r) * u64::from(m)) >> s).unwrap();
-        assert!(
-            estimate == want || estimate + 1 == want,
-            "estimate r={r} d={d}"
-        );
-        assert_eq!(fraction_q31(r, d, m, s), want, "r={r} d={d}");
-        // Both remainder tests (64-bit host form and 32-bit target form) agree with it.
-        for reaches in [remainder_reaches_wide, remainder_reaches_narrow] {
-            assert_eq!(
-                estimate + u32::from(reaches(r, d, estimate)),
-                want,
-                "r={r} d={d}"
-            );
-        }
-    }
-
-    #[test]
-    fn fraction_matches_division_at_the_edges() {
-        // Every span length class, its ends and neighbours, each with the extreme numerators
-        // (r = d gives exactly 2³¹: the clamped upper end).
-        for l in 0..32u32 {
-            let p = 1u64 << l;
-            for d in [
-                p,
-                p + 1,
-                p + 2,
-                2 * p - 1,
-                2 * p - 2,
-                p + p / 2,
-                p * 3 / 2 + 1,
-            ] {
-                let Ok(d) = u32::try_from(d) else { continue };
-                if u64::from(d) < p {
-                    continue;
-                }
-                for r in [0, 1, 2, d / 3, d / 2, d - 1, d.saturating_sub(2), d] {
-                    if r <= d {
-                        check_fraction(r, d);
-                    }
-                }
-            }
-        }
-        assert_eq!(
-            fraction_q31(u32::MAX, u32::MAX, segment_constants(u32::MAX).0, 32),
-            1 << 31
-        );
-    }
-
-    #[test]
-    fn fraction_matches_division_exhaustively_for_small_spans() {
-        for d in 1..=300u32 {
-            for r in 0..=d {
-                check_fraction(r, d);
-            }
-        }
-    }
+    /// How to choose an input for an axis (kind, raw value, small offset).
+    type Pick = (u8, u32, i8);
 
     /// A strictly increasing axis: either any distinct i32 values (spans up to 2³² − 1) or a
     /// start plus increments of random bit length (short spans, powers of two among them).
@@ -911,9 +783,6 @@ mod tests {
             });
         prop_oneof![wide, narrow]
     }
-
-    /// How to choose an input for an axis (kind, raw value, small offset).
-    type Pick = (u8, u32, i8);
 
     /// An input for an axis: anywhere, on or next to a breakpoint, or inside a segment.
     fn input_for(axis: &[i32], pick: Pick) -> i32 {
@@ -972,15 +841,6 @@ mod tests {
 
     proptest! {
         #![proptest_config(ProptestConfig::with_cases(2000))]
-
-        // The reciprocal form against the floor division over the whole input range: spans of
-        // every bit length (uniform exponent) and numerators 0 ..= d.
-        #[test]
-        fn fraction_matches_division(bits in 0u32..32, raw in any::<u32>(), num in any::<u64>()) {
-            let d = ((raw >> (31 - bits)) | (1 << bits)).max(1);
-            let r = u32::try_from(num % (u64::from(d) + 1)).unwrap();
-            check_fraction(r, d);
-        }
 
         #[test]
         fn table1_matches_former_lookup(

@@ -36,7 +36,7 @@
 //! assert!(!estimate.force_lost());
 //! ```
 
-use clampwise_core::config::DeviceConfig;
+use clampwise_core::config::{DeviceConfig, TableSet};
 use clampwise_core::estimator::{self, ContactState, Estimate, Estimator, EstimatorState};
 use clampwise_core::flags::Flags;
 use clampwise_core::record::{RecordError, StateRecord};
@@ -50,22 +50,13 @@ use crate::saved_state::Persist;
 
 /// The core's estimator as the loop's processing step, for a device with `C` force channels.
 #[derive(Clone, Debug)]
-pub struct EstimatorStep<
-    'c,
-    const C: usize,
-    const NF: usize,
-    const NB: usize,
-    const NT: usize,
-    const NV: usize,
-> {
-    estimator: Estimator<'c, C, NF, NB, NT, NV>,
+pub struct EstimatorStep<'c, T, const C: usize> {
+    estimator: Estimator<'c, T, C>,
 }
 
-impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
-    EstimatorStep<'c, C, NF, NB, NT, NV>
-{
+impl<'c, T: TableSet, const C: usize> EstimatorStep<'c, T, C> {
     /// A new estimator on `config` (kept in flash): lining at ambient, new, holding.
-    pub fn new(config: &'c DeviceConfig<C, NF, NB, NT, NV>) -> Self {
+    pub fn new(config: &'c DeviceConfig<T, C>) -> Self {
         Self {
             estimator: Estimator::new(config),
         }
@@ -77,7 +68,7 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     /// # Errors
     /// The core's [`RecordError`] for a record that is corrupt or of another version.
     pub fn resume(
-        config: &'c DeviceConfig<C, NF, NB, NT, NV>,
+        config: &'c DeviceConfig<T, C>,
         record: Option<&[u8]>,
     ) -> Result<Self, RecordError> {
         let estimator = match record {
@@ -93,14 +84,12 @@ impl<'c, const C: usize, const NF: usize, const NB: usize, const NT: usize, cons
     }
 
     /// The core's estimator.
-    pub const fn estimator(&self) -> &Estimator<'c, C, NF, NB, NT, NV> {
+    pub const fn estimator(&self) -> &Estimator<'c, T, C> {
         &self.estimator
     }
 }
 
-impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize> Persist
-    for EstimatorStep<'_, C, NF, NB, NT, NV>
-{
+impl<T: TableSet, const C: usize> Persist for EstimatorStep<'_, T, C> {
     fn state_record(&self, sequence: u32) -> StateRecord {
         self.estimator.record(sequence)
     }
@@ -158,9 +147,7 @@ pub fn core_inputs<const C: usize>(inputs: &Inputs<C>) -> estimator::Inputs<C> {
     }
 }
 
-impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>
-    Processor<C> for EstimatorStep<'_, C, NF, NB, NT, NV>
-{
+impl<T: TableSet, const C: usize> Processor<C> for EstimatorStep<'_, T, C> {
     type Estimate = Estimate;
 
     fn step(&mut self, inputs: &Inputs<C>) -> Estimate {

@@ -53,14 +53,7 @@ use clampwise_core::record_store::StoreError;
 use embedded_storage::nor_flash::NorFlashErrorKind;
 
 /// The core's estimator on this build's device configuration.
-pub type DemoProcessor = EstimatorStep<
-    'static,
-    DEVICE_CHANNELS,
-    DEVICE_RADIUS_FORCES,
-    DEVICE_RADIUS_BEDDINGS,
-    DEVICE_MU_TEMPERATURES,
-    DEVICE_MU_SPEEDS,
->;
+pub type DemoProcessor = EstimatorStep<'static, DeviceTables, DEVICE_CHANNELS>;
 
 /// Clean samples (20 ms at 1 kHz) before a latched fault output is released: the
 /// application's policy, not part of the device configuration.
