@@ -898,10 +898,10 @@ mod tests {
         i64::try_from(c).unwrap_or(0)
     }
 
-    pub(crate) fn disc(dt: f64, cooling: Cooling) -> ThermalParams {
+    /// The test disc; `_dt` names the step the caller builds it for (passed to `new`).
+    pub(crate) fn disc(_dt: f64, cooling: Cooling) -> ThermalParams {
         // REFERENCES.md check vector [calc]: 8 kg, c = 460 J/(kg·K); h = 50, A = 0.12 → τ = 613 s.
         ThermalParams {
-            dt,
             rotor_mass: 8.0,
             rotor_specific_heat: 460.0,
             rotor_share: 1.0,
@@ -931,7 +931,7 @@ mod tests {
         for dt in [1e-4, 1e-3, 1e-2] {
             let mut p = disc(dt, Cooling::Adiabatic);
             p.rotor_share = 0.9;
-            let cfg = ThermalConfig::new(&p).unwrap();
+            let cfg = ThermalConfig::new(&p, dt).unwrap();
             let mut s = ThermalState::new(&cfg);
             let steps = (1.0 / dt).round() as usize; // 202.5 kW for 1 s
             let out = run(&cfg, &mut s, 202_500.0, steps);
@@ -951,7 +951,7 @@ mod tests {
     // Newtonian cooling T − T∞ = (T0 − T∞)·exp(−t/τ) [pub: Day ch. 8], τ = 613 s.
     #[test]
     fn cooling_follows_exponential() {
-        let cfg = ThermalConfig::new(&disc(1e-2, Cooling::Conductance(50.0 * 0.12))).unwrap();
+        let cfg = ThermalConfig::new(&disc(1e-2, Cooling::Conductance(50.0 * 0.12)), 1e-2).unwrap();
         let tau: f64 = 8.0 * 460.0 / (50.0 * 0.12);
         let mut s = ThermalState::with_temperatures(Celsius::from_num(75), Celsius::from_num(75));
         let mut t = 0.0;
@@ -976,7 +976,7 @@ mod tests {
 
     #[test]
     fn flags_latch_with_hysteresis() {
-        let cfg = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap();
+        let cfg = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap();
         let mut s = ThermalState::with_temperatures(Celsius::from_num(305), Celsius::from_num(305));
         let out = s.update(&cfg, Watts::ZERO, None);
         assert!(out.fade_warning && !out.over_temperature);
@@ -1002,7 +1002,7 @@ mod tests {
             max: 900.0,
             max_rate: 2000.0, // 2 K per 1 ms sample
         });
-        let cfg = ThermalConfig::new(&p).unwrap();
+        let cfg = ThermalConfig::new(&p, 1e-3).unwrap();
         let mut s = ThermalState::new(&cfg);
         let a = s.update(&cfg, Watts::ZERO, Some(Celsius::from_num(100)));
         assert!(a.measured_used && !a.measured_rejected);
@@ -1020,7 +1020,7 @@ mod tests {
         let e = s.update(&cfg, Watts::ZERO, None);
         assert!(!e.measured_used && !e.measured_rejected);
         // Without plausibility limits the input is ignored.
-        let cfg2 = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap();
+        let cfg2 = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap();
         let mut s2 = ThermalState::new(&cfg2);
         let f = s2.update(&cfg2, Watts::ZERO, Some(Celsius::from_num(100)));
         assert!(!f.measured_used && f.lining_temperature == Celsius::from_num(20));
@@ -1036,7 +1036,7 @@ mod tests {
             specific_heat: 1250.0,
             conductance_to_rotor: 20.0,
         });
-        let cfg = ThermalConfig::new(&p).unwrap();
+        let cfg = ThermalConfig::new(&p, 1e-3).unwrap();
         assert!(cfg.has_lining_node());
         let mut s = ThermalState::new(&cfg);
         let out = run(&cfg, &mut s, 100_000.0, 1000);
@@ -1051,73 +1051,85 @@ mod tests {
     #[test]
     fn rejects_bad_configs() {
         let base = disc(1e-3, Cooling::TimeConstant(613.0));
-        let e = |p: ThermalParams| ThermalConfig::new(&p).unwrap_err();
+        let e = |p: ThermalParams, dt: f64| ThermalConfig::new(&p, dt).unwrap_err();
+        assert_eq!(e(base, 0.0), ThermalError::NotPositive { field: "dt" });
+        assert_eq!(e(base, 2.0), ThermalError::DtTooLong);
         assert_eq!(
-            e(ThermalParams { dt: 0.0, ..base }),
-            ThermalError::NotPositive { field: "dt" }
-        );
-        assert_eq!(
-            e(ThermalParams { dt: 2.0, ..base }),
-            ThermalError::DtTooLong
-        );
-        assert_eq!(
-            e(ThermalParams {
-                rotor_share: 1.1,
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    rotor_share: 1.1,
+                    ..base
+                },
+                1e-3,
+            ),
             ThermalError::RotorShareOutOfRange
         );
         assert_eq!(
-            e(ThermalParams {
-                cooling: Cooling::TimeConstant(0.5),
-                dt: 1.0,
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    cooling: Cooling::TimeConstant(0.5),
+                    ..base
+                },
+                1.0,
+            ),
             ThermalError::DtAboveTimeConstant { seconds: 0 }
         );
         assert_eq!(
-            e(ThermalParams {
-                cooling: Cooling::TimeConstant(1e12),
-                dt: 1e-4,
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    cooling: Cooling::TimeConstant(1e12),
+                    ..base
+                },
+                1e-4,
+            ),
             ThermalError::TimeConstantTooLongForDt
         );
         assert_eq!(
-            e(ThermalParams {
-                rotor_mass: 1e-3,
-                rotor_specific_heat: 1.0,
-                cooling: Cooling::Adiabatic,
-                dt: 0.1,
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    rotor_mass: 1e-3,
+                    rotor_specific_heat: 1.0,
+                    cooling: Cooling::Adiabatic,
+                    ..base
+                },
+                0.1,
+            ),
             ThermalError::HeatCapacityTooSmall {
                 field: "rotor_mass"
             }
         );
         assert_eq!(
-            e(ThermalParams {
-                over_temperature: 200.0,
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    over_temperature: 200.0,
+                    ..base
+                },
+                1e-3,
+            ),
             ThermalError::FlagThresholds
         );
         assert_eq!(
-            e(ThermalParams {
-                measured: Some(MeasuredPlausibility {
-                    min: 10.0,
-                    max: 0.0,
-                    max_rate: 1.0
-                }),
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    measured: Some(MeasuredPlausibility {
+                        min: 10.0,
+                        max: 0.0,
+                        max_rate: 1.0
+                    }),
+                    ..base
+                },
+                1e-3,
+            ),
             ThermalError::MeasuredLimits
         );
         assert_eq!(
-            e(ThermalParams {
-                ambient: f64::NAN,
-                ..base
-            }),
+            e(
+                ThermalParams {
+                    ambient: f64::NAN,
+                    ..base
+                },
+                1e-3,
+            ),
             ThermalError::NotRepresentable { field: "ambient" }
         );
         assert!(format!("{}", ThermalError::DtTooLong).contains("dt"));
@@ -1188,7 +1200,7 @@ mod tests {
                 k: [[k[0], k[1]], [k[2], k[3]]],
                 gamma: g,
                 two_node: true,
-                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap()
+                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap()
             };
             let amb_c = Celsius::from_bits(amb);
             let want = former_update(&cfg, (rotor, lining), amb_c, power);
@@ -1207,7 +1219,7 @@ mod tests {
             let cfg = ThermalConfig::from_bits(ThermalRaw {
                 k_q62: [[0, 0], [0, k.max(K_MIN_Q62)]],
                 gamma_q62: [0, g],
-                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap().to_raw()
+                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap().to_raw()
             }).unwrap();
             let amb_c = Celsius::from_bits(amb);
             let want = former_update(&cfg, (rotor, rotor), amb_c, power);
@@ -1226,7 +1238,7 @@ mod tests {
                 fade_warning: Celsius::from_bits(fade << 16),
                 over_temperature: Celsius::from_bits((fade + gap) << 16),
                 flag_hysteresis: Celsius::from_bits(hyst),
-                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic)).unwrap().to_raw()
+                ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap().to_raw()
             };
             let cfg = ThermalConfig::from_bits(raw).unwrap();
 
@@ -1255,13 +1267,13 @@ mod tests {
 
     #[test]
     fn raw_round_trip_is_exact() {
-        for p in [
-            disc(1e-3, Cooling::Adiabatic),
-            disc(1e-4, Cooling::TimeConstant(613.0)),
-            disc(1e-2, Cooling::Conductance(6.0)),
-            two_node_measured(),
+        for (p, dt) in [
+            (disc(1e-3, Cooling::Adiabatic), 1e-3),
+            (disc(1e-4, Cooling::TimeConstant(613.0)), 1e-4),
+            (disc(1e-2, Cooling::Conductance(6.0)), 1e-2),
+            (two_node_measured(), 1e-3),
         ] {
-            let cfg = ThermalConfig::new(&p).unwrap();
+            let cfg = ThermalConfig::new(&p, dt).unwrap();
             let raw = cfg.to_raw();
             assert_eq!(ThermalConfig::from_bits(raw), Ok(cfg), "{p:?}");
             // Same coefficients, so the same bits out of the update.
@@ -1298,10 +1310,12 @@ mod tests {
 
     #[test]
     fn raw_rejects_what_the_model_cannot_produce() {
-        let one = ThermalConfig::new(&disc(1e-3, Cooling::TimeConstant(613.0)))
+        let one = ThermalConfig::new(&disc(1e-3, Cooling::TimeConstant(613.0)), 1e-3)
             .unwrap()
             .to_raw();
-        let two = ThermalConfig::new(&two_node_measured()).unwrap().to_raw();
+        let two = ThermalConfig::new(&two_node_measured(), 1e-3)
+            .unwrap()
+            .to_raw();
         let e = |r: ThermalRaw| ThermalConfig::from_bits(r).unwrap_err();
         let coefficient = |field| ThermalError::Coefficient { field };
         assert_eq!(

@@ -585,10 +585,13 @@ mod tests {
     use super::*;
     use proptest::prelude::*;
 
+    /// The demo lining, built for a 0.1 ms step ([`DT`]).
+    /// The step the demo lining is built for, s.
+    pub(crate) const DT: f64 = 1e-4;
+
     pub(crate) fn demo() -> WearParams {
         // Invented demo values: 0.4·10⁻⁷ cm³/(N·m) over 80 cm² of pads.
         WearParams {
-            dt: 1e-4,
             bedding_energy: 5e6,
             specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
             lining_area: 80e-4,
@@ -599,7 +602,7 @@ mod tests {
 
     #[test]
     fn no_overflow_and_full_resolution_at_1e10_j() {
-        let cfg = WearConfig::new(&demo()).unwrap();
+        let cfg = WearConfig::new(&demo(), DT).unwrap();
         let mut s = WearState::with_history(&cfg, Joules::from_num(1e10));
         let start = s.raw().0;
         // 30 W for 0.1 ms = 3 mJ a sample, 10⁵ samples = 300 J exactly (dt held as Q63).
@@ -618,7 +621,7 @@ mod tests {
 
     #[test]
     fn saturates_at_the_top_of_joules() {
-        let cfg = WearConfig::new(&demo()).unwrap();
+        let cfg = WearConfig::new(&demo(), DT).unwrap();
         let mut s = WearState::with_history(&cfg, Joules::MAX);
         let out = s.update(&cfg, Watts::MAX);
         assert_eq!(out.energy, Joules::MAX);
@@ -630,7 +633,7 @@ mod tests {
     // 0.4·10⁻¹³ m³/J over 80 cm² → 5.0 mm [calc].
     #[test]
     fn thickness_loss_from_specific_wear_rate() {
-        let cfg = WearConfig::new(&demo()).unwrap();
+        let cfg = WearConfig::new(&demo(), DT).unwrap();
         let s = WearState::with_history(&cfg, Joules::from_num(1e9));
         let loss = s.thickness_loss().to_num::<f64>();
         assert!((loss - 0.005).abs() < 1e-7, "{loss}");
@@ -643,8 +646,11 @@ mod tests {
     #[test]
     fn rejects_bad_configs() {
         let b = demo();
-        let e = |p: WearParams| WearConfig::new(&p).unwrap_err();
-        assert_eq!(e(WearParams { dt: 0.0, ..b }), WearError::DtOutOfRange);
+        let e = |p: WearParams| WearConfig::new(&p, DT).unwrap_err();
+        assert_eq!(
+            WearConfig::new(&b, 0.0).unwrap_err(),
+            WearError::DtOutOfRange
+        );
         assert_eq!(
             e(WearParams {
                 bedding_energy: 0.5,
@@ -683,10 +689,13 @@ mod tests {
             }
         );
         assert!(
-            WearConfig::new(&WearParams {
-                specific_wear_rate: 0.0,
-                ..b
-            })
+            WearConfig::new(
+                &WearParams {
+                    specific_wear_rate: 0.0,
+                    ..b
+                },
+                DT
+            )
             .is_ok()
         );
     }
@@ -694,25 +703,33 @@ mod tests {
     #[test]
     fn raw_round_trip_is_exact() {
         let b = demo();
-        for p in [
-            b,
-            WearParams {
-                specific_wear_rate: 0.0,
-                ..b
-            },
-            WearParams {
-                dt: 1.0,
-                bedding_energy: 1.0,
-                specific_wear_rate: 1e-5 * b.lining_area,
-                ..b
-            },
-            WearParams {
-                bedding_energy: 1e13,
-                specific_wear_rate: 1e-30 * b.lining_area,
-                ..b
-            },
+        for (p, dt) in [
+            (b, DT),
+            (
+                WearParams {
+                    specific_wear_rate: 0.0,
+                    ..b
+                },
+                DT,
+            ),
+            (
+                WearParams {
+                    bedding_energy: 1.0,
+                    specific_wear_rate: 1e-5 * b.lining_area,
+                    ..b
+                },
+                1.0,
+            ),
+            (
+                WearParams {
+                    bedding_energy: 1e13,
+                    specific_wear_rate: 1e-30 * b.lining_area,
+                    ..b
+                },
+                DT,
+            ),
         ] {
-            let cfg = WearConfig::new(&p).unwrap();
+            let cfg = WearConfig::new(&p, dt).unwrap();
             let raw = cfg.to_raw();
             assert_eq!(WearConfig::from_bits(raw), Ok(cfg), "{p:?}");
         }
@@ -739,7 +756,7 @@ mod tests {
 
     #[test]
     fn raw_rejects_what_new_would_not_build() {
-        let raw = WearConfig::new(&demo()).unwrap().to_raw();
+        let raw = WearConfig::new(&demo(), DT).unwrap().to_raw();
         let e = |r: WearRaw| WearConfig::from_bits(r).unwrap_err();
         assert_eq!(e(WearRaw { dt_q63: 0, ..raw }), WearError::DtOutOfRange);
         assert_eq!(
@@ -831,7 +848,7 @@ mod tests {
             let cfg = WearConfig::from_bits(WearRaw {
                 minimum_thickness: Metres::from_bits(min),
                 initial_thickness: Metres::from_bits(min.saturating_add(span).max(min + 1)),
-                ..WearConfig::new(&demo()).unwrap().to_raw()
+                ..WearConfig::new(&demo(), DT).unwrap().to_raw()
             }).unwrap();
             let s = WearState::from_bits(0, unbedded, loss).unwrap();
             let b = (ONE_Q62.saturating_sub(u128::from(unbedded))) >> 32;
@@ -846,8 +863,8 @@ mod tests {
         // of db = (1 − b)·dE/E₀) for any split of the energy into samples.
         #[test]
         fn bedding_monotone_and_bounded(powers in prop::collection::vec(0.0f64..2e7, 1..300)) {
-            let p = WearParams { dt: 1e-2, bedding_energy: 1e6, ..demo() };
-            let cfg = WearConfig::new(&p).unwrap();
+            let p = WearParams { bedding_energy: 1e6, ..demo() };
+            let cfg = WearConfig::new(&p, 1e-2).unwrap();
             let mut s = WearState::new();
             let mut last = Ratio::ZERO;
             let mut taylor = 0.0; // Σ (dE/E₀)⁵/120, the relative shortfall of 1 − b
