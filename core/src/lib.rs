@@ -94,17 +94,17 @@
 //! use clampwise_core::prelude::*;
 //!
 //! // A fictional test-rig brake (demo numbers): one annular face pair, 1 kHz loop.
-//! let contact = Contact::new(Shape::Annulus(Annulus::new(0.060, 0.100)?), 2, None)?;
-//! let mu = MuTable::<2, 2>::new(&[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]])?;
-//! let tables = Tables::new(
-//!     build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?,
-//!     FrictionConfig::new(mu, &FrictionParams {
-//!         static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
-//!         transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
-//!     })?,
-//! );
+//! let contact = Contact::new(Annulus::new(0.060, 0.100)?, 2, None)?;
 //! let device = DeviceConfig::new(&DeviceParams {
-//!     sample_period_s: 1e-3, thermal_wear_every: 1, faces: contact.faces(), tables,
+//!     sample_period_s: 1e-3, thermal_wear_every: 1, faces: contact.faces(),
+//!     tables: Tables::from_contact(
+//!         &contact, &[0.0, 200e3], &[0.0, 1.0],                // r_e over force, bedding
+//!         &[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]], // μ(°C, rad/s)
+//!         &FrictionParams {
+//!             static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
+//!             transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
+//!         },
+//!     )?,
 //!     thermal: ThermalParams {
 //!         rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
 //!         cooling: Cooling::TimeConstant(600.0), ambient: 20.0, lining: None,
@@ -118,13 +118,12 @@
 //!         channels: [ChannelCalibration::linear(0.01, 0.0, AdcRails::signed_bits(24, 8))?],
 //!         filter_cutoff_hz: 200.0,
 //!         limits: DiagnosticLimits::new(-2000.0, 60_000.0, 5e6, 20.0)?,
-//!         voting: VotingLimits { tolerance: Newtons::lit("500"), channel_uncertainty: Newtons::lit("100") },
+//!         voting: VotingLimits::new(500.0, 100.0)?,
 //!         fallback: None,
 //!     },
 //!     adapt: None,
-//!     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
-//!     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
-//!         combination: Combination::WorstCase },
+//!     limits: Limits::new(100.0, 500.0)?,
+//!     tolerances: Tolerances::worst_case(0.2, 0.01)?,
 //! })?;
 //!
 //! let mut estimator = Estimator::new(&device);

@@ -2,11 +2,17 @@
 //! thermal and wear models, the force sensors, the optional adaptation, limits, tolerances and
 //! the sample period.
 //!
-//! Each part is validated by its own constructor (so a part that exists is valid); this module
-//! checks what ties them together (one sample period everywhere, limits inside the tables'
-//! reach) and names the offending field in its error. [`DeviceConfig::new`] is a `const fn`: a
-//! firmware builds its configuration at compile time and keeps it in flash, and a mistake in
-//! it fails the build.
+//! Two ways in:
+//!
+//! - [`DeviceConfig::new`] from SI values ([`DeviceParams`]): the sample period is stated once
+//!   and every model is built for it (host, start-up, bindings);
+//! - [`DeviceConfig::from_parts`] from parts already in fixed point ([`DeviceParts`], each
+//!   validated by its own `from_bits` constructor), a `const fn`: a firmware builds its
+//!   configuration at compile time and keeps it in flash, and a mistake in it fails the build.
+//!   Parts built apart are checked against each other (one sample period everywhere).
+//!
+//! Each error names the offending field. The device is generic over its tables `T`
+//! ([`Tables`], exact sizes) and its number of force channels `C`.
 
 use core::fmt;
 
@@ -111,6 +117,58 @@ pub struct Tolerances {
     pub radius: Ratio,
     /// How the relative tolerances combine.
     pub combination: Combination,
+}
+
+/// A value from f64 into a fixed-point type, or `error`.
+fn fixed_or<F: fixed::traits::Fixed>(v: f64, error: ConfigError) -> Result<F, ConfigError> {
+    if v.is_finite() {
+        F::checked_from_num(v).ok_or(error)
+    } else {
+        Err(error)
+    }
+}
+
+impl Limits {
+    /// Thresholds from SI values: the touch force and the least force the adaptation learns
+    /// at (N, 0 ≤ touch ≤ adapt).
+    ///
+    /// # Errors
+    /// [`ConfigError::TouchForce`] or [`ConfigError::AdaptMinForce`].
+    pub fn new(touch_force_n: f64, adapt_min_force_n: f64) -> Result<Self, ConfigError> {
+        let limits = Self {
+            touch_force: fixed_or(touch_force_n, ConfigError::TouchForce)?,
+            adapt_min_force: fixed_or(adapt_min_force_n, ConfigError::AdaptMinForce)?,
+        };
+        if limits.touch_force < Newtons::ZERO {
+            return Err(ConfigError::TouchForce);
+        }
+        if limits.adapt_min_force < limits.touch_force {
+            return Err(ConfigError::AdaptMinForce);
+        }
+        Ok(limits)
+    }
+}
+
+impl Tolerances {
+    /// Relative tolerances of μ and r_e (each in [0, 1)) combined as the worst case, so that
+    /// the reported ± is a bound.
+    ///
+    /// # Errors
+    /// [`ConfigError::MuTolerance`] or [`ConfigError::RadiusTolerance`].
+    pub fn worst_case(mu: f64, radius: f64) -> Result<Self, ConfigError> {
+        let in_range = |v: f64| (0.0..1.0).contains(&v);
+        if !in_range(mu) {
+            return Err(ConfigError::MuTolerance);
+        }
+        if !in_range(radius) {
+            return Err(ConfigError::RadiusTolerance);
+        }
+        Ok(Self {
+            mu: fixed_or(mu, ConfigError::MuTolerance)?,
+            radius: fixed_or(radius, ConfigError::RadiusTolerance)?,
+            combination: Combination::WorstCase,
+        })
+    }
 }
 
 /// The whole device: its tables `T` (usually [`Tables`], at their exact sizes) and `C` force

@@ -6,10 +6,13 @@ use core::fmt;
 
 use super::{ConfigError, DeviceConfig, DeviceParts, Limits, TableSet, Tolerances};
 use crate::adapt::AdaptConfig;
+use crate::friction::FrictionError;
+use crate::geometry::GeometryError;
 use crate::sensor::{
     ActuatorTransfer, ChannelCalibration, DiagnosticLimits, LowPass, SensorConfig, SensorError,
     VotingLimits,
 };
+use crate::table::TableError;
 use crate::thermal::{ThermalConfig, ThermalError, ThermalParams};
 use crate::units::Seconds;
 use crate::wear::{WearConfig, WearError, WearParams};
@@ -34,8 +37,8 @@ pub struct SensorParams<const C: usize> {
 /// once; [`DeviceConfig::new`] builds each model for it.
 #[derive(Clone, Copy, Debug)]
 pub struct DeviceParams<T, const C: usize> {
-    /// Control-loop sample period (s, 0 < period ≤ 1, a whole number of microseconds or a
-    /// whole sample rate in Hz).
+    /// Control-loop sample period (s, 0 < period ≤ 1, the period of a whole sample rate in Hz
+    /// within 1 ppm).
     pub sample_period_s: f64,
     /// The thermal and wear states advance once every this many samples (1, 2, 4, 8, 16 or
     /// 32), with the energy of all of them.
@@ -59,7 +62,7 @@ pub struct DeviceParams<T, const C: usize> {
 }
 
 /// Why a device could not be built from its [`DeviceParams`]: the part and its own error.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 #[non_exhaustive]
 pub enum DeviceError {
@@ -71,6 +74,12 @@ pub enum DeviceError {
     Wear(WearError),
     /// The force sensors or their filter.
     Sensor(SensorError),
+    /// The contact geometry or the friction-radius table built from it.
+    Geometry(GeometryError),
+    /// A lookup table's breakpoints or values.
+    Table(TableError),
+    /// The μ model's parameters.
+    Friction(FrictionError),
 }
 
 impl fmt::Display for DeviceError {
@@ -80,35 +89,35 @@ impl fmt::Display for DeviceError {
             Self::Thermal(e) => write!(f, "thermal: {e}"),
             Self::Wear(e) => write!(f, "wear: {e}"),
             Self::Sensor(e) => write!(f, "sensors: {e}"),
+            Self::Geometry(e) => write!(f, "geometry: {e}"),
+            Self::Table(e) => write!(f, "table: {e}"),
+            Self::Friction(e) => write!(f, "friction: {e}"),
         }
     }
 }
 
 impl core::error::Error for DeviceError {}
 
-impl From<ConfigError> for DeviceError {
-    fn from(e: ConfigError) -> Self {
-        Self::Config(e)
-    }
+/// `From` each part's error into [`DeviceError`], so `?` works across the parts.
+macro_rules! device_error_from {
+    ($($error:ty => $variant:ident),* $(,)?) => {
+        $(impl From<$error> for DeviceError {
+            fn from(e: $error) -> Self {
+                Self::$variant(e)
+            }
+        })*
+    };
 }
 
-impl From<ThermalError> for DeviceError {
-    fn from(e: ThermalError) -> Self {
-        Self::Thermal(e)
-    }
-}
-
-impl From<WearError> for DeviceError {
-    fn from(e: WearError) -> Self {
-        Self::Wear(e)
-    }
-}
-
-impl From<SensorError> for DeviceError {
-    fn from(e: SensorError) -> Self {
-        Self::Sensor(e)
-    }
-}
+device_error_from!(
+    ConfigError => Config,
+    ThermalError => Thermal,
+    WearError => Wear,
+    SensorError => Sensor,
+    GeometryError => Geometry,
+    TableError => Table,
+    FrictionError => Friction,
+);
 
 /// The whole sample rate in Hz of a period in seconds, when there is one within 1 ppm.
 fn sample_rate_hz(period_s: f64) -> Option<u32> {

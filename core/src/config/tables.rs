@@ -6,8 +6,9 @@
 
 use core::fmt::Debug;
 
-use crate::friction::{FrictionConfig, FrictionSample, FrictionState};
-use crate::geometry::RadiusTable;
+use super::DeviceError;
+use crate::friction::{FrictionConfig, FrictionParams, FrictionSample, FrictionState, MuTable};
+use crate::geometry::{Contact, RadiusTable, build_radius_table};
 use crate::table::Lookup;
 use crate::units::{Celsius, Metres, Newtons, RadPerSec, Ratio};
 
@@ -51,6 +52,45 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> Tables<
     /// Both tables, each already validated by its own constructor.
     pub const fn new(radius: RadiusTable<NF, NB>, friction: FrictionConfig<NT, NV>) -> Self {
         Self { radius, friction }
+    }
+
+    /// Both tables from SI values: the friction-radius table of `contact` at the clamp forces
+    /// `force_breakpoints_n` (N) and beddings `bedding_breakpoints` (0 new … 1 bedded), and the
+    /// μ table `mu[i][j]` at lining temperature `mu_temperatures_c[i]` (°C) and slip speed
+    /// `mu_speeds[j]` (rad/s) with the stick/slip parameters `friction`.
+    ///
+    /// # Errors
+    /// [`DeviceError::Geometry`], [`DeviceError::Table`] or [`DeviceError::Friction`] naming
+    /// what is wrong.
+    ///
+    /// ```
+    /// use clampwise_core::prelude::*;
+    /// let contact = Contact::new(Annulus::new(0.060, 0.100)?, 2, None)?;
+    /// let tables = Tables::from_contact(
+    ///     &contact, &[0.0, 200e3], &[0.0, 1.0],
+    ///     &[20.0, 400.0], &[0.0, 100.0], &[[0.40, 0.38], [0.30, 0.28]],
+    ///     &FrictionParams {
+    ///         static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
+    ///         transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
+    ///     },
+    /// )?;
+    /// // Uniform wear when bedded: r_e = (Ro + Ri)/2 = 80 mm [pub: Shigley, ch. 16].
+    /// let r = tables.lever_arm(Newtons::lit("1000"), Ratio::ONE).value.to_num::<f64>();
+    /// assert!((r - 0.080).abs() < 1e-7);
+    /// # Ok::<(), Box<dyn core::error::Error>>(())
+    /// ```
+    pub fn from_contact(
+        contact: &Contact<'_>,
+        force_breakpoints_n: &[f64; NF],
+        bedding_breakpoints: &[f64; NB],
+        mu_temperatures_c: &[f64; NT],
+        mu_speeds: &[f64; NV],
+        mu: &[[f64; NV]; NT],
+        friction: &FrictionParams,
+    ) -> Result<Self, DeviceError> {
+        let radius = build_radius_table(contact, force_breakpoints_n, bedding_breakpoints)?;
+        let mu = MuTable::new(mu_temperatures_c, mu_speeds, mu)?;
+        Ok(Self::new(radius, FrictionConfig::new(mu, friction)?))
     }
 
     /// The friction-radius table: per-face lever arm (m) over clamp force × bedding.

@@ -33,7 +33,7 @@
 //! assert_eq!(v.force, Newtons::from_num(10_020));
 //! ```
 
-use super::ChannelMask;
+use super::{ChannelMask, Problem, SensorError};
 use crate::units::Newtons;
 
 /// Voting limits (configuration input; validated by [`super::SensorConfig::new`]).
@@ -46,6 +46,32 @@ pub struct VotingLimits {
     /// Uncertainty (±N, ≥ 0) of one healthy calibrated and filtered channel: the uncertainty
     /// reported for a force from the channels before any widening.
     pub channel_uncertainty: Newtons,
+}
+
+impl VotingLimits {
+    /// Limits from SI values: `tolerance_n` (N, > 0) and `channel_uncertainty_n` (±N, ≥ 0).
+    ///
+    /// # Errors
+    /// [`SensorError::Field`] naming a value that is not finite or not representable; the
+    /// signs are checked by [`super::SensorConfig::new`].
+    pub fn new(tolerance_n: f64, channel_uncertainty_n: f64) -> Result<Self, SensorError> {
+        Ok(Self {
+            tolerance: newtons(tolerance_n, "voting.tolerance")?,
+            channel_uncertainty: newtons(channel_uncertainty_n, "voting.channel_uncertainty")?,
+        })
+    }
+}
+
+/// A force in N from f64, or the field's error.
+fn newtons(v: f64, field: &'static str) -> Result<Newtons, SensorError> {
+    let problem = if v.is_finite() {
+        Problem::OutOfRange
+    } else {
+        Problem::NotFinite
+    };
+    Newtons::checked_from_num(v)
+        .filter(|_| v.is_finite())
+        .ok_or(SensorError::Field { field, problem })
 }
 
 /// How the channels agreed in one sample.
