@@ -139,7 +139,7 @@ fn emit<const C: usize>(
         source,
         "/// Saved state the replay starts from (`thermal.initial_temperature_c`,\n\
          /// `wear.initial_energy_j`); `None`: a new lining at ambient temperature.\n\
-         pub const DEVICE_INITIAL_RECORD: Option<[u8; ::clampwise_core::record::RECORD_LEN]> = {};",
+         pub const DEVICE_INITIAL_RECORD: Option<[u8; ::clampwise_core::state_record::RECORD_LEN]> = {};",
         record.map_or_else(
             || "None".to_string(),
             |r| format!(

@@ -29,7 +29,7 @@
 //!   ─► Estimate { torque, capacity, ±, μ, r_e, F, T_lining, bedding, wear, state, flags }
 //!
 //! across power cycles (integers only, at start-up and every few seconds or minutes):
-//!   Estimator::save ─► record::StateRecord (88 B, CRC-32, config checksum)
+//!   Estimator::save ─► state_record::StateRecord (88 B, CRC-32, config checksum)
 //!     ─► record_store::RecordStore (two NOR flash slots, A/B, power-cut safe)
 //!     ─► RecordStore::restore: newest valid record, checked against the config
 //! ```
@@ -184,8 +184,8 @@ pub mod flags;
 pub mod friction;
 pub mod geometry;
 pub mod prelude;
-pub mod record;
 pub mod record_store;
+pub mod state_record;
 #[cfg(feature = "std")]
 pub mod reference;
 pub mod sae_j866;

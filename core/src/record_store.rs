@@ -78,7 +78,7 @@ use embedded_storage::nor_flash::{NorFlash, NorFlashError};
 
 use crate::config::{DeviceConfig, TableSet};
 use crate::estimator::Estimator;
-use crate::record::{RECORD_LEN, RecordError, StateRecord};
+use crate::state_record::{RECORD_LEN, RecordError, StateRecord};
 
 /// Largest half-frame: [`RECORD_LEN`] rounded up to the flash's read and write units must fit.
 pub const HALF_MAX: usize = 128;

@@ -721,7 +721,7 @@ impl ThermalState {
         Self::from_bits(to_q32(rotor), to_q32(lining))
     }
 
-    /// Restore from Q32 °C values (as saved by [`crate::record`]); clamped to the state's range.
+    /// Restore from Q32 °C values (as saved by [`crate::state_record`]); clamped to the state's range.
     pub(crate) fn from_bits(rotor_q32: i64, lining_q32: i64) -> Self {
         Self {
             lining_q32: lining_q32.clamp(T_FLOOR_Q32, T_CEIL_Q32),

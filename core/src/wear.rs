@@ -457,7 +457,7 @@ impl WearState {
         }
     }
 
-    /// Restore from raw state words (as saved by [`crate::record`]); `None` if out of range.
+    /// Restore from raw state words (as saved by [`crate::state_record`]); `None` if out of range.
     pub(crate) fn from_bits(energy_q64: u128, unbedded_q62: u64, loss_q96: u128) -> Option<Self> {
         (energy_q64 <= ENERGY_MAX_Q64 && u128::from(unbedded_q62) <= ONE_Q62).then_some(Self {
             energy_q64,

@@ -39,7 +39,7 @@
 use clampwise_core::config::{DeviceConfig, TableSet};
 use clampwise_core::estimator::{self, ContactState, Estimate, Estimator, EstimatorState};
 use clampwise_core::flags::Flags;
-use clampwise_core::record::{RecordError, StateRecord};
+use clampwise_core::state_record::{RecordError, StateRecord};
 use clampwise_core::record_store::{LoadError, RecordStore, SlotState, StoreError};
 use clampwise_core::sensor::RawChannel;
 use embedded_storage::nor_flash::NorFlash;

@@ -32,7 +32,7 @@
 
 use core::fmt;
 
-use clampwise_core::record::RecordError;
+use clampwise_core::state_record::RecordError;
 
 use crate::adc::Channel;
 use crate::app::{

@@ -38,9 +38,9 @@
 //! # Ok::<(), clampwise_core::record_store::StoreError<embedded_storage::nor_flash::NorFlashErrorKind>>(())
 //! ```
 
-use clampwise_core::record::RecordError;
+use clampwise_core::state_record::RecordError;
 // The types of `Persist`'s signatures, named here so `forward_persist!` can reach them.
-pub use clampwise_core::record::StateRecord;
+pub use clampwise_core::state_record::StateRecord;
 use clampwise_core::record_store::SlotState;
 pub use clampwise_core::record_store::{LoadError, RecordStore, StoreError};
 pub use embedded_storage::nor_flash::NorFlash;

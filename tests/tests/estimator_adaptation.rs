@@ -6,7 +6,7 @@ use estimator_common::*;
 
 use clampwise_core::estimator::{ContactState, Estimator, Inputs};
 use clampwise_core::flags::Flags;
-use clampwise_core::record::RecordError;
+use clampwise_core::state_record::RecordError;
 use clampwise_core::units::{NewtonMetres, RadPerSec, Ratio};
 
 /// The "true" lining gives 15 % more torque than the table: the reference torque is the

@@ -27,7 +27,7 @@ use clampwise_core::estimator::{Combination, ContactState, Estimate, Estimator, 
 use clampwise_core::flags::Flags;
 use clampwise_core::friction::FrictionConfig;
 use clampwise_core::geometry::{Annulus, Contact, build_radius_table};
-use clampwise_core::record::StateRecord;
+use clampwise_core::state_record::StateRecord;
 use clampwise_core::reference::friction::FrictionModel;
 use clampwise_core::reference::pipeline::{
     PipelineEstimate, PipelineInputs, PipelineModel, PipelineParts, RlsParams,

@@ -14,7 +14,7 @@ use estimator_common::*;
 use clampwise_core::config::{ConfigError, DeviceConfig, DeviceParts};
 use clampwise_core::estimator::{Estimate, Estimator, Inputs};
 use clampwise_core::flags::Flags;
-use clampwise_core::record::StateRecord;
+use clampwise_core::state_record::StateRecord;
 use clampwise_core::thermal::{ThermalConfig, ThermalParams};
 use clampwise_core::units::RadPerSec;
 

@@ -6,7 +6,7 @@
 mod estimator_common;
 
 use clampwise_core::estimator::{Estimator, Inputs};
-use clampwise_core::record::{RECORD_LEN, RecordError, StateRecord};
+use clampwise_core::state_record::{RECORD_LEN, RecordError, StateRecord};
 use clampwise_core::thermal::ThermalState;
 use clampwise_core::units::{Celsius, Joules, Metres, RadPerSec, Ratio};
 use clampwise_core::wear::WearState;

@@ -17,7 +17,7 @@
 mod estimator_common;
 
 use clampwise_core::estimator::{Estimator, Inputs};
-use clampwise_core::record::{RECORD_LEN, RecordError, StateRecord};
+use clampwise_core::state_record::{RECORD_LEN, RecordError, StateRecord};
 use clampwise_core::record_store::{LoadError, RecordStore, SlotState, StoreError};
 use clampwise_core::units::{NewtonMetres, RadPerSec};
 use embedded_storage::nor_flash::{

@@ -1,11 +1,11 @@
 //! The estimator's slow state to and from a [`StateRecord`]: what a controller keeps across
-//! power cycles (see [`crate::record`] for the format and the checks, and
+//! power cycles (see [`crate::state_record`] for the format and the checks, and
 //! [`crate::record_store`] for keeping it on NOR flash).
 
 use super::Estimator;
 use crate::adapt::AdaptState;
 use crate::config::{DeviceConfig, TableSet};
-use crate::record::{RECORD_LEN, RecordError, StateRecord};
+use crate::state_record::{RECORD_LEN, RecordError, StateRecord};
 use crate::units::Ratio;
 use crate::wear::WearState;
 

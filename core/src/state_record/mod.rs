@@ -294,7 +294,7 @@ impl StateRecord {
     /// estimator.
     ///
     /// ```
-    /// use clampwise_core::record::StateRecord;
+    /// use clampwise_core::state_record::StateRecord;
     /// use clampwise_core::thermal::ThermalState;
     /// use clampwise_core::units::{Celsius, Ratio};
     /// use clampwise_core::wear::WearState;
@@ -356,7 +356,7 @@ impl StateRecord {
     /// Encode as a record with checksum.
     ///
     /// ```
-    /// use clampwise_core::record::{RECORD_LEN, StateRecord};
+    /// use clampwise_core::state_record::{RECORD_LEN, StateRecord};
     /// # use clampwise_core::{thermal::ThermalState, units::{Celsius, Ratio}, wear::WearState};
     /// # let rec = StateRecord::new(1, 0, &WearState::new(), &ThermalState::with_temperatures(Celsius::ZERO, Celsius::ZERO), Ratio::ONE, Ratio::ZERO);
     /// let bytes: [u8; RECORD_LEN] = rec.to_bytes();
@@ -400,7 +400,7 @@ impl StateRecord {
     /// [`RecordError::TemperatureOutOfRange`], checked in that order.
     ///
     /// ```
-    /// use clampwise_core::record::{RecordError, StateRecord};
+    /// use clampwise_core::state_record::{RecordError, StateRecord};
     /// # use clampwise_core::{thermal::ThermalState, units::{Celsius, Ratio}, wear::WearState};
     /// # let rec = StateRecord::new(1, 0, &WearState::new(), &ThermalState::with_temperatures(Celsius::ZERO, Celsius::ZERO), Ratio::ONE, Ratio::ZERO);
     /// let mut bytes = rec.to_bytes();
