@@ -155,41 +155,8 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
         }
         let mut counts = Vec::with_capacity(channels);
         for (f, v) in force.iter().zip(&valid) {
-            let ok = match v {
-                None => true,
-                Some(v) => match text(v) {
-                    "1" | "1.0" | "true" => true,
-                    "0" | "0.0" | "false" => false,
-                    other => {
-                        return Err(format!(
-                            "{}: valid bit must be 0 or 1, got `{other}`",
-                            at(v)
-                        ));
-                    }
-                },
-            };
-            let cell = text(f);
-            let value = if !ok {
-                None
-            } else if cell.is_empty() {
-                return Err(format!("{}: empty, but the channel is marked valid", at(f)));
-            } else {
-                let n: f64 = cell
-                    .parse()
-                    .map_err(|_| format!("{}: `{cell}` is not a number of counts", at(f)))?;
-                #[allow(clippy::cast_precision_loss)] // the ADC limits are exact in f64
-                let in_range = (ADC_MIN as f64..=ADC_MAX as f64).contains(&n);
-                if n.fract() != 0.0 || !in_range {
-                    return Err(format!(
-                        "{}: {n} is not a whole count within the signed 24-bit ADC range",
-                        at(f)
-                    ));
-                }
-                // Whole and within ±2²³ by the check above.
-                #[allow(clippy::cast_possible_truncation)]
-                Some(n as i32)
-            };
-            counts.push(value);
+            let valid_bit = v.as_ref().map(|v| (text(v), at(v)));
+            counts.push(channel_counts(text(f), valid_bit, &at(f))?);
         }
         let omega_in_bits = sat::<RadPerSec>(number(&omega_in)?);
         let omega_out_bits = match &omega_out {
@@ -213,6 +180,43 @@ pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<R
         ));
     }
     Ok(rows)
+}
+
+/// One channel's counts: `None` when its valid bit (text and location, when the trace has the
+/// column) says invalid; an error naming `at` for a cell that is not a whole count within the
+/// signed 24-bit ADC range.
+fn channel_counts(
+    cell: &str,
+    valid_bit: Option<(&str, String)>,
+    at: &str,
+) -> Result<Option<i32>, String> {
+    let ok = match valid_bit {
+        None => true,
+        Some((text, where_)) => match text {
+            "1" | "1.0" | "true" => true,
+            "0" | "0.0" | "false" => false,
+            other => return Err(format!("{where_}: valid bit must be 0 or 1, got `{other}`")),
+        },
+    };
+    if !ok {
+        return Ok(None);
+    }
+    if cell.is_empty() {
+        return Err(format!("{at}: empty, but the channel is marked valid"));
+    }
+    let n: f64 = cell
+        .parse()
+        .map_err(|_| format!("{at}: `{cell}` is not a number of counts"))?;
+    #[allow(clippy::cast_precision_loss)] // the ADC limits are exact in f64
+    let in_range = (ADC_MIN as f64..=ADC_MAX as f64).contains(&n);
+    if n.fract() != 0.0 || !in_range {
+        return Err(format!(
+            "{at}: {n} is not a whole count within the signed 24-bit ADC range"
+        ));
+    }
+    // Whole and within ±2²³ by the check above.
+    #[allow(clippy::cast_possible_truncation)]
+    Ok(Some(n as i32))
 }
 
 /// `trace.rs`: the names of the inputs and the trace as a `static` array.
