@@ -374,68 +374,13 @@ impl<const C: usize> PlainEstimator<C> {
     }
 
     /// One sample.
-    #[allow(clippy::cast_precision_loss, clippy::too_many_lines)]
+    #[allow(clippy::cast_precision_loss)]
     pub fn step<const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
         &mut self,
         cfg: &PlainConfig<C, NF, NB, NT, NV>,
         inp: &PlainInputs<C>,
     ) -> PlainEstimate {
-        // Force: calibrate, compensate, check, filter, vote.
-        let mut good = [0.0f32; 4];
-        let mut n = 0usize;
-        for (((filt, primed), &counts), &valid) in self
-            .filtered
-            .iter_mut()
-            .zip(self.primed.iter_mut())
-            .zip(inp.counts.iter())
-            .zip(inp.valid.iter())
-        {
-            if !valid {
-                continue;
-            }
-            let mut f = counts as f32 * cfg.gain + cfg.offset;
-            if let (Some(c), Some(t)) = (cfg.compensation, inp.sensor_temperature) {
-                let d = t.clamp(c.min, c.max) - c.reference;
-                f = f * (1.0 + c.span_per_kelvin * d) + c.zero_per_kelvin * d;
-            }
-            if f < cfg.force_range.0 || f > cfg.force_range.1 {
-                continue;
-            }
-            if *primed && libm::fabsf(f - *filt) > cfg.max_step {
-                continue;
-            }
-            *filt = if *primed {
-                *filt + cfg.alpha * (f - *filt)
-            } else {
-                f
-            };
-            *primed = true;
-            if let Some(g) = good.get_mut(n) {
-                *g = *filt;
-                n += 1;
-            }
-        }
-        let [a, b, c, _] = good;
-        let force = match n {
-            0 => match (cfg.fallback_gain, inp.command) {
-                (Some(g), Some(c)) => Some(g * c),
-                _ => None,
-            },
-            1 => Some(a),
-            2 => Some(0.5 * (a + b)),
-            _ => {
-                // Median of the first three, then the mean of those within tolerance of it.
-                let median = a.max(b).min(a.min(b).max(c));
-                let (mut sum, mut k) = (0.0, 0.0);
-                for &g in good.iter().take(n) {
-                    if libm::fabsf(g - median) <= cfg.vote_tolerance {
-                        sum += g;
-                        k += 1.0;
-                    }
-                }
-                Some(if k > 0.0 { sum / k } else { median })
-            }
-        };
+        let (force, n) = self.conditioned_force(cfg, inp);
 
         let v = inp.input_speed - inp.output_speed;
         let speed = libm::fabsf(v);
@@ -498,19 +443,9 @@ impl<const C: usize> PlainEstimator<C> {
         self.heat(cfg, power);
         let wear = self.energy * cfg.wear_per_joule;
 
-        // Adaptation: scalar RLS on k.
-        if let (Some(a), Some(reference)) = (cfg.adapt, inp.reference_torque)
-            && state == PlainState::Slipping
-            && force >= a.min_force
-            && n == C
-        {
-            let model = -libm::copysignf(cfg.faces * mu / self.k * force * r, v) / a.full_scale;
-            if libm::fabsf(model) >= a.min_excitation {
-                let y = reference / a.full_scale;
-                let gain = self.p * model / (a.lambda + model * model * self.p);
-                self.k = (self.k + gain * (y - model * self.k)).clamp(a.min, a.max);
-                self.p = ((self.p - gain * model * self.p) / a.lambda).clamp(1e-6, 1.0);
-            }
+        // Adaptation: scalar RLS on k, only with every channel healthy.
+        if n == C && state == PlainState::Slipping {
+            self.adapt(cfg, inp, force, cfg.faces * mu / self.k * force * r, v);
         }
 
         // Uncertainty of what is reported.
@@ -547,6 +482,96 @@ impl<const C: usize> PlainEstimator<C> {
             correction: self.k,
             state,
             flags,
+        }
+    }
+
+    /// Force: calibrate, compensate, check, filter, vote; the force (or the actuator's) and the
+    /// number of channels that passed.
+    #[allow(clippy::cast_precision_loss)]
+    fn conditioned_force<const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
+        &mut self,
+        cfg: &PlainConfig<C, NF, NB, NT, NV>,
+        inp: &PlainInputs<C>,
+    ) -> (Option<f32>, usize) {
+        let mut good = [0.0f32; 4];
+        let mut n = 0usize;
+        for (((filt, primed), &counts), &valid) in self
+            .filtered
+            .iter_mut()
+            .zip(self.primed.iter_mut())
+            .zip(inp.counts.iter())
+            .zip(inp.valid.iter())
+        {
+            if !valid {
+                continue;
+            }
+            let mut f = counts as f32 * cfg.gain + cfg.offset;
+            if let (Some(c), Some(t)) = (cfg.compensation, inp.sensor_temperature) {
+                let d = t.clamp(c.min, c.max) - c.reference;
+                f = f * (1.0 + c.span_per_kelvin * d) + c.zero_per_kelvin * d;
+            }
+            if f < cfg.force_range.0 || f > cfg.force_range.1 {
+                continue;
+            }
+            if *primed && libm::fabsf(f - *filt) > cfg.max_step {
+                continue;
+            }
+            *filt = if *primed {
+                *filt + cfg.alpha * (f - *filt)
+            } else {
+                f
+            };
+            *primed = true;
+            if let Some(g) = good.get_mut(n) {
+                *g = *filt;
+                n += 1;
+            }
+        }
+        let [a, b, c, _] = good;
+        let force = match n {
+            0 => match (cfg.fallback_gain, inp.command) {
+                (Some(g), Some(c)) => Some(g * c),
+                _ => None,
+            },
+            1 => Some(a),
+            2 => Some(0.5 * (a + b)),
+            _ => {
+                // Median of the first three, then the mean of those within tolerance of it.
+                let median = a.max(b).min(a.min(b).max(c));
+                let (mut sum, mut k) = (0.0, 0.0);
+                for &g in good.iter().take(n) {
+                    if libm::fabsf(g - median) <= cfg.vote_tolerance {
+                        sum += g;
+                        k += 1.0;
+                    }
+                }
+                Some(if k > 0.0 { sum / k } else { median })
+            }
+        };
+
+        (force, n)
+    }
+
+    /// Scalar RLS on k from a slipping sample's reference torque; `model` is the
+    /// uncorrected torque magnitude and `v` the slip speed.
+    fn adapt<const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
+        &mut self,
+        cfg: &PlainConfig<C, NF, NB, NT, NV>,
+        inp: &PlainInputs<C>,
+        force: f32,
+        model_magnitude: f32,
+        v: f32,
+    ) {
+        if let (Some(a), Some(reference)) = (cfg.adapt, inp.reference_torque)
+            && force >= a.min_force
+        {
+            let model = -libm::copysignf(model_magnitude, v) / a.full_scale;
+            if libm::fabsf(model) >= a.min_excitation {
+                let y = reference / a.full_scale;
+                let gain = self.p * model / (a.lambda + model * model * self.p);
+                self.k = (self.k + gain * (y - model * self.k)).clamp(a.min, a.max);
+                self.p = ((self.p - gain * model * self.p) / a.lambda).clamp(1e-6, 1.0);
+            }
         }
     }
 
