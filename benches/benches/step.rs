@@ -202,7 +202,7 @@ fn lookup(c: &mut Criterion) {
             t2f.lookup(black_box(xs_f[k]), black_box(ys_f[k]))
         });
     });
-    let radius = full.radius_table();
+    let radius = full.tables().radius();
     g.bench_function("fixed/radius-3x3", |b| {
         b.iter(|| {
             let k = next();
@@ -220,7 +220,7 @@ fn lookup(c: &mut Criterion) {
                 .lookup(black_box(forces_f[k]), black_box(beds_f[k]))
         });
     });
-    let mu = full.friction().mu_kinetic();
+    let mu = full.tables().friction().mu_kinetic();
     g.bench_function("fixed/mu-6x5", |b| {
         b.iter(|| {
             let k = next();
