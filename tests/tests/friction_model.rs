@@ -7,9 +7,9 @@
 )]
 
 use clampwise_core::friction::{FrictionConfig, FrictionParams, FrictionState, MuTable};
-use clampwise_core::reference::friction::FrictionModel;
 use clampwise_core::sae_j866::FrictionCode;
 use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec, Ratio};
+use clampwise_tests::f64_model::friction::FrictionModel;
 use proptest::prelude::*;
 
 const LSB_MU: f64 = 1.0 / 1_073_741_824.0; // Ratio, 2⁻³⁰
