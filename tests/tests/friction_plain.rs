@@ -72,7 +72,7 @@ proptest! {
         let mut fast = FrictionState::new();
         let mut slow = false;
         if slipping {
-            // Start slipping: one sample far above the band (its upper edge is below 2²⁶ raw,
+            // Start slipping: one sample far above the band (its upper edge is at most 2²⁵ raw,
             // as stick ≤ 2²⁴ and the hysteresis < 2·stick), compared as every other.
             let (v, t, c) = (RadPerSec::MAX, Celsius::from_bits(ts[0]), Ratio::ONE);
             let got = fast.update(&cfg, v, t, c);
