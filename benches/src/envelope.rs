@@ -1,5 +1,5 @@
-//! Accuracy envelope: the fixed-point pipeline (`Estimator::step`) against the f64 reference
-//! over a grid of clamp force × slip speed × lining temperature × bedding.
+//! Accuracy envelope: the fixed-point pipeline (`Estimator::step`) against the f64 model
+//! (clampwise-tests) over a grid of clamp force × slip speed × lining temperature × bedding.
 //!
 //! ## Method
 //!
@@ -12,8 +12,8 @@
 //!   dissipated energy `E = −E₀·ln(1 − b)` that gives the cell's bedding `b`
 //!   (`E = 40·E₀` for b = 1) is restored with `Estimator::restore`, and one `step` is run with
 //!   the cell's force (counts = F · 256, exact) and slip speed;
-//! - **reference**: `reference::friction::FrictionModel` on the *same SI μ table* (f64
-//!   bilinear, smoothstep blend, drag), `reference::wear::WearModel` for the bedding of the
+//! - **reference**: `f64_model::friction::FrictionModel` on the *same SI μ table* (f64
+//!   bilinear, smoothstep blend, drag), `f64_model::wear::WearModel` for the bedding of the
 //!   same energy (closed form), `geometry::Contact::lever_arm` for r_e (f64 formulas, not the
 //!   stored table), and T = −sign(v)·n·μ·F·r_e + drag in f64; the inputs are the fixed-point
 //!   values of the grid's speed and temperature, so only the pipeline's arithmetic, table
@@ -42,8 +42,7 @@ use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Toleranc
 use clampwise_core::estimator::{Combination, ContactState, Estimator, Inputs};
 use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
 use clampwise_core::geometry::{Contact, build_radius_table};
-use clampwise_core::reference::friction::FrictionModel;
-use clampwise_core::reference::wear::WearModel;
+use clampwise_core::state_record::StateRecord;
 use clampwise_core::sensor::{
     AdcRails, ChannelCalibration, Debounce, DebounceSet, DiagnosticLimits, LowPass,
     NewtonsPerCount, NewtonsPerSecond, SensorConfig, VotingLimits,
@@ -52,6 +51,8 @@ use clampwise_core::state_record::StateRecord;
 use clampwise_core::thermal::{ThermalConfig, ThermalState};
 use clampwise_core::units::{Celsius, Joules, Newtons, RadPerSec, Ratio, Seconds};
 use clampwise_core::wear::{WearConfig, WearState};
+use clampwise_tests::f64_model::friction::FrictionModel;
+use clampwise_tests::f64_model::wear::WearModel;
 
 use crate::device::{
     self, BEDDING_ENERGY, COUNTS_PER_NEWTON, FULL_FRICTION, MU_SPEEDS, MU_TEMPERATURES, MU_VALUES,

@@ -3,7 +3,7 @@
 //! Benchmarks and budgets of the clampwise core: the cost of one `Estimator::step` (criterion
 //! on the host, callgrind instruction counts, QEMU instruction counts on Cortex-M), against a
 //! plain f32 implementation of the same physics; and the accuracy envelope of the fixed-point
-//! pipeline against the f64 reference models. `BENCHMARKS.md` at the repository root says how
+//! pipeline against the f64 model of clampwise-tests. `BENCHMARKS.md` at the repository root says how
 //! to run each and what the numbers mean.
 //!
 //! Without the default `std` feature the library is `no_std` (the devices, the input

@@ -1,8 +1,9 @@
 //! The accuracy envelope holds the project's bound: the fixed-point pipeline is within 0.1 % of
 //! reading of the f64 reference for every clamp force at or above 5 % of full scale, over the
 //! whole force × slip speed × temperature × bedding grid (method: `envelope` module docs).
-//! The reference is the core's f64 models (`reference::friction`, `reference::wear`) and the
-//! geometry's f64 closed forms (annulus r_e, Shigley ch. 16 [pub]), not the fixed-point code.
+//! The reference is the f64 model of clampwise-tests (`f64_model::friction`, `f64_model::wear`)
+//! and the geometry's f64 closed forms (annulus r_e, Shigley ch. 16 [pub]), not the fixed-point
+//! code.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
 use clampwise_benches::envelope::{self, BEDDING, BOUND, FORCES_N, SPEEDS, TEMPERATURES};

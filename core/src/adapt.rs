@@ -573,7 +573,7 @@ mod tests {
                 AdaptError::Covariance
             );
         }
-        // A band end below one LSB now fails in `new` too, with the same error.
+        // A band end below one LSB fails in `new` too, with the same error.
         assert_eq!(
             AdaptConfig::new(1e-12, 1.2, 0.99, NewtonMetres::from_num(100), 0.1),
             Err(AdaptError::Band)

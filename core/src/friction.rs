@@ -10,8 +10,8 @@
 //! the correction multiply is skipped for a correction of exactly 1 (the estimator's case,
 //! bit for bit the same), and saturation is kept only where a value can reach a limit.
 //! Measured on x86-64 with callgrind on the bench device (6 × 5 table): about 200 instructions
-//! per call, lookups included; a property test holds the result bit for bit to the former
-//! dividing, saturating implementation over every input.
+//! per call, lookups included; a property test in clampwise-tests (`friction_plain`) holds the
+//! result bit for bit to a plain dividing, saturating implementation over every input.
 //!
 //! ## Model
 //!
@@ -39,8 +39,8 @@
 //!
 //! μ is a [`Ratio`] (I2F30, LSB 0.93·10⁻⁹). The table lookup is within 1 LSB of the exact
 //! bilinear interpolant of its stored values and exact at breakpoints (see [`crate::table`]).
-//! Against the f64 reference `reference::friction` (feature `std`) over the envelope
-//! (−50…1000 °C, ±2000 rad/s with fine steps near zero slip, correction 0…1.9; a wet-clutch and
+//! Against the f64 model `clampwise_tests::f64_model::friction` (in the tests crate) over the
+//! envelope (−50…1000 °C, ±2000 rad/s with fine steps near zero slip, correction 0…1.9; a wet-clutch and
 //! a dry-caliper demo table; test `friction_envelope` in clampwise-tests), measured worst case:
 //! **μ within 2.1 LSB (2.0·10⁻⁹)**, static μ within 1.8 LSB, drag torque within **0.9 LSB of
 //! [`NewtonMetres`] (0.22 mN·m)**; the tests hold these to 3 LSB and 1 LSB. The stick/slip
@@ -819,195 +819,6 @@ mod tests {
         let width = c.slip_threshold() - c.stick_threshold();
         assert!(width >= RadPerSec::from_num(0.04) - RadPerSec::DELTA);
         assert!(c.stick_threshold() > RadPerSec::ZERO);
-    }
-
-    /// The former update (two full lookups by division, saturating arithmetic throughout, the
-    /// correction always multiplied), kept as the reference the faster update must match.
-    mod former {
-        use super::super::*;
-        use crate::table::reference::lookup2;
-
-        fn ratio_from_i64(v: i64) -> (Ratio, bool) {
-            match i32::try_from(v) {
-                Ok(b) => (Ratio::from_bits(b), false),
-                Err(_) => (
-                    Ratio::from_bits(if v < 0 { i32::MIN } else { i32::MAX }),
-                    true,
-                ),
-            }
-        }
-
-        fn mul_q30(a: i64, b: i64) -> i64 {
-            a.saturating_mul(b).saturating_add(ONE_Q30 >> 1) >> 30
-        }
-
-        fn smoothstep_q30(speed: i32, v_t: i32, recip: i64) -> i64 {
-            if speed >= v_t {
-                return ONE_Q30;
-            }
-            let s = (i64::from(speed).saturating_mul(recip) >> 16).clamp(0, ONE_Q30);
-            let s2 = s.saturating_mul(s) >> 30;
-            (s2.saturating_mul((3 * ONE_Q30).saturating_sub(s.saturating_mul(2))) >> 30)
-                .clamp(0, ONE_Q30)
-        }
-
-        fn drag<const NT: usize, const NV: usize>(
-            cfg: &FrictionConfig<NT, NV>,
-            speed: i32,
-            phi: i64,
-            v: i32,
-        ) -> (NewtonMetres, bool) {
-            if v == 0 {
-                return (NewtonMetres::ZERO, false);
-            }
-            let viscous = i64::from(cfg.viscous_drag.to_bits())
-                .saturating_mul(i64::from(speed))
-                .saturating_add(1 << 19)
-                >> 20;
-            let no_load = i64::from(cfg.no_load_drag.to_bits())
-                .saturating_mul(phi)
-                .saturating_add(ONE_Q30 >> 1)
-                >> 30;
-            let magnitude = viscous.saturating_add(no_load);
-            let signed = if v > 0 {
-                magnitude.saturating_neg()
-            } else {
-                magnitude
-            };
-            match i32::try_from(signed) {
-                Ok(b) => (NewtonMetres::from_bits(b), false),
-                Err(_) => (
-                    NewtonMetres::from_bits(if signed < 0 { -i32::MAX } else { i32::MAX }),
-                    true,
-                ),
-            }
-        }
-
-        pub(super) fn update<const NT: usize, const NV: usize>(
-            slipping: &mut bool,
-            cfg: &FrictionConfig<NT, NV>,
-            slip_speed: RadPerSec,
-            lining_temp: Celsius,
-            correction: Ratio,
-        ) -> FrictionSample {
-            let v = slip_speed.to_bits();
-            let speed = v.saturating_abs();
-            *slipping = if *slipping {
-                speed >= cfg.stick_below
-            } else {
-                speed > cfg.slip_above
-            };
-            let mut saturated = correction.to_bits() < 0;
-            let corr = i64::from(correction.to_bits().max(0));
-            let t = &cfg.mu_kinetic;
-            let (x, y, z) = (t.x_breakpoints(), t.y_breakpoints(), t.values());
-            let running = lookup2(x, y, z, lining_temp, RadPerSec::from_bits(speed));
-            let standstill = lookup2(x, y, z, lining_temp, y[0]);
-            let (mu_k, sat_k) = ratio_from_i64(mul_q30(i64::from(running.0), corr));
-            let mu_s_corr = mul_q30(i64::from(standstill.0), corr);
-            let (mu_s, sat_s) = ratio_from_i64(mul_q30(
-                mu_s_corr,
-                i64::from(cfg.static_to_kinetic.to_bits()),
-            ));
-            saturated |= sat_k || sat_s;
-            let phi = smoothstep_q30(speed, cfg.transition_speed.to_bits(), cfg.transition_recip);
-            let mk = i64::from(mu_k.to_bits());
-            let ms = i64::from(mu_s.to_bits());
-            let (mu, _) = ratio_from_i64(
-                mk.saturating_add(mul_q30(ms.saturating_sub(mk), ONE_Q30.saturating_sub(phi))),
-            );
-            let (drag_torque, sat_d) = drag(cfg, speed, phi, v);
-            saturated |= sat_d;
-            let direction = if *slipping {
-                if v > 0 { -1 } else { 1 }
-            } else {
-                0
-            };
-            FrictionSample {
-                mu_kinetic: mu,
-                mu_static: mu_s,
-                transition_span: Ratio::from_bits(
-                    i32::try_from(mu.to_bits().abs_diff(mu_k.to_bits())).unwrap_or(i32::MAX),
-                ),
-                slipping: *slipping,
-                direction,
-                drag_torque,
-                clamped: running.1 || standstill.1,
-                saturated,
-            }
-        }
-    }
-
-    /// A strictly increasing axis of 3 raw values from a start and two step lengths (each
-    /// below 2³⁰ + 1, so the whole span fits an i32 axis).
-    fn axis3(start: i32, steps: [u32; 2]) -> [i32; 3] {
-        let a = i64::from(start);
-        let b = a + 1 + i64::from(steps[0] >> 2);
-        let c = b + 1 + i64::from(steps[1] >> 2);
-        let excess = (c - i64::from(i32::MAX)).max(0);
-        [a, b, c].map(|v| i32::try_from(v - excess).unwrap())
-    }
-
-    /// A raw value biased towards a few interesting ones.
-    fn raw_or(special: &[i32], pick: (u8, i32)) -> i32 {
-        let (kind, raw) = pick;
-        match special.get(usize::from(kind % 8)) {
-            Some(&v) => v,
-            None => raw,
-        }
-    }
-
-    proptest! {
-        #![proptest_config(ProptestConfig::with_cases(3000))]
-
-        // The update against the former implementation over every input (any slip speed,
-        // temperature and correction, including i32::MIN, negative and saturating corrections)
-        // and random valid configurations (drag large enough to saturate): every field and the
-        // state must agree bit for bit.
-        #[test]
-        fn update_matches_former_update(
-            t_axis in (any::<i32>(), any::<[u32; 2]>()),
-            v_axis in (0i32..=1 << 24, any::<[u32; 2]>()),
-            mu in prop::collection::vec(0..=MU_MAX.to_bits(), 9),
-            ratio in 1..=STATIC_RATIO_MAX.to_bits(),
-            stick in 1i32..=1 << 24,
-            hyst in any::<u32>(),
-            v_t in prop_oneof![1i32..=1 << 20, 1..=i32::MAX],
-            drags in prop_oneof![(0i32..=1 << 20, 0i32..=1 << 20), (0..=i32::MAX, 0..=i32::MAX)],
-            inputs in prop::collection::vec(
-                ((any::<u8>(), any::<i32>()), (any::<u8>(), any::<i32>()), (any::<u8>(), any::<i32>())),
-                24,
-            ),
-            slipping in any::<bool>(),
-        ) {
-            let ts = axis3(t_axis.0, t_axis.1);
-            let vs = axis3(v_axis.0, v_axis.1.map(|s| s >> 6));
-            let z = [[mu[0], mu[1], mu[2]], [mu[3], mu[4], mu[5]], [mu[6], mu[7], mu[8]]];
-            let table = MuTable::<3, 3>::from_bits(
-                ts.map(Celsius::from_bits),
-                vs.map(RadPerSec::from_bits),
-                z.map(|r| r.map(Ratio::from_bits)),
-            ).unwrap();
-            // Hysteresis in (0, 2·stick): 1 + hyst mod (2·stick − 1).
-            let h = 1 + i32::try_from(i64::from(hyst) % (2 * i64::from(stick) - 1).max(1)).unwrap();
-            let cfg = FrictionConfig::from_bits(
-                table, Ratio::from_bits(ratio), RadPerSec::from_bits(stick), RadPerSec::from_bits(h),
-                RadPerSec::from_bits(v_t), ViscousDrag::from_bits(drags.0),
-                NewtonMetres::from_bits(drags.1),
-            ).unwrap();
-            let mut fast = FrictionState { slipping };
-            let mut slow = slipping;
-            for (v, t, c) in inputs {
-                let v = raw_or(&[0, i32::MIN, i32::MAX, -1, 1, stick, -v_t, v_t - 1], v);
-                let t = raw_or(&[ts[0], ts[1], ts[2], ts[2].saturating_add(1), i32::MIN, i32::MAX], t);
-                let c = raw_or(&[1 << 30, 1 << 30, 1 << 30, 0, -1, i32::MAX, i32::MIN], c);
-                let (v, t, c) = (RadPerSec::from_bits(v), Celsius::from_bits(t), Ratio::from_bits(c));
-                let got = fast.update(&cfg, v, t, c);
-                let want = former::update(&mut slow, &cfg, v, t, c);
-                prop_assert_eq!(got, want, "v={:?} t={:?} c={:?}", v, t, c);
-                prop_assert_eq!(fast.is_slipping(), slow);
-            }
-        }
     }
 
     proptest! {

@@ -141,8 +141,8 @@
 //!
 //! ## Friction, thermal and wear state: measured error of the fixed-point path
 //!
-//! Each model is checked against its f64 reference (`reference`, feature `std`) over the
-//! envelope (−50…1000 °C, ±2000 rad/s, 0…10 MW, dt 0.1…10 ms); worst cases measured:
+//! Each model is checked against the f64 model of the same equations
+//! (`clampwise_tests::f64_model`, in the tests crate) over the envelope (−50…1000 °C, ±2000 rad/s, 0…10 MW, dt 0.1…10 ms); worst cases measured:
 //!
 //! | model | quantity | worst case |
 //! |---|---|---|
@@ -152,11 +152,11 @@
 //! | [`thermal`] | rotor and lining temperature | 7.7·10⁻⁶ K (½ LSB of `Celsius`) |
 //! | [`wear`] | energy / bedding / thickness loss | 1 LSB each (15 µJ / 9.3·10⁻¹⁰ / 60 nm) |
 //!
-//! ## The whole pipeline: measured error against the f64 reference
+//! ## The whole pipeline: measured error against the f64 model
 //!
 //! [`estimator::Estimator::step`] against the independent f64 pipeline
-//! `reference::pipeline` (feature `std`; same model, floats throughout, given the same
-//! conditioned clamp force), `tests/tests/estimator_reference.rs`:
+//! `clampwise_tests::f64_model::pipeline` (in the tests crate; same model, floats throughout,
+//! given the same conditioned clamp force), `tests/tests/estimator_reference.rs`:
 //!
 //! | run | worst error |
 //! |---|---|
@@ -171,10 +171,6 @@
 #![cfg_attr(not(test), no_std)]
 #![forbid(unsafe_code)]
 
-// The f64 reference models use std's float functions; host only.
-#[cfg(feature = "std")]
-extern crate std;
-
 pub mod adapt;
 mod checksum;
 pub mod config;
@@ -185,11 +181,9 @@ pub mod friction;
 pub mod geometry;
 pub mod prelude;
 pub mod record_store;
-pub mod state_record;
-#[cfg(feature = "std")]
-pub mod reference;
 pub mod sae_j866;
 pub mod sensor;
+pub mod state_record;
 pub mod table;
 pub mod thermal;
 pub mod units;

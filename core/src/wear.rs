@@ -31,8 +31,8 @@
 //! still counts in full at 10¹⁰ J and beyond (tested). Each bedding step multiplies `1 − b` by
 //! the fourth-order Taylor polynomial of `exp(−dE/E₀)` rounded down, so `b` is monotone, never
 //! above 1, and within `Σ (dE/E₀)⁵/120 + n·2⁻⁶²` of `1 − exp(−E/E₀)`. Measured against the
-//! f64 reference `reference::wear` (feature `std`) over powers 0…10 MW, dt 0.1…10 ms and
-//! starting energies 0…10¹⁰ J (test `wear_envelope` in clampwise-tests): bedding within
+//! f64 model `clampwise_tests::f64_model::wear` (in the tests crate) over powers 0…10 MW,
+//! dt 0.1…10 ms and starting energies 0…10¹⁰ J (test `wear_envelope` in clampwise-tests): bedding within
 //! **1 LSB of [`Ratio`]** (9.3·10⁻¹⁰; the tests allow 2), energy within **1 LSB of [`Joules`]**
 //! (15 µJ; the output truncates), thickness loss within **1 LSB of [`Metres`]** (60 nm).
 //!
@@ -823,8 +823,8 @@ mod tests {
     }
 
     proptest! {
-        // The u64 polynomial (with its divisions by 3) gives the very bits of the u128 one it
-        // replaced.
+        // The u64 polynomial (with its divisions by 3) gives the very bits of the plain u128
+        // polynomial.
         #[test]
         fn bedding_step_same_bits_as_u128(x in 0u64..=(1 << 62), unbedded in 0u64..=(1 << 62)) {
             let wide = {
@@ -839,7 +839,7 @@ mod tests {
         }
 
         // The read-outs (bedding in u64, worn out against the limit fixed at configuration)
-        // give what the former forms gave, for every state and thickness limit.
+        // give what the direct forms give, for every state and thickness limit.
         #[test]
         fn read_outs_same_as_direct_forms(
             unbedded in 0u64..=(1 << 62), loss in 0u128..(1 << 105), min in 0i32..i32::MAX,

@@ -1809,8 +1809,8 @@ mod tests {
 
     #[test]
     fn keys_the_core_cannot_honour_are_rejected_by_name() {
-        // Per-sensor filter settings moved to [sensing] (the core filters all channels alike);
-        // the old key must not be silently ignored.
+        // Filter settings belong to [sensing] (the core filters all channels alike); a filter
+        // key under a sensor must not be silently ignored.
         let src = DEMO.replacen(
             "rail_margin_counts = 8",
             "rail_margin_counts = 8\nfilter_cutoff_hz = 50.0",

@@ -70,5 +70,5 @@ pub mod timestamps;
 pub mod trace;
 
 // The config layer lives in `clampwise-device` (a firmware's build script uses it too); it is
-// re-exported here under its old paths.
+// re-exported here so the simulator's users name it as part of the simulator.
 pub use clampwise_device::{build_core, column_units, config, emit};

@@ -32,7 +32,7 @@
 //! `clampwise_device::build_core::ChannelDevice`).
 
 use clampwise_core::estimator::{ContactState, Estimate, Estimator, Inputs};
-use clampwise_core::state_record::RecordError;
+use clampwise_core::record::RecordError;
 use clampwise_core::sensor::RawChannel;
 use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 use clampwise_device::build_core::{

@@ -518,8 +518,8 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
         .zip(l.force.iter().zip(&l.valid))
     {
         if let Some(vc) = vc {
-            // The usual spellings straight from the bytes; anything else (blanks to trim,
-            // other words) through the trimmed text, as before.
+            // The usual spellings straight from the bytes (no allocation); anything else
+            // (blanks to trim, other words) through the trimmed text.
             *valid = match row.bytes(vc.index) {
                 b"1" => true,
                 b"0" => false,

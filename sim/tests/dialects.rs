@@ -58,7 +58,7 @@ fn replay_json(args: &[&str]) -> (i32, serde_json::Value, String) {
 
 /// The `;`-separated, decimal-comma file of a spreadsheet export, and a tab-separated one,
 /// give estimates identical to the comma/point original, byte for byte; the summary says what
-/// was sniffed. The `;` file is the case once misread as "missing column 't_s'".
+/// was sniffed. A `;` file read as ','-separated would fail with "missing column 't_s'".
 #[test]
 fn semicolon_decimal_comma_and_tab_files_replay_as_the_original() {
     let d = scratch("dialect_same");

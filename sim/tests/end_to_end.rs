@@ -332,9 +332,8 @@ fn several_traces_in_parallel() {
 
 #[test]
 fn fit_recovers_a_known_table_and_reports_unreached_cells() {
-    // Truth: the plant's μ is 0.90 × the config's table. Tolerance (re-measured 2026-12-02
-    // with the core's estimator, which now models temperature, bedding and wear and filters
-    // the force): every entry reached with coverage ≥ 2500 sample-equivalents within 0.25 % of
+    // Truth: the plant's μ is 0.90 × the config's table. Tolerance (measured with the core's
+    // estimator, which models temperature, bedding and wear and filters the force): every entry reached with coverage ≥ 2500 sample-equivalents within 0.25 % of
     // 0.90 × prior (measured worst 0.16–0.17 % over seeds 11–14), every entry with coverage
     // ≥ 1000 within 1.5 % (measured worst 1.30–1.33 %, the same two sparsely covered 10 rad/s
     // entries every seed: a systematic, not noise — the samples there fall in force ramps,

@@ -39,7 +39,7 @@ fn parts() -> Parts {
 
 /// Build from `parts`, expect `want`, and check the message names `field`.
 fn rejects(parts: Parts, want: ConfigError, field: &str) {
-    let e = DeviceConfig::new(parts).expect_err("an invalid field was accepted");
+    let e = DeviceConfig::from_parts(parts).expect_err("an invalid field was accepted");
     assert_eq!(e, want);
     assert_eq!(e.field(), field);
     let msg = e.to_string();
@@ -55,7 +55,7 @@ fn rejects(parts: Parts, want: ConfigError, field: &str) {
 #[test]
 fn the_valid_parts_are_accepted() {
     // Otherwise the rejections below could come from a part that is not the one changed.
-    assert!(DeviceConfig::new(parts()).is_ok());
+    assert!(DeviceConfig::from_parts(parts()).is_ok());
 }
 
 #[test]
@@ -84,7 +84,7 @@ fn sample_period() {
     }
     // 1 s is the longest accepted; with parts built for 1 ms it then fails on the thermal
     // model's period, the next check, which shows 1 s itself passed.
-    let e = DeviceConfig::new(Parts {
+    let e = DeviceConfig::from_parts(Parts {
         sample_period: Seconds::ONE,
         ..parts()
     });
@@ -94,9 +94,8 @@ fn sample_period() {
 #[test]
 fn thermal_sample_period() {
     let thermal = ThermalConfig::new(&ThermalParams {
-        dt: 2e-3,
         ..thermal_params()
-    })
+    }, 2e-3)
     .unwrap();
     rejects(
         Parts { thermal, ..parts() },
@@ -108,9 +107,8 @@ fn thermal_sample_period() {
 #[test]
 fn wear_sample_period() {
     let wear = WearConfig::new(&WearParams {
-        dt: 2e-3,
         ..wear_params()
-    })
+    }, 2e-3)
     .unwrap();
     rejects(
         Parts { wear, ..parts() },
@@ -154,7 +152,7 @@ fn adapt_min_force() {
     rejects(p, ConfigError::AdaptMinForce, "limits.adapt_min_force_n");
     // Equal is allowed.
     p.limits.adapt_min_force = Newtons::from_num(100);
-    assert!(DeviceConfig::new(p).is_ok());
+    assert!(DeviceConfig::from_parts(p).is_ok());
 }
 
 #[test]

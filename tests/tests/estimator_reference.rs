@@ -1,7 +1,7 @@
-//! The fixed-point estimator against its f64 reference (`reference::pipeline`): a property test
+//! The fixed-point estimator against the f64 model (`f64_model::pipeline`): a property test
 //! over the envelope (10⁵ random devices and operating points) and a sample-by-sample braking
 //! event. The measured worst cases are printed (`--nocapture`) and stated in the docs of
-//! `reference::pipeline`.
+//! `f64_model::pipeline`.
 //!
 //! The comparison starts at the conditioned clamp force: the channel's calibration maps counts
 //! 1:1 onto the `Newtons` LSB and the force is constant within a case, so the sensor filter
@@ -28,17 +28,17 @@ use clampwise_core::flags::Flags;
 use clampwise_core::friction::FrictionConfig;
 use clampwise_core::geometry::{Annulus, Contact, build_radius_table};
 use clampwise_core::state_record::StateRecord;
-use clampwise_core::reference::friction::FrictionModel;
-use clampwise_core::reference::pipeline::{
-    PipelineEstimate, PipelineInputs, PipelineModel, PipelineParts, RlsParams,
-};
 use clampwise_core::thermal::{ThermalConfig, ThermalState};
 use clampwise_core::units::{Celsius, Joules, NewtonMetres, Newtons, RadPerSec, Ratio, Seconds};
 use clampwise_core::wear::{WearConfig, WearState};
+use clampwise_tests::f64_model::friction::FrictionModel;
+use clampwise_tests::f64_model::pipeline::{
+    PipelineEstimate, PipelineInputs, PipelineModel, PipelineParts, RlsParams,
+};
 use proptest::prelude::*;
 use proptest::test_runner::{Config, TestRunner};
 
-/// The project's target: 0.1 % of reading above 5 % of full scale (issue 5).
+/// The project's accuracy target: 0.1 % of reading above 5 % of full scale.
 const TARGET_RELATIVE: f64 = 1e-3;
 const ABOVE_FULL_SCALE_FRACTION: f64 = 0.05;
 /// Largest clamp force of the envelope, N.
@@ -72,7 +72,7 @@ fn common(spec: &Spec<'_>) -> Common {
 fn device_for(c: &Common, contact: &Contact<'_>, adapt: Option<AdaptConfig>) -> Device<1> {
     // The radius axis reaches past the envelope's 200 kN so no lookup is clamped in force.
     let radius = build_radius_table::<2, 2>(contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
-    DeviceConfig::new(DeviceParts {
+    DeviceConfig::from_parts(DeviceParts {
         sample_period: Seconds::from_num(DT),
         thermal_wear_every: 1,
         faces: contact.faces(),

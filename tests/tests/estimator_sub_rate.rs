@@ -166,18 +166,17 @@ fn bad_sub_rates_are_named() {
         tolerances: *good.tolerances(),
     };
     for every in [0u8, 3, 6, 64] {
-        let e = DeviceConfig::new(parts(every, *good.thermal())).unwrap_err();
+        let e = DeviceConfig::from_parts(parts(every, *good.thermal())).unwrap_err();
         assert_eq!(e, ConfigError::ThermalWearEvery, "every {every}");
         assert_eq!(e.field(), "device.thermal_wear_every");
     }
     // Every 8 samples, but the thermal model built for one sample.
     let per_sample = ThermalConfig::new(&ThermalParams {
-        dt: DT,
         ..thermal_params()
-    })
+    }, DT)
     .unwrap();
     assert_eq!(
-        DeviceConfig::new(parts(8, per_sample)).unwrap_err(),
+        DeviceConfig::from_parts(parts(8, per_sample)).unwrap_err(),
         ConfigError::ThermalSamplePeriod
     );
     assert_eq!(good.thermal_wear_every(), 8);

@@ -7,9 +7,9 @@
 )]
 
 use clampwise_core::friction::{FrictionConfig, FrictionParams, FrictionState, MuTable};
-use clampwise_core::reference::friction::FrictionModel;
 use clampwise_core::sae_j866::FrictionCode;
 use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec, Ratio};
+use clampwise_tests::f64_model::friction::FrictionModel;
 use proptest::prelude::*;
 
 const LSB_MU: f64 = 1.0 / 1_073_741_824.0; // Ratio, 2⁻³⁰
@@ -19,7 +19,7 @@ const LSB_NM: f64 = 1.0 / 4096.0; // NewtonMetres, 2⁻¹²
 /// μ near 0.11 [pub: Tribology Handbook, oil-immersed paper], rising with slip speed as wet
 /// clutches want against shudder [practice], falling when the oil is hot.
 fn wet_clutch() -> FrictionConfig<4, 5> {
-    let mu = MuTable::from_f64(
+    let mu = MuTable::new(
         &[-40.0, 40.0, 120.0, 200.0],
         &[0.0, 1.0, 10.0, 100.0, 1000.0],
         &[
@@ -46,7 +46,7 @@ fn wet_clutch() -> FrictionConfig<4, 5> {
 
 /// Demo dry caliper lining (invented): resin-like, μ falls above ≈ 230 °C [pub: Day ch. 2].
 fn dry_caliper() -> FrictionConfig<5, 4> {
-    let mu = MuTable::from_f64(
+    let mu = MuTable::new(
         &[-40.0, 100.0, 230.0, 400.0, 650.0],
         &[0.0, 10.0, 100.0, 1000.0],
         &[

@@ -1,14 +1,14 @@
 //! The optimised sensor conditioning against its plain definition, bit for bit.
 //!
-//! `sensor_reference` keeps the conditioning as first written (every product in i128, one
+//! `clampwise_tests::plain::sensor` defines the conditioning plainly (every product in i128, one
 //! state machine per debounce, every voting subset searched after a rank sort). Here both run
 //! side by side over arbitrary configurations (1 to 4 channels, with and without temperature
 //! compensation, stuck check and fallback; any gain, rails, limits, debounce counts and filter
 //! coefficient the configuration accepts) and arbitrary sample sequences, and every field of
-//! every `ForceReading` must be equal but two: the uncertainty, which now also covers the
-//! witnesses the vote cannot rule out and the actuator model's band when the two disagree, must
-//! never be *smaller* than the first definition's; and a force the model finds implausible is
-//! degraded. The public building blocks (`vote`, `ChannelCalibration::force`) are compared over
+//! every `ForceReading` must be equal but two: the uncertainty, which the core widens to cover
+//! the witnesses the vote cannot rule out and the actuator model's band when the two disagree,
+//! must never be *smaller* than the plain definition's; and a force the model finds
+//! implausible is degraded. The public building blocks (`vote`, `ChannelCalibration::force`) are compared over
 //! any input the same way.
 #![allow(
     clippy::unwrap_used,
@@ -18,12 +18,10 @@
     clippy::cast_possible_wrap
 )]
 
-mod sensor_reference;
-
 use clampwise_core::sensor::*;
 use clampwise_core::units::{Celsius, Newtons, Seconds};
+use clampwise_tests::plain::sensor::{self as plain_sensor, PlainSensor};
 use proptest::prelude::*;
-use sensor_reference::RefState;
 
 fn rails_strategy() -> impl Strategy<Value = AdcRails> {
     prop_oneof![
@@ -246,7 +244,7 @@ impl Parts {
     }
 
     fn config<const C: usize>(&self) -> Option<SensorConfig<C>> {
-        let filter = LowPass::from_coefficient_bits(self.alpha, self.rate).ok()?;
+        let filter = LowPass::from_bits(self.alpha, self.rate).ok()?;
         let cals: [ChannelCalibration; C] = core::array::from_fn(|i| *self.cal(i));
         SensorConfig::new(
             self.rate,
@@ -343,19 +341,19 @@ fn run<const C: usize>(
     let cfg = parts.config::<C>();
     prop_assume!(cfg.is_some());
     let Some(cfg) = cfg else { return Ok(()) };
-    let mut new = SensorState::<C>::new();
-    let mut old = RefState::<C>::new();
+    let mut optimised = SensorState::<C>::new();
+    let mut plain = PlainSensor::<C>::new();
     let mut level = 10_000i64;
     for (k, s) in samples.iter().enumerate() {
         level = next_level(level, s, sticky);
         let raw = raw_for::<C>(parts, level, s);
         let command = s.command.map(ActuatorCommand::from_bits);
         let temperature = s.temperature.map(Celsius::from_bits);
-        let want = old.update(&cfg, &raw, command, temperature);
-        let got = new.update(&cfg, &raw, command, temperature);
+        let want = plain.update(&cfg, &raw, command, temperature);
+        let got = optimised.update(&cfg, &raw, command, temperature);
         prop_assert!(
             got.uncertainty >= want.uncertainty,
-            "sample {}: ± {} below the first definition's {}",
+            "sample {}: ± {} below the plain definition's {}",
             k,
             got.uncertainty,
             want.uncertainty
@@ -450,7 +448,7 @@ proptest! {
         ],
     ) {
         let tol = Newtons::from_bits(tol);
-        prop_assert_eq!(vote(&c, tol, model), sensor_reference::vote(&c, tol, model));
+        prop_assert_eq!(vote(&c, tol, model), plain_sensor::vote(&c, tol, model));
     }
 
     // Counts → newtons on any counts and temperature, for any calibration the configuration
@@ -464,7 +462,7 @@ proptest! {
         prop_assume!(cal.validate(0).is_ok());
         let t = t.map(Celsius::from_bits);
         let got = cal.force(counts, t);
-        let (bits, saturated, clamped) = sensor_reference::calibrate(&cal, counts, t);
+        let (bits, saturated, clamped) = plain_sensor::calibrate(&cal, counts, t);
         prop_assert_eq!(
             (got.force.to_bits(), got.saturated, got.temperature_clamped),
             (bits, saturated, clamped)

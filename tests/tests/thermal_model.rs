@@ -8,9 +8,9 @@
     clippy::cast_sign_loss
 )]
 
-use clampwise_core::reference::thermal::ThermalModel;
 use clampwise_core::thermal::{Cooling, LiningNode, ThermalConfig, ThermalParams, ThermalState};
 use clampwise_core::units::{Celsius, Watts};
+use clampwise_tests::f64_model::thermal::ThermalModel;
 use proptest::prelude::*;
 
 /// REFERENCES.md check vector [calc]: 8 kg disc, c = 460 J/(kg·K), h = 50 W/(m²·K),

@@ -7,9 +7,9 @@
     clippy::cast_sign_loss
 )]
 
-use clampwise_core::reference::wear::WearModel;
 use clampwise_core::units::{Joules, Watts};
 use clampwise_core::wear::{WEAR_RATE_UNIT, WearConfig, WearParams, WearState};
+use clampwise_tests::f64_model::wear::WearModel;
 use proptest::prelude::*;
 
 fn params(dt: f64) -> WearParams {

@@ -16,7 +16,7 @@ use clampwise_benches::{baseline, device};
 use clampwise_core::estimator::{Estimate, Estimator, Inputs};
 
 /// FNV-1a over every field of the estimate, so a changed bit anywhere changes the checksum
-/// (used to confirm that a performance change keeps the results bit-identical).
+/// (it confirms that a performance change keeps the results bit-identical).
 fn fixed_sum(e: &Estimate) -> i64 {
     let words = [
         i64::from(e.torque.map_or(i32::MIN, |t| t.to_bits())),

@@ -59,9 +59,9 @@ fn times_q30_up(x: u64, q: u64) -> u64 {
 /// the exact root of the inputs, and it is above by at most (√3 + 1) units of the shift, that is
 /// 1.7·10⁻⁴ of the root when a shift is needed (the largest term keeps at least 2¹⁴ units), and
 /// at most 1 LSB (10⁻⁹) otherwise. A ± bound rounded up stays a bound. On a Cortex-M0+ (no long
-/// multiply, no divider) the whole uncertainty now costs under 200 instructions besides the δF/F
-/// division, where the root of the 64-bit sum alone cost about 1 100; the same value comes out
-/// on every target.
+/// multiply, no divider) the whole uncertainty costs under 200 instructions besides the δF/F
+/// division, where the root of a 64-bit sum alone would cost about 1 100; the same value comes
+/// out on every target.
 fn root_sum_square_up(a: u32, b: u32, c: u32) -> u64 {
     let largest = a.max(b).max(c);
     // largest < 2^(32 − leading_zeros); after the shift it is below 2¹⁵, and ≤ 2¹⁵ rounded up.

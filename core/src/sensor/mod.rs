@@ -24,8 +24,9 @@
 //! products of the filter (one per channel) and of a temperature compensation (one per channel
 //! and one per evaluation, once per sample when the channels share it): no 128-bit arithmetic
 //! in the checks, the vote or the uncertainty. A test (`tests/tests/sensor_equivalence.rs`)
-//! compares every reading bit for bit with the conditioning as first written (all products in
-//! i128, one state machine per debounce, every voting subset searched).
+//! compares every reading bit for bit with a plain implementation in clampwise-tests
+//! (`plain::sensor`: all products in i128, one state machine per debounce, every voting subset
+//! searched).
 //!
 //! ## Units
 //!

@@ -53,7 +53,7 @@ pub use tables::CoreTables;
 
 use clampwise_core::adapt::AdaptState;
 use clampwise_core::config::DeviceParts;
-use clampwise_core::state_record::{RECORD_LEN, StateRecord};
+use clampwise_core::record::{RECORD_LEN, StateRecord};
 use clampwise_core::thermal::ThermalState;
 use clampwise_core::units::{Celsius, Joules, Ratio, Seconds};
 use clampwise_core::wear::WearState;

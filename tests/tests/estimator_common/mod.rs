@@ -66,7 +66,7 @@ impl Default for Spec<'static> {
 /// Demo lining (invented numbers): μ 0.40 cold, fading to 0.30 at 400 °C, a little lower at
 /// speed.
 pub fn mu_table() -> MuTable<3, 3> {
-    MuTable::from_f64(
+    MuTable::new(
         &[0.0, 200.0, 400.0],
         &[0.0, 50.0, 200.0],
         &[[0.40, 0.39, 0.37], [0.38, 0.37, 0.35], [0.30, 0.29, 0.27]],
@@ -162,7 +162,7 @@ pub fn device_with_sub_rate<const C: usize>(spec: &Spec<'_>, every: u8) -> Devic
         dt: DT * f64::from(every),
         ..thermal_params()
     };
-    DeviceConfig::new(DeviceParts {
+    DeviceConfig::from_parts(DeviceParts {
         sample_period: Seconds::from_num(DT),
         thermal_wear_every: every,
         faces: spec.contact.faces(),

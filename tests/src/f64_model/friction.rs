@@ -1,16 +1,16 @@
-//! f64 reference of [`crate::friction`].
+//! f64 model of [`clampwise_core::friction`].
 //!
 //! The table, thresholds and coefficients are taken as f64 (from a [`FrictionConfig`] so that
 //! only the arithmetic differs, or from SI values for a plant model); the model is written from
-//! the formulas in [`crate::friction`], not from the fixed-point code.
+//! the formulas in [`clampwise_core::friction`], not from the fixed-point code.
 
-// Host-only reference: indices come from `locate`, bounded by the axis lengths, and a panic in a
+// Host-only test oracle: indices come from `locate`, bounded by the axis lengths, and a panic in a
 // test is a failure we want to see.
 #![allow(clippy::indexing_slicing)]
 
-use crate::friction::{FrictionConfig, FrictionParams};
+use clampwise_core::friction::{FrictionConfig, FrictionParams};
 
-/// One sample of the reference model.
+/// One sample of the f64 model.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct FrictionOutput {
     /// μ used for the slipping torque (corrected, blended).

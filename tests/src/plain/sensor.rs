@@ -1,9 +1,8 @@
-//! The sensor conditioning as it was before the per-sample cost was cut (issue 8), frozen here
-//! as the plain definition the optimised `SensorState::update` is compared with, bit for bit:
-//! every product in i128, each debounce its own state machine, every voting subset searched
-//! after a rank sort. Only public configuration accessors of the core are used, so nothing here
-//! shares code with the implementation under test.
-#![allow(dead_code, clippy::unwrap_used)]
+//! Plain sensor conditioning: the definition the optimised `SensorState::update` is compared
+//! with, bit for bit: every product in i128, each debounce its own state machine, every voting
+//! subset searched after a rank sort. Only public configuration accessors of the core are used,
+//! so nothing here shares code with the implementation under test.
+#![allow(clippy::unwrap_used)]
 
 use clampwise_core::sensor::*;
 use clampwise_core::units::{Celsius, Newtons};
@@ -50,7 +49,7 @@ fn round_shr(v: i128, s: u32) -> i128 {
     v.wrapping_add(1i128 << (s - 1)) >> s
 }
 
-/// (force bits, saturated, temperature clamped)
+/// One channel's calibration in i128: (force bits, saturated, temperature clamped).
 pub fn calibrate(
     cal: &ChannelCalibration,
     counts: i32,
@@ -498,15 +497,22 @@ struct Channel {
     filter: Lp,
 }
 
-/// Reference state of the force sensing.
+/// Plain state of the force sensing: per channel its debounces, filter and diagnostics.
 #[derive(Clone, Copy, Debug)]
-pub struct RefState<const C: usize> {
+pub struct PlainSensor<const C: usize> {
     channels: [Channel; C],
     actuator: Act,
     temperature: Option<Celsius>,
 }
 
-impl<const C: usize> RefState<C> {
+impl<const C: usize> Default for PlainSensor<C> {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+impl<const C: usize> PlainSensor<C> {
+    /// Every channel fresh, as `SensorState::new`.
     pub fn new() -> Self {
         Self {
             channels: [Channel::default(); C],
@@ -515,6 +521,7 @@ impl<const C: usize> RefState<C> {
         }
     }
 
+    /// One sample, as `SensorState::update`.
     pub fn update(
         &mut self,
         cfg: &SensorConfig<C>,
@@ -648,7 +655,8 @@ impl<const C: usize> RefState<C> {
             channel_force,
             saturated,
             temperature_clamped,
-            // The conditioning as first written had no plausibility check.
+            // The plain definition checks no plausibility against the actuator model; the
+            // equivalence test compares that flag on its own.
             implausible: false,
         }
     }

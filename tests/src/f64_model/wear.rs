@@ -1,10 +1,10 @@
-//! f64 reference of [`crate::wear`]: energy summed with Neumaier's compensated summation (so
+//! f64 model of [`clampwise_core::wear`]: energy summed with Neumaier's compensated summation (so
 //! 10⁷ small increments keep their sum to ~1 ulp), bedding in closed form `1 − exp(−E/E₀)`, and
 //! thickness loss `k·E/A`.
 
-use crate::wear::WearParams;
+use clampwise_core::wear::WearParams;
 
-/// One sample of the reference wear model.
+/// One sample of the f64 wear model.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct WearOutput {
     /// Energy dissipated, J.

@@ -1,6 +1,6 @@
-//! f64 reference of the estimator's per-sample pipeline ([`crate::estimator::Estimator::step`]),
-//! host only: the same model written plainly in floating point, to measure the fixed-point
-//! path against.
+//! f64 model of the estimator's per-sample pipeline
+//! ([`clampwise_core::estimator::Estimator::step`]), host only: the same model written plainly
+//! in floating point, to measure the fixed-point path against.
 //!
 //! It starts where the sensor stage ends: its input is the *conditioned* clamp force in newtons
 //! (calibrated, filtered, diagnosed and voted), its stated ± uncertainty and whether the sensors
@@ -8,26 +8,27 @@
 //! `sensor_filter` in clampwise-tests) and is not repeated here. From there it carries its own
 //! f64 state and calls nothing of the fixed-point path:
 //!
-//! | stage | reference |
+//! | stage | f64 model |
 //! |---|---|
 //! | stick/slip, μ (kinetic, blended; static), drag | [`super::friction::FrictionModel`] |
 //! | lining temperature | [`super::thermal::ThermalModel`] (RK4, not the exact exponential) |
 //! | energy, bedding, wear | [`super::wear::WearModel`] (compensated sum, closed-form bedding) |
 //! | lever arm r_e | [`Contact::lever_arm`] in f64 at the current bedding (no table) |
-//! | correction k on μ | [`RlsModel`]: scalar RLS in f64, the equations of [`crate::adapt`] |
+//! | correction k on μ | [`RlsModel`]: scalar RLS in f64, the equations of
+//!   [`clampwise_core::adapt`] |
 //! | torque, capacity, ± | n·k·μ·F·r_e and the tolerance sum of the estimator, in f64 |
 //!
 //! Order within a sample is the estimator's: μ and r_e use the temperature and bedding left by
 //! the previous sample; this sample's dissipated power |T·v| then heats and beds the lining.
 //! A measured lining temperature is not modelled (the reference is the physics only).
 //!
-//! ## Fixed point against this reference (measured)
+//! ## Fixed point against this model (measured)
 //!
 //! `tests/tests/estimator_reference.rs` runs 100 000 random devices and operating points —
 //! clamp force 0…200 kN, slip speed ±(0.1…2000) rad/s or held (|v| < 0.03 rad/s), lining
 //! −50…1000 °C, bedding 0…1, 1…12 faces, annuli with radii in 20 mm…1 m, flat or cones of
-//! 8°…30° — through [`crate::estimator::Estimator`] and this model, four samples each, with
-//! the same (quantised) inputs, and compares torque and holding capacity. Full scale is the
+//! 8°…30° — through [`clampwise_core::estimator::Estimator`] and this model, four samples
+//! each, with the same (quantised) inputs, and compares torque and holding capacity. Full scale is the
 //! device's n·μ_s,max·200 kN·r_e,max, capped at the largest representable torque (524 kN·m).
 //!
 //! - Worst relative error of torque and capacity above 5 % of full scale: **3.4·10⁻⁶**
@@ -52,8 +53,8 @@
 //! use clampwise_core::estimator::{Combination, ContactState};
 //! use clampwise_core::friction::{FrictionParams, MuTable};
 //! use clampwise_core::geometry::{Annulus, Contact};
-//! use clampwise_core::reference::friction::FrictionModel;
-//! use clampwise_core::reference::pipeline::{PipelineInputs, PipelineModel, PipelineParts};
+//! use clampwise_tests::f64_model::friction::FrictionModel;
+//! use clampwise_tests::f64_model::pipeline::{PipelineInputs, PipelineModel, PipelineParts};
 //! use clampwise_core::thermal::{Cooling, ThermalParams};
 //! use clampwise_core::wear::WearParams;
 //!
@@ -89,11 +90,11 @@
 //! # Ok::<(), clampwise_core::geometry::GeometryError>(())
 //! ```
 
-use crate::config::{DeviceConfig, Tables};
-use crate::estimator::{Combination, ContactState};
-use crate::geometry::Contact;
-use crate::thermal::ThermalParams;
-use crate::wear::WearParams;
+use clampwise_core::config::{DeviceConfig, Tables};
+use clampwise_core::estimator::{Combination, ContactState};
+use clampwise_core::geometry::Contact;
+use clampwise_core::thermal::ThermalParams;
+use clampwise_core::wear::WearParams;
 
 use super::friction::FrictionModel;
 use super::thermal::ThermalModel;
@@ -103,10 +104,11 @@ use super::wear::WearModel;
 /// adaptation and the uncertainty saturate there, as the core does (the edge of its Q2.30
 /// format).
 const NORMALISED_MAX: f64 = 2.0;
-/// Largest innovation y − φ·k one RLS step acts on, as in [`crate::adapt`].
+/// Largest innovation y − φ·k one RLS step acts on, as in [`clampwise_core::adapt`].
 const INNOVATION_MAX: f64 = 4.0;
 
-/// Settings of the f64 adaptation: those of [`crate::adapt::AdaptConfig::new`], in SI units.
+/// Settings of the f64 adaptation: those of [`clampwise_core::adapt::AdaptConfig::new`], in SI
+/// units.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct RlsParams {
     /// Lower end of the band of the correction factor k (0 < k_min ≤ 1).
@@ -129,8 +131,8 @@ pub struct RlsParams {
 
 impl RlsParams {
     /// The band, λ, full scale (N·m) and minimum excitation as given to
-    /// [`crate::adapt::AdaptConfig::new`], with the covariance settings that constructor uses:
-    /// P₀ = 1, P ∈ [10⁻⁶, 1.9]. Not validated (a reference takes what it is given).
+    /// [`clampwise_core::adapt::AdaptConfig::new`], with the covariance settings that
+    /// constructor uses: P₀ = 1, P ∈ [10⁻⁶, 1.9]. Not validated (a reference takes what it is given).
     pub fn new(
         min_factor: f64,
         max_factor: f64,
@@ -307,7 +309,7 @@ impl PipelineInputs {
     }
 }
 
-/// One sample of output, mirroring [`crate::estimator::Estimate`] in f64.
+/// One sample of output, mirroring [`clampwise_core::estimator::Estimate`] in f64.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct PipelineEstimate {
     /// Friction torque, N·m, opposing slip; `None` while holding or without force.
@@ -366,9 +368,9 @@ impl<'a, const NT: usize, const NV: usize> PipelineModel<'a, NT, NV> {
     }
 
     /// Rotor and lining at `lining_temperature` (°C), `energy` (J) dissipated since new: the
-    /// counterpart of [`crate::estimator::Estimator::restore`] from a record holding
-    /// [`crate::thermal::ThermalState::with_temperatures`] and
-    /// [`crate::wear::WearState::with_history`].
+    /// counterpart of [`clampwise_core::estimator::Estimator::restore`] from a record holding
+    /// [`clampwise_core::thermal::ThermalState::with_temperatures`] and
+    /// [`clampwise_core::wear::WearState::with_history`].
     pub fn with_condition(
         parts: PipelineParts<'a, NT, NV>,
         lining_temperature: f64,

@@ -1,6 +1,7 @@
-//! f64 reference models (host only, feature `std`): the same physics as the fixed-point models,
-//! written plainly in floating point, for measuring the fixed-point path and as the plant of the
-//! simulator. Never used in the per-sample path.
+//! The f64 model: the same equations as the core's fixed-point models, written plainly in
+//! floating point, independent of the fixed-point code. A test oracle: the integration tests and
+//! the accuracy envelope (clampwise-benches) measure the fixed-point path against it. It is not
+//! the simulator's plant (clampwise-sim has its own) and never runs in the per-sample path.
 //!
 //! - [`friction`]: bilinear μ table, stick/slip band, static-to-kinetic blend, drag.
 //! - [`thermal`]: the lumped rotor/lining network integrated with classic RK4 and sub-steps

@@ -1,9 +1,9 @@
-//! f64 reference of [`crate::thermal`]: the lumped network integrated with classic fourth-order
-//! Runge–Kutta, sub-stepping so each sub-step is at most 1/50 of the fastest time constant.
+//! f64 model of [`clampwise_core::thermal`]: the lumped network integrated with classic
+//! fourth-order Runge–Kutta, sub-stepping so each sub-step is at most 1/50 of the fastest time constant.
 //! A different method from the fixed-point path's exact exponential, so agreement checks the
 //! discretisation as well as the arithmetic. Physics only (no flags, no measured input).
 
-use crate::thermal::{Cooling, ThermalParams};
+use clampwise_core::thermal::{Cooling, ThermalParams};
 
 /// f64 thermal model.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -21,8 +21,8 @@ pub struct ThermalModel {
 }
 
 impl ThermalModel {
-    /// From the same parameters as [`crate::thermal::ThermalConfig::new`] (not validated here),
-    /// starting at ambient.
+    /// From the same parameters as [`clampwise_core::thermal::ThermalConfig::new`] (not
+    /// validated here), starting at ambient.
     pub fn new(p: &ThermalParams) -> Self {
         let c_rotor = p.rotor_mass * p.rotor_specific_heat;
         let h_a = match p.cooling {
