@@ -23,8 +23,8 @@ use crate::plant::scenario::{SCENARIOS, Scenario};
 use crate::plot;
 use crate::plot::{BUCKETS, Envelope, TimeWindow};
 use crate::replay::{self, CAUTION, ReplayOptions};
-use crate::seam::ChannelCal;
 use crate::synth;
+use clampwise_convert::ChannelCal;
 
 /// What a subcommand produced.
 pub struct Outcome {

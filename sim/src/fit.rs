@@ -1,7 +1,7 @@
 //! `fit`: the μ table from a trace with a reference torque, by least squares on the table's
 //! own bilinear interpolation, with a coverage map and no silent extrapolation.
 //!
-//! The trace is replayed through the estimator (the same seam as `replay`), so clamp force,
+//! The trace is replayed through the estimator (the same `clampwise_convert` estimator as `replay`), so clamp force,
 //! effective radius and lining temperature are the estimator's own. Each slipping sample with
 //! healthy sensors, enough force and a slip speed above the core's transition speed (below it
 //! μ blends towards the static value) gives one equation
@@ -25,8 +25,8 @@ use crate::build_core::CoreDevice;
 use crate::config::{KeyPath, LoadedConfig, value_span};
 use crate::error::{DataError, SimError};
 use crate::replay::run_stream;
-use crate::seam::{self, Flags, State};
 use crate::trace::{RowPolicy, SkipReport, TraceOptions, TraceReader};
+use clampwise_convert::{self as convert, ContactState, Flags};
 
 /// Options of a fit.
 #[derive(Debug, Clone)]
@@ -137,7 +137,7 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
                 if s <= 0.0 {
                     return None;
                 }
-                l[i * n + i] = s.sqrt();
+                l[i * n + i] = libm::sqrt(s);
             } else {
                 l[i * n + j] = s / l[j * n + j];
             }
@@ -213,7 +213,7 @@ pub fn fit_trace(
     // Below the transition speed the core blends μ towards the static value: not the table's
     // kinetic μ, so those samples carry no equation for it.
     let transition = c.friction.transition_speed_rad_s;
-    let mut est = seam::new_estimator(c, core)
+    let mut est = convert::new_estimator(c, core)
         .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     run_stream(&mut reader, est.as_mut(), progress, |_, row| {
         samples += 1;
@@ -221,7 +221,7 @@ pub fn fit_trace(
             excluded += 1;
             return Ok(());
         };
-        if row.state != State::Slipping
+        if row.state != ContactState::Slipping
             || row.flags.intersects(bad)
             || row.clamp_force_n < min_force
             || row.slip_speed_rad_s.abs() < transition
@@ -307,7 +307,7 @@ pub fn fit_trace(
         let dof = (used as f64 - n as f64).max(1.0);
         let sigma2 = rss_after.max(0.0) / dof;
         for (ri, &p) in reached.iter().enumerate() {
-            std_error[p] = Some((sigma2 * diag[ri]).max(0.0).sqrt());
+            std_error[p] = Some(libm::sqrt((sigma2 * diag[ri]).max(0.0)));
         }
     }
     let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
@@ -354,8 +354,8 @@ pub fn fit_trace(
         outside_table: outside,
         excluded,
         min_coverage: opts.min_coverage,
-        rms_before_nm: (rss_before / nused).sqrt(),
-        rms_after_nm: (rss_after.max(0.0) / nused).sqrt(),
+        rms_before_nm: libm::sqrt(rss_before / nused),
+        rms_after_nm: libm::sqrt(rss_after.max(0.0) / nused),
         cells,
         unreached,
         skipped: reader.skipped().clone(),

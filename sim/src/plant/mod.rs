@@ -221,7 +221,7 @@ impl Plant {
             fade: th.fade_c,
             bedding_energy: c.wear.bedding_energy_j,
             // The config's starting friction work sets both the starting bedding and the wear.
-            bedding0: -(-c.wear.initial_energy_j / c.wear.bedding_energy_j).exp_m1(),
+            bedding0: -libm::expm1(-c.wear.initial_energy_j / c.wear.bedding_energy_j),
             wear_rate: c.wear.specific_wear_rate_m3_per_j,
             pad_area: c.wear.pad_area_m2,
             sensors: c
@@ -267,13 +267,13 @@ impl Plant {
         let t = self.step as f64 * self.dt;
         self.step += 1;
         let target = (sp.command.clamp(0.0, 1.5)) * self.full_force;
-        let k = 1.0 - (-self.dt / self.opts.actuator_tau_s.max(1e-6)).exp();
+        let k = 1.0 - libm::exp(-self.dt / self.opts.actuator_tau_s.max(1e-6));
         self.force += (target - self.force) * k;
         let force = self.force.max(0.0);
 
         let omega_out = if self.brake { 0.0 } else { sp.omega_out };
         let slip = sp.omega_in - omega_out;
-        let bedding = 1.0 - (1.0 - self.bedding0) * (-self.energy / self.bedding_energy).exp();
+        let bedding = 1.0 - (1.0 - self.bedding0) * libm::exp(-self.energy / self.bedding_energy);
         let r_e = (1.0 - bedding) * self.r_up + bedding * self.r_uw;
         let fade = 1.0 - self.opts.mu_fade_per_k * (self.temp - self.fade).max(0.0);
         let mu = mu_of(&self.mu, self.temp, slip.abs()) * self.opts.mu_scale * fade.max(0.05);
@@ -286,7 +286,7 @@ impl Plant {
             -slip.signum() * (kinetic + self.drag.0 + self.drag.1 * slip.abs())
         };
         let power = (torque * slip).abs();
-        let decay = (-self.dt / self.tau).exp();
+        let decay = libm::exp(-self.dt / self.tau);
         self.temp = self.ambient
             + (self.temp - self.ambient) * decay
             + self.gamma * power * self.tau / self.heat_capacity * (1.0 - decay);

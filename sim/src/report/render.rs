@@ -351,7 +351,7 @@ mod tests {
     use crate::plot::{BUCKETS, Envelope, TimeWindow};
     use crate::report::timeline::Timeline;
     use crate::report::{CoverageSection, Provenance};
-    use crate::seam::{EstimateRow, Flags, State};
+    use clampwise_convert::{ContactState, EstimateRow, Flags};
 
     const HOSTILE: &str = "<script>alert('x')</script>&\"<img src=x onerror=y>";
 
@@ -373,9 +373,9 @@ mod tests {
             wear_m: 0.0,
             correction: 1.0,
             state: if holding {
-                State::Holding
+                ContactState::Holding
             } else {
-                State::Slipping
+                ContactState::Slipping
             },
             flags: if (700..710).contains(&i) {
                 Flags::all().iter().next().unwrap()
