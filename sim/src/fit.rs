@@ -276,47 +276,104 @@ pub fn fit_trace(
 
     let prior: Vec<f64> = c.friction.mu.values.iter().flatten().copied().collect();
     let reached: Vec<usize> = (0..k).filter(|&p| cover[p] >= opts.min_coverage).collect();
-    let mut fitted = prior.clone();
+    let (fitted, std_error) = solve_reached(&m, &rhs, yy, &prior, &reached, used)?;
+    let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
+    let (cells, unreached) = cell_reports(
+        trace,
+        ts,
+        vs,
+        &cover,
+        opts.min_coverage,
+        &prior,
+        &fitted,
+        &std_error,
+    )?;
+    #[allow(clippy::cast_precision_loss)]
+    let nused = (used as f64).max(1.0);
+    Ok(FitReport {
+        trace: trace.to_string(),
+        samples,
+        used,
+        outside_table: outside,
+        excluded,
+        min_coverage: opts.min_coverage,
+        rms_before_nm: libm::sqrt(rss_before / nused),
+        rms_after_nm: libm::sqrt(rss_after.max(0.0) / nused),
+        cells,
+        unreached,
+        skipped: reader.skipped().clone(),
+    })
+}
+
+/// The table entries in `reached` by least squares on the normal equations `m`·x = `rhs`
+/// (entries not reached held at the prior, a tiny ridge towards the prior for conditioning),
+/// and their standard errors; the other entries keep the prior.
+fn solve_reached(
+    m: &[f64],
+    rhs: &[f64],
+    yy: f64,
+    prior: &[f64],
+    reached: &[usize],
+    used: u64,
+) -> Result<(Vec<f64>, Vec<Option<f64>>), SimError> {
+    let k = prior.len();
+    let mut fitted = prior.to_vec();
     let mut std_error = vec![None; k];
-    if !reached.is_empty() {
-        let n = reached.len();
-        let max_diag = reached.iter().map(|&p| m[p * k + p]).fold(0.0, f64::max);
-        let ridge = 1e-12 * max_diag;
-        let mut a = vec![0.0; n * n];
-        let mut b = vec![0.0; n];
-        for (ri, &p) in reached.iter().enumerate() {
-            b[ri] = rhs[p] + ridge * prior[p];
-            for q in 0..k {
-                if cover[q] < opts.min_coverage {
-                    b[ri] -= m[p * k + q] * prior[q];
-                }
-            }
-            for (rj, &q) in reached.iter().enumerate() {
-                a[ri * n + rj] = m[p * k + q] + if ri == rj { ridge } else { 0.0 };
+    if reached.is_empty() {
+        return Ok((fitted, std_error));
+    }
+    let n = reached.len();
+    let max_diag = reached.iter().map(|&p| m[p * k + p]).fold(0.0, f64::max);
+    let ridge = 1e-12 * max_diag;
+    let mut a = vec![0.0; n * n];
+    let mut b = vec![0.0; n];
+    for (ri, &p) in reached.iter().enumerate() {
+        b[ri] = rhs[p] + ridge * prior[p];
+        for q in 0..k {
+            if !reached.contains(&q) {
+                b[ri] -= m[p * k + q] * prior[q];
             }
         }
-        let (x, diag) = cholesky_solve(&a, &b, n).ok_or_else(|| {
-            SimError::Internal("fit: normal equations not positive definite".into())
-        })?;
-        for (ri, &p) in reached.iter().enumerate() {
-            fitted[p] = x[ri];
-        }
-        let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
-        // Counts stay far below 2⁵³.
-        #[allow(clippy::cast_precision_loss)]
-        let dof = (used as f64 - n as f64).max(1.0);
-        let sigma2 = rss_after.max(0.0) / dof;
-        for (ri, &p) in reached.iter().enumerate() {
-            std_error[p] = Some(libm::sqrt((sigma2 * diag[ri]).max(0.0)));
+        for (rj, &q) in reached.iter().enumerate() {
+            a[ri * n + rj] = m[p * k + q] + if ri == rj { ridge } else { 0.0 };
         }
     }
-    let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
-    let mut cells = Vec::with_capacity(k);
+    let (x, diag) = cholesky_solve(&a, &b, n)
+        .ok_or_else(|| SimError::Internal("fit: normal equations not positive definite".into()))?;
+    for (ri, &p) in reached.iter().enumerate() {
+        fitted[p] = x[ri];
+    }
+    let rss_after = rss_of(m, rhs, yy, &fitted, k);
+    // Counts stay far below 2⁵³.
+    #[allow(clippy::cast_precision_loss)]
+    let dof = (used as f64 - n as f64).max(1.0);
+    let sigma2 = rss_after.max(0.0) / dof;
+    for (ri, &p) in reached.iter().enumerate() {
+        std_error[p] = Some(libm::sqrt((sigma2 * diag[ri]).max(0.0)));
+    }
+    Ok((fitted, std_error))
+}
+
+/// One report per table entry, and the entries not reached; a reached entry fitted outside
+/// 0 … 1.2 is an error (the trace and the config disagree).
+#[allow(clippy::too_many_arguments)]
+fn cell_reports(
+    trace: &str,
+    ts: &[f64],
+    vs: &[f64],
+    cover: &[f64],
+    min_coverage: f64,
+    prior: &[f64],
+    fitted: &[f64],
+    std_error: &[Option<f64>],
+) -> Result<(Vec<CellReport>, Vec<String>), SimError> {
+    let nv = vs.len();
+    let mut cells = Vec::with_capacity(cover.len());
     let mut unreached = Vec::new();
     for (i, &t) in ts.iter().enumerate() {
         for (j, &v) in vs.iter().enumerate() {
             let p = i * nv + j;
-            let is_reached = cover[p] >= opts.min_coverage;
+            let is_reached = cover[p] >= min_coverage;
             if !is_reached {
                 unreached.push(format!("({} °C, {} rad/s): coverage {:.1}", t, v, cover[p]));
             } else if !(fitted[p] > 0.0 && fitted[p] <= 1.2) {
@@ -345,21 +402,7 @@ pub fn fit_trace(
             });
         }
     }
-    #[allow(clippy::cast_precision_loss)]
-    let nused = (used as f64).max(1.0);
-    Ok(FitReport {
-        trace: trace.to_string(),
-        samples,
-        used,
-        outside_table: outside,
-        excluded,
-        min_coverage: opts.min_coverage,
-        rms_before_nm: libm::sqrt(rss_before / nused),
-        rms_after_nm: libm::sqrt(rss_after.max(0.0) / nused),
-        cells,
-        unreached,
-        skipped: reader.skipped().clone(),
-    })
+    Ok((cells, unreached))
 }
 
 /// Σ(y − aᵀμ)² = Σy² − 2μᵀb + μᵀMμ.

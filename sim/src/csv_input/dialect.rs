@@ -174,6 +174,41 @@ pub fn sniff(
             "--decimal comma cannot go with --delimiter comma: in a ','-separated file a comma always separates columns".into(),
         ));
     }
+    let lines = head_lines(head, complete);
+    let Some(&(header_line, header)) = lines.first() else {
+        // Empty or comments only: the reader reports it.
+        return Ok(Dialect::default());
+    };
+    let rows = lines.get(1..).unwrap_or_default();
+    let (delimiter, delimiter_from) = match choice.delimiter {
+        Some(d) => (d, DialectSource::Option),
+        None => (
+            sniff_delimiter(file, header_line, header, rows)?,
+            DialectSource::Sniffed,
+        ),
+    };
+    check_row_delimiters(file, header, rows, delimiter)?;
+    let (decimal, decimal_from) = match (choice.decimal, delimiter) {
+        (Some(DecimalMark::Comma), Delimiter::Comma) => {
+            return Err(SimError::Usage(
+                "--decimal comma cannot read a ','-separated file: a comma there always separates columns (the file was sniffed as ','-separated; set --delimiter semicolon or tab if it is not)".into(),
+            ));
+        }
+        (Some(m), _) => (m, DialectSource::Option),
+        (None, Delimiter::Comma) => (DecimalMark::Point, DialectSource::Default),
+        (None, d) => sniff_decimal(file, rows, d)?,
+    };
+    Ok(Dialect {
+        delimiter,
+        delimiter_from,
+        decimal,
+        decimal_from,
+    })
+}
+
+/// The first non-comment lines of the head (header and up to [`SNIFF_ROWS`] rows), with their
+/// 1-based line numbers; a last line cut by an incomplete head is left out.
+fn head_lines(head: &[u8], complete: bool) -> Vec<(u64, &[u8])> {
     let mut lines: Vec<(u64, &[u8])> = Vec::new();
     let mut pieces = head.split(|&b| b == b'\n').peekable();
     let mut number = 0u64;
@@ -192,85 +227,99 @@ pub fn sniff(
             break;
         }
     }
-    let Some(&(header_line, header)) = lines.first() else {
-        // Empty or comments only: the reader reports it.
-        return Ok(Dialect::default());
-    };
-    let rows = lines.get(1..).unwrap_or_default();
-    let count = |l: &[u8], d: Delimiter| l.iter().filter(|&&b| b == d.byte()).count();
-    let err = |line: u64, message: String| -> SimError {
-        DataError {
-            file: file.to_string(),
-            line: Some(line),
-            column: None,
-            header: None,
-            message: format!("unrecognised CSV dialect: {message}; {DIALECT_OPTIONS}"),
-        }
-        .into()
-    };
-    let (delimiter, delimiter_from) = match choice.delimiter {
-        Some(d) => (d, DialectSource::Option),
-        None => {
-            let present: Vec<Delimiter> = Delimiter::ALL
-                .into_iter()
-                .filter(|&d| count(header, d) > 0)
-                .collect();
-            let consistent: Vec<Delimiter> = present
+    lines
+}
+
+/// How often the delimiter occurs in a line.
+fn count(l: &[u8], d: Delimiter) -> usize {
+    l.iter().filter(|&&b| b == d.byte()).count()
+}
+
+/// The located error of a dialect that cannot be read.
+fn dialect_error(file: &str, line: u64, message: String) -> SimError {
+    DataError {
+        file: file.to_string(),
+        line: Some(line),
+        column: None,
+        header: None,
+        message: format!("unrecognised CSV dialect: {message}; {DIALECT_OPTIONS}"),
+    }
+    .into()
+}
+
+/// The one delimiter the header has, or the one the header shares with every data row.
+fn sniff_delimiter(
+    file: &str,
+    header_line: u64,
+    header: &[u8],
+    rows: &[(u64, &[u8])],
+) -> Result<Delimiter, SimError> {
+    let present: Vec<Delimiter> = Delimiter::ALL
+        .into_iter()
+        .filter(|&d| count(header, d) > 0)
+        .collect();
+    let consistent: Vec<Delimiter> = present
+        .iter()
+        .copied()
+        .filter(|&d| !rows.is_empty() && rows.iter().all(|r| count(r.1, d) == count(header, d)))
+        .collect();
+    match (present.as_slice(), consistent.as_slice()) {
+        ([d], _) | (_, [d]) => Ok(*d),
+        ([], _) => Err(dialect_error(file, header_line, no_separator(header))),
+        _ => {
+            let list: Vec<String> = present
                 .iter()
-                .copied()
-                .filter(|&d| {
-                    !rows.is_empty() && rows.iter().all(|r| count(r.1, d) == count(header, d))
-                })
+                .map(|&d| format!("{} {} times", d.shown(), count(header, d)))
                 .collect();
-            match (present.as_slice(), consistent.as_slice()) {
-                ([d], _) | (_, [d]) => (*d, DialectSource::Sniffed),
-                ([], _) => {
-                    let text = String::from_utf8_lossy(header);
-                    let mut others: Vec<char> = text
-                        .chars()
-                        .filter(|c| {
-                            c.is_ascii_punctuation()
-                                && !matches!(
-                                    c,
-                                    '_' | '.' | '-' | '(' | ')' | '[' | ']' | '/' | '%' | '°'
-                                )
-                        })
-                        .collect();
-                    others.sort_unstable();
-                    others.dedup();
-                    let seen = if others.is_empty() {
-                        format!(
-                            "the header line '{}' has no ',', ';' or tab (a single column)",
-                            echo(&text)
-                        )
-                    } else {
-                        let list: Vec<String> = others
-                            .iter()
-                            .map(|c| format!("'{c}' {} times", text.matches(*c).count()))
-                            .collect();
-                        format!(
-                            "the header line has no ',', ';' or tab but {} (separators clampwise does not read)",
-                            list.join(", ")
-                        )
-                    };
-                    return Err(err(header_line, seen));
-                }
-                _ => {
-                    let list: Vec<String> = present
-                        .iter()
-                        .map(|&d| format!("{} {} times", d.shown(), count(header, d)))
-                        .collect();
-                    return Err(err(
-                        header_line,
-                        format!(
-                            "the header line mixes separators ({}) and the data rows do not tell which one separates columns",
-                            list.join(", ")
-                        ),
-                    ));
-                }
-            }
+            Err(dialect_error(
+                file,
+                header_line,
+                format!(
+                    "the header line mixes separators ({}) and the data rows do not tell which one separates columns",
+                    list.join(", ")
+                ),
+            ))
         }
-    };
+    }
+}
+
+/// What a header without any delimiter clampwise reads has instead.
+fn no_separator(header: &[u8]) -> String {
+    let text = String::from_utf8_lossy(header);
+    let mut others: Vec<char> = text
+        .chars()
+        .filter(|c| {
+            c.is_ascii_punctuation()
+                && !matches!(c, '_' | '.' | '-' | '(' | ')' | '[' | ']' | '/' | '%' | '°')
+        })
+        .collect();
+    others.sort_unstable();
+    others.dedup();
+    if others.is_empty() {
+        format!(
+            "the header line '{}' has no ',', ';' or tab (a single column)",
+            echo(&text)
+        )
+    } else {
+        let list: Vec<String> = others
+            .iter()
+            .map(|c| format!("'{c}' {} times", text.matches(*c).count()))
+            .collect();
+        format!(
+            "the header line has no ',', ';' or tab but {} (separators clampwise does not read)",
+            list.join(", ")
+        )
+    }
+}
+
+/// A data row that splits into the header's column count only at another delimiter is an
+/// error naming both.
+fn check_row_delimiters(
+    file: &str,
+    header: &[u8],
+    rows: &[(u64, &[u8])],
+    delimiter: Delimiter,
+) -> Result<(), SimError> {
     let fields = count(header, delimiter);
     for &(line, row) in rows {
         if count(row, delimiter) != fields
@@ -278,7 +327,8 @@ pub fn sniff(
                 .into_iter()
                 .find(|&d| d != delimiter && count(row, d) == fields && fields > 0)
         {
-            return Err(err(
+            return Err(dialect_error(
+                file,
                 line,
                 format!(
                     "mixed separators: the header is {}-separated ({} columns) but this line splits into as many only at {}",
@@ -289,50 +339,42 @@ pub fn sniff(
             ));
         }
     }
-    let (decimal, decimal_from) = match (choice.decimal, delimiter) {
-        (Some(DecimalMark::Comma), Delimiter::Comma) => {
-            return Err(SimError::Usage(
-                "--decimal comma cannot read a ','-separated file: a comma there always separates columns (the file was sniffed as ','-separated; set --delimiter semicolon or tab if it is not)".into(),
-            ));
-        }
-        (Some(m), _) => (m, DialectSource::Option),
-        (None, Delimiter::Comma) => (DecimalMark::Point, DialectSource::Default),
-        (None, d) => {
-            let mut comma_at = None;
-            let mut point_at = None;
-            for &(line, row) in rows {
-                for cell in row.split(|&b| b == d.byte()) {
-                    if comma_at.is_none() && has_fraction(cell, b',') {
-                        comma_at = Some((line, String::from_utf8_lossy(cell).trim().to_string()));
-                    }
-                    if point_at.is_none() && has_fraction(cell, b'.') {
-                        point_at = Some((line, String::from_utf8_lossy(cell).trim().to_string()));
-                    }
-                }
+    Ok(())
+}
+
+/// The decimal mark of a file not separated by commas: the one its data cells use; both in
+/// one file is an error naming a line of each.
+fn sniff_decimal(
+    file: &str,
+    rows: &[(u64, &[u8])],
+    d: Delimiter,
+) -> Result<(DecimalMark, DialectSource), SimError> {
+    let mut comma_at = None;
+    let mut point_at = None;
+    for &(line, row) in rows {
+        for cell in row.split(|&b| b == d.byte()) {
+            if comma_at.is_none() && has_fraction(cell, b',') {
+                comma_at = Some((line, String::from_utf8_lossy(cell).trim().to_string()));
             }
-            match (comma_at, point_at) {
-                (Some((lc, c)), Some((lp, p))) => {
-                    return Err(err(
-                        lc.max(lp),
-                        format!(
-                            "mixed decimal marks: line {lc} has '{}' (decimal comma) and line {lp} has '{}' (decimal point)",
-                            echo(&c),
-                            echo(&p)
-                        ),
-                    ));
-                }
-                (Some(_), None) => (DecimalMark::Comma, DialectSource::Sniffed),
-                (None, Some(_)) => (DecimalMark::Point, DialectSource::Sniffed),
-                (None, None) => (DecimalMark::Point, DialectSource::Default),
+            if point_at.is_none() && has_fraction(cell, b'.') {
+                point_at = Some((line, String::from_utf8_lossy(cell).trim().to_string()));
             }
         }
-    };
-    Ok(Dialect {
-        delimiter,
-        delimiter_from,
-        decimal,
-        decimal_from,
-    })
+    }
+    match (comma_at, point_at) {
+        (Some((lc, c)), Some((lp, p))) => Err(dialect_error(
+            file,
+            lc.max(lp),
+            format!(
+                "mixed decimal marks: line {lc} has '{}' (decimal comma) and line {lp} has '{}' (decimal point)",
+                echo(&c),
+                echo(&p)
+            ),
+        )),
+        (Some(_), None) => Ok((DecimalMark::Comma, DialectSource::Sniffed)),
+        (None, Some(_)) => Ok((DecimalMark::Point, DialectSource::Sniffed)),
+        (None, None) => Ok((DecimalMark::Point, DialectSource::Default)),
+    }
 }
 
 /// Read up to [`SNIFF_BYTES`] from `r`; `true` with them when that was the whole input.
