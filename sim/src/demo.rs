@@ -158,7 +158,7 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         write_plots(dir, &cfg, [&dec, &dec2], &fitted)?
     };
 
-    let human = human_summary(&Results {
+    let results = Results {
         cfg: &cfg,
         duration_s: a.duration_s,
         fault_names: &fault_names,
@@ -166,24 +166,13 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         rep: &rep,
         before: &before,
         after: &after,
+        rep2: &rep2,
         fitted: &fitted,
         plots: &plots,
         dir,
-    });
-    let js = json!({
-        "command": "demo",
-        "invented": true,
-        "device": cfg.config.device.name,
-        "faults": fault_names,
-        "synth": serde_json::to_value(&syn).unwrap_or_default(),
-        "replay": serde_json::to_value(&rep).unwrap_or_default(),
-        "compare_nominal": serde_json::to_value(&before).unwrap_or_default(),
-        "fit": serde_json::to_value(&fitted).unwrap_or_default(),
-        "replay_fitted": serde_json::to_value(&rep2).unwrap_or_default(),
-        "compare_fitted": serde_json::to_value(&after).unwrap_or_default(),
-        "plots": plots,
-        "caution": CAUTION,
-    });
+    };
+    let human = human_summary(&results);
+    let js = summary_json(&results);
     write_file(
         &path(dir, "summary.json"),
         serde_json::to_string_pretty(&js)
@@ -229,7 +218,7 @@ fn write_plots(
     Ok(plots)
 }
 
-/// What the demo's steps produced, for its human summary.
+/// What the demo's steps produced, for its summaries.
 struct Results<'a> {
     cfg: &'a LoadedConfig,
     duration_s: f64,
@@ -238,6 +227,7 @@ struct Results<'a> {
     rep: &'a replay::ReplaySummary,
     before: &'a compare::CompareReport,
     after: &'a compare::CompareReport,
+    rep2: &'a replay::ReplaySummary,
     fitted: &'a fit::FitReport,
     plots: &'a [String],
     dir: &'a Path,
@@ -266,6 +256,7 @@ fn human_summary(r: &Results<'_>) -> String {
         fitted,
         plots,
         dir,
+        ..
     } = *r;
     let mut human = String::new();
     human.push_str("clampwise demo — INVENTED device and data\n");
@@ -340,4 +331,22 @@ fn human_summary(r: &Results<'_>) -> String {
     human.push('\n');
     human.push_str(&format!("\n{CAUTION}\n"));
     human
+}
+
+/// The demo's summary as JSON (`summary.json`, `--json`).
+fn summary_json(r: &Results<'_>) -> serde_json::Value {
+    json!({
+        "command": "demo",
+        "invented": true,
+        "device": r.cfg.config.device.name,
+        "faults": r.fault_names,
+        "synth": serde_json::to_value(r.syn).unwrap_or_default(),
+        "replay": serde_json::to_value(r.rep).unwrap_or_default(),
+        "compare_nominal": serde_json::to_value(r.before).unwrap_or_default(),
+        "fit": serde_json::to_value(r.fitted).unwrap_or_default(),
+        "replay_fitted": serde_json::to_value(r.rep2).unwrap_or_default(),
+        "compare_fitted": serde_json::to_value(r.after).unwrap_or_default(),
+        "plots": r.plots,
+        "caution": CAUTION,
+    })
 }

@@ -169,6 +169,36 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
     Some((x, diag))
 }
 
+/// Flags that make a sample's clamp force, μ or temperature doubtful: such rows carry no
+/// equation for the table.
+const SENSOR_DOUBT: Flags = Flags::SENSOR_DEGRADED
+    .union(Flags::FORCE_FALLBACK)
+    .union(Flags::FORCE_LOST)
+    .union(Flags::FORCE_SATURATED)
+    .union(Flags::ARITHMETIC_SATURATED)
+    .union(Flags::OUT_OF_RANGE)
+    .union(Flags::TEMPERATURE_REJECTED);
+
+/// The error of a trace without one usable sample, with the reasons counted.
+fn no_usable_sample(
+    trace: &str,
+    samples: u64,
+    excluded: u64,
+    min_force: f64,
+    outside: u64,
+) -> SimError {
+    DataError {
+        file: trace.to_string(),
+        line: None,
+        column: None,
+        header: None,
+        message: format!(
+            "no usable sample: of {samples} rows, {excluded} were not slipping above the transition speed with a clamp force of at least {min_force} N, a reference torque and no sensor flag, and {outside} were outside the μ table; nothing fitted"
+        ),
+    }
+    .into()
+}
+
 /// Fit the μ table of `cfg` from `trace`.
 ///
 /// # Errors
@@ -203,13 +233,6 @@ pub fn fit_trace(
         c.friction.drag_torque_nm,
         c.friction.drag_viscous_nm_per_rad_s,
     );
-    let bad = Flags::SENSOR_DEGRADED
-        | Flags::FORCE_FALLBACK
-        | Flags::FORCE_LOST
-        | Flags::FORCE_SATURATED
-        | Flags::ARITHMETIC_SATURATED
-        | Flags::OUT_OF_RANGE
-        | Flags::TEMPERATURE_REJECTED;
     // Below the transition speed the core blends μ towards the static value: not the table's
     // kinetic μ, so those samples carry no equation for it.
     let transition = c.friction.transition_speed_rad_s;
@@ -222,7 +245,7 @@ pub fn fit_trace(
             return Ok(());
         };
         if row.state != ContactState::Slipping
-            || row.flags.intersects(bad)
+            || row.flags.intersects(SENSOR_DOUBT)
             || row.clamp_force_n < min_force
             || row.slip_speed_rad_s.abs() < transition
         {
@@ -262,16 +285,9 @@ pub fn fit_trace(
         Ok(())
     })?;
     if used == 0 {
-        return Err(DataError {
-            file: trace.to_string(),
-            line: None,
-            column: None,
-            header: None,
-            message: format!(
-                "no usable sample: of {samples} rows, {excluded} were not slipping above the transition speed with a clamp force of at least {min_force} N, a reference torque and no sensor flag, and {outside} were outside the μ table; nothing fitted"
-            ),
-        }
-        .into());
+        return Err(no_usable_sample(
+            trace, samples, excluded, min_force, outside,
+        ));
     }
 
     let prior: Vec<f64> = c.friction.mu.values.iter().flatten().copied().collect();
