@@ -73,7 +73,7 @@ fn bench(c: &mut Criterion) {
         b.iter(|| {
             let mut r =
                 TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
-            let mut est = convert::new_estimator(&cfg.config, &core).expect("estimator");
+            let mut est = clampwise_convert::new_estimator(&cfg.config, &core).expect("estimator");
             let mut acc = 0.0;
             while let Some(s) = r.next_sample().expect("row") {
                 acc += est.step(&s).uncertainty_nm;
@@ -105,7 +105,7 @@ fn bench(c: &mut Criterion) {
             }
         }
         b.iter(|| {
-            let mut est = convert::new_estimator(&cfg.config, &core).expect("estimator");
+            let mut est = clampwise_convert::new_estimator(&cfg.config, &core).expect("estimator");
             let mut acc = 0.0;
             for _ in 0..10 {
                 for s in &samples {

@@ -44,7 +44,7 @@ mod tests {
         // [practice] `f64::powi` lowers to `__powidf2` on the host; with an exponent the
         // optimiser cannot see, the two give the same bits.
         let exps = std::hint::black_box([0, 1, 2, 3, 4, 7, 23, -1, -2, -5]);
-        for x in [0.52, 0.68, 1.000_000_1, 2.718_281_828, -1.5, 1e-3] {
+        for x in [0.52, 0.68, 1.000_000_1, 2.5, -1.5, 1e-3] {
             for &k in &exps {
                 assert_eq!(powi(x, k).to_bits(), x.powi(k).to_bits(), "{x}^{k}");
             }
