@@ -18,7 +18,7 @@
 //! | [`csv_input`], [`trace`], [`timestamps`], [`resample`] | located, streaming CSV input and its dialect; column mapping; time checks; resampling onto the device period |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
 //! | [`replay`], [`compare`], [`quantile_sketch`], [`fit`] | the subcommands' work |
-//! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
+//! | [`plant`], [`synth`], [`portable_math`] | the independent f64 plant and trace synthesis; maths with the same bits on every machine |
 //! | [`plot`] | plots: bounded-memory min/max envelope, one file per panel kind |
 //! | [`report`] | the self-contained HTML report |
 //! | [`cli`], [`commands`], [`demo`], [`error`] | the command line, exit codes |
