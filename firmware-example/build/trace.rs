@@ -5,8 +5,8 @@
 //! `temp_C`, `ambient_C`, `torque_ref_Nm`). The force channels must be ADC counts (the stub
 //! plays them back as the bridge ADC's frames); a cell whose valid flag is 0 becomes a
 //! not-ready frame. Every other value goes through the column's unit conversion and is rounded
-//! to the core's fixed-point type with `saturating_from_num` (nearest), as the simulator's seam
-//! does, so the firmware's estimator gets the very inputs the simulator's gets; a brake's output
+//! to the core's fixed-point type with `saturating_from_num` (nearest), as the simulator's
+//! conversions (`clampwise-convert`) do, so the firmware's estimator gets the very inputs the simulator's gets; a brake's output
 //! speed is 0, as in the simulator. Empty optional cells are `None`. The plant's truth columns
 //! are ignored. A bad row is an error naming file, line and column; rows must be one sample
 //! period apart.
@@ -38,7 +38,7 @@ pub struct Row {
     pub reference_torque_bits: Option<i32>,
 }
 
-/// The simulator seam's rounding: `saturating_from_num`, NaN as 0.
+/// The simulator's rounding (`clampwise_convert::saturating_fixed`): `saturating_from_num`, NaN as 0.
 fn sat<T: Fixed<Bits = i32>>(v: f64) -> i32 {
     T::saturating_from_num(if v.is_nan() { 0.0 } else { v }).to_bits()
 }

@@ -4,13 +4,15 @@
 //! Both sides run `clampwise_core::estimator::Estimator::step`: the firmware on the device
 //! configuration compiled into it (emitted by its build script from the TOML) behind the ADC
 //! driver, the control loop and the HAL stub; the simulator on the configuration it builds from
-//! the same TOML at run time, fed by its own trace reader and seam (`clampwise replay`). The
+//! the same TOML at run time, fed by its own trace reader and the shared conversions of `clampwise-convert` (`clampwise
+//! replay`). The
 //! QEMU runs print the firmware's estimates as raw bits and `qemu-check.sh` compares them line
 //! by line with this host build's; together the two checks tie the target to the simulator.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing)]
 
 use std::path::Path;
 
+use clampwise_convert::{self as convert, ChannelCal, CoreEstimator, SampleEstimator};
 use clampwise_core::estimator::{self, Estimate};
 use clampwise_core::flags::Flags;
 use clampwise_device::build_core::CoreDevice;
@@ -20,7 +22,6 @@ use clampwise_firmware_example::generated::{CONFIG_PATH, DEVICE_CHANNELS, TRACE,
 use clampwise_firmware_example::line::Discard;
 use clampwise_firmware_example::processor::core_inputs;
 use clampwise_firmware_example::replay::{demo_processor, replay};
-use clampwise_sim::seam::{self, ChannelCal, CoreEstimator, SampleEstimator};
 use clampwise_sim::trace::{RowPolicy, TraceReader};
 
 /// Keeps what the estimator was given and what it returned, sample by sample.
@@ -63,14 +64,14 @@ fn firmware_estimates_equal_the_simulators_replay() {
 
     let mut k = 0;
     while let Some(sample) = reader.next_sample().unwrap() {
-        let sim_inputs = seam::core_inputs::<DEVICE_CHANNELS>(&sample, &cal, brake);
+        let sim_inputs = convert::core_inputs::<DEVICE_CHANNELS>(&sample, &cal, brake);
         assert_eq!(
             fw.inputs[k], sim_inputs,
             "sample {k}: the estimator's inputs"
         );
         // The simulator's estimate row against the firmware's estimate put through the
         // simulator's own (exact) conversion: every field of the row.
-        let expected = seam::estimate_row(&sample, &fw.inputs[k], &fw.estimates[k]);
+        let expected = convert::estimate_row(&sample, &fw.inputs[k], &fw.estimates[k]);
         assert_eq!(sim.step(&sample), expected, "sample {k}: the estimate");
         k += 1;
     }

@@ -4,14 +4,14 @@
 //!
 //! - `parse 1e6 rows`: `TraceReader::next_sample` over the file (CSV, cells, unit conversion,
 //!   time checks), samples discarded;
-//! - `parse+step 1e6 rows`: that, and every sample through the seam (`SampleEstimator::step`:
+//! - `parse+step 1e6 rows`: that, and every sample through the conversion layer (`SampleEstimator::step`:
 //!   the conversions and the core's `Estimator::step`), rows discarded;
 //! - `replay 1e6 rows to /dev/null`: `replay::replay_file`, what `clampwise replay` runs for one
 //!   trace: parse, step, tally and the estimate CSV formatted and written to `/dev/null` (all
 //!   of the output work but the disk);
-//! - `step only 1e6 samples`: the seam's step on 10⁵ parsed samples, ten times;
+//! - `step only 1e6 samples`: the conversion layer's step on 10⁵ parsed samples, ten times;
 //! - `core Estimator::step only 1e6 samples`: the core's step on the same samples converted
-//!   beforehand (the seam's share is the difference to the line above);
+//!   beforehand (the conversions' share is the difference to the line above);
 //! - `header/open 80 000 columns`: `CsvIn::open` on a header of 80 000 names (reading it and
 //!   checking it for duplicates, which must stay linear in the number of columns).
 
@@ -25,7 +25,6 @@ use clampwise_sim::demo::DEMO_CONFIG;
 use clampwise_sim::plant::PlantOptions;
 use clampwise_sim::plant::scenario::Scenario;
 use clampwise_sim::replay::{self, ReplayOptions};
-use clampwise_sim::seam;
 use clampwise_sim::synth;
 use clampwise_sim::trace::{RowPolicy, TraceReader};
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
@@ -74,7 +73,7 @@ fn bench(c: &mut Criterion) {
         b.iter(|| {
             let mut r =
                 TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
-            let mut est = seam::new_estimator(&cfg.config, &core).expect("estimator");
+            let mut est = clampwise_convert::new_estimator(&cfg.config, &core).expect("estimator");
             let mut acc = 0.0;
             while let Some(s) = r.next_sample().expect("row") {
                 acc += est.step(&s).uncertainty_nm;
@@ -106,7 +105,7 @@ fn bench(c: &mut Criterion) {
             }
         }
         b.iter(|| {
-            let mut est = seam::new_estimator(&cfg.config, &core).expect("estimator");
+            let mut est = clampwise_convert::new_estimator(&cfg.config, &core).expect("estimator");
             let mut acc = 0.0;
             for _ in 0..10 {
                 for s in &samples {
@@ -117,17 +116,17 @@ fn bench(c: &mut Criterion) {
         });
     });
     g.bench_function("core Estimator::step only 1e6 samples", |b| {
-        // The core's step alone, on inputs converted beforehand: what the seam adds is the
+        // The core's step alone, on inputs converted beforehand: what the conversions add is the
         // difference to "step only".
         let ChannelDevice::Three(dev) = &core.device else {
             panic!("the demo has three channels");
         };
-        let cal = seam::ChannelCal::of(&cfg.config);
+        let cal = clampwise_convert::ChannelCal::of(&cfg.config);
         let mut r = TraceReader::open(&path, &cfg.config, RowPolicy::Stop, false).expect("open");
         let mut inputs = Vec::with_capacity(100_000);
         while let Some(s) = r.next_sample().expect("row") {
             if inputs.len() < 100_000 {
-                inputs.push(seam::core_inputs::<3>(&s, &cal, true));
+                inputs.push(clampwise_convert::core_inputs::<3>(&s, &cal, true));
             }
         }
         b.iter(|| {
@@ -156,7 +155,7 @@ fn wide_header(c: &mut Criterion) {
     g.bench_function("open 80 000 columns", |b| {
         b.iter(|| {
             black_box(
-                clampwise_sim::csvin::CsvIn::open(&path)
+                clampwise_sim::csv_input::CsvIn::open(&path)
                     .expect("open")
                     .headers()
                     .len(),

@@ -129,10 +129,10 @@ pub struct ReplayArgs {
 pub struct TraceArgs {
     /// Column separator (default: sniffed from the header and the first rows).
     #[arg(long, value_enum)]
-    pub delimiter: Option<crate::csvin::Delimiter>,
+    pub delimiter: Option<crate::csv_input::Delimiter>,
     /// Decimal mark of the numbers (default: sniffed; a ','-separated file has a point).
     #[arg(long, value_enum)]
-    pub decimal: Option<crate::csvin::DecimalMark>,
+    pub decimal: Option<crate::csv_input::DecimalMark>,
     /// The trace's own sample period, s: the time check's base instead of
     /// device.sample_period_s (another rate needs --resample).
     #[arg(long)]
@@ -152,7 +152,7 @@ impl TraceArgs {
     /// The options for [`crate::trace::TraceReader::open_with`].
     pub fn options(&self) -> crate::trace::TraceOptions {
         crate::trace::TraceOptions {
-            dialect: crate::csvin::DialectChoice {
+            dialect: crate::csv_input::DialectChoice {
                 delimiter: self.delimiter,
                 decimal: self.decimal,
             },

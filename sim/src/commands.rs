@@ -23,8 +23,8 @@ use crate::plant::scenario::{SCENARIOS, Scenario};
 use crate::plot;
 use crate::plot::{BUCKETS, Envelope, TimeWindow};
 use crate::replay::{self, CAUTION, ReplayOptions};
-use crate::seam::ChannelCal;
 use crate::synth;
+use clampwise_convert::ChannelCal;
 
 /// What a subcommand produced.
 pub struct Outcome {
@@ -128,65 +128,7 @@ fn stem(p: &str) -> String {
 /// # Errors
 /// Usage, config, data and I/O errors (for several traces, the first failure after all ran).
 pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
-    let jobs: Vec<(String, String, Option<String>)> = if a.traces.len() == 1 {
-        let t = a.traces.first().cloned().unwrap_or_default();
-        let out = match (&a.out, &a.out_dir) {
-            (Some(o), _) => o.clone(),
-            (None, Some(d)) => d
-                .join(format!("{}.estimate.csv", stem(&t)))
-                .display()
-                .to_string(),
-            (None, None) => {
-                return Err(SimError::Usage(
-                    "replay needs --out FILE (or --out-dir DIR)".into(),
-                ));
-            }
-        };
-        let plot = a.plot.clone().or_else(|| {
-            a.plot_dir
-                .as_ref()
-                .map(|d| d.join(format!("{}.svg", stem(&t))).display().to_string())
-        });
-        vec![(t, out, plot)]
-    } else {
-        let dir = a
-            .out_dir
-            .clone()
-            .ok_or_else(|| SimError::Usage("several traces need --out-dir DIR".into()))?;
-        if a.plot.is_some() {
-            return Err(SimError::Usage(
-                "several traces: use --plot-dir instead of --plot".into(),
-            ));
-        }
-        if a.traces.iter().filter(|t| *t == "-").count() > 0 {
-            return Err(SimError::Usage(
-                "standard input can only be replayed alone".into(),
-            ));
-        }
-        let mut seen = std::collections::HashSet::new();
-        for t in &a.traces {
-            if !seen.insert(stem(t)) {
-                return Err(SimError::Usage(format!(
-                    "two traces share the name '{}': their estimate files would collide",
-                    stem(t)
-                )));
-            }
-        }
-        a.traces
-            .iter()
-            .map(|t| {
-                (
-                    t.clone(),
-                    dir.join(format!("{}.estimate.csv", stem(t)))
-                        .display()
-                        .to_string(),
-                    a.plot_dir
-                        .as_ref()
-                        .map(|d| d.join(format!("{}.svg", stem(t))).display().to_string()),
-                )
-            })
-            .collect()
-    };
+    let jobs = replay_jobs(a)?;
     let mut inputs = vec![("config", path_str(&a.config))];
     inputs.extend(jobs.iter().map(|j| ("trace", j.0.as_str())));
     let mut outputs: Vec<(&str, &str)> = jobs.iter().map(|j| ("estimate", j.1.as_str())).collect();
@@ -262,6 +204,70 @@ pub fn replay(a: &ReplayArgs, quiet: bool) -> Result<Outcome, SimError> {
         human_to_stderr: to_stdout,
         failure,
     })
+}
+
+/// One job per trace: the trace, its estimate file and its plot file (if any); several traces
+/// need an output directory, distinct names and no standard input.
+fn replay_jobs(a: &ReplayArgs) -> Result<Vec<(String, String, Option<String>)>, SimError> {
+    if a.traces.len() == 1 {
+        let t = a.traces.first().cloned().unwrap_or_default();
+        let out = match (&a.out, &a.out_dir) {
+            (Some(o), _) => o.clone(),
+            (None, Some(d)) => d
+                .join(format!("{}.estimate.csv", stem(&t)))
+                .display()
+                .to_string(),
+            (None, None) => {
+                return Err(SimError::Usage(
+                    "replay needs --out FILE (or --out-dir DIR)".into(),
+                ));
+            }
+        };
+        let plot = a.plot.clone().or_else(|| {
+            a.plot_dir
+                .as_ref()
+                .map(|d| d.join(format!("{}.svg", stem(&t))).display().to_string())
+        });
+        Ok(vec![(t, out, plot)])
+    } else {
+        let dir = a
+            .out_dir
+            .clone()
+            .ok_or_else(|| SimError::Usage("several traces need --out-dir DIR".into()))?;
+        if a.plot.is_some() {
+            return Err(SimError::Usage(
+                "several traces: use --plot-dir instead of --plot".into(),
+            ));
+        }
+        if a.traces.iter().filter(|t| *t == "-").count() > 0 {
+            return Err(SimError::Usage(
+                "standard input can only be replayed alone".into(),
+            ));
+        }
+        let mut seen = std::collections::HashSet::new();
+        for t in &a.traces {
+            if !seen.insert(stem(t)) {
+                return Err(SimError::Usage(format!(
+                    "two traces share the name '{}': their estimate files would collide",
+                    stem(t)
+                )));
+            }
+        }
+        Ok(a.traces
+            .iter()
+            .map(|t| {
+                (
+                    t.clone(),
+                    dir.join(format!("{}.estimate.csv", stem(t)))
+                        .display()
+                        .to_string(),
+                    a.plot_dir
+                        .as_ref()
+                        .map(|d| d.join(format!("{}.svg", stem(t))).display().to_string()),
+                )
+            })
+            .collect())
+    }
 }
 
 /// `compare`.

@@ -6,7 +6,7 @@
 //! entered as an error (not even as zero). Unavailable rows (no clamp force) are counted apart
 //! too. Reported: rows per state, and for the rows with an error: count, bias (mean error),
 //! RMS, max |error|, and P95/P99 of |error| from a [`QuantileSketch`] (bounded memory,
-//! relative accuracy [`crate::sketch::RELATIVE_ACCURACY`]) — overall, for the gated states
+//! relative accuracy [`crate::quantile_sketch::RELATIVE_ACCURACY`]) — overall, for the gated states
 //! (slipping by default), and by operating region in numeric order: lining temperature band,
 //! slip-speed band, clamp-force band, and state. Beside each N·m figure, the same figures
 //! relative to the reference (% of |reference|) over the rows whose |reference| is at least
@@ -22,8 +22,8 @@ use serde::Serialize;
 use crate::config::DeviceConfig;
 use crate::error::SimError;
 use crate::estimate::EstimateReader;
-use crate::seam::{EstimateRow, State};
-use crate::sketch::QuantileSketch;
+use crate::quantile_sketch::QuantileSketch;
+use clampwise_convert::{ContactState, EstimateRow};
 
 /// Running sums of one error population.
 #[derive(Debug, Clone, Default)]
@@ -55,7 +55,7 @@ impl Moments {
         Some((
             self.n,
             self.sum / n,
-            (self.sum_sq / n).sqrt(),
+            libm::sqrt(self.sum_sq / n),
             self.max_abs,
             self.sketch.quantile(0.95).unwrap_or(0.0),
             self.sketch.quantile(0.99).unwrap_or(0.0),
@@ -158,7 +158,7 @@ impl ErrorStats {
 #[derive(Debug, Clone, PartialEq)]
 pub struct GateSpec {
     /// States whose errors the `--max-*` gates apply to (slipping and/or released).
-    pub states: Vec<State>,
+    pub states: Vec<ContactState>,
     /// Relative figures count only rows with |reference| at or above this, N·m.
     pub relative_floor_nm: f64,
 }
@@ -166,7 +166,7 @@ pub struct GateSpec {
 impl Default for GateSpec {
     fn default() -> Self {
         Self {
-            states: vec![State::Slipping],
+            states: vec![ContactState::Slipping],
             relative_floor_nm: 10.0,
         }
     }
@@ -181,10 +181,10 @@ impl GateSpec {
     pub fn parse(names: &[String], relative_floor_nm: f64) -> Result<Self, String> {
         let mut states = Vec::new();
         for n in names.iter().map(|n| n.trim()).filter(|n| !n.is_empty()) {
-            let s = match State::parse(n) {
-                Some(s @ (State::Slipping | State::Released)) => s,
-                Some(State::Holding | State::SlipUnknown) => return Err("--gate-states: holding rows have no torque estimate (only a capacity); gate them with --max-holding-violations".into()),
-                Some(State::Unavailable) => return Err("--gate-states: unavailable rows have no estimate to gate".into()),
+            let s = match ContactState::from_name(n) {
+                Some(s @ (ContactState::Slipping | ContactState::Released)) => s,
+                Some(ContactState::Holding | ContactState::SlipUnknown) => return Err("--gate-states: holding rows have no torque estimate (only a capacity); gate them with --max-holding-violations".into()),
+                Some(ContactState::Unavailable) => return Err("--gate-states: unavailable rows have no estimate to gate".into()),
                 None => return Err(format!("--gate-states: unknown state '{n}' (choose slipping, released)")),
             };
             if !states.contains(&s) {
@@ -321,7 +321,7 @@ pub struct Comparer {
     /// Keyed by (variable, band index): numeric order, whatever the labels.
     regions: BTreeMap<(usize, usize), (String, ErrorStats)>,
     holding: HoldingReport,
-    by_state: [StateCount; State::ALL.len()],
+    by_state: [StateCount; ContactState::ALL.len()],
     rows: u64,
     no_reference: u64,
     unavailable: u64,
@@ -385,7 +385,10 @@ impl Comparer {
     /// Add one estimate row.
     pub fn add(&mut self, r: &EstimateRow) {
         self.rows += 1;
-        let slot = State::ALL.iter().position(|&s| s == r.state).unwrap_or(0);
+        let slot = ContactState::ALL
+            .iter()
+            .position(|&s| s == r.state)
+            .unwrap_or(0);
         let count = self.by_state.get_mut(slot);
         let Some(reference) = r.torque_ref_nm else {
             self.no_reference += 1;
@@ -395,7 +398,7 @@ impl Comparer {
             return;
         };
         let contributes = match (r.state, r.torque_nm, r.capacity_nm) {
-            (State::Holding, _, capacity) => {
+            (ContactState::Holding, _, capacity) => {
                 // No torque estimate here: the reference must lie within ±capacity.
                 self.holding.n += 1;
                 let margin = capacity.unwrap_or(0.0) - reference.abs();
@@ -411,7 +414,7 @@ impl Comparer {
             (_, Some(t), _) => {
                 let e = t - reference;
                 self.overall.add(e, reference);
-                if r.state == State::Slipping {
+                if r.state == ContactState::Slipping {
                     self.slipping.add(e, reference);
                 }
                 if self.gate.states.contains(&r.state) {
@@ -422,7 +425,10 @@ impl Comparer {
                     self.bands[1].band(r.slip_speed_rad_s.abs()),
                     self.bands[2].band(r.clamp_force_n),
                     (
-                        State::ALL.iter().position(|&s| s == r.state).unwrap_or(0),
+                        ContactState::ALL
+                            .iter()
+                            .position(|&s| s == r.state)
+                            .unwrap_or(0),
                         format!("state {}", r.state.name()),
                     ),
                 ];
@@ -459,7 +465,7 @@ impl Comparer {
             slipping: self.slipping.report(),
             gate_states: self.gate.states.iter().map(|s| s.name()).collect(),
             gated: self.gated.report(),
-            by_state: State::ALL
+            by_state: ContactState::ALL
                 .iter()
                 .zip(&self.by_state)
                 .map(|(s, c)| (s.name().to_string(), c.clone()))
@@ -477,7 +483,7 @@ impl Comparer {
             holding: self.holding.clone(),
             quantile_method: format!(
                 "log-bucketed histogram (DDSketch scheme), relative accuracy {} %, bounded memory",
-                crate::sketch::RELATIVE_ACCURACY * 100.0
+                crate::quantile_sketch::RELATIVE_ACCURACY * 100.0
             ),
         }
     }
@@ -616,13 +622,15 @@ pub fn human(r: &CompareReport) -> String {
         Some(e) => o.push_str(&line(&gated, e)),
         None => o.push_str(&format!("  {gated}: no rows\n")),
     }
-    let states: Vec<String> = State::ALL
+    let states: Vec<String> = ContactState::ALL
         .iter()
         .filter_map(|s| {
             let c = r.by_state.get(s.name())?;
             let what = match s {
-                State::Holding | State::SlipUnknown => "no torque: checked against ±capacity",
-                State::Unavailable => "no estimate",
+                ContactState::Holding | ContactState::SlipUnknown => {
+                    "no torque: checked against ±capacity"
+                }
+                ContactState::Unavailable => "no estimate",
                 _ => "in the errors",
             };
             Some(format!(
@@ -630,7 +638,10 @@ pub fn human(r: &CompareReport) -> String {
                 s.name(),
                 c.rows,
                 c.with_reference,
-                if matches!(s, State::Holding | State::SlipUnknown | State::Unavailable) {
+                if matches!(
+                    s,
+                    ContactState::Holding | ContactState::SlipUnknown | ContactState::Unavailable
+                ) {
                     c.with_reference
                 } else {
                     c.with_error
@@ -676,10 +687,10 @@ pub fn human(r: &CompareReport) -> String {
 mod tests {
     #![allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
     use super::*;
-    use crate::seam::Flags;
+    use clampwise_convert::Flags;
 
     fn row(
-        state: State,
+        state: ContactState,
         torque: Option<f64>,
         capacity: Option<f64>,
         reference: f64,
@@ -708,14 +719,24 @@ mod tests {
     fn holding_rows_are_counted_apart_never_as_zero_error() {
         let mut c = Comparer::new(None, GateSpec::default());
         // Two slipping rows with errors +10 and −30 N·m [calc: bias −10, RMS √500].
-        c.add(&row(State::Slipping, Some(-990.0), Some(1300.0), -1000.0));
-        c.add(&row(State::Slipping, Some(-1030.0), Some(1300.0), -1000.0));
+        c.add(&row(
+            ContactState::Slipping,
+            Some(-990.0),
+            Some(1300.0),
+            -1000.0,
+        ));
+        c.add(&row(
+            ContactState::Slipping,
+            Some(-1030.0),
+            Some(1300.0),
+            -1000.0,
+        ));
         // Many holding rows whose load is within the capacity: no torque, no error entry.
         for _ in 0..100 {
-            c.add(&row(State::Holding, None, Some(1300.0), 700.0));
+            c.add(&row(ContactState::Holding, None, Some(1300.0), 700.0));
         }
-        c.add(&row(State::Holding, None, Some(1300.0), 1400.0));
-        c.add(&row(State::Unavailable, None, None, 500.0));
+        c.add(&row(ContactState::Holding, None, Some(1300.0), 1400.0));
+        c.add(&row(ContactState::Unavailable, None, None, 500.0));
         let r = c.report("t");
         let o = r.overall.clone().unwrap();
         assert_eq!(o.n, 2);
@@ -740,10 +761,20 @@ mod tests {
     #[test]
     fn gates_judge_the_slipping_rows_by_default() {
         let mut c = Comparer::new(None, GateSpec::default());
-        c.add(&row(State::Slipping, Some(-1100.0), Some(1300.0), -1000.0));
-        c.add(&row(State::Slipping, Some(-900.0), Some(1300.0), -1000.0));
+        c.add(&row(
+            ContactState::Slipping,
+            Some(-1100.0),
+            Some(1300.0),
+            -1000.0,
+        ));
+        c.add(&row(
+            ContactState::Slipping,
+            Some(-900.0),
+            Some(1300.0),
+            -1000.0,
+        ));
         for _ in 0..98 {
-            c.add(&row(State::Released, Some(0.0), Some(0.0), 0.0));
+            c.add(&row(ContactState::Released, Some(0.0), Some(0.0), 0.0));
         }
         let r = c.report("t");
         let th = Thresholds {
@@ -761,8 +792,13 @@ mod tests {
         // Both states pooled, as asked.
         let gate = GateSpec::parse(&["slipping".into(), "released".into()], 10.0).unwrap();
         let mut c2 = Comparer::new(None, gate);
-        c2.add(&row(State::Slipping, Some(-1100.0), Some(1300.0), -1000.0));
-        c2.add(&row(State::Released, Some(0.0), Some(0.0), 0.0));
+        c2.add(&row(
+            ContactState::Slipping,
+            Some(-1100.0),
+            Some(1300.0),
+            -1000.0,
+        ));
+        c2.add(&row(ContactState::Released, Some(0.0), Some(0.0), 0.0));
         assert_eq!(c2.report("t").gated.unwrap().n, 2);
         assert!(GateSpec::parse(&["holding".into()], 10.0).is_err());
         assert!(GateSpec::parse(&["slipping".into()], 0.0).is_err());
@@ -771,9 +807,9 @@ mod tests {
     #[test]
     fn holding_rows_outside_capacity_have_their_own_gate() {
         let mut c = Comparer::new(None, GateSpec::default());
-        c.add(&row(State::Holding, None, Some(1300.0), 700.0));
-        c.add(&row(State::Holding, None, Some(1300.0), -2998.0));
-        c.add(&row(State::Holding, None, Some(1300.0), 1500.0));
+        c.add(&row(ContactState::Holding, None, Some(1300.0), 700.0));
+        c.add(&row(ContactState::Holding, None, Some(1300.0), -2998.0));
+        c.add(&row(ContactState::Holding, None, Some(1300.0), 1500.0));
         let r = c.report("t");
         assert_eq!(r.holding.outside_capacity, 2);
         assert_eq!(r.holding.min_margin_nm, Some(-1698.0));
@@ -794,9 +830,19 @@ mod tests {
     #[test]
     fn relative_figures_skip_references_under_the_floor() {
         let mut c = Comparer::new(None, GateSpec::default());
-        c.add(&row(State::Slipping, Some(-990.0), Some(1300.0), -1000.0));
-        c.add(&row(State::Slipping, Some(196.0), Some(1300.0), 200.0));
-        c.add(&row(State::Slipping, Some(6.0), Some(1300.0), 5.0));
+        c.add(&row(
+            ContactState::Slipping,
+            Some(-990.0),
+            Some(1300.0),
+            -1000.0,
+        ));
+        c.add(&row(
+            ContactState::Slipping,
+            Some(196.0),
+            Some(1300.0),
+            200.0,
+        ));
+        c.add(&row(ContactState::Slipping, Some(6.0), Some(1300.0), 5.0));
         let rel = c.report("t").gated.unwrap().relative.unwrap();
         assert_eq!(rel.n, 2);
         assert!((rel.bias_pct + 0.5).abs() < 1e-12, "{rel:?}");
@@ -810,7 +856,7 @@ mod tests {
     fn regions_are_in_numeric_order() {
         let mut c = Comparer::new(None, GateSpec::default());
         for t in [450.0, 350.0, 50.0, 150.0, 250.0] {
-            let mut r = row(State::Slipping, Some(-990.0), Some(1300.0), -1000.0);
+            let mut r = row(ContactState::Slipping, Some(-990.0), Some(1300.0), -1000.0);
             r.lining_temp_c = t;
             c.add(&r);
         }

@@ -23,8 +23,8 @@ use crate::plant::scenario::Scenario;
 use crate::plot;
 use crate::plot::{BUCKETS, Envelope, TimeWindow};
 use crate::replay::{self, CAUTION, ReplayOptions};
-use crate::seam::ChannelCal;
 use crate::synth;
+use clampwise_convert::ChannelCal;
 
 /// The demo device's config text.
 pub use clampwise_device::DEMO_CONFIG;
@@ -152,44 +152,119 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     )?;
     let after = compare::compare_file(&estimate2, Some(&cfg2.config), &gate, None)?;
 
-    let mut plots = Vec::new();
-    if !a.no_plots {
-        let name = &cfg.config.device.name;
-        for (f, d, what) in [
-            ("estimate.svg", &dec, "nominal table"),
-            ("estimate.png", &dec, "nominal table"),
-            ("estimate-fitted.svg", &dec2, "fitted table"),
-        ] {
-            let p = path(dir, f);
-            plot::time_series_file(&p, d, &format!("{name} — {what}"))?;
-            plots.push(p);
-        }
-        let (nt, nv) = (
-            cfg.config.friction.mu.temperature_c.len(),
-            cfg.config.friction.mu.slip_speed_rad_s.len(),
-        );
-        for f in ["mu-surface.svg", "mu-surface.png"] {
-            let p = path(dir, f);
-            plot::surface_file(&p, &fitted.cells, nt, nv)?;
-            plots.push(p);
-        }
-    }
-
-    let line = |r: &compare::CompareReport| {
-        r.slipping.as_ref().map_or("no slipping rows".into(), |e| {
-            let rel = e.relative.as_ref().map_or(String::new(), |r| {
-                format!(" (RMS {:.2} % of |reference| over {} rows ≥ {} N·m)", r.rms_pct, r.n, r.floor_nm)
-            });
-            format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows{rel}", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
-        })
+    let plots = if a.no_plots {
+        Vec::new()
+    } else {
+        write_plots(dir, &cfg, [&dec, &dec2], &fitted)?
     };
+
+    let results = Results {
+        cfg: &cfg,
+        duration_s: a.duration_s,
+        fault_names: &fault_names,
+        syn: &syn,
+        rep: &rep,
+        before: &before,
+        after: &after,
+        rep2: &rep2,
+        fitted: &fitted,
+        plots: &plots,
+        dir,
+    };
+    let human = human_summary(&results);
+    let js = summary_json(&results);
+    write_file(
+        &path(dir, "summary.json"),
+        serde_json::to_string_pretty(&js)
+            .unwrap_or_default()
+            .as_bytes(),
+    )?;
+    Ok(Outcome {
+        human,
+        json: js,
+        human_to_stderr: false,
+        failure: None,
+    })
+}
+
+/// The demo's plots: the time series with the nominal and the fitted table, and the fitted μ
+/// surface; the paths written.
+fn write_plots(
+    dir: &Path,
+    cfg: &LoadedConfig,
+    [dec, dec2]: [&Envelope; 2],
+    fitted: &fit::FitReport,
+) -> Result<Vec<String>, SimError> {
+    let mut plots = Vec::new();
+    let name = &cfg.config.device.name;
+    for (f, d, what) in [
+        ("estimate.svg", dec, "nominal table"),
+        ("estimate.png", dec, "nominal table"),
+        ("estimate-fitted.svg", dec2, "fitted table"),
+    ] {
+        let p = path(dir, f);
+        plot::time_series_file(&p, d, &format!("{name} — {what}"))?;
+        plots.push(p);
+    }
+    let (nt, nv) = (
+        cfg.config.friction.mu.temperature_c.len(),
+        cfg.config.friction.mu.slip_speed_rad_s.len(),
+    );
+    for f in ["mu-surface.svg", "mu-surface.png"] {
+        let p = path(dir, f);
+        plot::surface_file(&p, &fitted.cells, nt, nv)?;
+        plots.push(p);
+    }
+    Ok(plots)
+}
+
+/// What the demo's steps produced, for its summaries.
+struct Results<'a> {
+    cfg: &'a LoadedConfig,
+    duration_s: f64,
+    fault_names: &'a [&'static str],
+    syn: &'a synth::SynthSummary,
+    rep: &'a replay::ReplaySummary,
+    before: &'a compare::CompareReport,
+    after: &'a compare::CompareReport,
+    rep2: &'a replay::ReplaySummary,
+    fitted: &'a fit::FitReport,
+    plots: &'a [String],
+    dir: &'a Path,
+}
+
+/// One line on the slipping rows' error of a comparison.
+fn slipping_line(r: &compare::CompareReport) -> String {
+    r.slipping.as_ref().map_or("no slipping rows".into(), |e| {
+        let rel = e.relative.as_ref().map_or(String::new(), |r| {
+            format!(" (RMS {:.2} % of |reference| over {} rows ≥ {} N·m)", r.rms_pct, r.n, r.floor_nm)
+        });
+        format!("bias {:+8.1} N·m, RMS {:7.1} N·m, P99 {:7.1} N·m, max {:7.1} N·m over {} slipping rows{rel}", e.bias_nm, e.rms_nm, e.p99_nm, e.max_abs_nm, e.n)
+    })
+}
+
+/// The demo's summary for people, ending with the caution.
+fn human_summary(r: &Results<'_>) -> String {
+    let Results {
+        cfg,
+        duration_s,
+        fault_names,
+        syn,
+        rep,
+        before,
+        after,
+        fitted,
+        plots,
+        dir,
+        ..
+    } = *r;
     let mut human = String::new();
     human.push_str("clampwise demo — INVENTED device and data\n");
     human.push_str(&format!("  device: {}\n", cfg.config.device.name));
     human.push_str(&format!(
         "  trace:  {} rows ({:.0} s at {} Hz) from the simulator's f64 plant, pads {} % below the nominal μ table, faults {}\n",
         syn.rows,
-        a.duration_s,
+        duration_s,
         1.0 / cfg.config.device.sample_period_s,
         ((1.0 - DEMO_MU_SCALE) * 100.0).round(),
         if fault_names.is_empty() {
@@ -224,8 +299,8 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
             fl.join(", ")
         }
     ));
-    human.push_str(&format!("  nominal table: {}\n", line(&before)));
-    human.push_str(&format!("  fitted table:  {}\n", line(&after)));
+    human.push_str(&format!("  nominal table: {}\n", slipping_line(before)));
+    human.push_str(&format!("  fitted table:  {}\n", slipping_line(after)));
     if before.holding.n > 0 {
         human.push_str(&format!(
             "  holding: {} rows; the load stayed within the estimated ±capacity in {} of them, outside in {} (worst margin {:.0} N·m)\n",
@@ -248,37 +323,30 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
         replay::ESTIMATOR_NAME
     ));
     human.push_str(&format!("  files in {}: demo-hoist-brake.toml, trace.csv, estimate.csv, fitted.toml, coverage.csv, estimate-fitted.csv, summary.json", dir.display()));
-    for p in &plots {
+    for p in plots {
         if let Some(n) = Path::new(p).file_name() {
             human.push_str(&format!(", {}", n.to_string_lossy()));
         }
     }
     human.push('\n');
     human.push_str(&format!("\n{CAUTION}\n"));
-    let js = json!({
+    human
+}
+
+/// The demo's summary as JSON (`summary.json`, `--json`).
+fn summary_json(r: &Results<'_>) -> serde_json::Value {
+    json!({
         "command": "demo",
         "invented": true,
-        "device": cfg.config.device.name,
-        "faults": fault_names,
-        "synth": serde_json::to_value(&syn).unwrap_or_default(),
-        "replay": serde_json::to_value(&rep).unwrap_or_default(),
-        "compare_nominal": serde_json::to_value(&before).unwrap_or_default(),
-        "fit": serde_json::to_value(&fitted).unwrap_or_default(),
-        "replay_fitted": serde_json::to_value(&rep2).unwrap_or_default(),
-        "compare_fitted": serde_json::to_value(&after).unwrap_or_default(),
-        "plots": plots,
+        "device": r.cfg.config.device.name,
+        "faults": r.fault_names,
+        "synth": serde_json::to_value(r.syn).unwrap_or_default(),
+        "replay": serde_json::to_value(r.rep).unwrap_or_default(),
+        "compare_nominal": serde_json::to_value(r.before).unwrap_or_default(),
+        "fit": serde_json::to_value(r.fitted).unwrap_or_default(),
+        "replay_fitted": serde_json::to_value(r.rep2).unwrap_or_default(),
+        "compare_fitted": serde_json::to_value(r.after).unwrap_or_default(),
+        "plots": r.plots,
         "caution": CAUTION,
-    });
-    write_file(
-        &path(dir, "summary.json"),
-        serde_json::to_string_pretty(&js)
-            .unwrap_or_default()
-            .as_bytes(),
-    )?;
-    Ok(Outcome {
-        human,
-        json: js,
-        human_to_stderr: false,
-        failure: None,
     })
 }

@@ -11,10 +11,10 @@
 
 use std::io::Write;
 
-use crate::csvin::{CsvIn, echo};
+use crate::csv_input::{CsvIn, echo};
 use crate::error::{DataError, SimError};
 use crate::output::AtomicFile;
-use crate::seam::{EstimateRow, Flags, State};
+use clampwise_convert::{ContactState, EstimateRow, Flags};
 
 /// Header of an estimate file.
 pub const HEADER: [&str; 16] = [
@@ -339,7 +339,7 @@ impl EstimateReader {
         let g = |i: usize| row.required_f64(c.get(i).copied().unwrap_or(0));
         let o = |i: usize| row.f64(c.get(i).copied().unwrap_or(0));
         let state_col = c.get(13).copied().unwrap_or(0);
-        let state = State::parse(row.text(state_col)).ok_or_else(|| {
+        let state = ContactState::from_name(row.text(state_col)).ok_or_else(|| {
             row.error(
                 state_col,
                 format!("unknown state '{}'", echo(row.text(state_col))),
@@ -474,7 +474,7 @@ mod tests {
             bedding: 0.0,
             wear_m: 0.0,
             correction: 1.0,
-            state: State::Slipping,
+            state: ContactState::Slipping,
             flags,
             torque_ref_nm: Some(-2.25),
         }

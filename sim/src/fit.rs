@@ -1,7 +1,7 @@
 //! `fit`: the μ table from a trace with a reference torque, by least squares on the table's
 //! own bilinear interpolation, with a coverage map and no silent extrapolation.
 //!
-//! The trace is replayed through the estimator (the same seam as `replay`), so clamp force,
+//! The trace is replayed through the estimator (the same `clampwise_convert` estimator as `replay`), so clamp force,
 //! effective radius and lining temperature are the estimator's own. Each slipping sample with
 //! healthy sensors, enough force and a slip speed above the core's transition speed (below it
 //! μ blends towards the static value) gives one equation
@@ -25,8 +25,8 @@ use crate::build_core::CoreDevice;
 use crate::config::{KeyPath, LoadedConfig, value_span};
 use crate::error::{DataError, SimError};
 use crate::replay::run_stream;
-use crate::seam::{self, Flags, State};
 use crate::trace::{RowPolicy, SkipReport, TraceOptions, TraceReader};
+use clampwise_convert::{self as convert, ContactState, Flags};
 
 /// Options of a fit.
 #[derive(Debug, Clone)]
@@ -137,7 +137,7 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
                 if s <= 0.0 {
                     return None;
                 }
-                l[i * n + i] = s.sqrt();
+                l[i * n + i] = libm::sqrt(s);
             } else {
                 l[i * n + j] = s / l[j * n + j];
             }
@@ -167,6 +167,36 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
         *d = solve(&e)[k];
     }
     Some((x, diag))
+}
+
+/// Flags that make a sample's clamp force, μ or temperature doubtful: such rows carry no
+/// equation for the table.
+const SENSOR_DOUBT: Flags = Flags::SENSOR_DEGRADED
+    .union(Flags::FORCE_FALLBACK)
+    .union(Flags::FORCE_LOST)
+    .union(Flags::FORCE_SATURATED)
+    .union(Flags::ARITHMETIC_SATURATED)
+    .union(Flags::OUT_OF_RANGE)
+    .union(Flags::TEMPERATURE_REJECTED);
+
+/// The error of a trace without one usable sample, with the reasons counted.
+fn no_usable_sample(
+    trace: &str,
+    samples: u64,
+    excluded: u64,
+    min_force: f64,
+    outside: u64,
+) -> SimError {
+    DataError {
+        file: trace.to_string(),
+        line: None,
+        column: None,
+        header: None,
+        message: format!(
+            "no usable sample: of {samples} rows, {excluded} were not slipping above the transition speed with a clamp force of at least {min_force} N, a reference torque and no sensor flag, and {outside} were outside the μ table; nothing fitted"
+        ),
+    }
+    .into()
 }
 
 /// Fit the μ table of `cfg` from `trace`.
@@ -203,17 +233,10 @@ pub fn fit_trace(
         c.friction.drag_torque_nm,
         c.friction.drag_viscous_nm_per_rad_s,
     );
-    let bad = Flags::SENSOR_DEGRADED
-        | Flags::FORCE_FALLBACK
-        | Flags::FORCE_LOST
-        | Flags::FORCE_SATURATED
-        | Flags::ARITHMETIC_SATURATED
-        | Flags::OUT_OF_RANGE
-        | Flags::TEMPERATURE_REJECTED;
     // Below the transition speed the core blends μ towards the static value: not the table's
     // kinetic μ, so those samples carry no equation for it.
     let transition = c.friction.transition_speed_rad_s;
-    let mut est = seam::new_estimator(c, core)
+    let mut est = convert::new_estimator(c, core)
         .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     run_stream(&mut reader, est.as_mut(), progress, |_, row| {
         samples += 1;
@@ -221,8 +244,8 @@ pub fn fit_trace(
             excluded += 1;
             return Ok(());
         };
-        if row.state != State::Slipping
-            || row.flags.intersects(bad)
+        if row.state != ContactState::Slipping
+            || row.flags.intersects(SENSOR_DOUBT)
             || row.clamp_force_n < min_force
             || row.slip_speed_rad_s.abs() < transition
         {
@@ -262,61 +285,111 @@ pub fn fit_trace(
         Ok(())
     })?;
     if used == 0 {
-        return Err(DataError {
-            file: trace.to_string(),
-            line: None,
-            column: None,
-            header: None,
-            message: format!(
-                "no usable sample: of {samples} rows, {excluded} were not slipping above the transition speed with a clamp force of at least {min_force} N, a reference torque and no sensor flag, and {outside} were outside the μ table; nothing fitted"
-            ),
-        }
-        .into());
+        return Err(no_usable_sample(
+            trace, samples, excluded, min_force, outside,
+        ));
     }
 
     let prior: Vec<f64> = c.friction.mu.values.iter().flatten().copied().collect();
     let reached: Vec<usize> = (0..k).filter(|&p| cover[p] >= opts.min_coverage).collect();
-    let mut fitted = prior.clone();
+    let (fitted, std_error) = solve_reached(&m, &rhs, yy, &prior, &reached, used)?;
+    let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
+    let (cells, unreached) = cell_reports(
+        trace,
+        ts,
+        vs,
+        &cover,
+        opts.min_coverage,
+        &prior,
+        &fitted,
+        &std_error,
+    )?;
+    #[allow(clippy::cast_precision_loss)]
+    let nused = (used as f64).max(1.0);
+    Ok(FitReport {
+        trace: trace.to_string(),
+        samples,
+        used,
+        outside_table: outside,
+        excluded,
+        min_coverage: opts.min_coverage,
+        rms_before_nm: libm::sqrt(rss_before / nused),
+        rms_after_nm: libm::sqrt(rss_after.max(0.0) / nused),
+        cells,
+        unreached,
+        skipped: reader.skipped().clone(),
+    })
+}
+
+/// The table entries in `reached` by least squares on the normal equations `m`·x = `rhs`
+/// (entries not reached held at the prior, a tiny ridge towards the prior for conditioning),
+/// and their standard errors; the other entries keep the prior.
+fn solve_reached(
+    m: &[f64],
+    rhs: &[f64],
+    yy: f64,
+    prior: &[f64],
+    reached: &[usize],
+    used: u64,
+) -> Result<(Vec<f64>, Vec<Option<f64>>), SimError> {
+    let k = prior.len();
+    let mut fitted = prior.to_vec();
     let mut std_error = vec![None; k];
-    if !reached.is_empty() {
-        let n = reached.len();
-        let max_diag = reached.iter().map(|&p| m[p * k + p]).fold(0.0, f64::max);
-        let ridge = 1e-12 * max_diag;
-        let mut a = vec![0.0; n * n];
-        let mut b = vec![0.0; n];
-        for (ri, &p) in reached.iter().enumerate() {
-            b[ri] = rhs[p] + ridge * prior[p];
-            for q in 0..k {
-                if cover[q] < opts.min_coverage {
-                    b[ri] -= m[p * k + q] * prior[q];
-                }
-            }
-            for (rj, &q) in reached.iter().enumerate() {
-                a[ri * n + rj] = m[p * k + q] + if ri == rj { ridge } else { 0.0 };
+    if reached.is_empty() {
+        return Ok((fitted, std_error));
+    }
+    let n = reached.len();
+    let max_diag = reached.iter().map(|&p| m[p * k + p]).fold(0.0, f64::max);
+    let ridge = 1e-12 * max_diag;
+    let mut a = vec![0.0; n * n];
+    let mut b = vec![0.0; n];
+    for (ri, &p) in reached.iter().enumerate() {
+        b[ri] = rhs[p] + ridge * prior[p];
+        for q in 0..k {
+            if !reached.contains(&q) {
+                b[ri] -= m[p * k + q] * prior[q];
             }
         }
-        let (x, diag) = cholesky_solve(&a, &b, n).ok_or_else(|| {
-            SimError::Internal("fit: normal equations not positive definite".into())
-        })?;
-        for (ri, &p) in reached.iter().enumerate() {
-            fitted[p] = x[ri];
-        }
-        let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
-        // Counts stay far below 2⁵³.
-        #[allow(clippy::cast_precision_loss)]
-        let dof = (used as f64 - n as f64).max(1.0);
-        let sigma2 = rss_after.max(0.0) / dof;
-        for (ri, &p) in reached.iter().enumerate() {
-            std_error[p] = Some((sigma2 * diag[ri]).max(0.0).sqrt());
+        for (rj, &q) in reached.iter().enumerate() {
+            a[ri * n + rj] = m[p * k + q] + if ri == rj { ridge } else { 0.0 };
         }
     }
-    let rss_after = rss_of(&m, &rhs, yy, &fitted, k);
-    let mut cells = Vec::with_capacity(k);
+    let (x, diag) = cholesky_solve(&a, &b, n)
+        .ok_or_else(|| SimError::Internal("fit: normal equations not positive definite".into()))?;
+    for (ri, &p) in reached.iter().enumerate() {
+        fitted[p] = x[ri];
+    }
+    let rss_after = rss_of(m, rhs, yy, &fitted, k);
+    // Counts stay far below 2⁵³.
+    #[allow(clippy::cast_precision_loss)]
+    let dof = (used as f64 - n as f64).max(1.0);
+    let sigma2 = rss_after.max(0.0) / dof;
+    for (ri, &p) in reached.iter().enumerate() {
+        std_error[p] = Some(libm::sqrt((sigma2 * diag[ri]).max(0.0)));
+    }
+    Ok((fitted, std_error))
+}
+
+/// One report per table entry, and the entries not reached; a reached entry fitted outside
+/// 0 … 1.2 is an error (the trace and the config disagree).
+#[allow(clippy::too_many_arguments)]
+fn cell_reports(
+    trace: &str,
+    ts: &[f64],
+    vs: &[f64],
+    cover: &[f64],
+    min_coverage: f64,
+    prior: &[f64],
+    fitted: &[f64],
+    std_error: &[Option<f64>],
+) -> Result<(Vec<CellReport>, Vec<String>), SimError> {
+    let nv = vs.len();
+    let mut cells = Vec::with_capacity(cover.len());
     let mut unreached = Vec::new();
     for (i, &t) in ts.iter().enumerate() {
         for (j, &v) in vs.iter().enumerate() {
             let p = i * nv + j;
-            let is_reached = cover[p] >= opts.min_coverage;
+            let is_reached = cover[p] >= min_coverage;
             if !is_reached {
                 unreached.push(format!("({} °C, {} rad/s): coverage {:.1}", t, v, cover[p]));
             } else if !(fitted[p] > 0.0 && fitted[p] <= 1.2) {
@@ -345,21 +418,7 @@ pub fn fit_trace(
             });
         }
     }
-    #[allow(clippy::cast_precision_loss)]
-    let nused = (used as f64).max(1.0);
-    Ok(FitReport {
-        trace: trace.to_string(),
-        samples,
-        used,
-        outside_table: outside,
-        excluded,
-        min_coverage: opts.min_coverage,
-        rms_before_nm: (rss_before / nused).sqrt(),
-        rms_after_nm: (rss_after.max(0.0) / nused).sqrt(),
-        cells,
-        unreached,
-        skipped: reader.skipped().clone(),
-    })
+    Ok((cells, unreached))
 }
 
 /// Σ(y − aᵀμ)² = Σy² − 2μᵀb + μᵀMμ.

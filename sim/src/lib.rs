@@ -14,11 +14,11 @@
 //! | module | concept |
 //! |---|---|
 //! | [`config`], [`column_units`], [`build_core`], [`emit`] | re-exported from `clampwise-device`: the TOML schema, config → core, firmware table emitter |
-//! | [`seam`] | **the seam**: `SampleEstimator::step`, implemented by `CoreEstimator` (the core's `Estimator::step`) |
-//! | [`csvin`], [`trace`], [`timestamps`], [`resample`] | located, streaming CSV input and its dialect; column mapping; time checks; resampling onto the device period |
+//! | [`clampwise_convert`] | the f64 ↔ fixed layer: `SampleEstimator::step`, implemented by `CoreEstimator` (the core's `Estimator::step`) |
+//! | [`csv_input`], [`trace`], [`timestamps`], [`resample`] | located, streaming CSV input and its dialect; column mapping; time checks; resampling onto the device period |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
-//! | [`replay`], [`compare`], [`sketch`], [`fit`] | the subcommands' work |
-//! | [`plant`], [`synth`] | the independent f64 plant and trace synthesis |
+//! | [`replay`], [`compare`], [`quantile_sketch`], [`fit`] | the subcommands' work |
+//! | [`plant`], [`synth`], [`portable_math`] | the independent f64 plant and trace synthesis; maths with the same bits on every machine |
 //! | [`plot`] | plots: bounded-memory min/max envelope, one file per panel kind |
 //! | [`report`] | the self-contained HTML report |
 //! | [`cli`], [`commands`], [`demo`], [`error`] | the command line, exit codes |
@@ -28,11 +28,11 @@
 //! ```
 //! use clampwise_sim::build_core::CoreDevice;
 //! use clampwise_sim::config::LoadedConfig;
-//! use clampwise_sim::seam::{self, Channel, TraceSample, State};
+//! use clampwise_convert::{Channel, ContactState, TraceSample, new_estimator};
 //!
 //! let cfg = LoadedConfig::from_str(clampwise_sim::demo::DEMO_CONFIG, "demo.toml").unwrap();
 //! let core = CoreDevice::build(&cfg.config).unwrap();
-//! let mut est = seam::new_estimator(&cfg.config, &core).unwrap();
+//! let mut est = new_estimator(&cfg.config, &core).unwrap();
 //! let s = TraceSample {
 //!     force: [Channel::Newtons(30_000.0); 4],
 //!     force_valid: [true; 4],
@@ -44,14 +44,14 @@
 //! for _ in 0..200 {
 //!     row = est.step(&s); // the core's force filter settles
 //! }
-//! assert_eq!(row.state, State::Slipping);
+//! assert_eq!(row.state, ContactState::Slipping);
 //! assert!(row.torque_nm.unwrap() < 0.0); // opposes the slip
 //! ```
 
 pub mod cli;
 pub mod commands;
 pub mod compare;
-pub mod csvin;
+pub mod csv_input;
 pub mod demo;
 pub mod error;
 pub mod estimate;
@@ -60,11 +60,11 @@ pub mod memory;
 pub mod output;
 pub mod plant;
 pub mod plot;
+pub mod portable_math;
+pub mod quantile_sketch;
 pub mod replay;
 pub mod report;
 pub mod resample;
-pub mod seam;
-pub mod sketch;
 pub mod synth;
 pub mod timestamps;
 pub mod trace;

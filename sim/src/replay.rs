@@ -1,5 +1,5 @@
 //! `replay`: a trace and a config in, an estimate trace out, through the estimator behind
-//! [`crate::seam`]. Streams row by row: memory does not grow with the trace length.
+//! [`clampwise_convert`]. Streams row by row: memory does not grow with the trace length.
 
 use std::collections::BTreeMap;
 use std::time::Instant;
@@ -9,14 +9,16 @@ use serde::Serialize;
 
 use crate::build_core::CoreDevice;
 use crate::config::LoadedConfig;
-use crate::csvin::Dialect;
+use crate::csv_input::Dialect;
 use crate::error::SimError;
 use crate::estimate::EstimateWriter;
 use crate::plot::Envelope;
 use crate::resample::ResampleReport;
-use crate::seam::{self, EstimateRow, Flags, SampleEstimator, State, TraceSample};
 use crate::timestamps::TimeReport;
 use crate::trace::{RowPolicy, SkipReport, TraceOptions, TraceReader};
+use clampwise_convert::{
+    self as convert, ContactState, EstimateRow, Flags, SampleEstimator, TraceSample,
+};
 
 /// The caution printed with every human summary.
 pub use clampwise_device::CAUTION;
@@ -34,7 +36,7 @@ pub const ESTIMATOR_NAME: &str = "clampwise_core::estimator::Estimator::step";
 pub struct Tally {
     /// Rows replayed.
     pub rows: u64,
-    /// Rows per state, in [`State::ALL`] order.
+    /// Rows per state, in [`ContactState::ALL`] order.
     state_rows: [u64; 5],
     /// Rows per flag, by bit of the core's flags word.
     flag_rows: [u64; 32],
@@ -48,13 +50,13 @@ pub struct Tally {
     pub max_clamp_force_n: f64,
 }
 
-fn state_index(s: State) -> usize {
+fn state_index(s: ContactState) -> usize {
     match s {
-        State::Slipping => 0,
-        State::Holding => 1,
-        State::Released => 2,
-        State::Unavailable => 3,
-        State::SlipUnknown => 4,
+        ContactState::Slipping => 0,
+        ContactState::Holding => 1,
+        ContactState::Released => 2,
+        ContactState::Unavailable => 3,
+        ContactState::SlipUnknown => 4,
     }
 }
 
@@ -84,7 +86,7 @@ impl Tally {
 
     /// Rows per state that occurred, by the state's name.
     pub fn states(&self) -> BTreeMap<&'static str, u64> {
-        State::ALL
+        ContactState::ALL
             .into_iter()
             .filter_map(|st| {
                 let n = self.state_rows.get(state_index(st)).copied().unwrap_or(0);
@@ -240,7 +242,7 @@ pub fn replay_file(
         CAUTION.to_string(),
     ];
     let mut writer = EstimateWriter::create_with_columns(output, &comments, opts.columns.clone())?;
-    let mut est = seam::new_estimator(&cfg.config, core)
+    let mut est = convert::new_estimator(&cfg.config, core)
         .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     let mut tally = Tally::default();
     let result = run_stream(
@@ -392,7 +394,7 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
 
-    fn row(state: State, flags: Flags) -> EstimateRow {
+    fn row(state: ContactState, flags: Flags) -> EstimateRow {
         EstimateRow {
             line: 2,
             t_s: 0.0,
@@ -419,14 +421,14 @@ mod tests {
     fn tally_counts_states_and_flags_by_name() {
         let mut t = Tally::default();
         let both = Flags::TORQUE_BOUNDED | Flags::ADAPTATION_FROZEN;
-        t.add(&row(State::Holding, both));
-        t.add(&row(State::Holding, Flags::TORQUE_BOUNDED));
-        t.add(&row(State::Slipping, Flags::empty()));
+        t.add(&row(ContactState::Holding, both));
+        t.add(&row(ContactState::Holding, Flags::TORQUE_BOUNDED));
+        t.add(&row(ContactState::Slipping, Flags::empty()));
         t.add(&row(
-            State::Slipping,
+            ContactState::Slipping,
             Flags::LINING_WORN | Flags::SENSOR_DEGRADED,
         ));
-        t.add(&row(State::Slipping, Flags::empty()));
+        t.add(&row(ContactState::Slipping, Flags::empty()));
         let json = serde_json::to_value(&t).unwrap();
         assert_eq!(
             json,

@@ -22,7 +22,7 @@
 use serde::Serialize;
 
 use crate::error::DataError;
-use crate::seam::{Channel, TraceSample};
+use clampwise_convert::{Channel, TraceSample};
 
 /// How a trace recorded at another rate is brought to the device's sample period.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, clap::ValueEnum)]

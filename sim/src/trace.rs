@@ -10,11 +10,11 @@ use serde::Serialize;
 
 use crate::column_units::{self, Conversion};
 use crate::config::{CANONICAL, ColumnMap, DeviceConfig, DeviceKind};
-use crate::csvin::{CsvIn, Dialect, DialectChoice, Row, echo};
+use crate::csv_input::{CsvIn, Dialect, DialectChoice, Row, echo};
 use crate::error::{DataError, SimError};
 use crate::resample::{Resample, ResampleReport, Resampler};
-use crate::seam::{Channel, TraceSample};
 use crate::timestamps::{TimeCheck, TimeReport};
+use clampwise_convert::{Channel, TraceSample};
 
 /// A `--column QUANTITY=NAME[:UNIT]` override of one `[trace.columns]` entry.
 #[derive(Debug, Clone, PartialEq)]

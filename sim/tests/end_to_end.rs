@@ -155,15 +155,15 @@ fn synth_replay_compare() {
 }
 
 #[test]
-fn replay_output_is_the_seam_step_bit_for_bit() {
+fn replay_output_is_the_core_step_bit_for_bit() {
     // The estimate file must hold exactly what the core's own `Estimator::step` gives for the
-    // same samples: built and stepped here directly, not through the seam's estimator.
+    // same samples: built and stepped here directly, not through the `clampwise_convert` estimator.
+    use clampwise_convert::{ChannelCal, ContactState, core_inputs};
     use clampwise_core::estimator::Estimator;
     use clampwise_core::units::{Celsius, Metres, NewtonMetres, Newtons, Ratio};
     use clampwise_sim::build_core::{ChannelDevice, CoreDevice};
     use clampwise_sim::config::LoadedConfig;
     use clampwise_sim::estimate::EstimateReader;
-    use clampwise_sim::seam::{self, ChannelCal, State};
     use clampwise_sim::trace::{RowPolicy, TraceReader};
 
     let d = scratch("bit_for_bit");
@@ -202,7 +202,7 @@ fn replay_output_is_the_seam_step_bit_for_bit() {
     let mut file = EstimateReader::open(&est).unwrap();
     let (mut n, mut holding, mut slipping, mut flagged) = (0, 0, 0, 0);
     while let Some(s) = reader.next_sample().unwrap() {
-        let inputs = seam::core_inputs::<3>(&s, &cal, true);
+        let inputs = core_inputs::<3>(&s, &cal, true);
         let e = estimator.step(&inputs);
         let w = file.next_row().unwrap().unwrap();
         let at = format!("line {}", s.line);
@@ -235,11 +235,11 @@ fn replay_output_is_the_seam_step_bit_for_bit() {
         assert_eq!(w.torque_nm, e.torque.map(|t| t.to_num::<f64>()), "{at}");
         assert_eq!(w.mu, e.mu.to_num::<f64>(), "{at}");
         match w.state {
-            State::Holding => {
+            ContactState::Holding => {
                 holding += 1;
                 assert!(w.torque_nm.is_none(), "{at}: no torque while holding");
             }
-            State::Slipping => slipping += 1,
+            ContactState::Slipping => slipping += 1,
             _ => {}
         }
         flagged += u32::from(!e.flags.is_empty());

@@ -1,6 +1,6 @@
 //! Fault-injection matrix: sensor faults injected by the simulator's f64 plant
 //! (`clampwise_sim::plant`, the `synth --fault` kinds) on devices with 1–4 gauges, replayed
-//! through the core's estimator (the simulator's seam), every row checked against the plant's
+//! through the core's estimator (`clampwise-convert`), every row checked against the plant's
 //! true torque and true holding capacity.
 //!
 //! The estimate's contract: every torque or holding capacity it reports lies within its own ±,

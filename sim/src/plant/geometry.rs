@@ -17,6 +17,7 @@
 #![allow(clippy::indexing_slicing)]
 
 use crate::config::{Contact, Shape};
+use crate::portable_math::powi;
 
 /// Gauss–Legendre rule on [−1, 1].
 #[derive(Debug, Clone)]
@@ -36,7 +37,7 @@ impl GaussLegendre {
         let nf = n as f64;
         for i in 0..n.div_ceil(2) {
             #[allow(clippy::cast_precision_loss)]
-            let mut x = (std::f64::consts::PI * (i as f64 + 0.75) / (nf + 0.5)).cos();
+            let mut x = libm::cos(std::f64::consts::PI * (i as f64 + 0.75) / (nf + 0.5));
             let mut dp = 1.0;
             for _ in 0..100 {
                 // Recurrence (k+1)P_{k+1} = (2k+1) x P_k − k P_{k−1}.
@@ -102,7 +103,7 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
             };
             let polar = |p: &dyn Fn(f64) -> f64, k: i32| {
                 gl.integrate(ri, ro, |r| {
-                    gl.integrate(-angle / 2.0, angle / 2.0, |_| p(r) * r.powi(k) * r)
+                    gl.integrate(-angle / 2.0, angle / 2.0, |_| p(r) * powi(r, k) * r)
                 })
             };
             let up = |_r: f64| 1.0;
@@ -118,8 +119,9 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
             let local = |p: &dyn Fn(f64) -> f64, k: i32| {
                 gl.integrate(0.0, rp, |rho| {
                     gl.integrate(0.0, std::f64::consts::TAU, |phi| {
-                        let r = (e + rho * phi.cos()).hypot(rho * phi.sin());
-                        p(r) * r.powi(k) * rho
+                        let (sin_phi, cos_phi) = libm::sincos(phi);
+                        let r = libm::hypot(e + rho * cos_phi, rho * sin_phi);
+                        p(r) * powi(r, k) * rho
                     })
                 })
             };
@@ -148,8 +150,8 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
                             gl.integrate(0.0, 1.0, |v| {
                                 let x = a[0] + u * (b[0] - a[0]) + u * v * (cc[0] - b[0]);
                                 let y = a[1] + u * (b[1] - a[1]) + u * v * (cc[1] - b[1]);
-                                let r = x.hypot(y);
-                                p(r) * r.powi(k) * u * twice_area
+                                let r = libm::hypot(x, y);
+                                p(r) * powi(r, k) * u * twice_area
                             })
                         })
                     })
@@ -163,11 +165,12 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
             let ri = need(c.inner_radius_m, "inner_radius_m")?;
             let ro = need(c.outer_radius_m, "outer_radius_m")?;
             let alpha = need(c.half_angle_deg, "half_angle_deg")?.to_radians();
-            let slant = (ro - ri) / alpha.sin();
+            let sin_alpha = libm::sin(alpha);
+            let slant = (ro - ri) / sin_alpha;
             let surface = |p: &dyn Fn(f64) -> f64, k: i32| {
                 gl.integrate(0.0, slant, |s| {
-                    let r = ri + s * alpha.sin();
-                    gl.integrate(0.0, std::f64::consts::TAU, |_| p(r) * r.powi(k) * r)
+                    let r = ri + s * sin_alpha;
+                    gl.integrate(0.0, std::f64::consts::TAU, |_| p(r) * powi(r, k) * r)
                 })
             };
             let up = |_r: f64| 1.0;
@@ -177,7 +180,7 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
                 (surface(&uw, 1), surface(&uw, 0)),
             ];
             // Axial force is ∫p·sin α dA.
-            m.map(|(t, f)| (t, f * alpha.sin()))
+            m.map(|(t, f)| (t, f * sin_alpha))
         }
     };
     let [(tu, fu), (tw, fw)] = moments;

@@ -221,7 +221,7 @@ impl Plant {
             fade: th.fade_c,
             bedding_energy: c.wear.bedding_energy_j,
             // The config's starting friction work sets both the starting bedding and the wear.
-            bedding0: -(-c.wear.initial_energy_j / c.wear.bedding_energy_j).exp_m1(),
+            bedding0: -libm::expm1(-c.wear.initial_energy_j / c.wear.bedding_energy_j),
             wear_rate: c.wear.specific_wear_rate_m3_per_j,
             pad_area: c.wear.pad_area_m2,
             sensors: c
@@ -267,13 +267,13 @@ impl Plant {
         let t = self.step as f64 * self.dt;
         self.step += 1;
         let target = (sp.command.clamp(0.0, 1.5)) * self.full_force;
-        let k = 1.0 - (-self.dt / self.opts.actuator_tau_s.max(1e-6)).exp();
+        let k = 1.0 - libm::exp(-self.dt / self.opts.actuator_tau_s.max(1e-6));
         self.force += (target - self.force) * k;
         let force = self.force.max(0.0);
 
         let omega_out = if self.brake { 0.0 } else { sp.omega_out };
         let slip = sp.omega_in - omega_out;
-        let bedding = 1.0 - (1.0 - self.bedding0) * (-self.energy / self.bedding_energy).exp();
+        let bedding = 1.0 - (1.0 - self.bedding0) * libm::exp(-self.energy / self.bedding_energy);
         let r_e = (1.0 - bedding) * self.r_up + bedding * self.r_uw;
         let fade = 1.0 - self.opts.mu_fade_per_k * (self.temp - self.fade).max(0.0);
         let mu = mu_of(&self.mu, self.temp, slip.abs()) * self.opts.mu_scale * fade.max(0.05);
@@ -286,16 +286,45 @@ impl Plant {
             -slip.signum() * (kinetic + self.drag.0 + self.drag.1 * slip.abs())
         };
         let power = (torque * slip).abs();
-        let decay = (-self.dt / self.tau).exp();
+        let decay = libm::exp(-self.dt / self.tau);
         self.temp = self.ambient
             + (self.temp - self.ambient) * decay
             + self.gamma * power * self.tau / self.heat_capacity * (1.0 - decay);
         self.energy += power * self.dt;
         self.wear_m += self.wear_rate * power * self.dt / self.faces / self.pad_area;
 
-        // Pass 1, channel by channel (the random stream is drawn in the same order whatever
-        // the faults, except for `noise`): the reading in counts before rounding, with the
-        // channel's own faults.
+        let (mut raw, ok, stuck_now, mut fault_code) = self.read_channels(t, force);
+        self.copy_channels(t, &mut raw, &mut fault_code);
+        let (counts, valid) = self.quantise(&raw, &ok, &stuck_now);
+        let temp_meas =
+            ((self.temp + self.opts.temp_noise_k * self.rng.normal()) * 10.0).round() / 10.0;
+        let sigma = self.opts.torque_noise_abs_nm + self.opts.torque_noise_ratio * torque.abs();
+        PlantSample {
+            t_s: t,
+            counts,
+            valid,
+            omega_in: sp.omega_in,
+            omega_out,
+            command: sp.command,
+            temp_meas_c: temp_meas,
+            ambient_c: self.ambient,
+            torque_ref_nm: torque + sigma * self.rng.normal(),
+            true_force_n: force,
+            true_mu: mu,
+            true_radius_m: r_e,
+            true_temp_c: self.temp,
+            true_bedding: bedding,
+            true_torque_nm: torque,
+            true_capacity_nm: capacity,
+            true_holding: holding,
+            fault_code,
+        }
+    }
+
+    /// Pass 1, channel by channel (the random stream is drawn in the same order whatever the
+    /// faults, except for `noise`): the reading in counts before rounding, with the channel's
+    /// own faults; whether it reads, whether it is frozen; the code of the last active fault.
+    fn read_channels(&mut self, t: f64, force: f64) -> ([f64; 4], [bool; 4], [bool; 4], u32) {
         let mut raw = [0.0; 4];
         let mut ok = [false; 4];
         let mut stuck_now = [false; 4];
@@ -345,9 +374,13 @@ impl Plant {
                 (*r, *o, *s) = (c, reading, frozen);
             }
         }
-        // Pass 2: copies read the other channel's pass-1 reading, as force, in their own
-        // calibration.
-        let own = raw;
+        (raw, ok, stuck_now, fault_code)
+    }
+
+    /// Pass 2: copies read the other channel's pass-1 reading, as force, in their own
+    /// calibration.
+    fn copy_channels(&self, t: f64, raw: &mut [f64; 4], fault_code: &mut u32) {
+        let own = *raw;
         for f in self.opts.faults.iter().filter(|f| f.active(t)) {
             if let FaultKind::Copy {
                 source,
@@ -360,11 +393,19 @@ impl Plant {
                 )
                 && let Some(r) = raw.get_mut(f.channel.wrapping_sub(1))
             {
-                fault_code = f.code();
+                *fault_code = f.code();
                 *r = (src - off_src) * g_src / gain + offset + offset_counts;
             }
         }
-        // Pass 3: rounding, the rails, frozen readings, valid bits.
+    }
+
+    /// Pass 3: rounding, the rails, frozen readings, valid bits.
+    fn quantise(
+        &mut self,
+        raw: &[f64; 4],
+        ok: &[bool; 4],
+        stuck_now: &[bool; 4],
+    ) -> ([Option<i64>; 4], [bool; 4]) {
         let mut counts = [None; 4];
         let mut valid = [false; 4];
         for (ch, &(_, _, lo, hi)) in self.sensors.iter().enumerate() {
@@ -392,29 +433,7 @@ impl Plant {
                 *v = reading_ok;
             }
         }
-        let temp_meas =
-            ((self.temp + self.opts.temp_noise_k * self.rng.normal()) * 10.0).round() / 10.0;
-        let sigma = self.opts.torque_noise_abs_nm + self.opts.torque_noise_ratio * torque.abs();
-        PlantSample {
-            t_s: t,
-            counts,
-            valid,
-            omega_in: sp.omega_in,
-            omega_out,
-            command: sp.command,
-            temp_meas_c: temp_meas,
-            ambient_c: self.ambient,
-            torque_ref_nm: torque + sigma * self.rng.normal(),
-            true_force_n: force,
-            true_mu: mu,
-            true_radius_m: r_e,
-            true_temp_c: self.temp,
-            true_bedding: bedding,
-            true_torque_nm: torque,
-            true_capacity_nm: capacity,
-            true_holding: holding,
-            fault_code,
-        }
+        (counts, valid)
     }
 }
 

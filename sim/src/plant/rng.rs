@@ -49,8 +49,8 @@ impl Rng {
             return s;
         }
         let (u1, u2) = (self.uniform(), self.uniform());
-        let r = (-2.0 * u1.ln()).sqrt();
-        let (s, c) = (std::f64::consts::TAU * u2).sin_cos();
+        let r = libm::sqrt(-2.0 * libm::log(u1));
+        let (s, c) = libm::sincos(std::f64::consts::TAU * u2);
         self.spare = Some(r * s);
         r * c
     }

@@ -13,7 +13,7 @@
 //!
 //! ```
 //! use clampwise_sim::plot::{Envelope, TimeWindow, BUCKETS};
-//! use clampwise_sim::seam::{EstimateRow, Flags, State};
+//! use clampwise_convert::{EstimateRow, Flags, ContactState};
 //!
 //! let mut env = Envelope::new(BUCKETS, TimeWindow::default());
 //! for i in 0..100_000u32 {
@@ -22,7 +22,7 @@
 //!         line: u64::from(i), t_s: f64::from(i) * 1e-3, torque_nm: Some(torque),
 //!         capacity_nm: None, uncertainty_nm: 50.0, mu: 0.4, radius_m: 0.2,
 //!         clamp_force_n: 10_000.0, slip_speed_rad_s: 2.0, lining_temp_c: 80.0, bedding: 1.0,
-//!         wear_m: 0.0, correction: 1.0, state: State::Slipping, flags: Flags::empty(),
+//!         wear_m: 0.0, correction: 1.0, state: ContactState::Slipping, flags: Flags::empty(),
 //!         torque_ref_nm: None,
 //!     };
 //!     env.push(&row, None);
@@ -31,7 +31,7 @@
 //! assert!(cols.iter().any(|c| c.torque_nm.hi == 9_000.0));
 //! ```
 
-use crate::seam::{Channel, ChannelCal, EstimateRow, Flags, State, TraceSample};
+use clampwise_convert::{Channel, ChannelCal, ContactState, EstimateRow, Flags, TraceSample};
 
 /// Buckets kept at most (at least [`BUCKETS`] / 2 once the trace is longer): about twice the
 /// widest plot's data area in pixels, so every pixel column gets at least one bucket.
@@ -122,7 +122,7 @@ pub struct Bucket {
     pub channel_force_n: [Span; 4],
     /// Actuator command, in the trace's converted unit.
     pub command: Span,
-    /// States passed through, bit i for [`State::ALL`]\[i\].
+    /// States passed through, bit i for [`ContactState::ALL`]\[i\].
     pub states: u8,
     /// Every flag raised in the bucket.
     pub flags: Flags,
@@ -158,8 +158,8 @@ impl Bucket {
     }
 
     /// Whether the bucket passed through state `s`.
-    pub fn has_state(&self, s: State) -> bool {
-        State::ALL
+    pub fn has_state(&self, s: ContactState) -> bool {
+        ContactState::ALL
             .iter()
             .position(|&x| x == s)
             .is_some_and(|i| self.states & (1 << i) != 0)
@@ -257,7 +257,7 @@ impl Envelope {
         b.rows += 1;
         b.torque_nm.add_opt(row.torque_nm);
         b.reference_nm.add_opt(row.torque_ref_nm);
-        if row.state == State::Holding {
+        if row.state == ContactState::Holding {
             b.holding_capacity_nm.add_opt(row.capacity_nm);
         }
         if let (Some(t), Some(r)) = (row.torque_nm, row.torque_ref_nm) {
@@ -268,7 +268,7 @@ impl Envelope {
         b.mu.add(row.mu);
         b.clamp_force_n.add(row.clamp_force_n);
         b.slip_rad_s.add(row.slip_speed_rad_s);
-        if let Some(i) = State::ALL.iter().position(|&s| s == row.state) {
+        if let Some(i) = ContactState::ALL.iter().position(|&s| s == row.state) {
             b.states |= 1 << i;
         }
         b.flags |= row.flags;
@@ -398,7 +398,7 @@ mod tests {
             bedding: 0.0,
             wear_m: 0.0,
             correction: 1.0,
-            state: State::Slipping,
+            state: ContactState::Slipping,
             flags: Flags::empty(),
             torque_ref_nm: Some(torque),
         }

@@ -74,7 +74,7 @@ mod tests {
     #![allow(clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
     use crate::plot::envelope::TimeWindow;
-    use crate::seam::{EstimateRow, Flags, State};
+    use clampwise_convert::{ContactState, EstimateRow, Flags};
 
     /// An error of ±20 N·m under a ±5000 N·m band gets an axis of about ±20 N·m, not ±5000.
     #[test]
@@ -97,7 +97,7 @@ mod tests {
                     bedding: 0.0,
                     wear_m: 0.0,
                     correction: 1.0,
-                    state: State::Slipping,
+                    state: ContactState::Slipping,
                     flags: Flags::empty(),
                     torque_ref_nm: Some(1000.0),
                 },

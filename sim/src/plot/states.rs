@@ -9,13 +9,13 @@ use super::envelope::{Bucket, Envelope};
 use super::pixel_x_range;
 use super::{bare_time_chart, column_count, column_edges, err};
 use crate::error::SimError;
-use crate::seam::{Flags, State};
+use clampwise_convert::{ContactState, Flags};
 
 /// What a lane shows.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Lane {
     /// A state of the core.
-    State(State),
+    State(ContactState),
     /// A flag (one bit).
     Flag(&'static str, Flags),
 }
@@ -43,7 +43,7 @@ pub fn lanes(env: &Envelope) -> Vec<Lane> {
         .buckets()
         .iter()
         .fold(Flags::empty(), |a, b| a | b.flags);
-    let mut v: Vec<Lane> = State::ALL.iter().map(|&s| Lane::State(s)).collect();
+    let mut v: Vec<Lane> = ContactState::ALL.iter().map(|&s| Lane::State(s)).collect();
     for (name, bit) in Flags::all().iter_names() {
         if raised.intersects(bit) {
             v.push(Lane::Flag(name, bit));

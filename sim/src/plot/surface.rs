@@ -44,7 +44,10 @@ fn value_range(cells: &[CellReport], m: Map) -> (f64, f64) {
             .filter(|c| c.reached)
             .map(|c| c.fitted)
             .collect(),
-        Map::Coverage => cells.iter().map(|c| c.coverage.max(1.0).log10()).collect(),
+        Map::Coverage => cells
+            .iter()
+            .map(|c| libm::log10(c.coverage.max(1.0)))
+            .collect(),
     };
     let lo = vals.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = vals.iter().copied().fold(f64::NEG_INFINITY, f64::max);
@@ -119,7 +122,7 @@ where
         } else {
             match m {
                 Map::Mu => scale_colour(norm(c.fitted, range)),
-                Map::Coverage => scale_colour(norm(c.coverage.max(1.0).log10(), range)),
+                Map::Coverage => scale_colour(norm(libm::log10(c.coverage.max(1.0)), range)),
             }
         };
         ch.draw_series(std::iter::once(Rectangle::new(
@@ -159,7 +162,7 @@ where
         };
         let light_text = match m {
             Map::Mu => c.reached && norm(c.fitted, range) < 0.45,
-            Map::Coverage => norm(c.coverage.max(1.0).log10(), range) < 0.45,
+            Map::Coverage => norm(libm::log10(c.coverage.max(1.0)), range) < 0.45,
         };
         let colour = if light_text { WHITE } else { BLACK };
         for (k, text) in [first, second].into_iter().enumerate() {
@@ -194,7 +197,7 @@ where
         .map_err(err)?;
     let fmt = move |v: &f64| match m {
         Map::Mu => format!("{v:.3}"),
-        Map::Coverage => format!("{:.0}", 10f64.powf(*v)),
+        Map::Coverage => format!("{:.0}", libm::pow(10.0, *v)),
     };
     ch.configure_mesh()
         .disable_mesh()

@@ -147,7 +147,7 @@ mod tests {
     #![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
     use super::*;
     use crate::plot::envelope::{BUCKETS, TimeWindow};
-    use crate::seam::{Channel, EstimateRow, Flags, State, TraceSample};
+    use clampwise_convert::{Channel, ContactState, EstimateRow, Flags, TraceSample};
 
     fn env(window: TimeWindow) -> Envelope {
         let mut e = Envelope::new(BUCKETS, window);
@@ -169,9 +169,9 @@ mod tests {
                 wear_m: 0.0,
                 correction: 1.0,
                 state: if holding {
-                    State::Holding
+                    ContactState::Holding
                 } else {
-                    State::Slipping
+                    ContactState::Slipping
                 },
                 flags: if (4000..4005).contains(&i) {
                     Flags::all().iter().next().unwrap()
@@ -231,7 +231,7 @@ mod tests {
             bedding: 0.0,
             wear_m: 0.0,
             correction: 1.0,
-            state: State::Unavailable,
+            state: ContactState::Unavailable,
             flags: Flags::empty(),
             torque_ref_nm: None,
         };

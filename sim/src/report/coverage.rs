@@ -1,6 +1,6 @@
 //! The coverage map written by `fit --coverage-csv`, read back for a report.
 
-use crate::csvin::CsvIn;
+use crate::csv_input::CsvIn;
 use crate::error::SimError;
 use crate::fit::CellReport;
 

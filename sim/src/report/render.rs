@@ -186,6 +186,52 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
         escape(CAUTION)
     );
 
+    device_section(&mut o, d);
+
+    inputs_section(&mut o, d);
+
+    o.push_str("<section id=\"comparison\"><h2>Comparison with the reference torque</h2>\n");
+    for s in &d.estimates {
+        comparison(&mut o, s);
+    }
+    o.push_str("</section>\n");
+
+    o.push_str("<section id=\"holding-gate\"><h2>Holding gate</h2>\n<p>While holding, no torque is estimated: the load sets it, within ±capacity. The gate counts the holding rows whose reference torque lies outside ±capacity; the margin is capacity − |reference| (negative: outside).</p>\n");
+    let rows: Vec<Vec<String>> = d.estimates.iter().map(holding_gate).collect();
+    o.push_str(&table(
+        "holding",
+        &[
+            "file",
+            "holding rows with a reference",
+            "outside ±capacity",
+            "worst margin [N·m]",
+            "verdict",
+        ],
+        &rows,
+    ));
+    o.push_str("</section>\n");
+
+    o.push_str("<section id=\"flags\"><h2>Flag timelines</h2>\n<p>When each flag of the estimator was raised (intervals of consecutive rows, from the first raised row to the first clear one).</p>\n");
+    for s in &d.estimates {
+        flags(&mut o, s);
+    }
+    o.push_str("</section>\n");
+
+    plots_section(&mut o, d)?;
+
+    coverage_section(&mut o, d)?;
+
+    let _ = writeln!(
+        o,
+        "<footer><p>{} — {}</p></footer>\n</body>\n</html>",
+        escape(&d.tool),
+        escape(CAUTION)
+    );
+    Ok(o)
+}
+
+/// The device, the config and its checksums, the tool and the time window.
+fn device_section(o: &mut String, d: &ReportData) {
     o.push_str("<section id=\"device\"><h2>Device and tool</h2>\n");
     let window = match (d.window.from_s, d.window.to_s) {
         (None, None) => "whole files".to_string(),
@@ -219,7 +265,10 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
         ],
     ));
     o.push_str("</section>\n");
+}
 
+/// Every input file: size, rows, time span and SHA-256.
+fn inputs_section(o: &mut String, d: &ReportData) {
     o.push_str("<section id=\"provenance\"><h2>Inputs</h2>\n");
     let mut rows: Vec<Vec<String>> = d
         .estimates
@@ -262,34 +311,10 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
         &rows,
     ));
     o.push_str("</section>\n");
+}
 
-    o.push_str("<section id=\"comparison\"><h2>Comparison with the reference torque</h2>\n");
-    for s in &d.estimates {
-        comparison(&mut o, s);
-    }
-    o.push_str("</section>\n");
-
-    o.push_str("<section id=\"holding-gate\"><h2>Holding gate</h2>\n<p>While holding, no torque is estimated: the load sets it, within ±capacity. The gate counts the holding rows whose reference torque lies outside ±capacity; the margin is capacity − |reference| (negative: outside).</p>\n");
-    let rows: Vec<Vec<String>> = d.estimates.iter().map(holding_gate).collect();
-    o.push_str(&table(
-        "holding",
-        &[
-            "file",
-            "holding rows with a reference",
-            "outside ±capacity",
-            "worst margin [N·m]",
-            "verdict",
-        ],
-        &rows,
-    ));
-    o.push_str("</section>\n");
-
-    o.push_str("<section id=\"flags\"><h2>Flag timelines</h2>\n<p>When each flag of the estimator was raised (intervals of consecutive rows, from the first raised row to the first clear one).</p>\n");
-    for s in &d.estimates {
-        flags(&mut o, s);
-    }
-    o.push_str("</section>\n");
-
+/// One time-series plot per estimate file.
+fn plots_section(o: &mut String, d: &ReportData) -> Result<(), SimError> {
     o.push_str("<section id=\"plots\"><h2>Plots</h2>\n<p>Each pixel column shows the smallest and largest value of the rows it covers, so short events stay visible.</p>\n");
     for s in &d.estimates {
         let svg = time_series_svg(
@@ -304,7 +329,11 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
         );
     }
     o.push_str("</section>\n");
+    Ok(())
+}
 
+/// The fit's coverage: the entries reached, and the coverage map.
+fn coverage_section(o: &mut String, d: &ReportData) -> Result<(), SimError> {
     o.push_str("<section id=\"coverage\"><h2>Fit coverage</h2>\n");
     match &d.coverage {
         None => o.push_str("<p>No coverage map given (<code>--coverage-csv</code>, written by <code>clampwise fit</code>).</p>\n"),
@@ -332,14 +361,7 @@ pub fn document(d: &ReportData) -> Result<String, SimError> {
         }
     }
     o.push_str("</section>\n");
-
-    let _ = writeln!(
-        o,
-        "<footer><p>{} — {}</p></footer>\n</body>\n</html>",
-        escape(&d.tool),
-        escape(CAUTION)
-    );
-    Ok(o)
+    Ok(())
 }
 
 #[cfg(test)]
@@ -351,7 +373,7 @@ mod tests {
     use crate::plot::{BUCKETS, Envelope, TimeWindow};
     use crate::report::timeline::Timeline;
     use crate::report::{CoverageSection, Provenance};
-    use crate::seam::{EstimateRow, Flags, State};
+    use clampwise_convert::{ContactState, EstimateRow, Flags};
 
     const HOSTILE: &str = "<script>alert('x')</script>&\"<img src=x onerror=y>";
 
@@ -373,9 +395,9 @@ mod tests {
             wear_m: 0.0,
             correction: 1.0,
             state: if holding {
-                State::Holding
+                ContactState::Holding
             } else {
-                State::Slipping
+                ContactState::Slipping
             },
             flags: if (700..710).contains(&i) {
                 Flags::all().iter().next().unwrap()

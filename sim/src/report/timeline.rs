@@ -1,7 +1,7 @@
 //! Flag timelines: for every flag of the core, when it was raised (intervals of consecutive
 //! rows), in bounded memory.
 
-use crate::seam::{EstimateRow, Flags};
+use clampwise_convert::{EstimateRow, Flags};
 
 /// Intervals listed per flag; later ones are counted, not listed.
 pub const LISTED: usize = 20;
@@ -95,7 +95,7 @@ fn close(h: &mut FlagHistory, start: f64, end: f64) {
 mod tests {
     #![allow(clippy::indexing_slicing, clippy::float_cmp)]
     use super::*;
-    use crate::seam::State;
+    use clampwise_convert::ContactState;
 
     fn row(t: f64, flags: Flags) -> EstimateRow {
         EstimateRow {
@@ -112,7 +112,7 @@ mod tests {
             bedding: 0.0,
             wear_m: 0.0,
             correction: 1.0,
-            state: State::Slipping,
+            state: ContactState::Slipping,
             flags,
             torque_ref_nm: None,
         }

@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use clampwise_sim::seam::flag_names;
+use clampwise_convert::flag_names;
 
 use super::catalogue::{CASES, FAULT_START_S};
 use super::matrix::Matrix;

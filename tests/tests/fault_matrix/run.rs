@@ -1,13 +1,13 @@
-//! One run: the simulator's f64 plant and the core's estimator (through the simulator's seam)
+//! One run: the simulator's f64 plant and the core's estimator (through `clampwise-convert`)
 //! stepped in lockstep, every estimate row checked against the plant's truth.
 
+use clampwise_convert::{
+    Channel, ContactState, CoreEstimator, EstimateRow, SampleEstimator, TraceSample,
+};
 use clampwise_core::flags::Flags;
 use clampwise_sim::plant::faults::Fault;
 use clampwise_sim::plant::scenario::Scenario;
 use clampwise_sim::plant::{Plant, PlantOptions, PlantSample};
-use clampwise_sim::seam::{
-    Channel, CoreEstimator, EstimateRow, SampleEstimator, State, TraceSample,
-};
 
 use super::devices::Device;
 
@@ -140,12 +140,12 @@ pub fn verdict(
     not_holding: NotHolding,
     untrusted: Flags,
 ) -> Verdict {
-    if row.state == State::Unavailable || row.flags.intersects(untrusted) {
+    if row.state == ContactState::Unavailable || row.flags.intersects(untrusted) {
         return Verdict::Exempt;
     }
     let u = row.uncertainty_nm;
     match row.state {
-        State::Holding => match row.capacity_nm {
+        ContactState::Holding => match row.capacity_nm {
             None => Verdict::Withheld,
             Some(c) => {
                 let excess = (c - truth.true_capacity_nm).abs() - u;
@@ -200,7 +200,7 @@ pub struct Rows {
     pub t_s: Vec<f64>,
     pub verdicts: Vec<Verdict>,
     pub flags: Vec<Flags>,
-    pub states: Vec<State>,
+    pub states: Vec<ContactState>,
 }
 
 /// Step the plant and the estimator together over the scenario.
@@ -292,7 +292,7 @@ pub fn tally(rows: &Rows, baseline: &[Verdict], fault_start_s: f64) -> RunTally 
         if ts >= fault_start_s {
             t.flags_seen |= f.difference(routine);
             t.after_start += 1;
-            if f.intersects(detection) || st == State::Unavailable {
+            if f.intersects(detection) || st == ContactState::Unavailable {
                 t.flagged += 1;
                 t.latency_s.get_or_insert(ts - fault_start_s);
             }

@@ -31,10 +31,10 @@ impl QuantileSketch {
     /// An empty sketch.
     pub fn new() -> Self {
         let gamma = (1.0 + RELATIVE_ACCURACY) / (1.0 - RELATIVE_ACCURACY);
-        let ln_gamma = gamma.ln();
+        let ln_gamma = libm::log(gamma);
         // A few thousand buckets: small, positive, exact.
         #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
-        let buckets = ((X_MAX / X0).ln() / ln_gamma).ceil() as usize + 2;
+        let buckets = (libm::log(X_MAX / X0) / ln_gamma).ceil() as usize + 2;
         Self {
             counts: vec![0; buckets],
             ln_gamma,
@@ -51,7 +51,7 @@ impl QuantileSketch {
         } else {
             // Non-negative and bounded by the clamp below.
             #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
-            let k = ((x / X0).ln() / self.ln_gamma).ceil().max(0.0) as usize;
+            let k = (libm::log(x / X0) / self.ln_gamma).ceil().max(0.0) as usize;
             k.min(self.counts.len() - 1)
         };
         if let Some(c) = self.counts.get_mut(k) {
@@ -86,7 +86,9 @@ impl QuantileSketch {
                     return Some(X0);
                 }
                 let k = i32::try_from(k).unwrap_or(i32::MAX);
-                return Some(2.0 * X0 * self.gamma.powi(k) / (self.gamma + 1.0));
+                return Some(
+                    2.0 * X0 * crate::portable_math::powi(self.gamma, k) / (self.gamma + 1.0),
+                );
             }
         }
         None
