@@ -351,9 +351,17 @@ fn invented_crane_brake() {
     assert!(locking > 1.0, "{locking}");
     let s = brake.sensitivity(0.4).unwrap();
     assert!(s > 1.0 && s < 1.2, "{s}");
-    // The spring force for a 2 kN·m holding torque lies between the linear bound and 2× it.
+    // The spring force for a 2 kN·m holding torque is below what two shoes without the
+    // friction moment would need [calc: g = c·r·K·μ / (a·I_N) each].
     let spring_n = 2_000.0 / brake.torque_per_force(0.4).unwrap();
-    assert!(spring_n.is_finite() && spring_n > 0.0);
+    let lead = brake.first();
+    let (t1, t2) = (geometry.arc_start_rad, geometry.arc_end_rad);
+    let linear = geometry.actuation_arm_m * geometry.drum_radius_m * (t1.cos() - t2.cos()) * 0.4
+        / (geometry.pin_distance_m * lead.normal_moment_integral());
+    assert!(
+        spring_n < 2_000.0 / (2.0 * linear) && spring_n > 0.0,
+        "{spring_n}"
+    );
     // The same integrals as an internal shoe: mounting only decides where the pin may lie.
     let flipped = ShoeGeometry {
         pin_distance_m: 0.150,
