@@ -444,3 +444,30 @@ fn bad_geometry_names_the_parameter() {
     let e = shoe.torque_per_force(-0.1).unwrap_err().to_string();
     assert!(e.contains("friction_coefficient"), "{e}");
 }
+
+/// [pub: Norton, Machine Design – An Integrated Approach, 4th ed., Example 17-2 "Design of a
+/// short-shoe drum brake", values as printed on the example sheet] a = 6 in, b = 6 in,
+/// r = 5 in, μ = 0.35: a self-energising ratio N/F = a/(b − μc) = 2 needs c = 8.571 in;
+/// self-locking begins at c = b/μ = 17.143 in. Inches are
+/// converted to metres; the ratios do not depend on the unit.
+#[test]
+fn block_shoe_matches_the_published_short_shoe_example() {
+    let inch = 0.0254;
+    let block = |c_in: f64| {
+        BlockShoe::new(
+            BlockGeometry {
+                drum_radius_m: 5.0 * inch,
+                actuation_arm_m: 6.0 * inch,
+                normal_arm_m: 6.0 * inch,
+                friction_offset_m: c_in * inch,
+            },
+            ShoeAction::Leading,
+        )
+        .unwrap()
+    };
+    // Printed to 4 significant figures: 5e-4 relative.
+    assert!(rel(block(8.571).normal_force_per_force(0.35).unwrap(), 2.0) < 5e-4);
+    let locking = block(17.143).locking_coefficient().unwrap();
+    assert!(rel(locking, 0.35) < 5e-4, "{locking}");
+    assert!(block(17.143).torque_per_force(0.35).is_err());
+}
