@@ -2,8 +2,8 @@
 //! one point.
 //!
 //! Moments about the lever pivot: F·a = N·b ∓ μ·N·c, so N = F·a / (b ∓ μ·c) and
-//! T = μ·N·r [mem: block brakes in machine-design texts, e.g. Shigley ch. 16 short-shoe
-//! analysis]. The minus sign is the leading case (friction moment about the pivot adds to the
+//! T = μ·N·r [pub: Norton, Machine Design – An Integrated Approach, short-shoe drum brakes,
+//! N/F = a/(b − μc)]. The minus sign is the leading case (friction moment about the pivot adds to the
 //! actuating moment); it locks at μ = b/c.
 
 use super::error::{self, BrakeError, BrakeParameter};
