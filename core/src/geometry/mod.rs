@@ -48,6 +48,7 @@
 //! ```
 
 pub mod annulus;
+pub mod brake;
 pub mod button;
 pub mod cone;
 pub mod contact;
