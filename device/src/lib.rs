@@ -38,8 +38,12 @@ pub mod column_units;
 pub mod config;
 pub mod emit;
 pub mod emit_device;
+pub mod locate;
+pub mod polygon;
 #[cfg(any(test, feature = "schema"))]
 pub mod reference;
+pub mod schema;
+pub mod validate;
 
 /// The documented example config of the built-in demo device (an invented hoist brake).
 pub const DEMO_CONFIG: &str = include_str!("../../sim/configs/demo-hoist-brake.toml");

@@ -11,7 +11,7 @@ use crate::build_core::CoreDevice;
 use crate::cli::{CheckArgs, CompareArgs, FitArgs, PlotArgs, ReplayArgs, SynthArgs, TablesArgs};
 use crate::column_units::Quantity;
 use crate::compare::{self, GateSpec, Thresholds};
-use crate::config::{CANONICAL, ConfigErrors, ConfigIssue, LoadedConfig};
+use crate::config::{ConfigErrors, ConfigIssue, LoadedConfig};
 use crate::emit;
 use crate::error::SimError;
 use crate::estimate::EstimateReader;
@@ -23,6 +23,7 @@ use crate::plant::scenario::{SCENARIOS, Scenario};
 use crate::plot;
 use crate::plot::{BUCKETS, Envelope, TimeWindow};
 use crate::replay::{self, CAUTION, ReplayOptions};
+use crate::schema::CANONICAL;
 use crate::seam::ChannelCal;
 use crate::synth;
 

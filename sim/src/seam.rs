@@ -41,7 +41,7 @@ use clampwise_device::build_core::{
 use fixed::traits::Fixed;
 use fixed::types::I16F16;
 
-use crate::config::{DeviceConfig, DeviceKind};
+use crate::schema::{DeviceKind, DeviceSpec};
 
 pub use clampwise_core::flags::Flags;
 
@@ -201,7 +201,7 @@ pub struct ChannelCal {
 
 impl ChannelCal {
     /// The calibrations of a config's `[[sensor]]` tables, in order.
-    pub fn of(c: &DeviceConfig) -> Vec<Self> {
+    pub fn of(c: &DeviceSpec) -> Vec<Self> {
         c.sensors
             .iter()
             .map(|s| Self {
@@ -416,7 +416,7 @@ impl<'d> CoreEstimator<'d> {
     /// # Errors
     /// The core's [`RecordError`] if the starting state record is refused (it is written here,
     /// so this would be a bug).
-    pub fn new(config: &DeviceConfig, core: &'d CoreDevice) -> Result<Self, RecordError> {
+    pub fn new(config: &DeviceSpec, core: &'d CoreDevice) -> Result<Self, RecordError> {
         let stepper = match &core.device {
             ChannelDevice::One(d) => Stepper::One(start(d, core)?),
             ChannelDevice::Two(d) => Stepper::Two(start(d, core)?),
@@ -448,7 +448,7 @@ impl SampleEstimator for CoreEstimator<'_> {
 /// # Errors
 /// As [`CoreEstimator::new`].
 pub fn new_estimator<'d>(
-    config: &DeviceConfig,
+    config: &DeviceSpec,
     core: &'d CoreDevice,
 ) -> Result<Box<dyn SampleEstimator + Send + 'd>, RecordError> {
     Ok(Box::new(CoreEstimator::new(config, core)?))
@@ -468,7 +468,7 @@ mod tests {
     use approx::assert_relative_eq;
     use proptest::prelude::*;
 
-    fn demo() -> (DeviceConfig, CoreDevice) {
+    fn demo() -> (DeviceSpec, CoreDevice) {
         let c = LoadedConfig::from_str(crate::demo::DEMO_CONFIG, "d")
             .unwrap()
             .config;

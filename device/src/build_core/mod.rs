@@ -1,4 +1,4 @@
-//! Config → core: the one place where a loaded [`DeviceConfig`]
+//! Config → core: the one place where a loaded [`DeviceSpec`]
 //! becomes the core's fixed-point tables ([`CoreTables`]) and the core's whole validated
 //! `clampwise_core::config::DeviceConfig` ([`CoreDevice`]).
 //!
@@ -58,7 +58,7 @@ use clampwise_core::thermal::ThermalState;
 use clampwise_core::units::{Celsius, Joules, Ratio, Seconds};
 use clampwise_core::wear::WearState;
 
-use crate::config::DeviceConfig;
+use crate::schema::DeviceSpec;
 
 /// Capacity of each μ table axis (temperature and slip-speed breakpoints).
 pub const MU_POINTS: usize = 8;
@@ -188,7 +188,7 @@ pub struct CoreDevice {
 }
 
 fn build_device<const C: usize>(
-    c: &DeviceConfig,
+    c: &DeviceSpec,
     tables: &CoreTables,
 ) -> Result<Device<C>, BuildError> {
     let period = c.device.sample_period_s;
@@ -216,7 +216,7 @@ impl CoreDevice {
     ///
     /// # Errors
     /// [`BuildError`] naming the config key the core rejected.
-    pub fn build(c: &DeviceConfig) -> Result<Self, BuildError> {
+    pub fn build(c: &DeviceSpec) -> Result<Self, BuildError> {
         let tables = CoreTables::build(c)?;
         let device = match c.sensors.len() {
             1 => ChannelDevice::One(build_device::<1>(c, &tables)?),
@@ -254,7 +254,7 @@ mod tests {
     use clampwise_core::estimator::{Estimator, Inputs};
     use clampwise_core::units::RadPerSec;
 
-    fn demo() -> DeviceConfig {
+    fn demo() -> DeviceSpec {
         LoadedConfig::from_str(crate::DEMO_CONFIG, "demo.toml")
             .unwrap()
             .config
