@@ -404,4 +404,59 @@ mod tests {
             "the demo states its sub-rate"
         );
     }
+
+    /// The one issue of the demo with `from` replaced by `to`.
+    fn only_issue(from: &str, to: &str) -> ConfigIssue {
+        let src = DEMO.replacen(from, to, 1);
+        assert_ne!(src, DEMO, "replacement of {from:?} did not apply");
+        let e = err(&src);
+        assert_eq!(e.issues.len(), 1, "{e}");
+        let line = src.lines().position(|l| l.contains(to)).unwrap() + 1;
+        assert_eq!(e.issues[0].line, Some(line), "{e}");
+        e.issues[0].clone()
+    }
+
+    #[test]
+    fn rules_the_core_checks_are_reported_once_at_their_key() {
+        // Flag thresholds: the core's thermal model orders them.
+        let i = only_issue("over_temperature_c = 450.0", "over_temperature_c = 300.0");
+        assert_eq!(i.key.as_deref(), Some("thermal.over_temperature_c"));
+        assert!(i.message.contains("above fade_warning"), "{i:?}");
+        // Measured limits: named at the upper one when it is not above the lower.
+        let i = only_issue("max_c = 700.0", "max_c = -50.0");
+        assert_eq!(i.key.as_deref(), Some("thermal.measured.max_c"));
+        // Radii: the core's geometry names the inner one.
+        let i = only_issue("inner_radius_m = 0.52", "inner_radius_m = 0.70");
+        assert_eq!(i.key.as_deref(), Some("contact.inner_radius_m"));
+        assert!(i.message.contains("must be below"), "{i:?}");
+        // The adaptation threshold below the touch force: the core's device assembly.
+        let i = only_issue("min_clamp_force_n = 5000.0", "min_clamp_force_n = 1.0");
+        assert_eq!(i.key.as_deref(), Some("adaptation.min_clamp_force_n"));
+    }
+
+    #[test]
+    fn a_polygon_pad_over_the_axis_is_refused_by_the_core_geometry() {
+        let polygon = |vertices: &str| {
+            DEMO.replace("shape = \"sector\"", "shape = \"polygon\"")
+                .replace("inner_radius_m = 0.52\n", "")
+                .replace("outer_radius_m = 0.68\n", "")
+                .replace(
+                    "sector_angle_deg = 30.0",
+                    &format!("vertices_m = {vertices}"),
+                )
+        };
+        // A square pad at 0.5 … 0.6 m is accepted.
+        LoadedConfig::from_str(
+            &polygon("[[0.5, -0.05], [0.6, -0.05], [0.6, 0.05], [0.5, 0.05]]"),
+            "t.toml",
+        )
+        .unwrap();
+        let e = err(&polygon(
+            "[[-0.5, -0.5], [0.5, -0.5], [0.5, 0.5], [-0.5, 0.5]]",
+        ));
+        assert_eq!(e.issues.len(), 1, "{e}");
+        let key = e.issues[0].key.as_deref().unwrap();
+        assert!(key.starts_with("contact.vertices_m"), "{e}");
+        assert!(e.issues[0].line.is_some(), "{e}");
+    }
 }

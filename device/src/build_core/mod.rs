@@ -133,6 +133,17 @@ impl ChannelDevice {
             Self::Four(_) => 4,
         }
     }
+
+    /// The core's `DeviceConfig::checksum`: the one checksum of a device, which a firmware
+    /// compares with the generated `DEVICE_CHECKSUM`.
+    pub fn checksum(&self) -> u32 {
+        match self {
+            Self::One(d) => d.checksum(),
+            Self::Two(d) => d.checksum(),
+            Self::Three(d) => d.checksum(),
+            Self::Four(d) => d.checksum(),
+        }
+    }
 }
 
 /// Where a trace starts: the config's `thermal.initial_temperature_c` and

@@ -39,7 +39,7 @@ use crate::schema::{CombinationSpec, DeviceSpec};
 /// # Errors
 /// [`BuildError`] on `device.sample_period_s` when 1/period is not a positive `u32`.
 pub fn sample_rate_hz(c: &DeviceSpec) -> Result<u32, BuildError> {
-    let rate = (1.0 / c.device.sample_period_s).round();
+    let rate = libm::round(1.0 / c.device.sample_period_s);
     if rate.is_finite() && rate >= 1.0 && rate <= f64::from(u32::MAX) {
         // In range by the test above, and a whole number after `round`.
         #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
