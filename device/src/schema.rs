@@ -590,7 +590,7 @@ pub struct ColumnsSpec {
 pub struct ColumnSpec {
     /// Header name in the CSV file.
     pub column: String,
-    /// Unit of the values (see [`column_units`]).
+    /// Unit of the values (see [`crate::column_units`]).
     pub unit: String,
     /// Piston area, m², for a pressure column that stands for clamp force.
     pub piston_area_m2: Option<f64>,
