@@ -317,7 +317,7 @@ mod tests {
         // A filter cut-off so low that the core's filter coefficient underflows.
         let i = core_issue("filter_cutoff_hz = 50.0", "filter_cutoff_hz = 0.0000001");
         assert_eq!(i.key.as_deref(), Some("sensing.filter_cutoff_hz"));
-        // The fallback must be less certain than a healthy channel: the schema checks it.
+        // The fallback must be less certain than a healthy channel: the core's sensor checks it.
         let i = core_issue("uncertainty_n = 3000.0", "uncertainty_n = 100.0");
         assert_eq!(i.key.as_deref(), Some("actuator.uncertainty_n"));
     }

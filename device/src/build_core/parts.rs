@@ -34,7 +34,7 @@ use super::tables::fixed_of;
 use super::{BuildError, MuTable};
 use crate::schema::{CombinationSpec, DeviceSpec};
 
-/// Control-loop rate in whole hertz (the config checks that 1/period is one).
+/// Control-loop rate in whole hertz, 1/period rounded (the core checks that rate · period is 1 s).
 ///
 /// # Errors
 /// [`BuildError`] on `device.sample_period_s` when 1/period is not a positive `u32`.
