@@ -1,4 +1,4 @@
-//! Config → core: the one place where a loaded [`DeviceConfig`]
+//! Config → core: the one place where a loaded [`DeviceSpec`]
 //! becomes the core's fixed-point tables ([`CoreTables`]) and the core's whole validated
 //! `clampwise_core::config::DeviceConfig` ([`CoreDevice`]).
 //!
@@ -58,7 +58,7 @@ use clampwise_core::thermal::ThermalState;
 use clampwise_core::units::{Celsius, Joules, Ratio, Seconds};
 use clampwise_core::wear::WearState;
 
-use crate::config::DeviceConfig;
+use crate::schema::DeviceSpec;
 
 /// Capacity of each μ table axis (temperature and slip-speed breakpoints).
 pub const MU_POINTS: usize = 8;
@@ -133,6 +133,17 @@ impl ChannelDevice {
             Self::Four(_) => 4,
         }
     }
+
+    /// The core's `DeviceConfig::checksum`: the one checksum of a device, which a firmware
+    /// compares with the generated `DEVICE_CHECKSUM`.
+    pub fn checksum(&self) -> u32 {
+        match self {
+            Self::One(d) => d.checksum(),
+            Self::Two(d) => d.checksum(),
+            Self::Three(d) => d.checksum(),
+            Self::Four(d) => d.checksum(),
+        }
+    }
 }
 
 /// Where a trace starts: the config's `thermal.initial_temperature_c` and
@@ -188,7 +199,7 @@ pub struct CoreDevice {
 }
 
 fn build_device<const C: usize>(
-    c: &DeviceConfig,
+    c: &DeviceSpec,
     tables: &CoreTables,
 ) -> Result<Device<C>, BuildError> {
     let period = c.device.sample_period_s;
@@ -216,7 +227,7 @@ impl CoreDevice {
     ///
     /// # Errors
     /// [`BuildError`] naming the config key the core rejected.
-    pub fn build(c: &DeviceConfig) -> Result<Self, BuildError> {
+    pub fn build(c: &DeviceSpec) -> Result<Self, BuildError> {
         let tables = CoreTables::build(c)?;
         let device = match c.sensors.len() {
             1 => ChannelDevice::One(build_device::<1>(c, &tables)?),
@@ -254,7 +265,7 @@ mod tests {
     use clampwise_core::estimator::{Estimator, Inputs};
     use clampwise_core::units::RadPerSec;
 
-    fn demo() -> DeviceConfig {
+    fn demo() -> DeviceSpec {
         LoadedConfig::from_str(crate::DEMO_CONFIG, "demo.toml")
             .unwrap()
             .config
@@ -306,7 +317,7 @@ mod tests {
         // A filter cut-off so low that the core's filter coefficient underflows.
         let i = core_issue("filter_cutoff_hz = 50.0", "filter_cutoff_hz = 0.0000001");
         assert_eq!(i.key.as_deref(), Some("sensing.filter_cutoff_hz"));
-        // The fallback must be less certain than a healthy channel: the schema checks it.
+        // The fallback must be less certain than a healthy channel: the core's sensor checks it.
         let i = core_issue("uncertainty_n = 3000.0", "uncertainty_n = 100.0");
         assert_eq!(i.key.as_deref(), Some("actuator.uncertainty_n"));
     }
