@@ -5,7 +5,7 @@
 //!    `OUT_DIR` on the link search path. Host builds get no linker arguments at all.
 //! 2. `OUT_DIR/device.rs`: the simulator's device TOML, read and validated by
 //!    `clampwise-device` exactly as the simulator reads it, converted to the core's
-//!    `DeviceConfig` by the same code, and emitted by `clampwise_device::emit_device` as `const`
+//!    `DeviceConfig` by the same code, and emitted by `clampwise_device::emit` as `const`
 //!    Rust source (raw bits; the core's `const` constructors check it at compile time) with the
 //!    checksum the firmware verifies at start-up.
 //! 3. `OUT_DIR/trace.rs`: the recorded trace the HAL stub replays, from a CSV in the
@@ -16,11 +16,10 @@
 //! `CLAMPWISE_FW_TRACE` (default `trace/demo.csv`), relative to this crate or absolute.
 //! Floats are used here, at build time, and nowhere in the firmware's per-sample path.
 
-use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::{env, fs};
 
-use clampwise_device::build_core::{ChannelDevice, CoreDevice, Device, InitialState};
+use clampwise_device::build_core::CoreDevice;
 use clampwise_device::config::LoadedConfig;
 
 #[path = "build/trace.rs"]
@@ -103,50 +102,13 @@ fn link_setup(manifest_dir: &Path, out_dir: &Path, target: &str) -> Result<(), S
     Ok(())
 }
 
-/// The emitted device configuration and its number of force channels. The channel count is a
-/// type parameter of the core's configuration; `clampwise-device` fixes it when it reads the
-/// config, and it is matched here once.
+/// The emitted device source (`clampwise_device::emit::device_source`: the configuration and
+/// the state record the replay starts from) and its number of force channels. The channel
+/// count is a type parameter of the core's configuration; `clampwise-device` fixes it when it
+/// reads the config.
 fn device_source(loaded: &LoadedConfig, origin: &str) -> Result<(String, usize), String> {
     let core = CoreDevice::build(&loaded.config).map_err(|e| format!("{}: {e}", loaded.file))?;
-    let source = match &core.device {
-        ChannelDevice::One(d) => emit(d, &core.initial, origin),
-        ChannelDevice::Two(d) => emit(d, &core.initial, origin),
-        ChannelDevice::Three(d) => emit(d, &core.initial, origin),
-        ChannelDevice::Four(d) => emit(d, &core.initial, origin),
-    }
-    .map_err(|e| format!("{}: {e}", loaded.file))?;
+    let source = clampwise_device::emit::device_source(&core, origin)
+        .map_err(|e| format!("{}: {e}", loaded.file))?;
     Ok((source, core.device.channels()))
-}
-
-/// The device configuration (`clampwise_device::emit_device`) and the state record the replay
-/// starts from when the config sets an initial temperature or lining energy (the simulator's
-/// replay starts there too).
-fn emit<const C: usize>(
-    device: &Device<C>,
-    initial: &InitialState,
-    origin: &str,
-) -> Result<String, String> {
-    let mut source = clampwise_device::emit_device::device_config_source(device, origin)
-        .map_err(|e| e.to_string())?;
-    let record = initial.record(device);
-    if let Some(r) = &record {
-        // Checked here, so the firmware's start-up restore cannot meet a record it rejects
-        // unless flash changed.
-        clampwise_core::estimator::Estimator::restore(device, r)
-            .map_err(|e| format!("initial state record rejected: {e}"))?;
-    }
-    let _ = writeln!(
-        source,
-        "/// Saved state the replay starts from (`thermal.initial_temperature_c`,\n\
-         /// `wear.initial_energy_j`); `None`: a new lining at ambient temperature.\n\
-         pub const DEVICE_INITIAL_RECORD: Option<[u8; ::clampwise_core::state_record::RECORD_LEN]> = {};",
-        record.map_or_else(
-            || "None".to_string(),
-            |r| format!(
-                "Some([{}])",
-                r.iter().map(u8::to_string).collect::<Vec<_>>().join(", ")
-            )
-        )
-    );
-    Ok(source)
 }

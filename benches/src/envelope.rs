@@ -42,7 +42,6 @@ use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Toleranc
 use clampwise_core::estimator::{Combination, ContactState, Estimator, Inputs};
 use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
 use clampwise_core::geometry::{Contact, build_radius_table};
-use clampwise_core::state_record::StateRecord;
 use clampwise_core::sensor::{
     AdcRails, ChannelCalibration, Debounce, DebounceSet, DiagnosticLimits, LowPass,
     NewtonsPerCount, NewtonsPerSecond, SensorConfig, VotingLimits,

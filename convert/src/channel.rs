@@ -1,7 +1,7 @@
 //! Force channels as the core takes them: raw ADC counts. A calibrated (N) column is turned
 //! back into the counts the ADC would have given.
 
-use clampwise_device::config::DeviceConfig;
+use clampwise_device::schema::DeviceSpec;
 
 use crate::sample::{Channel, TraceSample};
 
@@ -17,7 +17,7 @@ pub struct ChannelCal {
 
 impl ChannelCal {
     /// The calibrations of a config's `[[sensor]]` tables, in order.
-    pub fn of(c: &DeviceConfig) -> Vec<Self> {
+    pub fn of(c: &DeviceSpec) -> Vec<Self> {
         c.sensors
             .iter()
             .map(|s| Self {

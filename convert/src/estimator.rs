@@ -3,11 +3,9 @@
 //! converted in by [`core_inputs`] and out by [`estimate_row`].
 
 use clampwise_core::estimator::Estimator;
-use clampwise_core::record::RecordError;
-use clampwise_device::build_core::{
-    ChannelDevice, CoreDevice, Device, MU_POINTS, RADIUS_BEDDING_POINTS, RADIUS_FORCE_POINTS,
-};
-use clampwise_device::config::{DeviceConfig, DeviceKind};
+use clampwise_core::state_record::RecordError;
+use clampwise_device::build_core::{ChannelDevice, CoreDevice, Device, HostTables};
+use clampwise_device::schema::{DeviceKind, DeviceSpec};
 
 use crate::channel::ChannelCal;
 use crate::inputs::core_inputs;
@@ -20,8 +18,7 @@ pub trait SampleEstimator {
     fn step(&mut self, s: &TraceSample) -> EstimateRow;
 }
 
-type CoreStepper<'d, const C: usize> =
-    Estimator<'d, C, RADIUS_FORCE_POINTS, RADIUS_BEDDING_POINTS, MU_POINTS, MU_POINTS>;
+type CoreStepper<'d, const C: usize> = Estimator<'d, HostTables, C>;
 
 /// One of the four channel counts.
 #[derive(Clone, Debug)]
@@ -68,7 +65,7 @@ impl<'d> CoreEstimator<'d> {
     /// # Errors
     /// The core's [`RecordError`] if the starting state record is refused (it is written here,
     /// so this would be a bug).
-    pub fn new(config: &DeviceConfig, core: &'d CoreDevice) -> Result<Self, RecordError> {
+    pub fn new(config: &DeviceSpec, core: &'d CoreDevice) -> Result<Self, RecordError> {
         let stepper = match &core.device {
             ChannelDevice::One(d) => Stepper::One(start(d, core)?),
             ChannelDevice::Two(d) => Stepper::Two(start(d, core)?),
@@ -100,7 +97,7 @@ impl SampleEstimator for CoreEstimator<'_> {
 /// # Errors
 /// As [`CoreEstimator::new`].
 pub fn new_estimator<'d>(
-    config: &DeviceConfig,
+    config: &DeviceSpec,
     core: &'d CoreDevice,
 ) -> Result<Box<dyn SampleEstimator + Send + 'd>, RecordError> {
     Ok(Box::new(CoreEstimator::new(config, core)?))
@@ -116,7 +113,7 @@ mod tests {
     use clampwise_core::flags::Flags;
     use clampwise_device::config::LoadedConfig;
 
-    fn demo() -> (DeviceConfig, CoreDevice) {
+    fn demo() -> (DeviceSpec, CoreDevice) {
         let c = LoadedConfig::from_str(clampwise_device::DEMO_CONFIG, "d")
             .unwrap()
             .config;

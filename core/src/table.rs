@@ -658,9 +658,6 @@ mod tests {
         );
     }
 
-    /// How to choose an input for an axis (kind, raw value, small offset).
-    type Pick = (u8, u32, i8);
-
     /// A 2-D table whose rows are all equal skips its first axis: detected at construction
     /// for any size, and only then.
     #[test]

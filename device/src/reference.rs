@@ -1,7 +1,7 @@
 //! The config reference page (`device/CONFIG.md`), generated from the schema itself.
 //!
 //! ```text
-//! DeviceConfig (serde + schemars derive: field names, doc comments, defaults, bounds)
+//! DeviceSpec (serde + schemars derive: field names, doc comments, defaults, bounds)
 //!   └─ schemars::schema_for! ─► JSON Schema ─► markdown(): one table per TOML table
 //! ```
 //!
@@ -18,7 +18,7 @@
 
 use serde_json::{Map, Value};
 
-use crate::config::DeviceConfig;
+use crate::schema::DeviceSpec;
 
 /// Key-name suffixes and the unit each stands for, longest first (the first match wins).
 pub const UNIT_SUFFIXES: &[(&str, &str)] = &[
@@ -57,7 +57,7 @@ pub fn unit_of(key: &str) -> &'static str {
 
 /// The JSON Schema of a config file.
 pub fn schema() -> Value {
-    schemars::schema_for!(DeviceConfig).to_value()
+    schemars::schema_for!(DeviceSpec).to_value()
 }
 
 /// One TOML table of the reference: its heading, description and keys.
@@ -373,8 +373,8 @@ fn cell(s: &str) -> String {
 pub fn markdown() -> String {
     let mut o = String::new();
     o.push_str("# clampwise device config reference\n\n");
-    o.push_str("<!-- Generated from the schema in device/src/config.rs; do not edit by hand. Regenerate with\n     CLAMPWISE_BLESS=1 cargo test -p clampwise-device --release config_reference -->\n\n");
-    o.push_str("Every key of a device config file (TOML), generated from the schema itself: the key names, types, defaults and fixed bounds come from the types the loader reads (`clampwise_device::config::DeviceConfig`), the meanings from their doc comments. Unknown keys are rejected. Bounds that depend on other keys are given in the meaning column; `clampwise check CONFIG` reports every problem at its key, line and column.\n\n");
+    o.push_str("<!-- Generated from the schema in device/src/schema.rs; do not edit by hand. Regenerate with\n     CLAMPWISE_BLESS=1 cargo test -p clampwise-device --release config_reference -->\n\n");
+    o.push_str("Every key of a device config file (TOML), generated from the schema itself: the key names, types, defaults and fixed bounds come from the types the loader reads (`clampwise_device::schema::DeviceSpec`), the meanings from their doc comments. Unknown keys are rejected. Bounds that depend on other keys are given in the meaning column; `clampwise check CONFIG` reports every problem at its key, line and column.\n\n");
     o.push_str("Units are in the key names (SI): ");
     let units: Vec<String> = UNIT_SUFFIXES
         .iter()

@@ -17,7 +17,7 @@ use std::path::Path;
 use clampwise_core::sensor::ActuatorCommand;
 use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 use clampwise_device::column_units::{self, Conversion};
-use clampwise_device::config::{CANONICAL, DeviceConfig, DeviceKind};
+use clampwise_device::schema::{CANONICAL, DeviceKind, DeviceSpec};
 use fixed::traits::Fixed;
 
 /// Largest trace kept in flash (rows); a longer one would not fit a small part's flash.
@@ -51,7 +51,7 @@ struct Column {
 
 fn find(
     headers: &csv::StringRecord,
-    config: &DeviceConfig,
+    config: &DeviceSpec,
     quantity: &str,
     file: &str,
 ) -> Result<Option<Column>, String> {
@@ -74,7 +74,7 @@ fn find(
 
 fn need(
     headers: &csv::StringRecord,
-    config: &DeviceConfig,
+    config: &DeviceSpec,
     quantity: &str,
     file: &str,
 ) -> Result<Column, String> {
@@ -87,7 +87,7 @@ fn need(
 }
 
 /// Read the trace for a device with `channels` force channels.
-pub fn read(path: &Path, config: &DeviceConfig, channels: usize) -> Result<Vec<Row>, String> {
+pub fn read(path: &Path, config: &DeviceSpec, channels: usize) -> Result<Vec<Row>, String> {
     let file = path.display().to_string();
     let mut reader = csv::ReaderBuilder::new()
         .comment(Some(b'#'))

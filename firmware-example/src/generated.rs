@@ -2,7 +2,7 @@
 //! named by `CLAMPWISE_FW_CONFIG`, default `sim/configs/demo-hoist-brake.toml`) and a trace in
 //! the simulator's CSV format (`CLAMPWISE_FW_TRACE`, default `firmware-example/trace/demo.csv`).
 //!
-//! * The device configuration, emitted by `clampwise_device::emit_device` as one `const`
+//! * The device configuration, emitted by `clampwise_device::emit` as one `const`
 //!   expression over raw fixed-point bits (every constructor is the core's `const fn`, so a
 //!   configuration the core rejects fails the build): [`DEVICE`], its type [`Device`], its
 //!   sizes, and [`DEVICE_CHECKSUM`], the core's `DeviceConfig::checksum` computed on the host

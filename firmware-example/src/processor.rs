@@ -39,9 +39,9 @@
 use clampwise_core::config::{DeviceConfig, TableSet};
 use clampwise_core::estimator::{self, ContactState, Estimate, Estimator, EstimatorState};
 use clampwise_core::flags::Flags;
-use clampwise_core::state_record::{RecordError, StateRecord};
 use clampwise_core::record_store::{LoadError, RecordStore, SlotState, StoreError};
 use clampwise_core::sensor::RawChannel;
+use clampwise_core::state_record::{RecordError, StateRecord};
 use embedded_storage::nor_flash::NorFlash;
 
 use crate::app::{Inputs, Outcome, Processor, Reading};

@@ -40,8 +40,7 @@ use crate::app::{
 };
 use crate::generated::{
     self, CONFIG_NAME, DEVICE_CHANNELS, DEVICE_CHECKSUM, DEVICE_CONFIG, DEVICE_INITIAL_RECORD,
-    DEVICE_MU_SPEEDS, DEVICE_MU_TEMPERATURES, DEVICE_RADIUS_BEDDINGS, DEVICE_RADIUS_FORCES, Device,
-    SAMPLE_PERIOD_NS, TRACE, TRACE_NAME,
+    Device, DeviceTables, SAMPLE_PERIOD_NS, TRACE, TRACE_NAME,
 };
 use crate::line::{Line, LineSink};
 use crate::processor::EstimatorStep;

@@ -40,9 +40,9 @@
 
 use clampwise_core::state_record::RecordError;
 // The types of `Persist`'s signatures, named here so `forward_persist!` can reach them.
-pub use clampwise_core::state_record::StateRecord;
 use clampwise_core::record_store::SlotState;
 pub use clampwise_core::record_store::{LoadError, RecordStore, StoreError};
+pub use clampwise_core::state_record::StateRecord;
 pub use embedded_storage::nor_flash::NorFlash;
 
 use crate::line::Line;

@@ -16,7 +16,8 @@ use clampwise_convert::{self as convert, ChannelCal, CoreEstimator, SampleEstima
 use clampwise_core::estimator::{self, Estimate};
 use clampwise_core::flags::Flags;
 use clampwise_device::build_core::CoreDevice;
-use clampwise_device::config::{DeviceKind, LoadedConfig};
+use clampwise_device::config::LoadedConfig;
+use clampwise_device::schema::DeviceKind;
 use clampwise_firmware_example::app::{Inputs, Processor};
 use clampwise_firmware_example::generated::{CONFIG_PATH, DEVICE_CHANNELS, TRACE, TRACE_PATH};
 use clampwise_firmware_example::line::Discard;

@@ -41,7 +41,7 @@ pub enum Command {
     Compare(CompareArgs),
     /// Fit the μ table from a trace with a reference torque, with a coverage map.
     Fit(FitArgs),
-    /// Print the friction-radius and μ tables; emit them as Rust source for the firmware.
+    /// Print the friction-radius and μ tables; emit the device as Rust source for the firmware.
     Tables(TablesArgs),
     /// Synthesise a trace from the independent f64 plant model.
     Synth(SynthArgs),
@@ -248,7 +248,8 @@ pub struct TablesArgs {
     /// Device config (TOML; `-` for standard input).
     #[arg(long, short)]
     pub config: PathBuf,
-    /// Write the tables as Rust source for the firmware (`-` for standard output).
+    /// Write the whole device (configuration, checksum, starting state) as Rust source for the
+    /// firmware, the source its `build.rs` writes (`-` for standard output).
     #[arg(long)]
     pub emit: Option<String>,
 }

@@ -11,7 +11,7 @@ use crate::build_core::CoreDevice;
 use crate::cli::{CheckArgs, CompareArgs, FitArgs, PlotArgs, ReplayArgs, SynthArgs, TablesArgs};
 use crate::column_units::Quantity;
 use crate::compare::{self, GateSpec, Thresholds};
-use crate::config::{CANONICAL, ConfigErrors, ConfigIssue, LoadedConfig};
+use crate::config::{ConfigErrors, ConfigIssue, LoadedConfig};
 use crate::emit;
 use crate::error::SimError;
 use crate::estimate::EstimateReader;
@@ -23,6 +23,7 @@ use crate::plant::scenario::{SCENARIOS, Scenario};
 use crate::plot;
 use crate::plot::{BUCKETS, Envelope, TimeWindow};
 use crate::replay::{self, CAUTION, ReplayOptions};
+use crate::schema::CANONICAL;
 use crate::synth;
 use clampwise_convert::ChannelCal;
 
@@ -480,9 +481,11 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
     refuse_overwriting_inputs(&[("config", path_str(&a.config))], &outputs)?;
     let (cfg, core) = load(&a.config)?;
     let t = &core.tables;
-    let mut human = emit::human(&cfg, t);
+    let mut human = emit::human(&cfg, &core);
     if let Some(p) = &a.emit {
-        write_file(p, emit::rust_source(&cfg, t).as_bytes())?;
+        let source = emit::device_source(&core, &emit::origin_name(&cfg.file))
+            .map_err(|e| SimError::Internal(format!("{}: {e}", cfg.file)))?;
+        write_file(p, source.as_bytes())?;
         human.push_str(&format!("  wrote {p} (Rust source for the firmware)\n"));
     }
     Ok(Outcome::ok(
@@ -490,7 +493,7 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
         json!({
             "command": "tables",
             "config": cfg.file,
-            "checksum": format!("0x{:08X}", emit::tables_checksum(t)),
+            "checksum": format!("0x{:08X}", core.device.checksum()),
             "radius_m": {"uniform_pressure": t.radii_m.0, "uniform_wear": t.radii_m.1,
                           "force_n": t.radius_force_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
                           "bedding": t.radius_bedding_axis().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
@@ -652,7 +655,7 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
     for p in &a.configs {
         match read_config(p).and_then(|c| {
             CoreDevice::build(&c.config)
-                .map(|d| (c, d.tables))
+                .map(|d| (c, d))
                 .map_err(|e| crate::config::ConfigErrors {
                     file: p.display().to_string(),
                     issues: vec![crate::config::ConfigIssue {
@@ -664,7 +667,8 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
                     }],
                 })
         }) {
-            Ok((c, t)) => {
+            Ok((c, d)) => {
+                let t = &d.tables;
                 human.push_str(&format!(
                     "{}: ok — {} ({:?}), {} × {} faces, {} sensors, μ table {}×{}, r_e {:.4}…{:.4} m, checksum 0x{:08X}\n",
                     c.file,
@@ -677,7 +681,7 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
                     t.mu_speeds,
                     t.radii_m.1,
                     t.radii_m.0,
-                    emit::tables_checksum(&t)
+                    d.device.checksum()
                 ));
                 js.push(json!({"file": c.file, "ok": true}));
             }

@@ -19,10 +19,10 @@ use std::collections::BTreeMap;
 
 use serde::Serialize;
 
-use crate::config::DeviceConfig;
 use crate::error::SimError;
 use crate::estimate::EstimateReader;
 use crate::quantile_sketch::QuantileSketch;
+use crate::schema::DeviceSpec;
 use clampwise_convert::{ContactState, EstimateRow};
 
 /// Running sums of one error population.
@@ -329,7 +329,7 @@ pub struct Comparer {
 
 impl Comparer {
     /// Bands from the config's μ breakpoints and force limit, or fixed defaults.
-    pub fn new(c: Option<&DeviceConfig>, gate: GateSpec) -> Self {
+    pub fn new(c: Option<&DeviceSpec>, gate: GateSpec) -> Self {
         let (t, v, f) = match c {
             Some(c) => {
                 let fmax = c.limits.max_clamp_force_n;
@@ -495,7 +495,7 @@ impl Comparer {
 /// I/O or located data errors.
 pub fn compare_file(
     path: &str,
-    c: Option<&DeviceConfig>,
+    c: Option<&DeviceSpec>,
     gate: &GateSpec,
     progress: Option<&indicatif::ProgressBar>,
 ) -> Result<CompareReport, SimError> {

@@ -22,8 +22,9 @@ use indicatif::ProgressBar;
 use serde::Serialize;
 
 use crate::build_core::CoreDevice;
-use crate::config::{KeyPath, LoadedConfig, value_span};
+use crate::config::LoadedConfig;
 use crate::error::{DataError, SimError};
+use crate::locate::{KeyPath, value_span};
 use crate::replay::run_stream;
 use crate::trace::{RowPolicy, SkipReport, TraceOptions, TraceReader};
 use clampwise_convert::{self as convert, ContactState, Flags};

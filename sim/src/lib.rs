@@ -71,4 +71,4 @@ pub mod trace;
 
 // The config layer lives in `clampwise-device` (a firmware's build script uses it too); it is
 // re-exported here so the simulator's users name it as part of the simulator.
-pub use clampwise_device::{build_core, column_units, config, emit};
+pub use clampwise_device::{build_core, column_units, config, emit, locate, schema};

@@ -12,11 +12,11 @@ use std::time::Instant;
 use indicatif::ProgressBar;
 use serde::Serialize;
 
-use crate::config::DeviceConfig;
 use crate::error::SimError;
 use crate::output::AtomicFile;
 use crate::plant::scenario::Scenario;
 use crate::plant::{Plant, PlantOptions, PlantSample};
+use crate::schema::DeviceSpec;
 
 /// What a synthesis produced.
 #[derive(Debug, Clone, Serialize)]
@@ -107,7 +107,7 @@ pub fn write_row(buf: &mut Vec<u8>, s: &PlantSample, channels: usize) {
 /// # Errors
 /// I/O errors, or a plant that cannot be built from the config.
 pub fn synthesise(
-    c: &DeviceConfig,
+    c: &DeviceSpec,
     scenario_name: &str,
     scenario: &Scenario,
     opts: PlantOptions,

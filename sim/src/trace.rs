@@ -9,10 +9,10 @@
 use serde::Serialize;
 
 use crate::column_units::{self, Conversion};
-use crate::config::{CANONICAL, ColumnMap, DeviceConfig, DeviceKind};
 use crate::csv_input::{CsvIn, Dialect, DialectChoice, Row, echo};
 use crate::error::{DataError, SimError};
 use crate::resample::{Resample, ResampleReport, Resampler};
+use crate::schema::{CANONICAL, ColumnSpec, DeviceKind, DeviceSpec};
 use crate::timestamps::{TimeCheck, TimeReport};
 use clampwise_convert::{Channel, TraceSample};
 
@@ -86,7 +86,7 @@ impl TraceOptions {
     /// `--sample-period-s`, a stated period the estimator would be stepped at wrongly (another
     /// rate without `--resample`), a `--column` for a force channel the config does not have
     /// or given twice.
-    pub fn check(&self, c: &DeviceConfig) -> Result<(), SimError> {
+    pub fn check(&self, c: &DeviceSpec) -> Result<(), SimError> {
         let device = c.device.sample_period_s;
         if let Some(p) = self.sample_period_s {
             if !(p.is_finite() && p > 0.0) {
@@ -134,7 +134,7 @@ impl TraceOptions {
 
 /// The largest ratio of a trace's time step to the expected period that is not a gap: the
 /// period check accepts a median step within this ratio either way.
-fn period_tolerance(c: &DeviceConfig) -> f64 {
+fn period_tolerance(c: &DeviceSpec) -> f64 {
     (1.0 + c.trace.gap_tolerance_ratio.unwrap_or(0.5)).min(2.0)
 }
 
@@ -193,7 +193,7 @@ pub struct TraceReader {
 
 fn find_column(
     csv: &CsvIn,
-    c: &DeviceConfig,
+    c: &DeviceSpec,
     overrides: &[ColumnOverride],
     name: &str,
     required: bool,
@@ -202,7 +202,7 @@ fn find_column(
         .iter()
         .find(|e| e.0 == name)
         .ok_or_else(|| csv.header_error(None, format!("internal: unknown quantity {name}")))?;
-    let from_config: Option<&ColumnMap> = c.trace.columns.get(name);
+    let from_config: Option<&ColumnSpec> = c.trace.columns.get(name);
     let over = overrides.iter().find(|o| o.quantity == name);
     let (col_name, unit, area, source) = match (over, from_config) {
         (Some(o), m) => (
@@ -262,7 +262,7 @@ impl TraceReader {
     /// that disagrees with the mapping.
     pub fn open(
         path: &str,
-        c: &DeviceConfig,
+        c: &DeviceSpec,
         policy: RowPolicy,
         need_reference: bool,
     ) -> Result<Self, SimError> {
@@ -276,7 +276,7 @@ impl TraceReader {
     /// As [`TraceReader::open`], and the usage errors of [`TraceOptions::check`].
     pub fn open_with(
         path: &str,
-        c: &DeviceConfig,
+        c: &DeviceSpec,
         policy: RowPolicy,
         need_reference: bool,
         opts: &TraceOptions,

@@ -302,7 +302,7 @@ fn bad_config_value_located() {
         issue["message"]
             .as_str()
             .unwrap()
-            .contains("below outer_radius_m")
+            .contains("must be below disc.outer_radius_m")
     );
 }
 

@@ -474,20 +474,20 @@ fn text_without_reference() -> String {
 fn tables_print_emit_and_match_the_golden_file() {
     let d = scratch("tables");
     let cfg = write(&d, "demo-hoist-brake.toml", DEMO);
-    let rs = d.join("tables.rs").display().to_string();
+    let rs = d.join("device.rs").display().to_string();
     let (code, out, err) = run(&["tables", "-c", &cfg, "--emit", &rs]);
     assert_eq!(code, 0, "{err}");
     assert!(
         out.contains("friction radius r_e")
             && out.contains("kinetic μ")
-            && out.contains("checksum"),
+            && out.contains(&format!("0x{:08X}", golden_device::DEVICE_CHECKSUM)),
         "{out}"
     );
     let emitted = std::fs::read_to_string(&rs).unwrap();
-    let golden = include_str!("golden/demo_tables.rs");
+    let golden = include_str!("golden/demo_device.rs");
     assert_eq!(
         emitted, golden,
-        "regenerate sim/tests/golden/demo_tables.rs with `cargo cw tables -c sim/configs/demo-hoist-brake.toml --emit sim/tests/golden/demo_tables.rs` if the change is intended"
+        "regenerate sim/tests/golden/demo_device.rs with `cargo cw tables -c sim/configs/demo-hoist-brake.toml --emit sim/tests/golden/demo_device.rs` if the change is intended"
     );
     let (code, js, _) = run_json(&["tables", "-c", &cfg]);
     assert_eq!(code, 0);
@@ -498,64 +498,33 @@ fn tables_print_emit_and_match_the_golden_file() {
     );
     assert_eq!(
         js["checksum"],
-        format!("0x{:08X}", golden_tables::TABLES_CHECKSUM)
+        format!("0x{:08X}", golden_device::DEVICE_CHECKSUM)
     );
 }
 
-/// The committed generated source compiles against the core, and its constants are the
-/// simulator's tables bit for bit.
+/// The committed generated source compiles against the core (its `const` constructors check
+/// every value at compile time), and its constant is the simulator's device bit for bit.
 #[allow(clippy::panic, dead_code)]
-mod golden_tables {
-    include!("golden/demo_tables.rs");
+mod golden_device {
+    include!("golden/demo_device.rs");
 }
 
 #[test]
-fn golden_tables_equal_the_runtime_tables() {
-    use clampwise_sim::build_core::CoreTables;
+fn golden_device_equals_the_runtime_device() {
+    use clampwise_sim::build_core::{ChannelDevice, CoreDevice};
     use clampwise_sim::config::LoadedConfig;
-    use clampwise_sim::emit;
     let cfg = LoadedConfig::from_str(DEMO, "demo").unwrap();
-    let t = CoreTables::build(&cfg.config).unwrap();
-    for (g, r) in golden_tables::RADIUS_FORCE_N
-        .iter()
-        .zip(t.radius_force_axis())
-    {
-        assert_eq!(g, r);
-    }
+    let core = CoreDevice::build(&cfg.config).unwrap();
+    let ChannelDevice::Three(d) = &core.device else {
+        panic!("the demo has three force channels");
+    };
+    assert_eq!(golden_device::DEVICE, *d);
     assert_eq!(
-        golden_tables::RADIUS_BEDDING.as_slice(),
-        t.radius_bedding_axis()
+        golden_device::DEVICE.checksum(),
+        golden_device::DEVICE_CHECKSUM
     );
-    assert_eq!(
-        golden_tables::MU_TEMPERATURE_C.as_slice(),
-        t.mu_temperature_axis()
-    );
-    assert_eq!(
-        golden_tables::MU_SLIP_SPEED_RAD_S.as_slice(),
-        t.mu_speed_axis()
-    );
-    for (g, r) in golden_tables::MU_VALUES.iter().zip(t.mu_rows()) {
-        assert_eq!(g.as_slice(), r);
-    }
-    for (g, r) in golden_tables::RADIUS_VALUES_M.iter().zip(t.radius_rows()) {
-        assert_eq!(g.as_slice(), r);
-    }
-    assert_eq!(golden_tables::TABLES_CHECKSUM, emit::tables_checksum(&t));
-    // Lookups of the emitted table equal those of the padded runtime table.
-    use clampwise_core::units::{Celsius, RadPerSec};
-    for (tc, v) in [
-        (20.0, 0.0),
-        (150.0, 3.3),
-        (499.0, 19.0),
-        (900.0, 50.0),
-        (-20.0, 1.0),
-    ] {
-        let (tc, v) = (Celsius::from_num(tc), RadPerSec::from_num(v));
-        assert_eq!(
-            golden_tables::MU_TABLE.lookup(tc, v).value,
-            t.mu.lookup(tc, v).value
-        );
-    }
+    assert_eq!(core.device.checksum(), golden_device::DEVICE_CHECKSUM);
+    assert_eq!(golden_device::DEVICE_INITIAL_RECORD, core.initial.record(d));
 }
 
 #[test]

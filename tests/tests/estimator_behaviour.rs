@@ -58,7 +58,7 @@ fn uniform_wear_and_cone_match_their_formulas() {
     // Bedded lining: r_e = (Ro + Ri)/2 = 80 mm [pub: Shigley ch. 16]; here the bedding table
     // column at b = 1 is used by restoring a fully bedded state through the radius table.
     let dev = device::<1>(&Spec::default());
-    let r_uw = dev.radius_table().lookup(
+    let r_uw = dev.tables().radius().lookup(
         clampwise_core::units::Newtons::from_num(10_000),
         clampwise_core::units::Ratio::ONE,
     );
@@ -160,7 +160,7 @@ fn stick_slip_boundary_has_hysteresis() {
     let dev = device::<1>(&Spec::default());
     let mut est = Estimator::new(&dev);
     let mut inputs = Inputs::<1>::at_rest(counts(10_000.0));
-    let mut state_at = |v: f64, est: &mut Estimator<'_, 1, 2, 2, 3, 3>| {
+    let mut state_at = |v: f64, est: &mut Estimator<'_, TestTables, 1>| {
         inputs.input_speed = Some(RadPerSec::from_num(v));
         est.step(&inputs).state
     };

@@ -14,7 +14,7 @@ use clampwise_core::thermal::{ThermalConfig, ThermalError, ThermalParams};
 use clampwise_core::units::{NewtonMetres, Newtons, Ratio, Seconds};
 use clampwise_core::wear::{WearConfig, WearError, WearParams};
 
-type Parts = DeviceParts<1, 2, 2, 3, 3>;
+type Parts = DeviceParts<TestTables, 1>;
 
 /// The valid parts of the estimator_common demo device.
 fn parts() -> Parts {
@@ -26,8 +26,7 @@ fn parts() -> Parts {
         sample_period: dev.sample_period(),
         thermal_wear_every: dev.thermal_wear_every(),
         faces: dev.faces(),
-        radius: *dev.radius_table(),
-        friction: *dev.friction(),
+        tables: *dev.tables(),
         thermal: *dev.thermal(),
         wear: *dev.wear(),
         sensor: *dev.sensor(),
@@ -93,10 +92,7 @@ fn sample_period() {
 
 #[test]
 fn thermal_sample_period() {
-    let thermal = ThermalConfig::new(&ThermalParams {
-        ..thermal_params()
-    }, 2e-3)
-    .unwrap();
+    let thermal = ThermalConfig::new(&thermal_params(), 2e-3).unwrap();
     rejects(
         Parts { thermal, ..parts() },
         ConfigError::ThermalSamplePeriod,
@@ -106,10 +102,7 @@ fn thermal_sample_period() {
 
 #[test]
 fn wear_sample_period() {
-    let wear = WearConfig::new(&WearParams {
-        ..wear_params()
-    }, 2e-3)
-    .unwrap();
+    let wear = WearConfig::new(&wear_params(), 2e-3).unwrap();
     rejects(
         Parts { wear, ..parts() },
         ConfigError::WearSamplePeriod,
@@ -219,10 +212,13 @@ fn friction_error_names_its_field() {
 
 #[test]
 fn thermal_error_names_its_field() {
-    let e = ThermalConfig::new(&ThermalParams {
-        rotor_mass: 0.0,
-        ..thermal_params()
-    })
+    let e = ThermalConfig::new(
+        &ThermalParams {
+            rotor_mass: 0.0,
+            ..thermal_params()
+        },
+        DT,
+    )
     .unwrap_err();
     assert_eq!(
         e,
@@ -231,20 +227,26 @@ fn thermal_error_names_its_field() {
         }
     );
     assert!(e.to_string().contains("rotor_mass"), "{e}");
-    let e = ThermalConfig::new(&ThermalParams {
-        rotor_share: 1.5,
-        ..thermal_params()
-    })
+    let e = ThermalConfig::new(
+        &ThermalParams {
+            rotor_share: 1.5,
+            ..thermal_params()
+        },
+        DT,
+    )
     .unwrap_err();
     assert!(e.to_string().contains("rotor_share"), "{e}");
 }
 
 #[test]
 fn wear_error_names_its_field() {
-    let e = WearConfig::new(&WearParams {
-        lining_area: 0.0,
-        ..wear_params()
-    })
+    let e = WearConfig::new(
+        &WearParams {
+            lining_area: 0.0,
+            ..wear_params()
+        },
+        DT,
+    )
     .unwrap_err();
     assert_eq!(e, WearError::AreaNotPositive);
     assert!(e.to_string().contains("lining_area"), "{e}");

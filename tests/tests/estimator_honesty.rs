@@ -15,7 +15,7 @@ use clampwise_core::estimator::{ContactState, Estimate, Estimator, Inputs};
 use clampwise_core::flags::Flags;
 use clampwise_core::sensor::{ActuatorCommand, RawChannel};
 use clampwise_core::units::RadPerSec;
-use estimator_common::{Spec, counts, device};
+use estimator_common::{Spec, TestTables, counts, device};
 
 /// Inputs with channel `i` reading `forces[i]` newtons, input shaft at `speed` rad/s.
 fn inputs<const C: usize>(forces: [f64; C], speed: Option<f64>) -> Inputs<C> {
@@ -32,7 +32,7 @@ fn inputs<const C: usize>(forces: [f64; C], speed: Option<f64>) -> Inputs<C> {
 
 /// Step `n` times with the same inputs; the last estimate.
 fn settle<const C: usize>(
-    est: &mut Estimator<'_, C, 2, 2, 3, 3>,
+    est: &mut Estimator<'_, TestTables, C>,
     i: &Inputs<C>,
     n: usize,
 ) -> Estimate {

@@ -22,7 +22,7 @@ use estimator_common::*;
 use std::cell::Cell;
 
 use clampwise_core::adapt::AdaptConfig;
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
 use clampwise_core::estimator::{Combination, ContactState, Estimate, Estimator, Inputs};
 use clampwise_core::flags::Flags;
 use clampwise_core::friction::FrictionConfig;
@@ -63,8 +63,8 @@ struct Common {
 fn common(spec: &Spec<'_>) -> Common {
     Common {
         friction: FrictionConfig::new(mu_table(), &friction_params(spec)).unwrap(),
-        thermal: ThermalConfig::new(&thermal_params()).unwrap(),
-        wear: WearConfig::new(&wear_params()).unwrap(),
+        thermal: ThermalConfig::new(&thermal_params(), DT).unwrap(),
+        wear: WearConfig::new(&wear_params(), DT).unwrap(),
         sensor: sensor_config::<1>(false),
     }
 }
@@ -76,8 +76,7 @@ fn device_for(c: &Common, contact: &Contact<'_>, adapt: Option<AdaptConfig>) -> 
         sample_period: Seconds::from_num(DT),
         thermal_wear_every: 1,
         faces: contact.faces(),
-        radius,
-        friction: c.friction,
+        tables: Tables::new(radius, c.friction),
         thermal: c.thermal,
         wear: c.wear,
         sensor: c.sensor,
@@ -266,7 +265,7 @@ fn case() -> impl Strategy<Value = Case> {
 
 /// An estimator resumed from a state record: rotor and lining at `temperature`, `energy`
 /// dissipated since the lining was new (its bedding and wear follow from the wear model).
-fn restored(dev: &Device<1>, temperature: Celsius, energy: Joules) -> Estimator<'_, 1, 2, 2, 3, 3> {
+fn restored(dev: &Device<1>, temperature: Celsius, energy: Joules) -> Estimator<'_, TestTables, 1> {
     let record = StateRecord::new(
         0,
         dev.checksum(),

@@ -156,8 +156,7 @@ fn bad_sub_rates_are_named() {
         sample_period: good.sample_period(),
         thermal_wear_every: every,
         faces: good.faces(),
-        radius: *good.radius_table(),
-        friction: *good.friction(),
+        tables: *good.tables(),
         thermal,
         wear: *good.wear(),
         sensor: *good.sensor(),
@@ -171,10 +170,7 @@ fn bad_sub_rates_are_named() {
         assert_eq!(e.field(), "device.thermal_wear_every");
     }
     // Every 8 samples, but the thermal model built for one sample.
-    let per_sample = ThermalConfig::new(&ThermalParams {
-        ..thermal_params()
-    }, DT)
-    .unwrap();
+    let per_sample = ThermalConfig::new(&ThermalParams { ..thermal_params() }, DT).unwrap();
     assert_eq!(
         DeviceConfig::from_parts(parts(8, per_sample)).unwrap_err(),
         ConfigError::ThermalSamplePeriod

@@ -17,14 +17,14 @@
 mod estimator_common;
 
 use clampwise_core::estimator::{Estimator, Inputs};
-use clampwise_core::state_record::{RECORD_LEN, RecordError, StateRecord};
 use clampwise_core::record_store::{LoadError, RecordStore, SlotState, StoreError};
+use clampwise_core::state_record::{RECORD_LEN, RecordError, StateRecord};
 use clampwise_core::units::{NewtonMetres, RadPerSec};
 use embedded_storage::nor_flash::{
     ErrorType, NorFlash, NorFlashError, NorFlashErrorKind, ReadNorFlash, check_erase, check_read,
     check_write,
 };
-use estimator_common::{Device, Spec, annulus_contact, counts, device};
+use estimator_common::{Device, Spec, TestTables, annulus_contact, counts, device};
 
 const ERASE: usize = 256;
 const CAPACITY: usize = 4 * ERASE;
@@ -220,7 +220,7 @@ fn dev() -> Dev {
 }
 
 /// Run the estimator for a few samples of braking so the next save holds a new state.
-fn brake(est: &mut Estimator<'_, 1, 2, 2, 3, 3>, rng: &mut Rng) {
+fn brake(est: &mut Estimator<'_, TestTables, 1>, rng: &mut Rng) {
     let force = 3_000.0 + rng.below(20_000) as f64;
     let speed = rng.below(200) as f64 - 20.0;
     for _ in 0..1 + rng.below(40) {
@@ -236,7 +236,7 @@ fn brake(est: &mut Estimator<'_, 1, 2, 2, 3, 3>, rng: &mut Rng) {
 /// whole), and the estimator that keeps running.
 struct Run<'d> {
     dev: &'d Dev,
-    est: Estimator<'d, 1, 2, 2, 3, 3>,
+    est: Estimator<'d, TestTables, 1>,
     store: Option<RecordStore<CutFlash>>,
     last: Option<StateRecord>,
     rng: Rng,

@@ -15,9 +15,8 @@ use proptest::prelude::*;
 
 /// REFERENCES.md check vector [calc]: 8 kg disc, c = 460 J/(kg·K), h = 50 W/(m²·K),
 /// A = 0.12 m² → τ = m·c/(h·A) = 613 s.
-fn disc(dt: f64, cooling: Cooling, share: f64) -> ThermalParams {
+fn disc(cooling: Cooling, share: f64) -> ThermalParams {
     ThermalParams {
-        dt,
         rotor_mass: 8.0,
         rotor_specific_heat: 460.0,
         rotor_share: share,
@@ -37,7 +36,7 @@ fn disc(dt: f64, cooling: Cooling, share: f64) -> ThermalParams {
 #[test]
 fn pulse_rise_matches_lumped_capacitance() {
     for dt in [1e-4, 1e-3, 1e-2] {
-        let cfg = ThermalConfig::new(&disc(dt, Cooling::Conductance(50.0 * 0.12), 1.0)).unwrap();
+        let cfg = ThermalConfig::new(&disc(Cooling::Conductance(50.0 * 0.12), 1.0), dt).unwrap();
         let mut s = ThermalState::new(&cfg);
         let steps = (0.05 / dt).round() as usize;
         let p = Watts::from_num(202_500.0 / 0.05);
@@ -52,7 +51,7 @@ fn pulse_rise_matches_lumped_capacitance() {
         );
     }
     // With the heat partition γ = 0.9 and no cooling: 49.5 K.
-    let cfg = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic, 0.9)).unwrap();
+    let cfg = ThermalConfig::new(&disc(Cooling::Adiabatic, 0.9), 1e-3).unwrap();
     let mut s = ThermalState::new(&cfg);
     let mut out = s.update(&cfg, Watts::from_num(202_500), None);
     for _ in 1..1000 {
@@ -71,7 +70,7 @@ fn cooling_curve_matches_exponential() {
         (1e-3, Cooling::Conductance(50.0 * 0.12)),
         (1e-2, Cooling::TimeConstant(tau)),
     ] {
-        let cfg = ThermalConfig::new(&disc(dt, cooling, 1.0)).unwrap();
+        let cfg = ThermalConfig::new(&disc(cooling, 1.0), dt).unwrap();
         let mut s = ThermalState::with_temperatures(Celsius::from_num(75), Celsius::from_num(75));
         let mut n = 0u64;
         for t_check in [30.0, 300.0, 613.0, 1200.0, 2500.0] {
@@ -91,7 +90,7 @@ fn cooling_curve_matches_exponential() {
     }
 }
 
-fn two_node(dt: f64) -> ThermalParams {
+fn two_node() -> ThermalParams {
     // Demo winch-brake values (invented): resin pads 0.4 kg, c = 1250 J/(kg·K) [pub: Tribology
     // Handbook, resin facing]; γ = 0.9 [calc from Limpert's partition, mem].
     ThermalParams {
@@ -100,13 +99,13 @@ fn two_node(dt: f64) -> ThermalParams {
             specific_heat: 1250.0,
             conductance_to_rotor: 20.0,
         }),
-        ..disc(dt, Cooling::TimeConstant(613.0), 0.9)
+        ..disc(Cooling::TimeConstant(613.0), 0.9)
     }
 }
 
 /// Run fixed and reference side by side over a power trace; return the worst |ΔT| in K.
-fn worst_error(p: &ThermalParams, powers: &[(f64, u32)]) -> (f64, f64) {
-    let cfg = ThermalConfig::new(p).unwrap();
+fn worst_error(p: &ThermalParams, dt: f64, powers: &[(f64, u32)]) -> (f64, f64) {
+    let cfg = ThermalConfig::new(p, dt).unwrap();
     let mut fixed = ThermalState::new(&cfg);
     let mut reference = ThermalModel::new(p);
     let mut worst = 0.0f64;
@@ -121,7 +120,7 @@ fn worst_error(p: &ThermalParams, powers: &[(f64, u32)]) -> (f64, f64) {
             };
             let pq = Watts::from_num(w);
             let out = fixed.update(&cfg, pq, None);
-            reference.step(p.dt, pq.to_num());
+            reference.step(dt, pq.to_num());
             worst = worst
                 .max((out.rotor_temperature.to_num::<f64>() - reference.rotor).abs())
                 .max((out.lining_temperature.to_num::<f64>() - reference.lining).abs());
@@ -144,14 +143,10 @@ fn thermal_envelope() {
         let trace = [(1e7, k(0.3)), (0.0, k(2.0)), (5e4, k(20.0)), (0.0, k(20.0))];
         let cold = ThermalParams {
             ambient: -50.0,
-            ..two_node(dt)
+            ..two_node()
         };
-        for p in [
-            disc(dt, Cooling::TimeConstant(613.0), 0.9),
-            two_node(dt),
-            cold,
-        ] {
-            let (worst, hottest) = worst_error(&p, &trace);
+        for p in [disc(Cooling::TimeConstant(613.0), 0.9), two_node(), cold] {
+            let (worst, hottest) = worst_error(&p, dt, &trace);
             println!(
                 "dt {dt:e}, lining node {}: worst {worst:.3e} K, peak {hottest:.0} °C",
                 p.lining.is_some()
@@ -176,8 +171,8 @@ proptest! {
         segments in prop::collection::vec((0.0f64..1e7, 1u32..400), 1..12),
     ) {
         let dt = [1e-4, 1e-3, 1e-2][dt_index];
-        let p = if lining { two_node(dt) } else { disc(dt, Cooling::TimeConstant(613.0), 0.9) };
-        let (worst, _) = worst_error(&p, &segments);
+        let p = if lining { two_node() } else { disc(Cooling::TimeConstant(613.0), 0.9) };
+        let (worst, _) = worst_error(&p, dt, &segments);
         prop_assert!(worst <= THERMAL_MAX_ERROR_K, "{}", worst);
     }
 }

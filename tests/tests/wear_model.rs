@@ -12,10 +12,9 @@ use clampwise_core::wear::{WEAR_RATE_UNIT, WearConfig, WearParams, WearState};
 use clampwise_tests::f64_model::wear::WearModel;
 use proptest::prelude::*;
 
-fn params(dt: f64) -> WearParams {
+fn params() -> WearParams {
     // Invented demo values; the unit 10⁻⁷ cm³/(N·m) is the trade's [pub: JIS D 4411].
     WearParams {
-        dt,
         bedding_energy: 2e7,
         specific_wear_rate: 0.4 * WEAR_RATE_UNIT,
         lining_area: 80e-4,
@@ -31,8 +30,8 @@ const BEDDING_MAX_ERROR: f64 = 1.87e-9; // 2 LSB of Ratio
 const LOSS_MAX_ERROR_M: f64 = 5.97e-8; // 1 LSB of Metres (2⁻²⁴ m)
 
 fn run(dt: f64, start: f64, segments: &[(f64, u32)]) -> (f64, f64, f64) {
-    let p = params(dt);
-    let cfg = WearConfig::new(&p).unwrap();
+    let p = params();
+    let cfg = WearConfig::new(&p, dt).unwrap();
     let mut fixed = WearState::with_history(&cfg, Joules::from_num(start));
     let mut reference = WearModel::with_energy(&p, Joules::from_num(start).to_num());
     let (mut de, mut db, mut dl) = (0.0f64, 0.0f64, 0.0f64);
@@ -74,7 +73,7 @@ fn wear_envelope() {
 #[test]
 fn millijoule_increments_count_at_1e10_j() {
     let dt = 1e-4;
-    let cfg = WearConfig::new(&params(dt)).unwrap();
+    let cfg = WearConfig::new(&params(), dt).unwrap();
     let mut s = WearState::with_history(&cfg, Joules::from_num(1e10));
     let before = s.energy();
     let mut out = None;
@@ -103,7 +102,7 @@ proptest! {
     // Bedding is monotone in energy and never exceeds 1, whatever the increments.
     #[test]
     fn bedding_monotone(increments in prop::collection::vec(0.0f64..5e6, 1..200)) {
-        let cfg = WearConfig::new(&params(1e-3)).unwrap();
+        let cfg = WearConfig::new(&params(), 1e-3).unwrap();
         let mut s = WearState::new();
         let mut last = s.bedding();
         for e in increments {

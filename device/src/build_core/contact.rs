@@ -7,10 +7,11 @@ use clampwise_core::geometry::{
 };
 
 use super::BuildError;
-use crate::config::{ButtonModelName, Contact, Shape};
+use crate::polygon;
+use crate::schema::{ButtonModelSpec, ContactSpec, ShapeSpec};
 
 /// The config key of a core geometry parameter.
-fn geometry_key(c: &Contact, p: Parameter) -> String {
+fn geometry_key(c: &ContactSpec, p: Parameter) -> String {
     let k = match p {
         Parameter::InnerRadius | Parameter::DiscInnerRadius => "inner_radius_m",
         Parameter::OuterRadius | Parameter::DiscOuterRadius => "outer_radius_m",
@@ -30,7 +31,7 @@ fn geometry_key(c: &Contact, p: Parameter) -> String {
 }
 
 /// A core geometry error, named by the config key it comes from.
-pub fn geometry_error(c: &Contact, e: &GeometryError) -> BuildError {
+pub fn geometry_error(c: &ContactSpec, e: &GeometryError) -> BuildError {
     let p = match *e {
         GeometryError::NotFinite { parameter }
         | GeometryError::Negative { parameter, .. }
@@ -51,29 +52,11 @@ pub fn geometry_error(c: &Contact, e: &GeometryError) -> BuildError {
     BuildError::new(key, e)
 }
 
-fn missing(c: &Contact, k: &str) -> BuildError {
+fn missing(c: &ContactSpec, k: &str) -> BuildError {
     BuildError::new(
         "contact.shape",
         format!("shape '{}' needs contact.{k}", c.shape.name()),
     )
-}
-
-/// Smallest distance from the disc axis (origin) to a polygon's outline, m.
-fn polygon_min_radius(vs: &[Point]) -> f64 {
-    let n = vs.len();
-    (0..n)
-        .filter_map(|i| Some((vs.get(i)?, vs.get((i + 1) % n)?)))
-        .map(|(a, b)| {
-            let (dx, dy) = (b.x_m - a.x_m, b.y_m - a.y_m);
-            let len2 = dx * dx + dy * dy;
-            let t = if len2 > 0.0 {
-                (-(a.x_m * dx + a.y_m * dy) / len2).clamp(0.0, 1.0)
-            } else {
-                0.0
-            };
-            (a.x_m + t * dx).hypot(a.y_m + t * dy)
-        })
-        .fold(f64::INFINITY, f64::min)
 }
 
 /// Build the core's [`Contact`](CoreContact) of a config and hand it to `f` (a polygon pad
@@ -86,7 +69,7 @@ fn polygon_min_radius(vs: &[Point]) -> f64 {
 /// # Errors
 /// [`BuildError`] naming the contact key the core rejected.
 pub fn with_contact<T>(
-    c: &Contact,
+    c: &ContactSpec,
     f: impl FnOnce(&CoreContact<'_>) -> Result<T, BuildError>,
 ) -> Result<T, BuildError> {
     let ge = |e: GeometryError| geometry_error(c, &e);
@@ -101,10 +84,10 @@ pub fn with_contact<T>(
         ))
     };
     match c.shape {
-        Shape::Annulus | Shape::Cone => {
+        ShapeSpec::Annulus | ShapeSpec::Cone => {
             let (ri, ro) = radii()?;
             let cone = match c.shape {
-                Shape::Cone => Some(
+                ShapeSpec::Cone => Some(
                     c.half_angle_deg
                         .ok_or_else(|| missing(c, "half_angle_deg"))?
                         .to_radians(),
@@ -114,7 +97,7 @@ pub fn with_contact<T>(
             let shape = CoreShape::Annulus(Annulus::new(ri, ro).map_err(ge)?);
             f(&CoreContact::new(shape, faces, cone).map_err(ge)?)
         }
-        Shape::Sector => {
+        ShapeSpec::Sector => {
             let (ri, ro) = radii()?;
             let angle = c
                 .sector_angle_deg
@@ -124,29 +107,27 @@ pub fn with_contact<T>(
             let pad = SectorPad::new(&disc, ri, ro, angle).map_err(ge)?;
             f(&CoreContact::new(pad, faces, None).map_err(ge)?)
         }
-        Shape::Button => {
+        ShapeSpec::Button => {
             let r = c.pad_radius_m.ok_or_else(|| missing(c, "pad_radius_m"))?;
             let e = c
                 .pad_centre_radius_m
                 .ok_or_else(|| missing(c, "pad_centre_radius_m"))?;
             let model = match c.button_model.ok_or_else(|| missing(c, "button_model"))? {
-                ButtonModelName::PublishedTable => ButtonModel::PublishedTable,
-                ButtonModelName::Integrated => ButtonModel::Integrated,
+                ButtonModelSpec::PublishedTable => ButtonModel::PublishedTable,
+                ButtonModelSpec::Integrated => ButtonModel::Integrated,
             };
             let disc = Disc::new(e - r, e + r).map_err(ge)?;
             let pad = ButtonPad::new(&disc, r, e, model).map_err(ge)?;
             f(&CoreContact::new(pad, faces, None).map_err(ge)?)
         }
-        Shape::Polygon => {
-            let vs: Vec<Point> = c
+        ShapeSpec::Polygon => {
+            let outline = c
                 .vertices_m
                 .as_deref()
-                .ok_or_else(|| missing(c, "vertices_m"))?
-                .iter()
-                .map(|p| Point::new(p[0], p[1]))
-                .collect();
-            let r_max = vs.iter().map(|p| p.x_m.hypot(p.y_m)).fold(0.0, f64::max);
-            let disc = Disc::new(polygon_min_radius(&vs), r_max).map_err(ge)?;
+                .ok_or_else(|| missing(c, "vertices_m"))?;
+            let vs: Vec<Point> = outline.iter().map(|p| Point::new(p[0], p[1])).collect();
+            let disc = Disc::new(polygon::min_radius(outline), polygon::max_radius(outline))
+                .map_err(ge)?;
             let pad = PolygonPad::new(&disc, &vs).map_err(ge)?;
             f(&CoreContact::new(pad, faces, None).map_err(ge)?)
         }
@@ -167,7 +148,7 @@ pub fn with_contact<T>(
 /// // Demo sector pad 0.52 … 0.68 m [pub: Shigley ch. 16]: r_uw = (Ro + Ri)/2.
 /// assert!((uw - 0.60).abs() < 1e-12 && up > uw);
 /// ```
-pub fn contact_radii(c: &Contact) -> Result<(f64, f64), BuildError> {
+pub fn contact_radii(c: &ContactSpec) -> Result<(f64, f64), BuildError> {
     with_contact(c, |k| {
         let arm = |b: f64| k.lever_arm(b).map_err(|e| geometry_error(c, &e));
         Ok((arm(0.0)?, arm(1.0)?))
@@ -180,14 +161,14 @@ mod tests {
     use super::*;
     use approx::assert_relative_eq;
 
-    fn contact(shape: Shape) -> Contact {
-        Contact::of_shape(shape, 1)
+    fn contact(shape: ShapeSpec) -> ContactSpec {
+        ContactSpec::of_shape(shape, 1)
     }
 
     #[test]
     fn annulus_check_vector() {
         // [calc] REFERENCES.md: Ro = 100 mm, Ri = 60 mm → r_uw = 80.000 mm, r_up = 81.667 mm.
-        let mut c = contact(Shape::Annulus);
+        let mut c = contact(ShapeSpec::Annulus);
         c.inner_radius_m = Some(0.06);
         c.outer_radius_m = Some(0.10);
         let (up, uw) = contact_radii(&c).unwrap();
@@ -198,7 +179,7 @@ mod tests {
     #[test]
     fn cone_divides_by_sin_alpha() {
         // [pub: Shigley ch. 16] uniform wear T/(μF) = (Do + Di)/(4 sin α).
-        let mut c = contact(Shape::Cone);
+        let mut c = contact(ShapeSpec::Cone);
         c.inner_radius_m = Some(0.08);
         c.outer_radius_m = Some(0.10);
         c.half_angle_deg = Some(12.0);
@@ -214,12 +195,12 @@ mod tests {
     fn button_models_are_both_offered() {
         // [mem: Shigley ch. 16, after Fazekas] published δ(R/e = 0.3) = 0.957; [calc]
         // REFERENCES.md integrated p ∝ 1/r: 0.9885 — kept apart, never tuned to agree.
-        let mut c = contact(Shape::Button);
+        let mut c = contact(ShapeSpec::Button);
         c.pad_radius_m = Some(0.03);
         c.pad_centre_radius_m = Some(0.1);
-        c.button_model = Some(ButtonModelName::PublishedTable);
+        c.button_model = Some(ButtonModelSpec::PublishedTable);
         assert_relative_eq!(contact_radii(&c).unwrap().1 / 0.1, 0.957, epsilon = 1e-9);
-        c.button_model = Some(ButtonModelName::Integrated);
+        c.button_model = Some(ButtonModelSpec::Integrated);
         assert_relative_eq!(contact_radii(&c).unwrap().1 / 0.1, 0.9885, epsilon = 1e-4);
     }
 
@@ -228,7 +209,7 @@ mod tests {
         // Reference: the gauss-quad crate's Gauss–Legendre rule (degree 20 per axis) over a
         // square pad, ∫r dA and ∫(1/r) dA.
         use gauss_quad::GaussLegendre;
-        let mut c = contact(Shape::Polygon);
+        let mut c = contact(ShapeSpec::Polygon);
         c.vertices_m = Some(vec![[0.5, -0.05], [0.6, -0.05], [0.6, 0.05], [0.5, 0.05]]);
         let (up, uw) = contact_radii(&c).unwrap();
         let gl = GaussLegendre::new(std::num::NonZeroUsize::new(20).unwrap());
@@ -242,10 +223,10 @@ mod tests {
 
     #[test]
     fn geometry_errors_name_the_config_key() {
-        let mut c = contact(Shape::Button);
+        let mut c = contact(ShapeSpec::Button);
         c.pad_radius_m = Some(0.06);
         c.pad_centre_radius_m = Some(0.1);
-        c.button_model = Some(ButtonModelName::PublishedTable);
+        c.button_model = Some(ButtonModelSpec::PublishedTable);
         // R/e = 0.6 lies beyond the published table (0 … 0.5).
         let e = contact_radii(&c).unwrap_err();
         assert_eq!(e.key, "contact.pad_radius_m", "{e}");

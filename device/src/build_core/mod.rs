@@ -1,4 +1,4 @@
-//! Config → core: the one place where a loaded [`DeviceConfig`]
+//! Config → core: the one place where a loaded [`DeviceSpec`]
 //! becomes the core's fixed-point tables ([`CoreTables`]) and the core's whole validated
 //! `clampwise_core::config::DeviceConfig` ([`CoreDevice`]).
 //!
@@ -53,12 +53,12 @@ pub use tables::CoreTables;
 
 use clampwise_core::adapt::AdaptState;
 use clampwise_core::config::DeviceParts;
-use clampwise_core::record::{RECORD_LEN, StateRecord};
+use clampwise_core::state_record::{RECORD_LEN, StateRecord};
 use clampwise_core::thermal::ThermalState;
 use clampwise_core::units::{Celsius, Joules, Ratio, Seconds};
 use clampwise_core::wear::WearState;
 
-use crate::config::DeviceConfig;
+use crate::schema::DeviceSpec;
 
 /// Capacity of each μ table axis (temperature and slip-speed breakpoints).
 pub const MU_POINTS: usize = 8;
@@ -101,14 +101,16 @@ impl std::fmt::Display for BuildError {
 
 impl std::error::Error for BuildError {}
 
-/// The core's device configuration with this crate's table capacities.
-pub type Device<const C: usize> = clampwise_core::config::DeviceConfig<
-    C,
+/// The core's tables at this crate's capacities.
+pub type HostTables = clampwise_core::config::Tables<
     RADIUS_FORCE_POINTS,
     RADIUS_BEDDING_POINTS,
     MU_POINTS,
     MU_POINTS,
 >;
+
+/// The core's device configuration with this crate's table capacities.
+pub type Device<const C: usize> = clampwise_core::config::DeviceConfig<HostTables, C>;
 
 /// A core device of 1, 2, 3 or 4 force channels.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -131,6 +133,17 @@ impl ChannelDevice {
             Self::Two(_) => 2,
             Self::Three(_) => 3,
             Self::Four(_) => 4,
+        }
+    }
+
+    /// The core's `DeviceConfig::checksum`: the one checksum of a device, which a firmware
+    /// compares with the generated `DEVICE_CHECKSUM`.
+    pub fn checksum(&self) -> u32 {
+        match self {
+            Self::One(d) => d.checksum(),
+            Self::Two(d) => d.checksum(),
+            Self::Three(d) => d.checksum(),
+            Self::Four(d) => d.checksum(),
         }
     }
 }
@@ -188,7 +201,7 @@ pub struct CoreDevice {
 }
 
 fn build_device<const C: usize>(
-    c: &DeviceConfig,
+    c: &DeviceSpec,
     tables: &CoreTables,
 ) -> Result<Device<C>, BuildError> {
     let period = c.device.sample_period_s;
@@ -198,8 +211,7 @@ fn build_device<const C: usize>(
         thermal_wear_every: c.device.thermal_wear_every,
         faces: u8::try_from(c.contact.faces)
             .map_err(|_| BuildError::new("contact.faces", "must be within 1 … 255"))?,
-        radius: tables.radius,
-        friction: parts::friction(c, tables.mu)?,
+        tables: HostTables::new(tables.radius, parts::friction(c, tables.mu)?),
         thermal: parts::thermal(c)?,
         wear: parts::wear(c)?,
         sensor: parts::sensor::<C>(c)?,
@@ -207,7 +219,7 @@ fn build_device<const C: usize>(
         limits: parts::limits(c)?,
         tolerances: parts::tolerances(c)?,
     };
-    clampwise_core::config::DeviceConfig::new(parts).map_err(parts::config_error)
+    clampwise_core::config::DeviceConfig::from_parts(parts).map_err(parts::config_error)
 }
 
 impl CoreDevice {
@@ -216,7 +228,7 @@ impl CoreDevice {
     ///
     /// # Errors
     /// [`BuildError`] naming the config key the core rejected.
-    pub fn build(c: &DeviceConfig) -> Result<Self, BuildError> {
+    pub fn build(c: &DeviceSpec) -> Result<Self, BuildError> {
         let tables = CoreTables::build(c)?;
         let device = match c.sensors.len() {
             1 => ChannelDevice::One(build_device::<1>(c, &tables)?),
@@ -254,7 +266,7 @@ mod tests {
     use clampwise_core::estimator::{Estimator, Inputs};
     use clampwise_core::units::RadPerSec;
 
-    fn demo() -> DeviceConfig {
+    fn demo() -> DeviceSpec {
         LoadedConfig::from_str(crate::DEMO_CONFIG, "demo.toml")
             .unwrap()
             .config
@@ -273,8 +285,8 @@ mod tests {
         // RadPerSec from the centre/width rounding).
         let lsb = RadPerSec::from_bits(1);
         let near = |a: RadPerSec, b: f64| (a - RadPerSec::from_num(b)).abs() <= lsb;
-        assert!(near(d.friction().stick_threshold(), 0.02));
-        assert!(near(d.friction().slip_threshold(), 0.03));
+        assert!(near(d.tables().friction().stick_threshold(), 0.02));
+        assert!(near(d.tables().friction().slip_threshold(), 0.03));
         assert!(dev.initial.is_new());
         assert!(d.adapt().is_none());
     }
@@ -306,7 +318,7 @@ mod tests {
         // A filter cut-off so low that the core's filter coefficient underflows.
         let i = core_issue("filter_cutoff_hz = 50.0", "filter_cutoff_hz = 0.0000001");
         assert_eq!(i.key.as_deref(), Some("sensing.filter_cutoff_hz"));
-        // The fallback must be less certain than a healthy channel: the schema checks it.
+        // The fallback must be less certain than a healthy channel: the core's sensor checks it.
         let i = core_issue("uncertainty_n = 3000.0", "uncertainty_n = 100.0");
         assert_eq!(i.key.as_deref(), Some("actuator.uncertainty_n"));
     }

@@ -32,14 +32,14 @@ use fixed::types::extra::LeEqU32;
 
 use super::tables::fixed_of;
 use super::{BuildError, MuTable};
-use crate::config::{CombinationName, DeviceConfig};
+use crate::schema::{CombinationSpec, DeviceSpec};
 
-/// Control-loop rate in whole hertz (the config checks that 1/period is one).
+/// Control-loop rate in whole hertz, 1/period rounded (the core checks that rate · period is 1 s).
 ///
 /// # Errors
 /// [`BuildError`] on `device.sample_period_s` when 1/period is not a positive `u32`.
-pub fn sample_rate_hz(c: &DeviceConfig) -> Result<u32, BuildError> {
-    let rate = (1.0 / c.device.sample_period_s).round();
+pub fn sample_rate_hz(c: &DeviceSpec) -> Result<u32, BuildError> {
+    let rate = libm::round(1.0 / c.device.sample_period_s);
     if rate.is_finite() && rate >= 1.0 && rate <= f64::from(u32::MAX) {
         // In range by the test above, and a whole number after `round`.
         #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
@@ -66,7 +66,7 @@ fn count_u16(key: &str, n: u32) -> Result<u16, BuildError> {
 /// # Errors
 /// [`BuildError`] naming the `friction.*` key the core rejected.
 pub fn friction(
-    c: &DeviceConfig,
+    c: &DeviceSpec,
     mu: MuTable,
 ) -> Result<FrictionConfig<{ super::MU_POINTS }, { super::MU_POINTS }>, BuildError> {
     let f = &c.friction;
@@ -138,7 +138,7 @@ fn thermal_key(field: &str) -> &'static str {
 ///
 /// # Errors
 /// [`BuildError`] naming the `thermal.*` key the core rejected.
-pub fn thermal(c: &DeviceConfig) -> Result<ThermalConfig, BuildError> {
+pub fn thermal(c: &DeviceSpec) -> Result<ThermalConfig, BuildError> {
     let t = &c.thermal;
     let cooling = match (
         t.cooling_time_constant_s,
@@ -154,9 +154,9 @@ pub fn thermal(c: &DeviceConfig) -> Result<ThermalConfig, BuildError> {
             ));
         }
     };
+    // The thermal model advances once per sub-rate interval.
+    let dt = c.device.sample_period_s * f64::from(c.device.thermal_wear_every);
     let p = ThermalParams {
-        // The thermal model advances once per sub-rate interval.
-        dt: c.device.sample_period_s * f64::from(c.device.thermal_wear_every),
         // Only the product m·c enters the model.
         rotor_mass: t.rotor_heat_capacity_j_per_k,
         rotor_specific_heat: 1.0,
@@ -177,7 +177,7 @@ pub fn thermal(c: &DeviceConfig) -> Result<ThermalConfig, BuildError> {
             max_rate: m.max_rate_k_per_s,
         }),
     };
-    ThermalConfig::new(&p).map_err(|e| {
+    ThermalConfig::new(&p, dt).map_err(|e| {
         let key = match e {
             ThermalError::NotRepresentable { field }
             | ThermalError::NotPositive { field }
@@ -193,6 +193,11 @@ pub fn thermal(c: &DeviceConfig) -> Result<ThermalConfig, BuildError> {
                 }
             }
             ThermalError::FlagThresholds => "thermal.over_temperature_c",
+            ThermalError::MeasuredLimits
+                if t.measured.as_ref().is_some_and(|m| m.max_c <= m.min_c) =>
+            {
+                "thermal.measured.max_c"
+            }
             ThermalError::MeasuredLimits => "thermal.measured.max_rate_k_per_s",
             _ => "thermal",
         };
@@ -204,17 +209,16 @@ pub fn thermal(c: &DeviceConfig) -> Result<ThermalConfig, BuildError> {
 ///
 /// # Errors
 /// [`BuildError`] naming the `wear.*` key the core rejected.
-pub fn wear(c: &DeviceConfig) -> Result<WearConfig, BuildError> {
+pub fn wear(c: &DeviceSpec) -> Result<WearConfig, BuildError> {
     let w = &c.wear;
     let p = WearParams {
-        dt: c.device.sample_period_s,
         bedding_energy: w.bedding_energy_j,
         specific_wear_rate: w.specific_wear_rate_m3_per_j,
         lining_area: f64::from(c.contact.faces) * w.pad_area_m2,
         initial_thickness: w.lining_thickness_m,
         minimum_thickness: w.minimum_thickness_m,
     };
-    WearConfig::new(&p).map_err(|e| {
+    WearConfig::new(&p, c.device.sample_period_s).map_err(|e| {
         let key = match e {
             WearError::DtOutOfRange => "device.sample_period_s",
             WearError::BeddingEnergyOutOfRange
@@ -286,7 +290,7 @@ fn sensor_key(e: &SensorError) -> String {
 /// # Errors
 /// [`BuildError`] naming the `sensor[i].*`, `sensing.*` or `actuator.*` key the core
 /// rejected, or `sensor` when the config has another number of channels than `C`.
-pub fn sensor<const C: usize>(c: &DeviceConfig) -> Result<SensorConfig<C>, BuildError> {
+pub fn sensor<const C: usize>(c: &DeviceSpec) -> Result<SensorConfig<C>, BuildError> {
     let rate = sample_rate_hz(c)?;
     let mut channels = Vec::with_capacity(C);
     for (i, s) in c.sensors.iter().enumerate() {
@@ -376,7 +380,7 @@ pub fn sensor<const C: usize>(c: &DeviceConfig) -> Result<SensorConfig<C>, Build
 ///
 /// # Errors
 /// [`BuildError`] naming the `adaptation.*` key the core rejected.
-pub fn adapt(c: &DeviceConfig) -> Result<Option<AdaptConfig>, BuildError> {
+pub fn adapt(c: &DeviceSpec) -> Result<Option<AdaptConfig>, BuildError> {
     let a = &c.adaptation;
     if !a.enabled {
         return Ok(None);
@@ -406,7 +410,7 @@ pub fn adapt(c: &DeviceConfig) -> Result<Option<AdaptConfig>, BuildError> {
 ///
 /// # Errors
 /// [`BuildError`] on a force that does not fit `Newtons`.
-pub fn limits(c: &DeviceConfig) -> Result<Limits, BuildError> {
+pub fn limits(c: &DeviceSpec) -> Result<Limits, BuildError> {
     Ok(Limits {
         touch_force: fx::<_>("limits.touch_force_n", c.limits.touch_force_n)?,
         adapt_min_force: fx::<_>(
@@ -420,7 +424,7 @@ pub fn limits(c: &DeviceConfig) -> Result<Limits, BuildError> {
 ///
 /// # Errors
 /// [`BuildError`] on a tolerance that does not fit `Ratio`.
-pub fn tolerances(c: &DeviceConfig) -> Result<Tolerances, BuildError> {
+pub fn tolerances(c: &DeviceSpec) -> Result<Tolerances, BuildError> {
     Ok(Tolerances {
         mu: fx::<_>("friction.mu_tolerance_ratio", c.friction.mu_tolerance_ratio)?,
         radius: fx::<_>(
@@ -428,8 +432,8 @@ pub fn tolerances(c: &DeviceConfig) -> Result<Tolerances, BuildError> {
             c.contact.radius_tolerance_ratio,
         )?,
         combination: match c.uncertainty.combination {
-            CombinationName::WorstCase => Combination::WorstCase,
-            CombinationName::RootSumSquare => Combination::RootSumSquare,
+            CombinationSpec::WorstCase => Combination::WorstCase,
+            CombinationSpec::RootSumSquare => Combination::RootSumSquare,
         },
     })
 }

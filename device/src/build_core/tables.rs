@@ -9,7 +9,7 @@ use fixed::types::extra::{LeEqU32, U8, U16};
 
 use super::contact::{geometry_error, with_contact};
 use super::{BuildError, MU_POINTS, MuTable, RADIUS_BEDDING, RADIUS_FORCE_POINTS, RadiusTable};
-use crate::config::DeviceConfig;
+use crate::schema::DeviceSpec;
 
 /// The fixed-point tables of one device, with their real (unpadded) sizes.
 #[derive(Debug, Clone)]
@@ -83,7 +83,7 @@ impl CoreTables {
     /// # Errors
     /// [`BuildError`] naming the key whose value the core rejects or that does not fit the
     /// fixed-point format.
-    pub fn build(c: &DeviceConfig) -> Result<Self, BuildError> {
+    pub fn build(c: &DeviceSpec) -> Result<Self, BuildError> {
         let mu = &c.friction.mu;
         let (nt, nv) = (mu.temperature_c.len(), mu.slip_speed_rad_s.len());
         let tx = padded_axis::<U16, MU_POINTS>("friction.mu.temperature_c", &mu.temperature_c)?;
@@ -103,7 +103,7 @@ impl CoreTables {
                 *cell = fixed_of(&format!("friction.mu.values[{si}][{sj}]"), v)?;
             }
         }
-        let mu_table = Table2::new(tx, vy, z).map_err(|e| table_error("friction.mu", e))?;
+        let mu_table = Table2::from_bits(tx, vy, z).map_err(|e| table_error("friction.mu", e))?;
 
         let rt = &c.radius_table;
         let nf = rt.force_n.len();

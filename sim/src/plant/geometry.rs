@@ -16,8 +16,8 @@
 // Host-only numerics: every index is bounded by the loop that produces it.
 #![allow(clippy::indexing_slicing)]
 
-use crate::config::{Contact, Shape};
 use crate::portable_math::powi;
+use crate::schema::{ContactSpec, ShapeSpec};
 
 /// Gauss–Legendre rule on [−1, 1].
 #[derive(Debug, Clone)]
@@ -88,15 +88,15 @@ impl GaussLegendre {
 ///
 /// # Errors
 /// A message when the shape's keys are missing.
-pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
+pub fn effective_radii(c: &ContactSpec) -> Result<(f64, f64), String> {
     let gl = GaussLegendre::new(24);
     let need = |v: Option<f64>, k: &str| v.ok_or_else(|| format!("contact.{k} missing"));
     // Returns (∫p·r dA, ∫p dA) for both pressure models.
     let moments: [(f64, f64); 2] = match c.shape {
-        Shape::Annulus | Shape::Sector => {
+        ShapeSpec::Annulus | ShapeSpec::Sector => {
             let ri = need(c.inner_radius_m, "inner_radius_m")?;
             let ro = need(c.outer_radius_m, "outer_radius_m")?;
-            let angle = if c.shape == Shape::Sector {
+            let angle = if c.shape == ShapeSpec::Sector {
                 need(c.sector_angle_deg, "sector_angle_deg")?.to_radians()
             } else {
                 std::f64::consts::TAU
@@ -113,7 +113,7 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
                 (polar(&uw, 1), polar(&uw, 0)),
             ]
         }
-        Shape::Button => {
+        ShapeSpec::Button => {
             let rp = need(c.pad_radius_m, "pad_radius_m")?;
             let e = need(c.pad_centre_radius_m, "pad_centre_radius_m")?;
             let local = |p: &dyn Fn(f64) -> f64, k: i32| {
@@ -132,7 +132,7 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
                 (local(&uw, 1), local(&uw, 0)),
             ]
         }
-        Shape::Polygon => {
+        ShapeSpec::Polygon => {
             let vs = c
                 .vertices_m
                 .as_deref()
@@ -161,7 +161,7 @@ pub fn effective_radii(c: &Contact) -> Result<(f64, f64), String> {
             let uw = |r: f64| 1.0 / r;
             [(fan(&up, 1), fan(&up, 0)), (fan(&uw, 1), fan(&uw, 0))]
         }
-        Shape::Cone => {
+        ShapeSpec::Cone => {
             let ri = need(c.inner_radius_m, "inner_radius_m")?;
             let ro = need(c.outer_radius_m, "outer_radius_m")?;
             let alpha = need(c.half_angle_deg, "half_angle_deg")?.to_radians();
@@ -193,8 +193,8 @@ mod tests {
     use super::*;
     use approx::assert_relative_eq;
 
-    fn contact(shape: Shape) -> Contact {
-        Contact::of_shape(shape, 1)
+    fn contact(shape: ShapeSpec) -> ContactSpec {
+        ContactSpec::of_shape(shape, 1)
     }
 
     #[test]
@@ -220,7 +220,7 @@ mod tests {
     fn annulus_and_sector_check_vector() {
         // [calc] REFERENCES.md: Ro = 100 mm, Ri = 60 mm → uniform wear 80.000 mm, uniform
         // pressure 81.667 mm; the sector angle cancels out [pub: Shigley ch. 16].
-        for (shape, angle) in [(Shape::Annulus, None), (Shape::Sector, Some(37.0))] {
+        for (shape, angle) in [(ShapeSpec::Annulus, None), (ShapeSpec::Sector, Some(37.0))] {
             let mut c = contact(shape);
             c.inner_radius_m = Some(0.06);
             c.outer_radius_m = Some(0.10);
@@ -235,7 +235,7 @@ mod tests {
     fn cone_matches_published_torque() {
         // [pub: Shigley ch. 16] T = μF(Do³−Di³)/(3 sin α (Do²−Di²)) uniform pressure,
         // T = μF(Do+Di)/(4 sin α) uniform wear.
-        let mut c = contact(Shape::Cone);
+        let mut c = contact(ShapeSpec::Cone);
         c.inner_radius_m = Some(0.05);
         c.outer_radius_m = Some(0.08);
         c.half_angle_deg = Some(12.0);
@@ -256,7 +256,7 @@ mod tests {
         // pressure: mean of r over the circle.
         let expected = [0.9987, 0.9949, 0.9885, 0.9791, 0.9665];
         for (k, d) in expected.iter().enumerate() {
-            let mut c = contact(Shape::Button);
+            let mut c = contact(ShapeSpec::Button);
             c.pad_centre_radius_m = Some(0.2);
             c.pad_radius_m = Some(0.2 * 0.1 * (k as f64 + 1.0));
             let (_, uw) = effective_radii(&c).unwrap();
@@ -279,7 +279,7 @@ mod tests {
             let t = -half + 2.0 * half * f64::from(i) / f64::from(n);
             vs.push([ri * t.cos(), ri * t.sin()]);
         }
-        let mut c = contact(Shape::Polygon);
+        let mut c = contact(ShapeSpec::Polygon);
         c.vertices_m = Some(vs);
         let (up, uw) = effective_radii(&c).unwrap();
         assert_relative_eq!(uw, 0.080, max_relative = 2e-4);
@@ -292,24 +292,24 @@ mod tests {
         // geometry (closed forms, Green's theorem, its own quadrature), as the table builder
         // uses it.
         let mut shapes = Vec::new();
-        let mut a = contact(Shape::Annulus);
+        let mut a = contact(ShapeSpec::Annulus);
         a.inner_radius_m = Some(0.1);
         a.outer_radius_m = Some(0.18);
         shapes.push(a.clone());
         let mut s = a.clone();
-        s.shape = Shape::Sector;
+        s.shape = ShapeSpec::Sector;
         s.sector_angle_deg = Some(45.0);
         shapes.push(s);
         let mut c = a;
-        c.shape = Shape::Cone;
+        c.shape = ShapeSpec::Cone;
         c.half_angle_deg = Some(15.0);
         shapes.push(c);
-        let mut b = contact(Shape::Button);
+        let mut b = contact(ShapeSpec::Button);
         b.pad_radius_m = Some(0.04);
         b.pad_centre_radius_m = Some(0.15);
-        b.button_model = Some(crate::config::ButtonModelName::Integrated);
+        b.button_model = Some(crate::schema::ButtonModelSpec::Integrated);
         shapes.push(b);
-        let mut p = contact(Shape::Polygon);
+        let mut p = contact(ShapeSpec::Polygon);
         p.vertices_m = Some(vec![
             [0.3, -0.05],
             [0.42, -0.07],

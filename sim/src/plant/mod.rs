@@ -17,7 +17,7 @@ pub mod geometry;
 pub mod rng;
 pub mod scenario;
 
-use crate::config::{DeviceConfig, DeviceKind, MuTableSpec};
+use crate::schema::{DeviceKind, DeviceSpec, MuTableSpec};
 use faults::{Fault, FaultKind, SPIKE_PERIOD_SAMPLES};
 use rng::Rng;
 use scenario::ScenarioPoint;
@@ -177,7 +177,7 @@ impl Plant {
     ///
     /// # Errors
     /// A message when the geometry cannot be integrated.
-    pub fn new(c: &DeviceConfig, opts: PlantOptions) -> Result<Self, String> {
+    pub fn new(c: &DeviceSpec, opts: PlantOptions) -> Result<Self, String> {
         let (r_up, r_uw) = geometry::effective_radii(&c.contact)?;
         let th = &c.thermal;
         let tau = match (
@@ -444,7 +444,7 @@ mod tests {
     use crate::config::LoadedConfig;
     use approx::assert_relative_eq;
 
-    fn demo() -> DeviceConfig {
+    fn demo() -> DeviceSpec {
         LoadedConfig::from_str(include_str!("../../configs/demo-hoist-brake.toml"), "d")
             .unwrap()
             .config

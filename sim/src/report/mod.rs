@@ -28,7 +28,6 @@ use crate::build_core::CoreDevice;
 use crate::commands::{Outcome, bar};
 use crate::compare::{CompareReport, Comparer, GateSpec};
 use crate::config::LoadedConfig;
-use crate::emit;
 use crate::error::SimError;
 use crate::estimate::EstimateReader;
 use crate::fit::CellReport;
@@ -86,8 +85,8 @@ pub struct ReportData {
     pub device_kind: String,
     /// The config file.
     pub config: Provenance,
-    /// CRC-32 of the tables built from the config (as `tables` prints and emits it).
-    pub tables_checksum: u32,
+    /// The core's `DeviceConfig::checksum` of the config (as `tables` prints and emits it).
+    pub device_checksum: u32,
     /// Program name and version.
     pub tool: String,
     /// The estimator behind the estimates.
@@ -198,7 +197,7 @@ pub fn run(a: &ReportArgs, quiet: bool) -> Result<Outcome, SimError> {
         device: cfg.config.device.name.clone(),
         device_kind: format!("{:?}", cfg.config.device.kind),
         config,
-        tables_checksum: emit::tables_checksum(&core.tables),
+        device_checksum: core.device.checksum(),
         tool: format!("clampwise {}", env!("CARGO_PKG_VERSION")),
         estimator: ESTIMATOR_NAME.to_string(),
         window,
@@ -217,7 +216,7 @@ pub fn run(a: &ReportArgs, quiet: bool) -> Result<Outcome, SimError> {
         "command": "report",
         "file": a.out,
         "config": {"file": data.config.file, "sha256": data.config.sha256,
-                   "tables_checksum": format!("0x{:08X}", data.tables_checksum)},
+                   "device_checksum": format!("0x{:08X}", data.device_checksum)},
         "inputs": data.estimates.iter().map(|s| json!({
             "file": s.provenance.file, "sha256": s.provenance.sha256, "bytes": s.provenance.bytes,
             "rows": s.rows, "rows_in_window": s.rows_in_window, "time_span_s": s.time_span_s,

@@ -253,8 +253,8 @@ fn device_section(o: &mut String, d: &ReportData) {
                 format!("<code>{}</code>", escape(&d.config.sha256)),
             ],
             vec![
-                "tables checksum (CRC-32)".into(),
-                format!("<code>0x{:08X}</code>", d.tables_checksum),
+                "device checksum (CRC-32, the firmware's DEVICE_CHECKSUM)".into(),
+                format!("<code>0x{:08X}</code>", d.device_checksum),
             ],
             vec!["tool".into(), escape(&d.tool)],
             vec![
@@ -432,7 +432,7 @@ mod tests {
             device: format!("rig {HOSTILE}"),
             device_kind: "HoldingBrake".into(),
             config: prov("cfg.toml"),
-            tables_checksum: 0xDEAD_BEEF,
+            device_checksum: 0xDEAD_BEEF,
             tool: "clampwise 0.1.0".into(),
             estimator: "e".into(),
             window: TimeWindow::default(),

@@ -8,7 +8,7 @@
 )]
 
 use clampwise_core::adapt::AdaptConfig;
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
 use clampwise_core::geometry::{Annulus, Contact, build_radius_table};
@@ -20,7 +20,9 @@ use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
 use clampwise_core::units::{NewtonMetres, Newtons, Ratio, Seconds};
 use clampwise_core::wear::{WearConfig, WearParams};
 
-pub type Device<const C: usize> = DeviceConfig<C, 2, 2, 3, 3>;
+/// The test devices' tables: 2 × 2 radius, 3 × 3 μ.
+pub type TestTables = Tables<2, 2, 3, 3>;
+pub type Device<const C: usize> = DeviceConfig<TestTables, C>;
 
 pub const DT: f64 = 1e-3;
 /// Force channels report newtons directly: 1 count = 1/256 N (the Newtons LSB).
@@ -87,7 +89,6 @@ pub fn friction_params(spec: &Spec<'_>) -> FrictionParams {
 
 pub fn thermal_params() -> ThermalParams {
     ThermalParams {
-        dt: DT,
         rotor_mass: 8.0,
         rotor_specific_heat: 460.0,
         rotor_share: 0.9,
@@ -103,7 +104,6 @@ pub fn thermal_params() -> ThermalParams {
 
 pub fn wear_params() -> WearParams {
     WearParams {
-        dt: DT,
         bedding_energy: 5e6,
         specific_wear_rate: 4e-14,
         lining_area: 8e-3,
@@ -158,18 +158,16 @@ pub fn device<const C: usize>(spec: &Spec<'_>) -> Device<C> {
 /// thermal model built for `every` · DT).
 pub fn device_with_sub_rate<const C: usize>(spec: &Spec<'_>, every: u8) -> Device<C> {
     let radius = build_radius_table::<2, 2>(&spec.contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
-    let thermal = ThermalParams {
-        dt: DT * f64::from(every),
-        ..thermal_params()
-    };
     DeviceConfig::from_parts(DeviceParts {
         sample_period: Seconds::from_num(DT),
         thermal_wear_every: every,
         faces: spec.contact.faces(),
-        radius,
-        friction: FrictionConfig::new(mu_table(), &friction_params(spec)).unwrap(),
-        thermal: ThermalConfig::new(&thermal).unwrap(),
-        wear: WearConfig::new(&wear_params()).unwrap(),
+        tables: Tables::new(
+            radius,
+            FrictionConfig::new(mu_table(), &friction_params(spec)).unwrap(),
+        ),
+        thermal: ThermalConfig::new(&thermal_params(), DT * f64::from(every)).unwrap(),
+        wear: WearConfig::new(&wear_params(), DT).unwrap(),
         sensor: sensor_config::<C>(spec.fallback),
         adapt: spec.adapt.then(|| {
             AdaptConfig::new(0.7, 1.3, 0.995, NewtonMetres::from_num(5000), 0.02).unwrap()

@@ -4,8 +4,8 @@
 //! Sizes are set against the demo's sensing limits: vote tolerance 1.5 kN (two gauges agree
 //! within 3 kN), channel uncertainty ±400 N, noise band 200 N, range −2 … 90 kN.
 
-use clampwise_sim::config::DeviceConfig;
 use clampwise_sim::plant::faults::Fault;
+use clampwise_sim::schema::DeviceSpec;
 
 /// Every fault acts from this time to the end of the trace, s.
 pub const FAULT_START_S: f64 = 2.0;
@@ -19,11 +19,11 @@ pub struct FaultCase {
     /// Fewest gauges the fault needs.
     pub min_gauges: usize,
     /// The `--fault` specs for a device and a trace of `duration_s`.
-    pub specs: fn(&DeviceConfig, f64) -> Vec<String>,
+    pub specs: fn(&DeviceSpec, f64) -> Vec<String>,
 }
 
 /// Counts of channel `ch` (1-based) for `newtons`.
-fn counts(c: &DeviceConfig, ch: usize, newtons: f64) -> f64 {
+fn counts(c: &DeviceSpec, ch: usize, newtons: f64) -> f64 {
     newtons / c.sensors[ch - 1].gain_n_per_count
 }
 
@@ -35,12 +35,12 @@ fn window(ch: usize, kind: &str, duration_s: f64, value: Option<f64>) -> String 
     }
 }
 
-fn vote_tolerance(c: &DeviceConfig) -> f64 {
+fn vote_tolerance(c: &DeviceSpec) -> f64 {
     c.sensing.vote_tolerance_n
 }
 
 /// Offset of channel 1 drifting linearly to `ratio` × the vote tolerance at the trace's end.
-fn drift_to(c: &DeviceConfig, duration_s: f64, ratio: f64) -> Vec<String> {
+fn drift_to(c: &DeviceSpec, duration_s: f64, ratio: f64) -> Vec<String> {
     let rate_n_per_s = ratio * vote_tolerance(c) / (duration_s - FAULT_START_S);
     vec![window(
         1,
@@ -156,7 +156,7 @@ pub const CASES: &[FaultCase] = &[
 ];
 
 /// The parsed faults of a case for a device (the specs go through the simulator's parser).
-pub fn faults(case: &FaultCase, c: &DeviceConfig, duration_s: f64) -> Vec<Fault> {
+pub fn faults(case: &FaultCase, c: &DeviceSpec, duration_s: f64) -> Vec<Fault> {
     (case.specs)(c, duration_s)
         .iter()
         .map(|s| s.parse().unwrap_or_else(|e| panic!("{}: {e}", case.name)))

@@ -2,8 +2,9 @@
 //! an actuator model.
 
 use clampwise_sim::build_core::CoreDevice;
-use clampwise_sim::config::{DeviceConfig, LoadedConfig};
+use clampwise_sim::config::LoadedConfig;
 use clampwise_sim::demo::DEMO_CONFIG;
+use clampwise_sim::schema::DeviceSpec;
 
 /// What differs from the demo config besides the gauge count.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -32,7 +33,7 @@ impl Variant {
 pub struct Device {
     pub gauges: usize,
     pub variant: Variant,
-    pub config: DeviceConfig,
+    pub config: DeviceSpec,
     pub core: CoreDevice,
 }
 

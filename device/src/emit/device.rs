@@ -1,9 +1,9 @@
-//! A whole core [`DeviceConfig`] as Rust source of `const` items, for a firmware's `build.rs`.
+//! A whole core [`DeviceConfig`] as Rust source of `const` items.
 //!
 //! [`device_config_source`] writes the configuration as one `const` expression built from the
-//! core's `const` constructors ([`Table2::new`], [`FrictionConfig::from_fixed`],
-//! [`ThermalConfig::from_raw`], [`WearConfig::from_raw`], [`SensorConfig::new`],
-//! [`AdaptConfig::from_raw`], [`DeviceConfig::new`]) over raw integer bits, each wrapped in
+//! core's `const` constructors ([`Table2::from_bits`], [`FrictionConfig::from_bits`],
+//! [`ThermalConfig::from_bits`], [`WearConfig::from_bits`], [`SensorConfig::new`],
+//! [`AdaptConfig::from_bits`], [`Tables::new`], [`DeviceConfig::from_parts`]) over raw integer bits, each wrapped in
 //! `match … { Ok(c) => c, Err(_) => panic!(…) }`: the compiler evaluates it, the result sits in
 //! flash, and a configuration the core rejects fails the build with the part named. Raw bits
 //! mean no float is parsed or rounded on the way: the compiled constant equals the
@@ -18,7 +18,8 @@
 //! | `pub const DEVICE_CHANNELS: usize` | number of force channels `C` |
 //! | `pub const DEVICE_RADIUS_FORCES`, `DEVICE_RADIUS_BEDDINGS: usize` | radius-table sizes `NF`, `NB` |
 //! | `pub const DEVICE_MU_TEMPERATURES`, `DEVICE_MU_SPEEDS: usize` | μ-table sizes `NT`, `NV` |
-//! | `pub type Device` | `DeviceConfig<C, NF, NB, NT, NV>` with these sizes |
+//! | `pub type DeviceTables` | `Tables<NF, NB, NT, NV>` with these sizes |
+//! | `pub type Device` | `DeviceConfig<DeviceTables, C>` |
 //! | `pub const DEVICE: Device` | the configuration |
 //! | `pub const DEVICE_CHECKSUM: u32` | [`DeviceConfig::checksum`] computed on the host |
 //!
@@ -26,62 +27,44 @@
 //! `DEVICE_CHECKSUM`: equal digests mean the numbers in flash are the ones the host built.
 //!
 //! ```
-//! use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
-//! use clampwise_core::estimator::Combination;
-//! use clampwise_core::friction::{FrictionConfig, FrictionParams, MuTable};
-//! use clampwise_core::geometry::{Annulus, Contact, Shape, build_radius_table};
-//! use clampwise_core::sensor::*;
-//! use clampwise_core::thermal::{Cooling, ThermalConfig, ThermalParams};
-//! use clampwise_core::units::{Newtons, Ratio, Seconds};
-//! use clampwise_core::wear::{WearConfig, WearParams};
-//! use clampwise_device::emit_device::device_config_source;
+//! use clampwise_core::prelude::*;
+//! use clampwise_device::emit::device_config_source;
 //!
 //! // A fictional test-rig brake (demo numbers).
-//! let contact = Contact::new(Shape::Annulus(Annulus::new(0.060, 0.100)?), 2, None)?;
-//! let mu = MuTable::<1, 2>::from_f64(&[20.0], &[0.0, 100.0], &[[0.40, 0.38]])?;
-//! let device = DeviceConfig::new(DeviceParts {
-//!     sample_period: Seconds::lit("0.001"),
-//!     thermal_wear_every: 1,
-//!     faces: contact.faces(),
-//!     radius: build_radius_table::<2, 2>(&contact, &[0.0, 200e3], &[0.0, 1.0])?,
-//!     friction: FrictionConfig::new(mu, &FrictionParams {
-//!         static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
-//!         transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
-//!     })?,
-//!     thermal: ThermalConfig::new(&ThermalParams {
-//!         dt: 1e-3, rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
+//! let contact = Contact::new(Annulus::new(0.060, 0.100)?, 2, None)?;
+//! let device = DeviceConfig::new(&DeviceParams {
+//!     sample_period_s: 1e-3, thermal_wear_every: 1, faces: contact.faces(),
+//!     tables: Tables::<2, 2, 1, 2>::from_contact(
+//!         &contact, &[0.0, 200e3], &[0.0, 1.0], &[20.0], &[0.0, 100.0], &[[0.40, 0.38]],
+//!         &FrictionParams {
+//!             static_to_kinetic: 1.2, stick_speed: 0.05, stick_hysteresis: 0.04,
+//!             transition_speed: 0.5, viscous_drag: 0.0, no_load_drag: 0.0,
+//!         },
+//!     )?,
+//!     thermal: ThermalParams {
+//!         rotor_mass: 8.0, rotor_specific_heat: 460.0, rotor_share: 0.9,
 //!         cooling: Cooling::TimeConstant(600.0), ambient: 20.0, lining: None,
 //!         fade_warning: 350.0, over_temperature: 500.0, flag_hysteresis: 10.0, measured: None,
-//!     })?,
-//!     wear: WearConfig::new(&WearParams {
-//!         dt: 1e-3, bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
+//!     },
+//!     wear: WearParams {
+//!         bedding_energy: 5e6, specific_wear_rate: 4e-14, lining_area: 8e-3,
 //!         initial_thickness: 0.010, minimum_thickness: 0.002,
-//!     })?,
-//!     sensor: SensorConfig::new(
-//!         1000,
-//!         [ChannelCalibration {
-//!             gain: NewtonsPerCount::lit("0.01"), offset: Newtons::ZERO,
-//!             rails: AdcRails { low: -8_388_608, high: 8_388_607, margin: 8 }, temperature: None,
-//!         }],
-//!         LowPass::new(200.0, 1000)?,
-//!         DiagnosticLimits {
-//!             force_min: Newtons::lit("-2000"), force_max: Newtons::lit("60000"),
-//!             max_rate: NewtonsPerSecond::lit("5000000"), noise_band: Newtons::lit("20"),
-//!             stuck: None, debounce: DebounceSet::uniform(Debounce { raise_after: 3, clear_after: 10 }),
-//!             max_hold_samples: 2,
-//!         },
-//!         VotingLimits { tolerance: Newtons::lit("500"), channel_uncertainty: Newtons::lit("100") },
-//!         None,
-//!     )?,
+//!     },
+//!     sensor: SensorParams {
+//!         channels: [ChannelCalibration::linear(0.01, 0.0, AdcRails::signed_bits(24, 8))?],
+//!         filter_cutoff_hz: 200.0,
+//!         limits: DiagnosticLimits::new(-2000.0, 60_000.0, 5e6, 20.0)?,
+//!         voting: VotingLimits::new(500.0, 100.0)?,
+//!         fallback: None,
+//!     },
 //!     adapt: None,
-//!     limits: Limits { touch_force: Newtons::lit("100"), adapt_min_force: Newtons::lit("500") },
-//!     tolerances: Tolerances { mu: Ratio::lit("0.2"), radius: Ratio::lit("0.01"),
-//!         combination: Combination::WorstCase },
+//!     limits: Limits::new(100.0, 500.0)?,
+//!     tolerances: Tolerances::worst_case(0.2, 0.01)?,
 //! })?;
 //!
 //! let source = device_config_source(&device, "test-rig.toml")?;
 //! assert!(source.contains("pub const DEVICE: Device = {"));
-//! assert!(source.contains("ThermalConfig::from_raw(ThermalRaw {"));
+//! assert!(source.contains("ThermalConfig::from_bits(ThermalRaw {"));
 //! assert!(source.contains(&format!("pub const DEVICE_CHECKSUM: u32 = 0x{:08x};", device.checksum())));
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
@@ -89,7 +72,7 @@
 use std::fmt::{self, Write as _};
 
 use clampwise_core::adapt::{AdaptConfig, AdaptRaw};
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::FrictionConfig;
 use clampwise_core::sensor::{
@@ -101,39 +84,13 @@ use clampwise_core::units::RadPerSec;
 use clampwise_core::wear::{WearConfig, WearRaw};
 use fixed::types::extra::LeEqU32;
 
-/// Why a configuration could not be emitted.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub struct EmitError {
-    /// The part of the configuration concerned (`friction`, `thermal`, …, or `device`).
-    pub part: &'static str,
-    /// What went wrong.
-    pub message: String,
-}
-
-impl fmt::Display for EmitError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(
-            f,
-            "emitting the device config, {}: {}",
-            self.part, self.message
-        )
-    }
-}
-
-impl std::error::Error for EmitError {}
-
-fn err(part: &'static str, message: impl Into<String>) -> EmitError {
-    EmitError {
-        part,
-        message: message.into(),
-    }
-}
+use super::{EmitError, err};
 
 /// The stick speed and hysteresis that give back `f`'s slip and stick thresholds.
 ///
 /// The configuration keeps only the two band edges (`v_s ± ⌈h/2⌉`, the lower one at least one
 /// LSB), so `h` is found again as `2·⌈h/2⌉` or one less; the candidate is accepted only when
-/// [`FrictionConfig::from_fixed`] rebuilds `f` exactly.
+/// [`FrictionConfig::from_bits`] rebuilds `f` exactly.
 fn friction_band<const NT: usize, const NV: usize>(
     f: &FrictionConfig<NT, NV>,
 ) -> Result<(RadPerSec, RadPerSec), EmitError> {
@@ -148,7 +105,7 @@ fn friction_band<const NT: usize, const NV: usize>(
         half.saturating_mul(2).saturating_sub(1),
     ] {
         let h = RadPerSec::from_bits(h);
-        let rebuilt = FrictionConfig::from_fixed(
+        let rebuilt = FrictionConfig::from_bits(
             *f.mu_kinetic(),
             f.static_to_kinetic(),
             v_s,
@@ -170,18 +127,18 @@ fn friction_band<const NT: usize, const NV: usize>(
 /// Rebuild `cfg` through the same `const` constructors the emitted source calls, from the
 /// same values; the emitter writes nothing unless this gives `cfg` back exactly.
 fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
-    cfg: &DeviceConfig<C, NF, NB, NT, NV>,
+    cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
     band: (RadPerSec, RadPerSec),
-) -> Result<DeviceConfig<C, NF, NB, NT, NV>, EmitError> {
+) -> Result<DeviceConfig<Tables<NF, NB, NT, NV>, C>, EmitError> {
     fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
         part: &'static str,
         t: &Table2<X, Y, Z, NX, NY>,
     ) -> Result<Table2<X, Y, Z, NX, NY>, EmitError> {
-        Table2::new(*t.x_breakpoints(), *t.y_breakpoints(), *t.values())
+        Table2::from_bits(*t.x_breakpoints(), *t.y_breakpoints(), *t.values())
             .map_err(|e| err(part, e.to_string()))
     }
-    let fr = cfg.friction();
-    let friction = FrictionConfig::from_fixed(
+    let fr = cfg.tables().friction();
+    let friction = FrictionConfig::from_bits(
         table("friction.mu", fr.mu_kinetic())?,
         fr.static_to_kinetic(),
         band.0,
@@ -192,9 +149,8 @@ fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, co
     )
     .map_err(|e| err("friction", e.to_string()))?;
     let s = cfg.sensor();
-    let filter =
-        LowPass::from_coefficient_bits(s.filter().coefficient_bits(), s.filter().sample_rate_hz())
-            .map_err(|e| err("sensor.filter", e.to_string()))?;
+    let filter = LowPass::from_bits(s.filter().coefficient_bits(), s.filter().sample_rate_hz())
+        .map_err(|e| err("sensor.filter", e.to_string()))?;
     let sensor = SensorConfig::new(
         s.sample_rate_hz(),
         *s.channels(),
@@ -207,18 +163,17 @@ fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, co
     let adapt = match cfg.adapt() {
         None => None,
         Some(a) => {
-            Some(AdaptConfig::from_raw(a.to_raw()).map_err(|e| err("adaptation", e.to_string()))?)
+            Some(AdaptConfig::from_bits(a.to_raw()).map_err(|e| err("adaptation", e.to_string()))?)
         }
     };
-    DeviceConfig::new(DeviceParts {
+    DeviceConfig::from_parts(DeviceParts {
         sample_period: cfg.sample_period(),
         thermal_wear_every: cfg.thermal_wear_every(),
         faces: cfg.faces(),
-        radius: table("radius", cfg.radius_table())?,
-        friction,
-        thermal: ThermalConfig::from_raw(cfg.thermal().to_raw())
+        tables: Tables::new(table("radius", cfg.tables().radius())?, friction),
+        thermal: ThermalConfig::from_bits(cfg.thermal().to_raw())
             .map_err(|e| err("thermal", e.to_string()))?,
-        wear: WearConfig::from_raw(cfg.wear().to_raw()).map_err(|e| err("wear", e.to_string()))?,
+        wear: WearConfig::from_bits(cfg.wear().to_raw()).map_err(|e| err("wear", e.to_string()))?,
         sensor,
         adapt,
         limits: *cfg.limits(),
@@ -260,13 +215,13 @@ fn bits_list<T>(ty: &str, items: impl IntoIterator<Item = T>, bits: impl Fn(T) -
         .join(", ")
 }
 
-/// A `Table2::new(..)` call with the element types named.
+/// A `Table2::from_bits(..)` call with the element types named.
 fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
     what: &str,
     (tx, ty, tz): (&str, &str, &str),
     t: &Table2<X, Y, Z, NX, NY>,
 ) -> String {
-    let mut call = String::from("Table2::new(\n");
+    let mut call = String::from("Table2::from_bits(\n");
     let _ = writeln!(
         call,
         "    [{}],",
@@ -407,7 +362,7 @@ fn sensor<const C: usize>(s: &SensorConfig<C>) -> String {
     channels.push(']');
     let filter = checked(
         &format!(
-            "LowPass::from_coefficient_bits({}, {})",
+            "LowPass::from_bits({}, {})",
             s.filter().coefficient_bits(),
             s.filter().sample_rate_hz()
         ),
@@ -451,7 +406,7 @@ fn friction<const NT: usize, const NV: usize>(
         bits("ViscousDrag", f.viscous_drag().to_bits()),
         bits("NewtonMetres", f.no_load_drag().to_bits()),
     ];
-    let mut call = String::from("FrictionConfig::from_fixed(\n");
+    let mut call = String::from("FrictionConfig::from_bits(\n");
     for a in &args {
         let _ = writeln!(call, "    {},", nest(a, 1));
     }
@@ -490,7 +445,10 @@ fn thermal(t: &ThermalRaw) -> String {
             ("measured", option(measured)),
         ],
     );
-    checked(&format!("ThermalConfig::from_raw({raw})"), "thermal config")
+    checked(
+        &format!("ThermalConfig::from_bits({raw})"),
+        "thermal config",
+    )
 }
 
 fn wear(w: &WearRaw) -> String {
@@ -512,7 +470,7 @@ fn wear(w: &WearRaw) -> String {
             ),
         ],
     );
-    checked(&format!("WearConfig::from_raw({raw})"), "wear config")
+    checked(&format!("WearConfig::from_bits({raw})"), "wear config")
 }
 
 fn adapt(a: Option<&AdaptRaw>) -> String {
@@ -537,7 +495,7 @@ fn adapt(a: Option<&AdaptRaw>) -> String {
             ],
         );
         checked(
-            &format!("AdaptConfig::from_raw({raw})"),
+            &format!("AdaptConfig::from_bits({raw})"),
             "adaptation config",
         )
     }))
@@ -546,7 +504,7 @@ fn adapt(a: Option<&AdaptRaw>) -> String {
 /// The imports of the generated `const` block.
 const USES: &str = "\
 use ::clampwise_core::adapt::{AdaptConfig, AdaptRaw};
-use ::clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tolerances};
+use ::clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
 use ::clampwise_core::estimator::Combination;
 use ::clampwise_core::friction::{FrictionConfig, ViscousDrag};
 use ::clampwise_core::sensor::{
@@ -575,10 +533,10 @@ pub fn device_config_source<
     const NT: usize,
     const NV: usize,
 >(
-    cfg: &DeviceConfig<C, NF, NB, NT, NV>,
+    cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
     origin: &str,
 ) -> Result<String, EmitError> {
-    let band = friction_band(cfg.friction())?;
+    let band = friction_band(cfg.tables().friction())?;
     if rebuild(cfg, band)? != *cfg {
         return Err(err(
             "device",
@@ -608,14 +566,20 @@ pub fn device_config_source<
             ("thermal_wear_every", cfg.thermal_wear_every().to_string()),
             ("faces", cfg.faces().to_string()),
             (
-                "radius",
-                table(
-                    "radius table",
-                    ("Newtons", "Ratio", "Metres"),
-                    cfg.radius_table(),
+                "tables",
+                format!(
+                    "Tables::new(\n    {},\n    {},\n)",
+                    nest(
+                        &table(
+                            "radius table",
+                            ("Newtons", "Ratio", "Metres"),
+                            cfg.tables().radius(),
+                        ),
+                        1
+                    ),
+                    nest(&friction(cfg.tables().friction(), band), 1)
                 ),
             ),
-            ("friction", friction(cfg.friction(), band)),
             ("thermal", thermal(&cfg.thermal().to_raw())),
             ("wear", wear(&cfg.wear().to_raw())),
             ("sensor", sensor(cfg.sensor())),
@@ -641,14 +605,17 @@ pub fn device_config_source<
             ),
         ],
     );
-    let device = checked(&format!("DeviceConfig::new({parts})"), "device config");
+    let device = checked(
+        &format!("DeviceConfig::from_parts({parts})"),
+        "device config",
+    );
 
     let origin = origin.replace(['\n', '\r'], " ");
     let checksum = cfg.checksum();
     let mut out = String::new();
     let _ = writeln!(
         out,
-        "// Generated by clampwise-device (emit_device) from {origin}. Do not edit.\n\
+        "// Generated by clampwise-device (emit) from {origin}. Do not edit.\n\
          // Every value is raw fixed-point bits; the core's const constructors check them at\n\
          // compile time, so a configuration the core rejects fails the build.\n"
     );
@@ -664,14 +631,15 @@ pub fn device_config_source<
          pub const DEVICE_MU_TEMPERATURES: usize = {NT};\n\
          /// Slip-speed breakpoints of the μ table.\n\
          pub const DEVICE_MU_SPEEDS: usize = {NV};\n\
-         /// The device configuration's type, with this device's sizes.\n\
-         pub type Device = ::clampwise_core::config::DeviceConfig<\n    \
-         DEVICE_CHANNELS,\n    \
+         /// The device's tables, at their sizes.\n\
+         pub type DeviceTables = ::clampwise_core::config::Tables<\n    \
          DEVICE_RADIUS_FORCES,\n    \
          DEVICE_RADIUS_BEDDINGS,\n    \
          DEVICE_MU_TEMPERATURES,\n    \
          DEVICE_MU_SPEEDS,\n\
          >;\n\
+         /// The device configuration's type: its tables and its channels.\n\
+         pub type Device = ::clampwise_core::config::DeviceConfig<DeviceTables, DEVICE_CHANNELS>;\n\
          /// `DeviceConfig::checksum` of [`DEVICE`], computed on the host from {origin}.\n\
          pub const DEVICE_CHECKSUM: u32 = 0x{checksum:08x};\n\
          /// The device configuration ({origin}), evaluated at compile time.\n\
@@ -701,15 +669,15 @@ mod tests {
     use clampwise_core::units::{Celsius, Metres, NewtonMetres, Newtons, Ratio, Seconds};
     use clampwise_core::wear::WearParams;
 
-    type Full = DeviceConfig<2, 2, 2, 3, 3>;
+    type Full = DeviceConfig<Tables<2, 2, 3, 3>, 2>;
 
     /// A test device (invented numbers) with every optional part present: two-node thermal
     /// model with a measured temperature, temperature-compensated channels, stuck check,
     /// actuator fallback, adaptation, drag.
-    fn parts(adapt: bool) -> DeviceParts<2, 2, 2, 3, 3> {
+    fn parts(adapt: bool) -> DeviceParts<Tables<2, 2, 3, 3>, 2> {
         let contact =
             Contact::new(Shape::Annulus(Annulus::new(0.060, 0.100).unwrap()), 2, None).unwrap();
-        let mu = MuTable::from_f64(
+        let mu = MuTable::new(
             &[0.0, 200.0, 400.0],
             &[0.0, 50.0, 200.0],
             &[[0.40, 0.39, 0.37], [0.38, 0.37, 0.35], [0.30, 0.29, 0.27]],
@@ -727,36 +695,40 @@ mod tests {
             },
         )
         .unwrap();
-        let thermal = ThermalConfig::new(&ThermalParams {
-            dt: 1e-3,
-            rotor_mass: 8.0,
-            rotor_specific_heat: 460.0,
-            rotor_share: 0.9,
-            cooling: Cooling::TimeConstant(613.0),
-            ambient: 20.0,
-            lining: Some(LiningNode {
-                mass: 0.4,
-                specific_heat: 1250.0,
-                conductance_to_rotor: 20.0,
-            }),
-            fade_warning: 350.0,
-            over_temperature: 500.0,
-            flag_hysteresis: 10.0,
-            measured: Some(MeasuredPlausibility {
-                min: -40.0,
-                max: 900.0,
-                max_rate: 2000.0,
-            }),
-        })
+        let thermal = ThermalConfig::new(
+            &ThermalParams {
+                rotor_mass: 8.0,
+                rotor_specific_heat: 460.0,
+                rotor_share: 0.9,
+                cooling: Cooling::TimeConstant(613.0),
+                ambient: 20.0,
+                lining: Some(LiningNode {
+                    mass: 0.4,
+                    specific_heat: 1250.0,
+                    conductance_to_rotor: 20.0,
+                }),
+                fade_warning: 350.0,
+                over_temperature: 500.0,
+                flag_hysteresis: 10.0,
+                measured: Some(MeasuredPlausibility {
+                    min: -40.0,
+                    max: 900.0,
+                    max_rate: 2000.0,
+                }),
+            },
+            1e-3,
+        )
         .unwrap();
-        let wear = WearConfig::new(&WearParams {
-            dt: 1e-3,
-            bedding_energy: 5e6,
-            specific_wear_rate: 4e-14,
-            lining_area: 8e-3,
-            initial_thickness: 0.010,
-            minimum_thickness: 0.002,
-        })
+        let wear = WearConfig::new(
+            &WearParams {
+                bedding_energy: 5e6,
+                specific_wear_rate: 4e-14,
+                lining_area: 8e-3,
+                initial_thickness: 0.010,
+                minimum_thickness: 0.002,
+            },
+            1e-3,
+        )
         .unwrap();
         let cal = ChannelCalibration {
             gain: NewtonsPerCount::from_num(1.0 / 256.0),
@@ -824,8 +796,10 @@ mod tests {
             sample_period: Seconds::from_num(1e-3),
             thermal_wear_every: 1,
             faces: contact.faces(),
-            radius: build_radius_table::<2, 2>(&contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap(),
-            friction,
+            tables: Tables::new(
+                build_radius_table::<2, 2>(&contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap(),
+                friction,
+            ),
             thermal,
             wear,
             sensor,
@@ -845,13 +819,13 @@ mod tests {
     }
 
     fn full() -> Full {
-        DeviceConfig::new(parts(true)).unwrap()
+        DeviceConfig::from_parts(parts(true)).unwrap()
     }
 
     #[test]
     fn rebuild_gives_every_part_back() {
-        for cfg in [full(), DeviceConfig::new(parts(false)).unwrap()] {
-            let band = friction_band(cfg.friction()).unwrap();
+        for cfg in [full(), DeviceConfig::from_parts(parts(false)).unwrap()] {
+            let band = friction_band(cfg.tables().friction()).unwrap();
             assert_eq!(rebuild(&cfg, band).unwrap(), cfg);
         }
     }
@@ -859,10 +833,10 @@ mod tests {
     #[test]
     fn friction_band_is_found_for_every_hysteresis() {
         // Odd and even widths, and narrow speeds whose lower edge is clamped to one LSB.
-        let mu = *full().friction().mu_kinetic();
+        let mu = *full().tables().friction().mu_kinetic();
         for v_s in [1, 2, 3, 7, 100, 3277] {
             for h in 1..(2 * v_s) {
-                let f = FrictionConfig::from_fixed(
+                let f = FrictionConfig::from_bits(
                     mu,
                     Ratio::from_num(1.2),
                     RadPerSec::from_bits(v_s),
@@ -873,7 +847,7 @@ mod tests {
                 )
                 .unwrap();
                 let (s, w) = friction_band(&f).unwrap();
-                let back = FrictionConfig::from_fixed(
+                let back = FrictionConfig::from_bits(
                     mu,
                     f.static_to_kinetic(),
                     s,
@@ -895,16 +869,16 @@ mod tests {
             "pub const DEVICE_CHANNELS: usize = 2;",
             "pub const DEVICE_MU_TEMPERATURES: usize = 3;",
             "pub const DEVICE: Device = {",
-            "FrictionConfig::from_fixed(",
-            "ThermalConfig::from_raw(ThermalRaw {",
+            "FrictionConfig::from_bits(",
+            "ThermalConfig::from_bits(ThermalRaw {",
             "two_node: true,",
             "measured: Some(Plausibility {",
-            "WearConfig::from_raw(WearRaw {",
+            "WearConfig::from_bits(WearRaw {",
             "SensorConfig::new(",
             "temperature: Some(TemperatureCompensation {",
             "stuck: Some(StuckCheck {",
             "Some(ActuatorTransfer {",
-            "adapt: Some(match AdaptConfig::from_raw(AdaptRaw {",
+            "adapt: Some(match AdaptConfig::from_bits(AdaptRaw {",
             "combination: Combination::RootSumSquare",
             "panic!(\"device config rejected by the core\")",
         ] {
@@ -922,7 +896,7 @@ mod tests {
                 "{open}{close}"
             );
         }
-        let minimal = DeviceConfig::new(parts(false)).unwrap();
+        let minimal = DeviceConfig::from_parts(parts(false)).unwrap();
         assert!(
             device_config_source(&minimal, "x")
                 .unwrap()
@@ -933,22 +907,23 @@ mod tests {
     #[test]
     fn checksum_sees_every_part() {
         let base = parts(true);
-        let digest = |p: DeviceParts<2, 2, 2, 3, 3>| DeviceConfig::new(p).unwrap().checksum();
+        let digest =
+            |p: DeviceParts<Tables<2, 2, 3, 3>, 2>| DeviceConfig::from_parts(p).unwrap().checksum();
         let reference = digest(base);
         let mut thermal = base.thermal.to_raw();
         thermal.ambient = Celsius::from_num(21);
         let mut wear = base.wear.to_raw();
         wear.minimum_thickness = Metres::from_num(0.003);
-        let mut radius_values = *base.radius.values();
+        let mut radius_values = *base.tables.radius().values();
         radius_values[1][1] = Metres::from_bits(radius_values[1][1].to_bits() + 1);
         let variants = [
             DeviceParts { faces: 4, ..base },
             DeviceParts {
-                thermal: ThermalConfig::from_raw(thermal).unwrap(),
+                thermal: ThermalConfig::from_bits(thermal).unwrap(),
                 ..base
             },
             DeviceParts {
-                wear: WearConfig::from_raw(wear).unwrap(),
+                wear: WearConfig::from_bits(wear).unwrap(),
                 ..base
             },
             DeviceParts {
@@ -956,12 +931,15 @@ mod tests {
                 ..base
             },
             DeviceParts {
-                radius: Table2::new(
-                    *base.radius.x_breakpoints(),
-                    *base.radius.y_breakpoints(),
-                    radius_values,
-                )
-                .unwrap(),
+                tables: Tables::new(
+                    Table2::from_bits(
+                        *base.tables.radius().x_breakpoints(),
+                        *base.tables.radius().y_breakpoints(),
+                        radius_values,
+                    )
+                    .unwrap(),
+                    *base.tables.friction(),
+                ),
                 ..base
             },
             DeviceParts {

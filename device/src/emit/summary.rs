@@ -1,0 +1,65 @@
+//! The tables of a device as text (`clampwise tables`): the friction radius over clamp force
+//! and bedding, kinetic μ over lining temperature and slip speed, and the device checksum.
+
+use std::fmt::Write as _;
+
+use crate::build_core::CoreDevice;
+use crate::config::LoadedConfig;
+
+/// The tables as text, with the device checksum.
+pub fn human(cfg: &LoadedConfig, core: &CoreDevice) -> String {
+    let t = &core.tables;
+    let c = &cfg.config;
+    let mut o = format!("tables of {} ({})\n", cfg.file, c.device.name);
+    let _ = writeln!(
+        o,
+        "  contact: {} × {} faces; lever arm per face (r_e, / sin α for a cone): {:.6} m (uniform pressure, new), {:.6} m (uniform wear, bedded)",
+        c.contact.shape.name(),
+        c.contact.faces,
+        t.radii_m.0,
+        t.radii_m.1
+    );
+    let _ = writeln!(
+        o,
+        "  friction radius r_e [m] (rows: clamp force N; columns: bedding):"
+    );
+    let mut h = String::from("    F \\ bedding");
+    for b in t.radius_bedding_axis() {
+        let _ = write!(h, "{:>12}", format!("{:.3}", b.to_num::<f64>()));
+    }
+    let _ = writeln!(o, "{h}");
+    for (f, row) in t.radius_force_axis().iter().zip(t.radius_rows()) {
+        let mut l = format!("    {:>12}", format!("{:.0}", f.to_num::<f64>()));
+        for v in row {
+            let _ = write!(l, "{:>12.6}", v.to_num::<f64>());
+        }
+        let _ = writeln!(o, "{l}");
+    }
+    let _ = writeln!(
+        o,
+        "  kinetic μ (rows: lining temperature °C; columns: |slip speed| rad/s):"
+    );
+    let mut h = String::from("    T \\ v      ");
+    for v in t.mu_speed_axis() {
+        let _ = write!(h, "{:>9}", format!("{}", v.to_num::<f64>()));
+    }
+    let _ = writeln!(o, "{h}");
+    for (tc, row) in t.mu_temperature_axis().iter().zip(t.mu_rows()) {
+        let mut l = format!("    {:>10}", format!("{}", tc.to_num::<f64>()));
+        for v in row {
+            let _ = write!(l, "{:>9.4}", v.to_num::<f64>());
+        }
+        let _ = writeln!(o, "{l}");
+    }
+    let _ = writeln!(
+        o,
+        "  static ratio {} (holding capacity = faces · μ · ratio · F · r_e)",
+        c.friction.static_ratio
+    );
+    let _ = writeln!(
+        o,
+        "  checksum (the core's DeviceConfig::checksum, the firmware's DEVICE_CHECKSUM): 0x{:08X}",
+        core.device.checksum()
+    );
+    o
+}
