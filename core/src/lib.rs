@@ -14,8 +14,11 @@
 //! build time (f64, libm), on the host or in a build script:
 //!   geometry::Disc + shape (annulus | sector | button | polygon) + faces n + cone α?
 //!     = geometry::Contact ─► r_up, r_uw ─► lever arm (r_e / sin α) at each bedding
-//!     ─► geometry::build_radius_table ─► RadiusTable (F × bedding → m) ──┐
-//!   μ table, thermal, wear, sensor, adaptation settings ─► *Config ──────┴► config::DeviceConfig
+//!     ─► geometry::build_radius_table ─► RadiusTable (F × bedding → m) ─┐
+//!   μ(T, v) table + stick/slip settings ─► friction::FrictionConfig ────┴► config::Tables
+//!   config::DeviceParams { sample period (once), tables, thermal, wear, sensors, adaptation,
+//!     limits, tolerances } ─► config::DeviceConfig::new ─► DeviceConfig<Tables, C>
+//!   (a firmware: the same from raw bits, `from_bits` / `DeviceConfig::from_parts`, in `const`)
 //!
 //! per sample, estimator::Estimator::step (integers only, O(1), no allocation, no panic):
 //!   raw counts[1..4] ─ sensor: calibrate → filter → diagnose → vote ─► clamp force F, health

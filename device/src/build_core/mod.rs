@@ -16,10 +16,11 @@
 //!
 //! ## Channel count
 //!
-//! The core's `DeviceConfig<C, ..>` is generic over the number of force channels C (1 … 4);
-//! a config fixes C only when it is read. [`ChannelDevice`] is an enum with one variant per C,
-//! each holding a [`Device<C>`]; code that steps it matches once and runs generic code inside
-//! (the simulator's `seam::CoreEstimator` does).
+//! The core's `DeviceConfig<T, C>` is generic over its tables `T` (here [`HostTables`]) and
+//! the number of force channels C (1 … 4); a config fixes C only when it is read.
+//! [`ChannelDevice`] is an enum with one variant per C, each holding a [`Device<C>`]; code that
+//! steps it matches once and runs generic code inside (`clampwise_convert::CoreEstimator`
+//! does).
 //!
 //! ## Table capacities (const generics of the core) and why lookups stay exact
 //!

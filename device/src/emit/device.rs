@@ -520,13 +520,8 @@ use ::clampwise_core::units::{
 use ::clampwise_core::wear::{WearConfig, WearRaw};
 ";
 
-/// The whole configuration as Rust source of `const` items (the items are listed in the
-/// [module docs](self)). `origin` names where the configuration came from, for the comments.
-///
-/// # Errors
-/// [`EmitError`] when the configuration cannot be rebuilt exactly from the values the source
-/// would hold: the emitter then writes nothing rather than a constant that differs.
-pub fn device_config_source<
+/// The `DeviceParts { .. }` literal of `cfg`, every value as raw bits.
+fn parts_literal<
     const C: usize,
     const NF: usize,
     const NB: usize,
@@ -534,15 +529,8 @@ pub fn device_config_source<
     const NV: usize,
 >(
     cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
-    origin: &str,
-) -> Result<String, EmitError> {
-    let band = friction_band(cfg.tables().friction())?;
-    if rebuild(cfg, band)? != *cfg {
-        return Err(err(
-            "device",
-            "the configuration rebuilt from its raw values differs from the original",
-        ));
-    }
+    band: (RadPerSec, RadPerSec),
+) -> String {
     let Limits {
         touch_force,
         adapt_min_force,
@@ -556,7 +544,7 @@ pub fn device_config_source<
         Combination::WorstCase => "Combination::WorstCase",
         Combination::RootSumSquare => "Combination::RootSumSquare",
     };
-    let parts = literal(
+    literal(
         "DeviceParts",
         &[
             (
@@ -604,7 +592,33 @@ pub fn device_config_source<
                 ),
             ),
         ],
-    );
+    )
+}
+
+/// The whole configuration as Rust source of `const` items (the items are listed in the
+/// [module docs](self)). `origin` names where the configuration came from, for the comments.
+///
+/// # Errors
+/// [`EmitError`] when the configuration cannot be rebuilt exactly from the values the source
+/// would hold: the emitter then writes nothing rather than a constant that differs.
+pub fn device_config_source<
+    const C: usize,
+    const NF: usize,
+    const NB: usize,
+    const NT: usize,
+    const NV: usize,
+>(
+    cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
+    origin: &str,
+) -> Result<String, EmitError> {
+    let band = friction_band(cfg.tables().friction())?;
+    if rebuild(cfg, band)? != *cfg {
+        return Err(err(
+            "device",
+            "the configuration rebuilt from its raw values differs from the original",
+        ));
+    }
+    let parts = parts_literal(cfg, band);
     let device = checked(
         &format!("DeviceConfig::from_parts({parts})"),
         "device config",
