@@ -52,14 +52,16 @@ fw_elf() {
 # fw_reachable ELF ROOT_REGEX -> bytes of code reachable by direct calls and branches from the
 # functions whose (mangled) names match ROOT_REGEX, the roots included: every function the
 # disassembly shows one of them branching to, and so on. Indirect calls are not followed (the
-# core makes none). Prints "<bytes> <functions>".
+# core makes none). Conditional branches are not followed either: the compiler keeps them inside
+# their function, and a literal pool after a return can disassemble as one, pointing anywhere.
+# Prints "<bytes> <functions>".
 fw_reachable() {
   local elf="$1" root="$2" tmp
   tmp="$(mktemp -d)"
   "$LLVM_BIN/llvm-nm" -S "$elf" | awk 'NF == 4 { print $4, $2 }' >"$tmp/sizes"
   "$LLVM_BIN/llvm-objdump" -d --no-show-raw-insn "$elf" | awk '
     /^[0-9a-f]+ <.*>:$/ { f = substr($2, 2, length($2) - 3); next }
-    /\t(bl|blx|b|b\.w|b[a-z][a-z](\.w)?)\t0x[0-9a-f]+ </ {
+    /\t(bl|blx|b|b\.w)\t0x[0-9a-f]+ </ {
       if (match($0, /<[^>]*>/)) {
         t = substr($0, RSTART + 1, RLENGTH - 2); sub(/\+0x[0-9a-f]+$/, "", t)
         if (t != f) print f, t

@@ -83,13 +83,13 @@ struct Operating {
 
 impl Operating {
     /// n · k · μ · F · r_e.
-    #[inline]
+    #[inline(always)]
     fn torque(self, mu: Ratio) -> Saturating<NewtonMetres> {
         friction_torque(self.faces, self.correction, mu, self.force, self.lever_arm)
     }
 
     /// The same contact carrying `force` instead.
-    #[inline]
+    #[inline(always)]
     fn with_force(self, force: Newtons) -> Self {
         Self { force, ..self }
     }
@@ -109,6 +109,7 @@ struct Reported {
 
 /// The torque of each contact state; flags a bounded (holding, slip-unknown) torque and
 /// saturated products.
+#[inline(always)]
 fn reported_torque(
     state: ContactState,
     fric: &FrictionSample,
@@ -262,6 +263,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     }
 
     /// The conditioned clamp force and the sensor flags it raises.
+    #[inline(always)]
     fn read_force(&mut self, inputs: &Inputs<C>, flags: &mut Flags) -> ForceReading {
         let reading = self.state.sensor.update(
             &self.cfg.sensor,
@@ -281,6 +283,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
 
     /// μ at the lining temperature left by the previous sample. Without a slip speed, μ is the
     /// largest the lining can have anywhere in its table.
+    #[inline(always)]
     fn friction_sample(
         &mut self,
         slip_speed: Option<RadPerSec>,
@@ -306,6 +309,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     }
 
     /// Which of the contact states this sample is in, given a clamp force.
+    #[inline(always)]
     fn contact_state(
         &self,
         slip_speed: Option<RadPerSec>,
@@ -325,6 +329,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
 
     /// Advance the thermal and wear states (every sample or as the sub-rate task) with this
     /// sample's power.
+    #[inline(always)]
     fn advance_heat_and_wear(
         &mut self,
         inputs: &Inputs<C>,
@@ -353,6 +358,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     }
 
     /// Let the adaptation learn from this sample's model torque (uncorrected, signed).
+    #[inline(always)]
     fn adapt(
         &mut self,
         inputs: &Inputs<C>,
@@ -370,6 +376,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
     /// The ± of what is reported. The force enters as the torque it could carry: its
     /// uncertainty's share, or for a released contact the friction torque at the force's
     /// upper bound (the larger μ of the two: it may be holding or slipping).
+    #[inline(always)]
     fn uncertainty(
         &self,
         state: ContactState,

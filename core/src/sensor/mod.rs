@@ -122,8 +122,8 @@ pub use filter::{LowPass, LowPassState};
 pub use voting::{Agreement, Vote, VotingLimits, vote};
 
 use diagnostics::{ChannelDiagnostics, Diagnostics};
-use witness_bound::force_bound;
 use fixed::types::{I2F30, I16F16, I32F32};
+use witness_bound::force_bound;
 
 use crate::units::{Celsius, Newtons};
 
@@ -528,7 +528,16 @@ impl<const C: usize> SensorState<C> {
             (Some(tr), Some(c)) => Some(self.actuator.update(tr, cfg.actuator_lag, c)),
             _ => None,
         };
-        let pass = self.condition_channels(cfg, raw, actuator_command);
+        // Filled in place: a returned array struct would be copied with a `memcpy`.
+        let mut pass = ChannelPass {
+            values: [0; MAX_CHANNELS],
+            trail: [0; MAX_CHANNELS],
+            usable: 0,
+            channel_force: [None; MAX_CHANNELS],
+            saturated: false,
+            temperature_clamped: false,
+        };
+        self.condition_channels(cfg, raw, actuator_command, &mut pass);
         let predicted_force = predicted.map(|p| p.force);
         let v = vote_usable::<C>(cfg, &pass, predicted_force);
         let judged = self.judge_channels(cfg, &v, &pass.channel_force);
@@ -594,22 +603,18 @@ impl<const C: usize> SensorState<C> {
         }
     }
 
-    /// One pass over the channels: checks, filter, and the usable values for the vote.
+    /// One pass over the channels: checks, filter, and the usable values for the vote, into
+    /// `pass`.
+    // Called once per sample: inlined, so its arrays are built in place.
+    #[inline(always)]
     fn condition_channels(
         &mut self,
         cfg: &SensorConfig<C>,
         raw: &[RawChannel; C],
         actuator_command: Option<ActuatorCommand>,
-    ) -> ChannelPass {
+        pass: &mut ChannelPass,
+    ) {
         let d = &cfg.diagnostics;
-        let mut pass = ChannelPass {
-            values: [0; MAX_CHANNELS],
-            trail: [0; MAX_CHANNELS],
-            usable: 0,
-            channel_force: [None; MAX_CHANNELS],
-            saturated: false,
-            temperature_clamped: false,
-        };
         let mut compensation = None;
         for (i, ((((ch, cal), r), (out, value)), lag)) in self
             .channels
@@ -651,11 +656,12 @@ impl<const C: usize> SensorState<C> {
                 pass.usable |= 1 << i;
             }
         }
-        pass
     }
 
     /// Each channel against the vote: the disagreement evidence, its flags, whether every
     /// channel is clean, and the largest hold allowance of a used channel.
+    // Called once per sample: inlined, so its arrays are built in place.
+    #[inline(always)]
     fn judge_channels(
         &mut self,
         cfg: &SensorConfig<C>,
@@ -721,6 +727,8 @@ impl ChannelPass {
     /// The filter trails a moving force: what it trails its newest sample by beyond that
     /// sample's own noise (half the peak-to-peak `noise_band`; `channel_uncertainty` already
     /// covers the noise), largest over the used channels (Q8 N, ≥ 0).
+    // Called once per sample: inlined, so its arrays are built in place.
+    #[inline(always)]
     fn trailing_beyond_noise<const C: usize>(
         &self,
         cfg: &SensorConfig<C>,
@@ -749,6 +757,8 @@ struct Judged {
 
 /// The vote among the usable channels; one channel is passed through when usable
 /// (tolerance > 0, validated), as the vote would.
+// Called once per sample: inlined, so its arrays are built in place.
+#[inline(always)]
 fn vote_usable<const C: usize>(
     cfg: &SensorConfig<C>,
     pass: &ChannelPass,

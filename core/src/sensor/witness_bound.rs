@@ -86,4 +86,3 @@ pub(super) fn force_bound(
         implausible,
     }
 }
-
