@@ -1,5 +1,5 @@
 //! Flat annular contacts, the solid disc, sector pads, friction faces and cones against the
-//! published formulas and the check values of REFERENCES.md (each source named beside its
+//! published formulas and check values computed from them (each source named beside its
 //! check, with its marking).
 #![allow(clippy::indexing_slicing, clippy::unwrap_used, clippy::float_cmp)]
 
@@ -14,7 +14,8 @@ fn close(got: f64, want: f64, tol: f64) {
     );
 }
 
-/// [calc] REFERENCES.md annulus check vector: Ro = 100 mm, Ri = 60 mm, μ = 0.30, F = 10 kN.
+/// Annulus check vector [calc: T = N·μ·F·r_e, r_uw = (Ro+Ri)/2, r_up = (2/3)(Ro³−Ri³)/(Ro²−Ri²),
+/// Shigley ch. 16]: Ro = 100 mm, Ri = 60 mm, μ = 0.30, F = 10 kN.
 #[test]
 fn annulus_check_vector() {
     let (mu, f) = (0.30, 10_000.0);
@@ -61,7 +62,8 @@ fn annulus_formulas() {
     }
 }
 
-/// [calc] REFERENCES.md ratio table r_up/r_uw by Ri/Ro (values given to 4 decimals).
+/// Ratio r_up/r_uw by Ri/Ro, 4 decimals [calc: (4/3)(1 + k + k²)/(1 + k)², k = Ri/Ro, from the
+/// two annulus radii of Shigley ch. 16].
 #[test]
 fn pressure_to_wear_ratio_table() {
     let table = [
@@ -101,7 +103,7 @@ fn solid_disc_limit() {
     }
 }
 
-/// [pub: Shigley ch. 16; REFERENCES.md] The sector angle cancels out of r_e and of torque at a
+/// [pub: Shigley ch. 16] The sector angle cancels out of r_e and of torque at a
 /// given force; it sets the area (F = ½·Δθ·p·(Ro²−Ri²)) and, under uniform wear, the peak
 /// pressure (F = Δθ·p_max·Ri·(Ro−Ri)).
 #[test]
@@ -136,10 +138,10 @@ fn sector_angle_independence() {
     );
 }
 
-/// [pub: Shigley ch. 16] T = N·μ·F·r_e for N friction interfaces; [mem] a pack of n_a driving
-/// and n_b driven plates has N = n_a + n_b − 1 interfaces.
+/// [pub: Shigley ch. 16] T = N·μ·F·r_e for N friction interfaces: torque scales with the
+/// number of faces, the per-face lever arm does not.
 #[test]
-fn friction_faces() {
+fn torque_scales_with_friction_faces() {
     let face = Annulus::new(0.06, 0.10).unwrap();
     let one = Contact::new(face, 1, None).unwrap();
     for n in [1u8, 2, 6, 13, 255] {
@@ -151,17 +153,38 @@ fn friction_faces() {
                 f64::from(n) * one.torque_per_unit_mu_force(b).unwrap(),
                 1e-12,
             );
-            // The per-face lever arm does not depend on the number of faces.
             assert_eq!(c.lever_arm(b).unwrap(), one.lever_arm(b).unwrap());
         }
     }
-    let (n_a, n_b) = (4u8, 3u8);
-    let pack = Contact::new(face, n_a + n_b - 1, None).unwrap();
-    close(
-        0.3 * 10_000.0 * pack.torque_per_unit_mu_force(1.0).unwrap(),
-        1440.0,
-        1e-9,
-    );
+}
+
+/// Friction faces of common arrangements, as stated for each: a caliper, 2 (one pad on each
+/// side of the disc) [practice]; a single-plate dry clutch, 2 (one driven disc faced on both
+/// sides, between flywheel and pressure plate) [practice]; a twin-plate clutch, 4 (two driven
+/// discs, flywheel, intermediate and pressure plate) [practice]; a multi-plate pack of 4 driving
+/// and 3 driven plates, 6 [mem: Shigley ch. 16, N = n_a + n_b − 1]. Each count is checked
+/// against the n_a + n_b − 1 rule the core's docs give, and the torque against the annulus
+/// check vector (240.00 N·m per face, bedded, μ = 0.30, F = 10 kN [calc]).
+#[test]
+fn friction_faces_of_stated_arrangements() {
+    // (arrangement, driving members n_a, driven members n_b, stated faces)
+    let stated = [
+        ("caliper: two pads, one disc", 2u8, 1u8, 2u8),
+        ("single-plate clutch", 2, 1, 2),
+        ("twin-plate clutch", 3, 2, 4),
+        ("multi-plate pack, 4 driving + 3 driven", 4, 3, 6),
+    ];
+    let face = Annulus::new(0.06, 0.10).unwrap();
+    for (what, n_a, n_b, faces) in stated {
+        assert_eq!(n_a + n_b - 1, faces, "{what}: the n_a + n_b − 1 rule");
+        let c = Contact::new(face, faces, None).unwrap();
+        assert_eq!(c.faces(), faces, "{what}");
+        close(
+            0.3 * 10_000.0 * c.torque_per_unit_mu_force(1.0).unwrap(),
+            240.00 * f64::from(faces),
+            1e-9,
+        );
+    }
 }
 
 /// [pub: Shigley ch. 16, cone clutch] uniform pressure T = μF(Do³−Di³)/(3 sin α (Do²−Di²)),
