@@ -161,7 +161,8 @@ fn table_is_flat_in_force_and_flags_clamping() {
 }
 
 /// Torque from the table as the estimator will compute it (faces · μ · F · table), against the
-/// annulus check vector [calc: T = N·μ·F·r_e with the annulus radii of Shigley ch. 16]: Ro = 100 mm, Ri = 60 mm, μ = 0.30, F = 10 kN, six
+/// annulus check vector [calc: T = N·μ·F·r_e with the annulus radii of Shigley ch. 16]:
+/// Ro = 100 mm, Ri = 60 mm, μ = 0.30, F = 10 kN, six
 /// faces, bedded: 1440 N·m; new: 6 · 245.00 = 1470 N·m.
 #[test]
 fn torque_from_the_table_matches_the_check_vector() {
