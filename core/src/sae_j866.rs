@@ -136,7 +136,7 @@ mod tests {
     use super::*;
     use FrictionCode::*;
 
-    // Class edges from SAE J866 [pub], as quoted in REFERENCES.md: "over x, not over y".
+    // Class edges from SAE J866 [pub: SAE J866, friction code letters]: "over x, not over y".
     #[test]
     fn letters_at_the_class_edges() {
         let d = Ratio::DELTA;

@@ -80,7 +80,8 @@ fn bad_radius_names_the_parameter() {
 }
 
 proptest! {
-    /// The plain model T = μ·F·r_e/sin α [pub: Shigley ch. 16, through `Contact`] lies between
+    /// Arithmetic check between two core models: the plain model T = μ·F·r_e/sin α (the
+    /// formula of Shigley ch. 16 [pub], as the core's `Contact` computes it) lies between
     /// the engaging and withdrawing values and is their common μ → 0 slope; engaging S ≤ 1,
     /// withdrawing S ≥ 1; g rises with μ.
     #[test]

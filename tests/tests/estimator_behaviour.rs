@@ -27,8 +27,9 @@ fn steady<const C: usize>(
 
 #[test]
 fn steady_slip_matches_n_mu_f_re() {
-    // T = N·μ·F·r_e [pub: Shigley ch. 16]; the check vector of REFERENCES.md [calc]: Ro = 100 mm,
-    // Ri = 60 mm, F = 10 kN → r_e = 81.667 mm (uniform pressure, new lining, bedding 0).
+    // T = N·μ·F·r_e [pub: Shigley ch. 16]; annulus check vector [calc: r_up = (2/3)(Ro³−Ri³)/
+    // (Ro²−Ri²)]: Ro = 100 mm, Ri = 60 mm, F = 10 kN → r_e = 81.667 mm (uniform pressure, new
+    // lining, bedding 0).
     // μ from the demo table at 20 °C and 100 rad/s: 0.40 + (0.38−0.40)·0.1 … bilinear.
     let dev = device::<1>(&Spec::default());
     let e = steady(&dev, 10_000.0, 100.0, 50);

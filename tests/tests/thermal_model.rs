@@ -13,7 +13,8 @@ use clampwise_core::units::{Celsius, Watts};
 use clampwise_tests::f64_model::thermal::ThermalModel;
 use proptest::prelude::*;
 
-/// REFERENCES.md check vector [calc]: 8 kg disc, c = 460 J/(kg·K), h = 50 W/(m²·K),
+/// Check vector [calc: Newtonian cooling, Day, Braking of Road Vehicles, ch. 8]: 8 kg disc,
+/// c = 460 J/(kg·K), h = 50 W/(m²·K),
 /// A = 0.12 m² → τ = m·c/(h·A) = 613 s.
 fn disc(cooling: Cooling, share: f64) -> ThermalParams {
     ThermalParams {

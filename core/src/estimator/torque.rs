@@ -83,7 +83,8 @@ mod tests {
 
     #[test]
     fn annulus_check_vector() {
-        // [calc] REFERENCES.md annulus vector: μ = 0.30, F = 10 kN, r_e = 80 mm (uniform wear)
+        // Annulus check vector [calc, r_uw = (Ro+Ri)/2]: μ = 0.30, F = 10 kN,
+        // r_e = 80 mm (uniform wear)
         // → 240.00 N·m per face, 1440 N·m on 6 faces (Shigley ch. 16, T = N·μ·F·r_e [pub]).
         let t = friction_torque(
             6,

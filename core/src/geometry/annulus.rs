@@ -30,7 +30,7 @@ impl Annulus {
     ///
     /// ```
     /// use clampwise_core::geometry::Annulus;
-    /// // Check vector [calc, REFERENCES.md]: Ro = 100 mm, Ri = 60 mm.
+    /// // Check vector [calc: r_uw = (Ro+Ri)/2, Shigley ch. 16]: Ro = 100 mm, Ri = 60 mm.
     /// let r = Annulus::new(0.060, 0.100)?.effective_radii();
     /// assert!((r.uniform_wear_m - 0.080).abs() < 1e-12);
     /// assert!((r.uniform_pressure_m - 0.081_667).abs() < 1e-6);

@@ -108,7 +108,8 @@ impl<'a> Contact<'a> {
     ///
     /// ```
     /// use clampwise_core::geometry::{Annulus, Contact};
-    /// // Check vector [calc, REFERENCES.md]: Ro = 100 mm, Ri = 60 mm, μ = 0.30, F = 10 kN,
+    /// // Check vector [calc: T = N·μ·F·(Ro+Ri)/2, Shigley ch. 16]: Ro = 100 mm, Ri = 60 mm,
+    /// // μ = 0.30, F = 10 kN,
     /// // six faces, bedded in: T = 1440 N·m.
     /// let clutch = Contact::new(Annulus::new(0.060, 0.100)?, 6, None)?;
     /// let torque = 0.30 * 10_000.0 * clutch.torque_per_unit_mu_force(1.0)?;

@@ -18,7 +18,8 @@ fn narrow_q32(v: i128) -> i64 {
 
 /// The test disc; `_dt` names the step the caller builds it for (passed to `new`).
 pub(crate) fn disc(_dt: f64, cooling: Cooling) -> ThermalParams {
-    // REFERENCES.md check vector [calc]: 8 kg, c = 460 J/(kg·K); h = 50, A = 0.12 → τ = 613 s.
+    // Check vector [calc: τ = m·c/(h·A), Day ch. 8]: 8 kg, c = 460 J/(kg·K); h = 50,
+    // A = 0.12 → τ = 613 s.
     ThermalParams {
         rotor_mass: 8.0,
         rotor_specific_heat: 460.0,

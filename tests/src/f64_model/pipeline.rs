@@ -85,7 +85,8 @@
 //! });
 //! let e = model.step(&PipelineInputs::slipping(10_000.0, 100.0, 50.0));
 //! assert_eq!(e.state, ContactState::Slipping);
-//! // New lining (uniform pressure): the check vector of REFERENCES.md [calc], 6 × 245.00 N·m.
+//! // New lining (uniform pressure): annulus check vector [calc: T = N·μ·F·r_up,
+//! // Shigley ch. 16], 6 × 245.00 N·m.
 //! assert!((e.torque.unwrap() + 1470.0).abs() < 1e-9);
 //! # Ok::<(), clampwise_core::geometry::GeometryError>(())
 //! ```

@@ -41,7 +41,7 @@ pub struct Spec<'a> {
 }
 
 pub fn annulus_contact(faces: u8, cone_half_angle_rad: Option<f64>) -> Contact<'static> {
-    // [calc] REFERENCES.md annulus check vector: Ro = 100 mm, Ri = 60 mm.
+    // Annulus check vector [calc: annulus radii of Shigley ch. 16]: Ro = 100 mm, Ri = 60 mm.
     let a = Annulus::new(0.060, 0.100).unwrap();
     Contact::new(
         clampwise_core::geometry::Shape::Annulus(a),
