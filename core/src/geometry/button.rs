@@ -12,10 +12,12 @@
 //!
 //! **The two disagree.** Integrating over the circle gives δ = 0.9987, 0.9949, 0.9885,
 //! 0.9791, 0.9665 under uniform wear and δ = 1.0013, 1.0050, 1.0113, 1.0201, 1.0316 under
-//! uniform pressure at R/e = 0.1 … 0.5 \[calc\], both above the table's 0.983 … 0.938. Over the
-//! table's range R/e ∈ [0.1, 0.5] the table's r_e lies below the integrated one by
-//! new linings (uniform pressure): 1.8 % to 9.1 %, rising with R/e;
-//! bedded linings (uniform wear): 1.6 % to 3.3 %, largest near R/e = 0.375.
+//! uniform pressure at R/e = 0.1 … 0.5 \[calc\], both above the table's 0.983 … 0.938. From the
+//! table's row R/e = 0.1 to its last row, 0.5, the table's r_e lies below the integrated one by:
+//!
+//! * new linings (uniform pressure): 1.8 % to 9.1 %, rising with R/e;
+//! * bedded linings (uniform wear): 1.6 % to 3.3 %, largest near R/e = 0.375.
+//!
 //! Below R/e = 0.1 both gaps shrink towards 0 at R = 0. The table's radius is the smaller, so
 //! it gives the lower, conservative torque, by most for a new lining on a large pad. The
 //! reason for the gap is not known here; each model is tested against its own reference and
