@@ -258,37 +258,17 @@ impl ChannelCalibration {
     /// no temperature compensation.
     ///
     /// # Errors
-    /// [`SensorError::Channel`] (channel 0) for a value that is not finite, not representable
-    /// or zero, or rails that [`ChannelCalibration::validate`] refuses.
+    /// As [`TwoPoint::to_calibration`], which this is for a line already known.
     pub fn linear(
         gain_n_per_count: f64,
         offset_n: f64,
         rails: AdcRails,
     ) -> Result<Self, SensorError> {
-        let bad = |field, problem| SensorError::Channel {
-            channel: 0,
-            field,
-            problem,
-        };
-        let gain = if gain_n_per_count.is_finite() {
-            NewtonsPerCount::checked_from_num(gain_n_per_count)
-                .ok_or(bad("gain", Problem::OutOfRange))?
-        } else {
-            return Err(bad("gain", Problem::NotFinite));
-        };
-        let offset = if offset_n.is_finite() {
-            Newtons::checked_from_num(offset_n).ok_or(bad("offset", Problem::OutOfRange))?
-        } else {
-            return Err(bad("offset", Problem::NotFinite));
-        };
-        let cal = Self {
-            gain,
-            offset,
-            rails,
-            temperature: None,
-        };
-        cal.validate(0)?;
-        Ok(cal)
+        TwoPoint {
+            gain_n_per_count,
+            offset_n,
+        }
+        .to_calibration(rails)
     }
 
     /// Check the calibration of channel `channel` (used by [`super::SensorConfig::new`]).

@@ -46,7 +46,7 @@ use bitflags::bitflags;
 
 use super::calibration::{ChannelCalibration, Compensation, Rail};
 use super::debounce::{Debounce, DebounceBank, Evidence};
-use super::error::{Problem, SensorError};
+use super::error::{Problem, SensorError, si_field};
 use super::{ActuatorCommand, NewtonsPerSecond, RawChannel};
 use crate::units::{Newtons, Seconds};
 
@@ -246,17 +246,11 @@ impl DiagnosticLimits {
         max_rate_n_per_s: f64,
         noise_band_n: f64,
     ) -> Result<Self, SensorError> {
-        fn fixed<T: fixed::traits::Fixed>(v: f64, field: &'static str) -> Result<T, SensorError> {
-            if !v.is_finite() {
-                return Err(field_err(field, Problem::NotFinite));
-            }
-            T::checked_from_num(v).ok_or(field_err(field, Problem::OutOfRange))
-        }
         Ok(Self {
-            force_min: fixed(force_min_n, "limits.force_min")?,
-            force_max: fixed(force_max_n, "limits.force_max")?,
-            max_rate: fixed(max_rate_n_per_s, "limits.max_rate")?,
-            noise_band: fixed(noise_band_n, "limits.noise_band")?,
+            force_min: si_field(force_min_n, "limits.force_min")?,
+            force_max: si_field(force_max_n, "limits.force_max")?,
+            max_rate: si_field(max_rate_n_per_s, "limits.max_rate")?,
+            noise_band: si_field(noise_band_n, "limits.noise_band")?,
             stuck: None,
             debounce: DebounceSet::uniform(Debounce {
                 raise_after: 3,

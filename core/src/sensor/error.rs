@@ -107,6 +107,23 @@ impl fmt::Display for SensorError {
 
 impl core::error::Error for SensorError {}
 
+/// An SI value as a fixed-point field, or the field's error (`NotFinite`, `OutOfRange`).
+pub(crate) fn si_field<T: fixed::traits::Fixed>(
+    v: f64,
+    field: &'static str,
+) -> Result<T, SensorError> {
+    if !v.is_finite() {
+        return Err(SensorError::Field {
+            field,
+            problem: Problem::NotFinite,
+        });
+    }
+    T::checked_from_num(v).ok_or(SensorError::Field {
+        field,
+        problem: Problem::OutOfRange,
+    })
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {

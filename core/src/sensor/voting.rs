@@ -33,7 +33,8 @@
 //! assert_eq!(v.force, Newtons::from_num(10_020));
 //! ```
 
-use super::{ChannelMask, Problem, SensorError};
+use super::error::si_field;
+use super::{ChannelMask, SensorError};
 use crate::units::Newtons;
 
 /// Voting limits (configuration input; validated by [`super::SensorConfig::new`]).
@@ -56,22 +57,10 @@ impl VotingLimits {
     /// signs are checked by [`super::SensorConfig::new`].
     pub fn new(tolerance_n: f64, channel_uncertainty_n: f64) -> Result<Self, SensorError> {
         Ok(Self {
-            tolerance: newtons(tolerance_n, "voting.tolerance")?,
-            channel_uncertainty: newtons(channel_uncertainty_n, "voting.channel_uncertainty")?,
+            tolerance: si_field(tolerance_n, "voting.tolerance")?,
+            channel_uncertainty: si_field(channel_uncertainty_n, "voting.channel_uncertainty")?,
         })
     }
-}
-
-/// A force in N from f64, or the field's error.
-fn newtons(v: f64, field: &'static str) -> Result<Newtons, SensorError> {
-    let problem = if v.is_finite() {
-        Problem::OutOfRange
-    } else {
-        Problem::NotFinite
-    };
-    Newtons::checked_from_num(v)
-        .filter(|_| v.is_finite())
-        .ok_or(SensorError::Field { field, problem })
 }
 
 /// How the channels agreed in one sample.

@@ -16,8 +16,8 @@ fn narrow_q32(v: i128) -> i64 {
     i64::try_from(c).unwrap_or(0)
 }
 
-/// The test disc; `_dt` names the step the caller builds it for (passed to `new`).
-pub(crate) fn disc(_dt: f64, cooling: Cooling) -> ThermalParams {
+/// The test disc; the caller gives `ThermalConfig::new` the step it is built for.
+pub(crate) fn disc(cooling: Cooling) -> ThermalParams {
     // Check vector [calc: τ = m·c/(h·A), Day ch. 8]: 8 kg, c = 460 J/(kg·K); h = 50,
     // A = 0.12 → τ = 613 s.
     ThermalParams {
@@ -48,7 +48,7 @@ fn run(cfg: &ThermalConfig, s: &mut ThermalState, watts: f64, steps: usize) -> T
 #[test]
 fn pulse_rise_is_gamma_e_over_mc() {
     for dt in [1e-4, 1e-3, 1e-2] {
-        let mut p = disc(dt, Cooling::Adiabatic);
+        let mut p = disc(Cooling::Adiabatic);
         p.rotor_share = 0.9;
         let cfg = ThermalConfig::new(&p, dt).unwrap();
         let mut s = ThermalState::new(&cfg);
@@ -70,7 +70,7 @@ fn pulse_rise_is_gamma_e_over_mc() {
 // Newtonian cooling T − T∞ = (T0 − T∞)·exp(−t/τ) [pub: Day ch. 8], τ = 613 s.
 #[test]
 fn cooling_follows_exponential() {
-    let cfg = ThermalConfig::new(&disc(1e-2, Cooling::Conductance(50.0 * 0.12)), 1e-2).unwrap();
+    let cfg = ThermalConfig::new(&disc(Cooling::Conductance(50.0 * 0.12)), 1e-2).unwrap();
     let tau: f64 = 8.0 * 460.0 / (50.0 * 0.12);
     let mut s = ThermalState::with_temperatures(Celsius::from_num(75), Celsius::from_num(75));
     let mut t = 0.0;
@@ -95,7 +95,7 @@ fn cooling_follows_exponential() {
 
 #[test]
 fn flags_latch_with_hysteresis() {
-    let cfg = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap();
+    let cfg = ThermalConfig::new(&disc(Cooling::Adiabatic), 1e-3).unwrap();
     let mut s = ThermalState::with_temperatures(Celsius::from_num(305), Celsius::from_num(305));
     let out = s.update(&cfg, Watts::ZERO, None);
     assert!(out.fade_warning && !out.over_temperature);
@@ -112,7 +112,7 @@ fn flags_latch_with_hysteresis() {
 
 #[test]
 fn measured_takes_over_when_plausible() {
-    let mut p = disc(1e-3, Cooling::Adiabatic);
+    let mut p = disc(Cooling::Adiabatic);
     p.measured = Some(MeasuredPlausibility {
         min: -40.0,
         max: 900.0,
@@ -136,7 +136,7 @@ fn measured_takes_over_when_plausible() {
     let e = s.update(&cfg, Watts::ZERO, None);
     assert!(!e.measured_used && !e.measured_rejected);
     // Without plausibility limits the input is ignored.
-    let cfg2 = ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap();
+    let cfg2 = ThermalConfig::new(&disc(Cooling::Adiabatic), 1e-3).unwrap();
     let mut s2 = ThermalState::new(&cfg2);
     let f = s2.update(&cfg2, Watts::ZERO, Some(Celsius::from_num(100)));
     assert!(!f.measured_used && f.lining_temperature == Celsius::from_num(20));
@@ -145,7 +145,7 @@ fn measured_takes_over_when_plausible() {
 #[test]
 fn two_node_energy_balance_adiabatic() {
     // No cooling: all energy stays; C_L·ΔT_L + C_R·ΔT_R = E.
-    let mut p = disc(1e-3, Cooling::Adiabatic);
+    let mut p = disc(Cooling::Adiabatic);
     p.rotor_share = 0.5;
     p.lining = Some(LiningNode {
         mass: 0.4,
@@ -166,7 +166,7 @@ fn two_node_energy_balance_adiabatic() {
 
 #[test]
 fn rejects_bad_configs() {
-    let base = disc(1e-3, Cooling::TimeConstant(613.0));
+    let base = disc(Cooling::TimeConstant(613.0));
     let e = |p: ThermalParams, dt: f64| ThermalConfig::new(&p, dt).unwrap_err();
     assert_eq!(e(base, 0.0), ThermalError::NotPositive { field: "dt" });
     assert_eq!(e(base, 2.0), ThermalError::DtTooLong);
@@ -252,7 +252,7 @@ fn rejects_bad_configs() {
 }
 
 fn two_node_measured() -> ThermalParams {
-    let mut p = disc(1e-3, Cooling::TimeConstant(613.0));
+    let mut p = disc(Cooling::TimeConstant(613.0));
     p.rotor_share = 0.6;
     p.lining = Some(LiningNode {
         mass: 0.4,
@@ -318,7 +318,7 @@ proptest::proptest! {
             k: [[k[0], k[1]], [k[2], k[3]]],
             gamma: g,
             two_node: true,
-            ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap()
+            ..ThermalConfig::new(&disc(Cooling::Adiabatic), 1e-3).unwrap()
         };
         let amb_c = Celsius::from_bits(amb);
         let want = saturating_i128_update(&cfg, (rotor, lining), amb_c, power);
@@ -337,7 +337,7 @@ proptest::proptest! {
         let cfg = ThermalConfig::from_bits(ThermalRaw {
             k_q62: [[0, 0], [0, k.max(K_MIN_Q62)]],
             gamma_q62: [0, g],
-            ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap().to_raw()
+            ..ThermalConfig::new(&disc(Cooling::Adiabatic), 1e-3).unwrap().to_raw()
         }).unwrap();
         let amb_c = Celsius::from_bits(amb);
         let want = saturating_i128_update(&cfg, (rotor, rotor), amb_c, power);
@@ -356,7 +356,7 @@ proptest::proptest! {
             fade_warning: Celsius::from_bits(fade << 16),
             over_temperature: Celsius::from_bits((fade + gap) << 16),
             flag_hysteresis: Celsius::from_bits(hyst),
-            ..ThermalConfig::new(&disc(1e-3, Cooling::Adiabatic), 1e-3).unwrap().to_raw()
+            ..ThermalConfig::new(&disc(Cooling::Adiabatic), 1e-3).unwrap().to_raw()
         };
         let cfg = ThermalConfig::from_bits(raw).unwrap();
 
@@ -386,9 +386,9 @@ proptest::proptest! {
 #[test]
 fn raw_round_trip_is_exact() {
     for (p, dt) in [
-        (disc(1e-3, Cooling::Adiabatic), 1e-3),
-        (disc(1e-4, Cooling::TimeConstant(613.0)), 1e-4),
-        (disc(1e-2, Cooling::Conductance(6.0)), 1e-2),
+        (disc(Cooling::Adiabatic), 1e-3),
+        (disc(Cooling::TimeConstant(613.0)), 1e-4),
+        (disc(Cooling::Conductance(6.0)), 1e-2),
         (two_node_measured(), 1e-3),
     ] {
         let cfg = ThermalConfig::new(&p, dt).unwrap();
@@ -428,7 +428,7 @@ fn raw_in_const_context() {
 
 #[test]
 fn raw_rejects_what_the_model_cannot_produce() {
-    let one = ThermalConfig::new(&disc(1e-3, Cooling::TimeConstant(613.0)), 1e-3)
+    let one = ThermalConfig::new(&disc(Cooling::TimeConstant(613.0)), 1e-3)
         .unwrap()
         .to_raw();
     let two = ThermalConfig::new(&two_node_measured(), 1e-3)
