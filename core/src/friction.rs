@@ -249,7 +249,8 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
         viscous_drag: ViscousDrag,
         no_load_drag: NewtonMetres,
     ) -> Result<Self, FrictionError> {
-        let z = mu_kinetic.values();
+        // Entries beyond the breakpoints in use are zero, inside the range checked here.
+        let z = mu_kinetic.capacity_grid();
         let mut largest = 0i64;
         let mut i = 0;
         while i < NT {
@@ -271,7 +272,7 @@ impl<const NT: usize, const NV: usize> FrictionConfig<NT, NV> {
             }
             i += 1;
         }
-        if NV > 0 && mu_kinetic.y_breakpoints()[0].to_bits() < 0 {
+        if NV > 0 && mu_kinetic.capacity_y()[0].to_bits() < 0 {
             return Err(FrictionError::NegativeSpeedBreakpoint);
         }
         let r = static_to_kinetic.to_bits();
@@ -691,7 +692,7 @@ mod tests {
             for (j, v) in t.y_breakpoints().iter().enumerate().skip(1) {
                 let mut s = FrictionState::new();
                 let out = s.update(&c, *v, *temp, Ratio::ONE);
-                assert_eq!(out.mu_kinetic, t.values()[i][j], "({i},{j})");
+                assert_eq!(out.mu_kinetic, t.value(i, j).unwrap(), "({i},{j})");
                 assert!(!out.clamped);
             }
         }
@@ -712,7 +713,7 @@ mod tests {
         let c = cfg();
         let hot = slip(&c, 2000.0, 1000.0, 1.0);
         assert!(hot.clamped);
-        assert_eq!(hot.mu_kinetic, c.mu_kinetic().values()[4][3]);
+        assert_eq!(hot.mu_kinetic, c.mu_kinetic().value(4, 3).unwrap());
         let cold = slip(&c, -5.0, -50.0, 1.0);
         assert!(cold.clamped);
         assert!(!slip(&c, 5.0, 300.0, 1.0).clamped);

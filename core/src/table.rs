@@ -94,6 +94,26 @@ pub enum TableError {
         /// Index of the offending entry (row-major for 2-D values).
         index: usize,
     },
+    /// An axis has more breakpoints than the table's capacity.
+    TooLong {
+        /// The axis concerned.
+        axis: Axis,
+        /// Breakpoints given.
+        len: usize,
+        /// The table's capacity on that axis.
+        capacity: usize,
+    },
+    /// The grid of values does not match the breakpoints: `row` is `None` for the number of
+    /// rows (one per first-axis breakpoint), else the row whose length differs from the
+    /// second axis.
+    GridShape {
+        /// The row concerned, or `None` for the row count.
+        row: Option<usize>,
+        /// Rows, or values in the row, given.
+        len: usize,
+        /// Rows, or values per row, expected.
+        expected: usize,
+    },
 }
 
 impl fmt::Display for TableError {
@@ -115,6 +135,30 @@ impl fmt::Display for TableError {
             Self::NotRepresentable { axis: None, index } => {
                 write!(f, "table value {index} is not finite or is out of range")
             }
+            Self::TooLong {
+                axis,
+                len,
+                capacity,
+            } => write!(
+                f,
+                "table axis {axis:?} has {len} breakpoints, more than its capacity of {capacity}"
+            ),
+            Self::GridShape {
+                row: None,
+                len,
+                expected,
+            } => write!(
+                f,
+                "table has {len} rows of values for {expected} first-axis breakpoints"
+            ),
+            Self::GridShape {
+                row: Some(row),
+                len,
+                expected,
+            } => write!(
+                f,
+                "table row {row} has {len} values for {expected} second-axis breakpoints"
+            ),
         }
     }
 }
@@ -159,10 +203,15 @@ struct Divisors<const N: usize> {
 impl<const N: usize> Divisors<N> {
     /// Constants of a validated (strictly increasing) axis.
     const fn of<F: LeEqU32>(x: &[FixedI32<F>; N]) -> Self {
+        Self::of_prefix(x, N)
+    }
+
+    /// Constants of the first `len` (≤ N) breakpoints of a validated axis; the rest stay 0.
+    const fn of_prefix<F: LeEqU32>(x: &[FixedI32<F>; N], len: usize) -> Self {
         let mut recip = [0u32; N];
         let mut shift = [0u8; N];
         let mut i = 0;
-        while i + 1 < N {
+        while i + 1 < len && i + 1 < N {
             // i + 1 < N by the loop bound; `get` is not usable in a const fn.
             #[allow(clippy::indexing_slicing)]
             let (x0, x1) = (x[i].to_bits(), x[i + 1].to_bits());
@@ -204,7 +253,7 @@ fn ends<F: LeEqU32>(axis: &[FixedI32<F>]) -> (i32, i32) {
 
 #[inline]
 fn locate<F: LeEqU32, const N: usize>(
-    axis: &[FixedI32<F>; N],
+    axis: &[FixedI32<F>],
     div: &Divisors<N>,
     x: FixedI32<F>,
 ) -> Position {
@@ -215,10 +264,12 @@ fn locate<F: LeEqU32, const N: usize>(
     let at = x.max(first).min(last);
     let clamped = at != x;
     // The segment: the number of inner breakpoints at or below the clamped input, so
-    // 0 ..= N − 2. A branch-free count over a short axis, bounded by the const length.
-    let lo = axis.get(1..N.saturating_sub(1)).map_or(0, |inner| {
-        inner.iter().filter(|b| b.to_bits() <= at).count()
-    });
+    // 0 ..= len − 2. A branch-free count over a short axis, bounded by its capacity.
+    let lo = axis
+        .get(1..axis.len().saturating_sub(1))
+        .map_or(0, |inner| {
+            inner.iter().filter(|b| b.to_bits() <= at).count()
+        });
     let frac_q31 = match (axis.get(lo..), div.recip.get(lo), div.shift.get(lo)) {
         (Some([x0, x1, ..]), Some(&recip), Some(&shift)) => {
             let x0 = x0.to_bits();
@@ -290,6 +341,40 @@ fn to_fixed_checked<F: LeEqU32>(v: f64) -> Option<FixedI32<F>> {
     }
 }
 
+/// A table entry given as f64 (rounded to nearest) or already as fixed-point bits.
+trait TableEntry<F: LeEqU32> {
+    fn to_fixed(&self) -> Option<FixedI32<F>>;
+}
+
+impl<F: LeEqU32> TableEntry<F> for f64 {
+    fn to_fixed(&self) -> Option<FixedI32<F>> {
+        to_fixed_checked(*self)
+    }
+}
+
+impl<F: LeEqU32> TableEntry<F> for FixedI32<F> {
+    fn to_fixed(&self) -> Option<FixedI32<F>> {
+        Some(*self)
+    }
+}
+
+/// Convert `given` into the front of `out`; a bad entry is named by `axis` (`None` for
+/// values) and its index plus `first_index`.
+fn convert_into<F: LeEqU32, E: TableEntry<F>>(
+    out: &mut [FixedI32<F>],
+    given: &[E],
+    axis: Option<Axis>,
+    first_index: usize,
+) -> Result<(), TableError> {
+    for (i, (o, v)) in out.iter_mut().zip(given).enumerate() {
+        *o = v.to_fixed().ok_or(TableError::NotRepresentable {
+            axis,
+            index: first_index.saturating_add(i),
+        })?;
+    }
+    Ok(())
+}
+
 /// A 1-D table y(x) with `N` breakpoints, linear between them, clamped at the ends.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Table1<XF: LeEqU32, YF: LeEqU32, const N: usize> {
@@ -323,19 +408,9 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
     /// [`Table1::new`].
     pub fn new(x: &[f64; N], y: &[f64; N]) -> Result<Self, TableError> {
         let mut xs = [FixedI32::<XF>::ZERO; N];
+        convert_into(&mut xs, x, Some(Axis::X), 0)?;
         let mut ys = [FixedI32::<YF>::ZERO; N];
-        for (index, ((xo, yo), (&xi, &yi))) in xs
-            .iter_mut()
-            .zip(ys.iter_mut())
-            .zip(x.iter().zip(y.iter()))
-            .enumerate()
-        {
-            *xo = to_fixed_checked(xi).ok_or(TableError::NotRepresentable {
-                axis: Some(Axis::X),
-                index,
-            })?;
-            *yo = to_fixed_checked(yi).ok_or(TableError::NotRepresentable { axis: None, index })?;
-        }
+        convert_into(&mut ys, y, None, 0)?;
         Self::from_bits(xs, ys)
     }
 
@@ -363,6 +438,14 @@ impl<XF: LeEqU32, YF: LeEqU32, const N: usize> Table1<XF, YF, N> {
 
 /// A 2-D table z(x, y) on an `NX` × `NY` grid, bilinear between breakpoints, clamped at the
 /// edges. `z[i][j]` is the value at `(x[i], y[j])`.
+///
+/// `NX` × `NY` is the table's capacity. A table built from arrays ([`Table2::from_bits`],
+/// [`Table2::new`]) uses all of it; one built from slices ([`Table2::from_slices`],
+/// [`Table2::from_bit_slices`]) uses the first `x.len()` × `y.len()` and holds zeros beyond. A
+/// lookup, the accessors and equality see only the breakpoints in use, so a table of capacity 8
+/// holding 6 breakpoints gives the same bits and the same clamped flags as the same 6
+/// breakpoints in a table of capacity 6 (a host that reads table sizes at run time keeps one
+/// capacity; a firmware keeps the exact size in flash).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Table2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize> {
     x: [FixedI32<XF>; NX],
@@ -370,6 +453,9 @@ pub struct Table2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const 
     z: [[FixedI32<ZF>; NY]; NX],
     x_div: Divisors<NX>,
     y_div: Divisors<NY>,
+    /// Breakpoints in use on each axis (1 ..= capacity).
+    x_len: usize,
+    y_len: usize,
     /// Every row equals the first: z does not depend on x (a geometric radius table), so a
     /// lookup only compares x with the ends for the clamped flag.
     x_flat: bool,
@@ -378,7 +464,8 @@ pub struct Table2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const 
 impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     Table2<XF, YF, ZF, NX, NY>
 {
-    /// Build a table from breakpoints `x`, `y` (each strictly increasing) and the grid `z`.
+    /// Build a table from breakpoints `x`, `y` (each strictly increasing) and the grid `z`,
+    /// using the whole capacity.
     ///
     /// # Errors
     /// [`TableError::Empty`] or [`TableError::NotIncreasing`] naming the axis and breakpoint.
@@ -387,14 +474,42 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
         y: [FixedI32<YF>; NY],
         z: [[FixedI32<ZF>; NY]; NX],
     ) -> Result<Self, TableError> {
-        if let Err(e) = validate_axis(Axis::X, &x) {
+        Self::from_prefix(x, y, z, NX, NY)
+    }
+
+    /// The table of the first `x_len` × `y_len` breakpoints; entries beyond must be zero (the
+    /// callers guarantee it, so equality compares only what is in use).
+    const fn from_prefix(
+        x: [FixedI32<XF>; NX],
+        y: [FixedI32<YF>; NY],
+        z: [[FixedI32<ZF>; NY]; NX],
+        x_len: usize,
+        y_len: usize,
+    ) -> Result<Self, TableError> {
+        if x_len > NX {
+            return Err(TableError::TooLong {
+                axis: Axis::X,
+                len: x_len,
+                capacity: NX,
+            });
+        }
+        if y_len > NY {
+            return Err(TableError::TooLong {
+                axis: Axis::Y,
+                len: y_len,
+                capacity: NY,
+            });
+        }
+        if let Err(e) = validate_axis(Axis::X, x.split_at(x_len).0) {
             return Err(e);
         }
-        match validate_axis(Axis::Y, &y) {
+        match validate_axis(Axis::Y, y.split_at(y_len).0) {
             Ok(()) => Ok(Self {
-                x_div: Divisors::of(&x),
-                y_div: Divisors::of(&y),
-                x_flat: rows_equal(&z),
+                x_div: Divisors::of_prefix(&x, x_len),
+                y_div: Divisors::of_prefix(&y, y_len),
+                x_flat: rows_equal(&z, x_len, y_len),
+                x_len,
+                y_len,
                 x,
                 y,
                 z,
@@ -403,63 +518,172 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
         }
     }
 
-    /// Build a table from f64 breakpoints and grid values (never the per-sample path).
+    /// Build a table from breakpoints and grid rows of any length up to the capacity (`z[i]`
+    /// holds `y.len()` values at `x[i]`).
+    ///
+    /// # Errors
+    /// [`TableError::TooLong`] beyond the capacity, [`TableError::GridShape`] when `z` does
+    /// not have `x.len()` rows of `y.len()` values, then as [`Table2::from_bits`].
+    pub fn from_bit_slices<R: AsRef<[FixedI32<ZF>]>>(
+        x: &[FixedI32<XF>],
+        y: &[FixedI32<YF>],
+        z: &[R],
+    ) -> Result<Self, TableError> {
+        let (xs, ys, zs) = Self::grid_in_capacity(x, y, z)?;
+        Self::from_prefix(xs, ys, zs, x.len(), y.len())
+    }
+
+    /// Build a table from f64 breakpoints and grid values using the whole capacity (never the
+    /// per-sample path). Values are rounded to the nearest representable fixed-point number.
     ///
     /// # Errors
     /// [`TableError::NotRepresentable`] for NaN, infinite or out-of-range entries (values are
     /// indexed row-major, `i * NY + j`), then as [`Table2::from_bits`].
     pub fn new(x: &[f64; NX], y: &[f64; NY], z: &[[f64; NY]; NX]) -> Result<Self, TableError> {
+        Self::from_slices(x, y, z)
+    }
+
+    /// [`Table2::new`] for breakpoints and rows of any length up to the capacity (as
+    /// [`Table2::from_bit_slices`]).
+    ///
+    /// ```
+    /// use clampwise_core::table::Table2;
+    /// use clampwise_core::units::{Celsius, RadPerSec};
+    /// use fixed::types::extra::{U16, U30};
+    ///
+    /// // Two temperatures × three speeds in a table of capacity 4 × 4 …
+    /// let x = [20.0, 400.0];
+    /// let y = [0.0, 10.0, 100.0];
+    /// let z = [[0.40, 0.39, 0.36], [0.30, 0.29, 0.26]];
+    /// let within = Table2::<U16, U16, U30, 4, 4>::from_slices(&x, &y, &z)?;
+    /// // … looks up as the same table at its exact size, clamped flags included.
+    /// let exact = Table2::<U16, U16, U30, 2, 3>::new(&x, &y, &z)?;
+    /// for (t, v) in [("200", "50"), ("500", "5"), ("20", "150")] {
+    ///     let (t, v) = (Celsius::from_str(t).unwrap(), RadPerSec::from_str(v).unwrap());
+    ///     assert_eq!(within.lookup(t, v), exact.lookup(t, v));
+    /// }
+    /// assert_eq!(within.y_breakpoints(), exact.y_breakpoints());
+    /// # Ok::<(), clampwise_core::table::TableError>(())
+    /// ```
+    ///
+    /// # Errors
+    /// As [`Table2::from_bit_slices`], and [`TableError::NotRepresentable`] as [`Table2::new`]
+    /// (indexed row-major, `i * y.len() + j`).
+    pub fn from_slices<R: AsRef<[f64]>>(x: &[f64], y: &[f64], z: &[R]) -> Result<Self, TableError> {
+        let (xs, ys, zs) = Self::grid_in_capacity(x, y, z)?;
+        Self::from_prefix(xs, ys, zs, x.len(), y.len())
+    }
+
+    /// Check the shape against the capacity and convert every entry into zero-filled arrays.
+    #[allow(clippy::type_complexity)]
+    fn grid_in_capacity<A, B, C, R>(
+        x: &[A],
+        y: &[B],
+        z: &[R],
+    ) -> Result<
+        (
+            [FixedI32<XF>; NX],
+            [FixedI32<YF>; NY],
+            [[FixedI32<ZF>; NY]; NX],
+        ),
+        TableError,
+    >
+    where
+        A: TableEntry<XF>,
+        B: TableEntry<YF>,
+        C: TableEntry<ZF>,
+        R: AsRef<[C]>,
+    {
+        for (axis, len, capacity) in [(Axis::X, x.len(), NX), (Axis::Y, y.len(), NY)] {
+            if len > capacity {
+                return Err(TableError::TooLong {
+                    axis,
+                    len,
+                    capacity,
+                });
+            }
+        }
+        if z.len() != x.len() {
+            return Err(TableError::GridShape {
+                row: None,
+                len: z.len(),
+                expected: x.len(),
+            });
+        }
         let mut xs = [FixedI32::<XF>::ZERO; NX];
+        convert_into(&mut xs, x, Some(Axis::X), 0)?;
         let mut ys = [FixedI32::<YF>::ZERO; NY];
+        convert_into(&mut ys, y, Some(Axis::Y), 0)?;
         let mut zs = [[FixedI32::<ZF>::ZERO; NY]; NX];
-        for (index, (o, &v)) in xs.iter_mut().zip(x.iter()).enumerate() {
-            *o = to_fixed_checked(v).ok_or(TableError::NotRepresentable {
-                axis: Some(Axis::X),
-                index,
-            })?;
+        for (row, (out, given)) in zs.iter_mut().zip(z).enumerate() {
+            let given = given.as_ref();
+            if given.len() != y.len() {
+                return Err(TableError::GridShape {
+                    row: Some(row),
+                    len: given.len(),
+                    expected: y.len(),
+                });
+            }
+            convert_into(out, given, None, row.saturating_mul(y.len()))?;
         }
-        for (index, (o, &v)) in ys.iter_mut().zip(y.iter()).enumerate() {
-            *o = to_fixed_checked(v).ok_or(TableError::NotRepresentable {
-                axis: Some(Axis::Y),
-                index,
-            })?;
-        }
-        let cells = zs
-            .iter_mut()
-            .flat_map(|r| r.iter_mut())
-            .zip(z.iter().flat_map(|r| r.iter()));
-        for (index, (o, &v)) in cells.enumerate() {
-            *o = to_fixed_checked(v).ok_or(TableError::NotRepresentable { axis: None, index })?;
-        }
-        Self::from_bits(xs, ys, zs)
+        Ok((xs, ys, zs))
+    }
+    /// The breakpoints of the first axis in use.
+    pub fn x_breakpoints(&self) -> &[FixedI32<XF>] {
+        self.x.get(..self.x_len).unwrap_or(&self.x)
     }
 
-    /// The breakpoints of the first axis.
-    pub const fn x_breakpoints(&self) -> &[FixedI32<XF>; NX] {
-        &self.x
+    /// The breakpoints of the second axis in use.
+    pub fn y_breakpoints(&self) -> &[FixedI32<YF>] {
+        self.y.get(..self.y_len).unwrap_or(&self.y)
     }
 
-    /// The breakpoints of the second axis.
-    pub const fn y_breakpoints(&self) -> &[FixedI32<YF>; NY] {
+    /// The grid rows in use, row `i` holding the values at `(x[i], y[0 ..])`.
+    pub fn rows(&self) -> impl Iterator<Item = &[FixedI32<ZF>]> {
+        let y_len = self.y_len;
+        self.z
+            .iter()
+            .take(self.x_len)
+            .map(move |row| row.get(..y_len).unwrap_or(row))
+    }
+
+    /// The value at `(x[i], y[j])`, `None` outside the breakpoints in use.
+    pub fn value(&self, i: usize, j: usize) -> Option<FixedI32<ZF>> {
+        self.rows().nth(i).and_then(|row| row.get(j).copied())
+    }
+
+    /// The whole grid, zeros beyond the rows and columns in use (for `const` checks).
+    pub(crate) const fn capacity_grid(&self) -> &[[FixedI32<ZF>; NY]; NX] {
+        &self.z
+    }
+
+    /// The whole second axis, zeros beyond the breakpoints in use (for `const` checks).
+    pub(crate) const fn capacity_y(&self) -> &[FixedI32<YF>; NY] {
         &self.y
     }
 
-    /// The grid values, `values()[i][j]` at `(x[i], y[j])`.
-    pub const fn values(&self) -> &[[FixedI32<ZF>; NY]; NX] {
-        &self.z
+    /// Every number that defines the table, as raw bits in a fixed order: the two lengths, the
+    /// breakpoints in use, then the values row by row (a configuration checksum's input).
+    pub fn for_each_bits(&self, mut word: impl FnMut(i32)) {
+        for len in [self.x_len, self.y_len] {
+            word(i32::try_from(len).unwrap_or(i32::MAX));
+        }
+        self.x_breakpoints().iter().for_each(|v| word(v.to_bits()));
+        self.y_breakpoints().iter().for_each(|v| word(v.to_bits()));
+        self.rows().flatten().for_each(|v| word(v.to_bits()));
     }
 
     /// Interpolate at `(x, y)`; outside the grid the edge value is returned and flagged.
     #[inline]
     pub fn lookup(&self, x: FixedI32<XF>, y: FixedI32<YF>) -> Lookup<FixedI32<ZF>> {
-        let py = locate(&self.y, &self.y_div, y);
+        let py = locate(self.y_breakpoints(), &self.y_div, y);
         if self.x_flat {
             return Lookup {
                 value: FixedI32::from_bits(narrow(self.along_y(0, py))),
-                clamped: py.clamped || outside(&self.x, x),
+                clamped: py.clamped || outside(self.x_breakpoints(), x),
             };
         }
-        let px = locate(&self.x, &self.x_div, x);
+        let px = locate(self.x_breakpoints(), &self.x_div, x);
         Lookup {
             value: FixedI32::from_bits(narrow(self.interpolate(px, py))),
             clamped: px.clamped || py.clamped,
@@ -494,8 +718,8 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     ) -> (Lookup<FixedI32<ZF>>, Lookup<FixedI32<ZF>>) {
         // No flat-x shortcut here: a μ table depends on temperature, and `locate` is exact on
         // any table.
-        let px = locate(&self.x, &self.x_div, x);
-        let py = locate(&self.y, &self.y_div, y);
+        let px = locate(self.x_breakpoints(), &self.x_div, x);
+        let py = locate(self.y_breakpoints(), &self.y_div, y);
         // y₀ itself: index 0, no fraction, not clamped.
         let p0 = Position {
             lo: 0,
@@ -533,14 +757,16 @@ impl<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NX: usize, const NY: usize>
     }
 }
 
-/// Whether every row of a grid equals the first (the grid does not depend on x).
+/// Whether every row in use of a grid equals the first (the grid does not depend on x).
 const fn rows_equal<F: LeEqU32, const NX: usize, const NY: usize>(
     z: &[[FixedI32<F>; NY]; NX],
+    x_len: usize,
+    y_len: usize,
 ) -> bool {
     let mut i = 1;
-    while i < NX {
+    while i < x_len && i < NX {
         let mut j = 0;
-        while j < NY {
+        while j < y_len && j < NY {
             // i < NX, j < NY by the loop bounds; `get` is not usable in a const fn.
             #[allow(clippy::indexing_slicing)]
             if z[i][j].to_bits() != z[0][j].to_bits() {
@@ -630,6 +856,53 @@ mod tests {
     }
 
     #[test]
+    fn slices_beyond_the_capacity_or_off_the_grid_are_refused() {
+        let too_long = T2::from_slices(&[0.0, 1.0, 2.0, 3.0], &[0.0], &[[0.0]; 4]);
+        assert_eq!(
+            too_long,
+            Err(TableError::TooLong {
+                axis: Axis::X,
+                len: 4,
+                capacity: 3
+            })
+        );
+        let rows = T2::from_slices(&[0.0, 1.0], &[0.0], &[[0.0]]);
+        assert!(matches!(
+            rows,
+            Err(TableError::GridShape {
+                row: None,
+                len: 1,
+                expected: 2
+            })
+        ));
+        let short_row: [&[f64]; 2] = [&[0.0, 1.0], &[0.0]];
+        let row = T2::from_slices(&[0.0, 1.0], &[0.0, 1.0], &short_row);
+        assert!(matches!(
+            row,
+            Err(TableError::GridShape {
+                row: Some(1),
+                len: 1,
+                expected: 2
+            })
+        ));
+        // Zero breakpoints is an empty axis, as at a fixed size.
+        let empty: [[f64; 1]; 0] = [];
+        assert!(matches!(
+            T2::from_slices(&[], &[0.0], &empty),
+            Err(TableError::Empty { axis: Axis::X })
+        ));
+        assert!(
+            TableError::TooLong {
+                axis: Axis::Y,
+                len: 9,
+                capacity: 8
+            }
+            .to_string()
+            .contains("capacity of 8")
+        );
+    }
+
+    #[test]
     fn single_breakpoint_is_a_constant() {
         let t = Table1::<U16, U16, 1>::new(&[3.0], &[7.5]).unwrap();
         assert_eq!(
@@ -699,6 +972,35 @@ mod tests {
             let got: f64 = t.lookup(xq).value.to_num();
             let lsb = 1.0 / f64::from(1u32 << 24);
             prop_assert!((got - expected).abs() <= 0.5 * lsb + 1e-9, "{got} vs {expected}");
+        }
+
+        // A table held within a larger capacity looks up as the same table at its exact size:
+        // values, clamped flags, accessors and checksum words, at any input (raw bits, so
+        // both ends and every segment are reached).
+        #[test]
+        fn a_table_within_a_capacity_is_the_table_at_its_size(
+            x0 in -1000i32..1000, dx in proptest::collection::vec(1i32..400, 2),
+            y0 in -1000i32..1000, dy in proptest::collection::vec(1i32..400, 1),
+            z in proptest::collection::vec(-5000i32..5000, 6),
+            at_x in -2000i32..3000, at_y in -2000i32..3000,
+        ) {
+            type X = FixedI32<U8>;
+            type Y = FixedI32<U16>;
+            type Z = FixedI32<U24>;
+            let xs = [X::from_bits(x0), X::from_bits(x0 + dx[0]), X::from_bits(x0 + dx[0] + dx[1])];
+            let ys = [Y::from_bits(y0), Y::from_bits(y0 + dy[0])];
+            let zs: [[Z; 2]; 3] = core::array::from_fn(|i| core::array::from_fn(|j| Z::from_bits(z[2 * i + j])));
+            let exact = T2::from_bits(xs, ys, zs).unwrap();
+            let within = Table2::<U8, U16, U24, 8, 5>::from_bit_slices(&xs, &ys, &zs).unwrap();
+            let (ax, ay) = (X::from_bits(at_x), Y::from_bits(at_y));
+            prop_assert_eq!(within.lookup(ax, ay), exact.lookup(ax, ay));
+            prop_assert_eq!(within.lookup_with_first_y(ax, ay), exact.lookup_with_first_y(ax, ay));
+            prop_assert_eq!(within.x_breakpoints(), exact.x_breakpoints());
+            prop_assert!(within.rows().eq(exact.rows()));
+            let (mut a, mut b) = (Vec::new(), Vec::new());
+            within.for_each_bits(|w| a.push(w));
+            exact.for_each_bits(|w| b.push(w));
+            prop_assert_eq!(a, b);
         }
 
         #[test]

@@ -393,11 +393,21 @@ fn braking_event_matches_the_f64_pipeline_sample_by_sample() {
     // The plant: the same device with every μ of the table 8 % lower (invented offset).
     let table = mu_table();
     let plant_friction = FrictionModel::new(
-        table.x_breakpoints().map(|v| v.to_num()),
-        table.y_breakpoints().map(|v| v.to_num()),
-        table
-            .values()
-            .map(|row| row.map(|m| 0.92 * m.to_num::<f64>())),
+        std::array::from_fn(|i| {
+            table
+                .x_breakpoints()
+                .get(i)
+                .map_or(f64::NAN, |v| v.to_num())
+        }),
+        std::array::from_fn(|j| {
+            table
+                .y_breakpoints()
+                .get(j)
+                .map_or(f64::NAN, |v| v.to_num())
+        }),
+        std::array::from_fn(|i| {
+            std::array::from_fn(|j| 0.92 * table.value(i, j).unwrap().to_num::<f64>())
+        }),
         &friction_params(&spec),
     );
     let mut plant = PipelineModel::new(PipelineParts {

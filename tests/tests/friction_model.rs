@@ -78,10 +78,10 @@ fn breakpoints_exact_and_out_of_range_flagged() {
     let t = cfg.mu_kinetic();
     for (i, temp) in t.x_breakpoints().iter().enumerate() {
         for (j, v) in t.y_breakpoints().iter().enumerate() {
-            assert_eq!(t.lookup(*temp, *v).value, t.values()[i][j]);
+            assert_eq!(t.lookup(*temp, *v).value, t.value(i, j).unwrap());
             if *v >= cfg.transition_speed() {
                 let out = FrictionState::new().update(&cfg, *v, *temp, Ratio::ONE);
-                assert_eq!(out.mu_kinetic, t.values()[i][j], "({i},{j})");
+                assert_eq!(out.mu_kinetic, t.value(i, j).unwrap(), "({i},{j})");
                 assert!(!out.clamped);
             }
         }
@@ -93,7 +93,7 @@ fn breakpoints_exact_and_out_of_range_flagged() {
         Ratio::ONE,
     );
     assert!(hot.clamped);
-    assert_eq!(hot.mu_kinetic, t.values()[3][4]);
+    assert_eq!(hot.mu_kinetic, t.value(3, 4).unwrap());
     let cold = FrictionState::new().update(
         &cfg,
         RadPerSec::from_num(50),
@@ -107,18 +107,18 @@ fn breakpoints_exact_and_out_of_range_flagged() {
 #[test]
 fn demo_tables_grade_as_their_materials() {
     let wet = wet_clutch();
-    for row in wet.mu_kinetic().values() {
+    for row in wet.mu_kinetic().rows() {
         for mu in row {
             assert_eq!(FrictionCode::classify(*mu), FrictionCode::C);
         }
     }
     let dry = dry_caliper();
     assert_eq!(
-        FrictionCode::classify(dry.mu_kinetic().values()[1][0]),
+        FrictionCode::classify(dry.mu_kinetic().value(1, 0).unwrap()),
         FrictionCode::F
     );
     assert_eq!(
-        FrictionCode::classify(dry.mu_kinetic().values()[3][0]),
+        FrictionCode::classify(dry.mu_kinetic().value(3, 0).unwrap()),
         FrictionCode::E
     );
 }

@@ -79,7 +79,13 @@ fn check_table2<const NX: usize, const NY: usize>(
             FixedI32::<U8>::from_bits(input_for(&xs, px)),
             FixedI32::<U16>::from_bits(input_for(&ys, py)),
         );
-        let want = plain::table::lookup2(t.x_breakpoints(), t.y_breakpoints(), t.values(), x, y);
+        let want = plain::table::lookup2(
+            t.x_breakpoints(),
+            t.y_breakpoints(),
+            &t.rows().collect::<Vec<_>>(),
+            x,
+            y,
+        );
         let got = t.lookup(x, y);
         assert_eq!((got.value.to_bits(), got.clamped), want, "x={x:?} y={y:?}");
         let (running, standstill) = t.lookup_with_first_y(x, y);

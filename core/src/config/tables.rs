@@ -1,8 +1,11 @@
 //! A device's lookup tables as one type: the friction-radius table r_e(F, bedding) and the μ
 //! model (its μ table and the stick/slip parameters around it).
 //!
-//! [`Tables`] holds them at their exact sizes; the estimator and the device configuration are
-//! generic over [`TableSet`], so a device's type names one table type instead of four sizes.
+//! [`Tables`] holds them in capacities `NF` × `NB` and `NT` × `NV`: at their exact sizes when
+//! built from arrays (a firmware's `const` tables), or at sizes read at run time within those
+//! capacities (a host; see [`Table2`](crate::table::Table2)), which look up and checksum as the
+//! same tables at their exact sizes. The estimator and the device configuration are generic
+//! over [`TableSet`], so a device's type names one table type instead of four sizes.
 
 use core::fmt::Debug;
 
@@ -40,8 +43,8 @@ pub trait TableSet: Copy + Debug + PartialEq + Eq + sealed::Sealed {
     fn feed_bits(&self, sink: &mut dyn FnMut(&[u8]));
 }
 
-/// The tables of one device at their exact sizes: an `NF` × `NB` friction-radius table
-/// (clamp force × bedding) and an `NT` × `NV` μ table (lining temperature × slip speed).
+/// The tables of one device: a friction-radius table (clamp force × bedding) of capacity
+/// `NF` × `NB` and a μ table (lining temperature × slip speed) of capacity `NT` × `NV`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Tables<const NF: usize, const NB: usize, const NT: usize, const NV: usize> {
     radius: RadiusTable<NF, NB>,
@@ -135,15 +138,9 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> TableSe
 
     fn feed_bits(&self, sink: &mut dyn FnMut(&[u8])) {
         let mut word = |v: i32| sink(&v.to_le_bytes());
-        let r = &self.radius;
-        r.x_breakpoints().iter().for_each(|v| word(v.to_bits()));
-        r.y_breakpoints().iter().for_each(|v| word(v.to_bits()));
-        r.values().iter().flatten().for_each(|v| word(v.to_bits()));
+        self.radius.for_each_bits(&mut word);
         let fr = &self.friction;
-        let mu = fr.mu_kinetic();
-        mu.x_breakpoints().iter().for_each(|v| word(v.to_bits()));
-        mu.y_breakpoints().iter().for_each(|v| word(v.to_bits()));
-        mu.values().iter().flatten().for_each(|v| word(v.to_bits()));
+        fr.mu_kinetic().for_each_bits(&mut word);
         word(fr.static_to_kinetic().to_bits());
         word(fr.slip_threshold().to_bits());
         word(fr.stick_threshold().to_bits());

@@ -68,5 +68,5 @@ pub use disc::Disc;
 pub use error::{GeometryError, Parameter};
 pub use polygon::{Point, PolygonPad};
 pub use pressure::{EffectiveRadii, PadIntegrals, PressureModel};
-pub use radius_table::{RadiusTable, build_radius_table};
+pub use radius_table::{RadiusTable, build_radius_table, build_radius_table_from_slices};
 pub use sector::SectorPad;

@@ -51,8 +51,8 @@ use crate::table::Table2;
 /// [`Ratio`]: crate::units::Ratio
 pub type RadiusTable<const NF: usize, const NB: usize> = Table2<U8, U30, U24, NF, NB>;
 
-/// Build the friction-radius table of `contact` on the given breakpoints (host, build script or
-/// start-up; never the per-sample path).
+/// Build the friction-radius table of `contact` on the given breakpoints, at their exact size
+/// (host, build script or start-up; never the per-sample path).
 ///
 /// `force_breakpoints_n`: clamp force, N, non-negative and strictly increasing (up to 8.4 MN);
 /// `bedding_breakpoints`: strictly increasing within [0, 1]. Each cell holds
@@ -79,18 +79,36 @@ pub fn build_radius_table<const NF: usize, const NB: usize>(
     force_breakpoints_n: &[f64; NF],
     bedding_breakpoints: &[f64; NB],
 ) -> Result<RadiusTable<NF, NB>, GeometryError> {
+    build_radius_table_from_slices(contact, force_breakpoints_n, bedding_breakpoints)
+}
+
+/// [`build_radius_table`] for breakpoints of any length up to a table capacity of `NF` × `NB`
+/// (a host that reads the table sizes at run time; see [`Table2`]).
+///
+/// # Errors
+/// As [`build_radius_table`], and [`GeometryError::Table`] when more breakpoints are given
+/// than the capacity.
+pub fn build_radius_table_from_slices<const NF: usize, const NB: usize>(
+    contact: &Contact<'_>,
+    force_breakpoints_n: &[f64],
+    bedding_breakpoints: &[f64],
+) -> Result<RadiusTable<NF, NB>, GeometryError> {
     for (i, &f) in force_breakpoints_n.iter().enumerate() {
         error::length(Parameter::ForceBreakpoint(i), f)?;
     }
     let mut arms = [0.0; NB];
-    for (j, (arm, &b)) in arms.iter_mut().zip(bedding_breakpoints.iter()).enumerate() {
+    for (j, &b) in bedding_breakpoints.iter().enumerate() {
         let b = error::bedding(Parameter::BeddingBreakpoint(j), b)?;
-        *arm = contact.lever_arm(b)?;
+        if let Some(arm) = arms.get_mut(j) {
+            *arm = contact.lever_arm(b)?;
+        }
     }
-    let z = [arms; NF];
-    Ok(RadiusTable::new(
+    let row = arms.get(..bedding_breakpoints.len()).unwrap_or(&arms);
+    let rows = [row; NF];
+    let rows = rows.get(..force_breakpoints_n.len()).unwrap_or(&rows);
+    Ok(RadiusTable::from_slices(
         force_breakpoints_n,
         bedding_breakpoints,
-        &z,
+        rows,
     )?)
 }

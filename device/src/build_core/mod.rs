@@ -22,21 +22,19 @@
 //! steps it matches once and runs generic code inside (`clampwise_convert::CoreEstimator`
 //! does).
 //!
-//! ## Table capacities (const generics of the core) and why lookups stay exact
+//! ## Table capacities (const generics of the core) and the exact sizes within them
 //!
 //! | table | capacity | axes |
 //! |---|---|---|
 //! | μ(lining temperature, \|slip speed\|) | [`MU_POINTS`] × [`MU_POINTS`] = 8 × 8 | config: 1–8 each |
 //! | friction radius r_e(clamp force, bedding) | [`RADIUS_FORCE_POINTS`] × [`RADIUS_BEDDING_POINTS`] = 8 × 2 | config: 1–8 forces; bedding fixed at 0 and 1 |
 //!
-//! A config table smaller than its capacity is **padded at the top end**: the extra
-//! breakpoints sit one LSB apart after the last real one and hold the edge values. Between
-//! equal values the interpolation returns that value exactly, so every lookup returns the same
-//! bits as a table of the real size would; the only difference is the core's
-//! `OUT_OF_RANGE` flag, which a padded axis raises from one LSB beyond the last padding
-//! breakpoint instead of from one LSB beyond the last real one — a band of at most 7 LSB
-//! (0.11 mK, 0.11 mrad/s, 27 mN), documented and accepted. The firmware emitter
-//! ([`crate::emit`]) writes the real sizes.
+//! A config reads its table sizes at run time, so the host keeps one capacity and the core's
+//! table holds the config's breakpoints at their exact size within it
+//! (`clampwise_core::table::Table2::from_slices`): lookups, clamped flags and the checksum see
+//! only those, bit for bit as a table built at that size. The firmware emitter
+//! ([`crate::emit`]) writes each table at its exact size, and the firmware checks the checksum
+//! computed here against its compiled constant.
 //!
 //! The bedding axis is fixed at the two pressure models, 0 (new, uniform pressure) and 1
 //! (bedded, uniform wear): r_e is exactly linear in bedding
@@ -70,9 +68,9 @@ pub const RADIUS_BEDDING_POINTS: usize = 2;
 /// The bedding breakpoints.
 pub const RADIUS_BEDDING: [f64; RADIUS_BEDDING_POINTS] = [0.0, 1.0];
 
-/// μ(lining temperature °C, |slip speed| rad/s), padded to the fixed capacity.
+/// μ(lining temperature °C, |slip speed| rad/s) within the host's capacity.
 pub type MuTable = clampwise_core::friction::MuTable<MU_POINTS, MU_POINTS>;
-/// r_e(clamp force N, bedding) in m, padded to the fixed capacity.
+/// r_e(clamp force N, bedding) in m within the host's capacity.
 pub type RadiusTable =
     clampwise_core::geometry::RadiusTable<RADIUS_FORCE_POINTS, RADIUS_BEDDING_POINTS>;
 
@@ -189,11 +187,11 @@ impl InitialState {
     }
 }
 
-/// Everything the core needs for one device: the tables (with their real sizes, for
-/// printing, fitting and emitting), the validated core configuration and the starting state.
+/// Everything the core needs for one device: the tables (for printing, fitting and
+/// emitting), the validated core configuration and the starting state.
 #[derive(Clone, Debug)]
 pub struct CoreDevice {
-    /// The padded tables and their real sizes.
+    /// The fixed-point tables.
     pub tables: CoreTables,
     /// The core's validated device configuration.
     pub device: ChannelDevice,

@@ -82,6 +82,7 @@ use clampwise_core::table::Table2;
 use clampwise_core::thermal::{ThermalConfig, ThermalRaw};
 use clampwise_core::units::RadPerSec;
 use clampwise_core::wear::{WearConfig, WearRaw};
+use fixed::FixedI32;
 use fixed::types::extra::LeEqU32;
 
 use super::{EmitError, err};
@@ -134,7 +135,8 @@ fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, co
         part: &'static str,
         t: &Table2<X, Y, Z, NX, NY>,
     ) -> Result<Table2<X, Y, Z, NX, NY>, EmitError> {
-        Table2::from_bits(*t.x_breakpoints(), *t.y_breakpoints(), *t.values())
+        let rows: Vec<&[FixedI32<Z>]> = t.rows().collect();
+        Table2::from_bit_slices(t.x_breakpoints(), t.y_breakpoints(), &rows)
             .map_err(|e| err(part, e.to_string()))
     }
     let fr = cfg.tables().friction();
@@ -233,7 +235,7 @@ fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
         bits_list(ty, t.y_breakpoints(), |v| i64::from(v.to_bits()))
     );
     call.push_str("    [\n");
-    for row in t.values() {
+    for row in t.rows() {
         let _ = writeln!(
             call,
             "        [{}],",
@@ -626,6 +628,10 @@ pub fn device_config_source<
 
     let origin = origin.replace(['\n', '\r'], " ");
     let checksum = cfg.checksum();
+    // The exact sizes: the tables may sit in larger capacities on the host.
+    let (radius, mu) = (cfg.tables().radius(), cfg.tables().friction().mu_kinetic());
+    let (nf, nb) = (radius.x_breakpoints().len(), radius.y_breakpoints().len());
+    let (nt, nv) = (mu.x_breakpoints().len(), mu.y_breakpoints().len());
     let mut out = String::new();
     let _ = writeln!(
         out,
@@ -638,13 +644,13 @@ pub fn device_config_source<
         "/// Number of clamp-force channels.\n\
          pub const DEVICE_CHANNELS: usize = {C};\n\
          /// Force breakpoints of the friction-radius table.\n\
-         pub const DEVICE_RADIUS_FORCES: usize = {NF};\n\
+         pub const DEVICE_RADIUS_FORCES: usize = {nf};\n\
          /// Bedding breakpoints of the friction-radius table.\n\
-         pub const DEVICE_RADIUS_BEDDINGS: usize = {NB};\n\
+         pub const DEVICE_RADIUS_BEDDINGS: usize = {nb};\n\
          /// Temperature breakpoints of the μ table.\n\
-         pub const DEVICE_MU_TEMPERATURES: usize = {NT};\n\
+         pub const DEVICE_MU_TEMPERATURES: usize = {nt};\n\
          /// Slip-speed breakpoints of the μ table.\n\
-         pub const DEVICE_MU_SPEEDS: usize = {NV};\n\
+         pub const DEVICE_MU_SPEEDS: usize = {nv};\n\
          /// The device's tables, at their sizes.\n\
          pub type DeviceTables = ::clampwise_core::config::Tables<\n    \
          DEVICE_RADIUS_FORCES,\n    \
@@ -928,7 +934,12 @@ mod tests {
         thermal.ambient = Celsius::from_num(21);
         let mut wear = base.wear.to_raw();
         wear.minimum_thickness = Metres::from_num(0.003);
-        let mut radius_values = *base.tables.radius().values();
+        let mut radius_values: Vec<Vec<Metres>> = base
+            .tables
+            .radius()
+            .rows()
+            .map(<[Metres]>::to_vec)
+            .collect();
         radius_values[1][1] = Metres::from_bits(radius_values[1][1].to_bits() + 1);
         let variants = [
             DeviceParts { faces: 4, ..base },
@@ -946,10 +957,10 @@ mod tests {
             },
             DeviceParts {
                 tables: Tables::new(
-                    Table2::from_bits(
-                        *base.tables.radius().x_breakpoints(),
-                        *base.tables.radius().y_breakpoints(),
-                        radius_values,
+                    Table2::from_bit_slices(
+                        base.tables.radius().x_breakpoints(),
+                        base.tables.radius().y_breakpoints(),
+                        &radius_values,
                     )
                     .unwrap(),
                     *base.tables.friction(),

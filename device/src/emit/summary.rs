@@ -24,11 +24,11 @@ pub fn human(cfg: &LoadedConfig, core: &CoreDevice) -> String {
         "  friction radius r_e [m] (rows: clamp force N; columns: bedding):"
     );
     let mut h = String::from("    F \\ bedding");
-    for b in t.radius_bedding_axis() {
+    for b in t.radius.y_breakpoints() {
         let _ = write!(h, "{:>12}", format!("{:.3}", b.to_num::<f64>()));
     }
     let _ = writeln!(o, "{h}");
-    for (f, row) in t.radius_force_axis().iter().zip(t.radius_rows()) {
+    for (f, row) in t.radius.x_breakpoints().iter().zip(t.radius.rows()) {
         let mut l = format!("    {:>12}", format!("{:.0}", f.to_num::<f64>()));
         for v in row {
             let _ = write!(l, "{:>12.6}", v.to_num::<f64>());
@@ -40,11 +40,11 @@ pub fn human(cfg: &LoadedConfig, core: &CoreDevice) -> String {
         "  kinetic μ (rows: lining temperature °C; columns: |slip speed| rad/s):"
     );
     let mut h = String::from("    T \\ v      ");
-    for v in t.mu_speed_axis() {
+    for v in t.mu.y_breakpoints() {
         let _ = write!(h, "{:>9}", format!("{}", v.to_num::<f64>()));
     }
     let _ = writeln!(o, "{h}");
-    for (tc, row) in t.mu_temperature_axis().iter().zip(t.mu_rows()) {
+    for (tc, row) in t.mu.x_breakpoints().iter().zip(t.mu.rows()) {
         let mut l = format!("    {:>10}", format!("{}", tc.to_num::<f64>()));
         for v in row {
             let _ = write!(l, "{:>9.4}", v.to_num::<f64>());

@@ -5,13 +5,13 @@
 /// Number of clamp-force channels.
 pub const DEVICE_CHANNELS: usize = 3;
 /// Force breakpoints of the friction-radius table.
-pub const DEVICE_RADIUS_FORCES: usize = 8;
+pub const DEVICE_RADIUS_FORCES: usize = 2;
 /// Bedding breakpoints of the friction-radius table.
 pub const DEVICE_RADIUS_BEDDINGS: usize = 2;
 /// Temperature breakpoints of the μ table.
-pub const DEVICE_MU_TEMPERATURES: usize = 8;
+pub const DEVICE_MU_TEMPERATURES: usize = 6;
 /// Slip-speed breakpoints of the μ table.
-pub const DEVICE_MU_SPEEDS: usize = 8;
+pub const DEVICE_MU_SPEEDS: usize = 6;
 /// The device's tables, at their sizes.
 pub type DeviceTables = ::clampwise_core::config::Tables<
     DEVICE_RADIUS_FORCES,
@@ -22,7 +22,7 @@ pub type DeviceTables = ::clampwise_core::config::Tables<
 /// The device configuration's type: its tables and its channels.
 pub type Device = ::clampwise_core::config::DeviceConfig<DeviceTables, DEVICE_CHANNELS>;
 /// `DeviceConfig::checksum` of [`DEVICE`], computed on the host from demo-hoist-brake.toml.
-pub const DEVICE_CHECKSUM: u32 = 0x529594e2;
+pub const DEVICE_CHECKSUM: u32 = 0xa24abbe0;
 /// The device configuration (demo-hoist-brake.toml), evaluated at compile time.
 #[allow(clippy::unreadable_literal, unused_imports)]
 pub const DEVICE: Device = {
@@ -47,15 +47,9 @@ pub const DEVICE: Device = {
         faces: 2,
         tables: Tables::new(
             match Table2::from_bits(
-                [Newtons::from_bits(0), Newtons::from_bits(20480000), Newtons::from_bits(20480001), Newtons::from_bits(20480002), Newtons::from_bits(20480003), Newtons::from_bits(20480004), Newtons::from_bits(20480005), Newtons::from_bits(20480006)],
+                [Newtons::from_bits(0), Newtons::from_bits(20480000)],
                 [Ratio::from_bits(0), Ratio::from_bits(1073741824)],
                 [
-                    [Metres::from_bits(10125982), Metres::from_bits(10066330)],
-                    [Metres::from_bits(10125982), Metres::from_bits(10066330)],
-                    [Metres::from_bits(10125982), Metres::from_bits(10066330)],
-                    [Metres::from_bits(10125982), Metres::from_bits(10066330)],
-                    [Metres::from_bits(10125982), Metres::from_bits(10066330)],
-                    [Metres::from_bits(10125982), Metres::from_bits(10066330)],
                     [Metres::from_bits(10125982), Metres::from_bits(10066330)],
                     [Metres::from_bits(10125982), Metres::from_bits(10066330)],
                 ],
@@ -65,17 +59,15 @@ pub const DEVICE: Device = {
             },
             match FrictionConfig::from_bits(
                 match Table2::from_bits(
-                    [Celsius::from_bits(1310720), Celsius::from_bits(6553600), Celsius::from_bits(13107200), Celsius::from_bits(19660800), Celsius::from_bits(26214400), Celsius::from_bits(32768000), Celsius::from_bits(32768001), Celsius::from_bits(32768002)],
-                    [RadPerSec::from_bits(0), RadPerSec::from_bits(32768), RadPerSec::from_bits(131072), RadPerSec::from_bits(327680), RadPerSec::from_bits(655360), RadPerSec::from_bits(1310720), RadPerSec::from_bits(1310721), RadPerSec::from_bits(1310722)],
+                    [Celsius::from_bits(1310720), Celsius::from_bits(6553600), Celsius::from_bits(13107200), Celsius::from_bits(19660800), Celsius::from_bits(26214400), Celsius::from_bits(32768000)],
+                    [RadPerSec::from_bits(0), RadPerSec::from_bits(32768), RadPerSec::from_bits(131072), RadPerSec::from_bits(327680), RadPerSec::from_bits(655360), RadPerSec::from_bits(1310720)],
                     [
-                        [Ratio::from_bits(450971566), Ratio::from_bits(440234148), Ratio::from_bits(429496730), Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(397284475), Ratio::from_bits(397284475), Ratio::from_bits(397284475)],
-                        [Ratio::from_bits(461708984), Ratio::from_bits(450971566), Ratio::from_bits(440234148), Ratio::from_bits(429496730), Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(408021893), Ratio::from_bits(408021893)],
-                        [Ratio::from_bits(450971566), Ratio::from_bits(440234148), Ratio::from_bits(429496730), Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(397284475), Ratio::from_bits(397284475), Ratio::from_bits(397284475)],
-                        [Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(397284475), Ratio::from_bits(386547057), Ratio::from_bits(375809638), Ratio::from_bits(365072220), Ratio::from_bits(365072220), Ratio::from_bits(365072220)],
-                        [Ratio::from_bits(365072220), Ratio::from_bits(354334802), Ratio::from_bits(343597384), Ratio::from_bits(332859965), Ratio::from_bits(322122547), Ratio::from_bits(311385129), Ratio::from_bits(311385129), Ratio::from_bits(311385129)],
-                        [Ratio::from_bits(300647711), Ratio::from_bits(289910292), Ratio::from_bits(279172874), Ratio::from_bits(268435456), Ratio::from_bits(257698038), Ratio::from_bits(246960620), Ratio::from_bits(246960620), Ratio::from_bits(246960620)],
-                        [Ratio::from_bits(300647711), Ratio::from_bits(289910292), Ratio::from_bits(279172874), Ratio::from_bits(268435456), Ratio::from_bits(257698038), Ratio::from_bits(246960620), Ratio::from_bits(246960620), Ratio::from_bits(246960620)],
-                        [Ratio::from_bits(300647711), Ratio::from_bits(289910292), Ratio::from_bits(279172874), Ratio::from_bits(268435456), Ratio::from_bits(257698038), Ratio::from_bits(246960620), Ratio::from_bits(246960620), Ratio::from_bits(246960620)],
+                        [Ratio::from_bits(450971566), Ratio::from_bits(440234148), Ratio::from_bits(429496730), Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(397284475)],
+                        [Ratio::from_bits(461708984), Ratio::from_bits(450971566), Ratio::from_bits(440234148), Ratio::from_bits(429496730), Ratio::from_bits(418759311), Ratio::from_bits(408021893)],
+                        [Ratio::from_bits(450971566), Ratio::from_bits(440234148), Ratio::from_bits(429496730), Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(397284475)],
+                        [Ratio::from_bits(418759311), Ratio::from_bits(408021893), Ratio::from_bits(397284475), Ratio::from_bits(386547057), Ratio::from_bits(375809638), Ratio::from_bits(365072220)],
+                        [Ratio::from_bits(365072220), Ratio::from_bits(354334802), Ratio::from_bits(343597384), Ratio::from_bits(332859965), Ratio::from_bits(322122547), Ratio::from_bits(311385129)],
+                        [Ratio::from_bits(300647711), Ratio::from_bits(289910292), Ratio::from_bits(279172874), Ratio::from_bits(268435456), Ratio::from_bits(257698038), Ratio::from_bits(246960620)],
                     ],
                 ) {
                     Ok(v) => v,

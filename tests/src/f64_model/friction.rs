@@ -83,13 +83,20 @@ impl<const NT: usize, const NV: usize> FrictionModel<NT, NV> {
         }
     }
 
-    /// The same model as a fixed-point config, every stored value taken exactly as f64.
+    /// The same model as a fixed-point config whose μ table fills its capacity, every stored
+    /// value taken exactly as f64.
     pub fn from_config(cfg: &FrictionConfig<NT, NV>) -> Self {
         let t = cfg.mu_kinetic();
         Self {
-            temperatures: t.x_breakpoints().map(|v| v.to_num()),
-            speeds: t.y_breakpoints().map(|v| v.to_num()),
-            mu: t.values().map(|r| r.map(|v| v.to_num())),
+            temperatures: std::array::from_fn(|i| {
+                t.x_breakpoints().get(i).map_or(f64::NAN, |v| v.to_num())
+            }),
+            speeds: std::array::from_fn(|j| {
+                t.y_breakpoints().get(j).map_or(f64::NAN, |v| v.to_num())
+            }),
+            mu: std::array::from_fn(|i| {
+                std::array::from_fn(|j| t.value(i, j).map_or(f64::NAN, |v| v.to_num()))
+            }),
             static_to_kinetic: cfg.static_to_kinetic().to_num(),
             slip_above: cfg.slip_threshold().to_num(),
             stick_below: cfg.stick_threshold().to_num(),

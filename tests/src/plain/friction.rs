@@ -85,9 +85,11 @@ pub fn update<const NT: usize, const NV: usize>(
     let mut saturated = correction.to_bits() < 0;
     let corr = i64::from(correction.to_bits().max(0));
     let t = cfg.mu_kinetic();
-    let (x, y, z) = (t.x_breakpoints(), t.y_breakpoints(), t.values());
+    let (x, y) = (t.x_breakpoints(), t.y_breakpoints());
+    let z: Vec<&[Ratio]> = t.rows().collect();
+    let z = z.as_slice();
     let running = lookup2(x, y, z, lining_temp, RadPerSec::from_bits(speed));
-    let standstill = lookup2(x, y, z, lining_temp, y[0]);
+    let standstill = lookup2(x, y, z, lining_temp, y.first().copied().unwrap_or_default());
     let (mu_k, sat_k) = ratio_from_i64(mul_q30(i64::from(running.0), corr));
     let mu_s_corr = mul_q30(i64::from(standstill.0), corr);
     let (mu_s, sat_s) = ratio_from_i64(mul_q30(

@@ -75,16 +75,16 @@ pub fn lookup1<XF: LeEqU32, YF: LeEqU32>(
 }
 
 /// 2-D lookup on a row-major grid: (raw value, clamped).
-pub fn lookup2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, const NY: usize>(
+pub fn lookup2<XF: LeEqU32, YF: LeEqU32, ZF: LeEqU32, R: AsRef<[FixedI32<ZF>]>>(
     x: &[FixedI32<XF>],
-    y: &[FixedI32<YF>; NY],
-    z: &[[FixedI32<ZF>; NY]],
+    y: &[FixedI32<YF>],
+    z: &[R],
     at_x: FixedI32<XF>,
     at_y: FixedI32<YF>,
 ) -> (i32, bool) {
     let px = locate(x, at_x);
     let py = locate(y, at_y);
-    let v = |i: usize, j: usize| i64::from(z[i][j].to_bits());
+    let v = |i: usize, j: usize| i64::from(z[i].as_ref()[j].to_bits());
     let along_y = |i: usize| lerp(v(i, py.lo), v(i, py.hi), py.frac_q31);
     (
         narrow(lerp(along_y(px.lo), along_y(px.hi), px.frac_q31)),
