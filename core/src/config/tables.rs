@@ -109,13 +109,8 @@ pub trait TableSet: Copy + Debug + PartialEq + Eq + sealed::Sealed {
 /// The tables of one device: a friction-radius table (clamp force × bedding) of capacity
 /// `NF` × `NB` and a μ table (lining temperature × slip speed) of capacity `NT` × `NV`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct Tables<
-    const NF: usize,
-    const NB: usize,
-    const NT: usize,
-    const NV: usize,
-    K = ByBedding,
-> {
+pub struct Tables<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K = ByBedding>
+{
     radius: RadiusTable<NF, NB>,
     friction: FrictionConfig<NT, NV>,
     axis: LeverAxis,
@@ -256,11 +251,10 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
         let mu = MuTable::new(mu_temperatures_c, mu_speeds, mu)?;
         Ok(Self::new(radius, FrictionConfig::new(mu, friction)?))
     }
-
 }
 
-impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: AxisKind>
-    sealed::Sealed for Tables<NF, NB, NT, NV, K>
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: AxisKind> sealed::Sealed
+    for Tables<NF, NB, NT, NV, K>
 {
 }
 
@@ -279,7 +273,11 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: Axis
 
     #[inline]
     fn lever_axis_end(&self) -> Ratio {
-        self.radius.y_breakpoints().last().copied().unwrap_or(Ratio::ZERO)
+        self.radius
+            .y_breakpoints()
+            .last()
+            .copied()
+            .unwrap_or(Ratio::ZERO)
     }
 
     #[inline]

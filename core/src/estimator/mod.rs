@@ -498,10 +498,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
             ContactState::Slipping => (fric.mu_kinetic, fric.transition_span),
             _ => (fric.mu_static, Ratio::ZERO),
         };
-        let mu_hi = ratio_product(
-            mu.saturating_add(span),
-            Ratio::ONE.saturating_add(tol.mu),
-        );
+        let mu_hi = ratio_product(mu.saturating_add(span), Ratio::ONE.saturating_add(tol.mu));
         let mu_lo = ratio_product(
             mu.saturating_sub(span).max(Ratio::ZERO),
             Ratio::ONE.saturating_sub(tol.mu).max(Ratio::ZERO),

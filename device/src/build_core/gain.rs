@@ -16,13 +16,17 @@ use clampwise_core::geometry::brake::{
 
 use super::{BuildError, RadiusTable};
 use crate::schema::{
-    BandKindSpec, BandSpec, ContactSpec, DrumShoesSpec, LeverEndSpec, MountingSpec,
-    ShoeActionSpec, TightEndSpec,
+    BandKindSpec, BandSpec, ContactSpec, DrumShoesSpec, LeverEndSpec, MountingSpec, ShoeActionSpec,
+    TightEndSpec,
 };
 
 /// μ breakpoints of a gain table (within the host's capacity of the radius table's second
 /// axis).
 pub const GAIN_POINTS: usize = 16;
+
+/// Largest equivalent lever arm a gain table holds, m: below the 128 m of the core's I8F24
+/// lever-arm format, with room for the interpolation.
+pub const LEVER_ARM_MAX_M: f64 = 120.0;
 
 /// Samples per table segment when the interpolation error is measured.
 const SAMPLES_PER_SEGMENT: usize = 64;
@@ -238,6 +242,25 @@ impl GainModel {
             .collect()
     }
 
+    /// The default end of the table: `limit`, or lower where g(μ)/μ would pass
+    /// [`LEVER_ARM_MAX_M`] (found by bisection; g/μ rises with μ towards locking).
+    fn default_end(&self, limit: f64) -> f64 {
+        let fits = |mu: f64| self.lever_arm(mu).is_ok_and(|r| r <= LEVER_ARM_MAX_M);
+        if fits(limit) {
+            return limit;
+        }
+        let (mut lo, mut hi) = (0.0, limit);
+        for _ in 0..60 {
+            let mid = 0.5 * (lo + hi);
+            if fits(mid) {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        lo
+    }
+
     /// The table r(F, μ) at the clamp forces `forces_n` and what it covers.
     ///
     /// # Errors
@@ -249,8 +272,10 @@ impl GainModel {
         gain_mu_max: Option<f64>,
     ) -> Result<(RadiusTable, GainTableInfo), BuildError> {
         let locking = self.locking_coefficient();
-        let mu_end =
-            gain_mu_max.unwrap_or_else(|| locking.map_or(1.0, |l| (0.9 * l).min(1.0)));
+        let mu_end = match gain_mu_max {
+            Some(m) => m,
+            None => self.default_end(locking.map_or(1.0, |l| (0.9 * l).min(1.0))),
+        };
         let key = "contact.gain_mu_max";
         if locking.is_some_and(|l| mu_end >= l) || !(mu_end > 0.0) {
             return Err(BuildError::new(
@@ -264,6 +289,15 @@ impl GainModel {
         let mus = Self::breakpoints(mu_end);
         let arm = |mu: f64| self.lever_arm(mu).map_err(|e| BuildError::new(key, e));
         let row: Vec<f64> = mus.iter().map(|&mu| arm(mu)).collect::<Result<_, _>>()?;
+        if let Some(last) = row.last().filter(|&&r| r > LEVER_ARM_MAX_M) {
+            return Err(BuildError::new(
+                key,
+                format!(
+                    "g(μ)/μ reaches {last:.1} m at μ = {mu_end}, beyond the {LEVER_ARM_MAX_M} m the \
+                     fixed-point lever arm holds: lower it"
+                ),
+            ));
+        }
         let rows = vec![row.clone(); forces_n.len()];
         let table = RadiusTable::from_slices(forces_n, &mus, &rows)
             .map_err(|e| BuildError::new(key, format!("the gain table: {e}")))?;
@@ -319,13 +353,24 @@ mod tests {
         let (table, info) = model.table(&[0.0, 50_000.0], Some(0.6)).unwrap();
         assert_eq!(table.y_breakpoints().len(), GAIN_POINTS);
         // [calc] T = μ·F·r(μ) = F·g(μ) at every breakpoint, to the I8F24 rounding.
-        for (mu, r) in table.y_breakpoints().iter().zip(table.rows().next().unwrap()) {
+        for (mu, r) in table
+            .y_breakpoints()
+            .iter()
+            .zip(table.rows().next().unwrap())
+        {
             let mu: f64 = mu.to_num();
             let g = model.torque_per_force(mu).unwrap();
-            let want = if mu > 0.0 { g / mu } else { model.lever_arm(0.0).unwrap() };
+            let want = if mu > 0.0 {
+                g / mu
+            } else {
+                model.lever_arm(0.0).unwrap()
+            };
             assert!((r.to_num::<f64>() - want).abs() < 1e-7, "μ {mu}");
         }
-        assert!(info.interpolation_error > 0.0 && info.interpolation_error < 0.01, "{info:?}");
+        assert!(
+            info.interpolation_error > 0.0 && info.interpolation_error < 0.01,
+            "{info:?}"
+        );
         assert_eq!(info.mu_end, 0.6);
     }
 
@@ -336,7 +381,7 @@ mod tests {
         let lock = model.locking_coefficient().unwrap();
         let e = model.table(&[0.0, 1.0], Some(lock)).unwrap_err();
         assert_eq!(e.key, "contact.gain_mu_max");
-        // Default: 90 % of the locking μ.
+        // Default: 90 % of the locking μ (this shoe's g/μ stays far below the format's top).
         let (_, info) = model.table(&[0.0, 1.0], None).unwrap();
         assert!((info.mu_end - (0.9 * lock).min(1.0)).abs() < 1e-12);
     }

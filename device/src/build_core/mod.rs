@@ -225,7 +225,9 @@ fn build_device<const C: usize>(
         limits: parts::limits(c)?,
         tolerances: parts::tolerances(
             c,
-            tables.gain.map_or(0.0, |(_, info)| info.interpolation_error),
+            tables
+                .gain
+                .map_or(0.0, |(_, info)| info.interpolation_error),
         )?,
     };
     clampwise_core::config::DeviceConfig::from_parts(parts).map_err(parts::config_error)

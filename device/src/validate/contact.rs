@@ -46,11 +46,18 @@ fn drum_or_band(ct: &ContactSpec, v: &mut Validator) {
     }
     v.unused("contact.vertices_m", &ct.vertices_m, shape);
     let (own, other) = match shape {
-        ShapeSpec::Band => (ct.band.is_some(), ("contact.drum_shoes", ct.drum_shoes.is_some())),
+        ShapeSpec::Band => (
+            ct.band.is_some(),
+            ("contact.drum_shoes", ct.drum_shoes.is_some()),
+        ),
         _ => (ct.drum_shoes.is_some(), ("contact.band", ct.band.is_some())),
     };
     if !own {
-        let table = if shape == ShapeSpec::Band { "band" } else { "drum_shoes" };
+        let table = if shape == ShapeSpec::Band {
+            "band"
+        } else {
+            "drum_shoes"
+        };
         v.issue(
             "contact.shape",
             format!("shape '{}' needs [contact.{table}]", shape.name()),
