@@ -277,7 +277,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
             &fric,
             at,
             reading.uncertainty,
-            (reported.torque, capacity.value),
+            (reported.torque, capacity.value, reported.friction_part),
             &mut flags,
         );
 
@@ -419,16 +419,26 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         fric: &FrictionSample,
         at: Operating<'_, T>,
         force_uncertainty: Newtons,
-        (torque, capacity): (Option<NewtonMetres>, NewtonMetres),
+        (torque, capacity, friction_part): (Option<NewtonMetres>, NewtonMetres, NewtonMetres),
         flags: &mut Flags,
     ) -> NewtonMetres {
         if let Lever::PerMu(..) = at.lever {
-            let reported = match state {
-                ContactState::Slipping => torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
-                ContactState::Released => fric.drag_torque.saturating_abs(),
-                _ => capacity,
+            let (reported, nominal) = match state {
+                ContactState::Slipping => (
+                    torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
+                    friction_part.saturating_abs(),
+                ),
+                ContactState::Released => (fric.drag_torque.saturating_abs(), NewtonMetres::ZERO),
+                _ => (capacity, capacity),
             };
-            return self.uncertainty_over_mu(state, fric, at, force_uncertainty, reported, flags);
+            return self.uncertainty_over_mu(
+                state,
+                fric,
+                at,
+                force_uncertainty,
+                (reported, nominal),
+                flags,
+            );
         }
         let mut model_term = NewtonMetres::ZERO;
         let (reported, force_term) = match state {
@@ -489,7 +499,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         fric: &FrictionSample,
         at: Operating<'_, T>,
         force_uncertainty: Newtons,
-        reported: NewtonMetres,
+        (reported, nominal): (NewtonMetres, NewtonMetres),
         flags: &mut Flags,
     ) -> NewtonMetres {
         let tol = &self.cfg.tolerances;
@@ -507,26 +517,37 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
             flags.insert(Flags::SELF_LOCKING);
             return NewtonMetres::MAX;
         }
-        let (nominal, high, low) = (at.torque(mu), at.torque(mu_hi), at.torque(mu_lo));
-        let (force_term, mu_term) = match state {
-            ContactState::Released => (
-                at.with_force(at.force.saturating_add(force_uncertainty))
-                    .torque(mu_hi),
-                NewtonMetres::ZERO,
-            ),
-            _ => (
-                at.with_force(force_uncertainty).torque(mu_hi),
-                high.value
-                    .saturating_sub(nominal.value)
-                    .max(nominal.value.saturating_sub(low.value)),
-            ),
+        // The force term at μ_hi (a released contact: the whole torque at F + U_F), then the
+        // two ends of μ at F: one loop, so the lookup and product are in the image once.
+        let (force_at, mu_term_ends) = match state {
+            ContactState::Released => (at.force.saturating_add(force_uncertainty), false),
+            _ => (force_uncertainty, true),
         };
-        if nominal.saturated || high.saturated || low.saturated || force_term.saturated {
+        let mut saturated = false;
+        let mut force_term = NewtonMetres::ZERO;
+        let mut mu_term = NewtonMetres::ZERO;
+        for (i, (force, mu_at)) in [(force_at, mu_hi), (at.force, mu_hi), (at.force, mu_lo)]
+            .into_iter()
+            .enumerate()
+        {
+            if i > 0 && !mu_term_ends {
+                break;
+            }
+            let t = at.with_force(force).torque(mu_at);
+            saturated |= t.saturated;
+            if i == 0 {
+                force_term = t.value;
+            } else {
+                let side = t.value.saturating_sub(nominal).saturating_abs();
+                mu_term = mu_term.max(side);
+            }
+        }
+        if saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
         torque_uncertainty(
             reported,
-            force_term.value,
+            force_term,
             mu_term,
             Ratio::ZERO,
             tol.radius,
