@@ -74,6 +74,10 @@ impl Command {
 /// `demo`.
 #[derive(Debug, Args)]
 pub struct DemoArgs {
+    /// Run the demo's pipeline (scenario, faults, fit, plots) on this device config instead of
+    /// the built-in demo device, e.g. `sim/configs/example-crane-drum-brake.toml`.
+    #[arg(long, short)]
+    pub config: Option<PathBuf>,
     /// Directory for the demo's files.
     #[arg(long, default_value = "clampwise-demo")]
     pub out_dir: PathBuf,
