@@ -1,4 +1,6 @@
-//! Estimate traces: the CSV that `replay` writes and `compare`, `plot` read.
+//! Estimate traces: the CSV that `replay` writes and `compare`, `plot` read (and, with the
+//! `parquet` feature, the same columns as Parquet for a `.parquet` output name:
+//! [`EstimateOut`]).
 //!
 //! Columns: `line, t_s, torque_Nm, capacity_Nm, uncertainty_Nm, mu, radius_m, clamp_force_N,
 //! slip_speed_rad_s, lining_temp_C, bedding, wear_m, correction, state, flags, torque_ref_Nm`.
@@ -289,6 +291,80 @@ impl EstimateWriter {
     pub fn abandon(mut self, why: &str) -> Option<std::path::PathBuf> {
         let _ = self.out.write_all(&self.buf);
         self.out.abandon(why)
+    }
+}
+
+/// An estimate file being written: CSV, or Parquet for a `.parquet` name (with the
+/// `parquet` feature; see [`crate::log_input`]).
+pub enum EstimateOut {
+    /// CSV text.
+    Csv(EstimateWriter),
+    /// Parquet.
+    #[cfg(feature = "parquet")]
+    Parquet(Box<crate::log_input::parquet::ParquetEstimateWriter>),
+}
+
+impl EstimateOut {
+    /// Create the output, its format chosen by the extension of `path`; `select` as for
+    /// [`EstimateWriter::create_with_columns`].
+    ///
+    /// # Errors
+    /// [`SimError::Io`]; [`SimError::Usage`] for an `.mf4` name (estimates are written as CSV
+    /// or Parquet) or a `.parquet` name without the `parquet` feature.
+    pub fn create(
+        path: &str,
+        comments: &[String],
+        select: Option<Vec<usize>>,
+    ) -> Result<Self, SimError> {
+        match crate::log_input::LogFormat::of(path) {
+            crate::log_input::LogFormat::Csv => Ok(Self::Csv(
+                EstimateWriter::create_with_columns(path, comments, select)?,
+            )),
+            crate::log_input::LogFormat::Mdf4 => Err(SimError::Usage(format!(
+                "{path}: estimates are written as CSV or, with a .parquet name, as Parquet; not as MDF4"
+            ))),
+            #[cfg(feature = "parquet")]
+            crate::log_input::LogFormat::Parquet => Ok(Self::Parquet(Box::new(
+                crate::log_input::parquet::ParquetEstimateWriter::create(path, comments, select)?,
+            ))),
+            #[cfg(not(feature = "parquet"))]
+            crate::log_input::LogFormat::Parquet => Err(crate::log_input::no_parquet(path)),
+        }
+    }
+
+    /// Append one row.
+    ///
+    /// # Errors
+    /// [`SimError::Io`].
+    #[inline]
+    pub fn write(&mut self, r: &EstimateRow) -> Result<(), SimError> {
+        match self {
+            Self::Csv(w) => w.write(r),
+            #[cfg(feature = "parquet")]
+            Self::Parquet(w) => w.write(r),
+        }
+    }
+
+    /// Finish and publish the file under its name.
+    ///
+    /// # Errors
+    /// [`SimError::Io`].
+    pub fn commit(self) -> Result<(), SimError> {
+        match self {
+            Self::Csv(w) => w.commit(),
+            #[cfg(feature = "parquet")]
+            Self::Parquet(w) => w.commit(),
+        }
+    }
+
+    /// Leave the output marked incomplete (CSV, see [`AtomicFile::abandon`]) or remove it
+    /// (Parquet); the path of what is left, if anything.
+    pub fn abandon(self, why: &str) -> Option<std::path::PathBuf> {
+        match self {
+            Self::Csv(w) => w.abandon(why),
+            #[cfg(feature = "parquet")]
+            Self::Parquet(w) => w.abandon(),
+        }
     }
 }
 

@@ -56,6 +56,7 @@ pub mod demo;
 pub mod error;
 pub mod estimate;
 pub mod fit;
+pub mod log_input;
 pub mod memory;
 pub mod output;
 pub mod plant;
