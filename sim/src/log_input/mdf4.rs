@@ -104,6 +104,11 @@ impl Mdf4Log {
                         "truncated MDF4 file: a block of its structure lies past the end of the file ({file_size} bytes)"
                     )
                 }
+                mdf4_rs::Error::TooShortBuffer {
+                    actual, expected, ..
+                } => format!(
+                    "truncated MDF4 file: a block of its structure needs {expected} bytes, {actual} are left before the end of the file ({file_size} bytes)"
+                ),
                 e => format!("not a readable MDF4 file: {e}"),
             };
             log_error(path, why)
@@ -299,7 +304,9 @@ impl ColumnarLog for Mdf4Log {
             e => self.error(e.to_string()),
         })?;
         let mut group_of: Vec<usize> = Vec::new();
-        for u in used {
+        // The own time base (index past the names) comes with each group.
+        let n_names = self.names.len();
+        for u in used.iter().filter(|u| u.index < n_names) {
             let (g, c) = self.place(u.index)?;
             let slot = match group_of.iter().position(|&x| x == g) {
                 Some(s) => s,
