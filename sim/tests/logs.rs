@@ -200,11 +200,12 @@ fn parquet_needs_the_feature() {
 }
 
 #[cfg(feature = "parquet")]
-mod parquet {
+mod parquet_files {
     use super::*;
+    use arrow_array::Array;
     use arrow_array::cast::AsArray;
     use arrow_array::types::{Float64Type, UInt64Type};
-    use parquet::arrow::arrow_reader::ParquetRecordBatchReaderBuilder;
+    use ::parquet::arrow::arrow_reader::ParquetRecordBatchReaderBuilder;
 
     /// The Parquet file pyarrow wrote from `trace.csv` gives the CSV's estimates.
     #[test]
