@@ -40,7 +40,10 @@ impl Ticks {
             .iter()
             .filter_map(|t| t.last().copied())
             .fold(f64::INFINITY, f64::min);
-        if !(t0 <= last) {
+        if !matches!(
+            t0.partial_cmp(&last),
+            Some(std::cmp::Ordering::Less | std::cmp::Ordering::Equal)
+        ) {
             return Err(format!(
                 "the channel groups do not overlap in time (the latest starts at {t0} s, the earliest ends at {last} s): there is no tick at which all have a sample"
             ));

@@ -188,8 +188,8 @@ impl Cells for LogRow<'_> {
     }
     fn valid_bit(&self, col: usize) -> Result<bool, DataError> {
         match self.values.get(col).copied().flatten() {
-            Some(v) if v == 1.0 => Ok(true),
-            Some(v) if v == 0.0 => Ok(false),
+            Some(1.0) => Ok(true),
+            Some(0.0) => Ok(false),
             Some(v) => Err(self.error(col, format!("valid bit must be 0 or 1, got {v}"))),
             None => Err(self.error(col, "valid bit missing (invalid sample)".into())),
         }
