@@ -319,9 +319,9 @@ impl EstimateOut {
         select: Option<Vec<usize>>,
     ) -> Result<Self, SimError> {
         match crate::log_input::LogFormat::of(path) {
-            crate::log_input::LogFormat::Csv => Ok(Self::Csv(
-                EstimateWriter::create_with_columns(path, comments, select)?,
-            )),
+            crate::log_input::LogFormat::Csv => Ok(Self::Csv(EstimateWriter::create_with_columns(
+                path, comments, select,
+            )?)),
             crate::log_input::LogFormat::Mdf4 => Err(SimError::Usage(format!(
                 "{path}: estimates are written as CSV or, with a .parquet name, as Parquet; not as MDF4"
             ))),

@@ -11,8 +11,8 @@ use crate::build_core::CoreDevice;
 use crate::config::LoadedConfig;
 use crate::csv_input::Dialect;
 use crate::error::SimError;
-use crate::log_input::{LogFormat, LogReport};
 use crate::estimate::EstimateOut;
+use crate::log_input::{LogFormat, LogReport};
 use crate::plot::Envelope;
 use crate::resample::ResampleReport;
 use crate::timestamps::TimeReport;
@@ -326,7 +326,8 @@ pub fn log_lines(l: &LogReport) -> String {
     for src in &l.sources {
         o.push_str(&format!(
             "    {}'{}': {} samples{}\n",
-            src.group.map_or(String::new(), |g| format!("channel group {g} ")),
+            src.group
+                .map_or(String::new(), |g| format!("channel group {g} ")),
             src.name,
             src.samples,
             src.mean_period_s
@@ -337,8 +338,10 @@ pub fn log_lines(l: &LogReport) -> String {
         o.push_str(&format!(
             "  channel groups aligned onto the device's sample period by {} (--resample {})\n",
             match m {
-                crate::resample::Resample::Hold => "zero-order hold: the last sample at or before each tick",
-                crate::resample::Resample::Linear => "linear interpolation between the samples either side of each tick",
+                crate::resample::Resample::Hold =>
+                    "zero-order hold: the last sample at or before each tick",
+                crate::resample::Resample::Linear =>
+                    "linear interpolation between the samples either side of each tick",
             },
             match m {
                 crate::resample::Resample::Hold => "hold",

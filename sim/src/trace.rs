@@ -13,9 +13,11 @@ use serde::Serialize;
 
 use crate::column_units::{self, Conversion, Quantity};
 use crate::csv_input::{CsvIn, Dialect, DialectChoice, echo};
-use crate::log_input::cells::{Cells, Header, LogHeader, LogRow};
-use crate::log_input::{self, ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, Timing};
 use crate::error::{DataError, SimError};
+use crate::log_input::cells::{Cells, Header, LogHeader, LogRow};
+use crate::log_input::{
+    self, ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, Timing,
+};
 use crate::resample::{Resample, ResampleReport, Resampler};
 use crate::schema::{CANONICAL, ColumnSpec, DeviceKind, DeviceSpec};
 use crate::timestamps::{TimeCheck, TimeReport};
@@ -240,10 +242,7 @@ fn find_column(
 ) -> Result<Option<Col>, DataError> {
     let (col_name, unit, area, source, q) = mapping(c, overrides, name)
         .ok_or_else(|| h.header_error(None, format!("internal: unknown quantity {name}")))?;
-    let canon_unit = CANONICAL
-        .iter()
-        .find(|e| e.0 == name)
-        .map_or("", |e| e.2);
+    let canon_unit = CANONICAL.iter().find(|e| e.0 == name).map_or("", |e| e.2);
     let conv = column_units::conversion(q, unit, area)
         .map_err(|m| h.header_error(None, format!("{source}: {m}")))?;
     match h.column(col_name) {
@@ -381,9 +380,8 @@ fn open_log(
             } else {
                 (file_unit, "the file's time unit".to_string())
             };
-            let conv = column_units::conversion(q, unit, None).map_err(|m| {
-                log_input::log_error(path, format!("{source}: {m}"))
-            })?;
+            let conv = column_units::conversion(q, unit, None)
+                .map_err(|m| log_input::log_error(path, format!("{source}: {m}")))?;
             Some(Col {
                 index: log.names().len(),
                 conv,

@@ -104,7 +104,10 @@ fn two_rates_are_held_onto_the_device_ticks_unless_linear_is_asked() {
     assert_eq!(s["log"]["aligned"], "linear");
     let lin = data_lines(&lin);
     assert_eq!(lin.len(), got.len());
-    assert_ne!(lin, got, "interpolated temperatures change the lining model's input");
+    assert_ne!(
+        lin, got,
+        "interpolated temperatures change the lining model's input"
+    );
 
     let (code, _, err) = replay(&[
         &fixture("two_rates.mf4"),
@@ -153,7 +156,11 @@ fn truncated_and_unsorted_files_are_located_errors() {
         err.contains("channel group 0 ('trace'): sample index 18: time does not increase"),
         "{err}"
     );
-    let (code, _, err) = replay(&[&fixture("trace.csv"), "-o", &d.join("e.mf4").display().to_string()]);
+    let (code, _, err) = replay(&[
+        &fixture("trace.csv"),
+        "-o",
+        &d.join("e.mf4").display().to_string(),
+    ]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("not as MDF4"), "{err}");
 }
@@ -202,10 +209,10 @@ fn parquet_needs_the_feature() {
 #[cfg(feature = "parquet")]
 mod parquet_files {
     use super::*;
+    use ::parquet::arrow::arrow_reader::ParquetRecordBatchReaderBuilder;
     use arrow_array::Array;
     use arrow_array::cast::AsArray;
     use arrow_array::types::{Float64Type, UInt64Type};
-    use ::parquet::arrow::arrow_reader::ParquetRecordBatchReaderBuilder;
 
     /// The Parquet file pyarrow wrote from `trace.csv` gives the CSV's estimates.
     #[test]
@@ -237,7 +244,12 @@ mod parquet_files {
         }
         let b = ParquetRecordBatchReaderBuilder::try_new(std::fs::File::open(&pq_out).unwrap())
             .unwrap();
-        let groups: Vec<i64> = b.metadata().row_groups().iter().map(|g| g.num_rows()).collect();
+        let groups: Vec<i64> = b
+            .metadata()
+            .row_groups()
+            .iter()
+            .map(|g| g.num_rows())
+            .collect();
         assert_eq!(groups, [65536, 65536, 140000 - 2 * 65536]);
         let csv_rows = data_lines(&csv_out);
         let mut k = 1;
@@ -256,7 +268,11 @@ mod parquet_files {
                 } else {
                     torque.value(i).to_string()
                 };
-                assert_eq!(t.parse::<f64>().ok(), cells[2].parse::<f64>().ok(), "row {k}");
+                assert_eq!(
+                    t.parse::<f64>().ok(),
+                    cells[2].parse::<f64>().ok(),
+                    "row {k}"
+                );
                 assert_eq!(mu.value(i), cells[5].parse::<f64>().unwrap(), "row {k}");
                 assert_eq!(state.value(i), cells[13]);
                 assert_eq!(flags.value(i), cells[14]);

@@ -110,12 +110,8 @@ pub trait Cells {
     /// A located error for an empty cell or text that is not a finite number.
     #[inline]
     fn required_f64(&self, col: usize) -> Result<f64, DataError> {
-        self.f64(col)?.ok_or_else(|| {
-            self.error(
-                col,
-                format!("{} where a number is required", self.empty()),
-            )
-        })
+        self.f64(col)?
+            .ok_or_else(|| self.error(col, format!("{} where a number is required", self.empty())))
     }
 }
 

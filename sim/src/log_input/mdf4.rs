@@ -23,8 +23,7 @@ use mdf4_rs::{DecodedValue, FileRangeReader, MdfIndex};
 
 use super::align::Ticks;
 use super::{
-    ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, SourceReport, Timing,
-    log_error,
+    ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, SourceReport, Timing, log_error,
 };
 use crate::error::{DataError, SimError};
 use crate::resample::Resample;
@@ -212,11 +211,11 @@ impl Mdf4Log {
 
     /// Read a group's master channel and check its time stamps increase.
     fn read_time(&mut self, reader: &mut FileRangeReader, g: usize) -> Result<Group, SimError> {
-        let master = self.index.channel_groups.get(g).and_then(|x| {
-            x.channels
-                .iter()
-                .position(|ch| ch.channel_type == MASTER)
-        });
+        let master = self
+            .index
+            .channel_groups
+            .get(g)
+            .and_then(|x| x.channels.iter().position(|ch| ch.channel_type == MASTER));
         let Some(m) = master else {
             return Err(self.error(format!(
                 "{} has no master (time) channel stored in its records",
@@ -243,10 +242,7 @@ impl Mdf4Log {
             time.push(t);
         }
         if time.is_empty() {
-            return Err(self.error(format!(
-                "{} has no samples",
-                group_label(&self.index, g)
-            )));
+            return Err(self.error(format!("{} has no samples", group_label(&self.index, g))));
         }
         let name = self
             .index
@@ -338,8 +334,8 @@ impl ColumnarLog for Mdf4Log {
         }
         let times: Vec<&[f64]> = self.groups.iter().map(|g| g.time.as_slice()).collect();
         let method = timing.resample.unwrap_or(Resample::Hold);
-        let ticks = Ticks::new(method, timing.device_period_s, &times)
-            .map_err(|m| self.error(m))?;
+        let ticks =
+            Ticks::new(method, timing.device_period_s, &times).map_err(|m| self.error(m))?;
         self.timeline = Timeline::Ticks { ticks, tick: 0.0 };
         Ok(Rows::OnDeviceTicks)
     }

@@ -160,7 +160,10 @@ impl ParquetLog {
             if !push_f64(col.as_ref(), out) {
                 return Err(log_error(
                     &self.file,
-                    format!("a column of type {} where numbers are needed", col.data_type()),
+                    format!(
+                        "a column of type {} where numbers are needed",
+                        col.data_type()
+                    ),
                 ));
             }
         }
@@ -336,10 +339,7 @@ impl ParquetEstimateWriter {
     }
 
     fn io(&self, e: &parquet::errors::ParquetError) -> SimError {
-        SimError::io(
-            self.target.dest(),
-            std::io::Error::other(e.to_string()),
-        )
+        SimError::io(self.target.dest(), std::io::Error::other(e.to_string()))
     }
 
     /// Append one row (written a batch at a time).
