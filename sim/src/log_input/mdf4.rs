@@ -160,7 +160,11 @@ impl GroupStream {
                             format!("{}: the DZ block at byte {offset} cannot be decompressed: {e}", self.label),
                         )
                     })?;
-                self.buf.extend_from_slice(&data);
+                if self.buf.is_empty() {
+                    self.buf = data;
+                } else {
+                    self.buf.extend_from_slice(&data);
+                }
                 self.bytes_read += size;
                 self.next_block += 1;
             } else {
