@@ -584,27 +584,30 @@ impl TraceReader {
         }
     }
 
-    /// The next row of the file parsed; `None` at the end.
-    fn next_parsed(&mut self) -> Option<Result<TraceSample, DataError>> {
-        match &mut self.input {
+    /// The next row of the file parsed (a bad row: the inner error, skippable); `None` at the
+    /// end.
+    ///
+    /// # Errors
+    /// A log's own error (truncated, unsorted), which no row skipping can get past.
+    fn next_parsed(&mut self) -> Result<Option<Result<TraceSample, DataError>>, DataError> {
+        Ok(match &mut self.input {
             Input::Csv(csv) => match csv.next_row() {
                 Ok(None) => None,
                 Ok(Some(row)) => Some(parse_row(&row, &self.layout)),
                 Err(e) => Some(Err(e)),
             },
-            Input::Log { log, values } => match log.next_row(values) {
-                Ok(false) => None,
-                Ok(true) => {
-                    let row = LogRow {
-                        values,
-                        log: &**log,
-                        line: self.rows_read + 1,
-                    };
-                    Some(parse_row(&row, &self.layout))
+            Input::Log { log, values } => {
+                if !log.next_row(values)? {
+                    return Ok(None);
                 }
-                Err(e) => Some(Err(e)),
-            },
-        }
+                let row = LogRow {
+                    values,
+                    log: &**log,
+                    line: self.rows_read + 1,
+                };
+                Some(parse_row(&row, &self.layout))
+            }
+        })
     }
 
     /// The error at the end of a file without a good row.
@@ -658,7 +661,7 @@ impl TraceReader {
     /// The next good sample of the file as it is.
     fn next_trace_sample(&mut self) -> Result<Option<TraceSample>, DataError> {
         loop {
-            let Some(parsed) = self.next_parsed() else {
+            let Some(parsed) = self.next_parsed()? else {
                 if self.good_rows == 0 {
                     return Err(self.no_rows());
                 }

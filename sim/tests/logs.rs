@@ -282,3 +282,13 @@ mod parquet_files {
         assert_eq!(k, csv_rows.len());
     }
 }
+
+/// `--skip-bad-rows` skips bad rows, not a broken file: unsorted time still stops the run.
+#[test]
+fn skipping_bad_rows_does_not_get_past_a_broken_log() {
+    let d = scratch("logs_skip");
+    let out = d.join("e.csv").display().to_string();
+    let (code, _, err) = replay(&[&fixture("unsorted.mf4"), "-o", &out, "--skip-bad-rows"]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("sample index 18"), "{err}");
+}

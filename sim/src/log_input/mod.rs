@@ -137,7 +137,8 @@ pub trait ColumnarLog: Send {
     /// the next row's values of the columns in use; `Ok(false)` at the end.
     ///
     /// # Errors
-    /// A located data error.
+    /// A located data error of the file (truncated, unsorted, unreadable): the reading ends
+    /// there, whatever the bad-row policy.
     fn next_row(&mut self, values: &mut [Option<f64>]) -> Result<bool, DataError>;
     /// Where the last row came from, for messages (`channel group 0 ('fast'), sample 12`).
     fn row_location(&self) -> String;
