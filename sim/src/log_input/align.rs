@@ -88,7 +88,7 @@ impl Ticks {
 
 #[cfg(test)]
 mod tests {
-    #![allow(clippy::unwrap_used, clippy::float_cmp)]
+    #![allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
     use super::*;
 
     /// Hold over a 250 Hz group onto 1 kHz ticks: its value steps every fourth tick
@@ -132,7 +132,10 @@ mod tests {
         let mut t = Ticks::new(Resample::Hold, 0.1, 0.0);
         let ticks: Vec<f64> = (0..4).map(|_| t.next_tick()).collect();
         assert_eq!(ticks[3], 0.30000000000000004);
-        assert!(t.reached(0.3 + 5e-8, ticks[3]), "within 10⁻⁶·P after the tick");
+        assert!(
+            t.reached(0.3 + 5e-8, ticks[3]),
+            "within 10⁻⁶·P after the tick"
+        );
         assert!(!t.reached(0.3 + 2e-7, ticks[3]));
     }
 }

@@ -26,8 +26,7 @@ use mdf4_rs::{ByteRangeReader, FileRangeReader, MdfIndex};
 
 use super::align::Ticks;
 use super::{
-    ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, SourceReport, Timing,
-    log_error,
+    ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, SourceReport, Timing, log_error,
 };
 use crate::error::{DataError, SimError};
 use crate::resample::Resample;
@@ -146,7 +145,10 @@ impl GroupStream {
                 reader.read_range(at, n).map_err(|e| {
                     log_error(
                         file,
-                        format!("{}: cannot read the data block at byte {offset}: {e}", self.label),
+                        format!(
+                            "{}: cannot read the data block at byte {offset}: {e}",
+                            self.label
+                        ),
                     )
                 })
             };
@@ -157,7 +159,10 @@ impl GroupStream {
                     .map_err(|e| {
                         log_error(
                             file,
-                            format!("{}: the DZ block at byte {offset} cannot be decompressed: {e}", self.label),
+                            format!(
+                                "{}: the DZ block at byte {offset} cannot be decompressed: {e}",
+                                self.label
+                            ),
                         )
                     })?;
                 if self.buf.is_empty() {
@@ -184,7 +189,11 @@ impl GroupStream {
     }
 
     /// The next record; `Ok(None)` after the last one the group declares.
-    fn read(&mut self, file: &str, reader: &mut FileRangeReader) -> Result<Option<Sample>, DataError> {
+    fn read(
+        &mut self,
+        file: &str,
+        reader: &mut FileRangeReader,
+    ) -> Result<Option<Sample>, DataError> {
         if self.records >= self.record_count {
             return Ok(None);
         }
@@ -198,12 +207,18 @@ impl GroupStream {
             ));
         }
         let i = self.records;
-        let record = self.buf.get(self.pos..self.pos + self.record_len).unwrap_or_default();
+        let record = self
+            .buf
+            .get(self.pos..self.pos + self.record_len)
+            .unwrap_or_default();
         let t = self.decode(record, &self.master).filter(|t| t.is_finite());
         let Some(t) = t else {
             return Err(log_error(
                 file,
-                format!("{}: sample index {i}: the time stamp is missing or not a finite number", self.label),
+                format!(
+                    "{}: sample index {i}: the time stamp is missing or not a finite number",
+                    self.label
+                ),
             ));
         };
         if let Some(before) = self.last_t
@@ -217,7 +232,11 @@ impl GroupStream {
                 ),
             ));
         }
-        let values = self.channels.iter().map(|c| self.decode(record, &c.block)).collect();
+        let values = self
+            .channels
+            .iter()
+            .map(|c| self.decode(record, &c.block))
+            .collect();
         self.pos += self.record_len;
         self.records += 1;
         self.first_t.get_or_insert(t);
@@ -528,10 +547,9 @@ impl ColumnarLog for Mdf4Log {
                     let Some(a) = &g.a else { continue };
                     for (i, c) in g.channels.iter().enumerate() {
                         let va = a.values.get(i).copied().flatten();
-                        let b = g
-                            .b
-                            .as_ref()
-                            .map(|b| (b.t, b.values.get(i).copied().flatten()));
+                        let b =
+                            g.b.as_ref()
+                                .map(|b| (b.t, b.values.get(i).copied().flatten()));
                         if let Some(v) = values.get_mut(c.name) {
                             *v = ticks.value(t, (a.t, va), b, c.kind);
                         }
