@@ -49,8 +49,9 @@ fn replay_no_line(trace: &str, out: &str, extra: &[&str]) -> serde_json::Value {
 }
 
 /// The MDF4 files asammdf wrote from `trace.csv` (4.10 uncompressed, 4.20 deflate, 4.20
-/// transposed deflate) give the CSV's estimates byte for byte [pub: ASAM MDF 4.2 DZ block,
-/// zip types 0 and 1, as written by asammdf]; their `line` column counts rows from 1.
+/// transposed deflate) give the CSV's estimates byte for byte [practice: files written by the
+/// reference Python library asammdf 8.8.28; DZ zip types 0 and 1 of ASAM MDF 4.2]; their
+/// `line` column counts rows from 1.
 #[test]
 fn mdf4_files_give_the_csv_estimates_byte_for_byte() {
     let d = scratch("logs_mdf4_same");
@@ -214,7 +215,8 @@ mod parquet_files {
     use arrow_array::cast::AsArray;
     use arrow_array::types::{Float64Type, UInt64Type};
 
-    /// The Parquet file pyarrow wrote from `trace.csv` gives the CSV's estimates.
+    /// The Parquet file pyarrow 26.0.1 wrote from `trace.csv` gives the CSV's estimates
+    /// [practice: the reference Arrow implementation's writer].
     #[test]
     fn pyarrow_parquet_gives_the_csv_estimates() {
         let d = scratch("logs_parquet_in");
