@@ -68,8 +68,22 @@ fn parquet_error(file: &str, e: &dyn std::fmt::Display) -> SimError {
     log_error(file, format!("not a readable Parquet file: {e}")).into()
 }
 
+/// The types [`push_f64`] reads.
 fn readable(t: &DataType) -> bool {
-    t.is_numeric() || *t == DataType::Boolean
+    matches!(
+        t,
+        DataType::Float64
+            | DataType::Float32
+            | DataType::Int8
+            | DataType::Int16
+            | DataType::Int32
+            | DataType::Int64
+            | DataType::UInt8
+            | DataType::UInt16
+            | DataType::UInt32
+            | DataType::UInt64
+            | DataType::Boolean
+    )
 }
 
 /// Append `a`'s values as f64 (nulls as `None`); `false` for a type that is not a number.
@@ -441,5 +455,79 @@ impl ParquetEstimateWriter {
     /// nothing is left under the name or beside it.
     pub fn abandon(self) -> Option<std::path::PathBuf> {
         None
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    use super::*;
+    use crate::log_input::ColumnKind;
+    use arrow_array::{BooleanArray, Float32Array, Int32Array, StringArray};
+
+    fn timing() -> Timing {
+        Timing {
+            device_period_s: 0.001,
+            resample: None,
+            stated_period: false,
+        }
+    }
+
+    /// Integer, f32 and boolean columns read as the numbers they hold; a null is a missing
+    /// value; only the mapped columns are decoded; a text column is named in its error.
+    #[test]
+    fn column_types_nulls_and_projection() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("t.parquet");
+        let schema = Arc::new(Schema::new(vec![
+            Field::new("counts", DataType::Int32, true),
+            Field::new("note", DataType::Utf8, false),
+            Field::new("speed", DataType::Float32, false),
+            Field::new("valid", DataType::Boolean, false),
+        ]));
+        let batch = RecordBatch::try_new(
+            schema.clone(),
+            vec![
+                Arc::new(Int32Array::from(vec![Some(-7), None, Some(123_456)])),
+                Arc::new(StringArray::from(vec!["a", "b", "c"])),
+                Arc::new(Float32Array::from(vec![0.5, 1.25, -2.0])),
+                Arc::new(BooleanArray::from(vec![true, false, true])),
+            ],
+        )
+        .unwrap();
+        let mut w = ArrowWriter::try_new(File::create(&path).unwrap(), schema, None).unwrap();
+        w.write(&batch).unwrap();
+        w.close().unwrap();
+        let p = path.to_str().unwrap();
+
+        let mut log = ParquetLog::open(p).unwrap();
+        assert_eq!(log.names(), ["counts", "note", "speed", "valid"]);
+        let used = [0, 2, 3].map(|index| ColumnUse {
+            index,
+            kind: ColumnKind::Number,
+        });
+        assert_eq!(log.start(&used, timing()).unwrap(), Rows::AsRecorded);
+        let mut v = vec![None; 5];
+        let mut rows = Vec::new();
+        while log.next_row(&mut v).unwrap() {
+            rows.push(v.clone());
+        }
+        assert_eq!(
+            rows,
+            [
+                [Some(-7.0), None, Some(0.5), Some(1.0), None],
+                [None, None, Some(1.25), Some(0.0), None],
+                [Some(123_456.0), None, Some(-2.0), Some(1.0), None],
+            ]
+        );
+        assert_eq!(log.row_location(), "row 3");
+
+        let mut log = ParquetLog::open(p).unwrap();
+        let text = [ColumnUse {
+            index: 1,
+            kind: ColumnKind::Number,
+        }];
+        let e = log.start(&text, timing()).err().unwrap().to_string();
+        assert!(e.contains("column 'note' has type Utf8"), "{e}");
     }
 }
