@@ -15,6 +15,9 @@
 //!   interpolation with `--resample linear`; the summary says which, never silently.
 //! - An invalid sample (its invalidation bit set) is a missing value, as an empty CSV cell.
 //!
+//! Files are read sorted (one channel group per data group, no record IDs, as asammdf writes
+//! them); an unsorted file is an error that says how to sort it.
+//!
 //! Errors name the file and where: a truncated file (a block past the end of the file, fewer
 //! records than the group declares), a missing channel (with the channels the file has), a
 //! channel in two groups, time stamps that do not increase (the group and the sample index).
@@ -367,6 +370,13 @@ impl Mdf4Log {
                 "{label} has no master (time) channel stored in its records"
             )));
         };
+        if group.record_id_size != 0 {
+            // Record IDs mean groups may share a data group, their records interleaved.
+            return Err(self.error(format!(
+                "{label}: an unsorted MDF4 file (records carry {}-byte record IDs); sort it first, e.g. with asammdf: MDF(path).save(sorted_path)",
+                group.record_id_size
+            )));
+        }
         let id_size = usize::from(group.record_id_size);
         let record_len = id_size + group.record_size as usize + group.invalidation_bytes as usize;
         Ok(GroupStream {
