@@ -1,6 +1,6 @@
 //! Estimate traces: the CSV that `replay` writes and `compare`, `plot` read (and, with the
-//! `parquet` feature, the same columns as Parquet for a `.parquet` output name:
-//! [`EstimateOut`]).
+//! `parquet` feature, the same columns as Parquet for a `.parquet` name: [`EstimateOut`],
+//! [`EstimateReader`]).
 //!
 //! Columns: `line, t_s, torque_Nm, capacity_Nm, uncertainty_Nm, mu, radius_m, clamp_force_N,
 //! slip_speed_rad_s, lining_temp_C, bedding, wear_m, correction, state, flags, torque_ref_Nm`.
@@ -303,7 +303,7 @@ pub enum EstimateOut {
     Csv(EstimateWriter),
     /// Parquet.
     #[cfg(feature = "parquet")]
-    Parquet(Box<crate::log_input::parquet::ParquetEstimateWriter>),
+    Parquet(Box<crate::log_input::parquet_estimates::ParquetEstimateWriter>),
 }
 
 impl EstimateOut {
@@ -327,7 +327,9 @@ impl EstimateOut {
             ))),
             #[cfg(feature = "parquet")]
             crate::log_input::LogFormat::Parquet => Ok(Self::Parquet(Box::new(
-                crate::log_input::parquet::ParquetEstimateWriter::create(path, comments, select)?,
+                crate::log_input::parquet_estimates::ParquetEstimateWriter::create(
+                    path, comments, select,
+                )?,
             ))),
             #[cfg(not(feature = "parquet"))]
             crate::log_input::LogFormat::Parquet => Err(crate::log_input::no_parquet(path)),
@@ -370,18 +372,40 @@ impl EstimateOut {
     }
 }
 
-/// Reads an estimate file row by row.
+/// Reads an estimate file row by row: CSV, or (with the `parquet` feature) Parquet for a
+/// `.parquet` name.
 pub struct EstimateReader {
-    csv: CsvIn,
-    cols: [usize; 16],
+    source: EstimateSource,
+}
+
+// One per reader: the CSV reader stays inline, without a pointer hop per row.
+#[allow(clippy::large_enum_variant)]
+enum EstimateSource {
+    Csv {
+        csv: CsvIn,
+        cols: [usize; 16],
+    },
+    #[cfg(feature = "parquet")]
+    Parquet(Box<crate::log_input::parquet_estimates::ParquetEstimateReader>),
 }
 
 impl EstimateReader {
     /// Open an estimate file and check its header.
     ///
     /// # Errors
-    /// I/O, or a located error naming a missing column.
+    /// I/O, or a located error naming a missing column; [`SimError::Usage`] for a `.parquet`
+    /// name without the `parquet` feature.
     pub fn open(path: &str) -> Result<Self, SimError> {
+        if crate::log_input::LogFormat::of(path) == crate::log_input::LogFormat::Parquet {
+            #[cfg(feature = "parquet")]
+            return Ok(Self {
+                source: EstimateSource::Parquet(Box::new(
+                    crate::log_input::parquet_estimates::ParquetEstimateReader::open(path)?,
+                )),
+            });
+            #[cfg(not(feature = "parquet"))]
+            return Err(crate::log_input::no_parquet(path));
+        }
         let csv = CsvIn::open(path)?;
         let mut cols = [0usize; 16];
         for (c, name) in cols.iter_mut().zip(HEADER) {
@@ -392,17 +416,27 @@ impl EstimateReader {
                 )
             })?;
         }
-        Ok(Self { csv, cols })
+        Ok(Self {
+            source: EstimateSource::Csv { csv, cols },
+        })
     }
 
     /// File name.
     pub fn file(&self) -> &str {
-        self.csv.file()
+        match &self.source {
+            EstimateSource::Csv { csv, .. } => csv.file(),
+            #[cfg(feature = "parquet")]
+            EstimateSource::Parquet(p) => p.file(),
+        }
     }
 
-    /// File length and bytes read (for progress).
+    /// File length and bytes read, or rows and rows read (Parquet), for progress.
     pub fn progress(&self) -> (Option<u64>, u64) {
-        (self.csv.len_bytes(), self.csv.bytes_read())
+        match &self.source {
+            EstimateSource::Csv { csv, .. } => (csv.len_bytes(), csv.bytes_read()),
+            #[cfg(feature = "parquet")]
+            EstimateSource::Parquet(p) => p.progress(),
+        }
     }
 
     /// The next row; `Ok(None)` at the end.
@@ -410,8 +444,12 @@ impl EstimateReader {
     /// # Errors
     /// A located [`DataError`].
     pub fn next_row(&mut self) -> Result<Option<EstimateRow>, DataError> {
-        let c = self.cols;
-        let Some(row) = self.csv.next_row()? else {
+        let (csv, c) = match &mut self.source {
+            EstimateSource::Csv { csv, cols } => (csv, *cols),
+            #[cfg(feature = "parquet")]
+            EstimateSource::Parquet(p) => return p.next_row(),
+        };
+        let Some(row) = csv.next_row()? else {
             return Ok(None);
         };
         let g = |i: usize| row.required_f64(c.get(i).copied().unwrap_or(0));

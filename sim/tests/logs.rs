@@ -229,7 +229,7 @@ mod parquet_files {
     }
 
     /// Estimates written as Parquet hold the CSV's values bit for bit, in row groups of at
-    /// most 64 Ki rows.
+    /// most 64 Ki rows, and `compare` reads them as the CSV.
     #[test]
     fn parquet_estimates_hold_the_csv_values_in_bounded_row_groups() {
         let d = scratch("logs_parquet_out");
@@ -282,6 +282,16 @@ mod parquet_files {
             }
         }
         assert_eq!(k, csv_rows.len());
+
+        // `compare` reads the Parquet estimates as the CSV: the same report.
+        let report = |est: &str| {
+            let (code, v, err) = run_json(&["compare", "-c", CONFIG, est]);
+            assert_eq!(code, 0, "{err}");
+            let mut r = v["files"][0]["report"].clone();
+            r.as_object_mut().unwrap().remove("file");
+            r
+        };
+        assert_eq!(report(&pq_out), report(&csv_out));
     }
 }
 

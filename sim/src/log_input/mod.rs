@@ -11,6 +11,8 @@ pub mod cells;
 pub mod mdf4;
 #[cfg(feature = "parquet")]
 pub mod parquet;
+#[cfg(feature = "parquet")]
+pub mod parquet_estimates;
 
 use serde::Serialize;
 

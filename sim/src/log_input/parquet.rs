@@ -1,49 +1,29 @@
-//! Apache Parquet logs in and estimate files out (the sim's `parquet` feature).
+//! Apache Parquet logs (the sim's `parquet` feature); estimate files in Parquet are in
+//! [`super::parquet_estimates`].
 //!
-//! Reading ([`ParquetLog`]): the top-level columns are the names the column map refers to, as
+//! [`ParquetLog`]: the top-level columns are the names the column map refers to, as
 //! a CSV's header fields; only the mapped columns are decoded (a projection), in record
 //! batches of [`BATCH_ROWS`] rows streamed row group by row group, so memory stays bounded
 //! whatever the file length. Number columns may be float or integer (any width) or boolean
 //! (a valid bit); a null is a missing value, as an empty CSV cell.
-//!
-//! Writing ([`ParquetEstimateWriter`]): the estimate columns of [`crate::estimate::HEADER`]
-//! (or those `--columns` selects, in its order): `line` as UInt64, `state` and `flags` as
-//! UTF-8 text (flags as in the CSV, names joined by ` | `, empty when none), the rest Float64,
-//! null where the CSV cell is empty. Row groups hold at most [`ROW_GROUP_ROWS`] rows, Snappy
-//! pages, dictionaries for `state` and `flags` only. The comment lines of the CSV form are
-//! stored as the file's key-value metadata under `clampwise`. Nothing appears under the name
-//! until the file is complete.
 
 use std::fs::File;
-use std::io::BufWriter;
-use std::sync::Arc;
 
-use arrow_array::builder::{Float64Builder, StringBuilder, UInt64Builder};
 use arrow_array::cast::AsArray;
 use arrow_array::types::{
     Float32Type, Float64Type, Int8Type, Int16Type, Int32Type, Int64Type, UInt8Type, UInt16Type,
     UInt32Type, UInt64Type,
 };
-use arrow_array::{Array, ArrayRef, RecordBatch};
-use arrow_schema::{DataType, Field, Schema};
-use parquet::arrow::ArrowWriter;
+use arrow_array::{Array, RecordBatch};
+use arrow_schema::DataType;
 use parquet::arrow::ProjectionMask;
 use parquet::arrow::arrow_reader::{ParquetRecordBatchReader, ParquetRecordBatchReaderBuilder};
-use parquet::basic::Compression;
-use parquet::file::metadata::KeyValue;
-use parquet::file::properties::WriterProperties;
-use parquet::schema::types::ColumnPath;
 
 use super::{ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, SourceReport, Timing, log_error};
 use crate::error::{DataError, SimError};
-use crate::estimate::HEADER;
-use crate::output::TempTarget;
-use clampwise_convert::EstimateRow;
 
 /// Rows decoded at a time when reading.
 pub const BATCH_ROWS: usize = 8192;
-/// Largest row group written.
-pub const ROW_GROUP_ROWS: usize = 64 * 1024;
 
 /// A Parquet file opened for reading.
 pub struct ParquetLog {
@@ -275,195 +255,15 @@ impl ColumnarLog for ParquetLog {
     }
 }
 
-/// Streams [`EstimateRow`]s to a Parquet file.
-pub struct ParquetEstimateWriter {
-    target: TempTarget,
-    writer: ArrowWriter<BufWriter<File>>,
-    /// Indices into [`HEADER`] in output order.
-    select: Vec<usize>,
-    schema: Arc<Schema>,
-    line: UInt64Builder,
-    /// t_s … correction and the reference torque, in [`HEADER`] order.
-    numbers: Vec<Float64Builder>,
-    state: StringBuilder,
-    flags: StringBuilder,
-    text: String,
-    pending: usize,
-}
-
-/// The [`HEADER`] index of the reference torque, after `state` and `flags`.
-const TORQUE_REF: usize = 15;
-
-fn field(i: usize) -> Field {
-    let name = HEADER.get(i).copied().unwrap_or("");
-    match i {
-        0 => Field::new(name, DataType::UInt64, false),
-        13 | 14 => Field::new(name, DataType::Utf8, false),
-        // torque, capacity, reference torque: empty (null) at times.
-        2 | 3 | TORQUE_REF => Field::new(name, DataType::Float64, true),
-        _ => Field::new(name, DataType::Float64, false),
-    }
-}
-
-impl ParquetEstimateWriter {
-    /// Create the file (under a temporary name until [`ParquetEstimateWriter::commit`]).
-    ///
-    /// # Errors
-    /// [`SimError::Io`]; [`SimError::Internal`] when the writer cannot start.
-    pub fn create(
-        path: &str,
-        comments: &[String],
-        select: Option<Vec<usize>>,
-    ) -> Result<Self, SimError> {
-        let select = select.unwrap_or_else(|| (0..HEADER.len()).collect());
-        let schema = Arc::new(Schema::new(
-            select.iter().map(|&i| field(i)).collect::<Vec<_>>(),
-        ));
-        let mut target = TempTarget::new(std::path::Path::new(path))?;
-        let f = target
-            .file()
-            .try_clone()
-            .map_err(|e| SimError::io(path, e))?;
-        let props = WriterProperties::builder()
-            .set_compression(Compression::SNAPPY)
-            .set_max_row_group_row_count(Some(ROW_GROUP_ROWS))
-            // Dictionaries pay for the few words of `state` and `flags`; hashing every float
-            // costs more than it saves.
-            .set_dictionary_enabled(false)
-            .set_column_dictionary_enabled(ColumnPath::from("state"), true)
-            .set_column_dictionary_enabled(ColumnPath::from("flags"), true)
-            .set_key_value_metadata(Some(vec![KeyValue::new(
-                "clampwise".to_string(),
-                comments.join("\n"),
-            )]))
-            .build();
-        let writer = ArrowWriter::try_new(
-            BufWriter::with_capacity(1 << 16, f),
-            schema.clone(),
-            Some(props),
-        )
-        .map_err(|e| SimError::Internal(format!("{path}: cannot start the Parquet writer: {e}")))?;
-        Ok(Self {
-            target,
-            writer,
-            select,
-            schema,
-            line: UInt64Builder::with_capacity(BATCH_ROWS),
-            numbers: (0..13)
-                .map(|_| Float64Builder::with_capacity(BATCH_ROWS))
-                .collect(),
-            state: StringBuilder::new(),
-            flags: StringBuilder::new(),
-            text: String::new(),
-            pending: 0,
-        })
-    }
-
-    fn io(&self, e: &parquet::errors::ParquetError) -> SimError {
-        SimError::io(self.target.dest(), std::io::Error::other(e.to_string()))
-    }
-
-    /// Append one row (written a batch at a time).
-    ///
-    /// # Errors
-    /// [`SimError::Io`].
-    pub fn write(&mut self, r: &EstimateRow) -> Result<(), SimError> {
-        self.line.append_value(r.line);
-        let values = [
-            Some(r.t_s),
-            r.torque_nm,
-            r.capacity_nm,
-            Some(r.uncertainty_nm),
-            Some(r.mu),
-            Some(r.radius_m),
-            Some(r.clamp_force_n),
-            Some(r.slip_speed_rad_s),
-            Some(r.lining_temp_c),
-            Some(r.bedding),
-            Some(r.wear_m),
-            Some(r.correction),
-            r.torque_ref_nm,
-        ];
-        for (b, v) in self.numbers.iter_mut().zip(values) {
-            b.append_option(v);
-        }
-        self.state.append_value(r.state.name());
-        self.text.clear();
-        if !r.flags.is_empty() {
-            // Names only: bitflags' text form is `A | B`.
-            let _ = bitflags::parser::to_writer(&r.flags, &mut self.text);
-        }
-        self.flags.append_value(&self.text);
-        self.pending += 1;
-        if self.pending >= BATCH_ROWS {
-            self.flush()?;
-        }
-        Ok(())
-    }
-
-    /// Hand the rows gathered so far to the Parquet writer.
-    fn flush(&mut self) -> Result<(), SimError> {
-        if self.pending == 0 {
-            return Ok(());
-        }
-        let line: ArrayRef = Arc::new(self.line.finish());
-        let numbers: Vec<ArrayRef> = self
-            .numbers
-            .iter_mut()
-            .map(|b| Arc::new(b.finish()) as ArrayRef)
-            .collect();
-        let state: ArrayRef = Arc::new(self.state.finish());
-        let flags: ArrayRef = Arc::new(self.flags.finish());
-        let column = |i: usize| -> Option<ArrayRef> {
-            match i {
-                0 => Some(line.clone()),
-                13 => Some(state.clone()),
-                14 => Some(flags.clone()),
-                TORQUE_REF => numbers.get(12).cloned(),
-                n => numbers.get(n - 1).cloned(),
-            }
-        };
-        let columns: Vec<ArrayRef> = self.select.iter().filter_map(|&i| column(i)).collect();
-        let batch = RecordBatch::try_new(self.schema.clone(), columns)
-            .map_err(|e| SimError::Internal(format!("estimate batch: {e}")))?;
-        self.writer.write(&batch).map_err(|e| self.io(&e))?;
-        self.pending = 0;
-        Ok(())
-    }
-
-    /// Finish the file and publish it under its name.
-    ///
-    /// # Errors
-    /// [`SimError::Io`]; the destination is then left as it was.
-    pub fn commit(mut self) -> Result<(), SimError> {
-        self.flush()?;
-        let mut w = match self.writer.into_inner() {
-            Ok(w) => w,
-            Err(e) => {
-                return Err(SimError::io(
-                    self.target.dest(),
-                    std::io::Error::other(e.to_string()),
-                ));
-            }
-        };
-        std::io::Write::flush(&mut w).map_err(|e| SimError::io(self.target.dest(), e))?;
-        drop(w);
-        self.target.commit()
-    }
-
-    /// Drop the incomplete output (a cut Parquet file has no footer and cannot be read);
-    /// nothing is left under the name or beside it.
-    pub fn abandon(self) -> Option<std::path::PathBuf> {
-        None
-    }
-}
-
 #[cfg(test)]
 mod tests {
     #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
     use super::*;
     use crate::log_input::ColumnKind;
     use arrow_array::{BooleanArray, Float32Array, Int32Array, StringArray};
+    use arrow_schema::{Field, Schema};
+    use parquet::arrow::ArrowWriter;
+    use std::sync::Arc;
 
     fn timing() -> Timing {
         Timing {
