@@ -198,7 +198,7 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
     Some((x, diag))
 }
 
-/// Flags that make a sample's clamp force, μ or temperature doubtful: such rows carry no
+/// Flags that make a sample's clamp force, μ, torque gain or temperature doubtful: such rows carry no
 /// equation for the table.
 const SENSOR_DOUBT: Flags = Flags::SENSOR_DEGRADED
     .union(Flags::FORCE_FALLBACK)
@@ -206,7 +206,8 @@ const SENSOR_DOUBT: Flags = Flags::SENSOR_DEGRADED
     .union(Flags::FORCE_SATURATED)
     .union(Flags::ARITHMETIC_SATURATED)
     .union(Flags::OUT_OF_RANGE)
-    .union(Flags::TEMPERATURE_REJECTED);
+    .union(Flags::TEMPERATURE_REJECTED)
+    .union(Flags::SELF_LOCKING);
 
 /// The error of a trace without one usable sample, with the reasons counted.
 fn no_usable_sample(
