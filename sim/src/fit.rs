@@ -198,8 +198,8 @@ fn cholesky_solve(a: &[f64], b: &[f64], n: usize) -> Option<(Vec<f64>, Vec<f64>)
     Some((x, diag))
 }
 
-/// Flags that make a sample's clamp force, μ, torque gain or temperature doubtful: such rows carry no
-/// equation for the table.
+/// Flags that make a sample's clamp force, μ, torque gain or temperature doubtful: such rows
+/// carry no equation for the table.
 const SENSOR_DOUBT: Flags = Flags::SENSOR_DEGRADED
     .union(Flags::FORCE_FALLBACK)
     .union(Flags::FORCE_LOST)

@@ -124,12 +124,7 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
     /// force × μ ([`LeverAxis::Mu`]): a drum, band or cone-engagement contact whose torque
     /// per unit actuating force g(μ) is not linear in μ.
     pub const fn over_mu(radius: RadiusTable<NF, NB>, friction: FrictionConfig<NT, NV>) -> Self {
-        Self {
-            radius,
-            friction,
-            axis: LeverAxis::Mu,
-            kind: ByMu,
-        }
+        Self::with_marker(radius, friction, LeverAxis::Mu)
     }
 }
 
@@ -142,12 +137,7 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
         friction: FrictionConfig<NT, NV>,
         axis: LeverAxis,
     ) -> Self {
-        Self {
-            radius,
-            friction,
-            axis,
-            kind: ByEither,
-        }
+        Self::with_marker(radius, friction, axis)
     }
 }
 
@@ -168,14 +158,23 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: Axis
                 | (Some(LeverAxis::Mu), LeverAxis::Mu)
         );
         if fits {
-            Some(Self {
-                radius,
-                friction,
-                axis,
-                kind: K::MARKER,
-            })
+            Some(Self::with_marker(radius, friction, axis))
         } else {
             None
+        }
+    }
+
+    /// The tables with `axis`, which the callers have checked against the type's.
+    const fn with_marker(
+        radius: RadiusTable<NF, NB>,
+        friction: FrictionConfig<NT, NV>,
+        axis: LeverAxis,
+    ) -> Self {
+        Self {
+            radius,
+            friction,
+            axis,
+            kind: K::MARKER,
         }
     }
 
@@ -205,12 +204,7 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
     /// Both tables, each already validated by its own constructor; the radius table's second
     /// axis is bedding ([`LeverAxis::Bedding`]).
     pub const fn new(radius: RadiusTable<NF, NB>, friction: FrictionConfig<NT, NV>) -> Self {
-        Self {
-            radius,
-            friction,
-            axis: LeverAxis::Bedding,
-            kind: ByBedding,
-        }
+        Self::with_marker(radius, friction, LeverAxis::Bedding)
     }
 
     /// Both tables from SI values: the friction-radius table of `contact` at the clamp forces
