@@ -1,0 +1,10 @@
+/* ARM semihosting (the debugger's, or QEMU's -semihosting): text out and the exit status. */
+#ifndef CW_EXAMPLE_SEMIHOSTING_H
+#define CW_EXAMPLE_SEMIHOSTING_H
+
+#include <stdbool.h>
+
+void semihosting_write(const char *text);
+void semihosting_exit(bool success) __attribute__((noreturn));
+
+#endif
