@@ -1,6 +1,8 @@
 /* The C example firmware: the demo replay through the C API, each line over semihosting (QEMU
- * prints it; capi/ci.sh compares it with the Rust host replay). The exit status is the replay's. */
+ * prints it; capi/ci.sh compares it with the Rust host replay). The exit status is the replay's; a last
+ * "#target" line gives the stack the run used. */
 #include "demo.h"
+#include "line.h"
 #include "semihosting.h"
 
 static void to_semihosting(const char *text, void *context) {
@@ -9,4 +11,14 @@ static void to_semihosting(const char *text, void *context) {
     semihosting_write("\n");
 }
 
-int main(void) { return (cw_demo_replay(to_semihosting, 0) == CW_OK) ? 0 : 1; }
+/* Target-only measurements start "#target" (the comparison leaves them out). */
+int main(void) {
+    static cw_line line;
+    int32_t status = cw_demo_replay(to_semihosting, 0);
+    line_start(&line, "#target stack");
+    line_key_int(&line, "bytes", stack_used());
+    line_key_int(&line, "device_storage", (int64_t)sizeof(cw_device));
+    line_key_int(&line, "estimator_storage", (int64_t)sizeof(cw_estimator));
+    to_semihosting(line_text(&line), 0);
+    return (status == CW_OK) ? 0 : 1;
+}

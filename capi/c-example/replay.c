@@ -96,6 +96,7 @@ int32_t cw_demo_replay(cw_emit_fn emit, void *context) {
     line_key_int(&line, "samples", clampwise_trace_len);
     line_key_int(&line, "channels", channels);
     line_key_hex32(&line, "device_crc32", checksum);
+    line_key_int(&line, "capi_version", cw_version());
     line_str(&line, start_restored ? ",start=restored" : ",start=new");
     emit(line_text(&line), context);
     emit("# est,sample,valid_mask,torque_bits,holding_capacity_bits,uncertainty_bits,mu_bits,"

@@ -3,8 +3,12 @@
 #define CW_EXAMPLE_SEMIHOSTING_H
 
 #include <stdbool.h>
+#include <stdint.h>
 
 void semihosting_write(const char *text);
 void semihosting_exit(bool success) __attribute__((noreturn));
+
+/* Deepest stack use since reset, bytes (startup.c paints the free RAM). */
+uint32_t stack_used(void);
 
 #endif

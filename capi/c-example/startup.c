@@ -1,5 +1,6 @@
 /* Start-up of the C example firmware (Cortex-M0+/M3/M4F): vector table, .data and .bss set-up,
- * the FPU switched on where there is one, then main. Faults end the run with a failure status. */
+ * the free RAM painted for the stack measurement, the FPU switched on where there is one, then
+ * main. Faults end the run with a failure status. */
 #include <stdint.h>
 
 #include "semihosting.h"
@@ -9,6 +10,28 @@ int main(void);
 void cw_reset(void);
 
 static void on_fault(void) { semihosting_exit(false); }
+
+#define STACK_PAINT 0x5A5A5A5Au
+
+/* Fill the free RAM between .bss and the stack pointer, so stack_used() can find the deepest
+ * point the stack reached (a word still holding the paint was never written). */
+static void stack_paint(void) {
+    uint32_t *word = &_ebss;
+    uint32_t sp;
+    __asm volatile("mov %0, sp" : "=r"(sp));
+    while ((uintptr_t)word < (uintptr_t)sp - 64u) {
+        *word = STACK_PAINT;
+        word++;
+    }
+}
+
+uint32_t stack_used(void) {
+    const uint32_t *word = &_ebss;
+    while (word < &_stack_top && *word == STACK_PAINT) {
+        word++;
+    }
+    return (uint32_t)((uintptr_t)&_stack_top - (uintptr_t)word);
+}
 
 void cw_reset(void) {
     const uint32_t *from = &_sidata;
@@ -21,6 +44,7 @@ void cw_reset(void) {
     for (to = &_sbss; to < &_ebss; to++) {
         *to = 0u;
     }
+    stack_paint();
 #if defined(__ARM_FP)
     /* CPACR: full access to CP10 and CP11 (the FPU) before any floating-point register use */
     *(volatile uint32_t *)0xE000ED88u |= (0xFu << 20);

@@ -44,8 +44,10 @@ fn main() -> ExitCode {
 }
 
 fn file_name(p: &Path) -> String {
-    p.file_name()
-        .map_or_else(|| p.display().to_string(), |n| n.to_string_lossy().into_owned())
+    p.file_name().map_or_else(
+        || p.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
 }
 
 fn run(config: &Path, trace: &str, out: &Path) -> Result<(), String> {
@@ -117,13 +119,41 @@ fn inputs_c<const C: usize>(i: &Inputs<C>) -> String {
         None => String::new(),
     };
     let rest = [
-        field(1 << 0, "input_speed_q16", i.input_speed.map(|v| v.to_bits())),
-        field(1 << 1, "output_speed_q16", i.output_speed.map(|v| v.to_bits())),
-        field(1 << 2, "actuator_command_q16", i.actuator_command.map(|v| v.to_bits())),
-        field(1 << 3, "sensor_temperature_q16", i.sensor_temperature.map(|v| v.to_bits())),
-        field(1 << 4, "lining_temperature_q16", i.lining_temperature.map(|v| v.to_bits())),
-        field(1 << 5, "ambient_temperature_q16", i.ambient_temperature.map(|v| v.to_bits())),
-        field(1 << 6, "reference_torque_q12", i.reference_torque.map(|v| v.to_bits())),
+        field(
+            1 << 0,
+            "input_speed_q16",
+            i.input_speed.map(|v| v.to_bits()),
+        ),
+        field(
+            1 << 1,
+            "output_speed_q16",
+            i.output_speed.map(|v| v.to_bits()),
+        ),
+        field(
+            1 << 2,
+            "actuator_command_q16",
+            i.actuator_command.map(|v| v.to_bits()),
+        ),
+        field(
+            1 << 3,
+            "sensor_temperature_q16",
+            i.sensor_temperature.map(|v| v.to_bits()),
+        ),
+        field(
+            1 << 4,
+            "lining_temperature_q16",
+            i.lining_temperature.map(|v| v.to_bits()),
+        ),
+        field(
+            1 << 5,
+            "ambient_temperature_q16",
+            i.ambient_temperature.map(|v| v.to_bits()),
+        ),
+        field(
+            1 << 6,
+            "reference_torque_q12",
+            i.reference_torque.map(|v| v.to_bits()),
+        ),
     ]
     .concat();
     let [c0, c1, c2, c3] = counts;
@@ -190,8 +220,9 @@ fn replay<const C: usize>(
     );
     let _ = writeln!(
         expected,
-        "# clampwise-capi,config={config_name},trace={trace_name},samples={n},channels={C},device_crc32=0x{:08x},start={}",
+        "# clampwise-capi,config={config_name},trace={trace_name},samples={n},channels={C},device_crc32=0x{:08x},capi_version={},start={}",
         device.checksum(),
+        clampwise_capi::cw_version(),
         if initial.is_some() { "restored" } else { "new" }
     );
     let _ = writeln!(
@@ -203,7 +234,11 @@ fn replay<const C: usize>(
     for l in &lines {
         let _ = writeln!(expected, "{l}");
     }
-    let _ = writeln!(expected, "record,sequence={sequence},bytes={}", hex(&record));
+    let _ = writeln!(
+        expected,
+        "record,sequence={sequence},bytes={}",
+        hex(&record)
+    );
     let _ = writeln!(expected, "restore,status=0,same={}", u8::from(same));
 
     let mut trace_c = format!(

@@ -195,7 +195,8 @@ enum cw_status
    */
   CW_ERR_NULL = 1,
   /**
-   * `channels` is not 1 … 4.
+   * `channels` is not 1 … 4, or a count this library was built without
+   * (`cw_channels_supported`).
    */
   CW_ERR_CHANNELS = 2,
   /**
@@ -945,6 +946,12 @@ typedef struct {
 #ifdef __cplusplus
 extern "C" {
 #endif // __cplusplus
+
+/**
+ * The channel counts this library was built for: bit `n − 1` set when a device of `n`
+ * clamp-force channels is supported (0x0f: 1 to 4).
+ */
+uint8_t cw_channels_supported(void);
 
 /**
  * The library's version as `major << 16 | minor << 8 | patch`.

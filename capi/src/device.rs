@@ -39,12 +39,16 @@ pub type Device<const C: usize> = DeviceConfig<CapiTables, C>;
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum ChannelDevice {
     /// One channel.
+    #[cfg(feature = "channels-1")]
     One(Device<1>),
     /// Two channels.
+    #[cfg(feature = "channels-2")]
     Two(Device<2>),
     /// Three channels.
+    #[cfg(feature = "channels-3")]
     Three(Device<3>),
     /// Four channels.
+    #[cfg(feature = "channels-4")]
     Four(Device<4>),
 }
 
@@ -56,9 +60,13 @@ impl ChannelDevice {
     /// [`cw_status::CW_ERR_CHECKSUM`] when the numbers are not those the host emitted.
     pub fn from_desc(d: &cw_device_desc) -> Result<Self, cw_status> {
         let device = match d.channels {
+            #[cfg(feature = "channels-1")]
             1 => Self::One(device(d)?),
+            #[cfg(feature = "channels-2")]
             2 => Self::Two(device(d)?),
+            #[cfg(feature = "channels-3")]
             3 => Self::Three(device(d)?),
+            #[cfg(feature = "channels-4")]
             4 => Self::Four(device(d)?),
             _ => return Err(cw_status::CW_ERR_CHANNELS),
         };
@@ -72,9 +80,13 @@ impl ChannelDevice {
     /// The core's checksum of the configuration.
     pub fn checksum(&self) -> u32 {
         match self {
+            #[cfg(feature = "channels-1")]
             Self::One(d) => d.checksum(),
+            #[cfg(feature = "channels-2")]
             Self::Two(d) => d.checksum(),
+            #[cfg(feature = "channels-3")]
             Self::Three(d) => d.checksum(),
+            #[cfg(feature = "channels-4")]
             Self::Four(d) => d.checksum(),
         }
     }
@@ -82,9 +94,13 @@ impl ChannelDevice {
     /// Number of clamp-force channels.
     pub const fn channels(&self) -> u8 {
         match self {
+            #[cfg(feature = "channels-1")]
             Self::One(_) => 1,
+            #[cfg(feature = "channels-2")]
             Self::Two(_) => 2,
+            #[cfg(feature = "channels-3")]
             Self::Three(_) => 3,
+            #[cfg(feature = "channels-4")]
             Self::Four(_) => 4,
         }
     }
@@ -109,11 +125,8 @@ fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
     let xs = x.map(FixedI32::<X>::from_bits);
     let ys = y.map(FixedI32::<Y>::from_bits);
     let zs = z.map(|row| row.map(FixedI32::<Z>::from_bits));
-    let rows: [&[FixedI32<Z>]; NX] = core::array::from_fn(|i| {
-        zs.get(i)
-            .and_then(|row| row.get(..y_len))
-            .unwrap_or(&[])
-    });
+    let rows: [&[FixedI32<Z>]; NX] =
+        core::array::from_fn(|i| zs.get(i).and_then(|row| row.get(..y_len)).unwrap_or(&[]));
     match (xs.get(..x_len), ys.get(..y_len), rows.get(..x_len)) {
         (Some(xs), Some(ys), Some(rows)) => {
             Table2::from_bit_slices(xs, ys, rows).map_err(|_| error)
@@ -122,7 +135,9 @@ fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
     }
 }
 
-fn friction(f: &cw_friction) -> Result<FrictionConfig<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX>, cw_status> {
+fn friction(
+    f: &cw_friction,
+) -> Result<FrictionConfig<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX>, cw_status> {
     let mu: MuTable<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX> = table(
         (&f.mu.temperature_q16, f.mu.temperatures_len),
         (&f.mu.speed_q16, f.mu.speeds_len),

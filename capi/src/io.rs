@@ -133,8 +133,7 @@ pub fn core_inputs<const C: usize>(i: &cw_inputs) -> Result<Inputs<C>, cw_status
     Ok(Inputs {
         force_channels,
         input_speed: has(CW_HAS_INPUT_SPEED).then_some(RadPerSec::from_bits(i.input_speed_q16)),
-        output_speed: has(CW_HAS_OUTPUT_SPEED)
-            .then_some(RadPerSec::from_bits(i.output_speed_q16)),
+        output_speed: has(CW_HAS_OUTPUT_SPEED).then_some(RadPerSec::from_bits(i.output_speed_q16)),
         actuator_command: has(CW_HAS_ACTUATOR_COMMAND)
             .then_some(ActuatorCommand::from_bits(i.actuator_command_q16)),
         sensor_temperature: has(CW_HAS_SENSOR_TEMPERATURE)

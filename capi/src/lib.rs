@@ -27,6 +27,14 @@
 #[cfg(not(target_os = "none"))]
 extern crate std;
 
+#[cfg(not(any(
+    feature = "channels-1",
+    feature = "channels-2",
+    feature = "channels-3",
+    feature = "channels-4"
+)))]
+compile_error!("clampwise-capi needs at least one of the features channels-1 … channels-4");
+
 pub mod desc;
 pub mod device;
 pub mod io;
@@ -80,12 +88,12 @@ pub const CW_FLAG_FORCE_IMPLAUSIBLE: u32 = 1 << 13;
 /// `cw_estimate::flags`: a shaft speed is missing.
 pub const CW_FLAG_SPEED_UNKNOWN: u32 = 1 << 14;
 
-const VERSION: &core::ffi::CStr = match core::ffi::CStr::from_bytes_with_nul(
-    concat!(env!("CARGO_PKG_VERSION"), "\0").as_bytes(),
-) {
-    Ok(v) => v,
-    Err(_) => c"?",
-};
+const VERSION: &core::ffi::CStr =
+    match core::ffi::CStr::from_bytes_with_nul(concat!(env!("CARGO_PKG_VERSION"), "\0").as_bytes())
+    {
+        Ok(v) => v,
+        Err(_) => c"?",
+    };
 
 /// The version number of a `major.minor.patch` string, `major << 16 | minor << 8 | patch`.
 const fn packed_version(v: &[u8]) -> u32 {
@@ -103,6 +111,16 @@ const fn packed_version(v: &[u8]) -> u32 {
         i += 1;
     }
     (out << 8) | (part & 0xff)
+}
+
+/// The channel counts this library was built for: bit `n − 1` set when a device of `n`
+/// clamp-force channels is supported (0x0f: 1 to 4).
+#[unsafe(no_mangle)]
+pub extern "C" fn cw_channels_supported() -> u8 {
+    u8::from(cfg!(feature = "channels-1"))
+        | u8::from(cfg!(feature = "channels-2")) << 1
+        | u8::from(cfg!(feature = "channels-3")) << 2
+        | u8::from(cfg!(feature = "channels-4")) << 3
 }
 
 /// The library's version as `major << 16 | minor << 8 | patch`.
@@ -250,9 +268,13 @@ pub unsafe extern "C" fn cw_estimator_init(
         return cw_status::CW_ERR_NOT_INITIALISED;
     };
     let built = match d {
+        #[cfg(feature = "channels-1")]
         ChannelDevice::One(c) => ChannelEstimator::One(Estimator::new(c)),
+        #[cfg(feature = "channels-2")]
         ChannelDevice::Two(c) => ChannelEstimator::Two(Estimator::new(c)),
+        #[cfg(feature = "channels-3")]
         ChannelDevice::Three(c) => ChannelEstimator::Three(Estimator::new(c)),
+        #[cfg(feature = "channels-4")]
         ChannelDevice::Four(c) => ChannelEstimator::Four(Estimator::new(c)),
     };
     // SAFETY: not null; the caller owns the storage.
@@ -286,9 +308,13 @@ pub unsafe extern "C" fn cw_estimator_restore(
     // SAFETY: not null, `len` readable bytes by the contract.
     let bytes = unsafe { core::slice::from_raw_parts(record, len) };
     let built = match d {
+        #[cfg(feature = "channels-1")]
         ChannelDevice::One(c) => Estimator::restore(c, bytes).map(ChannelEstimator::One),
+        #[cfg(feature = "channels-2")]
         ChannelDevice::Two(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Two),
+        #[cfg(feature = "channels-3")]
         ChannelDevice::Three(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Three),
+        #[cfg(feature = "channels-4")]
         ChannelDevice::Four(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Four),
     };
     match built {
@@ -330,9 +356,13 @@ pub unsafe extern "C" fn cw_estimator_step(
     // SAFETY: not null, readable by the contract.
     let inputs = unsafe { &*inputs };
     let result = match est {
+        #[cfg(feature = "channels-1")]
         ChannelEstimator::One(e) => step(e, inputs),
+        #[cfg(feature = "channels-2")]
         ChannelEstimator::Two(e) => step(e, inputs),
+        #[cfg(feature = "channels-3")]
         ChannelEstimator::Three(e) => step(e, inputs),
+        #[cfg(feature = "channels-4")]
         ChannelEstimator::Four(e) => step(e, inputs),
     };
     match result {
@@ -369,9 +399,13 @@ pub unsafe extern "C" fn cw_estimator_save(
         return cw_status::CW_ERR_NOT_INITIALISED;
     };
     let bytes = match est {
+        #[cfg(feature = "channels-1")]
         ChannelEstimator::One(e) => e.save(sequence),
+        #[cfg(feature = "channels-2")]
         ChannelEstimator::Two(e) => e.save(sequence),
+        #[cfg(feature = "channels-3")]
         ChannelEstimator::Three(e) => e.save(sequence),
+        #[cfg(feature = "channels-4")]
         ChannelEstimator::Four(e) => e.save(sequence),
     };
     // SAFETY: not null, at least CW_RECORD_LEN = RECORD_LEN writable bytes (checked above).

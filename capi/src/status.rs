@@ -12,7 +12,8 @@ pub enum cw_status {
     CW_OK = 0,
     /// A pointer argument was NULL.
     CW_ERR_NULL = 1,
-    /// `channels` is not 1 … 4.
+    /// `channels` is not 1 … 4, or a count this library was built without
+    /// (`cw_channels_supported`).
     CW_ERR_CHANNELS = 2,
     /// A `has_*`, `two_node` or presence field is neither 0 nor 1.
     CW_ERR_BAD_FLAG = 3,
@@ -83,7 +84,9 @@ impl cw_status {
         match self {
             Self::CW_OK => c"ok",
             Self::CW_ERR_NULL => c"a pointer argument is NULL",
-            Self::CW_ERR_CHANNELS => c"channels must be 1 to 4",
+            Self::CW_ERR_CHANNELS => {
+                c"channels must be 1 to 4 and among those the library was built for"
+            }
             Self::CW_ERR_BAD_FLAG => c"a has_*/two_node field is neither 0 nor 1",
             Self::CW_ERR_RADIUS_TABLE => {
                 c"friction-radius table: length beyond capacity or breakpoints not increasing"

@@ -60,12 +60,16 @@ pub type ChannelStepper<const C: usize> = Estimator<'static, CapiTables, C>;
 #[derive(Clone, Debug)]
 pub enum ChannelEstimator {
     /// One channel.
+    #[cfg(feature = "channels-1")]
     One(ChannelStepper<1>),
     /// Two channels.
+    #[cfg(feature = "channels-2")]
     Two(ChannelStepper<2>),
     /// Three channels.
+    #[cfg(feature = "channels-3")]
     Three(ChannelStepper<3>),
     /// Four channels.
+    #[cfg(feature = "channels-4")]
     Four(ChannelStepper<4>),
 }
 
@@ -83,7 +87,10 @@ const fn fits<T>(words: usize) -> bool {
 }
 
 const _: () = assert!(fits::<DeviceSlot>(CW_DEVICE_WORDS), "cw_device too small");
-const _: () = assert!(fits::<EstimatorSlot>(CW_ESTIMATOR_WORDS), "cw_estimator too small");
+const _: () = assert!(
+    fits::<EstimatorSlot>(CW_ESTIMATOR_WORDS),
+    "cw_estimator too small"
+);
 
 /// Bytes the device storage needs on this target (at most `sizeof(cw_device)`).
 pub const DEVICE_NEEDS: usize =
@@ -96,7 +103,9 @@ pub const ESTIMATOR_NEEDS: usize =
 /// alignment needs).
 fn place<T>(words: *mut u64) -> *mut T {
     let bytes = words.cast::<u8>();
-    bytes.wrapping_add(bytes.align_offset(align_of::<T>())).cast()
+    bytes
+        .wrapping_add(bytes.align_offset(align_of::<T>()))
+        .cast()
 }
 
 /// Write a device into its storage.
@@ -108,10 +117,7 @@ pub unsafe fn put_device(storage: *mut cw_device, device: ChannelDevice) {
     // SAFETY: `place` stays inside the storage, which `fits` sized for the slot; the slot is
     // aligned; the caller owns the storage.
     unsafe {
-        slot.write(DeviceSlot {
-            magic: 0,
-            device,
-        });
+        slot.write(DeviceSlot { magic: 0, device });
         (*slot).magic = DEVICE_MAGIC;
     }
 }
@@ -164,7 +170,6 @@ pub unsafe fn estimator<'a>(storage: *mut cw_estimator) -> Option<&'a mut Channe
         }
     }
 }
-
 
 /// The estimator in its storage, read only, or `None` when it was not initialised.
 ///

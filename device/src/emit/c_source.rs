@@ -198,7 +198,11 @@ fn channel(c: &ChannelCalibration) -> String {
         flag(c.temperature.is_some())
     );
     if let Some(t) = &c.temperature {
-        let _ = writeln!(out, "    .tc_reference_q16 = {},", i32_c(t.reference.to_bits()));
+        let _ = writeln!(
+            out,
+            "    .tc_reference_q16 = {},",
+            i32_c(t.reference.to_bits())
+        );
         let _ = writeln!(out, "    .tc_min_q16 = {},", i32_c(t.min.to_bits()));
         let _ = writeln!(out, "    .tc_max_q16 = {},", i32_c(t.max.to_bits()));
         let _ = writeln!(
@@ -381,7 +385,11 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
         let _ = writeln!(friction, ".{name} = {},", i32_c(bits));
     }
     let _ = writeln!(out, "{}", block("friction", &friction));
-    let _ = writeln!(out, "{}", block("thermal", &thermal(&cfg.thermal().to_raw())));
+    let _ = writeln!(
+        out,
+        "{}",
+        block("thermal", &thermal(&cfg.thermal().to_raw()))
+    );
     let _ = writeln!(out, "{}", block("wear", &wear(&cfg.wear().to_raw())));
     let _ = writeln!(out, "{}", block("sensor", &sensor(cfg.sensor())));
     if let Some(a) = cfg.adapt() {
