@@ -117,6 +117,7 @@ impl cw_u128 {
     }
 
     /// The halves of `v`.
+    #[allow(clippy::cast_possible_truncation)]
     pub const fn of(v: u128) -> Self {
         Self {
             // The low half by truncation, the high half by shift: exact.

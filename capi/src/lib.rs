@@ -96,19 +96,18 @@ const VERSION: &core::ffi::CStr =
     };
 
 /// The version number of a `major.minor.patch` string, `major << 16 | minor << 8 | patch`.
-const fn packed_version(v: &[u8]) -> u32 {
-    let (mut out, mut part, mut i) = (0u32, 0u32, 0);
-    while i < v.len() {
-        let b = v[i];
-        if b == b'.' {
+const fn packed_version(mut v: &[u8]) -> u32 {
+    let (mut out, mut part) = (0u32, 0u32);
+    while let [b, rest @ ..] = v {
+        if *b == b'.' {
             out = (out << 8) | (part & 0xff);
             part = 0;
         } else if b.is_ascii_digit() {
-            part = part * 10 + (b - b'0') as u32;
+            part = part * 10 + (*b - b'0') as u32;
         } else {
             break;
         }
-        i += 1;
+        v = rest;
     }
     (out << 8) | (part & 0xff)
 }

@@ -157,6 +157,7 @@ fn thermal(t: &ThermalRaw) -> String {
 
 fn u128_c(v: u128) -> String {
     // The low half by truncation, the high half by shift: exact.
+    #[allow(clippy::cast_possible_truncation)]
     let (lo, hi) = (v as u64, (v >> 64) as u64);
     format!("{{ .lo = UINT64_C({lo}), .hi = UINT64_C({hi}) }}")
 }

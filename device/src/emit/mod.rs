@@ -5,7 +5,7 @@
 //! | [`device`] | the core's whole `DeviceConfig` as `const` items over raw bits, with `DEVICE_CHECKSUM` |
 //! | [`record`] | the state record a replay starts from (`DEVICE_INITIAL_RECORD`) |
 //! | [`summary`] | the friction-radius and μ tables as text, for `clampwise tables` |
-//! | [`c_source`] | the configuration as a C `cw_device_desc` initializer for the C API, for `clampwise tables --emit-c` |
+//! | [`c_source`](mod@c_source) | the configuration as a C `cw_device_desc` initializer for the C API, for `clampwise tables --emit-c` |
 //!
 //! [`device_source`] puts the first two together; a firmware's `build.rs` and
 //! `clampwise tables --emit` both write it, so the simulator and the firmware hold the same
