@@ -11,8 +11,8 @@
 #   all tables and coefficients of one device). The run-time device build (`cw_device_init`)
 #   and the state records (`cw_estimator_save`/`_restore`) are reported beside it.
 # * RAM of the API: `cw_device` (the device configuration built at init, with its tables) and
-#   `cw_estimator` (the state), as the image's "#target" line reports them; stack: the deepest
-#   point of the whole run, measured by painting.
+#   `cw_estimator` (the state), as the image's "#target" line reports them; stack measured by
+#   painting: the device build and estimator start, then the steps and the state records.
 #
 # Usage: size-report.sh ELF QEMU_LOG [--check]
 #   --check: fail when core + tables exceeds LIMIT_CORE_TABLES (a regression limit at the
@@ -70,7 +70,8 @@ printf '  %-26s %8d\n' "flash total" "$flash" ".text" "$text" ".rodata" "$rodata
   "step code" "$step" "device description" "$desc" "core + tables" "$core_tables" \
   "device build (init) code" "$init" "record save+restore code" "$records" "demo trace" "$trace" \
   "cw_device (RAM)" "$(field device_storage)" "cw_estimator (RAM)" "$(field estimator_storage)" \
-  "stack, whole run" "$(field bytes)"
+  "stack, device build + start" "$(field init_bytes)" \
+  "stack, steps + records" "$(field steps_and_records_bytes)"
 if [[ $core_tables -lt $TARGET_CORE_TABLES ]]; then
   echo "[capi] core + tables $core_tables B: within the 16 KiB target" >&2
 else

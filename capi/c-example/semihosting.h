@@ -8,7 +8,9 @@
 void semihosting_write(const char *text);
 void semihosting_exit(bool success) __attribute__((noreturn));
 
-/* Deepest stack use since reset, bytes (startup.c paints the free RAM). */
+/* Deepest stack use since reset or the last stack_paint(), bytes (startup.c paints the free
+ * RAM at reset). */
 uint32_t stack_used(void);
+void stack_paint(void);
 
 #endif

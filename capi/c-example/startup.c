@@ -13,9 +13,10 @@ static void on_fault(void) { semihosting_exit(false); }
 
 #define STACK_PAINT 0x5A5A5A5Au
 
-/* Fill the free RAM between .bss and the stack pointer, so stack_used() can find the deepest
- * point the stack reached (a word still holding the paint was never written). */
-static void stack_paint(void) {
+/* Fill the free RAM between .bss and the stack pointer (less a margin for this function's own
+ * frame), so stack_used() can find the deepest point the stack reached since (a word still
+ * holding the paint was never written). */
+void stack_paint(void) {
     uint32_t *word = &_ebss;
     uint32_t sp;
     __asm volatile("mov %0, sp" : "=r"(sp));
