@@ -478,3 +478,78 @@ const _: () = {
     assert!(RADIUS_BEDDING_POINTS == RADIUS_BEDDINGS_MAX);
     assert!(MU_POINTS == MU_TEMPERATURES_MAX && MU_POINTS == MU_SPEEDS_MAX);
 };
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    use super::*;
+    use crate::config::LoadedConfig;
+
+    fn core_of(src: &str) -> CoreDevice {
+        let cfg = LoadedConfig::from_str(src, "t.toml").unwrap();
+        CoreDevice::build(&cfg.config).unwrap()
+    }
+
+    #[test]
+    fn extreme_values_are_valid_c() {
+        // [calc] C has no literal for the most negative value of a signed type.
+        assert_eq!(i64_c(i64::MIN), "INT64_MIN");
+        assert_eq!(i64_c(-5), "INT64_C(-5)");
+        assert_eq!(i32_c(i32::MIN), "INT32_MIN");
+        assert_eq!(i32_c(-7), "-7");
+        // [calc] 2¹²⁷ + 2⁶⁴ + 3: high half 2⁶³ + 1, low half 3.
+        let v = (1u128 << 127) + (1u128 << 64) + 3;
+        assert_eq!(
+            u128_c(v),
+            "{ .lo = UINT64_C(3), .hi = UINT64_C(9223372036854775809) }"
+        );
+    }
+
+    #[test]
+    fn the_demo_source_names_every_part_and_its_checksum() {
+        let core = core_of(crate::DEMO_CONFIG);
+        let src = c_source(&core, "demo.toml").unwrap();
+        for needle in [
+            ".radius = {",
+            ".forces_len = 2, .beddings_len = 2,",
+            ".friction = {",
+            ".mu = {",
+            ".temperatures_len = 6, .speeds_len = 6,",
+            ".thermal = {",
+            ".wear = {",
+            ".sensor = {",
+            ".channels = {",
+            ".debounce_disagreement = {",
+            ".combination = CW_COMBINATION_",
+            "const uint32_t clampwise_device_desc_initial_record_len = 0;",
+        ] {
+            assert!(src.contains(needle), "missing `{needle}`");
+        }
+        assert!(src.contains(&format!(
+            ".checksum = UINT32_C(0x{:08x}),",
+            core.device.checksum()
+        )));
+        for (open, close) in [('(', ')'), ('[', ']'), ('{', '}')] {
+            assert_eq!(
+                src.matches(open).count(),
+                src.matches(close).count(),
+                "{open}{close}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_worn_lining_starts_from_its_record() {
+        let worn = crate::DEMO_CONFIG.replace("initial_energy_j = 0.0", "initial_energy_j = 2.0e6");
+        let core = core_of(&worn);
+        let ChannelDevice::Three(d) = &core.device else {
+            unreachable!("the demo has three force channels")
+        };
+        let record = core.initial.record(d).unwrap();
+        let src = c_source(&core, "worn.toml").unwrap();
+        assert!(src.contains("_initial_record_len = 88;"));
+        let bytes: Vec<String> = record.iter().map(u8::to_string).collect();
+        let first_row = bytes[..16].join(", ");
+        assert!(src.contains(&first_row), "{src}");
+    }
+}
