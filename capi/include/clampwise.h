@@ -339,7 +339,7 @@ typedef uint8_t cw_contact_state;
  * Storage of one device configuration (see `cw_device_init`). Never copy or move it once
  * initialised; estimators refer to it.
  */
-typedef struct {
+typedef struct cw_device {
   /**
    * Opaque.
    */
@@ -349,7 +349,7 @@ typedef struct {
 /**
  * The friction-radius table r_e(clamp force, bedding): the per-face lever arm.
  */
-typedef struct {
+typedef struct cw_radius_table {
   /**
    * Clamp-force breakpoints in use, 1 … `CW_RADIUS_FORCES_MAX`.
    */
@@ -375,7 +375,7 @@ typedef struct {
 /**
  * The kinetic friction coefficient table μ(lining temperature, |slip speed|).
  */
-typedef struct {
+typedef struct cw_mu_table {
   /**
    * Temperature breakpoints in use, 1 … `CW_MU_TEMPERATURES_MAX`.
    */
@@ -401,11 +401,11 @@ typedef struct {
 /**
  * The friction model: μ table, stick/slip band and drag.
  */
-typedef struct {
+typedef struct cw_friction {
   /**
    * Kinetic μ table.
    */
-  cw_mu_table mu;
+  struct cw_mu_table mu;
   /**
    * Static over kinetic friction, 1, Q1.30.
    */
@@ -435,7 +435,7 @@ typedef struct {
 /**
  * The thermal model's discretised matrices and flag thresholds (the core's `ThermalRaw`).
  */
-typedef struct {
+typedef struct cw_thermal {
   /**
    * Thermal step, s, Q31.32 (sample period × `thermal_wear_every`).
    */
@@ -489,7 +489,7 @@ typedef struct {
 /**
  * An unsigned 128-bit number as two halves (C99 has no 128-bit integer).
  */
-typedef struct {
+typedef struct cw_u128 {
   /**
    * Bits 0 … 63.
    */
@@ -503,7 +503,7 @@ typedef struct {
 /**
  * The wear and bedding model (the core's `WearRaw`).
  */
-typedef struct {
+typedef struct cw_wear {
   /**
    * Sample period, s, unsigned Q0.63 (at most 1 s).
    */
@@ -511,11 +511,11 @@ typedef struct {
   /**
    * Bedding energy E₀, J, unsigned Q80.48.
    */
-  cw_u128 e0_q48;
+  struct cw_u128 e0_q48;
   /**
    * round(2⁷⁹ / E₀) with E₀ in J.
    */
-  cw_u128 bedding_recip;
+  struct cw_u128 bedding_recip;
   /**
    * Thickness lost per energy `wear_mant · 2^−(wear_shift + 48)` m/J: the mantissa (0, or
    * 2³¹ … 2³²).
@@ -538,7 +538,7 @@ typedef struct {
 /**
  * One clamp-force channel's calibration.
  */
-typedef struct {
+typedef struct cw_channel {
   /**
    * Gain, N per ADC count, Q31.32.
    */
@@ -588,7 +588,7 @@ typedef struct {
 /**
  * Debounce of one diagnostic: samples of evidence to raise it and to clear it.
  */
-typedef struct {
+typedef struct cw_debounce {
   /**
    * Samples with the problem before it is raised.
    */
@@ -602,7 +602,7 @@ typedef struct {
 /**
  * Force-sensor conditioning: calibration, filter, diagnostics, voting and fallback.
  */
-typedef struct {
+typedef struct cw_sensor {
   /**
    * Sample rate, Hz.
    */
@@ -610,7 +610,7 @@ typedef struct {
   /**
    * Calibration of each channel; the first `cw_device_desc::channels` are used.
    */
-  cw_channel channels[CW_CHANNELS_MAX];
+  struct cw_channel channels[CW_CHANNELS_MAX];
   /**
    * Low-pass filter coefficient α, 1, Q3.60.
    */
@@ -646,27 +646,27 @@ typedef struct {
   /**
    * Debounce of an invalid reading.
    */
-  cw_debounce debounce_invalid;
+  struct cw_debounce debounce_invalid;
   /**
    * Debounce of a reading on a rail.
    */
-  cw_debounce debounce_rail;
+  struct cw_debounce debounce_rail;
   /**
    * Debounce of a force out of range.
    */
-  cw_debounce debounce_range;
+  struct cw_debounce debounce_range;
   /**
    * Debounce of an implausible rate.
    */
-  cw_debounce debounce_rate;
+  struct cw_debounce debounce_rate;
   /**
    * Debounce of a stuck channel.
    */
-  cw_debounce debounce_stuck;
+  struct cw_debounce debounce_stuck;
   /**
    * Debounce of channels that disagree.
    */
-  cw_debounce debounce_disagreement;
+  struct cw_debounce debounce_disagreement;
   /**
    * Samples a channel's last good value is held.
    */
@@ -708,7 +708,7 @@ typedef struct {
 /**
  * Online μ correction (the core's `AdaptRaw`).
  */
-typedef struct {
+typedef struct cw_adapt {
   /**
    * Lowest correction factor, 1, Q1.30.
    */
@@ -746,7 +746,7 @@ typedef struct {
 /**
  * A whole device, as `clampwise tables --emit-c` writes it.
  */
-typedef struct {
+typedef struct cw_device_desc {
   /**
    * Clamp-force channels, 1 … `CW_CHANNELS_MAX`.
    */
@@ -770,27 +770,27 @@ typedef struct {
   /**
    * Friction-radius table.
    */
-  cw_radius_table radius;
+  struct cw_radius_table radius;
   /**
    * Friction model.
    */
-  cw_friction friction;
+  struct cw_friction friction;
   /**
    * Thermal model.
    */
-  cw_thermal thermal;
+  struct cw_thermal thermal;
   /**
    * Wear and bedding model.
    */
-  cw_wear wear;
+  struct cw_wear wear;
   /**
    * Force-sensor conditioning.
    */
-  cw_sensor sensor;
+  struct cw_sensor sensor;
   /**
    * Online μ correction (used when `has_adapt` is 1).
    */
-  cw_adapt adapt;
+  struct cw_adapt adapt;
   /**
    * Clamp force from which the device counts as applied, N, Q23.8.
    */
@@ -822,7 +822,7 @@ typedef struct {
  * Storage of one estimator's state (see `cw_estimator_init`). Never copy or move it once
  * initialised; save and restore a state record instead.
  */
-typedef struct {
+typedef struct cw_estimator {
   /**
    * Opaque.
    */
@@ -833,7 +833,7 @@ typedef struct {
  * One sample's inputs. Optional values count only when their `present` bit is set (the
  * value is ignored otherwise); a speed that could not be read is absent, never zero.
  */
-typedef struct {
+typedef struct cw_inputs {
   /**
    * ADC counts of each clamp-force channel (signed, as the converter gives them).
    */
@@ -879,7 +879,7 @@ typedef struct {
 /**
  * One sample's estimate — an estimate, not a certified safety function.
  */
-typedef struct {
+typedef struct cw_estimate {
   /**
    * Friction torque, N·m, Q19.12 (when `CW_HAS_TORQUE`; signed against the slip).
    */
@@ -986,7 +986,7 @@ cw_status cw_abi_check(uint32_t desc_size,
  * # Safety
  * `device` points to writable storage no estimator uses; `desc` to a readable description.
  */
-cw_status cw_device_init(cw_device *device, const cw_device_desc *desc);
+cw_status cw_device_init(struct cw_device *device, const struct cw_device_desc *desc);
 
 /**
  * The core's checksum of an initialised device (equal to the description's).
@@ -994,7 +994,7 @@ cw_status cw_device_init(cw_device *device, const cw_device_desc *desc);
  * # Safety
  * `device` points to a `cw_device`; `checksum` to a writable `uint32_t`.
  */
-cw_status cw_device_checksum(const cw_device *device, uint32_t *checksum);
+cw_status cw_device_checksum(const struct cw_device *device, uint32_t *checksum);
 
 /**
  * The number of clamp-force channels of an initialised device.
@@ -1002,7 +1002,7 @@ cw_status cw_device_checksum(const cw_device *device, uint32_t *checksum);
  * # Safety
  * `device` points to a `cw_device`; `channels` to a writable `uint8_t`.
  */
-cw_status cw_device_channels(const cw_device *device, uint8_t *channels);
+cw_status cw_device_channels(const struct cw_device *device, uint8_t *channels);
 
 /**
  * Start an estimator on a device with a new lining at ambient temperature.
@@ -1011,7 +1011,7 @@ cw_status cw_device_channels(const cw_device *device, uint8_t *channels);
  * `estimator` points to writable storage; `device` to an initialised `cw_device` that stays
  * in place, unchanged, while the estimator is used.
  */
-cw_status cw_estimator_init(cw_estimator *estimator, const cw_device *device);
+cw_status cw_estimator_init(struct cw_estimator *estimator, const struct cw_device *device);
 
 /**
  * Start an estimator on a device from a saved state record (`len` bytes, `CW_RECORD_LEN`):
@@ -1021,8 +1021,8 @@ cw_status cw_estimator_init(cw_estimator *estimator, const cw_device *device);
  * # Safety
  * As [`cw_estimator_init`]; `record` points to `len` readable bytes.
  */
-cw_status cw_estimator_restore(cw_estimator *estimator,
-                               const cw_device *device,
+cw_status cw_estimator_restore(struct cw_estimator *estimator,
+                               const struct cw_device *device,
                                const uint8_t *record,
                                uint32_t len);
 
@@ -1033,9 +1033,9 @@ cw_status cw_estimator_restore(cw_estimator *estimator,
  * `estimator` points to an initialised `cw_estimator` whose device is still in place;
  * `inputs` to readable inputs; `estimate` to a writable estimate.
  */
-cw_status cw_estimator_step(cw_estimator *estimator,
-                            const cw_inputs *inputs,
-                            cw_estimate *estimate);
+cw_status cw_estimator_step(struct cw_estimator *estimator,
+                            const struct cw_inputs *inputs,
+                            struct cw_estimate *estimate);
 
 /**
  * Save the estimator's slow state (temperatures, wear, bedding, μ correction) as a state
@@ -1045,7 +1045,7 @@ cw_status cw_estimator_step(cw_estimator *estimator,
  * # Safety
  * `estimator` points to an initialised `cw_estimator`; `record` to `len` writable bytes.
  */
-cw_status cw_estimator_save(const cw_estimator *estimator,
+cw_status cw_estimator_save(const struct cw_estimator *estimator,
                             uint32_t sequence,
                             uint8_t *record,
                             uint32_t len);
