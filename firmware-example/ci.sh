@@ -8,6 +8,8 @@
 #   4. the defmt (probe) build links
 #   5. size report (flash, static RAM, stack) per target, and the size targets on thumbv6m:
 #      core + one device's tables < 16 KiB flash, estimator state < 1 KiB RAM
+#   6. a drum device (sim/configs/example-crane-drum-brake.toml, torque not linear in μ):
+#      QEMU vs host replay on thumbv6m and thumbv7em, and the size targets on thumbv6m
 # Opt-in (when .ci/run does not already cover them):
 #   FW_HOST_TESTS=1  the crate's host unit tests and doctests (`cargo test --workspace` has them)
 #   FW_CLIPPY=1      clippy on the target-only code (entry point, sinks, stack probe)
@@ -76,6 +78,12 @@ check "QEMU vs host replay" bash "$FW_SCRIPTS/qemu-check.sh" \
 check "no soft-float on thumbv6m" bash "$FW_SCRIPTS/softfloat-check.sh" thumbv6m-none-eabi
 check "defmt build" defmt_build
 check "size report (targets on thumbv6m)" bash "$FW_SCRIPTS/size-report.sh" --check
+drum_device() ( # a subshell: the device's environment stays inside
+  export CLAMPWISE_FW_CONFIG=../sim/configs/example-crane-drum-brake.toml FW_REBUILD=1
+  bash "$FW_SCRIPTS/qemu-check.sh" thumbv6m-none-eabi thumbv7em-none-eabihf \
+    && bash "$FW_SCRIPTS/size-report.sh" --check thumbv6m-none-eabi
+)
+check "drum device: QEMU vs host replay, size targets" drum_device
 
 echo "[firmware] $(( $(date +%s) - started )) s in all"
 if [[ $failed -gt 0 ]]; then

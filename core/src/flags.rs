@@ -46,6 +46,12 @@ bitflags::bitflags! {
         /// over every slip speed and temperature of the μ table. No heat or wear is added while
         /// it lasts.
         const SPEED_UNKNOWN = 1 << 14;
+        /// A contact whose torque is not linear in μ (a self-energising shoe, a differential
+        /// band) has μ, within its tolerance, beyond the range its torque-gain table covers:
+        /// at or near self-locking, where a small rise in μ gives an unbounded rise in torque.
+        /// Torque and capacity are the table's edge values and the ± is the format's maximum:
+        /// neither can be trusted.
+        const SELF_LOCKING = 1 << 15;
     }
 }
 

@@ -381,7 +381,7 @@ pub fn markdown() -> String {
         .map(|(s, u)| format!("`{s}` {u}"))
         .collect();
     o.push_str(&units.join(", "));
-    o.push_str(".\n\nExamples: `sim/configs/demo-hoist-brake.toml` (a caliper holding brake) and `sim/configs/demo-wet-clutch.toml` (a wet multi-plate clutch), both invented machines.\n\n");
+    o.push_str(".\n\nExamples: `sim/configs/demo-hoist-brake.toml` (a caliper holding brake), `sim/configs/demo-wet-clutch.toml` (a wet multi-plate clutch), `sim/configs/example-crane-drum-brake.toml` (two external pivoted shoes) and `sim/configs/example-hoist-band-brake.toml` (a differential band), all invented machines.\n\n");
     o.push_str("> **Caution.** The estimator's output is an estimate, not a certified safety function. Validate on the bench for each lining and geometry, and follow the applicable functional-safety process (ISO 26262, IEC 61508, ISO 13849 or the machine's own standard), local codes and licensed engineering practice.\n");
     for s in sections() {
         let heading = if s.array {

@@ -102,6 +102,10 @@ pub enum ShapeSpec {
     Polygon,
     /// Cone, radii plus `half_angle_deg`.
     Cone,
+    /// One or two pivoted shoes on a drum, `[contact.drum_shoes]`: torque not linear in μ.
+    DrumShoes,
+    /// A band brake, `[contact.band]`: torque not linear in μ.
+    Band,
 }
 
 impl ShapeSpec {
@@ -113,7 +117,15 @@ impl ShapeSpec {
             Self::Button => "button",
             Self::Polygon => "polygon",
             Self::Cone => "cone",
+            Self::DrumShoes => "drum_shoes",
+            Self::Band => "band",
         }
+    }
+
+    /// Whether the torque per unit actuating force is not linear in μ (the radius table then
+    /// runs over μ instead of bedding).
+    pub fn is_nonlinear_in_mu(self) -> bool {
+        matches!(self, Self::DrumShoes | Self::Band)
     }
 }
 
@@ -154,9 +166,122 @@ pub struct ContactSpec {
     /// Cone half-angle, degrees (1–89).
     #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1.0, max = 89.0)))]
     pub half_angle_deg: Option<f64>,
+    /// Pivoted shoes on a drum (shape `drum_shoes`).
+    pub drum_shoes: Option<DrumShoesSpec>,
+    /// A band brake (shape `band`).
+    pub band: Option<BandSpec>,
+    /// Largest μ the torque-gain table of a `drum_shoes` or `band` contact covers (default:
+    /// 90 % of the locking μ, at most 1.0); above it the estimate flags `SELF_LOCKING`.
+    #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.05, max = 2.0)))]
+    pub gain_mu_max: Option<f64>,
     /// Relative tolerance of the effective radius (0–1), for the uncertainty.
     #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.0, max = 1.0)))]
     pub radius_tolerance_ratio: f64,
+}
+
+/// `[contact.drum_shoes]`: long pivoted shoes (pressure ∝ sin θ over the lining arc) on one
+/// drum, all of the same geometry and driven by the one measured actuating force.
+#[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(deny_unknown_fields)]
+pub struct DrumShoesSpec {
+    /// Radius of the drum's rubbing surface, m.
+    pub drum_radius_m: f64,
+    /// Drum centre to each shoe's pivot pin, m.
+    pub pin_distance_m: f64,
+    /// Lining start, degrees from the centre–pin line (0 ≤ start < end).
+    pub arc_start_deg: f64,
+    /// Lining end, degrees from the centre–pin line (end < 180).
+    pub arc_end_deg: f64,
+    /// Axial width of the lining, m.
+    pub face_width_m: f64,
+    /// Lever arm of the actuating force about the pin, m.
+    pub actuation_arm_m: f64,
+    /// `external` (contracting shoes) or `internal` (expanding shoes).
+    pub mounting: MountingSpec,
+    /// One entry per shoe, `leading` (self-energising) or `trailing`; one or two shoes.
+    pub shoes: Vec<ShoeActionSpec>,
+}
+
+/// `contact.drum_shoes.mounting`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(rename_all = "snake_case")]
+pub enum MountingSpec {
+    /// Contracting shoes outside the drum.
+    External,
+    /// Expanding shoes inside the drum.
+    Internal,
+}
+
+/// One entry of `contact.drum_shoes.shoes`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(rename_all = "snake_case")]
+pub enum ShoeActionSpec {
+    /// The friction moment about the pin adds to the actuating moment.
+    Leading,
+    /// The friction moment about the pin opposes the actuating moment.
+    Trailing,
+}
+
+/// `[contact.band]`: a band brake on a lever.
+#[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(deny_unknown_fields)]
+pub struct BandSpec {
+    /// `simple` (one end at the lever pivot) or `differential` (both ends on the lever).
+    pub kind: BandKindSpec,
+    /// Drum radius, m.
+    pub drum_radius_m: f64,
+    /// Wrap angle of the band, degrees (0 < φ < 360).
+    pub wrap_angle_deg: f64,
+    /// Lever arm of the actuating force about the lever pivot, m.
+    pub actuation_arm_m: f64,
+    /// Simple band: arm of the band end on the lever, m.
+    pub band_arm_m: Option<f64>,
+    /// Simple band: `slack` or `tight`, the end fixed to the lever.
+    pub lever_end: Option<LeverEndSpec>,
+    /// Differential band: arm of the tight end about the lever pivot, m.
+    pub tight_end_arm_m: Option<f64>,
+    /// Differential band: arm of the slack end about the lever pivot, m.
+    pub slack_end_arm_m: Option<f64>,
+    /// Differential band: whether the tight end's moment `aids_actuator` (can lock) or
+    /// `opposes_actuator`.
+    pub tight_end: Option<TightEndSpec>,
+}
+
+/// `contact.band.kind`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(rename_all = "snake_case")]
+pub enum BandKindSpec {
+    /// One end at the lever pivot, the other on the lever.
+    Simple,
+    /// Both ends on the lever, on opposite sides of its pivot.
+    Differential,
+}
+
+/// `contact.band.lever_end`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(rename_all = "snake_case")]
+pub enum LeverEndSpec {
+    /// The slack end is on the lever (self-energising).
+    Slack,
+    /// The tight end is on the lever.
+    Tight,
+}
+
+/// `contact.band.tight_end`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(rename_all = "snake_case")]
+pub enum TightEndSpec {
+    /// The tight end's moment helps apply the band (can lock).
+    AidsActuator,
+    /// The tight end's moment resists the actuator.
+    OpposesActuator,
 }
 
 impl ContactSpec {
@@ -187,6 +312,9 @@ impl ContactSpec {
             button_model: None,
             vertices_m: None,
             half_angle_deg: None,
+            drum_shoes: None,
+            band: None,
+            gain_mu_max: None,
             radius_tolerance_ratio: 0.0,
         }
     }

@@ -678,8 +678,15 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
         }) {
             Ok((c, d)) => {
                 let t = &d.tables;
+                let lever = match &t.gain {
+                    None => format!("r_e {:.4}…{:.4} m", t.radii_m.1, t.radii_m.0),
+                    Some((_, info)) => format!(
+                        "g(μ)/μ {:.4}…{:.4} m up to μ {:.3}",
+                        t.radii_m.0, t.radii_m.1, info.mu_end
+                    ),
+                };
                 human.push_str(&format!(
-                    "{}: ok — {} ({:?}), {} × {} faces, {} sensors, μ table {}×{}, r_e {:.4}…{:.4} m, checksum 0x{:08X}\n",
+                    "{}: ok — {} ({:?}), {} × {} faces, {} sensors, μ table {}×{}, {lever}, checksum 0x{:08X}\n",
                     c.file,
                     c.config.device.name,
                     c.config.device.kind,
@@ -688,8 +695,6 @@ pub fn check(a: &CheckArgs) -> Result<Outcome, SimError> {
                     c.config.sensors.len(),
                     t.mu.x_breakpoints().len(),
                     t.mu.y_breakpoints().len(),
-                    t.radii_m.1,
-                    t.radii_m.0,
                     d.device.checksum()
                 ));
                 js.push(json!({"file": c.file, "ok": true}));

@@ -12,6 +12,12 @@
 //! its prior value from the config and is listed; samples outside the table's breakpoints are
 //! not used (counted). Reached entries are solved by Cholesky with a tiny ridge (10⁻¹² of the
 //! largest diagonal) for conditioning; standard errors come from σ²·(MᵀM)⁻¹.
+//!
+//! A drum or band contact's torque is not linear in μ (T = k·F·g(μ)): there each sample's μ is
+//! first found from its reference torque by inverting g, which rises monotonically with μ
+//! (bisection over the gain table's range; a sample beyond it is counted outside), and the
+//! equation is `μ_sample = Σₖ wₖ·μₖ`, the least squares then weighing errors in μ rather than
+//! in torque.
 
 // Host-only linear algebra on K ≤ 64 entries: every index is bounded by the loops over K.
 #![allow(clippy::indexing_slicing)]
@@ -21,7 +27,7 @@ use std::fmt::Write as _;
 use indicatif::ProgressBar;
 use serde::Serialize;
 
-use crate::build_core::CoreDevice;
+use crate::build_core::{CoreDevice, GainModel};
 use crate::config::LoadedConfig;
 use crate::error::{DataError, SimError};
 use crate::locate::{KeyPath, value_span};
@@ -91,10 +97,13 @@ pub struct FitReport {
     pub excluded: u64,
     /// Coverage threshold.
     pub min_coverage: f64,
-    /// RMS residual with the prior table, N·m.
+    /// RMS residual with the prior table, N·m (in μ for a drum or band contact: see
+    /// [`FitReport::residual_in_mu`]).
     pub rms_before_nm: f64,
-    /// RMS residual with the fitted table, N·m.
+    /// RMS residual with the fitted table, N·m (or μ).
     pub rms_after_nm: f64,
+    /// Whether the residuals are in μ (a drum or band contact, fitted on μ) rather than N·m.
+    pub residual_in_mu: bool,
     /// Every entry, row-major.
     pub cells: Vec<CellReport>,
     /// Labels of the entries not reached.
@@ -110,6 +119,25 @@ impl FitReport {
             .map(|i| (0..nv).map(|j| self.cells[i * nv + j].fitted).collect())
             .collect()
     }
+}
+
+/// The μ in 0 … `mu_end` at which a drum or band contact's g(μ) equals `per_force` (m), by
+/// bisection (g rises with μ); `None` outside g's range there.
+fn inverse_gain(model: &GainModel, per_force: f64, mu_end: f64) -> Option<f64> {
+    let g = |mu: f64| model.torque_per_force(mu).ok();
+    if !(per_force >= 0.0) || per_force > g(mu_end)? {
+        return None;
+    }
+    let (mut lo, mut hi) = (0.0, mu_end);
+    for _ in 0..60 {
+        let mid = 0.5 * (lo + hi);
+        if g(mid)? < per_force {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    Some(0.5 * (lo + hi))
 }
 
 fn bracket(xs: &[f64], x: f64) -> Option<(usize, usize, f64)> {
@@ -237,6 +265,7 @@ pub fn fit_trace(
     // Below the transition speed the core blends μ towards the static value: not the table's
     // kinetic μ, so those samples carry no equation for it.
     let transition = c.friction.transition_speed_rad_s;
+    let gain = core.tables.gain.as_ref();
     let mut est = convert::new_estimator(c, core)
         .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     run_stream(&mut reader, est.as_mut(), progress, |_, row| {
@@ -261,9 +290,24 @@ pub fn fit_trace(
             return Ok(());
         };
         let sign = -v.signum();
-        // The adaptation's correction (1 without it) scales the table's μ.
-        let a = sign * faces * row.clamp_force_n * row.radius_m * row.correction;
-        let y = reference - sign * (drag0 + drag1 * v.abs());
+        let friction = reference - sign * (drag0 + drag1 * v.abs());
+        let (a, y, r) = match gain {
+            // The adaptation's correction (1 without it) scales the table's μ.
+            None => (
+                sign * faces * row.clamp_force_n * row.radius_m * row.correction,
+                friction,
+                // row.mu already carries the correction.
+                friction - sign * faces * row.clamp_force_n * row.radius_m * row.mu,
+            ),
+            Some((model, info)) => {
+                let per_force = friction / (sign * faces * row.clamp_force_n * row.correction);
+                let Some(mu) = inverse_gain(model, per_force, info.mu_end) else {
+                    outside += 1;
+                    return Ok(());
+                };
+                (1.0, mu, mu - row.mu / row.correction)
+            }
+        };
         let entries = [
             (i0 * nv + j0, (1.0 - fx) * (1.0 - fy)),
             (i0 * nv + j1, (1.0 - fx) * fy),
@@ -279,8 +323,6 @@ pub fn fit_trace(
             }
         }
         yy += y * y;
-        // row.mu already carries the correction.
-        let r = y - sign * faces * row.clamp_force_n * row.radius_m * row.mu;
         rss_before += r * r;
         used += 1;
         Ok(())
@@ -314,6 +356,7 @@ pub fn fit_trace(
         outside_table: outside,
         excluded,
         min_coverage: opts.min_coverage,
+        residual_in_mu: gain.is_some(),
         rms_before_nm: libm::sqrt(rss_before / nused),
         rms_after_nm: libm::sqrt(rss_after.max(0.0) / nused),
         cells,
@@ -508,8 +551,18 @@ pub fn human(r: &FitReport, nv: usize) -> String {
     );
     let _ = writeln!(
         o,
-        "  RMS residual: {:.2} N·m with the config's table → {:.2} N·m fitted",
-        r.rms_before_nm, r.rms_after_nm
+        "{}",
+        if r.residual_in_mu {
+            format!(
+                "  RMS residual: μ {:.5} with the config's table → μ {:.5} fitted (each sample's μ from g(μ) = T_ref/F)",
+                r.rms_before_nm, r.rms_after_nm
+            )
+        } else {
+            format!(
+                "  RMS residual: {:.2} N·m with the config's table → {:.2} N·m fitted",
+                r.rms_before_nm, r.rms_after_nm
+            )
+        }
     );
     let _ = writeln!(
         o,

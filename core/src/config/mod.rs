@@ -20,7 +20,7 @@ mod params;
 mod tables;
 
 pub use params::{DeviceError, DeviceParams, SensorParams};
-pub use tables::{TableSet, Tables};
+pub use tables::{AxisKind, ByBedding, ByEither, ByMu, LeverAxis, TableSet, Tables};
 
 use crate::adapt::AdaptConfig;
 use crate::estimator::Combination;

@@ -19,11 +19,74 @@ mod sealed {
     pub trait Sealed {}
 }
 
+/// What the second axis of the friction-radius table is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum LeverAxis {
+    /// Bedding (0 new … 1 bedded): r_e(F, bedding) of a flat or conical face, torque
+    /// n·μ·F·r_e.
+    Bedding,
+    /// μ: the equivalent lever arm r(F, μ) = g(μ)/μ of a contact whose torque per unit
+    /// actuating force g(μ) is not linear in μ (drum shoes, bands, cone engagement; see
+    /// [`crate::geometry::brake`]), torque μ·F·r(μ). The last μ breakpoint is where the table
+    /// stops: beyond it the estimate flags [`crate::flags::Flags::SELF_LOCKING`].
+    Mu,
+}
+
+/// Whether a [`Tables`] type fixes its [`LeverAxis`] at compile time (a firmware's device: the
+/// step then holds only that axis's code) or reads it at run time (a host that loads any
+/// device).
+pub trait AxisKind: Copy + Debug + PartialEq + Eq + sealed::Sealed {
+    /// The axis every value of the type has, or `None` when each value says.
+    const FIXED: Option<LeverAxis>;
+    /// The marker's value.
+    const MARKER: Self;
+}
+
+/// The radius table's second axis is bedding, fixed by the type ([`Tables::new`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ByBedding;
+
+/// The radius table's second axis is μ, fixed by the type ([`Tables::over_mu`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ByMu;
+
+/// The radius table's second axis is read at run time ([`Tables::with_axis`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ByEither;
+
+impl sealed::Sealed for ByBedding {}
+impl sealed::Sealed for ByMu {}
+impl sealed::Sealed for ByEither {}
+
+impl AxisKind for ByBedding {
+    const MARKER: Self = ByBedding;
+    const FIXED: Option<LeverAxis> = Some(LeverAxis::Bedding);
+}
+
+impl AxisKind for ByMu {
+    const MARKER: Self = ByMu;
+    const FIXED: Option<LeverAxis> = Some(LeverAxis::Mu);
+}
+
+impl AxisKind for ByEither {
+    const MARKER: Self = ByEither;
+    const FIXED: Option<LeverAxis> = None;
+}
+
 /// What the per-sample step looks up in a device's tables. Implemented by [`Tables`]; sealed,
 /// so the checksum of a configuration always covers every number of its tables.
 pub trait TableSet: Copy + Debug + PartialEq + Eq + sealed::Sealed {
-    /// Per-face lever arm r_e at this clamp force and bedding (m).
-    fn lever_arm(&self, force: Newtons, bedding: Ratio) -> Lookup<Metres>;
+    /// Per-face lever arm at this clamp force and second-axis value (m): r_e at a bedding, or
+    /// the equivalent lever arm at a μ (see [`Self::lever_axis`]).
+    fn lever_arm(&self, force: Newtons, second: Ratio) -> Lookup<Metres>;
+
+    /// What the friction-radius table's second axis is.
+    fn lever_axis(&self) -> LeverAxis;
+
+    /// The largest value of the friction-radius table's second axis (for [`LeverAxis::Mu`],
+    /// the largest μ the table covers).
+    fn lever_axis_end(&self) -> Ratio;
 
     /// Advance the stick/slip state and give μ at this slip speed and lining temperature
     /// (see [`FrictionState::update`]).
@@ -46,15 +109,108 @@ pub trait TableSet: Copy + Debug + PartialEq + Eq + sealed::Sealed {
 /// The tables of one device: a friction-radius table (clamp force × bedding) of capacity
 /// `NF` × `NB` and a μ table (lining temperature × slip speed) of capacity `NT` × `NV`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct Tables<const NF: usize, const NB: usize, const NT: usize, const NV: usize> {
+pub struct Tables<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K = ByBedding>
+{
     radius: RadiusTable<NF, NB>,
     friction: FrictionConfig<NT, NV>,
+    axis: LeverAxis,
+    kind: K,
 }
 
-impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> Tables<NF, NB, NT, NV> {
-    /// Both tables, each already validated by its own constructor.
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
+    Tables<NF, NB, NT, NV, ByMu>
+{
+    /// Both tables, the radius table holding the equivalent lever arm g(μ)/μ over clamp
+    /// force × μ ([`LeverAxis::Mu`]): a drum, band or cone-engagement contact whose torque
+    /// per unit actuating force g(μ) is not linear in μ.
+    pub const fn over_mu(radius: RadiusTable<NF, NB>, friction: FrictionConfig<NT, NV>) -> Self {
+        Self {
+            radius,
+            friction,
+            axis: LeverAxis::Mu,
+            kind: ByMu,
+        }
+    }
+}
+
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
+    Tables<NF, NB, NT, NV, ByEither>
+{
+    /// Both tables with the radius table's second axis given at run time.
+    pub const fn with_axis(
+        radius: RadiusTable<NF, NB>,
+        friction: FrictionConfig<NT, NV>,
+        axis: LeverAxis,
+    ) -> Self {
+        Self {
+            radius,
+            friction,
+            axis,
+            kind: ByEither,
+        }
+    }
+}
+
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: AxisKind>
+    Tables<NF, NB, NT, NV, K>
+{
+    /// Both tables with the radius table's second axis `axis`, or `None` when the type fixes
+    /// another axis.
+    pub const fn try_with_axis(
+        radius: RadiusTable<NF, NB>,
+        friction: FrictionConfig<NT, NV>,
+        axis: LeverAxis,
+    ) -> Option<Self> {
+        let fits = match (K::FIXED, axis) {
+            (None, _)
+            | (Some(LeverAxis::Bedding), LeverAxis::Bedding)
+            | (Some(LeverAxis::Mu), LeverAxis::Mu) => true,
+            _ => false,
+        };
+        if fits {
+            Some(Self {
+                radius,
+                friction,
+                axis,
+                kind: K::MARKER,
+            })
+        } else {
+            None
+        }
+    }
+
+    /// What the radius table's second axis is.
+    pub const fn axis(&self) -> LeverAxis {
+        match K::FIXED {
+            Some(axis) => axis,
+            None => self.axis,
+        }
+    }
+
+    /// The friction-radius table: per-face lever arm (m) over clamp force × bedding, or the
+    /// equivalent lever arm over clamp force × μ (see [`Self::axis`]).
+    pub const fn radius(&self) -> &RadiusTable<NF, NB> {
+        &self.radius
+    }
+
+    /// The μ model.
+    pub const fn friction(&self) -> &FrictionConfig<NT, NV> {
+        &self.friction
+    }
+}
+
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize>
+    Tables<NF, NB, NT, NV, ByBedding>
+{
+    /// Both tables, each already validated by its own constructor; the radius table's second
+    /// axis is bedding ([`LeverAxis::Bedding`]).
     pub const fn new(radius: RadiusTable<NF, NB>, friction: FrictionConfig<NT, NV>) -> Self {
-        Self { radius, friction }
+        Self {
+            radius,
+            friction,
+            axis: LeverAxis::Bedding,
+            kind: ByBedding,
+        }
     }
 
     /// Both tables from SI values: the friction-radius table of `contact` at the clamp forces
@@ -95,29 +251,33 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> Tables<
         let mu = MuTable::new(mu_temperatures_c, mu_speeds, mu)?;
         Ok(Self::new(radius, FrictionConfig::new(mu, friction)?))
     }
-
-    /// The friction-radius table: per-face lever arm (m) over clamp force × bedding.
-    pub const fn radius(&self) -> &RadiusTable<NF, NB> {
-        &self.radius
-    }
-
-    /// The μ model.
-    pub const fn friction(&self) -> &FrictionConfig<NT, NV> {
-        &self.friction
-    }
 }
 
-impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> sealed::Sealed
-    for Tables<NF, NB, NT, NV>
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: AxisKind> sealed::Sealed
+    for Tables<NF, NB, NT, NV, K>
 {
 }
 
-impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> TableSet
-    for Tables<NF, NB, NT, NV>
+impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: AxisKind> TableSet
+    for Tables<NF, NB, NT, NV, K>
 {
     #[inline]
-    fn lever_arm(&self, force: Newtons, bedding: Ratio) -> Lookup<Metres> {
-        self.radius.lookup(force, bedding)
+    fn lever_arm(&self, force: Newtons, second: Ratio) -> Lookup<Metres> {
+        self.radius.lookup(force, second)
+    }
+
+    #[inline]
+    fn lever_axis(&self) -> LeverAxis {
+        self.axis()
+    }
+
+    #[inline]
+    fn lever_axis_end(&self) -> Ratio {
+        self.radius
+            .y_breakpoints()
+            .last()
+            .copied()
+            .unwrap_or(Ratio::ZERO)
     }
 
     #[inline]
@@ -138,6 +298,10 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize> TableSe
 
     fn feed_bits(&self, sink: &mut dyn FnMut(&[u8])) {
         let mut word = |v: i32| sink(&v.to_le_bytes());
+        word(match self.axis() {
+            LeverAxis::Bedding => 0,
+            LeverAxis::Mu => 1,
+        });
         self.radius.for_each_bits(&mut word);
         let fr = &self.friction;
         fr.mu_kinetic().for_each_bits(&mut word);

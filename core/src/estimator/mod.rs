@@ -32,7 +32,7 @@ pub use inputs::Inputs;
 pub use uncertainty::Combination;
 
 use crate::adapt::{AdaptGate, AdaptState};
-use crate::config::{DeviceConfig, TableSet};
+use crate::config::{DeviceConfig, LeverAxis, TableSet};
 use crate::flags::Flags;
 use crate::friction::{FrictionSample, FrictionState};
 use crate::sensor::{ChannelMask, ForceReading, ForceSource, Health, SensorState};
@@ -72,23 +72,46 @@ fn signed(direction: i8, magnitude: NewtonMetres) -> NewtonMetres {
     }
 }
 
+/// The lever arm of this sample's contact.
+#[derive(Clone, Copy)]
+enum Lever<'t, T> {
+    /// r_e at this force and bedding, the same for every μ.
+    Fixed(Metres),
+    /// The equivalent lever arm g(μ)/μ, looked up for each μ at this force.
+    PerMu(&'t T, Newtons),
+}
+
 /// Where the contact operates this sample: what every torque product shares.
 #[derive(Clone, Copy)]
-struct Operating {
+struct Operating<'t, T> {
     faces: u8,
     correction: Ratio,
     force: Newtons,
-    lever_arm: Metres,
+    lever: Lever<'t, T>,
 }
 
-impl Operating {
-    /// n · k · μ · F · r_e.
+impl<T: TableSet> Operating<'_, T> {
+    /// The lever arm at `mu` (and whether its table was entered out of range).
     #[inline(always)]
-    fn torque(self, mu: Ratio) -> Saturating<NewtonMetres> {
-        friction_torque(self.faces, self.correction, mu, self.force, self.lever_arm)
+    fn lever_arm(self, mu: Ratio) -> crate::table::Lookup<Metres> {
+        match self.lever {
+            Lever::Fixed(value) => crate::table::Lookup {
+                value,
+                clamped: false,
+            },
+            Lever::PerMu(tables, force) => tables.lever_arm(force, mu),
+        }
     }
 
-    /// The same contact carrying `force` instead.
+    /// n · k · μ · F · r(μ).
+    #[inline(always)]
+    fn torque(self, mu: Ratio) -> Saturating<NewtonMetres> {
+        let arm = self.lever_arm(mu).value;
+        friction_torque(self.faces, self.correction, mu, self.force, arm)
+    }
+
+    /// The same contact carrying `force` instead (the lever arm stays that of this sample's
+    /// force).
     #[inline(always)]
     fn with_force(self, force: Newtons) -> Self {
         Self { force, ..self }
@@ -110,10 +133,10 @@ struct Reported {
 /// The torque of each contact state; flags a bounded (holding, slip-unknown) torque and
 /// saturated products.
 #[inline(always)]
-fn reported_torque(
+fn reported_torque<T: TableSet>(
     state: ContactState,
     fric: &FrictionSample,
-    at: Operating,
+    at: Operating<'_, T>,
     flags: &mut Flags,
 ) -> Reported {
     let kinetic = at.torque(fric.mu_kinetic);
@@ -191,17 +214,25 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         };
         let force = force.max(Newtons::ZERO);
 
-        // 3. Effective radius at this force and bedding.
-        let radius = self.cfg.tables.lever_arm(force, bedding);
-        flags.set(
-            Flags::OUT_OF_RANGE,
-            flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,
-        );
+        // 3. Effective radius at this force and bedding (or, for a contact not linear in μ,
+        //    the lever arm at each μ used below).
+        let tables = &self.cfg.tables;
+        let lever = match tables.lever_axis() {
+            LeverAxis::Bedding => {
+                let radius = tables.lever_arm(force, bedding);
+                flags.set(
+                    Flags::OUT_OF_RANGE,
+                    flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,
+                );
+                Lever::Fixed(radius.value)
+            }
+            LeverAxis::Mu => Lever::PerMu(tables, force),
+        };
         let at = Operating {
             faces: self.cfg.faces,
             correction,
             force,
-            lever_arm: radius.value,
+            lever,
         };
 
         // 4. Torque or capacity.
@@ -211,6 +242,11 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         if capacity.saturated {
             flags.insert(Flags::ARITHMETIC_SATURATED);
         }
+        let radius = at.lever_arm(reported.mu);
+        flags.set(
+            Flags::OUT_OF_RANGE,
+            flags.contains(Flags::OUT_OF_RANGE) || radius.clamped,
+        );
 
         // 5. Heat from this sample's dissipated power (friction + drag); wear and bedding from
         //    the friction part alone. Without a slip speed no power can be known.
@@ -241,7 +277,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
             &fric,
             at,
             reading.uncertainty,
-            (reported.torque, capacity.value),
+            (reported.torque, capacity.value, reported.friction_part),
             &mut flags,
         );
 
@@ -250,7 +286,7 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
             holding_capacity: Some(capacity.value),
             uncertainty,
             mu: ratio_product(reported.mu, correction),
-            effective_radius: at.lever_arm,
+            effective_radius: radius.value,
             clamp_force: force,
             force_channels_used: channels_used,
             lining_temperature: slow.lining_temperature,
@@ -381,11 +417,29 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
         &self,
         state: ContactState,
         fric: &FrictionSample,
-        at: Operating,
+        at: Operating<'_, T>,
         force_uncertainty: Newtons,
-        (torque, capacity): (Option<NewtonMetres>, NewtonMetres),
+        (torque, capacity, friction_part): (Option<NewtonMetres>, NewtonMetres, NewtonMetres),
         flags: &mut Flags,
     ) -> NewtonMetres {
+        if let Lever::PerMu(..) = at.lever {
+            let (reported, nominal) = match state {
+                ContactState::Slipping => (
+                    torque.unwrap_or(NewtonMetres::ZERO).saturating_abs(),
+                    friction_part.saturating_abs(),
+                ),
+                ContactState::Released => (fric.drag_torque.saturating_abs(), NewtonMetres::ZERO),
+                _ => (capacity, capacity),
+            };
+            return self.uncertainty_over_mu(
+                state,
+                fric,
+                at,
+                force_uncertainty,
+                (reported, nominal),
+                flags,
+            );
+        }
         let mut model_term = NewtonMetres::ZERO;
         let (reported, force_term) = match state {
             ContactState::Released => {
@@ -424,6 +478,78 @@ impl<'c, T: TableSet, const C: usize> Estimator<'c, T, C> {
             force_term.value,
             model_term,
             tol.mu,
+            tol.radius,
+            tol.combination,
+        )
+    }
+
+    /// The ± of a contact whose torque is not linear in μ, from the torque at both ends of
+    /// μ's interval. g(μ) increases with μ for every such contact, so the true torque lies
+    /// between k·(F − U_F)·g(μ_lo)·(1 − δr) and k·(F + U_F)·g(μ_hi)·(1 + δr), μ_lo and μ_hi
+    /// the ends of μ ± its blend span widened by δμ. The μ term is the larger of the two
+    /// sides, T(μ_hi) − T(μ) and T(μ) − T(μ_lo), the force term is taken at μ_hi, and
+    /// [`torque_uncertainty`] adds δr with δμ already inside both: its worst case then bounds
+    /// either side \[calc\]. No linearisation, so a self-energising shoe's amplification of δμ
+    /// (S(μ) > 1) is in the ± whatever its size. When μ_hi passes the end of the table,
+    /// [`Flags::SELF_LOCKING`] and the ± is the format's maximum.
+    #[inline(never)]
+    fn uncertainty_over_mu(
+        &self,
+        state: ContactState,
+        fric: &FrictionSample,
+        at: Operating<'_, T>,
+        force_uncertainty: Newtons,
+        (reported, nominal): (NewtonMetres, NewtonMetres),
+        flags: &mut Flags,
+    ) -> NewtonMetres {
+        let tol = &self.cfg.tolerances;
+        let (mu, span) = match state {
+            ContactState::Released => (fric.mu_static.max(fric.mu_kinetic), Ratio::ZERO),
+            ContactState::Slipping => (fric.mu_kinetic, fric.transition_span),
+            _ => (fric.mu_static, Ratio::ZERO),
+        };
+        let mu_hi = ratio_product(mu.saturating_add(span), Ratio::ONE.saturating_add(tol.mu));
+        let mu_lo = ratio_product(
+            mu.saturating_sub(span).max(Ratio::ZERO),
+            Ratio::ONE.saturating_sub(tol.mu).max(Ratio::ZERO),
+        );
+        if mu_hi > self.cfg.tables.lever_axis_end() {
+            flags.insert(Flags::SELF_LOCKING);
+            return NewtonMetres::MAX;
+        }
+        // The force term at μ_hi (a released contact: the whole torque at F + U_F), then the
+        // two ends of μ at F: one loop, so the lookup and product are in the image once.
+        let (force_at, mu_term_ends) = match state {
+            ContactState::Released => (at.force.saturating_add(force_uncertainty), false),
+            _ => (force_uncertainty, true),
+        };
+        let mut saturated = false;
+        let mut force_term = NewtonMetres::ZERO;
+        let mut mu_term = NewtonMetres::ZERO;
+        for (i, (force, mu_at)) in [(force_at, mu_hi), (at.force, mu_hi), (at.force, mu_lo)]
+            .into_iter()
+            .enumerate()
+        {
+            if i > 0 && !mu_term_ends {
+                break;
+            }
+            let t = at.with_force(force).torque(mu_at);
+            saturated |= t.saturated;
+            if i == 0 {
+                force_term = t.value;
+            } else {
+                let side = t.value.saturating_sub(nominal).saturating_abs();
+                mu_term = mu_term.max(side);
+            }
+        }
+        if saturated {
+            flags.insert(Flags::ARITHMETIC_SATURATED);
+        }
+        torque_uncertainty(
+            reported,
+            force_term,
+            mu_term,
+            Ratio::ZERO,
             tol.radius,
             tol.combination,
         )

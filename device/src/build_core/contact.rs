@@ -84,6 +84,13 @@ pub fn with_contact<T>(
         ))
     };
     match c.shape {
+        ShapeSpec::DrumShoes | ShapeSpec::Band => Err(BuildError::new(
+            "contact.shape",
+            format!(
+                "shape '{}' has no flat or conical face: its torque is not linear in μ",
+                c.shape.name()
+            ),
+        )),
         ShapeSpec::Annulus | ShapeSpec::Cone => {
             let (ri, ro) = radii()?;
             let cone = match c.shape {

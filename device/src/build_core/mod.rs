@@ -44,10 +44,12 @@
 //! [`Contact`](clampwise_core::geometry::Contact) (see [`contact_radii`]).
 
 mod contact;
+mod gain;
 pub mod parts;
 mod tables;
 
 pub use contact::{contact_radii, geometry_error, with_contact};
+pub use gain::{GAIN_POINTS, GainModel, GainTableInfo};
 pub use tables::CoreTables;
 
 use clampwise_core::adapt::AdaptState;
@@ -65,14 +67,17 @@ pub const MU_POINTS: usize = 8;
 pub const RADIUS_FORCE_POINTS: usize = 8;
 /// Breakpoints of the friction-radius table's bedding axis: 0 (new) and 1 (bedded).
 pub const RADIUS_BEDDING_POINTS: usize = 2;
+/// Capacity of the friction-radius table's second axis: bedding's two breakpoints, or a
+/// drum or band contact's [`GAIN_POINTS`] μ breakpoints.
+pub const RADIUS_SECOND_POINTS: usize = GAIN_POINTS;
 /// The bedding breakpoints.
 pub const RADIUS_BEDDING: [f64; RADIUS_BEDDING_POINTS] = [0.0, 1.0];
 
 /// μ(lining temperature °C, |slip speed| rad/s) within the host's capacity.
 pub type MuTable = clampwise_core::friction::MuTable<MU_POINTS, MU_POINTS>;
-/// r_e(clamp force N, bedding) in m within the host's capacity.
+/// r_e(clamp force N, bedding) or g(μ)/μ (clamp force N, μ) in m within the host's capacity.
 pub type RadiusTable =
-    clampwise_core::geometry::RadiusTable<RADIUS_FORCE_POINTS, RADIUS_BEDDING_POINTS>;
+    clampwise_core::geometry::RadiusTable<RADIUS_FORCE_POINTS, RADIUS_SECOND_POINTS>;
 
 /// A config value the core does not accept, named by its key.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -100,12 +105,14 @@ impl std::fmt::Display for BuildError {
 
 impl std::error::Error for BuildError {}
 
-/// The core's tables at this crate's capacities.
+/// The core's tables at this crate's capacities, the radius table's second axis (bedding or
+/// μ) read at run time.
 pub type HostTables = clampwise_core::config::Tables<
     RADIUS_FORCE_POINTS,
-    RADIUS_BEDDING_POINTS,
+    RADIUS_SECOND_POINTS,
     MU_POINTS,
     MU_POINTS,
+    clampwise_core::config::ByEither,
 >;
 
 /// The core's device configuration with this crate's table capacities.
@@ -210,13 +217,18 @@ fn build_device<const C: usize>(
         thermal_wear_every: c.device.thermal_wear_every,
         faces: u8::try_from(c.contact.faces)
             .map_err(|_| BuildError::new("contact.faces", "must be within 1 … 255"))?,
-        tables: HostTables::new(tables.radius, parts::friction(c, tables.mu)?),
+        tables: HostTables::with_axis(tables.radius, parts::friction(c, tables.mu)?, tables.axis),
         thermal: parts::thermal(c)?,
         wear: parts::wear(c)?,
         sensor: parts::sensor::<C>(c)?,
         adapt: parts::adapt(c)?,
         limits: parts::limits(c)?,
-        tolerances: parts::tolerances(c)?,
+        tolerances: parts::tolerances(
+            c,
+            tables
+                .gain
+                .map_or(0.0, |(_, info)| info.interpolation_error),
+        )?,
     };
     clampwise_core::config::DeviceConfig::from_parts(parts).map_err(parts::config_error)
 }

@@ -420,16 +420,19 @@ pub fn limits(c: &DeviceSpec) -> Result<Limits, BuildError> {
     })
 }
 
-/// The tolerances behind the ± uncertainty.
+/// The tolerances behind the ± uncertainty. `interpolation_error` is a gain table's largest
+/// relative interpolation error (0 for a flat or conical face), combined with the radius
+/// tolerance as (1 + δr)(1 + ε) − 1 so the ± covers both.
 ///
 /// # Errors
 /// [`BuildError`] on a tolerance that does not fit `Ratio`.
-pub fn tolerances(c: &DeviceSpec) -> Result<Tolerances, BuildError> {
+pub fn tolerances(c: &DeviceSpec, interpolation_error: f64) -> Result<Tolerances, BuildError> {
+    let radius = c.contact.radius_tolerance_ratio;
     Ok(Tolerances {
         mu: fx::<_>("friction.mu_tolerance_ratio", c.friction.mu_tolerance_ratio)?,
         radius: fx::<_>(
             "contact.radius_tolerance_ratio",
-            c.contact.radius_tolerance_ratio,
+            radius + interpolation_error + radius * interpolation_error,
         )?,
         combination: match c.uncertainty.combination {
             CombinationSpec::WorstCase => Combination::WorstCase,

@@ -6,7 +6,10 @@ use clampwise_core::table::{Axis, TableError};
 use fixed::FixedI32;
 use fixed::types::extra::LeEqU32;
 
+use clampwise_core::config::LeverAxis;
+
 use super::contact::{geometry_error, with_contact};
+use super::gain::{GainModel, GainTableInfo};
 use super::{BuildError, MuTable, RADIUS_BEDDING, RadiusTable};
 use crate::schema::DeviceSpec;
 
@@ -15,11 +18,17 @@ use crate::schema::DeviceSpec;
 pub struct CoreTables {
     /// μ(lining temperature, |slip speed|), the config's breakpoints.
     pub mu: MuTable,
-    /// Friction-radius table: the config's force breakpoints, bedding 0 and 1.
+    /// Friction-radius table: the config's force breakpoints, and bedding 0 and 1 or (a drum
+    /// or band contact) the μ breakpoints of its gain table.
     pub radius: RadiusTable,
+    /// The radius table's second axis.
+    pub axis: LeverAxis,
     /// Lever arm per face (m) under uniform pressure and under uniform wear, from the core's
-    /// geometry; for a cone, r_e / sin α.
+    /// geometry; for a cone, r_e / sin α; for a drum or band contact, g(μ)/μ at μ = 0 and at
+    /// the table's end.
     pub radii_m: (f64, f64),
+    /// A drum or band contact's torque model and what its table covers.
+    pub gain: Option<(GainModel, GainTableInfo)>,
 }
 
 pub(crate) fn fixed_of<F: LeEqU32>(key: &str, v: f64) -> Result<FixedI32<F>, BuildError> {
@@ -83,6 +92,22 @@ impl CoreTables {
         let mu_table = MuTable::from_slices(&mu.temperature_c, &mu.slip_speed_rad_s, &mu.values)
             .map_err(|e| mu_error(c, &e))?;
         let forces = &c.radius_table.force_n;
+        if c.contact.shape.is_nonlinear_in_mu() {
+            let model = GainModel::from_spec(&c.contact)?;
+            let (radius, info) = model.table(forces, c.contact.gain_mu_max)?;
+            let arm = |mu: f64| {
+                model
+                    .lever_arm(mu)
+                    .map_err(|e| BuildError::new("contact.gain_mu_max", e))
+            };
+            return Ok(Self {
+                mu: mu_table,
+                radius,
+                axis: LeverAxis::Mu,
+                radii_m: (arm(0.0)?, arm(info.mu_end)?),
+                gain: Some((model, info)),
+            });
+        }
         let (radius, radii_m) = with_contact(&c.contact, |k| {
             let table = build_radius_table_from_slices(k, forces, &RADIUS_BEDDING)
                 .map_err(|e| geometry_error(&c.contact, &e))?;
@@ -92,7 +117,9 @@ impl CoreTables {
         Ok(Self {
             mu: mu_table,
             radius,
+            axis: LeverAxis::Bedding,
             radii_m,
+            gain: None,
         })
     }
 }

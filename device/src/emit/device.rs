@@ -72,7 +72,9 @@
 use std::fmt::{self, Write as _};
 
 use clampwise_core::adapt::{AdaptConfig, AdaptRaw};
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
+use clampwise_core::config::{
+    AxisKind, DeviceConfig, DeviceParts, LeverAxis, Limits, Tables, Tolerances,
+};
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::FrictionConfig;
 use clampwise_core::sensor::{
@@ -127,10 +129,17 @@ pub(super) fn friction_band<const NT: usize, const NV: usize>(
 
 /// Rebuild `cfg` through the same `const` constructors the emitted source calls, from the
 /// same values; the emitter writes nothing unless this gives `cfg` back exactly.
-fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
-    cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
+fn rebuild<
+    const C: usize,
+    const NF: usize,
+    const NB: usize,
+    const NT: usize,
+    const NV: usize,
+    K: AxisKind,
+>(
+    cfg: &DeviceConfig<Tables<NF, NB, NT, NV, K>, C>,
     band: (RadPerSec, RadPerSec),
-) -> Result<DeviceConfig<Tables<NF, NB, NT, NV>, C>, EmitError> {
+) -> Result<DeviceConfig<Tables<NF, NB, NT, NV, K>, C>, EmitError> {
     fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
         part: &'static str,
         t: &Table2<X, Y, Z, NX, NY>,
@@ -172,7 +181,12 @@ fn rebuild<const C: usize, const NF: usize, const NB: usize, const NT: usize, co
         sample_period: cfg.sample_period(),
         thermal_wear_every: cfg.thermal_wear_every(),
         faces: cfg.faces(),
-        tables: Tables::new(table("radius", cfg.tables().radius())?, friction),
+        tables: Tables::try_with_axis(
+            table("radius", cfg.tables().radius())?,
+            friction,
+            cfg.tables().axis(),
+        )
+        .ok_or_else(|| err("radius", "the table type fixes another axis"))?,
         thermal: ThermalConfig::from_bits(cfg.thermal().to_raw())
             .map_err(|e| err("thermal", e.to_string()))?,
         wear: WearConfig::from_bits(cfg.wear().to_raw()).map_err(|e| err("wear", e.to_string()))?,
@@ -529,8 +543,9 @@ fn parts_literal<
     const NB: usize,
     const NT: usize,
     const NV: usize,
+    K: AxisKind,
 >(
-    cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
+    cfg: &DeviceConfig<Tables<NF, NB, NT, NV, K>, C>,
     band: (RadPerSec, RadPerSec),
 ) -> String {
     let Limits {
@@ -558,7 +573,11 @@ fn parts_literal<
             (
                 "tables",
                 format!(
-                    "Tables::new(\n    {},\n    {},\n)",
+                    "Tables::{}(\n    {},\n    {},\n)",
+                    match cfg.tables().axis() {
+                        LeverAxis::Bedding => "new",
+                        LeverAxis::Mu => "over_mu",
+                    },
                     nest(
                         &table(
                             "radius table",
@@ -609,8 +628,9 @@ pub fn device_config_source<
     const NB: usize,
     const NT: usize,
     const NV: usize,
+    K: AxisKind,
 >(
-    cfg: &DeviceConfig<Tables<NF, NB, NT, NV>, C>,
+    cfg: &DeviceConfig<Tables<NF, NB, NT, NV, K>, C>,
     origin: &str,
 ) -> Result<String, EmitError> {
     let band = friction_band(cfg.tables().friction())?;
@@ -632,6 +652,10 @@ pub fn device_config_source<
     let (radius, mu) = (cfg.tables().radius(), cfg.tables().friction().mu_kinetic());
     let (nf, nb) = (radius.x_breakpoints().len(), radius.y_breakpoints().len());
     let (nt, nv) = (mu.x_breakpoints().len(), mu.y_breakpoints().len());
+    let marker = match cfg.tables().axis() {
+        LeverAxis::Bedding => "ByBedding",
+        LeverAxis::Mu => "ByMu",
+    };
     let mut out = String::new();
     let _ = writeln!(
         out,
@@ -645,7 +669,7 @@ pub fn device_config_source<
          pub const DEVICE_CHANNELS: usize = {C};\n\
          /// Force breakpoints of the friction-radius table.\n\
          pub const DEVICE_RADIUS_FORCES: usize = {nf};\n\
-         /// Bedding breakpoints of the friction-radius table.\n\
+         /// Second-axis breakpoints of the friction-radius table (bedding, or μ for a drum or band).\n\
          pub const DEVICE_RADIUS_BEDDINGS: usize = {nb};\n\
          /// Temperature breakpoints of the μ table.\n\
          pub const DEVICE_MU_TEMPERATURES: usize = {nt};\n\
@@ -656,7 +680,8 @@ pub fn device_config_source<
          DEVICE_RADIUS_FORCES,\n    \
          DEVICE_RADIUS_BEDDINGS,\n    \
          DEVICE_MU_TEMPERATURES,\n    \
-         DEVICE_MU_SPEEDS,\n\
+         DEVICE_MU_SPEEDS,\n    \
+         ::clampwise_core::config::{marker},\n\
          >;\n\
          /// The device configuration's type: its tables and its channels.\n\
          pub type Device = ::clampwise_core::config::DeviceConfig<DeviceTables, DEVICE_CHANNELS>;\n\

@@ -11,19 +11,57 @@ pub fn human(cfg: &LoadedConfig, core: &CoreDevice) -> String {
     let t = &core.tables;
     let c = &cfg.config;
     let mut o = format!("tables of {} ({})\n", cfg.file, c.device.name);
-    let _ = writeln!(
-        o,
-        "  contact: {} × {} faces; lever arm per face (r_e, / sin α for a cone): {:.6} m (uniform pressure, new), {:.6} m (uniform wear, bedded)",
-        c.contact.shape.name(),
-        c.contact.faces,
-        t.radii_m.0,
-        t.radii_m.1
-    );
-    let _ = writeln!(
-        o,
-        "  friction radius r_e [m] (rows: clamp force N; columns: bedding):"
-    );
-    let mut h = String::from("    F \\ bedding");
+    let second = match &t.gain {
+        None => {
+            let _ = writeln!(
+                o,
+                "  contact: {} × {} faces; lever arm per face (r_e, / sin α for a cone): {:.6} m (uniform pressure, new), {:.6} m (uniform wear, bedded)",
+                c.contact.shape.name(),
+                c.contact.faces,
+                t.radii_m.0,
+                t.radii_m.1
+            );
+            let _ = writeln!(
+                o,
+                "  friction radius r_e [m] (rows: clamp force N; columns: bedding):"
+            );
+            "bedding"
+        }
+        Some((model, info)) => {
+            let _ = writeln!(
+                o,
+                "  contact: {} × {}; torque T = μ · F · r(μ) = F · g(μ), F the measured actuating force; r(0) = {:.6} m, r({:.3}) = {:.6} m",
+                c.contact.shape.name(),
+                c.contact.faces,
+                t.radii_m.0,
+                info.mu_end,
+                t.radii_m.1
+            );
+            let lock = info.locking.map_or_else(
+                || "never locks".to_string(),
+                |l| format!("locks at μ = {l:.4}"),
+            );
+            let _ = writeln!(
+                o,
+                "  {lock}; table to μ = {:.3} (SELF_LOCKING beyond); interpolation within {:.3} % of the model, added to the radius tolerance",
+                info.mu_end,
+                100.0 * info.interpolation_error
+            );
+            let mut line = String::from("  sensitivity S(μ) = μ·g′/g (δT/T = S·δμ/μ):");
+            for mu in [0.1, 0.2, 0.3, 0.4, 0.5] {
+                if let Ok(s) = model.sensitivity(mu) {
+                    let _ = write!(line, " {s:.2} at {mu}");
+                }
+            }
+            let _ = writeln!(o, "{line}");
+            let _ = writeln!(
+                o,
+                "  equivalent lever arm r(μ) = g(μ)/μ [m] (rows: actuating force N; columns: μ):"
+            );
+            "μ"
+        }
+    };
+    let mut h = format!("    F \\ {second:<7}");
     for b in t.radius.y_breakpoints() {
         let _ = write!(h, "{:>12}", format!("{:.3}", b.to_num::<f64>()));
     }

@@ -20,8 +20,55 @@ pub(super) fn check(c: &DeviceSpec, v: &mut Validator) {
         ShapeSpec::Annulus | ShapeSpec::Sector | ShapeSpec::Cone => radial(ct, v),
         ShapeSpec::Button => button(ct, v),
         ShapeSpec::Polygon => polygon(ct, v),
+        ShapeSpec::DrumShoes | ShapeSpec::Band => drum_or_band(ct, v),
+    }
+    if !ct.shape.is_nonlinear_in_mu() {
+        v.unused("contact.drum_shoes", &ct.drum_shoes, ct.shape);
+        v.unused("contact.band", &ct.band, ct.shape);
+        v.unused("contact.gain_mu_max", &ct.gain_mu_max, ct.shape);
     }
     cone_release(c, v);
+}
+
+/// Drum shoes or a band: its own table and none of the flat face's keys. The lengths, angles
+/// and the locking μ are the core brake models' to check.
+fn drum_or_band(ct: &ContactSpec, v: &mut Validator) {
+    let shape = ct.shape;
+    for (key, value) in [
+        ("contact.inner_radius_m", ct.inner_radius_m),
+        ("contact.outer_radius_m", ct.outer_radius_m),
+        ("contact.sector_angle_deg", ct.sector_angle_deg),
+        ("contact.pad_radius_m", ct.pad_radius_m),
+        ("contact.pad_centre_radius_m", ct.pad_centre_radius_m),
+        ("contact.half_angle_deg", ct.half_angle_deg),
+    ] {
+        v.unused(key, &value, shape);
+    }
+    v.unused("contact.vertices_m", &ct.vertices_m, shape);
+    let (own, other) = match shape {
+        ShapeSpec::Band => (
+            ct.band.is_some(),
+            ("contact.drum_shoes", ct.drum_shoes.is_some()),
+        ),
+        _ => (ct.drum_shoes.is_some(), ("contact.band", ct.band.is_some())),
+    };
+    if !own {
+        let table = if shape == ShapeSpec::Band {
+            "band"
+        } else {
+            "drum_shoes"
+        };
+        v.issue(
+            "contact.shape",
+            format!("shape '{}' needs [contact.{table}]", shape.name()),
+        );
+    }
+    if other.1 {
+        v.issue(other.0, format!("is not used by shape '{}'", shape.name()));
+    }
+    if let Some(mu) = ct.gain_mu_max {
+        v.within("contact.gain_mu_max", mu, 0.05, 2.0);
+    }
 }
 
 /// Annulus, sector and cone: inner and outer radius, plus the sector angle or the cone angle.

@@ -93,6 +93,12 @@ pub fn effective_radii(c: &ContactSpec) -> Result<(f64, f64), String> {
     let need = |v: Option<f64>, k: &str| v.ok_or_else(|| format!("contact.{k} missing"));
     // Returns (∫p·r dA, ∫p dA) for both pressure models.
     let moments: [(f64, f64); 2] = match c.shape {
+        ShapeSpec::DrumShoes | ShapeSpec::Band => {
+            return Err(format!(
+                "contact.shape '{}' has no flat or conical face",
+                c.shape.name()
+            ));
+        }
         ShapeSpec::Annulus | ShapeSpec::Sector => {
             let ri = need(c.inner_radius_m, "inner_radius_m")?;
             let ro = need(c.outer_radius_m, "outer_radius_m")?;

@@ -116,6 +116,8 @@ pub struct Plant {
     faces: f64,
     r_up: f64,
     r_uw: f64,
+    /// A drum or band contact's torque model (the lever arm then follows μ, not bedding).
+    gain: Option<crate::build_core::GainModel>,
     mu: MuTableSpec,
     opts: PlantOptions,
     static_ratio: f64,
@@ -178,7 +180,18 @@ impl Plant {
     /// # Errors
     /// A message when the geometry cannot be integrated.
     pub fn new(c: &DeviceSpec, opts: PlantOptions) -> Result<Self, String> {
-        let (r_up, r_uw) = geometry::effective_radii(&c.contact)?;
+        let gain = if c.contact.shape.is_nonlinear_in_mu() {
+            Some(crate::build_core::GainModel::from_spec(&c.contact).map_err(|e| e.to_string())?)
+        } else {
+            None
+        };
+        let (r_up, r_uw) = match &gain {
+            Some(g) => {
+                let r = g.lever_arm(0.0).map_err(|e| e.to_string())?;
+                (r, r)
+            }
+            None => geometry::effective_radii(&c.contact)?,
+        };
         let th = &c.thermal;
         let tau = match (
             th.cooling_time_constant_s,
@@ -201,6 +214,7 @@ impl Plant {
             faces: f64::from(c.contact.faces),
             r_up,
             r_uw,
+            gain,
             mu: opts
                 .truth_mu
                 .clone()
@@ -255,6 +269,21 @@ impl Plant {
         (self.r_up, self.r_uw)
     }
 
+    /// The lever arm at μ and bedding: r_e between the two pressure models, or a drum or band
+    /// contact's g(μ)/μ. At or beyond a contact's locking μ the plant holds g just below it
+    /// (the estimator flags `SELF_LOCKING` long before).
+    fn lever_arm(&self, mu: f64, bedding: f64) -> f64 {
+        match &self.gain {
+            Some(g) => {
+                let mu = g
+                    .locking_coefficient()
+                    .map_or(mu, |lock| mu.min(lock * (1.0 - 1e-6)));
+                g.lever_arm(mu).unwrap_or(self.r_up)
+            }
+            None => (1.0 - bedding) * self.r_up + bedding * self.r_uw,
+        }
+    }
+
     /// Lining wear so far, m.
     pub fn wear_m(&self) -> f64 {
         self.wear_m
@@ -274,11 +303,16 @@ impl Plant {
         let omega_out = if self.brake { 0.0 } else { sp.omega_out };
         let slip = sp.omega_in - omega_out;
         let bedding = 1.0 - (1.0 - self.bedding0) * libm::exp(-self.energy / self.bedding_energy);
-        let r_e = (1.0 - bedding) * self.r_up + bedding * self.r_uw;
         let fade = 1.0 - self.opts.mu_fade_per_k * (self.temp - self.fade).max(0.0);
         let mu = mu_of(&self.mu, self.temp, slip.abs()) * self.opts.mu_scale * fade.max(0.05);
+        let r_e = self.lever_arm(mu, bedding);
         let kinetic = self.faces * mu * force * r_e;
-        let capacity = kinetic * self.static_ratio;
+        let capacity = if self.gain.is_some() {
+            let mu_static = mu * self.static_ratio;
+            self.faces * mu_static * force * self.lever_arm(mu_static, bedding)
+        } else {
+            kinetic * self.static_ratio
+        };
         let holding = slip.abs() <= self.stick;
         let torque = if holding {
             (-sp.load_nm).clamp(-capacity, capacity)
