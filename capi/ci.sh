@@ -4,14 +4,16 @@
 #   2. the header compiles alone with gcc and arm-none-eabi-gcc under
 #      -std=c99 -Wall -Wextra -Werror -pedantic, includes only <stdint.h>/<stdbool.h>, and
 #      declares no variadic function
-#   3. the fixture: the demo device as C (`clampwise tables --emit-c`), the demo trace as C
-#      inputs and the Rust host replay of it (`cargo run --example c_fixture`, which also checks
-#      every estimate against `clampwise replay`'s row)
+#   3. the fixture: the demo device (and the example drum brake, whose radius table runs over
+#      μ) as C (`clampwise tables --emit-c`), the demo trace as C inputs and the Rust host
+#      replay of it (`cargo run --example c_fixture`, which also checks every estimate against
+#      `clampwise replay`'s row)
 #   4. the C host test (gcc, the static library built for the host): its output identical to
 #      the Rust host replay, and its checks of the API's error paths
 #   5. the C example firmware for Cortex-M4F (thumbv7em-none-eabihf, QEMU mps2-an386) and
 #      Cortex-M0+ (thumbv6m-none-eabi, QEMU lm3s6965evb, which runs the v6-M subset), built with
-#      arm-none-eabi-gcc: its semihosting output identical to the Rust host replay
+#      arm-none-eabi-gcc: its semihosting output identical to the Rust host replay (the demo
+#      device on both, the drum brake on the M4F)
 #   6. link-time panic check of the C images (+ negative control)
 #   7. size report of the thumbv6m image (library built for the demo's three channels): flash
 #      and RAM, and the step's call graph + the device description ("core + tables"); fails
@@ -96,13 +98,13 @@ lib() {
   echo "$OUT/lib/$target.$variant.a"
 }
 
-# firmware TARGET LIB ELF -> links the C example firmware with the library.
+# firmware TARGET LIB ELF [FIXTURE_DIR] -> links the C example firmware with the library.
 firmware() {
-  local target="$1" lib="$2" elf="$3"
+  local target="$1" lib="$2" elf="$3" fx="${4:-$OUT}"
   # shellcheck disable=SC2046 # the cpu flags are meant to split
   arm-none-eabi-gcc "${CFLAGS[@]}" -Os -g -ffunction-sections -fdata-sections $(cpu_flags "$target") \
     -I"$CAPI/include" -I"$EX" "$EX"/{fw_main,replay,line,startup,semihosting}.c \
-    "$OUT/device.c" "$OUT/trace.c" -nostdlib -nostartfiles -T "$EX/link.ld" \
+    "$fx/device.c" "$fx/trace.c" -nostdlib -nostartfiles -T "$EX/link.ld" \
     -Wl,--gc-sections -Wl,-z,noexecstack -Wl,-Map="$elf.map" "$lib" -lgcc -o "$elf"
 }
 
@@ -142,12 +144,32 @@ header_alone() {
   done
 }
 
-fixture() {
-  local config="$ROOT/sim/configs/demo-hoist-brake.toml" trace="$ROOT/firmware-example/trace/demo.csv"
+# fixture DIR CONFIG -> DIR/device.c, DIR/trace.c, DIR/expected.txt for the demo trace.
+fixture_of() {
+  local dir="$1" config="$2" trace="$ROOT/firmware-example/trace/demo.csv"
+  mkdir -p "$dir"
   cargo run -q --release -p clampwise-sim --bin clampwise -- tables --config "$config" \
-    --emit-c "$OUT/device.c" >/dev/null
-  cargo run -q --release -p clampwise-capi --example c_fixture -- "$config" "$trace" "$OUT"
-  log "fixture: $(grep -c '^est,' "$OUT/expected.txt") samples of $(basename "$trace") on $(basename "$config")"
+    --emit-c "$dir/device.c" >/dev/null
+  cargo run -q --release -p clampwise-capi --example c_fixture -- "$config" "$trace" "$dir"
+  log "fixture: $(grep -c '^est,' "$dir/expected.txt") samples of $(basename "$trace") on $(basename "$config")"
+}
+
+fixture() {
+  fixture_of "$OUT" "$ROOT/sim/configs/demo-hoist-brake.toml"
+  # A drum brake: torque not linear in μ, the radius table over μ (the API's second axis).
+  fixture_of "$OUT/drum" "$ROOT/sim/configs/example-crane-drum-brake.toml"
+}
+
+# host_run DIR -> the C host test built on DIR's fixture, its output compared.
+host_run() {
+  local dir="$1" lib="$2" native="$3"
+  # shellcheck disable=SC2086 # the native libraries are meant to split
+  gcc "${CFLAGS[@]}" -O2 -I"$CAPI/include" -I"$EX" "$EX"/{host_main,replay,line}.c \
+    "$dir/device.c" "$dir/trace.c" "$lib" $native -o "$dir/host-test"
+  "$dir/host-test" >"$dir/host.txt"
+  diff "$dir/host.txt" "$dir/expected.txt" >"$dir/host.diff" \
+    || fail "C host output differs from the Rust host replay (see $dir/host.diff)"
+  log "host ($(sed -n 's/.*config=\([^,]*\),.*/\1/p' "$dir/expected.txt" | head -1)): C API output identical to the Rust host replay ($(wc -l <"$dir/expected.txt") lines)"
 }
 
 host_test() {
@@ -155,30 +177,34 @@ host_test() {
   lib="$(lib host plain)"
   native="$(cargo rustc -q -p clampwise-capi --profile capi --lib --crate-type staticlib \
     -- --print native-static-libs 2>&1 | sed -n 's/.*native-static-libs: //p' | tail -1)"
-  # shellcheck disable=SC2086 # the native libraries are meant to split
-  gcc "${CFLAGS[@]}" -O2 -I"$CAPI/include" -I"$EX" "$EX"/{host_main,replay,line}.c \
-    "$OUT/device.c" "$OUT/trace.c" "$lib" $native -o "$OUT/host-test"
-  "$OUT/host-test" >"$OUT/host.txt"
-  diff "$OUT/host.txt" "$OUT/expected.txt" >"$OUT/host.diff" \
-    || fail "C host output differs from the Rust host replay (see $OUT/host.diff)"
-  log "host: C API output identical to the Rust host replay ($(wc -l <"$OUT/expected.txt") lines)"
+  host_run "$OUT" "$lib" "$native"
+  host_run "$OUT/drum" "$lib" "$native"
+}
+
+# qemu_run TARGET ELF FIXTURE_DIR NAME -> runs the image, compares with the fixture's replay.
+qemu_run() {
+  local t="$1" elf="$2" fx="$3" name="$4" out
+  out="$OUT/$name.qemu.txt"
+  # shellcheck disable=SC2046 # the machine flags are meant to split
+  timeout 60 qemu-system-arm $(qemu_of "$t") -nographic \
+    -semihosting-config enable=on,target=native -kernel "$elf" >"$out" 2>"$out.stderr" \
+    || fail "$name: QEMU run failed or exited non-zero (see $out)"
+  diff <(grep -v '^#target' "$out") "$fx/expected.txt" >"$OUT/$name.diff" \
+    || fail "$name: QEMU output differs from the Rust host replay (see $OUT/$name.diff)"
+  log "$name: QEMU output identical to the Rust host replay; $(grep '^#target' "$out")"
 }
 
 qemu_runs() {
-  local t lib elf out
+  local t lib
   for t in "${FW_TARGETS[@]}"; do
     lib="$(lib "$t" plain)"
-    elf="$OUT/$t.elf"
-    firmware "$t" "$lib" "$elf"
-    out="$OUT/$t.qemu.txt"
-    # shellcheck disable=SC2046 # the machine flags are meant to split
-    timeout 60 qemu-system-arm $(qemu_of "$t") -nographic \
-      -semihosting-config enable=on,target=native -kernel "$elf" >"$out" 2>"$out.stderr" \
-      || fail "$t: QEMU run failed or exited non-zero (see $out)"
-    diff <(grep -v '^#target' "$out") "$OUT/expected.txt" >"$OUT/$t.diff" \
-      || fail "$t: QEMU output differs from the Rust host replay (see $OUT/$t.diff)"
-    log "$t: QEMU output identical to the Rust host replay; $(grep '^#target' "$out")"
+    firmware "$t" "$lib" "$OUT/$t.elf"
+    qemu_run "$t" "$OUT/$t.elf" "$OUT" "$t"
   done
+  # The drum brake on the M4F (its library has every channel count).
+  t="${FW_TARGETS[0]}"
+  firmware "$t" "$OUT/lib/$t.plain.a" "$OUT/$t.drum.elf" "$OUT/drum"
+  qemu_run "$t" "$OUT/$t.drum.elf" "$OUT/drum" "$t.drum"
 }
 
 panic_re='rust_begin_unwind|core::panicking|panic_fmt|panic_bounds_check|unwrap_failed|clampwise_capi_panic_path_is_reachable'

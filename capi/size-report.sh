@@ -23,7 +23,7 @@ qemu_log="$2"
 check="${3:-}"
 map="$elf.map"
 CAPI="$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)"
-LIMIT_CORE_TABLES=18432
+LIMIT_CORE_TABLES=19968
 TARGET_CORE_TABLES=16384
 
 # Bytes of code reachable from the C functions named ROOT_REGEX (the Rust firmware's analysis).

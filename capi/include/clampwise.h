@@ -97,14 +97,21 @@
 #define CW_FLAG_SPEED_UNKNOWN (1 << 14)
 
 /**
+ * `cw_estimate::flags`: μ lies beyond the torque-gain table of a contact not linear in μ (at
+ * or near self-locking): torque, capacity and ± cannot be trusted.
+ */
+#define CW_FLAG_SELF_LOCKING (1 << 15)
+
+/**
  * Capacity of the friction-radius table's clamp-force axis.
  */
 #define CW_RADIUS_FORCES_MAX 8
 
 /**
- * Capacity of the friction-radius table's bedding axis.
+ * Capacity of the friction-radius table's second axis (bedding, or μ for a contact whose
+ * torque is not linear in μ).
  */
-#define CW_RADIUS_BEDDINGS_MAX 2
+#define CW_RADIUS_SECOND_MAX 16
 
 /**
  * Capacity of the μ table's lining-temperature axis.
@@ -170,7 +177,7 @@
  * 64-bit words of a `cw_device`: the largest target's need (x86-64), checked at compile time
  * on every target.
  */
-#define CW_DEVICE_WORDS 176
+#define CW_DEVICE_WORDS 248
 
 /**
  * 64-bit words of a `cw_estimator`.
@@ -204,7 +211,8 @@ enum cw_status
    */
   CW_ERR_BAD_FLAG = 3,
   /**
-   * The friction-radius table: a length beyond its capacity, or breakpoints not increasing.
+   * The friction-radius table: a length beyond its capacity, breakpoints not increasing, or
+   * an unknown `lever_axis`.
    */
   CW_ERR_RADIUS_TABLE = 4,
   /**
@@ -336,6 +344,32 @@ typedef uint8_t cw_contact_state;
 #endif // __cplusplus
 
 /**
+ * What the friction-radius table's second axis is.
+ */
+enum cw_lever_axis
+#if defined(__cplusplus) || __STDC_VERSION__ >= 202311L
+  : uint8_t
+#endif // defined(__cplusplus) || __STDC_VERSION__ >= 202311L
+ {
+  /**
+   * Bedding (0 new … 1 bedded): r_e of a flat or conical face; torque n·μ·F·r_e.
+   */
+  CW_LEVER_AXIS_BEDDING = 0,
+  /**
+   * μ: the equivalent lever arm g(μ)/μ of a drum, band or cone-engagement contact; torque
+   * μ·F·r(μ).
+   */
+  CW_LEVER_AXIS_MU = 1,
+};
+#ifndef __cplusplus
+#if __STDC_VERSION__ >= 202311L
+typedef enum cw_lever_axis cw_lever_axis;
+#else
+typedef uint8_t cw_lever_axis;
+#endif // __STDC_VERSION__ >= 202311L
+#endif // __cplusplus
+
+/**
  * Storage of one device configuration (see `cw_device_init`). Never copy or move it once
  * initialised; estimators refer to it.
  */
@@ -347,29 +381,33 @@ typedef struct cw_device {
 } cw_device;
 
 /**
- * The friction-radius table r_e(clamp force, bedding): the per-face lever arm.
+ * The friction-radius table r(clamp force, second axis): the per-face lever arm.
  */
 typedef struct cw_radius_table {
+  /**
+   * What the second axis is: a `cw_lever_axis` value.
+   */
+  uint8_t lever_axis;
   /**
    * Clamp-force breakpoints in use, 1 … `CW_RADIUS_FORCES_MAX`.
    */
   uint8_t forces_len;
   /**
-   * Bedding breakpoints in use, 1 … `CW_RADIUS_BEDDINGS_MAX`.
+   * Second-axis breakpoints in use, 1 … `CW_RADIUS_SECOND_MAX`.
    */
-  uint8_t beddings_len;
+  uint8_t second_len;
   /**
    * Clamp-force breakpoints, N, Q23.8, strictly increasing.
    */
   int32_t force_q8[CW_RADIUS_FORCES_MAX];
   /**
-   * Bedding breakpoints, fraction 0 … 1, Q1.30, strictly increasing.
+   * Second-axis breakpoints (bedding fraction 0 … 1, or μ), 1, Q1.30, strictly increasing.
    */
-  int32_t bedding_q30[CW_RADIUS_BEDDINGS_MAX];
+  int32_t second_q30[CW_RADIUS_SECOND_MAX];
   /**
-   * Lever arm at (force i, bedding j), m, Q7.24.
+   * Lever arm at (force i, second-axis value j), m, Q7.24.
    */
-  int32_t radius_q24[CW_RADIUS_FORCES_MAX][CW_RADIUS_BEDDINGS_MAX];
+  int32_t radius_q24[CW_RADIUS_FORCES_MAX][CW_RADIUS_SECOND_MAX];
 } cw_radius_table;
 
 /**

@@ -9,8 +9,9 @@
 
 /// Capacity of the friction-radius table's clamp-force axis.
 pub const CW_RADIUS_FORCES_MAX: usize = 8;
-/// Capacity of the friction-radius table's bedding axis.
-pub const CW_RADIUS_BEDDINGS_MAX: usize = 2;
+/// Capacity of the friction-radius table's second axis (bedding, or μ for a contact whose
+/// torque is not linear in μ).
+pub const CW_RADIUS_SECOND_MAX: usize = 16;
 /// Capacity of the μ table's lining-temperature axis.
 pub const CW_MU_TEMPERATURES_MAX: usize = 8;
 /// Capacity of the μ table's slip-speed axis.
@@ -18,20 +19,33 @@ pub const CW_MU_SPEEDS_MAX: usize = 8;
 /// Most clamp-force channels a device has.
 pub const CW_CHANNELS_MAX: usize = 4;
 
-/// The friction-radius table r_e(clamp force, bedding): the per-face lever arm.
+/// What the friction-radius table's second axis is.
+#[repr(u8)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum cw_lever_axis {
+    /// Bedding (0 new … 1 bedded): r_e of a flat or conical face; torque n·μ·F·r_e.
+    CW_LEVER_AXIS_BEDDING = 0,
+    /// μ: the equivalent lever arm g(μ)/μ of a drum, band or cone-engagement contact; torque
+    /// μ·F·r(μ).
+    CW_LEVER_AXIS_MU = 1,
+}
+
+/// The friction-radius table r(clamp force, second axis): the per-face lever arm.
 #[repr(C)]
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct cw_radius_table {
+    /// What the second axis is: a `cw_lever_axis` value.
+    pub lever_axis: u8,
     /// Clamp-force breakpoints in use, 1 … `CW_RADIUS_FORCES_MAX`.
     pub forces_len: u8,
-    /// Bedding breakpoints in use, 1 … `CW_RADIUS_BEDDINGS_MAX`.
-    pub beddings_len: u8,
+    /// Second-axis breakpoints in use, 1 … `CW_RADIUS_SECOND_MAX`.
+    pub second_len: u8,
     /// Clamp-force breakpoints, N, Q23.8, strictly increasing.
     pub force_q8: [i32; CW_RADIUS_FORCES_MAX],
-    /// Bedding breakpoints, fraction 0 … 1, Q1.30, strictly increasing.
-    pub bedding_q30: [i32; CW_RADIUS_BEDDINGS_MAX],
-    /// Lever arm at (force i, bedding j), m, Q7.24.
-    pub radius_q24: [[i32; CW_RADIUS_BEDDINGS_MAX]; CW_RADIUS_FORCES_MAX],
+    /// Second-axis breakpoints (bedding fraction 0 … 1, or μ), 1, Q1.30, strictly increasing.
+    pub second_q30: [i32; CW_RADIUS_SECOND_MAX],
+    /// Lever arm at (force i, second-axis value j), m, Q7.24.
+    pub radius_q24: [[i32; CW_RADIUS_SECOND_MAX]; CW_RADIUS_FORCES_MAX],
 }
 
 /// The kinetic friction coefficient table μ(lining temperature, |slip speed|).

@@ -6,7 +6,9 @@
 //! C: [`ChannelDevice`] holds one variant per count, and code that uses it matches once.
 
 use clampwise_core::adapt::{AdaptConfig, AdaptRaw};
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
+use clampwise_core::config::{
+    ByEither, DeviceConfig, DeviceParts, LeverAxis, Limits, Tables, Tolerances,
+};
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
 use clampwise_core::geometry::RadiusTable;
@@ -23,14 +25,20 @@ use fixed::FixedI32;
 use fixed::types::extra::LeEqU32;
 
 use crate::desc::{
-    CW_MU_SPEEDS_MAX, CW_MU_TEMPERATURES_MAX, CW_RADIUS_BEDDINGS_MAX, CW_RADIUS_FORCES_MAX,
-    cw_adapt, cw_channel, cw_debounce, cw_device_desc, cw_friction, cw_sensor, cw_thermal, cw_wear,
+    CW_MU_SPEEDS_MAX, CW_MU_TEMPERATURES_MAX, CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX, cw_adapt,
+    cw_channel, cw_debounce, cw_device_desc, cw_friction, cw_sensor, cw_thermal, cw_wear,
 };
 use crate::status::cw_status;
 
-/// The table capacities of the C API: every device's tables fit, at their exact sizes.
-pub type CapiTables =
-    Tables<CW_RADIUS_FORCES_MAX, CW_RADIUS_BEDDINGS_MAX, CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX>;
+/// The table capacities of the C API (the host's): every device's tables fit, at their exact
+/// sizes; the radius table's second axis is read at run time.
+pub type CapiTables = Tables<
+    CW_RADIUS_FORCES_MAX,
+    CW_RADIUS_SECOND_MAX,
+    CW_MU_TEMPERATURES_MAX,
+    CW_MU_SPEEDS_MAX,
+    ByEither,
+>;
 
 /// The core's configuration of a device with `C` channels at the C API's capacities.
 pub type Device<const C: usize> = DeviceConfig<CapiTables, C>;
@@ -285,12 +293,17 @@ fn adapt(a: &cw_adapt) -> Result<AdaptConfig, cw_status> {
 }
 
 fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
-    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, CW_RADIUS_BEDDINGS_MAX> = table(
+    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX> = table(
         (&d.radius.force_q8, d.radius.forces_len),
-        (&d.radius.bedding_q30, d.radius.beddings_len),
+        (&d.radius.second_q30, d.radius.second_len),
         &d.radius.radius_q24,
         cw_status::CW_ERR_RADIUS_TABLE,
     )?;
+    let axis = match d.radius.lever_axis {
+        0 => LeverAxis::Bedding,
+        1 => LeverAxis::Mu,
+        _ => return Err(cw_status::CW_ERR_RADIUS_TABLE),
+    };
     let combination = match d.combination {
         0 => Combination::WorstCase,
         1 => Combination::RootSumSquare,
@@ -305,7 +318,7 @@ fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
         sample_period: Seconds::from_bits(d.sample_period_q32),
         thermal_wear_every: d.thermal_wear_every,
         faces: d.faces,
-        tables: Tables::new(radius, friction(&d.friction)?),
+        tables: Tables::with_axis(radius, friction(&d.friction)?, axis),
         thermal: thermal(&d.thermal)?,
         wear: wear(&d.wear)?,
         sensor: sensor(&d.sensor)?,

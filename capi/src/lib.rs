@@ -87,6 +87,9 @@ pub const CW_FLAG_TORQUE_BOUNDED: u32 = 1 << 12;
 pub const CW_FLAG_FORCE_IMPLAUSIBLE: u32 = 1 << 13;
 /// `cw_estimate::flags`: a shaft speed is missing.
 pub const CW_FLAG_SPEED_UNKNOWN: u32 = 1 << 14;
+/// `cw_estimate::flags`: μ lies beyond the torque-gain table of a contact not linear in μ (at
+/// or near self-locking): torque, capacity and ± cannot be trusted.
+pub const CW_FLAG_SELF_LOCKING: u32 = 1 << 15;
 
 const VERSION: &core::ffi::CStr =
     match core::ffi::CStr::from_bytes_with_nul(concat!(env!("CARGO_PKG_VERSION"), "\0").as_bytes())

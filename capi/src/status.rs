@@ -17,7 +17,8 @@ pub enum cw_status {
     CW_ERR_CHANNELS = 2,
     /// A `has_*`, `two_node` or presence field is neither 0 nor 1.
     CW_ERR_BAD_FLAG = 3,
-    /// The friction-radius table: a length beyond its capacity, or breakpoints not increasing.
+    /// The friction-radius table: a length beyond its capacity, breakpoints not increasing, or
+    /// an unknown `lever_axis`.
     CW_ERR_RADIUS_TABLE = 4,
     /// The μ table: a length beyond its capacity, or breakpoints not increasing.
     CW_ERR_MU_TABLE = 5,
@@ -89,7 +90,7 @@ impl cw_status {
             }
             Self::CW_ERR_BAD_FLAG => c"a has_*/two_node field is neither 0 nor 1",
             Self::CW_ERR_RADIUS_TABLE => {
-                c"friction-radius table: length beyond capacity or breakpoints not increasing"
+                c"friction-radius table: length beyond capacity, breakpoints not increasing, or unknown axis"
             }
             Self::CW_ERR_MU_TABLE => {
                 c"mu table: length beyond capacity or breakpoints not increasing"

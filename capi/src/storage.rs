@@ -20,7 +20,7 @@ use crate::device::{CapiTables, ChannelDevice};
 
 /// 64-bit words of a `cw_device`: the largest target's need (x86-64), checked at compile time
 /// on every target.
-pub const CW_DEVICE_WORDS: usize = 176;
+pub const CW_DEVICE_WORDS: usize = 248;
 /// 64-bit words of a `cw_estimator`.
 pub const CW_ESTIMATOR_WORDS: usize = 56;
 

@@ -4,7 +4,7 @@
 #![allow(clippy::unwrap_used, clippy::indexing_slicing, unsafe_code)]
 
 use clampwise_capi::*;
-use clampwise_core::config::{DeviceConfig, Tables};
+use clampwise_core::config::LeverAxis;
 use clampwise_core::estimator::{Combination, ContactState, Estimator, Inputs};
 use clampwise_core::flags::Flags;
 use clampwise_core::sensor::RawChannel;
@@ -12,7 +12,7 @@ use clampwise_core::units::RadPerSec;
 use clampwise_device::build_core::{ChannelDevice, CoreDevice};
 use clampwise_device::config::LoadedConfig;
 
-type HostDevice<const C: usize> = DeviceConfig<Tables<8, 2, 8, 8>, C>;
+type HostDevice<const C: usize> = clampwise_device::build_core::Device<C>;
 
 fn copy_table<const NX: usize, const NY: usize>(
     x: impl Iterator<Item = i32>,
@@ -55,10 +55,14 @@ fn desc_of<const C: usize>(cfg: &HostDevice<C>) -> cw_device_desc {
             .map(|row| row.iter().map(|v| v.to_bits()).collect()),
     );
     d.radius = cw_radius_table {
+        lever_axis: match cfg.tables().axis() {
+            LeverAxis::Bedding => 0,
+            LeverAxis::Mu => 1,
+        },
         forces_len: nx,
-        beddings_len: ny,
+        second_len: ny,
         force_q8: x,
-        bedding_q30: y,
+        second_q30: y,
         radius_q24: z,
     };
     let f = cfg.tables().friction();
@@ -393,13 +397,14 @@ fn flag_and_state_codes_are_the_cores() {
         (CW_FLAG_TORQUE_BOUNDED, Flags::TORQUE_BOUNDED),
         (CW_FLAG_FORCE_IMPLAUSIBLE, Flags::FORCE_IMPLAUSIBLE),
         (CW_FLAG_SPEED_UNKNOWN, Flags::SPEED_UNKNOWN),
+        (CW_FLAG_SELF_LOCKING, Flags::SELF_LOCKING),
     ] {
         assert_eq!(c, f.bits(), "{f:?}");
     }
     let all = Flags::all().bits();
     assert_eq!(
         all,
-        (CW_FLAG_SPEED_UNKNOWN << 1) - 1,
+        (CW_FLAG_SELF_LOCKING << 1) - 1,
         "every core flag has a C name"
     );
     // The firmware example's output line numbers the states the same way.

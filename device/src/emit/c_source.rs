@@ -20,7 +20,7 @@
 
 use std::fmt::Write as _;
 
-use clampwise_core::config::{Limits, Tables, Tolerances};
+use clampwise_core::config::{LeverAxis, Limits, Tolerances};
 use clampwise_core::estimator::Combination;
 use clampwise_core::sensor::{ChannelCalibration, Debounce, SensorConfig};
 use clampwise_core::table::Table2;
@@ -38,7 +38,7 @@ pub const C_DESC_NAME: &str = "clampwise_device_desc";
 /// Capacities of the C API's tables (`CW_RADIUS_FORCES_MAX` …, `CW_CHANNELS_MAX`): the same
 /// as the host's, so every table the host builds fits.
 const RADIUS_FORCES_MAX: usize = 8;
-const RADIUS_BEDDINGS_MAX: usize = 2;
+const RADIUS_SECOND_MAX: usize = 16;
 const MU_TEMPERATURES_MAX: usize = 8;
 const MU_SPEEDS_MAX: usize = 8;
 
@@ -337,7 +337,7 @@ fn initial_record<const C: usize>(
 }
 
 fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
-    let tables: &Tables<8, 2, 8, 8> = cfg.tables();
+    let tables = cfg.tables();
     let fr = tables.friction();
     let (stick_speed, hysteresis) = friction_band(fr)?;
     let mut out = String::new();
@@ -350,17 +350,22 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
         ".sample_period_q32 = {},",
         i64_c(cfg.sample_period().to_bits())
     );
-    let radius = table(
+    let axis = match tables.axis() {
+        LeverAxis::Bedding => "CW_LEVER_AXIS_BEDDING",
+        LeverAxis::Mu => "CW_LEVER_AXIS_MU",
+    };
+    let mut radius = format!(".lever_axis = {axis},\n");
+    radius.push_str(&table(
         tables.radius(),
         [
             "forces_len",
-            "beddings_len",
+            "second_len",
             "force_q8",
-            "bedding_q30",
+            "second_q30",
             "radius_q24",
         ],
-        (RADIUS_FORCES_MAX, RADIUS_BEDDINGS_MAX),
-    )?;
+        (RADIUS_FORCES_MAX, RADIUS_SECOND_MAX),
+    )?);
     let _ = writeln!(out, "{}", block("radius", &radius));
     let mu = table(
         fr.mu_kinetic(),
@@ -473,9 +478,9 @@ pub fn c_source(core: &CoreDevice, origin: &str) -> Result<String, EmitError> {
 
 // The C API's capacities are the host's: every table the host builds fits.
 const _: () = {
-    use crate::build_core::{MU_POINTS, RADIUS_BEDDING_POINTS, RADIUS_FORCE_POINTS};
+    use crate::build_core::{MU_POINTS, RADIUS_FORCE_POINTS, RADIUS_SECOND_POINTS};
     assert!(RADIUS_FORCE_POINTS == RADIUS_FORCES_MAX);
-    assert!(RADIUS_BEDDING_POINTS == RADIUS_BEDDINGS_MAX);
+    assert!(RADIUS_SECOND_POINTS == RADIUS_SECOND_MAX);
     assert!(MU_POINTS == MU_TEMPERATURES_MAX && MU_POINTS == MU_SPEEDS_MAX);
 };
 
@@ -511,7 +516,8 @@ mod tests {
         let src = c_source(&core, "demo.toml").unwrap();
         for needle in [
             ".radius = {",
-            ".forces_len = 2, .beddings_len = 2,",
+            ".lever_axis = CW_LEVER_AXIS_BEDDING,",
+            ".forces_len = 2, .second_len = 2,",
             ".friction = {",
             ".mu = {",
             ".temperatures_len = 6, .speeds_len = 6,",
