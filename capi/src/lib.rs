@@ -18,7 +18,7 @@
 //! * Inputs and outputs are integer fields in the core's fixed-point formats, so a C program
 //!   gets the very bits a Rust program gets ([`cw_inputs`], [`cw_estimate`]).
 //! * No panic crosses the boundary: release builds abort on panic, and the C example's
-//!   link-time check (`c-example/panic-check.sh`) proves no panic path is linked at all.
+//!   link-time check (`ci.sh`, its panic check) proves no panic path is linked at all.
 //! * Not thread-safe per object: one estimator is stepped by one context at a time.
 #![no_std]
 // The C boundary is raw pointers by nature: each `unsafe` block says why it holds.

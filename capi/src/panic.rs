@@ -4,7 +4,7 @@
 //! fail, no `unwrap`); the handler is what the language requires of a `no_std` binary. With
 //! the `panic-check` feature it calls a symbol defined nowhere, so a C image linked with
 //! `--gc-sections` only links when no panic path is reachable from the functions it calls
-//! (`c-example/panic-check.sh`). Hosted targets use `std`'s handler, and the release profiles
+//! (`ci.sh`, its panic check). Hosted targets use `std`'s handler, and the release profiles
 //! abort on panic: nothing unwinds into C.
 
 #[cfg(all(target_os = "none", not(feature = "panic-check")))]
