@@ -21,6 +21,9 @@ fi
 export CLAMPWISE_REQUIRE_CHROMIUM=1
 cargo test --workspace --release --locked
 cargo test --workspace --doc --locked
+# Parquet logs and estimates: a feature of its own (the arrow/parquet build takes ~9 min here
+# after the release build above; ~13 min from clean).
+cargo test -p clampwise-sim --release --features parquet --locked
 if [ -x firmware-example/ci.sh ]; then
     firmware-example/ci.sh
 fi

@@ -15,6 +15,8 @@
 //!   geometry::Disc + shape (annulus | sector | button | polygon) + faces n + cone α?
 //!     = geometry::Contact ─► r_up, r_uw ─► lever arm (r_e / sin α) at each bedding
 //!     ─► geometry::build_radius_table ─► RadiusTable (F × bedding → m) ─┐
+//!   or a drum, block, band or cone-engagement model (geometry::brake, T = F·g(μ))
+//!     ─► g(μ)/μ at μ breakpoints ─► RadiusTable (F × μ → m) ──────────┤ (Tables::over_mu)
 //!   μ(T, v) table + stick/slip settings ─► friction::FrictionConfig ────┴► config::Tables
 //!   config::DeviceParams { sample period (once), tables, thermal, wear, sensors, adaptation,
 //!     limits, tolerances } ─► config::DeviceConfig::new ─► DeviceConfig<Tables, C>
@@ -24,6 +26,8 @@
 //!   raw counts[1..4] ─ sensor: calibrate → filter → diagnose → vote ─► clamp force F, health
 //!   ω_in − ω_out ─► slip speed v ─ friction: stick/slip with hysteresis
 //!   F, bedding ─ radius table ─► r_e;   T_lining, |v| ─ μ table × k (adapt) ─► μ
+//!     (drum, band: F, μ ─ radius table ─► r(μ) = g(μ)/μ for each μ used; ± from the torque
+//!     at both ends of μ's tolerance; Flags::SELF_LOCKING past the table's last μ)
 //!   slipping : torque = −sign(v) · n · μ · F · r_e (+ drag)
 //!   holding  : capacity = n · μ_s · F · r_e; torque not given, bounded by ± capacity
 //!   released : F < touch force → torque = drag (0 for a dry contact)

@@ -206,7 +206,7 @@ mod tests {
         );
         let psi = conversion(Quantity::Force, "psi", Some(1e-4)).unwrap();
         assert_relative_eq!(psi.apply(1.0), 0.689_475_729_316_8);
-        // [calc] 100 bar on a 57 mm piston: 25.5 kN (REFERENCES.md controller context).
+        // [calc: F = p·π·d²/4] 100 bar on a 57 mm piston: 25.5 kN.
         let a = std::f64::consts::PI * 0.0285 * 0.0285;
         let bar = conversion(Quantity::Force, "bar", Some(a)).unwrap();
         assert_relative_eq!(bar.apply(100.0), 25_517.6, max_relative = 1e-4);

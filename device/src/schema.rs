@@ -106,6 +106,9 @@ pub enum ShapeSpec {
     DrumShoes,
     /// A band brake, `[contact.band]`: torque not linear in μ.
     Band,
+    /// One or two short (block) shoes on levers, `[contact.block_shoes]`: torque not linear
+    /// in μ when the friction force has a moment about the lever pivot.
+    BlockShoes,
 }
 
 impl ShapeSpec {
@@ -119,13 +122,14 @@ impl ShapeSpec {
             Self::Cone => "cone",
             Self::DrumShoes => "drum_shoes",
             Self::Band => "band",
+            Self::BlockShoes => "block_shoes",
         }
     }
 
-    /// Whether the torque per unit actuating force is not linear in μ (the radius table then
-    /// runs over μ instead of bedding).
-    pub fn is_nonlinear_in_mu(self) -> bool {
-        matches!(self, Self::DrumShoes | Self::Band)
+    /// Whether the shape is a drum or band contact: torque per unit actuating force not
+    /// linear in μ, whatever else the contact says.
+    pub fn is_drum_or_band(self) -> bool {
+        matches!(self, Self::DrumShoes | Self::Band | Self::BlockShoes)
     }
 }
 
@@ -159,19 +163,27 @@ pub struct ContactSpec {
     pub pad_centre_radius_m: Option<f64>,
     /// Which model of a circular pad's effective radius (button only; see
     /// `clampwise_core::geometry::button`: the published design table and the integrated
-    /// p·r = const model differ by 1.6–3.4 %).
+    /// model differ: the table lies 1.6–3.3 % below it for bedded linings, 1.8–9.1 % for new
+    /// ones, at R/e = 0.1 … 0.5).
     pub button_model: Option<ButtonModelSpec>,
     /// Outline of a polygon pad, m, disc axis at the origin (3–32 vertices, not enclosing it).
     pub vertices_m: Option<Vec<[f64; 2]>>,
     /// Cone half-angle, degrees (1–89).
     #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 1.0, max = 89.0)))]
     pub half_angle_deg: Option<f64>,
+    /// A cone evaluated with the axial friction term μ·cos α (shape `cone`): `engaging`
+    /// (being pressed in) or `withdrawing`; its torque is then not linear in μ and its
+    /// radius table runs over μ at the bedded (uniform-wear) radius.
+    pub cone_engagement: Option<ConePhaseSpec>,
     /// Pivoted shoes on a drum (shape `drum_shoes`).
     pub drum_shoes: Option<DrumShoesSpec>,
+    /// Block shoes on levers (shape `block_shoes`).
+    pub block_shoes: Option<BlockShoesSpec>,
     /// A band brake (shape `band`).
     pub band: Option<BandSpec>,
     /// Largest μ the torque-gain table of a `drum_shoes` or `band` contact covers (default:
-    /// 90 % of the locking μ, at most 1.0); above it the estimate flags `SELF_LOCKING`.
+    /// 90 % of the locking μ, at most 1.0, and no farther than g(μ)/μ stays within 120 m);
+    /// above it the estimate flags `SELF_LOCKING`.
     #[cfg_attr(any(test, feature = "schema"), schemars(range(min = 0.05, max = 2.0)))]
     pub gain_mu_max: Option<f64>,
     /// Relative tolerance of the effective radius (0–1), for the uncertainty.
@@ -201,6 +213,35 @@ pub struct DrumShoesSpec {
     pub mounting: MountingSpec,
     /// One entry per shoe, `leading` (self-energising) or `trailing`; one or two shoes.
     pub shoes: Vec<ShoeActionSpec>,
+}
+
+/// `[contact.block_shoes]`: short shoes (a block on a lever, the pressure taken as
+/// concentrated), all of the same lever geometry and driven by the one measured actuating force.
+#[derive(Debug, Clone, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(deny_unknown_fields)]
+pub struct BlockShoesSpec {
+    /// Drum radius, m.
+    pub drum_radius_m: f64,
+    /// Lever arm of the actuating force about the lever pivot, m.
+    pub actuation_arm_m: f64,
+    /// Lever arm of the block's normal force about the lever pivot, m.
+    pub normal_arm_m: f64,
+    /// Distance from the lever pivot to the line of the friction force, m (≥ 0).
+    pub friction_offset_m: f64,
+    /// One entry per block, `leading` or `trailing`; one or two blocks.
+    pub shoes: Vec<ShoeActionSpec>,
+}
+
+/// `contact.cone_engagement`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[cfg_attr(any(test, feature = "schema"), derive(schemars::JsonSchema))]
+#[serde(rename_all = "snake_case")]
+pub enum ConePhaseSpec {
+    /// Being pressed in: axial friction resists the engaging force.
+    Engaging,
+    /// Backing out under a falling axial force: axial friction holds the cone in (can lock).
+    Withdrawing,
 }
 
 /// `contact.drum_shoes.mounting`.
@@ -285,6 +326,13 @@ pub enum TightEndSpec {
 }
 
 impl ContactSpec {
+    /// Whether the torque per unit actuating force is not linear in μ (drum and band shapes,
+    /// a cone with `cone_engagement`): the radius table then runs over μ instead of bedding.
+    pub fn is_nonlinear_in_mu(&self) -> bool {
+        self.shape.is_drum_or_band()
+            || (self.shape == ShapeSpec::Cone && self.cone_engagement.is_some())
+    }
+
     /// A contact of `shape` on `faces` interfaces with no dimension set and no radius
     /// tolerance: the start of one built in code rather than read from TOML. Set the keys the
     /// shape needs; building the device names any that is missing.
@@ -312,7 +360,9 @@ impl ContactSpec {
             button_model: None,
             vertices_m: None,
             half_angle_deg: None,
+            cone_engagement: None,
             drum_shoes: None,
+            block_shoes: None,
             band: None,
             gain_mu_max: None,
             radius_tolerance_ratio: 0.0,

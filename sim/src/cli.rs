@@ -74,6 +74,10 @@ impl Command {
 /// `demo`.
 #[derive(Debug, Args)]
 pub struct DemoArgs {
+    /// Run the demo's pipeline (scenario, faults, fit, plots) on this device config instead of
+    /// the built-in demo device, e.g. `sim/configs/example-crane-drum-brake.toml`.
+    #[arg(long, short)]
+    pub config: Option<PathBuf>,
     /// Directory for the demo's files.
     #[arg(long, default_value = "clampwise-demo")]
     pub out_dir: PathBuf,
@@ -94,10 +98,12 @@ pub struct ReplayArgs {
     /// Device config (TOML; `-` for standard input).
     #[arg(long, short)]
     pub config: PathBuf,
-    /// Trace files (CSV; `-` for standard input).
+    /// Trace files: CSV (`-` for standard input), ASAM MDF4 (`.mf4`) or, when built with the
+    /// `parquet` feature, Parquet (`.parquet`), by extension.
     #[arg(required = true)]
     pub traces: Vec<String>,
-    /// Estimate file for a single trace (`-` for standard output).
+    /// Estimate file for a single trace (`-` for standard output): CSV, or Parquet for a
+    /// `.parquet` name (with the `parquet` feature).
     #[arg(long, short, conflicts_with = "out_dir")]
     pub out: Option<String>,
     /// Directory for estimate files, named TRACE-STEM.estimate.csv.
@@ -143,7 +149,9 @@ pub struct TraceArgs {
     #[arg(long = "column", id = "column", value_name = "QUANTITY=NAME[:UNIT]")]
     pub column_map: Vec<crate::trace::ColumnOverride>,
     /// Resample a trace recorded at another rate (--sample-period-s) onto the device's
-    /// period: hold = the last sample at or before each tick, linear = interpolated.
+    /// period: hold = the last sample at or before each tick, linear = interpolated. For an
+    /// MDF4 file with channels in several channel groups: how the groups are aligned onto
+    /// the device's period (default hold; no --sample-period-s).
     #[arg(long, value_enum)]
     pub resample: Option<crate::resample::Resample>,
 }
@@ -214,7 +222,8 @@ pub struct FitArgs {
     /// Device config (TOML; `-` for standard input) holding the prior μ table.
     #[arg(long, short)]
     pub config: PathBuf,
-    /// Trace with a reference-torque column.
+    /// Trace with a reference-torque column: CSV, ASAM MDF4 (`.mf4`) or Parquet (`.parquet`),
+    /// as for `replay`.
     pub trace: String,
     /// Write the config with the fitted μ table (comments kept).
     #[arg(long, short)]

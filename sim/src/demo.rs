@@ -74,9 +74,19 @@ pub fn run(a: &DemoArgs, quiet: bool) -> Result<Outcome, SimError> {
     if !(a.duration_s.is_finite() && a.duration_s > 0.0) {
         return Err(SimError::Usage("--duration-s must be positive".into()));
     }
-    let config_path = path(dir, "demo-hoist-brake.toml");
-    write_file(&config_path, DEMO_CONFIG.as_bytes())?;
-    let cfg = LoadedConfig::from_str(DEMO_CONFIG, &config_path)?;
+    let (config_name, config_text) = match &a.config {
+        None => ("demo-hoist-brake.toml".to_string(), DEMO_CONFIG.to_string()),
+        Some(p) => (
+            p.file_name().map_or_else(
+                || "device.toml".to_string(),
+                |n| n.to_string_lossy().into_owned(),
+            ),
+            std::fs::read_to_string(p).map_err(|e| SimError::io(p, e))?,
+        ),
+    };
+    let config_path = path(dir, &config_name);
+    write_file(&config_path, config_text.as_bytes())?;
+    let cfg = LoadedConfig::from_str(&config_text, &config_path)?;
     let core = CoreDevice::build(&cfg.config).map_err(|e| SimError::Internal(e.to_string()))?;
 
     let trace = path(dir, "trace.csv");
@@ -322,7 +332,10 @@ fn human_summary(r: &Results<'_>) -> String {
         rep.rows_per_s,
         replay::ESTIMATOR_NAME
     ));
-    human.push_str(&format!("  files in {}: demo-hoist-brake.toml, trace.csv, estimate.csv, fitted.toml, coverage.csv, estimate-fitted.csv, summary.json", dir.display()));
+    let config_name = std::path::Path::new(&r.cfg.file)
+        .file_name()
+        .map_or_else(String::new, |n| n.to_string_lossy().into_owned());
+    human.push_str(&format!("  files in {}: {config_name}, trace.csv, estimate.csv, fitted.toml, coverage.csv, estimate-fitted.csv, summary.json", dir.display()));
     for p in plots {
         if let Some(n) = Path::new(p).file_name() {
             human.push_str(&format!(", {}", n.to_string_lossy()));

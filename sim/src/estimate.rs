@@ -1,4 +1,6 @@
-//! Estimate traces: the CSV that `replay` writes and `compare`, `plot` read.
+//! Estimate traces: the CSV that `replay` writes and `compare`, `plot` read (and, with the
+//! `parquet` feature, the same columns as Parquet for a `.parquet` name: [`EstimateOut`],
+//! [`EstimateReader`]).
 //!
 //! Columns: `line, t_s, torque_Nm, capacity_Nm, uncertainty_Nm, mu, radius_m, clamp_force_N,
 //! slip_speed_rad_s, lining_temp_C, bedding, wear_m, correction, state, flags, torque_ref_Nm`.
@@ -292,18 +294,118 @@ impl EstimateWriter {
     }
 }
 
-/// Reads an estimate file row by row.
+/// An estimate file being written: CSV, or Parquet for a `.parquet` name (with the
+/// `parquet` feature; see [`crate::log_input`]).
+// One per replay: the CSV writer stays inline, without a pointer hop per row.
+#[allow(clippy::large_enum_variant)]
+pub enum EstimateOut {
+    /// CSV text.
+    Csv(EstimateWriter),
+    /// Parquet.
+    #[cfg(feature = "parquet")]
+    Parquet(Box<crate::log_input::parquet_estimates::ParquetEstimateWriter>),
+}
+
+impl EstimateOut {
+    /// Create the output, its format chosen by the extension of `path`; `select` as for
+    /// [`EstimateWriter::create_with_columns`].
+    ///
+    /// # Errors
+    /// [`SimError::Io`]; [`SimError::Usage`] for an `.mf4` name (estimates are written as CSV
+    /// or Parquet) or a `.parquet` name without the `parquet` feature.
+    pub fn create(
+        path: &str,
+        comments: &[String],
+        select: Option<Vec<usize>>,
+    ) -> Result<Self, SimError> {
+        match crate::log_input::LogFormat::of(path) {
+            crate::log_input::LogFormat::Csv => Ok(Self::Csv(EstimateWriter::create_with_columns(
+                path, comments, select,
+            )?)),
+            crate::log_input::LogFormat::Mdf4 => Err(SimError::Usage(format!(
+                "{path}: estimates are written as CSV or, with a .parquet name, as Parquet; not as MDF4"
+            ))),
+            #[cfg(feature = "parquet")]
+            crate::log_input::LogFormat::Parquet => Ok(Self::Parquet(Box::new(
+                crate::log_input::parquet_estimates::ParquetEstimateWriter::create(
+                    path, comments, select,
+                )?,
+            ))),
+            #[cfg(not(feature = "parquet"))]
+            crate::log_input::LogFormat::Parquet => Err(crate::log_input::no_parquet(path)),
+        }
+    }
+
+    /// Append one row.
+    ///
+    /// # Errors
+    /// [`SimError::Io`].
+    #[inline]
+    pub fn write(&mut self, r: &EstimateRow) -> Result<(), SimError> {
+        match self {
+            Self::Csv(w) => w.write(r),
+            #[cfg(feature = "parquet")]
+            Self::Parquet(w) => w.write(r),
+        }
+    }
+
+    /// Finish and publish the file under its name.
+    ///
+    /// # Errors
+    /// [`SimError::Io`].
+    pub fn commit(self) -> Result<(), SimError> {
+        match self {
+            Self::Csv(w) => w.commit(),
+            #[cfg(feature = "parquet")]
+            Self::Parquet(w) => w.commit(),
+        }
+    }
+
+    /// Leave the output marked incomplete (CSV, see [`AtomicFile::abandon`]) or remove it
+    /// (Parquet); the path of what is left, if anything.
+    pub fn abandon(self, why: &str) -> Option<std::path::PathBuf> {
+        match self {
+            Self::Csv(w) => w.abandon(why),
+            #[cfg(feature = "parquet")]
+            Self::Parquet(w) => w.abandon(),
+        }
+    }
+}
+
+/// Reads an estimate file row by row: CSV, or (with the `parquet` feature) Parquet for a
+/// `.parquet` name.
 pub struct EstimateReader {
-    csv: CsvIn,
-    cols: [usize; 16],
+    source: EstimateSource,
+}
+
+// One per reader: the CSV reader stays inline, without a pointer hop per row.
+#[allow(clippy::large_enum_variant)]
+enum EstimateSource {
+    Csv {
+        csv: CsvIn,
+        cols: [usize; 16],
+    },
+    #[cfg(feature = "parquet")]
+    Parquet(Box<crate::log_input::parquet_estimates::ParquetEstimateReader>),
 }
 
 impl EstimateReader {
     /// Open an estimate file and check its header.
     ///
     /// # Errors
-    /// I/O, or a located error naming a missing column.
+    /// I/O, or a located error naming a missing column; [`SimError::Usage`] for a `.parquet`
+    /// name without the `parquet` feature.
     pub fn open(path: &str) -> Result<Self, SimError> {
+        if crate::log_input::LogFormat::of(path) == crate::log_input::LogFormat::Parquet {
+            #[cfg(feature = "parquet")]
+            return Ok(Self {
+                source: EstimateSource::Parquet(Box::new(
+                    crate::log_input::parquet_estimates::ParquetEstimateReader::open(path)?,
+                )),
+            });
+            #[cfg(not(feature = "parquet"))]
+            return Err(crate::log_input::no_parquet(path));
+        }
         let csv = CsvIn::open(path)?;
         let mut cols = [0usize; 16];
         for (c, name) in cols.iter_mut().zip(HEADER) {
@@ -314,17 +416,27 @@ impl EstimateReader {
                 )
             })?;
         }
-        Ok(Self { csv, cols })
+        Ok(Self {
+            source: EstimateSource::Csv { csv, cols },
+        })
     }
 
     /// File name.
     pub fn file(&self) -> &str {
-        self.csv.file()
+        match &self.source {
+            EstimateSource::Csv { csv, .. } => csv.file(),
+            #[cfg(feature = "parquet")]
+            EstimateSource::Parquet(p) => p.file(),
+        }
     }
 
-    /// File length and bytes read (for progress).
+    /// File length and bytes read, or rows and rows read (Parquet), for progress.
     pub fn progress(&self) -> (Option<u64>, u64) {
-        (self.csv.len_bytes(), self.csv.bytes_read())
+        match &self.source {
+            EstimateSource::Csv { csv, .. } => (csv.len_bytes(), csv.bytes_read()),
+            #[cfg(feature = "parquet")]
+            EstimateSource::Parquet(p) => p.progress(),
+        }
     }
 
     /// The next row; `Ok(None)` at the end.
@@ -332,8 +444,12 @@ impl EstimateReader {
     /// # Errors
     /// A located [`DataError`].
     pub fn next_row(&mut self) -> Result<Option<EstimateRow>, DataError> {
-        let c = self.cols;
-        let Some(row) = self.csv.next_row()? else {
+        let (csv, c) = match &mut self.source {
+            EstimateSource::Csv { csv, cols } => (csv, *cols),
+            #[cfg(feature = "parquet")]
+            EstimateSource::Parquet(p) => return p.next_row(),
+        };
+        let Some(row) = csv.next_row()? else {
             return Ok(None);
         };
         let g = |i: usize| row.required_f64(c.get(i).copied().unwrap_or(0));

@@ -125,7 +125,7 @@ impl FitReport {
 /// bisection (g rises with μ); `None` outside g's range there.
 fn inverse_gain(model: &GainModel, per_force: f64, mu_end: f64) -> Option<f64> {
     let g = |mu: f64| model.torque_per_force(mu).ok();
-    if !(per_force >= 0.0) || per_force > g(mu_end)? {
+    if per_force.is_nan() || per_force < 0.0 || per_force > g(mu_end)? {
         return None;
     }
     let (mut lo, mut hi) = (0.0, mu_end);

@@ -1,6 +1,7 @@
 //! # clampwise-sim
 //!
-//! The host simulator behind the `clampwise` command: configs (TOML), traces (CSV), replay
+//! The host simulator behind the `clampwise` command: configs (TOML), traces (CSV, ASAM MDF4,
+//! and Parquet with the `parquet` feature), replay
 //! through the estimator, comparison with a reference torque, μ-table fitting, firmware table
 //! emission, an independent f64 plant for synthetic traces, and plots.
 //!
@@ -15,7 +16,7 @@
 //! |---|---|
 //! | [`config`], [`column_units`], [`build_core`], [`emit`] | re-exported from `clampwise-device`: the TOML schema, config → core, firmware table emitter |
 //! | [`clampwise_convert`] | the f64 ↔ fixed layer: `SampleEstimator::step`, implemented by `CoreEstimator` (the core's `Estimator::step`) |
-//! | [`csv_input`], [`trace`], [`timestamps`], [`resample`] | located, streaming CSV input and its dialect; column mapping; time checks; resampling onto the device period |
+//! | [`csv_input`], [`log_input`], [`trace`], [`timestamps`], [`resample`] | located, streaming CSV input and its dialect; ASAM MDF4 and Parquet logs, channel groups aligned onto the device period; column mapping; time checks; resampling onto the device period |
 //! | [`estimate`], [`output`] | estimate traces; outputs never passed off as complete on failure |
 //! | [`replay`], [`compare`], [`quantile_sketch`], [`fit`] | the subcommands' work |
 //! | [`plant`], [`synth`], [`portable_math`] | the independent f64 plant and trace synthesis; maths with the same bits on every machine |
@@ -56,6 +57,7 @@ pub mod demo;
 pub mod error;
 pub mod estimate;
 pub mod fit;
+pub mod log_input;
 pub mod memory;
 pub mod output;
 pub mod plant;

@@ -11,7 +11,8 @@ use crate::build_core::CoreDevice;
 use crate::config::LoadedConfig;
 use crate::csv_input::Dialect;
 use crate::error::SimError;
-use crate::estimate::EstimateWriter;
+use crate::estimate::EstimateOut;
+use crate::log_input::{LogFormat, LogReport};
 use crate::plot::Envelope;
 use crate::resample::ResampleReport;
 use crate::timestamps::TimeReport;
@@ -145,8 +146,13 @@ pub struct ReplaySummary {
     pub output: String,
     /// Estimator used.
     pub estimator: &'static str,
-    /// Separator and decimal mark the trace was read with, and where each came from.
-    pub dialect: Dialect,
+    /// Separator and decimal mark a CSV trace was read with, and where each came from.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dialect: Option<Dialect>,
+    /// How an MDF4 or Parquet log was read: its channel groups, and how groups at other
+    /// rates were aligned onto the device's ticks.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub log: Option<LogReport>,
     /// The trace's period stated with `--sample-period-s`, s (the time check's base).
     pub sample_period_s: Option<f64>,
     /// Resampling onto the device's period (`--resample`): method, periods, rows in and out.
@@ -241,7 +247,7 @@ pub fn replay_file(
         format!("estimator: {ESTIMATOR_NAME}"),
         CAUTION.to_string(),
     ];
-    let mut writer = EstimateWriter::create_with_columns(output, &comments, opts.columns.clone())?;
+    let mut writer = EstimateOut::create(output, &comments, opts.columns.clone())?;
     let mut est = convert::new_estimator(&cfg.config, core)
         .map_err(|e| SimError::Internal(format!("starting state: {e}")))?;
     let mut tally = Tally::default();
@@ -280,6 +286,7 @@ pub fn replay_file(
         output: output.to_string(),
         estimator: ESTIMATOR_NAME,
         dialect: reader.dialect(),
+        log: reader.log_report(),
         sample_period_s: opts.trace.sample_period_s,
         resample: reader.resampled().cloned(),
         columns: opts.columns.as_ref().map(|c| {
@@ -306,11 +313,55 @@ pub fn rows_per_s(rows: u64, elapsed_s: f64) -> f64 {
     if elapsed_s > 0.0 { r / elapsed_s } else { 0.0 }
 }
 
+/// Human lines about how a log was read.
+pub fn log_lines(l: &LogReport) -> String {
+    let mut o = format!(
+        "  read as: {}\n",
+        match l.format {
+            LogFormat::Csv => "CSV",
+            LogFormat::Mdf4 => "ASAM MDF4",
+            LogFormat::Parquet => "Parquet",
+        }
+    );
+    for src in &l.sources {
+        o.push_str(&format!(
+            "    {}'{}': {} samples{}\n",
+            src.group
+                .map_or(String::new(), |g| format!("channel group {g} ")),
+            src.name,
+            src.samples,
+            src.mean_period_s
+                .map_or(String::new(), |p| format!(", mean period {p} s"))
+        ));
+    }
+    if let Some(m) = l.aligned {
+        o.push_str(&format!(
+            "  channel groups aligned onto the device's sample period by {} (--resample {})\n",
+            match m {
+                crate::resample::Resample::Hold =>
+                    "zero-order hold: the last sample at or before each tick",
+                crate::resample::Resample::Linear =>
+                    "linear interpolation between the samples either side of each tick",
+            },
+            match m {
+                crate::resample::Resample::Hold => "hold",
+                crate::resample::Resample::Linear => "linear",
+            }
+        ));
+    }
+    o
+}
+
 /// Human lines of a summary.
 pub fn human(s: &ReplaySummary) -> String {
     let mut o = String::new();
     o.push_str(&format!("replayed {} → {}\n", s.trace, s.output));
-    o.push_str(&format!("  read as: {}\n", s.dialect));
+    if let Some(d) = &s.dialect {
+        o.push_str(&format!("  read as: {d}\n"));
+    }
+    if let Some(l) = &s.log {
+        o.push_str(&log_lines(l));
+    }
     if let Some(r) = &s.resample {
         o.push_str(&format!(
             "  resampled ({}) from the trace's {} s to the device's {} s period: {} samples in, {} out (the estimate's line is the source line of the sample {})\n",

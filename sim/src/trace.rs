@@ -5,12 +5,19 @@
 //! `temp_C`); `[trace.columns]` in the config maps other names and units. A bad row stops the
 //! run with its line, column and header named, unless [`RowPolicy::Skip`] is chosen; then it is
 //! skipped and counted in [`SkipReport`], never dropped silently.
+//!
+//! ASAM MDF4 and Parquet logs ([`crate::log_input`], by file extension) are mapped the same
+//! way, their channel or column names standing for the header fields.
 
 use serde::Serialize;
 
-use crate::column_units::{self, Conversion};
-use crate::csv_input::{CsvIn, Dialect, DialectChoice, Row, echo};
+use crate::column_units::{self, Conversion, Quantity};
+use crate::csv_input::{CsvIn, Dialect, DialectChoice, echo};
 use crate::error::{DataError, SimError};
+use crate::log_input::cells::{Cells, Header, LogHeader, LogRow};
+use crate::log_input::{
+    self, ColumnKind, ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, Timing,
+};
 use crate::resample::{Resample, ResampleReport, Resampler};
 use crate::schema::{CANONICAL, ColumnSpec, DeviceKind, DeviceSpec};
 use crate::timestamps::{TimeCheck, TimeReport};
@@ -82,8 +89,7 @@ impl TraceOptions {
     /// Check the options against the config before any file is read.
     ///
     /// # Errors
-    /// [`SimError::Usage`] for a period that is not a positive number, `--resample` without
-    /// `--sample-period-s`, a stated period the estimator would be stepped at wrongly (another
+    /// [`SimError::Usage`] for a period that is not a positive number, a stated period the estimator would be stepped at wrongly (another
     /// rate without `--resample`), a `--column` for a force channel the config does not have
     /// or given twice.
     pub fn check(&self, c: &DeviceSpec) -> Result<(), SimError> {
@@ -101,10 +107,6 @@ impl TraceOptions {
                     "--sample-period-s {p} is another rate than device.sample_period_s {device} s, at which the estimator steps: add --resample hold (zero-order hold) or --resample linear to bring the trace to the device's period"
                 )));
             }
-        } else if self.resample.is_some() {
-            return Err(SimError::Usage(
-                "--resample needs the trace's own period, --sample-period-s S (checked against its time stamps)".into(),
-            ));
         }
         let mut seen = std::collections::HashSet::new();
         for o in &self.columns {
@@ -179,9 +181,21 @@ struct Layout {
     torque_ref: Option<Col>,
 }
 
+/// Where the rows come from.
+// One per reader: the CSV reader stays inline, without a pointer hop per row.
+#[allow(clippy::large_enum_variant)]
+enum Input {
+    Csv(CsvIn),
+    Log {
+        log: Box<dyn ColumnarLog>,
+        /// The current row's values, by name index (and the own time base last).
+        values: Vec<Option<f64>>,
+    },
+}
+
 /// A trace opened against a config.
 pub struct TraceReader {
-    csv: CsvIn,
+    input: Input,
     resampler: Option<Resampler>,
     layout: Layout,
     policy: RowPolicy,
@@ -191,66 +205,200 @@ pub struct TraceReader {
     good_rows: u64,
 }
 
-fn find_column(
-    csv: &CsvIn,
-    c: &DeviceSpec,
-    overrides: &[ColumnOverride],
+/// The column, unit, piston area and the name of the setting that maps quantity `name`.
+fn mapping<'a>(
+    c: &'a DeviceSpec,
+    overrides: &'a [ColumnOverride],
     name: &str,
-    required: bool,
-) -> Result<Option<Col>, DataError> {
-    let &(_, canon_col, canon_unit, q) = CANONICAL
-        .iter()
-        .find(|e| e.0 == name)
-        .ok_or_else(|| csv.header_error(None, format!("internal: unknown quantity {name}")))?;
+) -> Option<(&'a str, &'a str, Option<f64>, String, Quantity)> {
+    let &(_, canon_col, canon_unit, q) = CANONICAL.iter().find(|e| e.0 == name)?;
     let from_config: Option<&ColumnSpec> = c.trace.columns.get(name);
     let over = overrides.iter().find(|o| o.quantity == name);
-    let (col_name, unit, area, source) = match (over, from_config) {
+    Some(match (over, from_config) {
         (Some(o), m) => (
             o.column.as_str(),
             o.unit.as_deref().unwrap_or(canon_unit),
             m.and_then(|m| m.piston_area_m2),
             format!("--column {name}"),
+            q,
         ),
         (None, Some(m)) => (
             m.column.as_str(),
             m.unit.as_str(),
             m.piston_area_m2,
             format!("trace.columns.{name}"),
+            q,
         ),
-        (None, None) => (canon_col, canon_unit, None, name.to_string()),
-    };
+        (None, None) => (canon_col, canon_unit, None, name.to_string(), q),
+    })
+}
+
+fn find_column(
+    h: &dyn Header,
+    c: &DeviceSpec,
+    overrides: &[ColumnOverride],
+    name: &str,
+    required: bool,
+) -> Result<Option<Col>, DataError> {
+    let (col_name, unit, area, source, q) = mapping(c, overrides, name)
+        .ok_or_else(|| h.header_error(None, format!("internal: unknown quantity {name}")))?;
+    let canon_unit = CANONICAL.iter().find(|e| e.0 == name).map_or("", |e| e.2);
     let conv = column_units::conversion(q, unit, area)
-        .map_err(|m| csv.header_error(None, format!("{source}: {m}")))?;
-    match csv.column(col_name) {
+        .map_err(|m| h.header_error(None, format!("{source}: {m}")))?;
+    match h.column(col_name) {
         Some(index) => Ok(Some(Col { index, conv })),
         None if !required => Ok(None),
         None => {
             let mut msg = format!(
-                "missing column '{col_name}' ({} for {source}); the header has: {}",
+                "missing {} '{col_name}' ({} for {source}); {}: {}",
+                h.what(),
                 q.name(),
-                csv.headers_for_message()
+                h.holder(),
+                h.headers_for_message()
             );
             // Same stem, other unit: a wrong-units header. Say how to map it.
             let stem = col_name
                 .strip_suffix(canon_unit)
                 .filter(|s| s.ends_with('_'));
             if let Some(stem) = stem
-                && let Some(other) = csv
+                && let Some(other) = h
                     .headers()
                     .iter()
-                    .find(|h| h.starts_with(stem) && column_units::unit_suffix(q, h).is_some())
+                    .find(|x| x.starts_with(stem) && column_units::unit_suffix(q, x).is_some())
             {
                 let u = column_units::unit_suffix(q, other).unwrap_or("?");
                 msg = format!(
-                    "missing column '{col_name}': the trace has '{other}' in unit '{u}' instead; map it in the config: [trace.columns] {name} = {{ column = \"{other}\", unit = \"{u}\" }}, or on the command line: --column {name}={other}:{u}"
+                    "missing {} '{col_name}': the trace has '{other}' in unit '{u}' instead; map it in the config: [trace.columns] {name} = {{ column = \"{other}\", unit = \"{u}\" }}, or on the command line: --column {name}={other}:{u}",
+                    h.what()
                 );
             }
-            if csv.headers().iter().all(|h| h.parse::<f64>().is_ok()) {
+            if h.what() == "column" && h.headers().iter().all(|x| x.parse::<f64>().is_ok()) {
                 msg.push_str(" (the first line looks like data: is the header line missing?)");
             }
-            Err(csv.header_error(None, msg))
+            Err(h.header_error(None, msg))
         }
     }
+}
+
+/// Map every quantity to its column; `time`: the log's own time base, when it has one.
+fn layout(
+    h: &dyn Header,
+    c: &DeviceSpec,
+    ov: &[ColumnOverride],
+    need_reference: bool,
+    time: Option<Col>,
+) -> Result<Layout, DataError> {
+    let time = match time {
+        Some(t) => t,
+        None => find_column(h, c, ov, "time", true)?
+            .ok_or_else(|| h.header_error(None, "no time column".into()))?,
+    };
+    let n = c.sensors.len();
+    let mut force = [None; 4];
+    let mut valid = [None; 4];
+    for i in 0..n.min(4) {
+        if let Some(slot) = force.get_mut(i) {
+            *slot = find_column(h, c, ov, &format!("force_{}", i + 1), true)?;
+        }
+        if let Some(slot) = valid.get_mut(i) {
+            *slot = find_column(h, c, ov, &format!("force_{}_valid", i + 1), false)?;
+        }
+    }
+    Ok(Layout {
+        time,
+        force,
+        valid,
+        omega_in: find_column(h, c, ov, "omega_in", true)?
+            .ok_or_else(|| h.header_error(None, "no omega_in column".into()))?,
+        omega_out: find_column(h, c, ov, "omega_out", c.device.kind == DeviceKind::Clutch)?,
+        command: find_column(h, c, ov, "command", false)?,
+        temperature: find_column(h, c, ov, "temperature", false)?,
+        ambient: find_column(h, c, ov, "ambient", false)?,
+        torque_ref: find_column(h, c, ov, "torque_ref", need_reference)?,
+    })
+}
+
+impl Layout {
+    /// The columns in use and what each carries (for a columnar log).
+    fn uses(&self) -> Vec<ColumnUse> {
+        let mut u = vec![ColumnUse {
+            index: self.time.index,
+            kind: ColumnKind::Number,
+        }];
+        for f in self.force.iter().flatten() {
+            u.push(ColumnUse {
+                index: f.index,
+                kind: if f.conv.counts {
+                    ColumnKind::Counts
+                } else {
+                    ColumnKind::Number
+                },
+            });
+        }
+        for v in self.valid.iter().flatten() {
+            u.push(ColumnUse {
+                index: v.index,
+                kind: ColumnKind::Flag,
+            });
+        }
+        let numbers = [
+            Some(self.omega_in),
+            self.omega_out,
+            self.command,
+            self.temperature,
+            self.ambient,
+            self.torque_ref,
+        ];
+        for n in numbers.into_iter().flatten() {
+            u.push(ColumnUse {
+                index: n.index,
+                kind: ColumnKind::Number,
+            });
+        }
+        u
+    }
+}
+
+/// Open a columnar log and map it; the time check and resampler settings it leaves.
+fn open_log(
+    path: &str,
+    format: LogFormat,
+    c: &DeviceSpec,
+    need_reference: bool,
+    opts: &TraceOptions,
+) -> Result<(Input, Layout, Rows), SimError> {
+    let mut log = log_input::open(path, format)?;
+    let ov = opts.columns.as_slice();
+    let own_time = match log.own_time_unit() {
+        None => None,
+        Some(file_unit) => {
+            let (_, mapped_unit, _, source, q) = mapping(c, ov, "time")
+                .ok_or_else(|| SimError::Internal("no time quantity".into()))?;
+            // The unit the file states wins: it describes the master channel itself.
+            let (unit, source) = if file_unit.trim().is_empty() {
+                (mapped_unit, source)
+            } else {
+                (file_unit, "the file's time unit".to_string())
+            };
+            let conv = column_units::conversion(q, unit, None)
+                .map_err(|m| log_input::log_error(path, format!("{source}: {m}")))?;
+            Some(Col {
+                index: log.names().len(),
+                conv,
+            })
+        }
+    };
+    let layout = layout(&LogHeader(&*log), c, ov, need_reference, own_time)?;
+    let rows = log.start(
+        &layout.uses(),
+        Timing {
+            device_period_s: c.device.sample_period_s,
+            resample: opts.resample,
+            stated_period: opts.sample_period_s.is_some(),
+        },
+    )?;
+    let values = vec![None; log.names().len() + 1];
+    Ok((Input::Log { log, values }, layout, rows))
 }
 
 impl TraceReader {
@@ -270,10 +418,12 @@ impl TraceReader {
     }
 
     /// [`TraceReader::open`] with command-line [`TraceOptions`] (dialect, time base, column
-    /// overrides, resampling).
+    /// overrides, resampling). A `.mf4` or `.parquet` file is read as such
+    /// ([`LogFormat::of`]).
     ///
     /// # Errors
-    /// As [`TraceReader::open`], and the usage errors of [`TraceOptions::check`].
+    /// As [`TraceReader::open`], and the usage errors of [`TraceOptions::check`];
+    /// `--resample` without `--sample-period-s` for a trace with one time base.
     pub fn open_with(
         path: &str,
         c: &DeviceSpec,
@@ -282,45 +432,31 @@ impl TraceReader {
         opts: &TraceOptions,
     ) -> Result<Self, SimError> {
         opts.check(c)?;
-        let csv = CsvIn::open_with(path, opts.dialect)?;
-        let ov = opts.columns.as_slice();
-        let time = find_column(&csv, c, ov, "time", true)?
-            .ok_or_else(|| csv.header_error(None, "no time column".into()))?;
-        let n = c.sensors.len();
-        let mut force = [None; 4];
-        let mut valid = [None; 4];
-        for i in 0..n.min(4) {
-            if let Some(slot) = force.get_mut(i) {
-                *slot = find_column(&csv, c, ov, &format!("force_{}", i + 1), true)?;
+        let format = LogFormat::of(path);
+        let (input, layout, rows) = match format {
+            LogFormat::Csv => {
+                let csv = CsvIn::open_with(path, opts.dialect)?;
+                let layout = layout(&csv, c, &opts.columns, need_reference, None)?;
+                (Input::Csv(csv), layout, Rows::AsRecorded)
             }
-            if let Some(slot) = valid.get_mut(i) {
-                *slot = find_column(&csv, c, ov, &format!("force_{}_valid", i + 1), false)?;
-            }
-        }
-        let layout = Layout {
-            time,
-            force,
-            valid,
-            omega_in: find_column(&csv, c, ov, "omega_in", true)?
-                .ok_or_else(|| csv.header_error(None, "no omega_in column".into()))?,
-            omega_out: find_column(
-                &csv,
-                c,
-                ov,
-                "omega_out",
-                c.device.kind == DeviceKind::Clutch,
-            )?,
-            command: find_column(&csv, c, ov, "command", false)?,
-            temperature: find_column(&csv, c, ov, "temperature", false)?,
-            ambient: find_column(&csv, c, ov, "ambient", false)?,
-            torque_ref: find_column(&csv, c, ov, "torque_ref", need_reference)?,
+            _ => open_log(path, format, c, need_reference, opts)?,
         };
-        let period = opts.sample_period_s.unwrap_or(c.device.sample_period_s);
+        let resample = match rows {
+            Rows::AsRecorded => opts.resample,
+            Rows::OnDeviceTicks => None,
+        };
+        if resample.is_some() && opts.sample_period_s.is_none() {
+            return Err(SimError::Usage(
+                "--resample needs the trace's own period, --sample-period-s S (checked against its time stamps)".into(),
+            ));
+        }
+        let period = match rows {
+            Rows::AsRecorded => opts.sample_period_s.unwrap_or(c.device.sample_period_s),
+            Rows::OnDeviceTicks => c.device.sample_period_s,
+        };
         Ok(Self {
-            csv,
-            resampler: opts
-                .resample
-                .map(|m| Resampler::new(m, period, c.device.sample_period_s)),
+            input,
+            resampler: resample.map(|m| Resampler::new(m, period, c.device.sample_period_s)),
             layout,
             policy,
             time: TimeCheck::new(
@@ -341,12 +477,33 @@ impl TraceReader {
 
     /// File name as given.
     pub fn file(&self) -> &str {
-        self.csv.file()
+        match &self.input {
+            Input::Csv(csv) => csv.file(),
+            Input::Log { log, .. } => log.file(),
+        }
     }
 
-    /// The dialect the trace is read with.
-    pub fn dialect(&self) -> Dialect {
-        self.csv.dialect()
+    /// The dialect a CSV trace is read with (`None` for another format).
+    pub fn dialect(&self) -> Option<Dialect> {
+        match &self.input {
+            Input::Csv(csv) => Some(csv.dialect()),
+            Input::Log { .. } => None,
+        }
+    }
+
+    /// How an MDF4 or Parquet log is read (`None` for a CSV trace).
+    pub fn log_report(&self) -> Option<LogReport> {
+        match &self.input {
+            Input::Csv(_) => None,
+            Input::Log { log, .. } => Some(log.report()),
+        }
+    }
+
+    fn header_error(&self, column: Option<usize>, message: String) -> DataError {
+        match &self.input {
+            Input::Csv(csv) => csv.header_error(column, message),
+            Input::Log { log, .. } => LogHeader(&**log).header_error(column, message),
+        }
     }
 
     /// What resampling did, when it is on.
@@ -361,7 +518,10 @@ impl TraceReader {
 
     /// File length, when known, and bytes consumed (for progress).
     pub fn progress(&self) -> (Option<u64>, u64) {
-        (self.csv.len_bytes(), self.csv.bytes_read())
+        match &self.input {
+            Input::Csv(csv) => (csv.len_bytes(), csv.bytes_read()),
+            Input::Log { log, .. } => log.progress(),
+        }
     }
 
     /// Data rows read so far (good and skipped).
@@ -376,7 +536,10 @@ impl TraceReader {
 
     /// The line of a last row without line terminator, if any.
     pub fn unterminated_last_line(&self) -> Option<u64> {
-        self.csv.unterminated_last_line()
+        match &self.input {
+            Input::Csv(csv) => csv.unterminated_last_line(),
+            Input::Log { .. } => None,
+        }
     }
 
     /// Finish the time-stamp checks.
@@ -388,7 +551,7 @@ impl TraceReader {
         let time_col = self.layout.time.index;
         self.time
             .finish()
-            .map_err(|m| self.csv.header_error(Some(time_col), m))
+            .map_err(|m| self.header_error(Some(time_col), m))
     }
 
     fn skip(&mut self, e: DataError) -> Result<(), DataError> {
@@ -421,42 +584,88 @@ impl TraceReader {
         }
     }
 
+    /// The next row of the file parsed (a bad row: the inner error, skippable); `None` at the
+    /// end.
+    ///
+    /// # Errors
+    /// A log's own error (truncated, unsorted), which no row skipping can get past.
+    fn next_parsed(&mut self) -> Result<Option<Result<TraceSample, DataError>>, DataError> {
+        Ok(match &mut self.input {
+            Input::Csv(csv) => match csv.next_row() {
+                Ok(None) => None,
+                Ok(Some(row)) => Some(parse_row(&row, &self.layout)),
+                Err(e) => Some(Err(e)),
+            },
+            Input::Log { log, values } => {
+                if !log.next_row(values)? {
+                    return Ok(None);
+                }
+                let row = LogRow {
+                    values,
+                    log: &**log,
+                    line: self.rows_read + 1,
+                };
+                Some(parse_row(&row, &self.layout))
+            }
+        })
+    }
+
+    /// The error at the end of a file without a good row.
+    fn no_rows(&self) -> DataError {
+        if self.rows_read == 0 {
+            return match &self.input {
+                Input::Csv(csv) => DataError {
+                    file: csv.file().to_string(),
+                    line: Some(csv.header_line() + 1),
+                    column: None,
+                    header: None,
+                    message: "the trace has a header but no data rows".into(),
+                },
+                Input::Log { log, .. } => {
+                    log_input::log_error(log.file(), "the log has no rows".into())
+                }
+            };
+        }
+        // Every row was skipped: an empty result is not a success.
+        log_input::log_error(
+            self.file(),
+            format!(
+                "no good data row: all {} rows were bad and skipped{}",
+                self.rows_read,
+                self.skipped
+                    .first
+                    .first()
+                    .map_or(String::new(), |f| format!(" (first: {f})"))
+            ),
+        )
+    }
+
+    /// A located error about the time stamp of the row at `line`.
+    fn time_error(&self, line: u64, message: String) -> DataError {
+        let index = self.layout.time.index;
+        match &self.input {
+            Input::Csv(csv) => DataError {
+                file: csv.file().to_string(),
+                line: Some(line),
+                column: Some(index + 1),
+                header: csv.headers().get(index).cloned(),
+                message,
+            },
+            Input::Log { log, .. } => log_input::log_error(
+                log.file(),
+                format!("{}: time: {message}", log.row_location()),
+            ),
+        }
+    }
+
     /// The next good sample of the file as it is.
     fn next_trace_sample(&mut self) -> Result<Option<TraceSample>, DataError> {
         loop {
-            let parsed = match self.csv.next_row() {
-                Ok(None) => {
-                    if self.rows_read == 0 {
-                        let line = self.csv.header_line() + 1;
-                        return Err(DataError {
-                            file: self.csv.file().to_string(),
-                            line: Some(line),
-                            column: None,
-                            header: None,
-                            message: "the trace has a header but no data rows".into(),
-                        });
-                    }
-                    if self.good_rows == 0 {
-                        // Every row was skipped: an empty result is not a success.
-                        return Err(DataError {
-                            file: self.csv.file().to_string(),
-                            line: None,
-                            column: None,
-                            header: None,
-                            message: format!(
-                                "no good data row: all {} rows were bad and skipped{}",
-                                self.rows_read,
-                                self.skipped
-                                    .first
-                                    .first()
-                                    .map_or(String::new(), |f| format!(" (first: {f})"))
-                            ),
-                        });
-                    }
-                    return Ok(None);
+            let Some(parsed) = self.next_parsed()? else {
+                if self.good_rows == 0 {
+                    return Err(self.no_rows());
                 }
-                Ok(Some(row)) => parse_row(&row, &self.layout),
-                Err(e) => Err(e),
+                return Ok(None);
             };
             self.rows_read += 1;
             match parsed {
@@ -466,15 +675,10 @@ impl TraceReader {
                         return Ok(Some(s));
                     }
                     Err(msg) => {
-                        let e = DataError {
-                            file: self.csv.file().to_string(),
-                            line: Some(s.line),
-                            column: Some(self.layout.time.index + 1),
-                            header: self.csv.headers().get(self.layout.time.index).cloned(),
-                            message: msg,
-                        };
                         // A wrong period is a unit error of the whole file, never skippable.
-                        if e.message.contains("wrong time unit") {
+                        let fatal = msg.contains("wrong time unit");
+                        let e = self.time_error(s.line, msg);
+                        if fatal {
                             return Err(e);
                         }
                         self.skip(e)?;
@@ -487,20 +691,23 @@ impl TraceReader {
     }
 }
 
-fn value(row: &Row<'_>, c: Col) -> Result<f64, DataError> {
+#[inline]
+fn value(row: &impl Cells, c: Col) -> Result<f64, DataError> {
     Ok(c.conv.apply(row.required_f64(c.index)?))
 }
 
-fn optional(row: &Row<'_>, c: Option<Col>) -> Result<Option<f64>, DataError> {
+#[inline]
+fn optional(row: &impl Cells, c: Option<Col>) -> Result<Option<f64>, DataError> {
     match c {
         None => Ok(None),
         Some(c) => Ok(row.f64(c.index)?.map(|v| c.conv.apply(v))),
     }
 }
 
-fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
+#[inline]
+fn parse_row(row: &impl Cells, l: &Layout) -> Result<TraceSample, DataError> {
     let mut s = TraceSample {
-        line: row.line,
+        line: row.line(),
         t_s: value(row, l.time)?,
         force_valid: [true; 4],
         omega_in_rad_s: value(row, l.omega_in)?,
@@ -518,29 +725,19 @@ fn parse_row(row: &Row<'_>, l: &Layout) -> Result<TraceSample, DataError> {
         .zip(l.force.iter().zip(&l.valid))
     {
         if let Some(vc) = vc {
-            // The usual spellings straight from the bytes (no allocation); anything else
-            // (blanks to trim, other words) through the trimmed text.
-            *valid = match row.bytes(vc.index) {
-                b"1" => true,
-                b"0" => false,
-                _ => match row.text(vc.index) {
-                    "1" | "1.0" | "true" => true,
-                    "0" | "0.0" | "false" => false,
-                    other => {
-                        return Err(row.error(
-                            vc.index,
-                            format!("valid bit must be 0 or 1, got '{}'", echo(other)),
-                        ));
-                    }
-                },
-            };
+            *valid = row.valid_bit(vc.index)?;
         }
         let Some(fc) = fc else { continue };
         let raw = match row.f64(fc.index)? {
             Some(v) => v,
             // An empty force cell is a missing reading: only allowed when the channel says so.
             None if !*valid => continue,
-            None => return Err(row.error(fc.index, "empty cell where a number is required".into())),
+            None => {
+                return Err(row.error(
+                    fc.index,
+                    format!("{} where a number is required", row.empty()),
+                ));
+            }
         };
         *slot = if fc.conv.counts {
             if raw.fract() != 0.0 || raw < f64::from(i32::MIN) || raw > f64::from(i32::MAX) {

@@ -130,6 +130,10 @@ fn drum_and_band_examples_check_synthesise_replay_compare_and_fit() {
         );
         let (code, _, err) = run_json(&["compare", &est, "-c", &cfg]);
         assert_eq!(code, 0, "{err}");
+        let svg = d.join("estimate.svg").display().to_string();
+        let (code, _, err) = run(&["plot", &est, "-o", &svg]);
+        assert_eq!(code, 0, "{err}");
+        assert!(std::fs::read_to_string(&svg).unwrap().contains("<svg"));
         let fitted = d.join("fitted.toml").display().to_string();
         let (code, js, err) = run_json(&["fit", "-c", &cfg, &tr, "-o", &fitted]);
         assert_eq!(code, 0, "{err}");

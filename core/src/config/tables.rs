@@ -161,12 +161,12 @@ impl<const NF: usize, const NB: usize, const NT: usize, const NV: usize, K: Axis
         friction: FrictionConfig<NT, NV>,
         axis: LeverAxis,
     ) -> Option<Self> {
-        let fits = match (K::FIXED, axis) {
+        let fits = matches!(
+            (K::FIXED, axis),
             (None, _)
-            | (Some(LeverAxis::Bedding), LeverAxis::Bedding)
-            | (Some(LeverAxis::Mu), LeverAxis::Mu) => true,
-            _ => false,
-        };
+                | (Some(LeverAxis::Bedding), LeverAxis::Bedding)
+                | (Some(LeverAxis::Mu), LeverAxis::Mu)
+        );
         if fits {
             Some(Self {
                 radius,

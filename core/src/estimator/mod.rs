@@ -10,6 +10,13 @@
 //! reference torque ─► adaptation k (bounded; frozen on faults)
 //! ```
 //!
+//! A contact whose torque is not linear in μ (drum shoes, bands, cone engagement;
+//! [`LeverAxis::Mu`](crate::config::LeverAxis)) looks its lever arm up over μ instead of
+//! bedding, r(μ) = g(μ)/μ, at each μ the sample uses; its ± comes from the torque at both ends
+//! of μ's tolerance, and past the table's last μ the estimate flags
+//! [`Flags::SELF_LOCKING`]. The adaptation's k then scales the torque (T = k·F·g(μ)), not μ
+//! inside g.
+//!
 //! The step is O(1), integer-only, allocation-free and cannot panic: every product that could
 //! leave its format saturates and raises [`Flags::ARITHMETIC_SATURATED`].
 //!

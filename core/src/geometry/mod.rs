@@ -22,8 +22,9 @@
 //! | [`PolygonPad`], simple, convex or not | ∫r dA / A | A / ∫dA/r | Green's theorem, closed form per edge |
 //! | cone of half-angle α ([`ConeAngle`]) | r_e / sin α | r_e / sin α | [pub: Shigley ch. 16] |
 //!
-//! The two button-pad models differ by 1.6–3.4 % of r_e at R/e = 0.1…0.5 (see [`button`]'s
-//! docs); they are kept as separate models and never tuned to agree.
+//! The published table's r_e lies below the integrated model's at R/e = 0.1…0.5 by 1.6–3.3 %
+//! for bedded linings and 1.8–9.1 % for new ones (see [`button`]'s docs); they are kept as
+//! separate models and never tuned to agree.
 //!
 //! The fixed-point friction-radius table reproduces [`Contact::lever_arm`] within 9.7·10⁻⁶
 //! relative over radii of 10 mm to 1 m, all bedding values and clamp forces to 200 kN

@@ -84,7 +84,7 @@ pub fn with_contact<T>(
         ))
     };
     match c.shape {
-        ShapeSpec::DrumShoes | ShapeSpec::Band => Err(BuildError::new(
+        ShapeSpec::DrumShoes | ShapeSpec::Band | ShapeSpec::BlockShoes => Err(BuildError::new(
             "contact.shape",
             format!(
                 "shape '{}' has no flat or conical face: its torque is not linear in μ",
@@ -174,7 +174,8 @@ mod tests {
 
     #[test]
     fn annulus_check_vector() {
-        // [calc] REFERENCES.md: Ro = 100 mm, Ri = 60 mm → r_uw = 80.000 mm, r_up = 81.667 mm.
+        // [calc: r_uw = (Ro + Ri)/2, r_up = (2/3)(Ro³ − Ri³)/(Ro² − Ri²), Shigley ch. 16]: Ro = 100 mm,
+        // Ri = 60 mm → r_uw = 80.000 mm, r_up = 81.667 mm.
         let mut c = contact(ShapeSpec::Annulus);
         c.inner_radius_m = Some(0.06);
         c.outer_radius_m = Some(0.10);
@@ -201,7 +202,7 @@ mod tests {
     #[test]
     fn button_models_are_both_offered() {
         // [mem: Shigley ch. 16, after Fazekas] published δ(R/e = 0.3) = 0.957; [calc]
-        // REFERENCES.md integrated p ∝ 1/r: 0.9885 — kept apart, never tuned to agree.
+        // [calc: ∫p·r dA / ∫p dA with p ∝ 1/r] integrated: 0.9885 — kept apart, never tuned to agree.
         let mut c = contact(ShapeSpec::Button);
         c.pad_radius_m = Some(0.03);
         c.pad_centre_radius_m = Some(0.1);

@@ -9,15 +9,18 @@
 //! interpolates linearly; the largest relative difference from the model, found here by
 //! sampling every segment, is added to the radius tolerance so the ± covers it.
 
+use clampwise_core::geometry::ConeAngle;
 use clampwise_core::geometry::brake::{
-    BrakeError, BrakeParameter, DifferentialBand, LeverEnd, Mounting, PivotedShoe, ShoeAction,
-    ShoeGeometry, ShoePair, SimpleBand, TightEndMoment, TorqueGain,
+    BlockGeometry, BlockShoe, BrakeError, BrakeParameter, ConeEngagement, ConePhase,
+    DifferentialBand, LeverEnd, Mounting, PivotedShoe, ShoeAction, ShoeGeometry, ShoePair,
+    SimpleBand, TightEndMoment, TorqueGain,
 };
 
+use super::contact::{geometry_error, with_contact};
 use super::{BuildError, RadiusTable};
 use crate::schema::{
-    BandKindSpec, BandSpec, ContactSpec, DrumShoesSpec, LeverEndSpec, MountingSpec, ShoeActionSpec,
-    TightEndSpec,
+    BandKindSpec, BandSpec, BlockShoesSpec, ConePhaseSpec, ContactSpec, DrumShoesSpec,
+    LeverEndSpec, MountingSpec, ShapeSpec, ShoeActionSpec, TightEndSpec,
 };
 
 /// μ breakpoints of a gain table (within the host's capacity of the radius table's second
@@ -38,10 +41,16 @@ pub enum GainModel {
     Shoe(PivotedShoe),
     /// Two pivoted shoes driven by the one actuating force.
     ShoePair(ShoePair<PivotedShoe, PivotedShoe>),
+    /// One block shoe.
+    Block(BlockShoe),
+    /// Two block shoes driven by the one actuating force.
+    BlockPair(ShoePair<BlockShoe, BlockShoe>),
     /// A simple band brake.
     SimpleBand(SimpleBand),
     /// A differential band brake.
     DifferentialBand(DifferentialBand),
+    /// A cone with the axial friction term.
+    Cone(ConeEngagement),
 }
 
 /// What the gain table covers and how closely.
@@ -75,6 +84,55 @@ fn brake_key(table: &str, e: &BrakeError) -> String {
     format!("contact.{table}.{key}")
 }
 
+fn action(a: ShoeActionSpec) -> ShoeAction {
+    match a {
+        ShoeActionSpec::Leading => ShoeAction::Leading,
+        ShoeActionSpec::Trailing => ShoeAction::Trailing,
+    }
+}
+
+fn blocks(d: &BlockShoesSpec) -> Result<GainModel, BuildError> {
+    let err = |e: BrakeError| BuildError::new(brake_key("block_shoes", &e), e);
+    let geometry = BlockGeometry {
+        drum_radius_m: d.drum_radius_m,
+        actuation_arm_m: d.actuation_arm_m,
+        normal_arm_m: d.normal_arm_m,
+        friction_offset_m: d.friction_offset_m,
+    };
+    let block = |a: ShoeActionSpec| BlockShoe::new(geometry, action(a)).map_err(err);
+    match d.shoes.as_slice() {
+        [one] => Ok(GainModel::Block(block(*one)?)),
+        [first, second] => Ok(GainModel::BlockPair(ShoePair::new(
+            block(*first)?,
+            block(*second)?,
+        ))),
+        other => Err(BuildError::new(
+            "contact.block_shoes.shoes",
+            format!("needs one or two shoes, has {}", other.len()),
+        )),
+    }
+}
+
+/// A cone's engagement model at its bedded (uniform-wear) radius: the contact's lever arm
+/// r_e/sin α times sin α.
+fn cone(c: &ContactSpec, phase: ConePhaseSpec) -> Result<GainModel, BuildError> {
+    let alpha = c
+        .half_angle_deg
+        .ok_or_else(|| {
+            BuildError::new("contact.shape", "shape 'cone' needs contact.half_angle_deg")
+        })?
+        .to_radians();
+    let angle = ConeAngle::new(alpha).map_err(|e| geometry_error(c, &e))?;
+    let arm = with_contact(c, |k| k.lever_arm(1.0).map_err(|e| geometry_error(c, &e)))?;
+    let phase = match phase {
+        ConePhaseSpec::Engaging => ConePhase::Engaging,
+        ConePhaseSpec::Withdrawing => ConePhase::Withdrawing,
+    };
+    ConeEngagement::new(angle, arm * libm::sin(alpha), phase)
+        .map(GainModel::Cone)
+        .map_err(|e| BuildError::new("contact.cone_engagement", e))
+}
+
 fn shoes(d: &DrumShoesSpec) -> Result<GainModel, BuildError> {
     let err = |e: BrakeError| BuildError::new(brake_key("drum_shoes", &e), e);
     let geometry = ShoeGeometry {
@@ -89,13 +147,7 @@ fn shoes(d: &DrumShoesSpec) -> Result<GainModel, BuildError> {
         MountingSpec::External => Mounting::External,
         MountingSpec::Internal => Mounting::Internal,
     };
-    let shoe = |a: ShoeActionSpec| {
-        let action = match a {
-            ShoeActionSpec::Leading => ShoeAction::Leading,
-            ShoeActionSpec::Trailing => ShoeAction::Trailing,
-        };
-        PivotedShoe::new(geometry, mounting, action).map_err(err)
-    };
+    let shoe = |a: ShoeActionSpec| PivotedShoe::new(geometry, mounting, action(a)).map_err(err);
     match d.shoes.as_slice() {
         [one] => Ok(GainModel::Shoe(shoe(*one)?)),
         [first, second] => Ok(GainModel::ShoePair(ShoePair::new(
@@ -170,7 +222,8 @@ fn kind_name(k: BandKindSpec) -> &'static str {
 }
 
 impl GainModel {
-    /// The model of a `drum_shoes` or `band` contact.
+    /// The model of a `drum_shoes`, `block_shoes` or `band` contact, or of a cone with
+    /// `cone_engagement`.
     ///
     /// # Errors
     /// [`BuildError`] naming the key the model rejects or that is missing.
@@ -181,11 +234,26 @@ impl GainModel {
                 format!("shape '{}' needs [contact.{table}]", c.shape.name()),
             )
         };
-        match (c.drum_shoes.as_ref(), c.band.as_ref()) {
-            (Some(d), _) => shoes(d),
-            (None, Some(b)) => band(b),
-            (None, None) if c.shape == crate::schema::ShapeSpec::Band => Err(missing("band")),
-            (None, None) => Err(missing("drum_shoes")),
+        match c.shape {
+            ShapeSpec::DrumShoes => {
+                shoes(c.drum_shoes.as_ref().ok_or_else(|| missing("drum_shoes"))?)
+            }
+            ShapeSpec::BlockShoes => blocks(
+                c.block_shoes
+                    .as_ref()
+                    .ok_or_else(|| missing("block_shoes"))?,
+            ),
+            ShapeSpec::Band => band(c.band.as_ref().ok_or_else(|| missing("band"))?),
+            _ => match c.cone_engagement {
+                Some(phase) if c.shape == ShapeSpec::Cone => cone(c, phase),
+                _ => Err(BuildError::new(
+                    "contact.shape",
+                    format!(
+                        "shape '{}' is linear in μ: no torque-gain model",
+                        c.shape.name()
+                    ),
+                )),
+            },
         }
     }
 
@@ -193,8 +261,11 @@ impl GainModel {
         match self {
             Self::Shoe(m) => m,
             Self::ShoePair(m) => m,
+            Self::Block(m) => m,
+            Self::BlockPair(m) => m,
             Self::SimpleBand(m) => m,
             Self::DifferentialBand(m) => m,
+            Self::Cone(m) => m,
         }
     }
 
@@ -277,7 +348,7 @@ impl GainModel {
             None => self.default_end(locking.map_or(1.0, |l| (0.9 * l).min(1.0))),
         };
         let key = "contact.gain_mu_max";
-        if locking.is_some_and(|l| mu_end >= l) || !(mu_end > 0.0) {
+        if locking.is_some_and(|l| mu_end >= l) || mu_end.is_nan() || mu_end <= 0.0 {
             return Err(BuildError::new(
                 key,
                 format!(
@@ -371,7 +442,7 @@ mod tests {
             info.interpolation_error > 0.0 && info.interpolation_error < 0.01,
             "{info:?}"
         );
-        assert_eq!(info.mu_end, 0.6);
+        assert!((info.mu_end - 0.6).abs() < 1e-15);
     }
 
     #[test]
@@ -394,5 +465,47 @@ mod tests {
         }
         let e = GainModel::from_spec(&c).unwrap_err();
         assert_eq!(e.key, "contact.drum_shoes.arc_end_deg", "{e}");
+    }
+
+    #[test]
+    fn block_shoes_follow_the_lever_balance() {
+        // [calc: N = F·a/(b ∓ μ·c), T = μ·N·r — the short-shoe lever balance, Shigley ch. 16]
+        let mut c = ContactSpec::of_shape(ShapeSpec::BlockShoes, 1);
+        c.block_shoes = Some(BlockShoesSpec {
+            drum_radius_m: 0.2,
+            actuation_arm_m: 0.6,
+            normal_arm_m: 0.2,
+            friction_offset_m: 0.05,
+            shoes: vec![ShoeActionSpec::Leading, ShoeActionSpec::Trailing],
+        });
+        let model = GainModel::from_spec(&c).unwrap();
+        let mu = 0.3;
+        let lead = mu * 0.6 / (0.2 - mu * 0.05) * 0.2;
+        let trail = mu * 0.6 / (0.2 + mu * 0.05) * 0.2;
+        assert!((model.torque_per_force(mu).unwrap() - (lead + trail)).abs() < 1e-12);
+        // Locks where the leading block's denominator vanishes: μ = b/c = 4.
+        assert_eq!(model.locking_coefficient(), Some(4.0));
+    }
+
+    #[test]
+    fn an_engaging_cone_divides_by_sin_alpha_plus_mu_cos_alpha() {
+        // [pub: Shigley ch. 16, cone clutch, uniform wear] r_e = (Ro + Ri)/2 projected; with
+        // the axial friction of engagement F = N·(sin α + μ·cos α), so g = μ·r_e/(sin α + μ cos α).
+        let mut c = ContactSpec::of_shape(ShapeSpec::Cone, 1);
+        c.inner_radius_m = Some(0.08);
+        c.outer_radius_m = Some(0.10);
+        c.half_angle_deg = Some(12.0);
+        c.cone_engagement = Some(ConePhaseSpec::Engaging);
+        assert!(c.is_nonlinear_in_mu());
+        let model = GainModel::from_spec(&c).unwrap();
+        let (s, k) = (12f64.to_radians().sin(), 12f64.to_radians().cos());
+        let mu = 0.3;
+        let want = mu * 0.09 / (s + mu * k);
+        assert!((model.torque_per_force(mu).unwrap() - want).abs() < 1e-12 * want.max(1.0));
+        // Withdrawing, it holds itself in at μ = tan α [pub: Shigley ch. 16].
+        c.cone_engagement = Some(ConePhaseSpec::Withdrawing);
+        let held = GainModel::from_spec(&c).unwrap();
+        let lock = held.locking_coefficient().unwrap();
+        assert!((lock - 12f64.to_radians().tan()).abs() < 1e-12);
     }
 }

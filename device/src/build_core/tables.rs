@@ -92,7 +92,7 @@ impl CoreTables {
         let mu_table = MuTable::from_slices(&mu.temperature_c, &mu.slip_speed_rad_s, &mu.values)
             .map_err(|e| mu_error(c, &e))?;
         let forces = &c.radius_table.force_n;
-        if c.contact.shape.is_nonlinear_in_mu() {
+        if c.contact.is_nonlinear_in_mu() {
             let model = GainModel::from_spec(&c.contact)?;
             let (radius, info) = model.table(forces, c.contact.gain_mu_max)?;
             let arm = |mu: f64| {

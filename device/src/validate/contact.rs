@@ -20,12 +20,18 @@ pub(super) fn check(c: &DeviceSpec, v: &mut Validator) {
         ShapeSpec::Annulus | ShapeSpec::Sector | ShapeSpec::Cone => radial(ct, v),
         ShapeSpec::Button => button(ct, v),
         ShapeSpec::Polygon => polygon(ct, v),
-        ShapeSpec::DrumShoes | ShapeSpec::Band => drum_or_band(ct, v),
+        ShapeSpec::DrumShoes | ShapeSpec::Band | ShapeSpec::BlockShoes => drum_or_band(ct, v),
     }
-    if !ct.shape.is_nonlinear_in_mu() {
+    if !ct.shape.is_drum_or_band() {
         v.unused("contact.drum_shoes", &ct.drum_shoes, ct.shape);
+        v.unused("contact.block_shoes", &ct.block_shoes, ct.shape);
         v.unused("contact.band", &ct.band, ct.shape);
+    }
+    if !ct.is_nonlinear_in_mu() {
         v.unused("contact.gain_mu_max", &ct.gain_mu_max, ct.shape);
+    }
+    if ct.shape != ShapeSpec::Cone {
+        v.unused("contact.cone_engagement", &ct.cone_engagement, ct.shape);
     }
     cone_release(c, v);
 }

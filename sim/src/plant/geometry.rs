@@ -93,7 +93,7 @@ pub fn effective_radii(c: &ContactSpec) -> Result<(f64, f64), String> {
     let need = |v: Option<f64>, k: &str| v.ok_or_else(|| format!("contact.{k} missing"));
     // Returns (∫p·r dA, ∫p dA) for both pressure models.
     let moments: [(f64, f64); 2] = match c.shape {
-        ShapeSpec::DrumShoes | ShapeSpec::Band => {
+        ShapeSpec::DrumShoes | ShapeSpec::Band | ShapeSpec::BlockShoes => {
             return Err(format!(
                 "contact.shape '{}' has no flat or conical face",
                 c.shape.name()
@@ -224,7 +224,8 @@ mod tests {
 
     #[test]
     fn annulus_and_sector_check_vector() {
-        // [calc] REFERENCES.md: Ro = 100 mm, Ri = 60 mm → uniform wear 80.000 mm, uniform
+        // [calc: r_uw = (Ro + Ri)/2, r_up = (2/3)(Ro³ − Ri³)/(Ro² − Ri²), Shigley ch. 16]: Ro = 100 mm,
+        // Ri = 60 mm → uniform wear 80.000 mm, uniform
         // pressure 81.667 mm; the sector angle cancels out [pub: Shigley ch. 16].
         for (shape, angle) in [(ShapeSpec::Annulus, None), (ShapeSpec::Sector, Some(37.0))] {
             let mut c = contact(shape);
@@ -257,7 +258,7 @@ mod tests {
 
     #[test]
     fn button_integrated_model() {
-        // [calc] REFERENCES.md: direct integration of p ∝ 1/r over a circle gives δ = r_e/e =
+        // [calc: ∫p·r dA / ∫p dA with p ∝ 1/r over the circular pad] direct integration gives δ = r_e/e =
         // 0.9987, 0.9949, 0.9885, 0.9791, 0.9665 for R/e = 0.1 … 0.5 (4 digits). Uniform
         // pressure: mean of r over the circle.
         let expected = [0.9987, 0.9949, 0.9885, 0.9791, 0.9665];

@@ -180,7 +180,7 @@ impl Plant {
     /// # Errors
     /// A message when the geometry cannot be integrated.
     pub fn new(c: &DeviceSpec, opts: PlantOptions) -> Result<Self, String> {
-        let gain = if c.contact.shape.is_nonlinear_in_mu() {
+        let gain = if c.contact.is_nonlinear_in_mu() {
             Some(crate::build_core::GainModel::from_spec(&c.contact).map_err(|e| e.to_string())?)
         } else {
             None

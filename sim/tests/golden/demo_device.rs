@@ -6,7 +6,7 @@
 pub const DEVICE_CHANNELS: usize = 3;
 /// Force breakpoints of the friction-radius table.
 pub const DEVICE_RADIUS_FORCES: usize = 2;
-/// Bedding breakpoints of the friction-radius table.
+/// Second-axis breakpoints of the friction-radius table (bedding, or μ for a drum or band).
 pub const DEVICE_RADIUS_BEDDINGS: usize = 2;
 /// Temperature breakpoints of the μ table.
 pub const DEVICE_MU_TEMPERATURES: usize = 6;
@@ -18,11 +18,12 @@ pub type DeviceTables = ::clampwise_core::config::Tables<
     DEVICE_RADIUS_BEDDINGS,
     DEVICE_MU_TEMPERATURES,
     DEVICE_MU_SPEEDS,
+    ::clampwise_core::config::ByBedding,
 >;
 /// The device configuration's type: its tables and its channels.
 pub type Device = ::clampwise_core::config::DeviceConfig<DeviceTables, DEVICE_CHANNELS>;
 /// `DeviceConfig::checksum` of [`DEVICE`], computed on the host from demo-hoist-brake.toml.
-pub const DEVICE_CHECKSUM: u32 = 0xa24abbe0;
+pub const DEVICE_CHECKSUM: u32 = 0x4b31d3df;
 /// The device configuration (demo-hoist-brake.toml), evaluated at compile time.
 #[allow(clippy::unreadable_literal, unused_imports)]
 pub const DEVICE: Device = {
