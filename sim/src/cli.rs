@@ -64,7 +64,7 @@ impl Command {
             Self::Synth(a) => a.out == "-",
             Self::Compare(a) => dash(&a.regions_csv),
             Self::Fit(a) => dash(&a.out) || dash(&a.coverage_csv) || dash(&a.plot),
-            Self::Tables(a) => dash(&a.emit),
+            Self::Tables(a) => dash(&a.emit) || dash(&a.emit_c),
             Self::Plot(a) => a.out == "-",
             Self::Demo(_) | Self::Check(_) | Self::Report(_) => false,
         }
@@ -261,6 +261,10 @@ pub struct TablesArgs {
     /// firmware, the source its `build.rs` writes (`-` for standard output).
     #[arg(long)]
     pub emit: Option<String>,
+    /// Write the device as C source for the C API: a `const cw_device_desc` of raw bits with
+    /// its checksum, and the starting state record (`-` for standard output).
+    #[arg(long)]
+    pub emit_c: Option<String>,
 }
 
 /// `synth`.

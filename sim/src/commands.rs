@@ -477,7 +477,9 @@ pub fn fit(a: &FitArgs, quiet: bool) -> Result<Outcome, SimError> {
 /// # Errors
 /// Config and I/O errors.
 pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
-    let outputs: Vec<(&str, &str)> = a.emit.iter().map(|p| ("--emit", p.as_str())).collect();
+    let outputs: Vec<(&str, &str)> = (a.emit.iter().map(|p| ("--emit", p.as_str())))
+        .chain(a.emit_c.iter().map(|p| ("--emit-c", p.as_str())))
+        .collect();
     refuse_overwriting_inputs(&[("config", path_str(&a.config))], &outputs)?;
     let (cfg, core) = load(&a.config)?;
     let t = &core.tables;
@@ -487,6 +489,12 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
             .map_err(|e| SimError::Internal(format!("{}: {e}", cfg.file)))?;
         write_file(p, source.as_bytes())?;
         human.push_str(&format!("  wrote {p} (Rust source for the firmware)\n"));
+    }
+    if let Some(p) = &a.emit_c {
+        let source = emit::c_source(&core, &emit::origin_name(&cfg.file))
+            .map_err(|e| SimError::Internal(format!("{}: {e}", cfg.file)))?;
+        write_file(p, source.as_bytes())?;
+        human.push_str(&format!("  wrote {p} (C source for the C API)\n"));
     }
     Ok(Outcome::ok(
         human,
@@ -502,6 +510,7 @@ pub fn tables(a: &TablesArgs) -> Result<Outcome, SimError> {
                    "slip_speed_rad_s": t.mu.y_breakpoints().iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>(),
                    "values": t.mu.rows().map(|r| r.iter().map(|v| v.to_num::<f64>()).collect::<Vec<_>>()).collect::<Vec<_>>()},
             "emitted": a.emit,
+            "emitted_c": a.emit_c,
         }),
     ))
 }

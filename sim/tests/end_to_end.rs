@@ -471,6 +471,30 @@ fn text_without_reference() -> String {
 }
 
 #[test]
+fn tables_emit_c_writes_the_device_with_its_checksum() {
+    let d = scratch("tables-c");
+    let cfg = write(&d, "demo-hoist-brake.toml", DEMO);
+    let c = d.join("device.c").display().to_string();
+    let (code, out, err) = run(&["tables", "-c", &cfg, "--emit-c", &c]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("C source for the C API"), "{out}");
+    let emitted = std::fs::read_to_string(&c).unwrap();
+    // The checksum the Rust source carries (the golden file) is the one the C source carries.
+    assert!(
+        emitted.contains(&format!(
+            ".checksum = UINT32_C(0x{:08x}),",
+            golden_device::DEVICE_CHECKSUM
+        )),
+        "{emitted}"
+    );
+    assert!(emitted.contains(".channels = 3,"));
+    assert!(emitted.contains("const uint32_t clampwise_device_desc_initial_record_len = 0;"));
+    let (code, stdout, err) = run(&["-q", "tables", "-c", &cfg, "--emit-c", "-"]);
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(stdout, emitted, "the same source on standard output");
+}
+
+#[test]
 fn tables_print_emit_and_match_the_golden_file() {
     let d = scratch("tables");
     let cfg = write(&d, "demo-hoist-brake.toml", DEMO);

@@ -81,6 +81,8 @@ fn other_commands_refuse_to_write_over_their_inputs() {
     assert_refused(code, &err, &cfg, &cfg_text);
     let (code, _, err) = run(&["-q", "tables", "-c", &cfg, "--emit", &cfg]);
     assert_refused(code, &err, &cfg, &cfg_text);
+    let (code, _, err) = run(&["-q", "tables", "-c", &cfg, "--emit-c", &cfg]);
+    assert_refused(code, &err, &cfg, &cfg_text);
     let (code, _, err) = run(&["-q", "synth", "-c", &cfg, "-o", &cfg, "--rows", "10"]);
     assert_refused(code, &err, &cfg, &cfg_text);
     let truth = write(&d, "truth.toml", &cfg_text);

@@ -148,7 +148,11 @@ impl ActuatorLag {
         #[allow(clippy::cast_sign_loss)]
         let tau_fs_q32 = (tau as u128) * (sample_rate_hz as u128);
         // x = T/τ = 1/(τ·f_s) in Q32.
-        let x_q32 = (1u128 << 64) / tau_fs_q32;
+        // The divisions below are checked although no divisor can be zero: `new` runs at start-up
+        // in a C build, whose link-time check admits no division-by-zero panic path.
+        let Some(x_q32) = (1u128 << 64).checked_div(tau_fs_q32) else {
+            return Self::NONE;
+        };
         if x_q32 > 16 << 32 {
             return Self {
                 alpha_q31: i32::MAX,
@@ -160,7 +164,10 @@ impl ActuatorLag {
         let mut term: u128 = 1 << 64;
         let mut k: u128 = 1;
         while k < 120 {
-            term = term * x_q32 / (k << 32);
+            term = match (term * x_q32).checked_div(k << 32) {
+                Some(t) => t,
+                None => 0,
+            };
             if term == 0 {
                 break;
             }
@@ -168,7 +175,10 @@ impl ActuatorLag {
             k += 1;
         }
         // e^(−x) in Q64 (sum ≥ 2⁶⁴, so the quotient is at most 2⁶⁴).
-        let decay_q64 = u128::MAX / sum;
+        let decay_q64 = match u128::MAX.checked_div(sum) {
+            Some(d) => d,
+            None => 1 << 64,
+        };
         let decay_q64 = if decay_q64 > 1 << 64 {
             1 << 64
         } else {

@@ -281,8 +281,12 @@ fn take<const N: usize>(bytes: &[u8; RECORD_LEN], at: usize) -> [u8; N] {
 }
 
 fn put(bytes: &mut [u8; RECORD_LEN], at: usize, v: &[u8]) {
+    // Byte by byte rather than `copy_from_slice`: no length-mismatch panic path when the
+    // optimiser keeps this function out of line (a C build of the core checks for any).
     if let Some(dst) = bytes.get_mut(at..at.saturating_add(v.len())) {
-        dst.copy_from_slice(v);
+        for (d, s) in dst.iter_mut().zip(v) {
+            *d = *s;
+        }
     }
 }
 

@@ -94,7 +94,7 @@ use super::{EmitError, err};
 /// The configuration keeps only the two band edges (`v_s ± ⌈h/2⌉`, the lower one at least one
 /// LSB), so `h` is found again as `2·⌈h/2⌉` or one less; the candidate is accepted only when
 /// [`FrictionConfig::from_bits`] rebuilds `f` exactly.
-fn friction_band<const NT: usize, const NV: usize>(
+pub(super) fn friction_band<const NT: usize, const NV: usize>(
     f: &FrictionConfig<NT, NV>,
 ) -> Result<(RadPerSec, RadPerSec), EmitError> {
     let v_s = f.stick_speed();

@@ -5,6 +5,7 @@
 //! | [`device`] | the core's whole `DeviceConfig` as `const` items over raw bits, with `DEVICE_CHECKSUM` |
 //! | [`record`] | the state record a replay starts from (`DEVICE_INITIAL_RECORD`) |
 //! | [`summary`] | the friction-radius and μ tables as text, for `clampwise tables` |
+//! | [`c_source`](mod@c_source) | the configuration as a C `cw_device_desc` initializer for the C API, for `clampwise tables --emit-c` |
 //!
 //! [`device_source`] puts the first two together; a firmware's `build.rs` and
 //! `clampwise tables --emit` both write it, so the simulator and the firmware hold the same
@@ -25,6 +26,7 @@
 //! # std::fs::remove_dir_all(&dir).ok();
 //! ```
 
+pub mod c_source;
 pub mod device;
 pub mod record;
 pub mod summary;
@@ -32,6 +34,7 @@ pub mod summary;
 use std::fmt;
 use std::path::Path;
 
+pub use c_source::c_source;
 pub use device::device_config_source;
 pub use summary::human;
 
