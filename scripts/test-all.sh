@@ -27,4 +27,7 @@ cargo test -p clampwise-sim --release --features parquet --locked
 if [ -x firmware-example/ci.sh ]; then
     firmware-example/ci.sh
 fi
+# The C API: header current and strict-C99 clean, C host test and C firmware in QEMU bit for
+# bit with the host replay, link-time panic check, sizes.
+bash capi/ci.sh
 echo "clampwise: all tests passed"
