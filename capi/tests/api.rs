@@ -213,8 +213,13 @@ fn new_estimator() -> Box<cw_estimator> {
 /// A device description that `cw_device_init` accepts: the stick/slip band width is the one
 /// of the two candidates whose checksum matches.
 fn accepted_desc(dev: &mut cw_device) -> cw_device_desc {
-    let ChannelDevice::Three(cfg) = &demo().device else {
-        unreachable!("the demo has three channels")
+    accepted_desc_of(&demo(), dev)
+}
+
+/// [`accepted_desc`] for any three-channel device.
+fn accepted_desc_of(core: &CoreDevice, dev: &mut cw_device) -> cw_device_desc {
+    let ChannelDevice::Three(cfg) = &core.device else {
+        unreachable!("a three-channel device")
     };
     let mut desc = desc_of(cfg);
     let first = unsafe { cw_device_init(dev, &desc) };
@@ -377,6 +382,42 @@ fn every_error_path_returns_its_status() {
             cw_status::CW_ERR_RECORD_FORMAT
         );
     }
+}
+
+#[test]
+fn a_record_saved_for_another_device_is_refused_by_its_own_status() {
+    // The crane drum example (another configuration, also three channels) saves a record; the
+    // demo device must not take it up.
+    let drum_text = include_str!("../../sim/configs/example-crane-drum-brake.toml");
+    let drum = CoreDevice::build(
+        &LoadedConfig::from_str(drum_text, "drum.toml")
+            .unwrap()
+            .config,
+    )
+    .unwrap();
+    let mut drum_dev = new_device();
+    accepted_desc_of(&drum, &mut drum_dev);
+    let mut est = new_estimator();
+    let mut record = [0u8; CW_RECORD_LEN as usize];
+    unsafe {
+        assert_eq!(cw_estimator_init(&mut *est, &*drum_dev), cw_status::CW_OK);
+        assert_eq!(
+            cw_estimator_save(&*est, 3, record.as_mut_ptr(), CW_RECORD_LEN),
+            cw_status::CW_OK
+        );
+    }
+    let mut demo_dev = new_device();
+    accepted_desc(&mut demo_dev);
+    let mut restored = new_estimator();
+    assert_eq!(
+        unsafe { cw_estimator_restore(&mut *restored, &*demo_dev, record.as_ptr(), CW_RECORD_LEN) },
+        cw_status::CW_ERR_RECORD_DEVICE
+    );
+    // The same record goes back into the device that saved it.
+    assert_eq!(
+        unsafe { cw_estimator_restore(&mut *restored, &*drum_dev, record.as_ptr(), CW_RECORD_LEN) },
+        cw_status::CW_OK
+    );
 }
 
 #[test]
