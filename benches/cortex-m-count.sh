@@ -20,7 +20,7 @@
 # thumbv6m and thumbv7m images run on QEMU's lm3s6965evb (a Cortex-M3 executes the ARMv6-M
 # code unchanged, so the count is the v6-M instruction stream a Cortex-M0+ would execute);
 # thumbv7em-none-eabihf runs on mps2-an386 (Cortex-M4 with FPU). The bench image is built with
-# `--profile firmware` (opt-level "s", fat LTO), as the example firmware.
+# `--profile firmware` (opt-level "z", fat LTO), as the example firmware.
 set -euo pipefail
 
 root="$(cd "$(dirname "$0")/.." && pwd)"
