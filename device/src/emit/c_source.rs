@@ -111,6 +111,11 @@ fn block(name: &str, body: &str) -> String {
     out
 }
 
+/// One `.name = value,` line of a C designated initializer.
+fn field(out: &mut String, name: &str, value: impl std::fmt::Display) {
+    let _ = writeln!(out, ".{name} = {value},");
+}
+
 fn flag(v: bool) -> u8 {
     u8::from(v)
 }
@@ -119,7 +124,7 @@ fn thermal(t: &ThermalRaw) -> String {
     let [[k00, k01], [k10, k11]] = t.k_q62;
     let [g0, g1] = t.gamma_q62;
     let mut out = String::new();
-    let _ = writeln!(out, ".dt_q32 = {},", i64_c(t.dt.to_bits()));
+    field(&mut out, "dt_q32", i64_c(t.dt.to_bits()));
     let _ = writeln!(
         out,
         ".k_q62 = {{ {{ {}, {} }}, {{ {}, {} }} }},",
@@ -129,28 +134,28 @@ fn thermal(t: &ThermalRaw) -> String {
         i64_c(k11)
     );
     let _ = writeln!(out, ".gamma_q62 = {{ {}, {} }},", i64_c(g0), i64_c(g1));
-    let _ = writeln!(out, ".two_node = {},", flag(t.two_node));
-    let _ = writeln!(out, ".ambient_q16 = {},", i32_c(t.ambient.to_bits()));
-    let _ = writeln!(
-        out,
-        ".fade_warning_q16 = {},",
-        i32_c(t.fade_warning.to_bits())
+    field(&mut out, "two_node", flag(t.two_node));
+    field(&mut out, "ambient_q16", i32_c(t.ambient.to_bits()));
+    field(
+        &mut out,
+        "fade_warning_q16",
+        i32_c(t.fade_warning.to_bits()),
     );
-    let _ = writeln!(
-        out,
-        ".over_temperature_q16 = {},",
-        i32_c(t.over_temperature.to_bits())
+    field(
+        &mut out,
+        "over_temperature_q16",
+        i32_c(t.over_temperature.to_bits()),
     );
-    let _ = writeln!(
-        out,
-        ".flag_hysteresis_q16 = {},",
-        i32_c(t.flag_hysteresis.to_bits())
+    field(
+        &mut out,
+        "flag_hysteresis_q16",
+        i32_c(t.flag_hysteresis.to_bits()),
     );
-    let _ = writeln!(out, ".has_measured = {},", flag(t.measured.is_some()));
+    field(&mut out, "has_measured", flag(t.measured.is_some()));
     if let Some(m) = &t.measured {
-        let _ = writeln!(out, ".measured_min_q16 = {},", i32_c(m.min.to_bits()));
-        let _ = writeln!(out, ".measured_max_q16 = {},", i32_c(m.max.to_bits()));
-        let _ = writeln!(out, ".measured_max_step_q16 = {},", i32_c(m.max_step));
+        field(&mut out, "measured_min_q16", i32_c(m.min.to_bits()));
+        field(&mut out, "measured_max_q16", i32_c(m.max.to_bits()));
+        field(&mut out, "measured_max_step_q16", i32_c(m.max_step));
     }
     out
 }
@@ -165,19 +170,19 @@ fn u128_c(v: u128) -> String {
 fn wear(w: &WearRaw) -> String {
     let mut out = String::new();
     let _ = writeln!(out, ".dt_q63 = UINT64_C({}),", w.dt_q63);
-    let _ = writeln!(out, ".e0_q48 = {},", u128_c(w.e0_q48));
-    let _ = writeln!(out, ".bedding_recip = {},", u128_c(w.bedding_recip));
+    field(&mut out, "e0_q48", u128_c(w.e0_q48));
+    field(&mut out, "bedding_recip", u128_c(w.bedding_recip));
     let _ = writeln!(out, ".wear_mant = UINT64_C({}),", w.wear_mant);
-    let _ = writeln!(out, ".wear_shift = {},", w.wear_shift);
-    let _ = writeln!(
-        out,
-        ".initial_thickness_q24 = {},",
-        i32_c(w.initial_thickness.to_bits())
+    field(&mut out, "wear_shift", w.wear_shift);
+    field(
+        &mut out,
+        "initial_thickness_q24",
+        i32_c(w.initial_thickness.to_bits()),
     );
-    let _ = writeln!(
-        out,
-        ".minimum_thickness_q24 = {},",
-        i32_c(w.minimum_thickness.to_bits())
+    field(
+        &mut out,
+        "minimum_thickness_q24",
+        i32_c(w.minimum_thickness.to_bits()),
     );
     out
 }
@@ -230,7 +235,7 @@ fn debounce(name: &str, d: &Debounce) -> String {
 
 fn sensor<const C: usize>(s: &SensorConfig<C>) -> String {
     let mut out = String::new();
-    let _ = writeln!(out, ".sample_rate_hz = {},", s.sample_rate_hz());
+    field(&mut out, "sample_rate_hz", s.sample_rate_hz());
     out.push_str(".channels = {\n");
     for c in s.channels() {
         for line in channel(c).lines() {
@@ -238,23 +243,23 @@ fn sensor<const C: usize>(s: &SensorConfig<C>) -> String {
         }
     }
     out.push_str("},\n");
-    let _ = writeln!(
-        out,
-        ".filter_alpha_q60 = {},",
-        i64_c(s.filter().coefficient_bits())
+    field(
+        &mut out,
+        "filter_alpha_q60",
+        i64_c(s.filter().coefficient_bits()),
     );
     let l = s.limits();
-    let _ = writeln!(out, ".force_min_q8 = {},", i32_c(l.force_min.to_bits()));
-    let _ = writeln!(out, ".force_max_q8 = {},", i32_c(l.force_max.to_bits()));
-    let _ = writeln!(out, ".max_rate_q32 = {},", i64_c(l.max_rate.to_bits()));
-    let _ = writeln!(out, ".noise_band_q8 = {},", i32_c(l.noise_band.to_bits()));
-    let _ = writeln!(out, ".has_stuck = {},", flag(l.stuck.is_some()));
+    field(&mut out, "force_min_q8", i32_c(l.force_min.to_bits()));
+    field(&mut out, "force_max_q8", i32_c(l.force_max.to_bits()));
+    field(&mut out, "max_rate_q32", i64_c(l.max_rate.to_bits()));
+    field(&mut out, "noise_band_q8", i32_c(l.noise_band.to_bits()));
+    field(&mut out, "has_stuck", flag(l.stuck.is_some()));
     if let Some(st) = &l.stuck {
-        let _ = writeln!(out, ".stuck_time_q32 = {},", i64_c(st.time.to_bits()));
-        let _ = writeln!(
-            out,
-            ".stuck_command_span_q16 = {},",
-            i32_c(st.command_span.to_bits())
+        field(&mut out, "stuck_time_q32", i64_c(st.time.to_bits()));
+        field(
+            &mut out,
+            "stuck_command_span_q16",
+            i32_c(st.command_span.to_bits()),
         );
     }
     let d = &l.debounce;
@@ -268,36 +273,36 @@ fn sensor<const C: usize>(s: &SensorConfig<C>) -> String {
     ] {
         out.push_str(&debounce(name, deb));
     }
-    let _ = writeln!(out, ".max_hold_samples = {},", l.max_hold_samples);
+    field(&mut out, "max_hold_samples", l.max_hold_samples);
     let v = s.voting();
-    let _ = writeln!(
-        out,
-        ".voting_tolerance_q8 = {},",
-        i32_c(v.tolerance.to_bits())
+    field(
+        &mut out,
+        "voting_tolerance_q8",
+        i32_c(v.tolerance.to_bits()),
     );
-    let _ = writeln!(
-        out,
-        ".voting_channel_uncertainty_q8 = {},",
-        i32_c(v.channel_uncertainty.to_bits())
+    field(
+        &mut out,
+        "voting_channel_uncertainty_q8",
+        i32_c(v.channel_uncertainty.to_bits()),
     );
-    let _ = writeln!(out, ".has_fallback = {},", flag(s.fallback().is_some()));
+    field(&mut out, "has_fallback", flag(s.fallback().is_some()));
     if let Some(a) = s.fallback() {
-        let _ = writeln!(out, ".fallback_gain_q32 = {},", i64_c(a.gain.to_bits()));
-        let _ = writeln!(out, ".fallback_offset_q8 = {},", i32_c(a.offset.to_bits()));
-        let _ = writeln!(
-            out,
-            ".fallback_hysteresis_q8 = {},",
-            i32_c(a.hysteresis.to_bits())
+        field(&mut out, "fallback_gain_q32", i64_c(a.gain.to_bits()));
+        field(&mut out, "fallback_offset_q8", i32_c(a.offset.to_bits()));
+        field(
+            &mut out,
+            "fallback_hysteresis_q8",
+            i32_c(a.hysteresis.to_bits()),
         );
-        let _ = writeln!(
-            out,
-            ".fallback_uncertainty_q8 = {},",
-            i32_c(a.uncertainty.to_bits())
+        field(
+            &mut out,
+            "fallback_uncertainty_q8",
+            i32_c(a.uncertainty.to_bits()),
         );
-        let _ = writeln!(
-            out,
-            ".fallback_response_time_q32 = {},",
-            i64_c(a.response_time.to_bits())
+        field(
+            &mut out,
+            "fallback_response_time_q32",
+            i64_c(a.response_time.to_bits()),
         );
     }
     out
@@ -342,13 +347,13 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
     let (stick_speed, hysteresis) = friction_band(fr)?;
     let mut out = String::new();
     let _ = writeln!(out, ".channels = {C},");
-    let _ = writeln!(out, ".thermal_wear_every = {},", cfg.thermal_wear_every());
-    let _ = writeln!(out, ".faces = {},", cfg.faces());
-    let _ = writeln!(out, ".has_adapt = {},", flag(cfg.adapt().is_some()));
-    let _ = writeln!(
-        out,
-        ".sample_period_q32 = {},",
-        i64_c(cfg.sample_period().to_bits())
+    field(&mut out, "thermal_wear_every", cfg.thermal_wear_every());
+    field(&mut out, "faces", cfg.faces());
+    field(&mut out, "has_adapt", flag(cfg.adapt().is_some()));
+    field(
+        &mut out,
+        "sample_period_q32",
+        i64_c(cfg.sample_period().to_bits()),
     );
     let axis = match tables.axis() {
         LeverAxis::Bedding => "CW_LEVER_AXIS_BEDDING",
@@ -424,14 +429,14 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
         radius,
         combination,
     } = *cfg.tolerances();
-    let _ = writeln!(out, ".touch_force_q8 = {},", i32_c(touch_force.to_bits()));
-    let _ = writeln!(
-        out,
-        ".adapt_min_force_q8 = {},",
-        i32_c(adapt_min_force.to_bits())
+    field(&mut out, "touch_force_q8", i32_c(touch_force.to_bits()));
+    field(
+        &mut out,
+        "adapt_min_force_q8",
+        i32_c(adapt_min_force.to_bits()),
     );
-    let _ = writeln!(out, ".mu_tolerance_q30 = {},", i32_c(mu.to_bits()));
-    let _ = writeln!(out, ".radius_tolerance_q30 = {},", i32_c(radius.to_bits()));
+    field(&mut out, "mu_tolerance_q30", i32_c(mu.to_bits()));
+    field(&mut out, "radius_tolerance_q30", i32_c(radius.to_bits()));
     let combination = match combination {
         Combination::WorstCase => "CW_COMBINATION_WORST_CASE",
         Combination::RootSumSquare => "CW_COMBINATION_ROOT_SUM_SQUARE",
