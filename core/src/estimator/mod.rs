@@ -146,12 +146,11 @@ fn reported_torque<T: TableSet>(
     at: Operating<'_, T>,
     flags: &mut Flags,
 ) -> Reported {
-    let kinetic = at.torque(fric.mu_kinetic);
-    let uncorrected = Operating {
-        correction: Ratio::ONE,
-        ..at
-    }
-    .torque(fric.mu_kinetic);
+    // One lever-arm lookup serves both products (for a contact not linear in μ it is a table
+    // lookup at μ_k).
+    let arm = at.lever_arm(fric.mu_kinetic).value;
+    let kinetic = friction_torque(at.faces, at.correction, fric.mu_kinetic, at.force, arm);
+    let uncorrected = friction_torque(at.faces, Ratio::ONE, fric.mu_kinetic, at.force, arm);
     if kinetic.saturated || uncorrected.saturated {
         flags.insert(Flags::ARITHMETIC_SATURATED);
     }
