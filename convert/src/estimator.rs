@@ -3,7 +3,7 @@
 //! converted in by [`core_inputs`] and out by [`estimate_row`].
 
 use clampwise_core::estimator::Estimator;
-use clampwise_core::state_record::RecordError;
+use clampwise_core::state_record::{RECORD_LEN, RecordError};
 use clampwise_device::build_core::{ChannelDevice, CoreDevice, Device, HostTables};
 use clampwise_device::schema::{DeviceKind, DeviceSpec};
 
@@ -77,6 +77,43 @@ impl<'d> CoreEstimator<'d> {
             cal: ChannelCal::of(config),
             brake: config.device.kind == DeviceKind::Brake,
         })
+    }
+}
+
+impl<'d> CoreEstimator<'d> {
+    /// An estimator resuming from a state record [`CoreEstimator::save`] wrote (as a
+    /// controller does after a power cycle: wear, bedding, temperatures and the adaptation's
+    /// state carry over; the sensor filters and the stick/slip decision start afresh).
+    ///
+    /// # Errors
+    /// The core's [`RecordError`]: a corrupt or truncated record, or one saved for another
+    /// configuration.
+    pub fn restore(
+        config: &DeviceSpec,
+        core: &'d CoreDevice,
+        record: &[u8],
+    ) -> Result<Self, RecordError> {
+        let stepper = match &core.device {
+            ChannelDevice::One(d) => Stepper::One(Estimator::restore(d, record)?),
+            ChannelDevice::Two(d) => Stepper::Two(Estimator::restore(d, record)?),
+            ChannelDevice::Three(d) => Stepper::Three(Estimator::restore(d, record)?),
+            ChannelDevice::Four(d) => Stepper::Four(Estimator::restore(d, record)?),
+        };
+        Ok(Self {
+            stepper,
+            cal: ChannelCal::of(config),
+            brake: config.device.kind == DeviceKind::Brake,
+        })
+    }
+
+    /// The core's state record (`Estimator::save`) with this `sequence` number.
+    pub fn save(&self, sequence: u32) -> [u8; RECORD_LEN] {
+        match &self.stepper {
+            Stepper::One(e) => e.save(sequence),
+            Stepper::Two(e) => e.save(sequence),
+            Stepper::Three(e) => e.save(sequence),
+            Stepper::Four(e) => e.save(sequence),
+        }
     }
 }
 
