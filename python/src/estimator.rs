@@ -36,7 +36,8 @@ self_cell::self_cell!(
 struct Batch {
     line: Option<Vec<f64>>,
     t_s: Vec<f64>,
-    force: Vec<Vec<f64>>,
+    /// Each channel's values and whether they are raw counts (`force_k_counts`) or N.
+    force: Vec<(Vec<f64>, bool)>,
     valid: Vec<Option<Vec<f64>>>,
     omega_in: Vec<f64>,
     omega_out: Option<Vec<f64>>,
@@ -74,11 +75,20 @@ impl Batch {
         let mut force = Vec::with_capacity(channels);
         let mut valid = Vec::with_capacity(channels);
         for k in 1..=channels {
-            force.push(required(
-                arrays,
-                &format!("force_{k}_N"),
-                &format!("force channel {k} of the config's {channels}"),
-            )?);
+            let counts = optional(arrays, &format!("force_{k}_counts"))?;
+            force.push(match counts {
+                Some(c) => (c, true),
+                None => (
+                    required(
+                        arrays,
+                        &format!("force_{k}_N"),
+                        &format!(
+                            "force channel {k} of the config's {channels}, or force_{k}_counts"
+                        ),
+                    )?,
+                    false,
+                ),
+            });
             valid.push(optional(arrays, &format!("force_{k}_valid"))?);
         }
         let omega_out = if config.device.kind == DeviceKind::Clutch {
@@ -109,14 +119,8 @@ impl Batch {
     fn check_lengths(&self) -> PyResult<()> {
         let n = self.t_s.len();
         let mut all: Vec<(&str, usize)> = vec![("omega_in_rad_s", self.omega_in.len())];
-        for (k, f) in self.force.iter().enumerate() {
-            all.push((
-                ["force_1_N", "force_2_N", "force_3_N", "force_4_N"]
-                    .get(k)
-                    .copied()
-                    .unwrap_or("force"),
-                f.len(),
-            ));
+        for (f, _) in &self.force {
+            all.push(("a force array", f.len()));
         }
         for (name, col) in [
             ("line", &self.line),
@@ -131,7 +135,7 @@ impl Batch {
             }
         }
         for v in self.valid.iter().flatten() {
-            all.push(("force_N_valid", v.len()));
+            all.push(("a force_k_valid array", v.len()));
         }
         match all.iter().find(|(_, len)| *len != n) {
             Some((name, len)) => Err(errors::usage(format!(
@@ -170,10 +174,28 @@ impl Batch {
             force_valid: [true; 4],
             ..TraceSample::default()
         };
-        for (k, col) in self.force.iter().enumerate() {
-            let name = format!("force_{}_N", k + 1);
+        for (k, (col, counts)) in self.force.iter().enumerate() {
+            let ch = if *counts {
+                let name = format!("force_{}_counts", k + 1);
+                let v = need(col, &name)?;
+                let whole = v.fract() == 0.0
+                    && v >= f64::from(i32::MIN)
+                    && v <= f64::from(i32::MAX);
+                match whole {
+                    // Whole and in range: exactly the counts given.
+                    #[allow(clippy::cast_possible_truncation)]
+                    true => Channel::Counts(v as i32),
+                    false => {
+                        return Err(format!(
+                            "row {i} of the batch (line {line}): '{name}' is {v}, not a whole number of ADC counts"
+                        ));
+                    }
+                }
+            } else {
+                Channel::Newtons(need(col, &format!("force_{}_N", k + 1))?)
+            };
             if let Some(slot) = s.force.get_mut(k) {
-                *slot = Channel::Newtons(need(col, &name)?);
+                *slot = ch;
             }
             if let (Some(Some(v)), Some(slot)) = (self.valid.get(k), s.force_valid.get_mut(k)) {
                 let name = format!("force_{}_valid", k + 1);

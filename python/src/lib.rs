@@ -17,6 +17,7 @@ mod columns;
 mod commands;
 mod errors;
 mod estimator;
+mod read_trace;
 mod reading;
 mod replay;
 mod sketch;
@@ -29,6 +30,7 @@ use pyo3::prelude::*;
 fn native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     errors::register(m)?;
     m.add_function(wrap_pyfunction!(replay::replay, m)?)?;
+    m.add_function(wrap_pyfunction!(read_trace::read_trace, m)?)?;
     m.add_function(wrap_pyfunction!(commands::compare, m)?)?;
     m.add_function(wrap_pyfunction!(commands::fit, m)?)?;
     m.add_function(wrap_pyfunction!(commands::synth, m)?)?;
