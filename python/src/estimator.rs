@@ -178,9 +178,8 @@ impl Batch {
             let ch = if *counts {
                 let name = format!("force_{}_counts", k + 1);
                 let v = need(col, &name)?;
-                let whole = v.fract() == 0.0
-                    && v >= f64::from(i32::MIN)
-                    && v <= f64::from(i32::MAX);
+                let whole =
+                    v.fract() == 0.0 && v >= f64::from(i32::MIN) && v <= f64::from(i32::MAX);
                 match whole {
                     // Whole and in range: exactly the counts given.
                     #[allow(clippy::cast_possible_truncation)]
