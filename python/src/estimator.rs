@@ -180,16 +180,14 @@ impl Batch {
                 let v = need(col, &name)?;
                 let whole =
                     v.fract() == 0.0 && v >= f64::from(i32::MIN) && v <= f64::from(i32::MAX);
-                match whole {
-                    // Whole and in range: exactly the counts given.
-                    #[allow(clippy::cast_possible_truncation)]
-                    true => Channel::Counts(v as i32),
-                    false => {
-                        return Err(format!(
-                            "row {i} of the batch (line {line}): '{name}' is {v}, not a whole number of ADC counts"
-                        ));
-                    }
+                if !whole {
+                    return Err(format!(
+                        "row {i} of the batch (line {line}): '{name}' is {v}, not a whole number of ADC counts"
+                    ));
                 }
+                // Whole and in range: exactly the counts given.
+                #[allow(clippy::cast_possible_truncation)]
+                Channel::Counts(v as i32)
             } else {
                 Channel::Newtons(need(col, &format!("force_{}_N", k + 1))?)
             };
