@@ -30,4 +30,7 @@ fi
 # The C API: header current and strict-C99 clean, C host test and C firmware in QEMU bit for
 # bit with the host replay, link-time panic check, sizes.
 bash capi/ci.sh
+# The Python package: a venv under target/py-venv with pinned versions, the abi3 wheel built by
+# maturin, pytest against the CLI (bit-equality, chunks, errors, the Dask fleet example).
+bash python/ci.sh
 echo "clampwise: all tests passed"
