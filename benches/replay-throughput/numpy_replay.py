@@ -13,6 +13,7 @@ Usage: numpy_replay.py CONFIG.toml TRACE.csv OUT.csv
 """
 
 import sys
+import time
 import tomllib
 
 import numpy as np
@@ -36,9 +37,11 @@ def bilinear(xs, ys, table, x, y):
 
 
 def main(config_path, trace_path, out_path):
+    t0 = time.perf_counter()
     with open(config_path, "rb") as f:
         cfg = tomllib.load(f)
     df = pd.read_csv(trace_path, comment="#")
+    t1 = time.perf_counter()
     forces = []
     for k, s in enumerate(cfg["sensor"], start=1):
         f_n = (df[f"force_{k}_counts"].to_numpy(float) - s["offset_counts"]) * s["gain_n_per_count"]
@@ -60,7 +63,10 @@ def main(config_path, trace_path, out_path):
         "clamp_force_N": force,
         "slip_speed_rad_s": slip,
     })
+    t2 = time.perf_counter()
     out.to_csv(out_path, index=False)
+    t3 = time.perf_counter()
+    print(f"read {t1 - t0:.3f} s, physics {t2 - t1:.3f} s, write {t3 - t2:.3f} s", file=sys.stderr)
 
 
 if __name__ == "__main__":

@@ -45,6 +45,7 @@ printf 'rows %d\n' "$rows"
 printf 'clampwise replay CSV -> CSV  %.3f s  %.2f M rows/s\n' "$replay" "$(echo "$rows / $replay / 1000000" | bc -l)"
 printf 'numpy/pandas peer CSV -> CSV %.3f s  %.2f M rows/s\n' "$numpy" "$(echo "$rows / $numpy / 1000000" | bc -l)"
 printf 'replay is %.2fx the peer\n' "$(echo "$numpy / $replay" | bc -l)"
+printf 'the peer, one more run: %s\n' "$("$venv/bin/python" benches/replay-throughput/numpy_replay.py "$cfg" "$trace" "$work/numpy.csv" 2>&1)"
 
 # Two traces one after the other, then both at once with -j 2.
 cp -f "$trace" "$work/second.csv"; mkdir -p "$work/j"
