@@ -6,6 +6,7 @@ use crate::device::{
     self, ADAPT, COUNTS_PER_NEWTON, FULL_FRICTION, MINIMAL_FRICTION, MU_SPEEDS, MU_TEMPERATURES,
     MU_VALUES, RADIUS_BEDDING, RADIUS_FORCES,
 };
+use crate::plain_diagnostics::PlainLimits;
 use crate::plain_f32::{PlainAdapt, PlainCompensation, PlainConfig, PlainParts};
 
 /// The full device in f32.
@@ -20,14 +21,26 @@ fn sensor<const C: usize, const NF: usize, const NB: usize, const NT: usize, con
     cfg.gain = (1.0 / COUNTS_PER_NEWTON) as f32;
     // 200 Hz at 1 kHz, as the fixed-point device.
     cfg.alpha = (1.0 - libm::exp(-2.0 * core::f64::consts::PI * 200.0 / 1000.0)) as f32;
-    cfg.force_range = (-5_000.0, 250_000.0);
-    cfg.max_step = 400_000.0;
+    // The fixed-point devices' limits (crate::device::limits, channel).
+    cfg.limits = PlainLimits {
+        force_range: (-5_000.0, 250_000.0),
+        rail_low: -(1 << 30) + 16,
+        rail_high: (1 << 30) - 16,
+        noise_band: 50.0,
+        rate_per_sample: (400e6 * device::DT) as f32,
+        stuck: None,
+        raise_after: 3,
+        clear_after: 10,
+        max_hold: 2,
+    };
     cfg.vote_tolerance = 500.0;
     cfg.faces = f32::from(device::FACES);
     cfg.touch_force = 100.0;
     cfg.tol_mu = 0.20;
     cfg.tol_radius = 0.01;
     cfg.force_uncertainty = 100.0;
+    // The top of the core's clamp-force format (Q23.8): the fixed-point step saturates there.
+    cfg.max_force = 8_388_607.0;
 }
 
 /// The full device: 3 channels with temperature compensation, fallback, two thermal nodes,
@@ -63,6 +76,8 @@ pub fn full() -> Result<PlainFull, GeometryError> {
         span_per_kelvin: 1e-4,
     });
     cfg.fallback_gain = Some(5000.0);
+    // 0.5 s at 1 kHz (500 samples) while the command spans 2 units, as the fixed-point device.
+    cfg.limits.stuck = Some((500, 2.0));
     let (min, max, lambda, full_scale, min_excitation) = ADAPT;
     cfg.adapt = Some(PlainAdapt {
         min: min as f32,

@@ -17,6 +17,7 @@ pub mod baseline;
 pub mod device;
 #[cfg(feature = "std")]
 pub mod envelope;
+pub mod plain_diagnostics;
 pub mod plain_f32;
 pub mod run;
 pub mod workload;

@@ -1,16 +1,20 @@
-//! The same physics in plain `f32`, written the way a practitioner writes it first: floats
-//! everywhere, `libm` for `expf`/`sqrtf`, a first-order filter `y += α·(x − y)`, tables
-//! searched by a loop and interpolated in f32, torque `n·μ·F·r_e`, explicit-Euler thermal
-//! nodes, a scalar RLS. It is the speed baseline of the benchmarks, **not** a second estimator:
-//! it has no saturation handling, no debounce, coarser voting, and f32 energy sums that stop
-//! growing after long duty (f32 has 24 bits). Never use it for control.
+//! The same physics in plain `f32`, written the way a practitioner writes it for a core with an
+//! FPU: floats everywhere, `libm` for `expf`/`sqrtf`, a first-order filter `y += α·(x − y)`,
+//! tables searched by a loop and interpolated in f32, torque `n·μ·F·r_e`, explicit-Euler
+//! thermal nodes, a scalar RLS. It is the step-cost peer of the benchmarks, **not** a second
+//! estimator: its f32 energy sums stop growing after long duty (f32 has 24 bits) and its ± is
+//! first-order. Never use it for control.
 //!
 //! It does the same work per sample as the fixed-point step of the same device: the same
-//! channel count, calibration with temperature compensation, range and rate checks, voting,
-//! fallback, stick/slip with hysteresis, the static-to-kinetic blend, drag, the radius and μ
-//! tables, thermal, wear and bedding (`1 − exp(−E/E₀)` each sample), the adaptation and the
-//! uncertainty.
+//! channel count, calibration with temperature compensation, the per-channel checks of
+//! [`crate::plain_diagnostics`] (valid bit, rails, range, rate, stuck, each debounced; hold of
+//! the last accepted value; the vote's disagreement debounced), voting, fallback to the
+//! actuator, saturation and degradation flags, stick/slip with hysteresis, the
+//! static-to-kinetic blend, drag, the radius and μ tables, thermal, wear and bedding
+//! (`1 − exp(−E/E₀)` at the sub-rate), the adaptation and the uncertainty (with the hold
+//! allowance and the vote's spread).
 
+use crate::plain_diagnostics::{PlainChannel, PlainLimits};
 use clampwise_core::friction::FrictionParams;
 use clampwise_core::thermal::{Cooling, ThermalParams};
 use clampwise_core::wear::WearParams;
@@ -115,6 +119,24 @@ pub enum PlainState {
     Unavailable,
 }
 
+/// Bits of [`PlainEstimate::flags`].
+pub mod flag {
+    /// Lining above the fade threshold.
+    pub const FADE: u16 = 1 << 0;
+    /// Above the over-temperature threshold.
+    pub const OVER_TEMPERATURE: u16 = 1 << 1;
+    /// Lining worn to its limit.
+    pub const WORN: u16 = 1 << 2;
+    /// Fewer channels used than the device has.
+    pub const SENSOR_DEGRADED: u16 = 1 << 3;
+    /// A channel at its rail, or the force above the device's maximum.
+    pub const SATURATED: u16 = 1 << 4;
+    /// The force is the actuator model's.
+    pub const FALLBACK: u16 = 1 << 5;
+    /// A channel stands on a held value.
+    pub const HELD: u16 = 1 << 6;
+}
+
 /// One sample of output.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct PlainEstimate {
@@ -140,8 +162,8 @@ pub struct PlainEstimate {
     pub correction: f32,
     /// Contact state.
     pub state: PlainState,
-    /// Fade warning, over-temperature, worn (bits 0, 1, 2).
-    pub flags: u8,
+    /// [`flag`] bits.
+    pub flags: u16,
 }
 
 /// Temperature compensation of a channel.
@@ -193,10 +215,8 @@ pub struct PlainConfig<
     pub compensation: Option<PlainCompensation>,
     /// Filter coefficient α.
     pub alpha: f32,
-    /// Plausible force range, N.
-    pub force_range: (f32, f32),
-    /// Largest change per sample, N.
-    pub max_step: f32,
+    /// The channels' diagnostic limits.
+    pub limits: PlainLimits,
     /// Voting tolerance, N.
     pub vote_tolerance: f32,
     /// Fallback N per command unit.
@@ -257,6 +277,8 @@ pub struct PlainConfig<
     pub tol_radius: f32,
     /// Force uncertainty of one channel, N.
     pub force_uncertainty: f32,
+    /// Largest clamp force the device reports as measured, N (above: saturated).
+    pub max_force: f32,
     /// Root-sum-square (true) or worst-case sum.
     pub rss: bool,
 }
@@ -300,8 +322,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             offset: 0.0,
             compensation: None,
             alpha: 1.0,
-            force_range: (f32::MIN, f32::MAX),
-            max_step: f32::MAX,
+            limits: PlainLimits::OPEN,
             vote_tolerance: 0.0,
             fallback_gain: None,
             faces: 1.0,
@@ -332,6 +353,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
             tol_mu: 0.0,
             tol_radius: 0.0,
             force_uncertainty: 0.0,
+            max_force: f32::MAX,
             rss: false,
         }
     }
@@ -341,7 +363,7 @@ impl<const C: usize, const NF: usize, const NB: usize, const NT: usize, const NV
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct PlainEstimator<const C: usize> {
     filtered: [f32; C],
-    primed: [bool; C],
+    channels: [PlainChannel; C],
     slipping: bool,
     lining: f32,
     rotor: f32,
@@ -360,7 +382,7 @@ impl<const C: usize> PlainEstimator<C> {
     ) -> Self {
         Self {
             filtered: [0.0; C],
-            primed: [false; C],
+            channels: [PlainChannel::default(); C],
             slipping: false,
             lining: cfg.ambient,
             rotor: cfg.ambient,
@@ -380,7 +402,7 @@ impl<const C: usize> PlainEstimator<C> {
         cfg: &PlainConfig<C, NF, NB, NT, NV>,
         inp: &PlainInputs<C>,
     ) -> PlainEstimate {
-        let (force, n) = self.conditioned_force(cfg, inp);
+        let (force, n, sensor_flags, force_uncertainty) = self.conditioned_force(cfg, inp);
 
         let v = inp.input_speed - inp.output_speed;
         let speed = libm::fabsf(v);
@@ -404,10 +426,15 @@ impl<const C: usize> PlainEstimator<C> {
                 wear: self.energy * cfg.wear_per_joule,
                 correction: self.k,
                 state: PlainState::Unavailable,
-                flags: 0,
+                flags: sensor_flags,
             };
         };
-        let force = force.max(0.0);
+        let saturated = if force > cfg.max_force {
+            flag::SATURATED
+        } else {
+            0
+        };
+        let force = force.clamp(0.0, cfg.max_force);
 
         // μ and r_e from the tables, torque n·μ·F·r_e.
         let mu_k = cfg.mu.lookup(self.lining, speed) * self.k;
@@ -451,7 +478,7 @@ impl<const C: usize> PlainEstimator<C> {
         // Uncertainty of what is reported.
         let reported = torque.map_or(capacity, libm::fabsf);
         let df = if force > 0.0 {
-            cfg.force_uncertainty / force
+            force_uncertainty / force
         } else {
             2.0
         };
@@ -461,9 +488,15 @@ impl<const C: usize> PlainEstimator<C> {
             cfg.tol_mu + df + cfg.tol_radius
         };
         let hottest = self.lining.max(self.rotor);
-        let flags = u8::from(hottest > cfg.fade)
-            | (u8::from(hottest > cfg.over) << 1)
-            | (u8::from(wear > cfg.wear_limit) << 2);
+        let flags = sensor_flags
+            | saturated
+            | if hottest > cfg.fade { flag::FADE } else { 0 }
+            | if hottest > cfg.over {
+                flag::OVER_TEMPERATURE
+            } else {
+                0
+            }
+            | if wear > cfg.wear_limit { flag::WORN } else { 0 };
 
         PlainEstimate {
             torque,
@@ -485,71 +518,99 @@ impl<const C: usize> PlainEstimator<C> {
         }
     }
 
-    /// Force: calibrate, compensate, check, filter, vote; the force (or the actuator's) and the
-    /// number of channels that passed.
+    /// Force: calibrate, compensate, check and debounce, filter, hold, vote; the force (or
+    /// the actuator's), the number of channels used, the sensor flags and the force's ±.
     #[allow(clippy::cast_precision_loss)]
     fn conditioned_force<const NF: usize, const NB: usize, const NT: usize, const NV: usize>(
         &mut self,
         cfg: &PlainConfig<C, NF, NB, NT, NV>,
         inp: &PlainInputs<C>,
-    ) -> (Option<f32>, usize) {
+    ) -> (Option<f32>, usize, u16, f32) {
+        let l = &cfg.limits;
         let mut good = [0.0f32; 4];
         let mut n = 0usize;
-        for (((filt, primed), &counts), &valid) in self
+        let mut flags = 0u16;
+        let mut hold = 0.0f32;
+        for (((filt, ch), &counts), &valid) in self
             .filtered
             .iter_mut()
-            .zip(self.primed.iter_mut())
+            .zip(self.channels.iter_mut())
             .zip(inp.counts.iter())
             .zip(inp.valid.iter())
         {
-            if !valid {
-                continue;
-            }
             let mut f = counts as f32 * cfg.gain + cfg.offset;
             if let (Some(c), Some(t)) = (cfg.compensation, inp.sensor_temperature) {
                 let d = t.clamp(c.min, c.max) - c.reference;
                 f = f * (1.0 + c.span_per_kelvin * d) + c.zero_per_kelvin * d;
             }
-            if f < cfg.force_range.0 || f > cfg.force_range.1 {
+            let checked = ch.check(l, counts, valid, f, inp.command);
+            if checked.saturated {
+                flags |= flag::SATURATED;
+            }
+            if let Some(f) = checked.accepted {
+                *filt = if checked.was_stale {
+                    f
+                } else {
+                    *filt + cfg.alpha * (f - *filt)
+                };
+            }
+            if !ch.usable(l) {
                 continue;
             }
-            if *primed && libm::fabsf(f - *filt) > cfg.max_step {
-                continue;
+            if ch.held_for() > 0 {
+                flags |= flag::HELD;
+                hold = hold.max(l.noise_band + l.rate_per_sample * ch.held_for() as f32);
             }
-            *filt = if *primed {
-                *filt + cfg.alpha * (f - *filt)
-            } else {
-                f
-            };
-            *primed = true;
             if let Some(g) = good.get_mut(n) {
                 *g = *filt;
                 n += 1;
             }
         }
+        if n < C {
+            flags |= flag::SENSOR_DEGRADED;
+        }
         let [a, b, c, _] = good;
-        let force = match n {
-            0 => match (cfg.fallback_gain, inp.command) {
-                (Some(g), Some(c)) => Some(g * c),
-                _ => None,
-            },
+        let consensus = match n {
+            0 => None,
             1 => Some(a),
             2 => Some(0.5 * (a + b)),
-            _ => {
-                // Median of the first three, then the mean of those within tolerance of it.
-                let median = a.max(b).min(a.min(b).max(c));
-                let (mut sum, mut k) = (0.0, 0.0);
-                for &g in good.iter().take(n) {
-                    if libm::fabsf(g - median) <= cfg.vote_tolerance {
-                        sum += g;
-                        k += 1.0;
-                    }
-                }
-                Some(if k > 0.0 { sum / k } else { median })
-            }
+            // Median of the first three, then the mean of those within tolerance of it.
+            _ => Some(a.max(b).min(a.min(b).max(c))),
         };
-
-        (force, n)
+        let mut spread = 0.0f32;
+        let force = consensus.map(|median| {
+            let (mut sum, mut k) = (0.0, 0.0);
+            for &g in good.iter().take(n) {
+                let d = libm::fabsf(g - median);
+                spread = spread.max(d);
+                if d <= cfg.vote_tolerance {
+                    sum += g;
+                    k += 1.0;
+                }
+            }
+            if k > 0.0 { sum / k } else { median }
+        });
+        // The vote's verdict on every channel it could judge, debounced.
+        for (ch, filt) in self.channels.iter_mut().zip(self.filtered.iter()) {
+            let away = match consensus {
+                Some(m) if n > 1 && ch.usable(l) => {
+                    Some(libm::fabsf(*filt - m) > cfg.vote_tolerance)
+                }
+                _ => None,
+            };
+            ch.disagreement(away, l);
+        }
+        let force = match force {
+            Some(f) => Some(f),
+            None => match (cfg.fallback_gain, inp.command) {
+                (Some(g), Some(c)) => {
+                    flags |= flag::FALLBACK;
+                    Some(g * c)
+                }
+                _ => None,
+            },
+        };
+        (force, n, flags, cfg.force_uncertainty + hold + spread)
     }
 
     /// Scalar RLS on k from a slipping sample's reference torque; `model` is the

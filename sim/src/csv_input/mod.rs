@@ -1,9 +1,16 @@
 //! Located, streaming CSV input: every problem names its file, line, column and header.
 //!
-//! Rows are read one at a time into a reused [`csv::ByteRecord`], so memory stays bounded
-//! whatever the file length. `#` starts a comment line. A row with fewer or more fields than
-//! the header is an error; when it is the last line and the file does not end with a line
-//! terminator it is reported as a truncated last line. Cells are parsed as f64; NaN and
+//! Rows are read one at a time into reused buffers, so memory stays bounded whatever the file
+//! length (it follows the longest line). Plain lines (no quote, no lone carriage return) are
+//! split by a line splitter (`lines.rs`: `memchr` for line ends, eight bytes at a time for the
+//! separators), about half the `csv` crate's instructions per row; from the first line that
+//! is not plain to the end of the file, the `csv` crate reads. Both give the same rows, cells
+//! and errors (property test `lines_tests.rs`), except that the splitter names the true line of
+//! a row after a CRLF or a blank line, where the `csv` crate names the line before it.
+//!
+//! `#` starts a comment line. A row with fewer or more fields than the header is an error;
+//! when it is the last line and the file does not end with a line terminator it is reported as
+//! a truncated last line. Cells are parsed as f64; NaN and
 //! infinities are rejected (Rust's parser accepts `NaN` and `inf`, a trace must not).
 //!
 //! Speed: a cell written as a plain decimal (`-12.345`, at most 19 characters after the sign,
@@ -21,12 +28,14 @@
 
 mod decimal;
 mod dialect;
+mod lines;
 
 pub use decimal::{plain_decimal, plain_decimal_comma};
 pub use dialect::{
     DecimalMark, Delimiter, Dialect, DialectChoice, DialectSource, SNIFF_BYTES, SNIFF_ROWS, sniff,
 };
 use dialect::{has_fraction, read_head};
+use lines::LineReader;
 
 use std::fs::File;
 use std::io::{Read, Seek, SeekFrom};
@@ -35,15 +44,52 @@ use crate::error::{DataError, SimError};
 
 /// A CSV file (or standard input, `-`) opened for row-by-row reading.
 pub struct CsvIn {
-    reader: csv::Reader<Box<dyn Read + Send>>,
+    source: Source,
+    /// Each field of the current row as a range of its bytes.
+    bounds: Vec<(usize, usize)>,
     file: String,
     headers: Vec<String>,
     header_line: u64,
-    record: csv::ByteRecord,
     len: Option<u64>,
     ends_with_newline: Option<bool>,
     unterminated_last_line: Option<u64>,
     dialect: Dialect,
+}
+
+/// Where the rows come from: the line splitter while the lines are plain (no quote, no lone
+/// carriage return), the `csv` crate from the first line that is not, to the end.
+enum Source {
+    Lines(LineReader),
+    Csv(CsvRest),
+    /// Only while one is replaced by the other.
+    Switching,
+}
+
+/// The `csv` crate's reader over the stream from some line on.
+struct CsvRest {
+    reader: csv::Reader<Box<dyn Read + Send>>,
+    record: csv::ByteRecord,
+    /// Lines and bytes of the stream before the reader's start.
+    lines_before: u64,
+    bytes_before: u64,
+}
+
+impl CsvRest {
+    fn new(input: Box<dyn Read + Send>, dialect: Dialect, has_headers: bool) -> Self {
+        let reader = csv::ReaderBuilder::new()
+            .buffer_capacity(1 << 16)
+            .delimiter(dialect.delimiter.byte())
+            .comment(Some(b'#'))
+            .flexible(true)
+            .has_headers(has_headers)
+            .from_reader(input);
+        Self {
+            reader,
+            record: csv::ByteRecord::new(),
+            lines_before: 0,
+            bytes_before: 0,
+        }
+    }
 }
 
 fn last_byte(path: &str) -> std::io::Result<(u64, Option<u8>)> {
@@ -56,6 +102,34 @@ fn last_byte(path: &str) -> std::io::Result<(u64, Option<u8>)> {
     let mut b = [0u8; 1];
     f.read_exact(&mut b)?;
     Ok((len, b.first().copied()))
+}
+
+/// The header record of `reader` and the stream position after it, or the message of why it
+/// cannot be read.
+fn header_record(
+    reader: &mut csv::Reader<impl Read>,
+) -> Result<(csv::ByteRecord, csv::Position), (Option<u64>, String)> {
+    match reader.byte_headers() {
+        Ok(h) => Ok((h.clone(), reader.position().clone())),
+        Err(e) => Err((
+            e.position().map(|p| p.line()),
+            format!("cannot read the header: {e}"),
+        )),
+    }
+}
+
+/// Where the line after a header ending at byte `end` of `head` starts, when the header line is
+/// whole in `head` and ends with `\n`; `None` sends the file to the `csv` crate throughout.
+fn line_after_header(head: &[u8], end: usize, complete: bool) -> Option<usize> {
+    if end > 0 && head.get(end - 1) == Some(&b'\n') {
+        return Some(end);
+    }
+    match head.get(end) {
+        Some(b'\n') => Some(end + 1),
+        // A header that is the whole file, with no terminator.
+        None if complete => Some(end),
+        _ => None,
+    }
 }
 
 impl CsvIn {
@@ -75,60 +149,76 @@ impl CsvIn {
     /// unrecognised dialect, an empty file, a file of comments only, an unreadable or
     /// duplicated header; [`SimError::Usage`] for a decimal comma in a `,`-separated file.
     pub fn open_with(path: &str, choice: DialectChoice) -> Result<Self, SimError> {
+        Self::open_reading(path, choice, true)
+    }
+
+    /// [`CsvIn::open_with`]; `lines = false` reads every row with the `csv` crate (the
+    /// reference the line splitter is tested against).
+    fn open_reading(path: &str, choice: DialectChoice, lines: bool) -> Result<Self, SimError> {
         let (mut raw, len, ends_with_newline): (Box<dyn Read + Send>, _, _) = if path == "-" {
             (Box::new(std::io::stdin()), None, None)
         } else {
             let f = File::open(path).map_err(|e| SimError::io(path, e))?;
             let (len, last) = last_byte(path).map_err(|e| SimError::io(path, e))?;
-            // The csv reader buffers itself (64 KiB below): a second buffer would only copy.
+            // Both readers buffer themselves: a second buffer would only copy.
             (Box::new(f), Some(len), Some(last == Some(b'\n')))
         };
-        // The sniffed head is read again by the CSV reader, so standard input works too.
         let (head, complete) = read_head(&mut raw).map_err(|e| SimError::io(path, e))?;
         let dialect = sniff(path, &head, complete, choice)?;
-        let input: Box<dyn Read + Send> = Box::new(std::io::Cursor::new(head).chain(raw));
-        let reader = csv::ReaderBuilder::new()
-            .buffer_capacity(1 << 16)
-            .delimiter(dialect.delimiter.byte())
-            .comment(Some(b'#'))
-            .flexible(true)
-            .has_headers(true)
-            .from_reader(input);
+        let located = |line: Option<u64>, message: String| -> SimError {
+            DataError {
+                file: path.to_string(),
+                line,
+                column: None,
+                header: None,
+                message,
+            }
+            .into()
+        };
+        // The header is read from the sniffed head when it is whole there; the rows then go
+        // to the line splitter. Otherwise the `csv` crate reads the whole stream.
+        let mut head_reader =
+            CsvRest::new(Box::new(std::io::Cursor::new(head.clone())), dialect, true);
+        let (record, at) =
+            header_record(&mut head_reader.reader).map_err(|(l, m)| located(l, m))?;
+        let header_end = usize::try_from(at.byte()).unwrap_or(usize::MAX);
+        let whole = header_end < head.len() || complete;
+        let (source, h, header_line) = match line_after_header(&head, header_end, complete) {
+            Some(next) if whole && lines => {
+                let before = head.get(..next).unwrap_or_default();
+                let header_line = (memchr::memchr_iter(b'\n', before).count() as u64).max(1);
+                let rest = head.get(next..).unwrap_or_default().to_vec();
+                let lines = LineReader::new(raw, rest, next as u64, header_line + 1);
+                (Source::Lines(lines), record, header_line)
+            }
+            _ => {
+                let input: Box<dyn Read + Send> = Box::new(std::io::Cursor::new(head).chain(raw));
+                let mut rest = CsvRest::new(input, dialect, true);
+                let (record, at) =
+                    header_record(&mut rest.reader).map_err(|(l, m)| located(l, m))?;
+                // The header record's own position ignores the comment lines before it; the
+                // reader's position after it is the start of the next line, which counts them.
+                (
+                    Source::Csv(rest),
+                    record,
+                    at.line().saturating_sub(1).max(1),
+                )
+            }
+        };
+        if h.is_empty() || (h.len() == 1 && h.get(0).is_some_and(|f| f.is_empty())) {
+            return Err(located(None, "empty file: no header line (expected column names such as t_s, force_1_N, omega_in_rad_s)".into()));
+        }
         let mut me = Self {
-            reader,
+            source,
+            bounds: Vec::with_capacity(h.len()),
             file: path.to_string(),
-            headers: Vec::new(),
-            header_line: 1,
-            record: csv::ByteRecord::new(),
+            headers: Vec::with_capacity(h.len()),
+            header_line,
             len,
             ends_with_newline,
             unterminated_last_line: None,
             dialect,
         };
-        let err = |m: &Self, line: Option<u64>, message: String| DataError {
-            file: m.file.clone(),
-            line,
-            column: None,
-            header: None,
-            message,
-        };
-        let h = match me.reader.byte_headers() {
-            Ok(h) => h.clone(),
-            Err(e) => {
-                return Err(err(
-                    &me,
-                    e.position().map(|p| p.line()),
-                    format!("cannot read the header: {e}"),
-                )
-                .into());
-            }
-        };
-        if h.is_empty() || (h.len() == 1 && h.get(0).is_some_and(|f| f.is_empty())) {
-            return Err(err(&me, None, "empty file: no header line (expected column names such as t_s, force_1_N, omega_in_rad_s)".into()).into());
-        }
-        // The header record's own position ignores the comment lines before it; the reader's
-        // position after it is the start of the next line, which counts them.
-        me.header_line = me.reader.position().line().saturating_sub(1).max(1);
         // A set, not a scan of the names so far: linear in the number of columns.
         let mut seen = std::collections::HashSet::with_capacity(h.len());
         for (i, f) in h.iter().enumerate() {
@@ -195,7 +285,11 @@ impl CsvIn {
 
     /// Bytes consumed so far.
     pub fn bytes_read(&self) -> u64 {
-        self.reader.position().byte()
+        match &self.source {
+            Source::Lines(lines) => lines.position(),
+            Source::Csv(c) => c.bytes_before + c.reader.position().byte(),
+            Source::Switching => 0,
+        }
     }
 
     /// The line of a last row that had no line terminator (its values were used).
@@ -220,59 +314,165 @@ impl CsvIn {
     /// A [`DataError`] for a row that cannot be read or has the wrong number of fields. The
     /// reader can go on after a field-count error (the row is consumed).
     pub fn next_row(&mut self) -> Result<Option<Row<'_>>, DataError> {
-        match self.reader.read_byte_record(&mut self.record) {
-            Ok(false) => Ok(None),
-            Ok(true) => {
-                let line = self.record.position().map_or(0, |p| p.line());
-                let at_end = self.len.is_some_and(|l| self.reader.position().byte() >= l);
-                let unterminated = at_end && self.ends_with_newline == Some(false);
-                if self.record.len() != self.headers.len() {
-                    let message = if unterminated && self.record.len() < self.headers.len() {
-                        format!(
-                            "truncated last line: {} of {} fields and no line terminator",
-                            self.record.len(),
-                            self.headers.len()
-                        )
-                    } else {
-                        format!(
-                            "row has {} fields, the header has {}",
-                            self.record.len(),
-                            self.headers.len()
-                        )
-                    };
-                    return Err(DataError {
-                        file: self.file.clone(),
-                        line: Some(line),
-                        column: Some(self.record.len().min(self.headers.len()) + 1),
-                        header: None,
-                        message,
-                    });
-                }
-                if unterminated {
-                    self.unterminated_last_line = Some(line);
-                }
-                Ok(Some(Row {
-                    record: &self.record,
-                    headers: &self.headers,
-                    file: &self.file,
-                    line,
-                    decimal_comma: self.dialect.decimal == DecimalMark::Comma,
-                }))
-            }
-            Err(e) => Err(DataError {
+        let Some((line, unterminated)) = self.advance()? else {
+            return Ok(None);
+        };
+        let fields = self.bounds.len();
+        if fields != self.headers.len() {
+            let message = if unterminated && fields < self.headers.len() {
+                format!(
+                    "truncated last line: {} of {} fields and no line terminator",
+                    fields,
+                    self.headers.len()
+                )
+            } else {
+                format!(
+                    "row has {} fields, the header has {}",
+                    fields,
+                    self.headers.len()
+                )
+            };
+            return Err(DataError {
                 file: self.file.clone(),
-                line: e.position().map(|p| p.line()),
-                column: None,
+                line: Some(line),
+                column: Some(fields.min(self.headers.len()) + 1),
                 header: None,
-                message: format!("cannot read row: {e}"),
-            }),
+                message,
+            });
+        }
+        if unterminated {
+            self.unterminated_last_line = Some(line);
+        }
+        let data = match &self.source {
+            Source::Lines(lines) => lines.current(),
+            Source::Csv(c) => c.record.as_slice(),
+            Source::Switching => &[],
+        };
+        Ok(Some(Row {
+            data,
+            bounds: &self.bounds,
+            headers: &self.headers,
+            file: &self.file,
+            line,
+            decimal_comma: self.dialect.decimal == DecimalMark::Comma,
+        }))
+    }
+
+    /// Move to the next data row, its fields' ranges in `self.bounds`: its line and whether it
+    /// is a last line without a terminator; `None` at the end.
+    fn advance(&mut self) -> Result<Option<(u64, bool)>, DataError> {
+        loop {
+            let switch_at = match &mut self.source {
+                Source::Lines(lines) => {
+                    let Some(line) = lines.next_line().map_err(|e| DataError {
+                        file: self.file.clone(),
+                        line: None,
+                        column: None,
+                        header: None,
+                        message: format!("cannot read row: {e}"),
+                    })?
+                    else {
+                        return Ok(None);
+                    };
+                    let bytes = lines.current();
+                    // Blank lines and comments are skipped, as the `csv` crate skips them.
+                    if bytes.first().is_none_or(|&b| b == b'#') {
+                        continue;
+                    }
+                    if memchr::memchr2(b'"', b'\r', bytes).is_none() {
+                        split_fields(bytes, self.dialect.delimiter.byte(), &mut self.bounds);
+                        return Ok(Some((line.number, !line.terminated)));
+                    }
+                    (line.number, line.offset)
+                }
+                Source::Csv(c) => {
+                    match c.reader.read_byte_record(&mut c.record) {
+                        Ok(false) => return Ok(None),
+                        Ok(true) => {}
+                        Err(e) => {
+                            return Err(DataError {
+                                file: self.file.clone(),
+                                line: e.position().map(|p| p.line() + c.lines_before),
+                                column: None,
+                                header: None,
+                                message: format!("cannot read row: {e}"),
+                            });
+                        }
+                    }
+                    let line = c.record.position().map_or(0, |p| p.line()) + c.lines_before;
+                    let read = c.bytes_before + c.reader.position().byte();
+                    let at_end = self.len.is_some_and(|l| read >= l);
+                    self.bounds.clear();
+                    self.bounds.extend(
+                        (0..c.record.len())
+                            .filter_map(|i| c.record.range(i))
+                            .map(|r| (r.start, r.end)),
+                    );
+                    return Ok(Some((
+                        line,
+                        at_end && self.ends_with_newline == Some(false),
+                    )));
+                }
+                Source::Switching => return Ok(None),
+            };
+            // A quoted field or a lone carriage return: the `csv` crate reads from here on.
+            self.switch_to_csv(switch_at.0, switch_at.1);
+        }
+    }
+
+    /// Hand the stream from the line `number` starting at byte `offset` to the `csv` crate.
+    fn switch_to_csv(&mut self, number: u64, offset: u64) {
+        if let Source::Lines(lines) = std::mem::replace(&mut self.source, Source::Switching) {
+            let mut rest = CsvRest::new(lines.into_rest(offset), self.dialect, false);
+            rest.lines_before = number - 1;
+            rest.bytes_before = offset;
+            self.source = Source::Csv(rest);
         }
     }
 }
 
+/// The fields of a plain line, as ranges of its bytes, into `bounds`.
+///
+/// Eight bytes at a time: a byte of `w = word ^ delimiter×8` is zero exactly where the line
+/// has the delimiter, and `!(((w & 0x7f…) + 0x7f…) | w) & 0x80…` sets the top bit of exactly
+/// those bytes (no carry crosses a byte, unlike the shorter `(w − 0x01…) & !w` test)
+/// [pub: Warren, *Hacker's Delight*, 2nd ed., §6-1 "Find First 0-Byte"].
+#[inline]
+fn split_fields(line: &[u8], delimiter: u8, bounds: &mut Vec<(usize, usize)>) {
+    const LOW7: u64 = 0x7f7f_7f7f_7f7f_7f7f;
+    const HIGH: u64 = 0x8080_8080_8080_8080;
+    bounds.clear();
+    let pattern = u64::from_ne_bytes([delimiter; 8]);
+    let mut start = 0;
+    let mut chunks = line.chunks_exact(8);
+    let mut at = 0;
+    for chunk in &mut chunks {
+        let Ok(bytes) = <[u8; 8]>::try_from(chunk) else {
+            break;
+        };
+        let w = u64::from_le_bytes(bytes) ^ pattern;
+        let mut hits = !(((w & LOW7) + LOW7) | w) & HIGH;
+        while hits != 0 {
+            let i = at + (hits.trailing_zeros() / 8) as usize;
+            bounds.push((start, i));
+            start = i + 1;
+            hits &= hits - 1;
+        }
+        at += 8;
+    }
+    for (i, &b) in chunks.remainder().iter().enumerate() {
+        if b == delimiter {
+            bounds.push((start, at + i));
+            start = at + i + 1;
+        }
+    }
+    bounds.push((start, line.len()));
+}
+
 /// One data row, borrowed from the reader.
 pub struct Row<'a> {
-    record: &'a csv::ByteRecord,
+    data: &'a [u8],
+    bounds: &'a [(usize, usize)],
     headers: &'a [String],
     file: &'a str,
     /// 1-based line of the row.
@@ -294,14 +494,21 @@ impl Row<'_> {
 
     /// The raw bytes of cell `col`, untrimmed (empty for a missing cell).
     pub fn bytes(&self, col: usize) -> &[u8] {
-        self.record.get(col).unwrap_or(b"")
+        self.cell(col)
+    }
+
+    #[inline]
+    fn cell(&self, col: usize) -> &[u8] {
+        self.bounds
+            .get(col)
+            .and_then(|&(a, b)| self.data.get(a..b))
+            .unwrap_or_default()
     }
 
     /// The raw text of cell `col`, trimmed.
     pub fn text(&self, col: usize) -> &str {
-        self.record
-            .get(col)
-            .and_then(|b| std::str::from_utf8(b).ok())
+        std::str::from_utf8(self.cell(col))
+            .ok()
             .map_or("", str::trim)
     }
 
@@ -311,7 +518,7 @@ impl Row<'_> {
     /// A located [`DataError`] for text that is not a number, or NaN/infinite.
     #[inline]
     pub fn f64(&self, col: usize) -> Result<Option<f64>, DataError> {
-        let raw = self.record.get(col).unwrap_or(b"");
+        let raw = self.cell(col);
         let fast = if self.decimal_comma {
             plain_decimal_comma(raw)
         } else {
@@ -406,6 +613,9 @@ pub fn echo(text: &str) -> std::borrow::Cow<'_, str> {
         )),
     }
 }
+
+#[cfg(test)]
+mod lines_tests;
 
 #[cfg(test)]
 mod tests {
