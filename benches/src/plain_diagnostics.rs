@@ -69,6 +69,8 @@ impl PlainLimits {
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct PlainChannel {
     raised: u8,
+    /// Checks whose run is under way (`runs` non-zero).
+    counting: u8,
     runs: [u8; 7],
     stuck_primed: bool,
     stuck_reference: f32,
@@ -202,30 +204,36 @@ impl PlainChannel {
         (self.stuck_quiet >= window && self.command_hi - self.command_lo >= span).then_some(true)
     }
 
-    /// Each check's run of bad (while clear) or good (while raised) samples.
+    /// Each check's run of bad (while clear) or good (while raised) samples. A healthy sample
+    /// of a healthy channel (every verdict agrees with its flag, no run under way) returns at
+    /// the first test.
     fn debounce(&mut self, bad: u8, good: u8, l: &PlainLimits) {
+        let against = (bad & !self.raised) | (good & self.raised);
+        let with = (bad & self.raised) | (good & !self.raised);
+        // Runs broken by a verdict that agrees with the flag.
+        let broken = with & self.counting;
+        if against == 0 && broken == 0 {
+            return;
+        }
         for (i, run) in self.runs.iter_mut().enumerate() {
             let bit = 1u8 << i;
-            let raised = self.raised & bit != 0;
-            let against = if raised {
-                good & bit != 0
-            } else {
-                bad & bit != 0
-            };
-            let with = if raised {
-                bad & bit != 0
-            } else {
-                good & bit != 0
-            };
-            if against {
+            if against & bit != 0 {
                 *run = run.saturating_add(1);
-                let needed = if raised { l.clear_after } else { l.raise_after };
+                let needed = if self.raised & bit != 0 {
+                    l.clear_after
+                } else {
+                    l.raise_after
+                };
                 if *run >= needed {
                     self.raised ^= bit;
                     *run = 0;
+                    self.counting &= !bit;
+                } else {
+                    self.counting |= bit;
                 }
-            } else if with {
+            } else if broken & bit != 0 {
                 *run = 0;
+                self.counting &= !bit;
             }
         }
     }
