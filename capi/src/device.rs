@@ -3,11 +3,17 @@
 //! compared with the one the description carries.
 //!
 //! The channel count is a type parameter of the core's configuration and a run-time value in
-//! C: [`ChannelDevice`] holds one variant per count, and code that uses it matches once.
+//! C: [`DeviceRef`] holds one variant per count, and code that uses it matches once. The device
+//! is built in place, in the caller's storage (see [`crate::storage`]): the configuration is
+//! about as large as a small part's whole stack.
 
 use clampwise_core::adapt::{AdaptConfig, AdaptRaw};
+use core::mem::MaybeUninit;
+
+#[cfg(all(feature = "axis-bedding", feature = "axis-mu"))]
+use clampwise_core::config::ByEither;
 use clampwise_core::config::{
-    ByEither, DeviceConfig, DeviceParts, LeverAxis, Limits, Tables, Tolerances,
+    AxisKind, DeviceConfig, DeviceParts, LeverAxis, Limits, Tables, Tolerances,
 };
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
@@ -30,63 +36,51 @@ use crate::desc::{
 };
 use crate::status::cw_status;
 
+/// The radius table's second axis as this library's build fixes it: both axes (read at run
+/// time, as on the host), or the one axis of the features `axis-bedding` / `axis-mu` alone, so
+/// the step holds only that axis's lever-arm code.
+#[cfg(all(feature = "axis-bedding", feature = "axis-mu"))]
+pub type Axis = ByEither;
+/// The radius table's second axis as this library's build fixes it (bedding alone).
+#[cfg(all(feature = "axis-bedding", not(feature = "axis-mu")))]
+pub type Axis = clampwise_core::config::ByBedding;
+/// The radius table's second axis as this library's build fixes it (μ alone).
+#[cfg(all(feature = "axis-mu", not(feature = "axis-bedding")))]
+pub type Axis = clampwise_core::config::ByMu;
+
 /// The table capacities of the C API (the host's): every device's tables fit, at their exact
-/// sizes; the radius table's second axis is read at run time.
+/// sizes.
 pub type CapiTables = Tables<
     CW_RADIUS_FORCES_MAX,
     CW_RADIUS_SECOND_MAX,
     CW_MU_TEMPERATURES_MAX,
     CW_MU_SPEEDS_MAX,
-    ByEither,
+    Axis,
 >;
 
 /// The core's configuration of a device with `C` channels at the C API's capacities.
 pub type Device<const C: usize> = DeviceConfig<CapiTables, C>;
 
-/// A device of 1, 2, 3 or 4 clamp-force channels.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub enum ChannelDevice {
+/// A built device of 1, 2, 3 or 4 clamp-force channels, where it sits in its storage.
+#[derive(Clone, Copy, Debug)]
+pub enum DeviceRef<'a> {
     /// One channel.
     #[cfg(feature = "channels-1")]
-    One(Device<1>),
+    One(&'a Device<1>),
     /// Two channels.
     #[cfg(feature = "channels-2")]
-    Two(Device<2>),
+    Two(&'a Device<2>),
     /// Three channels.
     #[cfg(feature = "channels-3")]
-    Three(Device<3>),
+    Three(&'a Device<3>),
     /// Four channels.
     #[cfg(feature = "channels-4")]
-    Four(Device<4>),
+    Four(&'a Device<4>),
 }
 
-impl ChannelDevice {
-    /// Build and check the device a description holds.
-    ///
-    /// # Errors
-    /// The [`cw_status`] naming the part the core rejected, or
-    /// [`cw_status::CW_ERR_CHECKSUM`] when the numbers are not those the host emitted.
-    pub fn from_desc(d: &cw_device_desc) -> Result<Self, cw_status> {
-        let device = match d.channels {
-            #[cfg(feature = "channels-1")]
-            1 => Self::One(device(d)?),
-            #[cfg(feature = "channels-2")]
-            2 => Self::Two(device(d)?),
-            #[cfg(feature = "channels-3")]
-            3 => Self::Three(device(d)?),
-            #[cfg(feature = "channels-4")]
-            4 => Self::Four(device(d)?),
-            _ => return Err(cw_status::CW_ERR_CHANNELS),
-        };
-        if device.checksum() == d.checksum {
-            Ok(device)
-        } else {
-            Err(cw_status::CW_ERR_CHECKSUM)
-        }
-    }
-
+impl DeviceRef<'_> {
     /// The core's checksum of the configuration.
-    pub fn checksum(&self) -> u32 {
+    pub fn checksum(self) -> u32 {
         match self {
             #[cfg(feature = "channels-1")]
             Self::One(d) => d.checksum(),
@@ -100,7 +94,7 @@ impl ChannelDevice {
     }
 
     /// Number of clamp-force channels.
-    pub const fn channels(&self) -> u8 {
+    pub const fn channels(self) -> u8 {
         match self {
             #[cfg(feature = "channels-1")]
             Self::One(_) => 1,
@@ -114,6 +108,37 @@ impl ChannelDevice {
     }
 }
 
+/// The lever axes this library was built for: bit `cw_lever_axis` set for each.
+pub(crate) const LEVER_AXES: u8 = match Axis::FIXED {
+    None => 0b11,
+    Some(LeverAxis::Bedding) => 0b01,
+    Some(LeverAxis::Mu) => 0b10,
+};
+
+/// Build the device a description holds into `out`, through the core's checked
+/// constructors, and compare its checksum with the description's.
+///
+/// # Errors
+/// The [`cw_status`] naming the part the core rejected, [`cw_status::CW_ERR_LEVER_AXIS`] for
+/// an axis this build left out, or [`cw_status::CW_ERR_CHECKSUM`] when the numbers are not
+/// those the host emitted.
+///
+/// # Safety
+/// The description's table arrays hold what its lengths say (the C contract).
+pub unsafe fn build_in<'o, const C: usize>(
+    out: &'o mut MaybeUninit<Device<C>>,
+    d: &cw_device_desc,
+) -> Result<&'o Device<C>, cw_status> {
+    // SAFETY: forwarded to the caller.
+    let parts = unsafe { parts::<C>(d) }?;
+    let device = DeviceConfig::from_parts_in(out, &parts).map_err(|_| cw_status::CW_ERR_DEVICE)?;
+    if device.checksum() == d.checksum {
+        Ok(device)
+    } else {
+        Err(cw_status::CW_ERR_CHECKSUM)
+    }
+}
+
 fn flag(v: u8) -> Result<bool, cw_status> {
     match v {
         0 => Ok(false),
@@ -122,13 +147,72 @@ fn flag(v: u8) -> Result<bool, cw_status> {
     }
 }
 
-/// A table of the first `x_len` × `y_len` breakpoints of fixed-capacity arrays of raw bits.
-fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
-    (x, x_len): (&[i32; NX], u8),
-    (y, y_len): (&[i32; NY], u8),
-    z: &[[i32; NY]; NX],
+/// An axis of a description: its `len` breakpoints in an array of the capacity `N` (zeros
+/// beyond), or `None` for a NULL array or a length beyond the capacity.
+///
+/// # Safety
+/// A pointer that is not NULL points to `len` readable values (the C contract).
+unsafe fn axis<const N: usize>(values: *const i32, len: u8) -> Option<[i32; N]> {
+    let len = usize::from(len);
+    if values.is_null() || len > N {
+        return None;
+    }
+    // SAFETY: not NULL, `len` values by the contract.
+    let given = unsafe { core::slice::from_raw_parts(values, len) };
+    let mut out = [0; N];
+    for (slot, &v) in out.iter_mut().zip(given) {
+        *slot = v;
+    }
+    Some(out)
+}
+
+/// The grid of a description (`x_len` rows of `y_len` values, row by row) in arrays of the
+/// capacities `NX` × `NY` (zeros beyond), or `None` as for [`axis`].
+///
+/// # Safety
+/// A pointer that is not NULL points to `x_len` × `y_len` readable values.
+unsafe fn grid<const NX: usize, const NY: usize>(
+    values: *const i32,
+    x_len: u8,
+    y_len: u8,
+) -> Option<[[i32; NY]; NX]> {
+    let (x_len, y_len) = (usize::from(x_len), usize::from(y_len));
+    if values.is_null() || x_len > NX || y_len > NY {
+        return None;
+    }
+    // SAFETY: not NULL, `x_len` × `y_len` values by the contract (at most 255²).
+    let given = unsafe { core::slice::from_raw_parts(values, x_len * y_len) };
+    let mut out = [[0; NY]; NX];
+    for (i, row) in out.iter_mut().enumerate().take(x_len) {
+        for (j, slot) in row.iter_mut().enumerate().take(y_len) {
+            *slot = given.get(i * y_len + j).copied().unwrap_or(0);
+        }
+    }
+    Some(out)
+}
+
+/// The table a description's exact-size arrays hold: `x_len` and `y_len` breakpoints and
+/// their grid.
+///
+/// # Safety
+/// As [`axis`] and [`grid`].
+unsafe fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
+    (x, x_len): (*const i32, u8),
+    (y, y_len): (*const i32, u8),
+    z: *const i32,
     error: cw_status,
 ) -> Result<Table2<X, Y, Z, NX, NY>, cw_status> {
+    // SAFETY: forwarded to the caller.
+    let arrays = unsafe {
+        (
+            axis::<NX>(x, x_len),
+            axis::<NY>(y, y_len),
+            grid::<NX, NY>(z, x_len, y_len),
+        )
+    };
+    let (Some(x), Some(y), Some(z)) = arrays else {
+        return Err(error);
+    };
     let (x_len, y_len) = (usize::from(x_len), usize::from(y_len));
     let xs = x.map(FixedI32::<X>::from_bits);
     let ys = y.map(FixedI32::<Y>::from_bits);
@@ -143,15 +227,22 @@ fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
     }
 }
 
-fn friction(
+/// The friction model of a description.
+///
+/// # Safety
+/// The μ table's arrays hold what its lengths say (the C contract).
+unsafe fn friction(
     f: &cw_friction,
 ) -> Result<FrictionConfig<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX>, cw_status> {
-    let mu: MuTable<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX> = table(
-        (&f.mu.temperature_q16, f.mu.temperatures_len),
-        (&f.mu.speed_q16, f.mu.speeds_len),
-        &f.mu.mu_q30,
-        cw_status::CW_ERR_MU_TABLE,
-    )?;
+    // SAFETY: forwarded to the caller.
+    let mu: MuTable<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX> = unsafe {
+        table(
+            (f.mu.temperature_q16, f.mu.temperatures_len),
+            (f.mu.speed_q16, f.mu.speeds_len),
+            f.mu.mu_q30,
+            cw_status::CW_ERR_MU_TABLE,
+        )
+    }?;
     FrictionConfig::from_bits(
         mu,
         Ratio::from_bits(f.static_to_kinetic_q30),
@@ -292,18 +383,30 @@ fn adapt(a: &cw_adapt) -> Result<AdaptConfig, cw_status> {
     .map_err(|_| cw_status::CW_ERR_ADAPT)
 }
 
-fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
-    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX> = table(
-        (&d.radius.force_q8, d.radius.forces_len),
-        (&d.radius.second_q30, d.radius.second_len),
-        &d.radius.radius_q24,
-        cw_status::CW_ERR_RADIUS_TABLE,
-    )?;
+/// The checked parts of the device a description holds.
+///
+/// # Safety
+/// The description's arrays hold what its lengths say (the C contract).
+unsafe fn parts<const C: usize>(
+    d: &cw_device_desc,
+) -> Result<DeviceParts<CapiTables, C>, cw_status> {
     let axis = match d.radius.lever_axis {
         0 => LeverAxis::Bedding,
         1 => LeverAxis::Mu,
         _ => return Err(cw_status::CW_ERR_RADIUS_TABLE),
     };
+    if LEVER_AXES & (1 << d.radius.lever_axis) == 0 {
+        return Err(cw_status::CW_ERR_LEVER_AXIS);
+    }
+    // SAFETY: forwarded to the caller.
+    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX> = unsafe {
+        table(
+            (d.radius.force_q8, d.radius.forces_len),
+            (d.radius.second_q30, d.radius.second_len),
+            d.radius.radius_q24,
+            cw_status::CW_ERR_RADIUS_TABLE,
+        )
+    }?;
     let combination = match d.combination {
         0 => Combination::WorstCase,
         1 => Combination::RootSumSquare,
@@ -314,11 +417,15 @@ fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
     } else {
         None
     };
-    DeviceConfig::from_parts(DeviceParts {
+    // SAFETY: forwarded to the caller.
+    let friction = unsafe { friction(&d.friction) }?;
+    let tables =
+        Tables::try_with_axis(radius, friction, axis).ok_or(cw_status::CW_ERR_LEVER_AXIS)?;
+    Ok(DeviceParts {
         sample_period: Seconds::from_bits(d.sample_period_q32),
         thermal_wear_every: d.thermal_wear_every,
         faces: d.faces,
-        tables: Tables::with_axis(radius, friction(&d.friction)?, axis),
+        tables,
         thermal: thermal(&d.thermal)?,
         wear: wear(&d.wear)?,
         sensor: sensor(&d.sensor)?,
@@ -333,5 +440,4 @@ fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
             combination,
         },
     })
-    .map_err(|_| cw_status::CW_ERR_DEVICE)
 }

@@ -49,11 +49,14 @@ pub enum cw_status {
     CW_ERR_RECORD_DEVICE = 17,
     /// The state record's values contradict each other or the device.
     CW_ERR_RECORD_STATE = 18,
+    /// The friction-radius table's `lever_axis` is one this library was built without
+    /// (`cw_lever_axes_supported`).
+    CW_ERR_LEVER_AXIS = 19,
 }
 
 impl cw_status {
     /// Every status, in order.
-    pub const ALL: [Self; 19] = [
+    pub const ALL: [Self; 20] = [
         Self::CW_OK,
         Self::CW_ERR_NULL,
         Self::CW_ERR_CHANNELS,
@@ -73,6 +76,7 @@ impl cw_status {
         Self::CW_ERR_RECORD_FORMAT,
         Self::CW_ERR_RECORD_DEVICE,
         Self::CW_ERR_RECORD_STATE,
+        Self::CW_ERR_LEVER_AXIS,
     ];
 
     /// The status of a code, or `None` for a code that is none.
@@ -112,6 +116,9 @@ impl cw_status {
             }
             Self::CW_ERR_RECORD_DEVICE => c"state record saved for another device configuration",
             Self::CW_ERR_RECORD_STATE => c"state record values contradict each other or the device",
+            Self::CW_ERR_LEVER_AXIS => {
+                c"radius table lever axis (bedding or mu) not among those the library was built for"
+            }
         }
     }
 
