@@ -107,10 +107,13 @@ lib() {
     panic-check) features+=",panic-check" ;;
     panic-canary) features+=",panic-check,panic-canary" ;;
   esac
-  local args=(-q -p clampwise-capi --lib --profile capi --no-default-features --features "$features")
+  # The static library alone (`cargo rustc --crate-type staticlib`): built beside the rlib, the
+  # library keeps the rlib's Rust symbols, and LTO inlines less (+1.3 KiB of step on thumbv6m).
+  local args=(-q -p clampwise-capi --lib --profile capi --no-default-features --features "$features"
+    --crate-type staticlib)
   if [[ "$target" == host ]]; then dir="$TARGET_DIR/capi"; else
     args+=(--target "$target"); dir="$TARGET_DIR/$target/capi"; fi
-  cargo build "${args[@]}" >&2 || { fail "cargo build $target ($variant, $axis)"; return 1; }
+  cargo rustc "${args[@]}" >&2 || { fail "cargo rustc $target ($variant, $axis)"; return 1; }
   mkdir -p "$OUT/lib"
   cp "$dir/libclampwise_capi.a" "$OUT/lib/$target.$axis.$variant.a"
   echo "$OUT/lib/$target.$axis.$variant.a"

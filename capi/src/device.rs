@@ -147,83 +147,52 @@ fn flag(v: u8) -> Result<bool, cw_status> {
     }
 }
 
-/// An axis of a description: its `len` breakpoints in an array of the capacity `N` (zeros
-/// beyond), or `None` for a NULL array or a length beyond the capacity.
+/// `len` values of a description's array as fixed-point numbers of `F` fraction bits, read in
+/// place, or `None` for a NULL array.
 ///
 /// # Safety
 /// A pointer that is not NULL points to `len` readable values (the C contract).
-unsafe fn axis<const N: usize>(values: *const i32, len: u8) -> Option<[i32; N]> {
-    let len = usize::from(len);
-    if values.is_null() || len > N {
+unsafe fn bits_as<'a, F: LeEqU32>(values: *const i32, len: usize) -> Option<&'a [FixedI32<F>]> {
+    if values.is_null() {
         return None;
     }
-    // SAFETY: not NULL, `len` values by the contract.
-    let given = unsafe { core::slice::from_raw_parts(values, len) };
-    let mut out = [0; N];
-    for (slot, &v) in out.iter_mut().zip(given) {
-        *slot = v;
-    }
-    Some(out)
+    // SAFETY: not NULL, `len` values by the contract; `FixedI32<F>` is `repr(transparent)` over
+    // `i32`, so the values are read as they are, without a copy.
+    Some(unsafe { core::slice::from_raw_parts(values.cast::<FixedI32<F>>(), len) })
 }
 
-/// The grid of a description (`x_len` rows of `y_len` values, row by row) in arrays of the
-/// capacities `NX` × `NY` (zeros beyond), or `None` as for [`axis`].
+/// The table a description's exact-size arrays hold: `x_len` and `y_len` breakpoints and their
+/// grid, row by row.
 ///
 /// # Safety
-/// A pointer that is not NULL points to `x_len` × `y_len` readable values.
-unsafe fn grid<const NX: usize, const NY: usize>(
-    values: *const i32,
-    x_len: u8,
-    y_len: u8,
-) -> Option<[[i32; NY]; NX]> {
-    let (x_len, y_len) = (usize::from(x_len), usize::from(y_len));
-    if values.is_null() || x_len > NX || y_len > NY {
-        return None;
-    }
-    // SAFETY: not NULL, `x_len` × `y_len` values by the contract (at most 255²).
-    let given = unsafe { core::slice::from_raw_parts(values, x_len * y_len) };
-    let mut out = [[0; NY]; NX];
-    for (i, row) in out.iter_mut().enumerate().take(x_len) {
-        for (j, slot) in row.iter_mut().enumerate().take(y_len) {
-            *slot = given.get(i * y_len + j).copied().unwrap_or(0);
-        }
-    }
-    Some(out)
-}
-
-/// The table a description's exact-size arrays hold: `x_len` and `y_len` breakpoints and
-/// their grid.
-///
-/// # Safety
-/// As [`axis`] and [`grid`].
+/// A pointer that is not NULL points to the values its lengths say (the C contract).
 unsafe fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
     (x, x_len): (*const i32, u8),
     (y, y_len): (*const i32, u8),
     z: *const i32,
     error: cw_status,
 ) -> Result<Table2<X, Y, Z, NX, NY>, cw_status> {
+    let (x_len, y_len) = (usize::from(x_len), usize::from(y_len));
+    // Lengths beyond the capacities are refused before anything is read.
+    if x_len > NX || y_len > NY {
+        return Err(error);
+    }
     // SAFETY: forwarded to the caller.
     let arrays = unsafe {
         (
-            axis::<NX>(x, x_len),
-            axis::<NY>(y, y_len),
-            grid::<NX, NY>(z, x_len, y_len),
+            bits_as::<X>(x, x_len),
+            bits_as::<Y>(y, y_len),
+            bits_as::<Z>(z, x_len * y_len),
         )
     };
-    let (Some(x), Some(y), Some(z)) = arrays else {
+    let (Some(xs), Some(ys), Some(grid)) = arrays else {
         return Err(error);
     };
-    let (x_len, y_len) = (usize::from(x_len), usize::from(y_len));
-    let xs = x.map(FixedI32::<X>::from_bits);
-    let ys = y.map(FixedI32::<Y>::from_bits);
-    let zs = z.map(|row| row.map(FixedI32::<Z>::from_bits));
     let rows: [&[FixedI32<Z>]; NX] =
-        core::array::from_fn(|i| zs.get(i).and_then(|row| row.get(..y_len)).unwrap_or(&[]));
-    match (xs.get(..x_len), ys.get(..y_len), rows.get(..x_len)) {
-        (Some(xs), Some(ys), Some(rows)) => {
-            Table2::from_bit_slices(xs, ys, rows).map_err(|_| error)
-        }
-        _ => Err(error),
+        core::array::from_fn(|i| grid.get(i * y_len..(i + 1) * y_len).unwrap_or(&[]));
+    match rows.get(..x_len) {
+        Some(rows) => Table2::from_bit_slices(xs, ys, rows).map_err(|_| error),
+        None => Err(error),
     }
 }
 

@@ -338,12 +338,17 @@ pub unsafe extern "C" fn cw_estimator_restore(
     }
 }
 
+/// One sample of an estimator of `C` channels into the caller's estimate.
 fn step<const C: usize>(
     est: &mut storage::ChannelStepper<C>,
     inputs: &cw_inputs,
-) -> Result<cw_estimate, cw_status> {
-    let inputs = io::core_inputs::<C>(inputs)?;
-    Ok(io::c_estimate(&est.step(&inputs)))
+    estimate: &mut cw_estimate,
+) -> cw_status {
+    let Some(inputs) = io::core_inputs::<C>(inputs) else {
+        return cw_status::CW_ERR_INPUTS;
+    };
+    io::fill_estimate(&est.step(&inputs), estimate);
+    cw_status::CW_OK
 }
 
 /// One sample: the estimate of `inputs`, written to `estimate`.
@@ -366,23 +371,17 @@ pub unsafe extern "C" fn cw_estimator_step(
     };
     // SAFETY: not null, readable by the contract.
     let inputs = unsafe { &*inputs };
-    let result = match est {
+    // SAFETY: not null, writable by the contract; written only once the inputs are accepted.
+    let estimate = unsafe { &mut *estimate };
+    match est {
         #[cfg(feature = "channels-1")]
-        ChannelEstimator::One(e) => step(e, inputs),
+        ChannelEstimator::One(e) => step(e, inputs, estimate),
         #[cfg(feature = "channels-2")]
-        ChannelEstimator::Two(e) => step(e, inputs),
+        ChannelEstimator::Two(e) => step(e, inputs, estimate),
         #[cfg(feature = "channels-3")]
-        ChannelEstimator::Three(e) => step(e, inputs),
+        ChannelEstimator::Three(e) => step(e, inputs, estimate),
         #[cfg(feature = "channels-4")]
-        ChannelEstimator::Four(e) => step(e, inputs),
-    };
-    match result {
-        Ok(out) => {
-            // SAFETY: not null, writable by the contract.
-            unsafe { estimate.write(out) };
-            cw_status::CW_OK
-        }
-        Err(e) => e,
+        ChannelEstimator::Four(e) => step(e, inputs, estimate),
     }
 }
 
