@@ -12,12 +12,15 @@
 #      the Rust host replay, and its checks of the API's error paths
 #   5. the C example firmware for Cortex-M4F (thumbv7em-none-eabihf, QEMU mps2-an386) and
 #      Cortex-M0+ (thumbv6m-none-eabi, QEMU lm3s6965evb, which runs the v6-M subset), built with
-#      arm-none-eabi-gcc: its semihosting output identical to the Rust host replay (the demo
-#      device on both, the drum brake on the M4F)
-#   6. link-time panic check of the C images (+ negative control)
-#   7. size report of the thumbv6m image (library built for the demo's three channels): flash
-#      and RAM, and the step's call graph + the device description ("core + tables"); fails
-#      when that exceeds its regression limit (see size-report.sh)
+#      arm-none-eabi-gcc: its semihosting output identical to the Rust host replay, for the
+#      demo device and the drum brake on both (the M4F library with every channel count and
+#      both lever axes, the M0+ libraries with three channels and the one axis of the device);
+#      negative control: the M0+ bedding-only library refuses the drum brake with
+#      CW_ERR_LEVER_AXIS
+#   6. link-time panic check of the C images' libraries (+ negative control)
+#   7. size report of the thumbv6m images (the demo's library: three channels, bedding axis;
+#      the drum brake's beside it): flash and RAM, and the step's call graph + the device
+#      description ("core + tables"); fails unless the demo's is within 16 KiB
 # Installs gcc-arm-none-eabi and qemu-system-arm (apt, as root), the pinned toolchain's targets
 # (rustup) and cbindgen (cargo, into target/tools) when missing.
 set -uo pipefail

@@ -211,12 +211,13 @@ enum cw_status
    */
   CW_ERR_BAD_FLAG = 3,
   /**
-   * The friction-radius table: a length beyond its capacity, breakpoints not increasing, or
-   * an unknown `lever_axis`.
+   * The friction-radius table: a length beyond its capacity (over bedding two breakpoints in
+   * a library of the bedding axis alone), a NULL array, breakpoints not increasing, or an
+   * unknown `lever_axis`.
    */
   CW_ERR_RADIUS_TABLE = 4,
   /**
-   * The μ table: a length beyond its capacity, or breakpoints not increasing.
+   * The μ table: a length beyond its capacity, a NULL array, or breakpoints not increasing.
    */
   CW_ERR_MU_TABLE = 5,
   /**
@@ -399,7 +400,8 @@ typedef struct cw_radius_table {
    */
   uint8_t forces_len;
   /**
-   * Second-axis breakpoints, 1 … `CW_RADIUS_SECOND_MAX`.
+   * Second-axis breakpoints, 1 … `CW_RADIUS_SECOND_MAX` (over bedding the host's two, new
+   * and bedded, which is all a library of the bedding axis alone holds).
    */
   uint8_t second_len;
   /**

@@ -41,7 +41,8 @@ pub struct cw_radius_table {
     pub lever_axis: u8,
     /// Clamp-force breakpoints, 1 … `CW_RADIUS_FORCES_MAX`.
     pub forces_len: u8,
-    /// Second-axis breakpoints, 1 … `CW_RADIUS_SECOND_MAX`.
+    /// Second-axis breakpoints, 1 … `CW_RADIUS_SECOND_MAX` (over bedding the host's two, new
+    /// and bedded, which is all a library of the bedding axis alone holds).
     pub second_len: u8,
     /// `forces_len` clamp-force breakpoints, N, Q23.8, strictly increasing.
     pub force_q8: *const i32,

@@ -48,11 +48,22 @@ pub type Axis = clampwise_core::config::ByBedding;
 #[cfg(all(feature = "axis-mu", not(feature = "axis-bedding")))]
 pub type Axis = clampwise_core::config::ByMu;
 
+/// Capacity of the radius table's second axis in this build. Over bedding the host always
+/// has two breakpoints (new and bedded, 0 and 1), so a build of the bedding axis alone holds
+/// two — a smaller device in RAM and on the stack while it is built; over μ the API's whole
+/// capacity, `CW_RADIUS_SECOND_MAX`.
+#[cfg(not(feature = "axis-mu"))]
+pub const RADIUS_SECOND_CAPACITY: usize = 2;
+/// Capacity of the radius table's second axis in this build: the API's whole capacity, as
+/// the μ axis needs it.
+#[cfg(feature = "axis-mu")]
+pub const RADIUS_SECOND_CAPACITY: usize = CW_RADIUS_SECOND_MAX;
+
 /// The table capacities of the C API (the host's): every device's tables fit, at their exact
 /// sizes.
 pub type CapiTables = Tables<
     CW_RADIUS_FORCES_MAX,
-    CW_RADIUS_SECOND_MAX,
+    RADIUS_SECOND_CAPACITY,
     CW_MU_TEMPERATURES_MAX,
     CW_MU_SPEEDS_MAX,
     Axis,
@@ -368,7 +379,7 @@ unsafe fn parts<const C: usize>(
         return Err(cw_status::CW_ERR_LEVER_AXIS);
     }
     // SAFETY: forwarded to the caller.
-    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX> = unsafe {
+    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, RADIUS_SECOND_CAPACITY> = unsafe {
         table(
             (d.radius.force_q8, d.radius.forces_len),
             (d.radius.second_q30, d.radius.second_len),

@@ -17,10 +17,11 @@ pub enum cw_status {
     CW_ERR_CHANNELS = 2,
     /// A `has_*`, `two_node` or presence field is neither 0 nor 1.
     CW_ERR_BAD_FLAG = 3,
-    /// The friction-radius table: a length beyond its capacity, breakpoints not increasing, or
-    /// an unknown `lever_axis`.
+    /// The friction-radius table: a length beyond its capacity (over bedding two breakpoints in
+    /// a library of the bedding axis alone), a NULL array, breakpoints not increasing, or an
+    /// unknown `lever_axis`.
     CW_ERR_RADIUS_TABLE = 4,
-    /// The μ table: a length beyond its capacity, or breakpoints not increasing.
+    /// The μ table: a length beyond its capacity, a NULL array, or breakpoints not increasing.
     CW_ERR_MU_TABLE = 5,
     /// The friction model (stick/slip band, transition speed, drag) was rejected.
     CW_ERR_FRICTION = 6,

@@ -202,10 +202,12 @@ pub unsafe fn init_device(storage: *mut cw_device, desc: &cw_device_desc) -> Res
     Ok(())
 }
 
-/// Build a device of `C` channels in its slot.
+/// Build a device of `C` channels in its slot. Not inlined: each channel count's build keeps its
+/// temporaries in a frame of its own, so the stack holds those of one count, not of all.
 ///
 /// # Safety
 /// As [`init_device`].
+#[inline(never)]
 unsafe fn build<const C: usize>(
     storage: *mut cw_device,
     desc: &cw_device_desc,

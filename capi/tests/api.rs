@@ -498,6 +498,20 @@ fn the_lever_axes_are_those_of_the_features() {
 }
 
 #[test]
+fn the_radius_table_capacity_is_the_hosts() {
+    use clampwise_device::build_core::{RADIUS_BEDDING_POINTS, RADIUS_SECOND_POINTS};
+    // A library of the bedding axis alone holds the host's bedding breakpoints (new and
+    // bedded); one that takes μ devices holds the host's whole second axis.
+    let expected = if cfg!(feature = "axis-mu") {
+        RADIUS_SECOND_POINTS
+    } else {
+        RADIUS_BEDDING_POINTS
+    };
+    assert_eq!(clampwise_capi::device::RADIUS_SECOND_CAPACITY, expected);
+    assert_eq!(CW_RADIUS_SECOND_MAX, RADIUS_SECOND_POINTS);
+}
+
+#[test]
 fn every_status_has_its_own_message() {
     let mut seen = std::collections::HashSet::new();
     for s in cw_status::ALL {

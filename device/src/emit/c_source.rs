@@ -1,5 +1,6 @@
 //! A whole core `DeviceConfig` as C source: one `const cw_device_desc` initializer of raw
-//! bits for the C API (`capi/include/clampwise.h`), with the checksum the host computed.
+//! bits for the C API (`capi/include/clampwise.h`), with the checksum the host computed, and
+//! the two tables it points to as `static const` arrays at their exact sizes.
 //!
 //! `cw_device_init` builds the configuration from it through the core's own checked
 //! constructors and compares the checksum, so a C firmware holds the very numbers the host
