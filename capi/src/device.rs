@@ -31,8 +31,8 @@ use fixed::FixedI32;
 use fixed::types::extra::LeEqU32;
 
 use crate::desc::{
-    CW_MU_SPEEDS_MAX, CW_MU_TEMPERATURES_MAX, CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX, cw_adapt,
-    cw_channel, cw_debounce, cw_device_desc, cw_friction, cw_sensor, cw_thermal, cw_wear,
+    CW_MU_SPEEDS_MAX, CW_MU_TEMPERATURES_MAX, CW_RADIUS_FORCES_MAX, cw_adapt, cw_channel,
+    cw_debounce, cw_device_desc, cw_friction, cw_sensor, cw_thermal, cw_wear,
 };
 use crate::status::cw_status;
 
@@ -57,7 +57,7 @@ pub const RADIUS_SECOND_CAPACITY: usize = 2;
 /// Capacity of the radius table's second axis in this build: the API's whole capacity, as
 /// the μ axis needs it.
 #[cfg(feature = "axis-mu")]
-pub const RADIUS_SECOND_CAPACITY: usize = CW_RADIUS_SECOND_MAX;
+pub const RADIUS_SECOND_CAPACITY: usize = crate::desc::CW_RADIUS_SECOND_MAX;
 
 /// The table capacities of the C API (the host's): every device's tables fit, at their exact
 /// sizes.
