@@ -6,7 +6,8 @@
  *
  * Fields named _qN hold a value times 2^N (Qm.n: m integer bits after the sign, n fraction bits).
  * Every function returns a cw_status (CW_OK = 0), checks its pointers for NULL, and leaves its
- * outputs untouched on an error. Storage (cw_device, cw_estimator) is the caller's; an estimator
+ * outputs untouched on an error (cw_device_init builds in place: after an error its storage holds
+ * no device). Storage (cw_device, cw_estimator) is the caller's; an estimator
  * refers to its device, which must stay in place, unchanged, while the estimator is used.
  */
 

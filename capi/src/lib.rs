@@ -12,7 +12,8 @@
 //! ```
 //!
 //! * Every function returns a [`cw_status`] (0 = `CW_OK`), checks every pointer for NULL, and
-//!   leaves its outputs untouched on an error.
+//!   leaves its outputs untouched on an error; `cw_device_init` builds the device in place, so
+//!   after an error its storage holds no device.
 //! * Storage is the caller's ([`cw_device`], [`cw_estimator`]): nothing is allocated. An
 //!   estimator refers to its device, which must stay in place, unchanged, while it is used.
 //! * Inputs and outputs are integer fields in the core's fixed-point formats, so a C program

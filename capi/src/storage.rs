@@ -9,7 +9,9 @@
 //!
 //! Each slot starts with a magic word written last by the init function; a function handed
 //! storage without it returns `CW_ERR_NOT_INITIALISED` rather than reading garbage as an
-//! object.
+//! object. The device is built in place, inside its storage (the configuration is about as
+//! large as a small part's stack): its slot's header also names the channel count, which says
+//! what follows it.
 #![allow(non_camel_case_types)]
 
 use core::mem::{MaybeUninit, align_of, size_of};
