@@ -12,12 +12,15 @@
 #      the Rust host replay, and its checks of the API's error paths
 #   5. the C example firmware for Cortex-M4F (thumbv7em-none-eabihf, QEMU mps2-an386) and
 #      Cortex-M0+ (thumbv6m-none-eabi, QEMU lm3s6965evb, which runs the v6-M subset), built with
-#      arm-none-eabi-gcc: its semihosting output identical to the Rust host replay (the demo
-#      device on both, the drum brake on the M4F)
-#   6. link-time panic check of the C images (+ negative control)
-#   7. size report of the thumbv6m image (library built for the demo's three channels): flash
-#      and RAM, and the step's call graph + the device description ("core + tables"); fails
-#      when that exceeds its regression limit (see size-report.sh)
+#      arm-none-eabi-gcc: its semihosting output identical to the Rust host replay, for the
+#      demo device and the drum brake on both (the M4F library with every channel count and
+#      both lever axes, the M0+ libraries with three channels and the one axis of the device);
+#      negative control: the M0+ bedding-only library refuses the drum brake with
+#      CW_ERR_LEVER_AXIS
+#   6. link-time panic check of the C images' libraries (+ negative control)
+#   7. size report of the thumbv6m images (the demo's library: three channels, bedding axis;
+#      the drum brake's beside it): flash and RAM, and the step's call graph + the device
+#      description ("core + tables"); fails unless the demo's is within 16 KiB
 # Installs gcc-arm-none-eabi and qemu-system-arm (apt, as root), the pinned toolchain's targets
 # (rustup) and cbindgen (cargo, into target/tools) when missing.
 set -uo pipefail
@@ -79,23 +82,44 @@ channel_features() {
   esac
 }
 
-# lib TARGET VARIANT -> builds the static library (profile capi) and prints the path of a copy
-# kept per variant (the features change what cargo writes to the same path).
+# The lever axes compiled in: "both" (read at run time) or the one axis of a known device.
+axis_features() {
+  case "$1" in
+    both) echo "axis-bedding,axis-mu" ;;
+    bedding) echo "axis-bedding" ;;
+    mu) echo "axis-mu" ;;
+  esac
+}
+
+# The lever axes a target's library has: thumbv6m the one of its device (bedding for the demo,
+# μ for the drum brake), the others both.
+target_axis() {
+  case "$1" in
+    thumbv6m-none-eabi) echo "${2:-bedding}" ;;
+    *) echo both ;;
+  esac
+}
+
+# lib TARGET VARIANT [AXIS] -> builds the static library (profile capi) and prints the path of
+# a copy kept per variant (the features change what cargo writes to the same path).
 lib() {
-  local target="$1" variant="$2" features dir
-  features="$(channel_features "$target")"
+  local target="$1" variant="$2" axis="${3:-both}" features dir
+  features="$(channel_features "$target"),$(axis_features "$axis")"
   case "$variant" in
     plain) ;;
     panic-check) features+=",panic-check" ;;
     panic-canary) features+=",panic-check,panic-canary" ;;
   esac
-  local args=(-q -p clampwise-capi --lib --profile capi --no-default-features --features "$features")
+  # The static library alone (`cargo rustc --crate-type staticlib`): built beside the rlib, the
+  # library keeps the rlib's Rust symbols, and LTO inlines less (+1.3 KiB of step on thumbv6m).
+  local args=(-q -p clampwise-capi --lib --profile capi --no-default-features --features "$features"
+    --crate-type staticlib)
   if [[ "$target" == host ]]; then dir="$TARGET_DIR/capi"; else
     args+=(--target "$target"); dir="$TARGET_DIR/$target/capi"; fi
-  cargo build "${args[@]}" >&2 || { fail "cargo build $target ($variant)"; return 1; }
+  cargo rustc "${args[@]}" >&2 || { fail "cargo rustc $target ($variant, $axis)"; return 1; }
   mkdir -p "$OUT/lib"
-  cp "$dir/libclampwise_capi.a" "$OUT/lib/$target.$variant.a"
-  echo "$OUT/lib/$target.$variant.a"
+  cp "$dir/libclampwise_capi.a" "$OUT/lib/$target.$axis.$variant.a"
+  echo "$OUT/lib/$target.$axis.$variant.a"
 }
 
 # firmware TARGET LIB ELF [FIXTURE_DIR] -> links the C example firmware with the library.
@@ -197,30 +221,51 @@ qemu_run() {
 qemu_runs() {
   local t lib
   for t in "${FW_TARGETS[@]}"; do
-    lib="$(lib "$t" plain)"
+    lib="$(lib "$t" plain "$(target_axis "$t")")"
     firmware "$t" "$lib" "$OUT/$t.elf"
     qemu_run "$t" "$OUT/$t.elf" "$OUT" "$t"
   done
-  # The drum brake on the M4F (its library has every channel count).
+  # The drum brake: on the M4F with the same library (both axes), on the M0+ with a library of
+  # the μ axis alone.
   t="${FW_TARGETS[0]}"
-  firmware "$t" "$OUT/lib/$t.plain.a" "$OUT/$t.drum.elf" "$OUT/drum"
+  firmware "$t" "$OUT/lib/$t.both.plain.a" "$OUT/$t.drum.elf" "$OUT/drum"
   qemu_run "$t" "$OUT/$t.drum.elf" "$OUT/drum" "$t.drum"
+  t="${FW_TARGETS[1]}"
+  lib="$(lib "$t" plain "$(target_axis "$t" mu)")"
+  firmware "$t" "$lib" "$OUT/$t.drum.elf" "$OUT/drum"
+  qemu_run "$t" "$OUT/$t.drum.elf" "$OUT/drum" "$t.drum"
+  # Negative control: the bedding-only library refuses the drum brake at init, by its code.
+  firmware "$t" "$OUT/lib/$t.bedding.plain.a" "$OUT/$t.wrong-axis.elf" "$OUT/drum"
+  # shellcheck disable=SC2046 # the machine flags are meant to split
+  if timeout 60 qemu-system-arm $(qemu_of "$t") -nographic -semihosting-config enable=on,target=native \
+    -kernel "$OUT/$t.wrong-axis.elf" >"$OUT/$t.wrong-axis.qemu.txt" 2>&1; then
+    fail "$t: the bedding-only library started the drum brake (μ axis)"
+  fi
+  grep -q '^error,at=device_init,.*status=19,' "$OUT/$t.wrong-axis.qemu.txt" \
+    || fail "$t: the drum brake on the bedding-only library did not fail with CW_ERR_LEVER_AXIS (see $OUT/$t.wrong-axis.qemu.txt)"
+  log "$t: the bedding-only library refuses the drum brake with CW_ERR_LEVER_AXIS"
 }
 
 panic_re='rust_begin_unwind|core::panicking|panic_fmt|panic_bounds_check|unwrap_failed|clampwise_capi_panic_path_is_reachable'
 
 panic_check() {
-  local t lib elf syms
-  for t in "${FW_TARGETS[@]}"; do
-    lib="$(lib "$t" panic-check)"
-    elf="$OUT/$t.panic-check.elf"
-    firmware "$t" "$lib" "$elf" || fail "$t: the image with the panic-check library does not link"
+  local t lib elf syms axis name
+  # Every library a shipped image links: per target its demo axis, and the M0+ drum's μ.
+  for name in "${FW_TARGETS[0]}:both" "${FW_TARGETS[1]}:bedding" "${FW_TARGETS[1]}:mu"; do
+    t="${name%%:*}" axis="${name#*:}"
+    lib="$(lib "$t" panic-check "$axis")"
+    elf="$OUT/$t.$axis.panic-check.elf"
+    firmware "$t" "$lib" "$elf" || fail "$t ($axis): the image with the panic-check library does not link"
     syms="$(arm-none-eabi-nm -C "$elf")"
-    ! grep -qE "$panic_re" <<<"$syms" || fail "$t: a panic symbol is linked into the image"
-    syms="$(arm-none-eabi-nm -C "$OUT/$t.elf")"
-    ! grep -qE "$panic_re" <<<"$syms" || fail "$t: the shipped image holds a panic path"
-    log "$t: panic-free C image links; the shipped image holds no panic symbol"
+    ! grep -qE "$panic_re" <<<"$syms" || fail "$t ($axis): a panic symbol is linked into the image"
+    log "$t ($axis): panic-free C image links"
   done
+  for elf in "$OUT"/*.elf; do
+    [[ "$elf" == *panic-check* || "$elf" == *canary* ]] && continue
+    syms="$(arm-none-eabi-nm -C "$elf")"
+    ! grep -qE "$panic_re" <<<"$syms" || fail "$(basename "$elf"): the shipped image holds a panic path"
+  done
+  log "the shipped images hold no panic symbol"
   t="${FW_TARGETS[0]}"
   lib="$(lib "$t" panic-canary)"
   if firmware "$t" "$lib" "$OUT/$t.canary.elf" 2>"$OUT/panic-canary.log"; then
@@ -232,6 +277,8 @@ panic_check() {
 
 size_report() {
   bash "$CAPI/size-report.sh" "$OUT/thumbv6m-none-eabi.elf" "$OUT/thumbv6m-none-eabi.qemu.txt" --check
+  # The drum brake's image beside it (its own axis; reported, not limited).
+  bash "$CAPI/size-report.sh" "$OUT/thumbv6m-none-eabi.drum.elf" "$OUT/thumbv6m-none-eabi.drum.qemu.txt"
 }
 
 mkdir -p "$OUT"

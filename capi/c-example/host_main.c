@@ -39,6 +39,14 @@ static uint32_t packed_version(const char *text) {
     return (packed << 8) | (part & 0xffu);
 }
 
+/* The first n values of a description's table array, into a copy a check may change. */
+static void copy_values(int32_t *to, const int32_t *from, uint32_t n) {
+    uint32_t i;
+    for (i = 0u; i < n; i++) {
+        to[i] = from[i];
+    }
+}
+
 static cw_device dev;
 static cw_device other;
 static cw_estimator est;
@@ -46,6 +54,8 @@ static cw_estimator never_started;
 
 static void api_checks(void) {
     cw_device_desc desc = clampwise_device_desc;
+    int32_t mu[CW_MU_TEMPERATURES_MAX * CW_MU_SPEEDS_MAX];
+    int32_t speeds[CW_MU_SPEEDS_MAX];
     cw_estimate out;
     cw_inputs in = clampwise_trace[0];
     uint8_t record[CW_RECORD_LEN];
@@ -69,8 +79,15 @@ static void api_checks(void) {
     desc.checksum ^= 1u;
     expect("init, checksum off by one bit", cw_device_init(&dev, &desc), CW_ERR_CHECKSUM);
     desc = clampwise_device_desc;
-    desc.friction.mu.mu_q30[0][0] += 1;
+    copy_values(mu, desc.friction.mu.mu_q30,
+                (uint32_t)desc.friction.mu.temperatures_len * desc.friction.mu.speeds_len);
+    mu[0] += 1;
+    desc.friction.mu.mu_q30 = mu;
     expect("init, one table bit changed", cw_device_init(&dev, &desc), CW_ERR_CHECKSUM);
+    desc = clampwise_device_desc;
+    desc.radius.radius_q24 = NULL;
+    expect("init, radius table without its array", cw_device_init(&dev, &desc),
+           CW_ERR_RADIUS_TABLE);
     desc = clampwise_device_desc;
     desc.channels = 5u;
     expect("init, 5 channels", cw_device_init(&dev, &desc), CW_ERR_CHANNELS);
@@ -79,8 +96,17 @@ static void api_checks(void) {
     expect("init, radius table beyond capacity", cw_device_init(&dev, &desc),
            CW_ERR_RADIUS_TABLE);
     desc = clampwise_device_desc;
-    desc.friction.mu.speed_q16[1] = desc.friction.mu.speed_q16[0];
+    copy_values(speeds, desc.friction.mu.speed_q16, desc.friction.mu.speeds_len);
+    speeds[1] = speeds[0];
+    desc.friction.mu.speed_q16 = speeds;
     expect("init, mu breakpoints not increasing", cw_device_init(&dev, &desc), CW_ERR_MU_TABLE);
+    desc = clampwise_device_desc;
+    desc.radius.lever_axis = 2u;
+    expect("init, unknown lever axis", cw_device_init(&dev, &desc), CW_ERR_RADIUS_TABLE);
+    expect("a refused build leaves no device", cw_device_checksum(&dev, &checksum),
+           CW_ERR_NOT_INITIALISED);
+    expect("both lever axes in the host library",
+           cw_lever_axes_supported() == 3u ? CW_OK : CW_ERR_LEVER_AXIS, CW_OK);
     desc = clampwise_device_desc;
     desc.has_adapt = 2u;
     expect("init, has_adapt = 2", cw_device_init(&dev, &desc), CW_ERR_BAD_FLAG);

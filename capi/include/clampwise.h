@@ -6,7 +6,8 @@
  *
  * Fields named _qN hold a value times 2^N (Qm.n: m integer bits after the sign, n fraction bits).
  * Every function returns a cw_status (CW_OK = 0), checks its pointers for NULL, and leaves its
- * outputs untouched on an error. Storage (cw_device, cw_estimator) is the caller's; an estimator
+ * outputs untouched on an error (cw_device_init builds in place: after an error its storage holds
+ * no device). Storage (cw_device, cw_estimator) is the caller's; an estimator
  * refers to its device, which must stay in place, unchanged, while the estimator is used.
  */
 
@@ -211,12 +212,13 @@ enum cw_status
    */
   CW_ERR_BAD_FLAG = 3,
   /**
-   * The friction-radius table: a length beyond its capacity, breakpoints not increasing, or
-   * an unknown `lever_axis`.
+   * The friction-radius table: a length beyond its capacity (over bedding two breakpoints in
+   * a library of the bedding axis alone), a NULL array, breakpoints not increasing, or an
+   * unknown `lever_axis`.
    */
   CW_ERR_RADIUS_TABLE = 4,
   /**
-   * The μ table: a length beyond its capacity, or breakpoints not increasing.
+   * The μ table: a length beyond its capacity, a NULL array, or breakpoints not increasing.
    */
   CW_ERR_MU_TABLE = 5,
   /**
@@ -272,6 +274,11 @@ enum cw_status
    * The state record's values contradict each other or the device.
    */
   CW_ERR_RECORD_STATE = 18,
+  /**
+   * The friction-radius table's `lever_axis` is one this library was built without
+   * (`cw_lever_axes_supported`).
+   */
+  CW_ERR_LEVER_AXIS = 19,
 };
 #ifndef __cplusplus
 #if __STDC_VERSION__ >= 202311L
@@ -381,7 +388,8 @@ typedef struct cw_device {
 } cw_device;
 
 /**
- * The friction-radius table r(clamp force, second axis): the per-face lever arm.
+ * The friction-radius table r(clamp force, second axis): the per-face lever arm. The arrays
+ * are the caller's, at their exact sizes, and must stay readable during `cw_device_init`.
  */
 typedef struct cw_radius_table {
   /**
@@ -389,51 +397,56 @@ typedef struct cw_radius_table {
    */
   uint8_t lever_axis;
   /**
-   * Clamp-force breakpoints in use, 1 … `CW_RADIUS_FORCES_MAX`.
+   * Clamp-force breakpoints, 1 … `CW_RADIUS_FORCES_MAX`.
    */
   uint8_t forces_len;
   /**
-   * Second-axis breakpoints in use, 1 … `CW_RADIUS_SECOND_MAX`.
+   * Second-axis breakpoints, 1 … `CW_RADIUS_SECOND_MAX` (over bedding the host's two, new
+   * and bedded, which is all a library of the bedding axis alone holds).
    */
   uint8_t second_len;
   /**
-   * Clamp-force breakpoints, N, Q23.8, strictly increasing.
+   * `forces_len` clamp-force breakpoints, N, Q23.8, strictly increasing.
    */
-  int32_t force_q8[CW_RADIUS_FORCES_MAX];
+  const int32_t *force_q8;
   /**
-   * Second-axis breakpoints (bedding fraction 0 … 1, or μ), 1, Q1.30, strictly increasing.
+   * `second_len` second-axis breakpoints (bedding fraction 0 … 1, or μ), 1, Q1.30,
+   * strictly increasing.
    */
-  int32_t second_q30[CW_RADIUS_SECOND_MAX];
+  const int32_t *second_q30;
   /**
-   * Lever arm at (force i, second-axis value j), m, Q7.24.
+   * `forces_len` × `second_len` lever arms, row by row: the one at (force i, second-axis
+   * value j) is `radius_q24[i * second_len + j]`, m, Q7.24.
    */
-  int32_t radius_q24[CW_RADIUS_FORCES_MAX][CW_RADIUS_SECOND_MAX];
+  const int32_t *radius_q24;
 } cw_radius_table;
 
 /**
- * The kinetic friction coefficient table μ(lining temperature, |slip speed|).
+ * The kinetic friction coefficient table μ(lining temperature, |slip speed|). The arrays are
+ * the caller's, at their exact sizes, and must stay readable during `cw_device_init`.
  */
 typedef struct cw_mu_table {
   /**
-   * Temperature breakpoints in use, 1 … `CW_MU_TEMPERATURES_MAX`.
+   * Temperature breakpoints, 1 … `CW_MU_TEMPERATURES_MAX`.
    */
   uint8_t temperatures_len;
   /**
-   * Slip-speed breakpoints in use, 1 … `CW_MU_SPEEDS_MAX`.
+   * Slip-speed breakpoints, 1 … `CW_MU_SPEEDS_MAX`.
    */
   uint8_t speeds_len;
   /**
-   * Lining-temperature breakpoints, °C, Q15.16, strictly increasing.
+   * `temperatures_len` lining-temperature breakpoints, °C, Q15.16, strictly increasing.
    */
-  int32_t temperature_q16[CW_MU_TEMPERATURES_MAX];
+  const int32_t *temperature_q16;
   /**
-   * |Slip-speed| breakpoints, rad/s, Q15.16, strictly increasing.
+   * `speeds_len` |slip-speed| breakpoints, rad/s, Q15.16, strictly increasing.
    */
-  int32_t speed_q16[CW_MU_SPEEDS_MAX];
+  const int32_t *speed_q16;
   /**
-   * μ at (temperature i, speed j), 1, Q1.30.
+   * `temperatures_len` × `speeds_len` values of μ, row by row: the one at (temperature i,
+   * speed j) is `mu_q30[i * speeds_len + j]`, 1, Q1.30.
    */
-  int32_t mu_q30[CW_MU_TEMPERATURES_MAX][CW_MU_SPEEDS_MAX];
+  const int32_t *mu_q30;
 } cw_mu_table;
 
 /**
@@ -979,7 +992,7 @@ typedef struct cw_estimate {
 /**
  * Every status, in order.
  */
-#define cw_status_ALL { CW_OK, CW_ERR_NULL, CW_ERR_CHANNELS, CW_ERR_BAD_FLAG, CW_ERR_RADIUS_TABLE, CW_ERR_MU_TABLE, CW_ERR_FRICTION, CW_ERR_THERMAL, CW_ERR_WEAR, CW_ERR_SENSOR, CW_ERR_ADAPT, CW_ERR_DEVICE, CW_ERR_CHECKSUM, CW_ERR_NOT_INITIALISED, CW_ERR_INPUTS, CW_ERR_BUFFER, CW_ERR_RECORD_FORMAT, CW_ERR_RECORD_DEVICE, CW_ERR_RECORD_STATE, }
+#define cw_status_ALL { CW_OK, CW_ERR_NULL, CW_ERR_CHANNELS, CW_ERR_BAD_FLAG, CW_ERR_RADIUS_TABLE, CW_ERR_MU_TABLE, CW_ERR_FRICTION, CW_ERR_THERMAL, CW_ERR_WEAR, CW_ERR_SENSOR, CW_ERR_ADAPT, CW_ERR_DEVICE, CW_ERR_CHECKSUM, CW_ERR_NOT_INITIALISED, CW_ERR_INPUTS, CW_ERR_BUFFER, CW_ERR_RECORD_FORMAT, CW_ERR_RECORD_DEVICE, CW_ERR_RECORD_STATE, CW_ERR_LEVER_AXIS, }
 
 #ifdef __cplusplus
 extern "C" {
@@ -990,6 +1003,12 @@ extern "C" {
  * clamp-force channels is supported (0x0f: 1 to 4).
  */
 uint8_t cw_channels_supported(void);
+
+/**
+ * The lever axes this library was built for: bit `cw_lever_axis` set for each (0x03: both,
+ * read at run time; 0x01 or 0x02: the one of the feature `axis-bedding` or `axis-mu`).
+ */
+uint8_t cw_lever_axes_supported(void);
 
 /**
  * The library's version as `major << 16 | minor << 8 | patch`.
@@ -1019,10 +1038,12 @@ cw_status cw_abi_check(uint32_t desc_size,
 
 /**
  * Build a device from its description, check it with the core's constructors and compare
- * its checksum with `desc->checksum`. On an error `device` is left uninitialised.
+ * its checksum with `desc->checksum`. The device is built in place: on an error `device`
+ * holds no device (functions given it return `CW_ERR_NOT_INITIALISED`).
  *
  * # Safety
- * `device` points to writable storage no estimator uses; `desc` to a readable description.
+ * `device` points to writable storage no estimator uses; `desc` to a readable description
+ * whose table arrays hold the values their lengths say.
  */
 cw_status cw_device_init(struct cw_device *device, const struct cw_device_desc *desc);
 

@@ -4,7 +4,9 @@
 //! `clampwise tables --emit-c FILE.c` writes one as a `const` initializer, with the checksum
 //! the host computed; nothing here is meant to be typed in by hand. Q formats are written
 //! `Qm.n` (m integer bits after the sign, n fraction bits): a `_qN` field holds the value × 2ᴺ.
-//! Tables sit in fixed capacities with their lengths; entries beyond the lengths are ignored.
+//! Tables are arrays of their exact sizes the description points to (`const` data in flash
+//! beside it), with their lengths; each length must be within the API's capacity for that
+//! axis (`CW_*_MAX`), which is what the device built in RAM holds.
 #![allow(non_camel_case_types)]
 
 /// Capacity of the friction-radius table's clamp-force axis.
@@ -30,38 +32,71 @@ pub enum cw_lever_axis {
     CW_LEVER_AXIS_MU = 1,
 }
 
-/// The friction-radius table r(clamp force, second axis): the per-face lever arm.
+/// The friction-radius table r(clamp force, second axis): the per-face lever arm. The arrays
+/// are the caller's, at their exact sizes, and must stay readable during `cw_device_init`.
 #[repr(C)]
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct cw_radius_table {
     /// What the second axis is: a `cw_lever_axis` value.
     pub lever_axis: u8,
-    /// Clamp-force breakpoints in use, 1 … `CW_RADIUS_FORCES_MAX`.
+    /// Clamp-force breakpoints, 1 … `CW_RADIUS_FORCES_MAX`.
     pub forces_len: u8,
-    /// Second-axis breakpoints in use, 1 … `CW_RADIUS_SECOND_MAX`.
+    /// Second-axis breakpoints, 1 … `CW_RADIUS_SECOND_MAX` (over bedding the host's two, new
+    /// and bedded, which is all a library of the bedding axis alone holds).
     pub second_len: u8,
-    /// Clamp-force breakpoints, N, Q23.8, strictly increasing.
-    pub force_q8: [i32; CW_RADIUS_FORCES_MAX],
-    /// Second-axis breakpoints (bedding fraction 0 … 1, or μ), 1, Q1.30, strictly increasing.
-    pub second_q30: [i32; CW_RADIUS_SECOND_MAX],
-    /// Lever arm at (force i, second-axis value j), m, Q7.24.
-    pub radius_q24: [[i32; CW_RADIUS_SECOND_MAX]; CW_RADIUS_FORCES_MAX],
+    /// `forces_len` clamp-force breakpoints, N, Q23.8, strictly increasing.
+    pub force_q8: *const i32,
+    /// `second_len` second-axis breakpoints (bedding fraction 0 … 1, or μ), 1, Q1.30,
+    /// strictly increasing.
+    pub second_q30: *const i32,
+    /// `forces_len` × `second_len` lever arms, row by row: the one at (force i, second-axis
+    /// value j) is `radius_q24[i * second_len + j]`, m, Q7.24.
+    pub radius_q24: *const i32,
 }
 
-/// The kinetic friction coefficient table μ(lining temperature, |slip speed|).
+impl Default for cw_radius_table {
+    /// No table: lengths 0, NULL arrays (`cw_device_init` refuses it).
+    fn default() -> Self {
+        Self {
+            lever_axis: 0,
+            forces_len: 0,
+            second_len: 0,
+            force_q8: core::ptr::null(),
+            second_q30: core::ptr::null(),
+            radius_q24: core::ptr::null(),
+        }
+    }
+}
+
+/// The kinetic friction coefficient table μ(lining temperature, |slip speed|). The arrays are
+/// the caller's, at their exact sizes, and must stay readable during `cw_device_init`.
 #[repr(C)]
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct cw_mu_table {
-    /// Temperature breakpoints in use, 1 … `CW_MU_TEMPERATURES_MAX`.
+    /// Temperature breakpoints, 1 … `CW_MU_TEMPERATURES_MAX`.
     pub temperatures_len: u8,
-    /// Slip-speed breakpoints in use, 1 … `CW_MU_SPEEDS_MAX`.
+    /// Slip-speed breakpoints, 1 … `CW_MU_SPEEDS_MAX`.
     pub speeds_len: u8,
-    /// Lining-temperature breakpoints, °C, Q15.16, strictly increasing.
-    pub temperature_q16: [i32; CW_MU_TEMPERATURES_MAX],
-    /// |Slip-speed| breakpoints, rad/s, Q15.16, strictly increasing.
-    pub speed_q16: [i32; CW_MU_SPEEDS_MAX],
-    /// μ at (temperature i, speed j), 1, Q1.30.
-    pub mu_q30: [[i32; CW_MU_SPEEDS_MAX]; CW_MU_TEMPERATURES_MAX],
+    /// `temperatures_len` lining-temperature breakpoints, °C, Q15.16, strictly increasing.
+    pub temperature_q16: *const i32,
+    /// `speeds_len` |slip-speed| breakpoints, rad/s, Q15.16, strictly increasing.
+    pub speed_q16: *const i32,
+    /// `temperatures_len` × `speeds_len` values of μ, row by row: the one at (temperature i,
+    /// speed j) is `mu_q30[i * speeds_len + j]`, 1, Q1.30.
+    pub mu_q30: *const i32,
+}
+
+impl Default for cw_mu_table {
+    /// No table: lengths 0, NULL arrays (`cw_device_init` refuses it).
+    fn default() -> Self {
+        Self {
+            temperatures_len: 0,
+            speeds_len: 0,
+            temperature_q16: core::ptr::null(),
+            speed_q16: core::ptr::null(),
+            mu_q30: core::ptr::null(),
+        }
+    }
 }
 
 /// The friction model: μ table, stick/slip band and drag.

@@ -3,11 +3,17 @@
 //! compared with the one the description carries.
 //!
 //! The channel count is a type parameter of the core's configuration and a run-time value in
-//! C: [`ChannelDevice`] holds one variant per count, and code that uses it matches once.
+//! C: [`DeviceRef`] holds one variant per count, and code that uses it matches once. The device
+//! is built in place, in the caller's storage (see [`crate::storage`]): the configuration is
+//! about as large as a small part's whole stack.
 
 use clampwise_core::adapt::{AdaptConfig, AdaptRaw};
+use core::mem::MaybeUninit;
+
+#[cfg(all(feature = "axis-bedding", feature = "axis-mu"))]
+use clampwise_core::config::ByEither;
 use clampwise_core::config::{
-    ByEither, DeviceConfig, DeviceParts, LeverAxis, Limits, Tables, Tolerances,
+    AxisKind, DeviceConfig, DeviceParts, LeverAxis, Limits, Tables, Tolerances,
 };
 use clampwise_core::estimator::Combination;
 use clampwise_core::friction::{FrictionConfig, MuTable, ViscousDrag};
@@ -25,68 +31,67 @@ use fixed::FixedI32;
 use fixed::types::extra::LeEqU32;
 
 use crate::desc::{
-    CW_MU_SPEEDS_MAX, CW_MU_TEMPERATURES_MAX, CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX, cw_adapt,
-    cw_channel, cw_debounce, cw_device_desc, cw_friction, cw_sensor, cw_thermal, cw_wear,
+    CW_MU_SPEEDS_MAX, CW_MU_TEMPERATURES_MAX, CW_RADIUS_FORCES_MAX, cw_adapt, cw_channel,
+    cw_debounce, cw_device_desc, cw_friction, cw_sensor, cw_thermal, cw_wear,
 };
 use crate::status::cw_status;
 
+/// The radius table's second axis as this library's build fixes it: both axes (read at run
+/// time, as on the host), or the one axis of the features `axis-bedding` / `axis-mu` alone, so
+/// the step holds only that axis's lever-arm code.
+#[cfg(all(feature = "axis-bedding", feature = "axis-mu"))]
+pub type Axis = ByEither;
+/// The radius table's second axis as this library's build fixes it (bedding alone).
+#[cfg(all(feature = "axis-bedding", not(feature = "axis-mu")))]
+pub type Axis = clampwise_core::config::ByBedding;
+/// The radius table's second axis as this library's build fixes it (μ alone).
+#[cfg(all(feature = "axis-mu", not(feature = "axis-bedding")))]
+pub type Axis = clampwise_core::config::ByMu;
+
+/// Capacity of the radius table's second axis in this build. Over bedding the host always
+/// has two breakpoints (new and bedded, 0 and 1), so a build of the bedding axis alone holds
+/// two — a smaller device in RAM and on the stack while it is built; over μ the API's whole
+/// capacity, `CW_RADIUS_SECOND_MAX`.
+#[cfg(not(feature = "axis-mu"))]
+pub const RADIUS_SECOND_CAPACITY: usize = 2;
+/// Capacity of the radius table's second axis in this build: the API's whole capacity, as
+/// the μ axis needs it.
+#[cfg(feature = "axis-mu")]
+pub const RADIUS_SECOND_CAPACITY: usize = crate::desc::CW_RADIUS_SECOND_MAX;
+
 /// The table capacities of the C API (the host's): every device's tables fit, at their exact
-/// sizes; the radius table's second axis is read at run time.
+/// sizes.
 pub type CapiTables = Tables<
     CW_RADIUS_FORCES_MAX,
-    CW_RADIUS_SECOND_MAX,
+    RADIUS_SECOND_CAPACITY,
     CW_MU_TEMPERATURES_MAX,
     CW_MU_SPEEDS_MAX,
-    ByEither,
+    Axis,
 >;
 
 /// The core's configuration of a device with `C` channels at the C API's capacities.
 pub type Device<const C: usize> = DeviceConfig<CapiTables, C>;
 
-/// A device of 1, 2, 3 or 4 clamp-force channels.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub enum ChannelDevice {
+/// A built device of 1, 2, 3 or 4 clamp-force channels, where it sits in its storage.
+#[derive(Clone, Copy, Debug)]
+pub enum DeviceRef<'a> {
     /// One channel.
     #[cfg(feature = "channels-1")]
-    One(Device<1>),
+    One(&'a Device<1>),
     /// Two channels.
     #[cfg(feature = "channels-2")]
-    Two(Device<2>),
+    Two(&'a Device<2>),
     /// Three channels.
     #[cfg(feature = "channels-3")]
-    Three(Device<3>),
+    Three(&'a Device<3>),
     /// Four channels.
     #[cfg(feature = "channels-4")]
-    Four(Device<4>),
+    Four(&'a Device<4>),
 }
 
-impl ChannelDevice {
-    /// Build and check the device a description holds.
-    ///
-    /// # Errors
-    /// The [`cw_status`] naming the part the core rejected, or
-    /// [`cw_status::CW_ERR_CHECKSUM`] when the numbers are not those the host emitted.
-    pub fn from_desc(d: &cw_device_desc) -> Result<Self, cw_status> {
-        let device = match d.channels {
-            #[cfg(feature = "channels-1")]
-            1 => Self::One(device(d)?),
-            #[cfg(feature = "channels-2")]
-            2 => Self::Two(device(d)?),
-            #[cfg(feature = "channels-3")]
-            3 => Self::Three(device(d)?),
-            #[cfg(feature = "channels-4")]
-            4 => Self::Four(device(d)?),
-            _ => return Err(cw_status::CW_ERR_CHANNELS),
-        };
-        if device.checksum() == d.checksum {
-            Ok(device)
-        } else {
-            Err(cw_status::CW_ERR_CHECKSUM)
-        }
-    }
-
+impl DeviceRef<'_> {
     /// The core's checksum of the configuration.
-    pub fn checksum(&self) -> u32 {
+    pub fn checksum(self) -> u32 {
         match self {
             #[cfg(feature = "channels-1")]
             Self::One(d) => d.checksum(),
@@ -100,7 +105,7 @@ impl ChannelDevice {
     }
 
     /// Number of clamp-force channels.
-    pub const fn channels(&self) -> u8 {
+    pub const fn channels(self) -> u8 {
         match self {
             #[cfg(feature = "channels-1")]
             Self::One(_) => 1,
@@ -114,6 +119,37 @@ impl ChannelDevice {
     }
 }
 
+/// The lever axes this library was built for: bit `cw_lever_axis` set for each.
+pub(crate) const LEVER_AXES: u8 = match Axis::FIXED {
+    None => 0b11,
+    Some(LeverAxis::Bedding) => 0b01,
+    Some(LeverAxis::Mu) => 0b10,
+};
+
+/// Build the device a description holds into `out`, through the core's checked
+/// constructors, and compare its checksum with the description's.
+///
+/// # Errors
+/// The [`cw_status`] naming the part the core rejected, [`cw_status::CW_ERR_LEVER_AXIS`] for
+/// an axis this build left out, or [`cw_status::CW_ERR_CHECKSUM`] when the numbers are not
+/// those the host emitted.
+///
+/// # Safety
+/// The description's table arrays hold what its lengths say (the C contract).
+pub unsafe fn build_in<'o, const C: usize>(
+    out: &'o mut MaybeUninit<Device<C>>,
+    d: &cw_device_desc,
+) -> Result<&'o Device<C>, cw_status> {
+    // SAFETY: forwarded to the caller.
+    let parts = unsafe { parts::<C>(d) }?;
+    let device = DeviceConfig::from_parts_in(out, &parts).map_err(|_| cw_status::CW_ERR_DEVICE)?;
+    if device.checksum() == d.checksum {
+        Ok(device)
+    } else {
+        Err(cw_status::CW_ERR_CHECKSUM)
+    }
+}
+
 fn flag(v: u8) -> Result<bool, cw_status> {
     match v {
         0 => Ok(false),
@@ -122,36 +158,71 @@ fn flag(v: u8) -> Result<bool, cw_status> {
     }
 }
 
-/// A table of the first `x_len` × `y_len` breakpoints of fixed-capacity arrays of raw bits.
-fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
-    (x, x_len): (&[i32; NX], u8),
-    (y, y_len): (&[i32; NY], u8),
-    z: &[[i32; NY]; NX],
+/// `len` values of a description's array as fixed-point numbers of `F` fraction bits, read in
+/// place, or `None` for a NULL array.
+///
+/// # Safety
+/// A pointer that is not NULL points to `len` readable values (the C contract).
+unsafe fn bits_as<'a, F: LeEqU32>(values: *const i32, len: usize) -> Option<&'a [FixedI32<F>]> {
+    if values.is_null() {
+        return None;
+    }
+    // SAFETY: not NULL, `len` values by the contract; `FixedI32<F>` is `repr(transparent)` over
+    // `i32`, so the values are read as they are, without a copy.
+    Some(unsafe { core::slice::from_raw_parts(values.cast::<FixedI32<F>>(), len) })
+}
+
+/// The table a description's exact-size arrays hold: `x_len` and `y_len` breakpoints and their
+/// grid, row by row.
+///
+/// # Safety
+/// A pointer that is not NULL points to the values its lengths say (the C contract).
+unsafe fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
+    (x, x_len): (*const i32, u8),
+    (y, y_len): (*const i32, u8),
+    z: *const i32,
     error: cw_status,
 ) -> Result<Table2<X, Y, Z, NX, NY>, cw_status> {
     let (x_len, y_len) = (usize::from(x_len), usize::from(y_len));
-    let xs = x.map(FixedI32::<X>::from_bits);
-    let ys = y.map(FixedI32::<Y>::from_bits);
-    let zs = z.map(|row| row.map(FixedI32::<Z>::from_bits));
+    // Lengths beyond the capacities are refused before anything is read.
+    if x_len > NX || y_len > NY {
+        return Err(error);
+    }
+    // SAFETY: forwarded to the caller.
+    let arrays = unsafe {
+        (
+            bits_as::<X>(x, x_len),
+            bits_as::<Y>(y, y_len),
+            bits_as::<Z>(z, x_len * y_len),
+        )
+    };
+    let (Some(xs), Some(ys), Some(grid)) = arrays else {
+        return Err(error);
+    };
     let rows: [&[FixedI32<Z>]; NX] =
-        core::array::from_fn(|i| zs.get(i).and_then(|row| row.get(..y_len)).unwrap_or(&[]));
-    match (xs.get(..x_len), ys.get(..y_len), rows.get(..x_len)) {
-        (Some(xs), Some(ys), Some(rows)) => {
-            Table2::from_bit_slices(xs, ys, rows).map_err(|_| error)
-        }
-        _ => Err(error),
+        core::array::from_fn(|i| grid.get(i * y_len..(i + 1) * y_len).unwrap_or(&[]));
+    match rows.get(..x_len) {
+        Some(rows) => Table2::from_bit_slices(xs, ys, rows).map_err(|_| error),
+        None => Err(error),
     }
 }
 
-fn friction(
+/// The friction model of a description.
+///
+/// # Safety
+/// The μ table's arrays hold what its lengths say (the C contract).
+unsafe fn friction(
     f: &cw_friction,
 ) -> Result<FrictionConfig<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX>, cw_status> {
-    let mu: MuTable<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX> = table(
-        (&f.mu.temperature_q16, f.mu.temperatures_len),
-        (&f.mu.speed_q16, f.mu.speeds_len),
-        &f.mu.mu_q30,
-        cw_status::CW_ERR_MU_TABLE,
-    )?;
+    // SAFETY: forwarded to the caller.
+    let mu: MuTable<CW_MU_TEMPERATURES_MAX, CW_MU_SPEEDS_MAX> = unsafe {
+        table(
+            (f.mu.temperature_q16, f.mu.temperatures_len),
+            (f.mu.speed_q16, f.mu.speeds_len),
+            f.mu.mu_q30,
+            cw_status::CW_ERR_MU_TABLE,
+        )
+    }?;
     FrictionConfig::from_bits(
         mu,
         Ratio::from_bits(f.static_to_kinetic_q30),
@@ -292,18 +363,30 @@ fn adapt(a: &cw_adapt) -> Result<AdaptConfig, cw_status> {
     .map_err(|_| cw_status::CW_ERR_ADAPT)
 }
 
-fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
-    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, CW_RADIUS_SECOND_MAX> = table(
-        (&d.radius.force_q8, d.radius.forces_len),
-        (&d.radius.second_q30, d.radius.second_len),
-        &d.radius.radius_q24,
-        cw_status::CW_ERR_RADIUS_TABLE,
-    )?;
+/// The checked parts of the device a description holds.
+///
+/// # Safety
+/// The description's arrays hold what its lengths say (the C contract).
+unsafe fn parts<const C: usize>(
+    d: &cw_device_desc,
+) -> Result<DeviceParts<CapiTables, C>, cw_status> {
     let axis = match d.radius.lever_axis {
         0 => LeverAxis::Bedding,
         1 => LeverAxis::Mu,
         _ => return Err(cw_status::CW_ERR_RADIUS_TABLE),
     };
+    if LEVER_AXES & (1 << d.radius.lever_axis) == 0 {
+        return Err(cw_status::CW_ERR_LEVER_AXIS);
+    }
+    // SAFETY: forwarded to the caller.
+    let radius: RadiusTable<CW_RADIUS_FORCES_MAX, RADIUS_SECOND_CAPACITY> = unsafe {
+        table(
+            (d.radius.force_q8, d.radius.forces_len),
+            (d.radius.second_q30, d.radius.second_len),
+            d.radius.radius_q24,
+            cw_status::CW_ERR_RADIUS_TABLE,
+        )
+    }?;
     let combination = match d.combination {
         0 => Combination::WorstCase,
         1 => Combination::RootSumSquare,
@@ -314,11 +397,15 @@ fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
     } else {
         None
     };
-    DeviceConfig::from_parts(DeviceParts {
+    // SAFETY: forwarded to the caller.
+    let friction = unsafe { friction(&d.friction) }?;
+    let tables =
+        Tables::try_with_axis(radius, friction, axis).ok_or(cw_status::CW_ERR_LEVER_AXIS)?;
+    Ok(DeviceParts {
         sample_period: Seconds::from_bits(d.sample_period_q32),
         thermal_wear_every: d.thermal_wear_every,
         faces: d.faces,
-        tables: Tables::with_axis(radius, friction(&d.friction)?, axis),
+        tables,
         thermal: thermal(&d.thermal)?,
         wear: wear(&d.wear)?,
         sensor: sensor(&d.sensor)?,
@@ -333,5 +420,4 @@ fn device<const C: usize>(d: &cw_device_desc) -> Result<Device<C>, cw_status> {
             combination,
         },
     })
-    .map_err(|_| cw_status::CW_ERR_DEVICE)
 }

@@ -7,7 +7,6 @@ use clampwise_core::sensor::{ActuatorCommand, RawChannel};
 use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
 
 use crate::desc::CW_CHANNELS_MAX;
-use crate::status::cw_status;
 
 /// `cw_inputs::present` bit: `input_speed_q16` holds the input (rotating) side's speed.
 pub const CW_HAS_INPUT_SPEED: u8 = 1 << 0;
@@ -107,22 +106,21 @@ pub struct cw_estimate {
     pub present: u8,
 }
 
-/// The core's inputs of a C sample for a device of `C` channels.
-///
-/// # Errors
-/// [`cw_status::CW_ERR_INPUTS`] when the mask names a channel beyond `C` or `present` has an
-/// unknown bit.
-pub fn core_inputs<const C: usize>(i: &cw_inputs) -> Result<Inputs<C>, cw_status> {
+/// The core's inputs of a C sample for a device of `C` channels, or `None` when the mask names
+/// a channel beyond `C` or `present` has an unknown bit (`CW_ERR_INPUTS`).
+pub fn core_inputs<const C: usize>(i: &cw_inputs) -> Option<Inputs<C>> {
     let channel_bits = u8::try_from((1u32 << C) - 1).unwrap_or(u8::MAX);
     if i.valid_mask & !channel_bits != 0 || i.present & !ALL_PRESENT != 0 {
-        return Err(cw_status::CW_ERR_INPUTS);
+        return None;
     }
     let mut force_channels = [RawChannel {
         counts: 0,
         valid: false,
     }; C];
-    for (k, (raw, &counts)) in force_channels.iter_mut().zip(i.counts.iter()).enumerate() {
-        if i.valid_mask & (1 << k) != 0 {
+    for (k, raw) in force_channels.iter_mut().enumerate() {
+        if let Some(&counts) = i.counts.get(k)
+            && i.valid_mask & (1 << k) != 0
+        {
             *raw = RawChannel {
                 counts,
                 valid: true,
@@ -130,7 +128,7 @@ pub fn core_inputs<const C: usize>(i: &cw_inputs) -> Result<Inputs<C>, cw_status
         }
     }
     let has = |bit: u8| i.present & bit != 0;
-    Ok(Inputs {
+    Some(Inputs {
         force_channels,
         input_speed: has(CW_HAS_INPUT_SPEED).then_some(RadPerSec::from_bits(i.input_speed_q16)),
         output_speed: has(CW_HAS_OUTPUT_SPEED).then_some(RadPerSec::from_bits(i.output_speed_q16)),
@@ -160,6 +158,14 @@ pub const fn state_code(s: ContactState) -> cw_contact_state {
 
 /// The C struct of an estimate: every field's raw bits.
 pub fn c_estimate(e: &Estimate) -> cw_estimate {
+    let mut out = cw_estimate::default();
+    fill_estimate(e, &mut out);
+    out
+}
+
+/// Every field of `out` from an estimate's raw bits, written in place (the step's output goes
+/// straight to the caller's struct, with no whole-struct copy).
+pub fn fill_estimate(e: &Estimate, out: &mut cw_estimate) {
     let mut present = 0;
     if e.torque.is_some() {
         present |= CW_HAS_TORQUE;
@@ -167,20 +173,18 @@ pub fn c_estimate(e: &Estimate) -> cw_estimate {
     if e.holding_capacity.is_some() {
         present |= CW_HAS_HOLDING_CAPACITY;
     }
-    cw_estimate {
-        torque_q12: e.torque.map_or(0, NewtonMetres::to_bits),
-        holding_capacity_q12: e.holding_capacity.map_or(0, NewtonMetres::to_bits),
-        uncertainty_q12: e.uncertainty.to_bits(),
-        mu_q30: e.mu.to_bits(),
-        effective_radius_q24: e.effective_radius.to_bits(),
-        clamp_force_q8: e.clamp_force.to_bits(),
-        lining_temperature_q16: e.lining_temperature.to_bits(),
-        bedding_q30: e.bedding.to_bits(),
-        wear_q24: e.wear.to_bits(),
-        correction_q30: e.correction.to_bits(),
-        flags: e.flags.bits(),
-        force_channels_used: e.force_channels_used.bits(),
-        state: state_code(e.state) as u8,
-        present,
-    }
+    out.torque_q12 = e.torque.map_or(0, NewtonMetres::to_bits);
+    out.holding_capacity_q12 = e.holding_capacity.map_or(0, NewtonMetres::to_bits);
+    out.uncertainty_q12 = e.uncertainty.to_bits();
+    out.mu_q30 = e.mu.to_bits();
+    out.effective_radius_q24 = e.effective_radius.to_bits();
+    out.clamp_force_q8 = e.clamp_force.to_bits();
+    out.lining_temperature_q16 = e.lining_temperature.to_bits();
+    out.bedding_q30 = e.bedding.to_bits();
+    out.wear_q24 = e.wear.to_bits();
+    out.correction_q30 = e.correction.to_bits();
+    out.flags = e.flags.bits();
+    out.force_channels_used = e.force_channels_used.bits();
+    out.state = state_code(e.state) as u8;
+    out.present = present;
 }

@@ -12,7 +12,8 @@
 //! ```
 //!
 //! * Every function returns a [`cw_status`] (0 = `CW_OK`), checks every pointer for NULL, and
-//!   leaves its outputs untouched on an error.
+//!   leaves its outputs untouched on an error; `cw_device_init` builds the device in place, so
+//!   after an error its storage holds no device.
 //! * Storage is the caller's ([`cw_device`], [`cw_estimator`]): nothing is allocated. An
 //!   estimator refers to its device, which must stay in place, unchanged, while it is used.
 //! * Inputs and outputs are integer fields in the core's fixed-point formats, so a C program
@@ -35,6 +36,9 @@ extern crate std;
 )))]
 compile_error!("clampwise-capi needs at least one of the features channels-1 … channels-4");
 
+#[cfg(not(any(feature = "axis-bedding", feature = "axis-mu")))]
+compile_error!("clampwise-capi needs at least one of the features axis-bedding, axis-mu");
+
 pub mod desc;
 pub mod device;
 pub mod io;
@@ -50,7 +54,7 @@ pub use io::*;
 pub use status::cw_status;
 pub use storage::{CW_DEVICE_WORDS, CW_ESTIMATOR_WORDS, cw_device, cw_estimator};
 
-use device::ChannelDevice;
+use device::DeviceRef;
 use storage::ChannelEstimator;
 
 /// Bytes of a state record (`cw_estimator_save`, `cw_estimator_restore`).
@@ -125,6 +129,13 @@ pub extern "C" fn cw_channels_supported() -> u8 {
         | u8::from(cfg!(feature = "channels-4")) << 3
 }
 
+/// The lever axes this library was built for: bit `cw_lever_axis` set for each (0x03: both,
+/// read at run time; 0x01 or 0x02: the one of the feature `axis-bedding` or `axis-mu`).
+#[unsafe(no_mangle)]
+pub extern "C" fn cw_lever_axes_supported() -> u8 {
+    device::LEVER_AXES
+}
+
 /// The library's version as `major << 16 | minor << 8 | patch`.
 #[unsafe(no_mangle)]
 pub extern "C" fn cw_version() -> u32 {
@@ -173,10 +184,12 @@ pub extern "C" fn cw_abi_check(
 }
 
 /// Build a device from its description, check it with the core's constructors and compare
-/// its checksum with `desc->checksum`. On an error `device` is left uninitialised.
+/// its checksum with `desc->checksum`. The device is built in place: on an error `device`
+/// holds no device (functions given it return `CW_ERR_NOT_INITIALISED`).
 ///
 /// # Safety
-/// `device` points to writable storage no estimator uses; `desc` to a readable description.
+/// `device` points to writable storage no estimator uses; `desc` to a readable description
+/// whose table arrays hold the values their lengths say.
 #[unsafe(no_mangle)]
 pub unsafe extern "C" fn cw_device_init(
     device: *mut cw_device,
@@ -187,12 +200,9 @@ pub unsafe extern "C" fn cw_device_init(
     }
     // SAFETY: not null; the caller passes a readable description.
     let desc = unsafe { &*desc };
-    match ChannelDevice::from_desc(desc) {
-        Ok(built) => {
-            // SAFETY: not null; the caller owns the storage and no estimator uses it.
-            unsafe { storage::put_device(device, built) };
-            cw_status::CW_OK
-        }
+    // SAFETY: not null; the caller owns the storage and no estimator uses it.
+    match unsafe { storage::init_device(device, desc) } {
+        Ok(()) => cw_status::CW_OK,
         Err(e) => e,
     }
 }
@@ -247,7 +257,7 @@ pub unsafe extern "C" fn cw_device_channels(
 ///
 /// # Safety
 /// The C contract: the device stays in place, unchanged, while any estimator on it is used.
-unsafe fn device_for_estimator(device: *const cw_device) -> Option<&'static ChannelDevice> {
+unsafe fn device_for_estimator(device: *const cw_device) -> Option<DeviceRef<'static>> {
     // SAFETY: forwarded to the caller.
     unsafe { storage::device(device) }
 }
@@ -271,13 +281,13 @@ pub unsafe extern "C" fn cw_estimator_init(
     };
     let built = match d {
         #[cfg(feature = "channels-1")]
-        ChannelDevice::One(c) => ChannelEstimator::One(Estimator::new(c)),
+        DeviceRef::One(c) => ChannelEstimator::One(Estimator::new(c)),
         #[cfg(feature = "channels-2")]
-        ChannelDevice::Two(c) => ChannelEstimator::Two(Estimator::new(c)),
+        DeviceRef::Two(c) => ChannelEstimator::Two(Estimator::new(c)),
         #[cfg(feature = "channels-3")]
-        ChannelDevice::Three(c) => ChannelEstimator::Three(Estimator::new(c)),
+        DeviceRef::Three(c) => ChannelEstimator::Three(Estimator::new(c)),
         #[cfg(feature = "channels-4")]
-        ChannelDevice::Four(c) => ChannelEstimator::Four(Estimator::new(c)),
+        DeviceRef::Four(c) => ChannelEstimator::Four(Estimator::new(c)),
     };
     // SAFETY: not null; the caller owns the storage.
     unsafe { storage::put_estimator(estimator, built) };
@@ -311,13 +321,13 @@ pub unsafe extern "C" fn cw_estimator_restore(
     let bytes = unsafe { core::slice::from_raw_parts(record, len) };
     let built = match d {
         #[cfg(feature = "channels-1")]
-        ChannelDevice::One(c) => Estimator::restore(c, bytes).map(ChannelEstimator::One),
+        DeviceRef::One(c) => Estimator::restore(c, bytes).map(ChannelEstimator::One),
         #[cfg(feature = "channels-2")]
-        ChannelDevice::Two(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Two),
+        DeviceRef::Two(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Two),
         #[cfg(feature = "channels-3")]
-        ChannelDevice::Three(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Three),
+        DeviceRef::Three(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Three),
         #[cfg(feature = "channels-4")]
-        ChannelDevice::Four(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Four),
+        DeviceRef::Four(c) => Estimator::restore(c, bytes).map(ChannelEstimator::Four),
     };
     match built {
         Ok(e) => {
@@ -329,12 +339,17 @@ pub unsafe extern "C" fn cw_estimator_restore(
     }
 }
 
+/// One sample of an estimator of `C` channels into the caller's estimate.
 fn step<const C: usize>(
     est: &mut storage::ChannelStepper<C>,
     inputs: &cw_inputs,
-) -> Result<cw_estimate, cw_status> {
-    let inputs = io::core_inputs::<C>(inputs)?;
-    Ok(io::c_estimate(&est.step(&inputs)))
+    estimate: &mut cw_estimate,
+) -> cw_status {
+    let Some(inputs) = io::core_inputs::<C>(inputs) else {
+        return cw_status::CW_ERR_INPUTS;
+    };
+    io::fill_estimate(&est.step(&inputs), estimate);
+    cw_status::CW_OK
 }
 
 /// One sample: the estimate of `inputs`, written to `estimate`.
@@ -357,23 +372,17 @@ pub unsafe extern "C" fn cw_estimator_step(
     };
     // SAFETY: not null, readable by the contract.
     let inputs = unsafe { &*inputs };
-    let result = match est {
+    // SAFETY: not null, writable by the contract; written only once the inputs are accepted.
+    let estimate = unsafe { &mut *estimate };
+    match est {
         #[cfg(feature = "channels-1")]
-        ChannelEstimator::One(e) => step(e, inputs),
+        ChannelEstimator::One(e) => step(e, inputs, estimate),
         #[cfg(feature = "channels-2")]
-        ChannelEstimator::Two(e) => step(e, inputs),
+        ChannelEstimator::Two(e) => step(e, inputs, estimate),
         #[cfg(feature = "channels-3")]
-        ChannelEstimator::Three(e) => step(e, inputs),
+        ChannelEstimator::Three(e) => step(e, inputs, estimate),
         #[cfg(feature = "channels-4")]
-        ChannelEstimator::Four(e) => step(e, inputs),
-    };
-    match result {
-        Ok(out) => {
-            // SAFETY: not null, writable by the contract.
-            unsafe { estimate.write(out) };
-            cw_status::CW_OK
-        }
-        Err(e) => e,
+        ChannelEstimator::Four(e) => step(e, inputs, estimate),
     }
 }
 

@@ -17,10 +17,11 @@ pub enum cw_status {
     CW_ERR_CHANNELS = 2,
     /// A `has_*`, `two_node` or presence field is neither 0 nor 1.
     CW_ERR_BAD_FLAG = 3,
-    /// The friction-radius table: a length beyond its capacity, breakpoints not increasing, or
-    /// an unknown `lever_axis`.
+    /// The friction-radius table: a length beyond its capacity (over bedding two breakpoints in
+    /// a library of the bedding axis alone), a NULL array, breakpoints not increasing, or an
+    /// unknown `lever_axis`.
     CW_ERR_RADIUS_TABLE = 4,
-    /// The μ table: a length beyond its capacity, or breakpoints not increasing.
+    /// The μ table: a length beyond its capacity, a NULL array, or breakpoints not increasing.
     CW_ERR_MU_TABLE = 5,
     /// The friction model (stick/slip band, transition speed, drag) was rejected.
     CW_ERR_FRICTION = 6,
@@ -49,11 +50,14 @@ pub enum cw_status {
     CW_ERR_RECORD_DEVICE = 17,
     /// The state record's values contradict each other or the device.
     CW_ERR_RECORD_STATE = 18,
+    /// The friction-radius table's `lever_axis` is one this library was built without
+    /// (`cw_lever_axes_supported`).
+    CW_ERR_LEVER_AXIS = 19,
 }
 
 impl cw_status {
     /// Every status, in order.
-    pub const ALL: [Self; 19] = [
+    pub const ALL: [Self; 20] = [
         Self::CW_OK,
         Self::CW_ERR_NULL,
         Self::CW_ERR_CHANNELS,
@@ -73,6 +77,7 @@ impl cw_status {
         Self::CW_ERR_RECORD_FORMAT,
         Self::CW_ERR_RECORD_DEVICE,
         Self::CW_ERR_RECORD_STATE,
+        Self::CW_ERR_LEVER_AXIS,
     ];
 
     /// The status of a code, or `None` for a code that is none.
@@ -112,6 +117,9 @@ impl cw_status {
             }
             Self::CW_ERR_RECORD_DEVICE => c"state record saved for another device configuration",
             Self::CW_ERR_RECORD_STATE => c"state record values contradict each other or the device",
+            Self::CW_ERR_LEVER_AXIS => {
+                c"radius table lever axis (bedding or mu) not among those the library was built for"
+            }
         }
     }
 

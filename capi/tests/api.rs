@@ -14,27 +14,23 @@ use clampwise_device::config::LoadedConfig;
 
 type HostDevice<const C: usize> = clampwise_device::build_core::Device<C>;
 
-fn copy_table<const NX: usize, const NY: usize>(
+/// A table's arrays at their exact sizes, as `clampwise tables --emit-c` writes them: the
+/// breakpoints of each axis and the grid row by row (kept for the whole test run, as C keeps
+/// them in flash), with the lengths.
+fn exact_table(
     x: impl Iterator<Item = i32>,
     y: impl Iterator<Item = i32>,
     rows: impl Iterator<Item = Vec<i32>>,
-) -> ([i32; NX], [i32; NY], [[i32; NY]; NX], u8, u8) {
-    let (mut xs, mut ys, mut zs) = ([0; NX], [0; NY], [[0; NY]; NX]);
-    let (mut nx, mut ny) = (0u8, 0u8);
-    for (slot, v) in xs.iter_mut().zip(x) {
-        *slot = v;
-        nx += 1;
-    }
-    for (slot, v) in ys.iter_mut().zip(y) {
-        *slot = v;
-        ny += 1;
-    }
-    for (row, values) in zs.iter_mut().zip(rows) {
-        for (slot, v) in row.iter_mut().zip(values) {
-            *slot = v;
-        }
-    }
-    (xs, ys, zs, nx, ny)
+) -> (*const i32, *const i32, *const i32, u8, u8) {
+    let xs: Vec<i32> = x.collect();
+    let ys: Vec<i32> = y.collect();
+    let zs: Vec<i32> = rows.flatten().collect();
+    let (nx, ny) = (
+        u8::try_from(xs.len()).unwrap(),
+        u8::try_from(ys.len()).unwrap(),
+    );
+    let keep = |v: Vec<i32>| Box::leak(v.into_boxed_slice()).as_ptr();
+    (keep(xs), keep(ys), keep(zs), nx, ny)
 }
 
 /// The description of a host device, every field from the core's getters (what
@@ -48,7 +44,7 @@ fn desc_of<const C: usize>(cfg: &HostDevice<C>) -> cw_device_desc {
         ..Default::default()
     };
     let r = cfg.tables().radius();
-    let (x, y, z, nx, ny) = copy_table(
+    let (x, y, z, nx, ny) = exact_table(
         r.x_breakpoints().iter().map(|v| v.to_bits()),
         r.y_breakpoints().iter().map(|v| v.to_bits()),
         r.rows()
@@ -67,7 +63,7 @@ fn desc_of<const C: usize>(cfg: &HostDevice<C>) -> cw_device_desc {
     };
     let f = cfg.tables().friction();
     let mu = f.mu_kinetic();
-    let (x, y, z, nx, ny) = copy_table(
+    let (x, y, z, nx, ny) = exact_table(
         mu.x_breakpoints().iter().map(|v| v.to_bits()),
         mu.y_breakpoints().iter().map(|v| v.to_bits()),
         mu.rows()
@@ -342,6 +338,17 @@ fn every_error_path_returns_its_status() {
         let mut bad = desc;
         bad.combination = 2;
         assert_eq!(cw_device_init(&mut *dev, &bad), cw_status::CW_ERR_DEVICE);
+        let mut bad = desc;
+        bad.radius.lever_axis = 2;
+        assert_eq!(
+            cw_device_init(&mut *dev, &bad),
+            cw_status::CW_ERR_RADIUS_TABLE
+        );
+        // Built in place: after a refused build the storage holds no device.
+        assert_eq!(
+            cw_device_checksum(&*dev, &mut checksum),
+            cw_status::CW_ERR_NOT_INITIALISED
+        );
 
         assert_eq!(cw_device_init(&mut *dev, &desc), cw_status::CW_OK);
         assert_eq!(cw_estimator_init(&mut *est, &*dev), cw_status::CW_OK);
@@ -458,6 +465,50 @@ fn flag_and_state_codes_are_the_cores() {
     ] {
         assert_eq!(clampwise_capi::io::state_code(s) as u8, code);
     }
+}
+
+#[test]
+fn the_lever_axes_are_those_of_the_features() {
+    let expected =
+        u8::from(cfg!(feature = "axis-bedding")) | u8::from(cfg!(feature = "axis-mu")) << 1;
+    assert_eq!(cw_lever_axes_supported(), expected);
+    // The demo device's radius table runs over bedding, the drum brake's over μ: each builds
+    // exactly when its axis is in, and is refused by its own status when it is not.
+    let drum_text = include_str!("../../sim/configs/example-crane-drum-brake.toml");
+    let drum = CoreDevice::build(
+        &LoadedConfig::from_str(drum_text, "drum.toml")
+            .unwrap()
+            .config,
+    )
+    .unwrap();
+    for (core, axis) in [(demo(), 0u8), (drum, 1u8)] {
+        let ChannelDevice::Three(cfg) = &core.device else {
+            unreachable!("a three-channel device")
+        };
+        let desc = desc_of(cfg);
+        assert_eq!(desc.radius.lever_axis, axis);
+        let mut dev = new_device();
+        let status = unsafe { cw_device_init(&mut *dev, &desc) };
+        if expected & (1 << axis) == 0 {
+            assert_eq!(status, cw_status::CW_ERR_LEVER_AXIS, "axis {axis}");
+        } else {
+            assert_ne!(status, cw_status::CW_ERR_LEVER_AXIS, "axis {axis}");
+        }
+    }
+}
+
+#[test]
+fn the_radius_table_capacity_is_the_hosts() {
+    use clampwise_device::build_core::{RADIUS_BEDDING_POINTS, RADIUS_SECOND_POINTS};
+    // A library of the bedding axis alone holds the host's bedding breakpoints (new and
+    // bedded); one that takes μ devices holds the host's whole second axis.
+    let expected = if cfg!(feature = "axis-mu") {
+        RADIUS_SECOND_POINTS
+    } else {
+        RADIUS_BEDDING_POINTS
+    };
+    assert_eq!(clampwise_capi::device::RADIUS_SECOND_CAPACITY, expected);
+    assert_eq!(CW_RADIUS_SECOND_MAX, RADIUS_SECOND_POINTS);
 }
 
 #[test]

@@ -15,6 +15,7 @@
 //! ([`Tables`], exact sizes) and its number of force channels `C`.
 
 use core::fmt;
+use core::mem::MaybeUninit;
 
 mod params;
 mod tables;
@@ -231,6 +232,30 @@ impl<T: TableSet, const C: usize> DeviceConfig<T, C> {
     /// # Errors
     /// The [`ConfigError`] naming the first field at fault.
     pub const fn from_parts(parts: DeviceParts<T, C>) -> Result<Self, ConfigError> {
+        match Self::checked_shift(&parts) {
+            Ok(thermal_wear_shift) => Ok(Self::assemble(&parts, thermal_wear_shift)),
+            Err(e) => Err(e),
+        }
+    }
+
+    /// As [`Self::from_parts`], but the configuration is written into `out` and the parts are
+    /// borrowed: a run-time build (a C firmware's device, kept in the caller's storage) then
+    /// holds no by-value copy of the whole configuration on its stack. On an error `out` is
+    /// left as it was.
+    ///
+    /// # Errors
+    /// The [`ConfigError`] naming the first field at fault.
+    pub fn from_parts_in<'o>(
+        out: &'o mut MaybeUninit<Self>,
+        parts: &DeviceParts<T, C>,
+    ) -> Result<&'o mut Self, ConfigError> {
+        let thermal_wear_shift = Self::checked_shift(parts)?;
+        Ok(out.write(Self::assemble(parts, thermal_wear_shift)))
+    }
+
+    /// The parts checked against each other: log₂ of `thermal_wear_every`, or the first field
+    /// at fault.
+    const fn checked_shift(parts: &DeviceParts<T, C>) -> Result<u8, ConfigError> {
         let period = parts.sample_period.to_bits();
         if period <= 0 || period > Seconds::ONE.to_bits() {
             return Err(ConfigError::SamplePeriod);
@@ -279,7 +304,13 @@ impl<T: TableSet, const C: usize> DeviceConfig<T, C> {
         // A power of two up to 32: the shift is 0 ..= 5.
         #[allow(clippy::cast_possible_truncation)]
         let thermal_wear_shift = every.trailing_zeros() as u8;
-        Ok(Self {
+        Ok(thermal_wear_shift)
+    }
+
+    /// The configuration of checked parts.
+    #[inline]
+    const fn assemble(parts: &DeviceParts<T, C>, thermal_wear_shift: u8) -> Self {
+        Self {
             sample_period: parts.sample_period,
             thermal_wear_shift,
             faces: parts.faces,
@@ -290,7 +321,7 @@ impl<T: TableSet, const C: usize> DeviceConfig<T, C> {
             adapt: parts.adapt,
             limits: parts.limits,
             tolerances: parts.tolerances,
-        })
+        }
     }
 
     /// Control-loop sample period (s).

@@ -1,5 +1,6 @@
 //! A whole core `DeviceConfig` as C source: one `const cw_device_desc` initializer of raw
-//! bits for the C API (`capi/include/clampwise.h`), with the checksum the host computed.
+//! bits for the C API (`capi/include/clampwise.h`), with the checksum the host computed, and
+//! the two tables it points to as `static const` arrays at their exact sizes.
 //!
 //! `cw_device_init` builds the configuration from it through the core's own checked
 //! constructors and compares the checksum, so a C firmware holds the very numbers the host
@@ -64,12 +65,15 @@ fn list<T: Copy>(items: &[T], f: impl Fn(T) -> String) -> String {
     items.iter().map(|&v| f(v)).collect::<Vec<_>>().join(", ")
 }
 
-/// The fields of a table: lengths, the breakpoints and the grid, zero beyond the lengths.
+/// A table as C: its arrays at their exact sizes (`static const`, named after the
+/// description and `part`), and the fields of its struct that give the lengths and point to
+/// them. The grid is one array, row by row.
 fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
     t: &Table2<X, Y, Z, NX, NY>,
+    part: &str,
     names: [&str; 5],
     (cap_x, cap_y): (usize, usize),
-) -> Result<String, EmitError> {
+) -> Result<(String, String), EmitError> {
     let [x_len, y_len, x_name, y_name, z_name] = names;
     let (xs, ys) = (t.x_breakpoints(), t.y_breakpoints());
     if xs.len() > cap_x || ys.len() > cap_y {
@@ -82,24 +86,29 @@ fn table<X: LeEqU32, Y: LeEqU32, Z: LeEqU32, const NX: usize, const NY: usize>(
             ),
         ));
     }
-    let mut out = String::new();
-    let _ = writeln!(out, ".{x_len} = {}, .{y_len} = {},", xs.len(), ys.len());
-    let _ = writeln!(
-        out,
-        ".{x_name} = {{ {} }},",
-        list(xs, |v| i32_c(v.to_bits()))
-    );
-    let _ = writeln!(
-        out,
-        ".{y_name} = {{ {} }},",
-        list(ys, |v| i32_c(v.to_bits()))
-    );
-    let _ = writeln!(out, ".{z_name} = {{");
-    for row in t.rows() {
-        let _ = writeln!(out, "    {{ {} }},", list(row, |v| i32_c(v.to_bits())));
+    let array = |name: &str| format!("{C_DESC_NAME}_{part}_{name}");
+    let mut arrays = String::new();
+    for (name, values) in [
+        (x_name, list(xs, |v| i32_c(v.to_bits()))),
+        (y_name, list(ys, |v| i32_c(v.to_bits()))),
+    ] {
+        let _ = writeln!(
+            arrays,
+            "static const int32_t {}[] = {{ {values} }};",
+            array(name)
+        );
     }
-    out.push_str("},");
-    Ok(out)
+    let _ = writeln!(arrays, "static const int32_t {}[] = {{", array(z_name));
+    for row in t.rows() {
+        let _ = writeln!(arrays, "    {},", list(row, |v| i32_c(v.to_bits())));
+    }
+    arrays.push_str("};\n");
+    let mut fields = String::new();
+    let _ = writeln!(fields, ".{x_len} = {}, .{y_len} = {},", xs.len(), ys.len());
+    for name in [x_name, y_name, z_name] {
+        let _ = writeln!(fields, ".{name} = {},", array(name));
+    }
+    Ok((arrays, fields))
 }
 
 fn block(name: &str, body: &str) -> String {
@@ -341,7 +350,8 @@ fn initial_record<const C: usize>(
     Ok(out)
 }
 
-fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
+/// The description's table arrays and the fields of its initializer.
+fn body<const C: usize>(cfg: &Device<C>) -> Result<(String, String), EmitError> {
     let tables = cfg.tables();
     let fr = tables.friction();
     let (stick_speed, hysteresis) = friction_band(fr)?;
@@ -360,8 +370,9 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
         LeverAxis::Mu => "CW_LEVER_AXIS_MU",
     };
     let mut radius = format!(".lever_axis = {axis},\n");
-    radius.push_str(&table(
+    let (radius_arrays, radius_fields) = table(
         tables.radius(),
+        "radius",
         [
             "forces_len",
             "second_len",
@@ -370,10 +381,12 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
             "radius_q24",
         ],
         (RADIUS_FORCES_MAX, RADIUS_SECOND_MAX),
-    )?);
+    )?;
+    radius.push_str(&radius_fields);
     let _ = writeln!(out, "{}", block("radius", &radius));
-    let mu = table(
+    let (mu_arrays, mu) = table(
         fr.mu_kinetic(),
+        "mu",
         [
             "temperatures_len",
             "speeds_len",
@@ -443,7 +456,7 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
     };
     let _ = writeln!(out, ".combination = {combination},");
     let _ = writeln!(out, ".checksum = UINT32_C(0x{:08x}),", cfg.checksum());
-    Ok(out)
+    Ok((radius_arrays + "\n" + &mu_arrays, out))
 }
 
 /// The device as a C source file defining `const cw_device_desc clampwise_device_desc`
@@ -455,7 +468,7 @@ fn body<const C: usize>(cfg: &Device<C>) -> Result<String, EmitError> {
 /// cannot be written exactly; [`EmitError::InitialRecord`] for a starting record the core
 /// would not restore.
 pub fn c_source(core: &CoreDevice, origin: &str) -> Result<String, EmitError> {
-    let (body, record) = match &core.device {
+    let ((arrays, body), record) = match &core.device {
         ChannelDevice::One(d) => (body(d)?, initial_record(d, &core.initial)?),
         ChannelDevice::Two(d) => (body(d)?, initial_record(d, &core.initial)?),
         ChannelDevice::Three(d) => (body(d)?, initial_record(d, &core.initial)?),
@@ -471,6 +484,8 @@ pub fn c_source(core: &CoreDevice, origin: &str) -> Result<String, EmitError> {
          *   extern const uint32_t {C_DESC_NAME}_initial_record_len;\n \
          *   extern const uint8_t {C_DESC_NAME}_initial_record[CW_RECORD_LEN]; */\n\n\
          #include \"clampwise.h\"\n\n\
+         /* The tables at their exact sizes; the description points to them. */\n\
+         {arrays}\n\
          const cw_device_desc {C_DESC_NAME} = {{\n"
     );
     for line in body.lines() {
@@ -523,6 +538,9 @@ mod tests {
             ".radius = {",
             ".lever_axis = CW_LEVER_AXIS_BEDDING,",
             ".forces_len = 2, .second_len = 2,",
+            "static const int32_t clampwise_device_desc_radius_force_q8[] = {",
+            ".radius_q24 = clampwise_device_desc_radius_radius_q24,",
+            ".mu_q30 = clampwise_device_desc_mu_mu_q30,",
             ".friction = {",
             ".mu = {",
             ".temperatures_len = 6, .speeds_len = 6,",
