@@ -306,7 +306,9 @@ mod tests {
         }
         assert_eq!(rows, expected);
         let mut broken = bytes.clone();
-        broken[100] ^= 0x10;
+        if let Some(b) = broken.get_mut(100) {
+            *b ^= 0x10;
+        }
         assert!(matches!(
             CoreEstimator::resume(&c, &d, &broken),
             Err(SnapshotError::Checksum { .. })
