@@ -15,12 +15,24 @@
 mod estimator_common;
 use estimator_common::*;
 
+use clampwise_core::adapt::AdaptConfig;
+use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
+use clampwise_core::estimator::Combination;
 use clampwise_core::estimator::{
     Estimate, Estimator, Inputs, SnapshotError, snapshot::SNAPSHOT_MAGIC, snapshot_len,
 };
-use clampwise_core::sensor::{ActuatorCommand, RawChannel};
+use clampwise_core::friction::FrictionConfig;
+use clampwise_core::geometry::build_radius_table;
+use clampwise_core::sensor::{
+    ActuatorCommand, ActuatorTransfer, AdcRails, ChannelCalibration, Debounce, DebounceSet,
+    DiagnosticLimits, LowPass, NewtonsPerCommand, NewtonsPerCount, NewtonsPerKelvin,
+    NewtonsPerSecond, PerKelvin, RawChannel, SensorConfig, StuckCheck, TemperatureCompensation,
+    VotingLimits,
+};
 use clampwise_core::state_record::RECORD_MAGIC;
-use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec};
+use clampwise_core::thermal::ThermalConfig;
+use clampwise_core::units::{Celsius, NewtonMetres, Newtons, RadPerSec, Ratio, Seconds};
+use clampwise_core::wear::WearConfig;
 use crc::{CRC_32_ISO_HDLC, Crc};
 use proptest::prelude::*;
 
@@ -32,7 +44,9 @@ struct Segment {
     speed: Option<f64>,
     samples: usize,
     /// Bit 0: channel 0 invalid; bit 1: last channel 3 kN off (out-voted with 3 channels);
-    /// bit 2: counts frozen (no noise); bit 3: no actuator command; bit 4: reference torque.
+    /// bit 2: counts frozen (no noise); bit 3: no actuator command; bit 4: reference torque;
+    /// bit 5: the command ramps (with frozen counts: a stuck sensor); bit 6: sensor at 150 °C
+    /// (outside the compensation range).
     faults: u8,
 }
 
@@ -61,7 +75,7 @@ fn inputs<const C: usize>(segments: &[Segment]) -> Vec<Inputs<C>> {
     let mut out = Vec::new();
     let mut noise = 0x9E37_79B9u32;
     for s in segments {
-        for _ in 0..s.samples {
+        for k in 0..s.samples {
             noise = noise.wrapping_mul(1_664_525).wrapping_add(1_013_904_223);
             let jitter = if s.faults & 4 != 0 {
                 0.0
@@ -82,9 +96,15 @@ fn inputs<const C: usize>(segments: &[Segment]) -> Vec<Inputs<C>> {
             }
             x.input_speed = s.speed.map(RadPerSec::from_num);
             x.output_speed = s.speed.map(|_| RadPerSec::ZERO);
+            let ramp = if s.faults & 32 != 0 {
+                0.5 * k as f64
+            } else {
+                0.0
+            };
             x.actuator_command =
-                (s.faults & 8 == 0).then(|| ActuatorCommand::from_num(s.force_n / 1000.0));
-            x.sensor_temperature = Some(Celsius::from_num(25));
+                (s.faults & 8 == 0).then(|| ActuatorCommand::from_num(s.force_n / 1000.0 + ramp));
+            x.sensor_temperature =
+                Some(Celsius::from_num(if s.faults & 64 != 0 { 150 } else { 25 }));
             x.reference_torque = (s.faults & 16 != 0)
                 .then(|| NewtonMetres::from_num(s.force_n * 2.0 * 0.38 * 0.082));
             out.push(x);
@@ -115,8 +135,9 @@ fn chunked<const C: usize>(dev: &Device<C>, xs: &[Inputs<C>], cuts: &[usize]) ->
     out
 }
 
-fn devices_1() -> [Device<1>; 3] {
+fn devices_1() -> [Device<1>; 4] {
     [
+        instrumented::<1>(1),
         device::<1>(&Spec::default()),
         device_with_sub_rate::<1>(
             &Spec {
@@ -137,8 +158,93 @@ fn devices_1() -> [Device<1>; 3] {
     ]
 }
 
-fn devices_3() -> [Device<3>; 2] {
+/// The test device with every sensor state in use: a stuck check (20 samples, 2 command units),
+/// temperature compensation, and an actuator fallback with a 10 ms lag.
+fn instrumented<const C: usize>(every: u8) -> Device<C> {
+    let spec = Spec {
+        adapt: true,
+        ..Spec::default()
+    };
+    let radius = build_radius_table::<2, 2>(&spec.contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
+    let cal = ChannelCalibration {
+        gain: NewtonsPerCount::from_num(1.0 / COUNTS_PER_NEWTON),
+        offset: Newtons::ZERO,
+        rails: AdcRails {
+            low: i32::MIN,
+            high: i32::MAX,
+            margin: 0,
+        },
+        temperature: Some(TemperatureCompensation {
+            reference: Celsius::from_num(20),
+            min: Celsius::from_num(-40),
+            max: Celsius::from_num(120),
+            zero_per_kelvin: NewtonsPerKelvin::from_num(0.5),
+            span_per_kelvin: PerKelvin::from_num(1e-4),
+        }),
+    };
+    let limits = DiagnosticLimits {
+        force_min: Newtons::from_num(-5_000),
+        force_max: Newtons::from_num(250_000),
+        max_rate: NewtonsPerSecond::from_num(50_000_000),
+        noise_band: Newtons::from_num(50),
+        stuck: Some(StuckCheck {
+            time: Seconds::from_num(0.02),
+            command_span: ActuatorCommand::from_num(2),
+        }),
+        debounce: DebounceSet::uniform(Debounce {
+            raise_after: 3,
+            clear_after: 10,
+        }),
+        max_hold_samples: 2,
+    };
+    let voting = VotingLimits {
+        tolerance: Newtons::from_num(500),
+        channel_uncertainty: Newtons::from_num(100),
+    };
+    let fallback = ActuatorTransfer {
+        gain: NewtonsPerCommand::from_num(1000),
+        offset: Newtons::ZERO,
+        hysteresis: Newtons::from_num(100),
+        uncertainty: Newtons::from_num(2000),
+        response_time: Seconds::from_num(0.01),
+    };
+    let sensor = SensorConfig::new(
+        1000,
+        [cal; C],
+        LowPass::new(200.0, 1000).unwrap(),
+        limits,
+        voting,
+        Some(fallback),
+    )
+    .unwrap();
+    DeviceConfig::from_parts(DeviceParts {
+        sample_period: Seconds::from_num(DT),
+        thermal_wear_every: every,
+        faces: spec.contact.faces(),
+        tables: Tables::new(
+            radius,
+            FrictionConfig::new(mu_table(), &friction_params(&spec)).unwrap(),
+        ),
+        thermal: ThermalConfig::new(&thermal_params(), DT * f64::from(every)).unwrap(),
+        wear: WearConfig::new(&wear_params(), DT).unwrap(),
+        sensor,
+        adapt: Some(AdaptConfig::new(0.7, 1.3, 0.995, NewtonMetres::from_num(5000), 0.02).unwrap()),
+        limits: Limits {
+            touch_force: Newtons::from_num(100),
+            adapt_min_force: Newtons::from_num(500),
+        },
+        tolerances: Tolerances {
+            mu: Ratio::from_num(0.20),
+            radius: Ratio::from_num(0.01),
+            combination: Combination::RootSumSquare,
+        },
+    })
+    .unwrap()
+}
+
+fn devices_3() -> [Device<3>; 3] {
     [
+        instrumented::<3>(2),
         device::<3>(&Spec {
             adapt: true,
             fallback: true,
