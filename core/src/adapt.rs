@@ -324,6 +324,26 @@ impl AdaptState {
         }
     }
 
+    /// From a snapshot's factor and covariance bits, if both lie within the configured bounds;
+    /// else the name of the first that does not.
+    pub(crate) fn from_bits_within(
+        cfg: &AdaptConfig,
+        factor: i32,
+        covariance: i32,
+    ) -> Result<Self, &'static str> {
+        let state = Self {
+            factor: Ratio::from_bits(factor),
+            covariance: Ratio::from_bits(covariance),
+        };
+        if state.factor < cfg.min_factor || state.factor > cfg.max_factor {
+            return Err("adapt.factor");
+        }
+        if state.covariance < cfg.min_covariance || state.covariance > cfg.max_covariance {
+            return Err("adapt.covariance");
+        }
+        Ok(state)
+    }
+
     /// The current correction factor on μ.
     pub const fn factor(&self) -> Ratio {
         self.factor

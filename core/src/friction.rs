@@ -636,6 +636,18 @@ fn drag<const NT: usize, const NV: usize>(
     }
 }
 
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for FrictionState {
+    const LEN: usize = 1;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.bool(self.slipping);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let slipping = r.bool("friction.slipping")?;
+        Some(Self { slipping })
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing)]
 mod tests {

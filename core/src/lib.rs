@@ -39,7 +39,15 @@
 //!   Estimator::save ─► state_record::StateRecord (88 B, CRC-32, config checksum)
 //!     ─► record_store::RecordStore (two NOR flash slots, A/B, power-cut safe)
 //!     ─► RecordStore::restore: newest valid record, checked against the config
+//!
+//! exact resume on a host (chunked replay, moving a device between workers):
+//!   Estimator::snapshot_into ─► estimator::snapshot (whole state, 51·C + 124 B, CRC-32,
+//!     config checksum) ─► Estimator::from_snapshot: every later estimate as in one pass
 //! ```
+//!
+//! The 88-byte state record carries only the slow state (the sensor filters and the stick/slip
+//! decision start afresh after it) and is made for a device's power cycles; the snapshot
+//! carries everything, for exact resume on a host, and is not meant for flash wear-levelling.
 //!
 //! Floats (via `libm`) appear only where tables and coefficients are built; the per-sample
 //! path uses the fixed-point types of [`units`] and integer arithmetic only, so every target

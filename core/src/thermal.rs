@@ -881,5 +881,33 @@ impl ThermalState {
     }
 }
 
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for ThermalState {
+    const LEN: usize = 2 * 8 + 5 + 2;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.i64(self.lining_q32);
+        w.i64(self.rotor_q32);
+        w.option_i32(self.last_measured.map(Celsius::to_bits));
+        w.bool(self.fade);
+        w.bool(self.over);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let in_range = |t: i64| (T_FLOOR_Q32..=T_CEIL_Q32).contains(&t);
+        let lining_q32 = r.i64()?;
+        r.check(in_range(lining_q32), "thermal.lining")?;
+        let rotor_q32 = r.i64()?;
+        r.check(in_range(rotor_q32), "thermal.rotor")?;
+        Some(Self {
+            lining_q32,
+            rotor_q32,
+            last_measured: r
+                .option_i32("thermal.last_measured")?
+                .map(Celsius::from_bits),
+            fade: r.bool("thermal.fade")?,
+            over: r.bool("thermal.over")?,
+        })
+    }
+}
+
 #[cfg(test)]
 mod tests;

@@ -579,6 +579,28 @@ impl WearState {
     }
 }
 
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for WearState {
+    const LEN: usize = 16 + 8 + 16;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.u128(self.energy_q64);
+        w.u64(self.unbedded_q62);
+        w.u128(self.loss_q96);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let energy_q64 = r.u128()?;
+        r.check(energy_q64 <= ENERGY_MAX_Q64, "wear.energy")?;
+        let unbedded_q62 = r.u64()?;
+        r.check(u128::from(unbedded_q62) <= ONE_Q62, "wear.unbedded")?;
+        let loss_q96 = r.u128()?;
+        Some(Self {
+            energy_q64,
+            unbedded_q62,
+            loss_q96,
+        })
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::float_cmp, clippy::cast_precision_loss)]
 mod tests {

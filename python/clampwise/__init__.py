@@ -10,7 +10,8 @@ the applicable functional-safety process.
   a DataFrame of canonical columns).
 - ``read_trace(config, trace)``: a trace file as the estimator is given it (canonical columns,
   SI units), for chunked work.
-- ``Estimator(config)``: ``step_batch(arrays)``, ``save()``, ``restore(record)``.
+- ``Estimator(config)``: ``step_batch(arrays)``, ``save()``/``restore(snapshot)`` (exact resume),
+  ``save_record()``/``restore_record(record)`` (the slow state, as across a power cycle).
 - ``compare``, ``fit``, ``synth``: the CLI's subcommands, returning their ``--json`` summary.
 - ``QuantileSketch``, ``ErrorStats``: mergeable, serialisable accuracy statistics (fleets).
 - Errors raise ``ClampwiseError`` subclasses carrying the CLI's located message.
@@ -122,15 +123,30 @@ class Estimator:
     """The core's estimator for one device config, held between batches.
 
     ``step_batch`` continues where the previous batch stopped: a trace stepped in chunks gives
-    the rows of one pass, bit for bit. ``save()`` returns the core's state record
-    (``RECORD_LEN`` bytes: wear, bedding, temperatures, the adaptation's state; CRC-checked and
-    tied to the config's checksum), what a controller keeps across power cycles;
-    ``restore(record)`` (or ``Estimator(config, record)``) resumes from it as the firmware does:
-    the slow state carries over, the sensor filters and the stick/slip decision start afresh.
+    the rows of one pass, bit for bit.
+
+    ``save()`` returns the core's full-state snapshot (every filter, debounce counter, stuck
+    window, stick/slip state, sub-rate sum and the slow state; CRC-checked, tied to the config's
+    checksum and channel count); ``restore(snapshot)`` or ``Estimator(config, snapshot)``
+    continues exactly there, so chunks carried between fresh objects, processes or workers
+    give one pass bit for bit too. A snapshot is for the host; it is not an archive format.
+
+    ``save_record(sequence)`` returns the core's state record (``RECORD_LEN`` bytes: wear,
+    bedding, temperatures, the adaptation's state), what a controller keeps across power
+    cycles; ``restore_record(record)`` or ``Estimator(config, record=record)`` resumes from it
+    as the firmware does: the slow state carries over, the sensor filters and the stick/slip
+    decision start afresh (the first samples differ from one pass).
+
+    CAUTION: every torque is an estimate, not a certified safety function.
     """
 
-    def __init__(self, config: PathLike, record: Optional[bytes] = None):
-        self._native = _native.Estimator(_path(config), record)
+    def __init__(self, config: PathLike, snapshot: Optional[bytes] = None, *,
+                 record: Optional[bytes] = None):
+        self._native = _native.Estimator(
+            _path(config),
+            None if snapshot is None else bytes(snapshot),
+            record=None if record is None else bytes(record),
+        )
 
     def step_batch(self, arrays: Union[Mapping[str, Any], pd.DataFrame]) -> dict:
         """Step every sample of a batch in order. ``arrays``: canonical column name → values
@@ -146,13 +162,21 @@ class Estimator:
                 given[name] = np.ascontiguousarray(np.asarray(values, dtype=np.float64))
         return _columns(self._native.step_batch(given), categorical=False)
 
-    def save(self, sequence: int = 0) -> bytes:
-        """The core's state record (see the class docs)."""
-        return self._native.save(sequence)
+    def save(self) -> bytes:
+        """The core's full-state snapshot: ``restore`` continues exactly here."""
+        return self._native.save()
 
-    def restore(self, record: bytes) -> None:
-        """Resume from a state record written by ``save``."""
-        self._native.restore(bytes(record))
+    def restore(self, snapshot: bytes) -> None:
+        """Continue exactly where ``save`` was called (a refused snapshot changes nothing)."""
+        self._native.restore(bytes(snapshot))
+
+    def save_record(self, sequence: int = 0) -> bytes:
+        """The core's state record, the slow state only (see the class docs)."""
+        return self._native.save_record(sequence)
+
+    def restore_record(self, record: bytes) -> None:
+        """Resume from a state record written by ``save_record``, as after a power cycle."""
+        self._native.restore_record(bytes(record))
 
     @property
     def next_line(self) -> int:

@@ -3,8 +3,10 @@
 
 One task per device: the device's trace files in time order (sorted by name), each read by the
 simulator's reader and stepped in chunks through one estimator (chunks on one estimator give
-one pass bit for bit); between files the core's state record is carried, as the controller
-keeps it across a power cycle (wear, bedding, temperatures, the adaptation's state). Each task
+one pass bit for bit); between files the core's full-state snapshot is carried (a fresh
+estimator per file resumes exactly, so the device's files give the rows of one pass over all of
+them), and the last file's state record (the slow state a controller keeps across power
+cycles) is reported. Each task
 returns its rows' error figures as mergeable, serialised `clampwise.ErrorStats` (counts, sums,
 maxima and the simulator's DDSketch-scheme quantile sketches); the client merges them into fleet
 figures — counts, maxima and P95/P99 exactly those of one pass over all rows, bias and RMS up to
@@ -56,11 +58,11 @@ def replay_device(config: str, device: str, files: list[str], chunk_rows: int,
     start = time.perf_counter()
     stats = cw.ErrorStats(floor_nm)
     states: dict[str, int] = {}
-    record = None
+    snapshot, record = None, None
     rows = 0
     for sequence, path in enumerate(files):
         samples = cw.read_trace(config, path)
-        est = cw.Estimator(config, record)
+        est = cw.Estimator(config, snapshot)
         for a in range(0, len(samples), chunk_rows):
             out = est.step_batch(samples.iloc[a:a + chunk_rows])
             torque, ref, state = out["torque_Nm"], out["torque_ref_Nm"], out["state"]
@@ -70,7 +72,8 @@ def replay_device(config: str, device: str, files: list[str], chunk_rows: int,
             for n, c in zip(names, counts):
                 states[str(n)] = states.get(str(n), 0) + int(c)
             rows += len(torque)
-        record = est.save(sequence=sequence)
+        snapshot = est.save()
+        record = est.save_record(sequence=sequence)
     seconds = time.perf_counter() - start
     return {
         "device": device,

@@ -1,7 +1,9 @@
 //! `Estimator`: the core's estimator held between calls, for traces processed in chunks.
 //! Each `step_batch` continues where the last one stopped, so chunks on one object give the
-//! rows of one pass bit for bit. `save` writes the core's state record (what a controller keeps
-//! across power cycles) and `restore` resumes from one, as the firmware does.
+//! rows of one pass bit for bit. `save` writes the core's full-state snapshot and `restore`
+//! resumes from one exactly, so chunks on fresh objects give one pass too; `save_record` writes
+//! the core's state record (the slow state a controller keeps across power cycles) and
+//! `restore_record` resumes from one as the firmware does.
 
 use std::path::PathBuf;
 
@@ -230,17 +232,31 @@ fn record_error(e: impl std::fmt::Display) -> SimError {
     SimError::Usage(format!("state record refused: {e}"))
 }
 
+fn snapshot_error(e: impl std::fmt::Display) -> SimError {
+    SimError::Usage(format!("snapshot refused: {e}"))
+}
+
 #[pymethods]
 impl Estimator {
     /// An estimator for the config `config` (TOML path) at the config's initial state, or
-    /// resuming from `record` (bytes written by `save`).
+    /// resuming exactly from `snapshot` (bytes written by `save`), or from `record` (bytes
+    /// written by `save_record`) as after a power cycle.
     #[new]
-    #[pyo3(signature = (config, record=None))]
-    fn new(py: Python<'_>, config: PathBuf, record: Option<Vec<u8>>) -> PyResult<Self> {
+    #[pyo3(signature = (config, snapshot=None, *, record=None))]
+    fn new(
+        py: Python<'_>,
+        config: PathBuf,
+        snapshot: Option<Vec<u8>>,
+        record: Option<Vec<u8>>,
+    ) -> PyResult<Self> {
         let device = load(&config).map_err(|e| errors::to_py(py, e))?;
-        let running = Running::try_new(device, |d| match &record {
-            None => CoreEstimator::new(&d.config, &d.core).map_err(record_error),
-            Some(r) => CoreEstimator::restore(&d.config, &d.core, r).map_err(record_error),
+        let running = Running::try_new(device, |d| match (&snapshot, &record) {
+            (None, None) => CoreEstimator::new(&d.config, &d.core).map_err(record_error),
+            (Some(s), None) => CoreEstimator::resume(&d.config, &d.core, s).map_err(snapshot_error),
+            (None, Some(r)) => CoreEstimator::restore(&d.config, &d.core, r).map_err(record_error),
+            (Some(_), Some(_)) => Err(SimError::Usage(
+                "give a snapshot or a state record, not both".to_owned(),
+            )),
         })
         .map_err(|e| errors::to_py(py, e))?;
         Ok(Self {
@@ -306,16 +322,31 @@ impl Estimator {
         }
     }
 
+    /// The core's full-state snapshot (`Estimator::snapshot_into`): `restore` (or a new
+    /// `Estimator(config, snapshot)`) continues exactly here, bit for bit.
+    fn save<'py>(&self, py: Python<'py>) -> Bound<'py, PyBytes> {
+        PyBytes::new(py, &self.running.borrow_dependent().snapshot())
+    }
+
+    /// Resume exactly from a snapshot written by `save`; a refused snapshot changes nothing.
+    fn restore(&mut self, py: Python<'_>, snapshot: Vec<u8>) -> PyResult<()> {
+        self.running
+            .with_dependent_mut(|d, est| {
+                CoreEstimator::resume(&d.config, &d.core, &snapshot).map(|e| *est = e)
+            })
+            .map_err(|e| errors::to_py(py, snapshot_error(e)))
+    }
+
     /// The core's state record (`Estimator::save`): wear, bedding, temperatures and the
     /// adaptation's state, CRC-checked and tied to this config's checksum.
     #[pyo3(signature = (sequence=0))]
-    fn save<'py>(&self, py: Python<'py>, sequence: u32) -> Bound<'py, PyBytes> {
+    fn save_record<'py>(&self, py: Python<'py>, sequence: u32) -> Bound<'py, PyBytes> {
         PyBytes::new(py, &self.running.borrow_dependent().save(sequence))
     }
 
     /// Resume from a state record: the slow state carries over, the sensor filters and the
     /// stick/slip decision start afresh (as after a controller's power cycle).
-    fn restore(&mut self, py: Python<'_>, record: Vec<u8>) -> PyResult<()> {
+    fn restore_record(&mut self, py: Python<'_>, record: Vec<u8>) -> PyResult<()> {
         self.running
             .with_dependent_mut(|d, est| {
                 CoreEstimator::restore(&d.config, &d.core, &record).map(|e| *est = e)

@@ -2,10 +2,10 @@
 //!
 //! The native part of the Python package `clampwise` (module `clampwise._native`): replay of a
 //! trace through the core's estimator with the simulator's own readers, an estimator object
-//! for chunked work with the core's state record, `compare`, `fit` and `synth` as the
-//! `clampwise` command runs them, and the simulator's mergeable quantile sketch. The pure
-//! Python layer (`python/clampwise/__init__.py`) turns the column dictionaries returned here
-//! into pandas DataFrames.
+//! for chunked work with the core's full-state snapshot and state record, `compare`, `fit` and
+//! `synth` as the `clampwise` command runs them, and the simulator's mergeable quantile sketch.
+//! The pure Python layer (`python/clampwise/__init__.py`) turns the column dictionaries
+//! returned here into pandas DataFrames.
 //!
 //! **Caution.** Every torque here is an *estimate*, not a certified safety function; see the
 //! core's crate docs.

@@ -33,13 +33,11 @@ def fleet(workdir):
 
 
 def single_pass(files):
-    """The rows of one device as the API gives them: each file through a fresh estimator
-    restored from the previous file's state record."""
-    record, parts = None, []
-    for sequence, f in enumerate(files):
-        est = cw.Estimator(BRAKE, record)
+    """The rows of one device in one pass over its files in order, on one estimator."""
+    est, parts = cw.Estimator(BRAKE), []
+    for f in files:
         parts.append(est.step_batch(cw.read_trace(BRAKE, f)))
-        record = est.save(sequence=sequence)
+    record = est.save_record(sequence=len(files) - 1)
     return {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}, record
 
 

@@ -30,12 +30,14 @@
 mod estimate;
 mod inputs;
 mod persist;
+pub mod snapshot;
 mod sub_rate;
 mod torque;
 mod uncertainty;
 
 pub use estimate::{ContactState, Estimate};
 pub use inputs::Inputs;
+pub use snapshot::{SnapshotError, snapshot_len};
 pub use uncertainty::Combination;
 
 use crate::adapt::{AdaptGate, AdaptState};

@@ -1,6 +1,11 @@
 //! The estimator's slow state to and from a [`StateRecord`]: what a controller keeps across
 //! power cycles (see [`crate::state_record`] for the format and the checks, and
 //! [`crate::record_store`] for keeping it on NOR flash).
+//!
+//! The record is for power cycles: it carries the slow state only, so the samples after a
+//! restore differ from an uninterrupted run while the filters settle. For exact resume on a
+//! host (chunked replay, moving a device's work between workers) use the full-state snapshot,
+//! [`crate::estimator::snapshot`]; it is not meant for flash wear-levelling.
 
 use super::Estimator;
 use crate::adapt::AdaptState;

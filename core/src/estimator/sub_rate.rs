@@ -149,3 +149,28 @@ fn advance(
     wear.advance(wear_cfg, wear_sum);
     rejected
 }
+
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for SubRate {
+    const LEN: usize = 8 + 8 + 1;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.i64(self.pending.to_bits());
+        w.i64(self.pending_wear.to_bits());
+        w.u8(self.samples);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let pending = Watts::from_bits(r.i64()?);
+        r.check(pending >= Watts::ZERO, "sub_rate.pending")?;
+        let pending_wear = Watts::from_bits(r.i64()?);
+        // The friction part of the power sum, which `step` keeps at most the sum.
+        r.check(
+            pending_wear >= Watts::ZERO && pending_wear <= pending,
+            "sub_rate.pending_wear",
+        )?;
+        Some(Self {
+            pending,
+            pending_wear,
+            samples: r.u8()?,
+        })
+    }
+}

@@ -208,6 +208,34 @@ impl DebounceBank {
     }
 }
 
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for DebounceBank {
+    const LEN: usize = 2 + 2 * BANK;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.u8(self.raised);
+        w.u8(self.counting);
+        for run in self.runs {
+            w.u16(run);
+        }
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        const BITS: u8 = (1 << BANK) - 1;
+        let raised = r.u8()?;
+        r.check(raised & !BITS == 0, "debounce.raised")?;
+        let counting = r.u8()?;
+        r.check(counting & !BITS == 0, "debounce.counting")?;
+        let mut runs = [0; BANK];
+        for run in &mut runs {
+            *run = r.u16()?;
+        }
+        Some(Self {
+            raised,
+            counting,
+            runs,
+        })
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
 mod tests {

@@ -620,3 +620,44 @@ impl ChannelDiagnostics {
         f
     }
 }
+
+// Parts of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for StuckWindow {
+    const LEN: usize = 1 + 4 * 4;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.bool(self.primed);
+        w.i32(self.reference);
+        w.u32(self.quiet);
+        w.i32(self.command_lo);
+        w.i32(self.command_hi);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        Some(Self {
+            primed: r.bool("stuck.primed")?,
+            reference: r.i32()?,
+            quiet: r.u32()?,
+            command_lo: r.i32()?,
+            command_hi: r.i32()?,
+        })
+    }
+}
+
+impl crate::estimator::snapshot::Snapshot for ChannelDiagnostics {
+    const LEN: usize = DebounceBank::LEN + StuckWindow::LEN + 4 + 4 + 1;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        self.debounce.write(w);
+        self.stuck_window.write(w);
+        w.i32(self.last_accepted);
+        w.u32(self.since_accepted);
+        w.bool(self.ever_accepted);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        Some(Self {
+            debounce: DebounceBank::read(r)?,
+            stuck_window: StuckWindow::read(r)?,
+            last_accepted: r.i32()?,
+            since_accepted: r.u32()?,
+            ever_accepted: r.bool("diagnostics.ever_accepted")?,
+        })
+    }
+}

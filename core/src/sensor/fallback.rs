@@ -299,6 +299,29 @@ fn centre_line_q8(command: i32, gain: i64) -> i64 {
     (c * high + (p >> 32) + (1 << 7)) >> 8
 }
 
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for ActuatorModel {
+    const LEN: usize = 1 + 4 + 8;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.bool(self.primed);
+        w.i32(self.force);
+        w.i64(self.lagged);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let primed = r.bool("actuator.primed")?;
+        let force = r.i32()?;
+        let lagged = r.i64()?;
+        // Between past targets, all i32 forces (see `update`), which its plain sums rely on.
+        let range = i64::from(i32::MIN) << LAG_EXTRA..=i64::from(i32::MAX) << LAG_EXTRA;
+        r.check(range.contains(&lagged), "actuator.lagged")?;
+        Some(Self {
+            primed,
+            force,
+            lagged,
+        })
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {

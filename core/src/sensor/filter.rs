@@ -234,6 +234,23 @@ fn round_out(acc: i64) -> i32 {
     (acc.wrapping_add(1 << (EXTRA - 1)) >> EXTRA) as i32
 }
 
+// Part of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for LowPassState {
+    const LEN: usize = 8 + 1;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        w.i64(self.acc);
+        w.bool(self.primed);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let acc = r.i64()?;
+        // Within the range of past inputs (see `update`), which `round_out` relies on.
+        let range = i64::from(i32::MIN) << EXTRA..=i64::from(i32::MAX) << EXTRA;
+        r.check(range.contains(&acc), "low_pass.acc")?;
+        let primed = r.bool("low_pass.primed")?;
+        Some(Self { acc, primed })
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::float_cmp)]
 mod tests {

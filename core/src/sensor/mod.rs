@@ -789,6 +789,43 @@ fn vote_usable<const C: usize>(
     }
 }
 
+// Parts of the estimator's snapshot (`crate::estimator::snapshot`).
+impl crate::estimator::snapshot::Snapshot for ChannelState {
+    const LEN: usize = ChannelDiagnostics::LEN + LowPassState::LEN;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        self.diagnostics.write(w);
+        self.filter.write(w);
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        Some(Self {
+            diagnostics: ChannelDiagnostics::read(r)?,
+            filter: LowPassState::read(r)?,
+        })
+    }
+}
+
+impl<const C: usize> crate::estimator::snapshot::Snapshot for SensorState<C> {
+    const LEN: usize = C * ChannelState::LEN + ActuatorModel::LEN + 5;
+    fn write(&self, w: &mut crate::estimator::snapshot::Writer<'_>) {
+        for channel in &self.channels {
+            channel.write(w);
+        }
+        self.actuator.write(w);
+        w.option_i32(self.temperature.map(Celsius::to_bits));
+    }
+    fn read(r: &mut crate::estimator::snapshot::Reader<'_>) -> Option<Self> {
+        let mut channels = [ChannelState::NEW; C];
+        for channel in &mut channels {
+            *channel = ChannelState::read(r)?;
+        }
+        Some(Self {
+            channels,
+            actuator: ActuatorModel::read(r)?,
+            temperature: r.option_i32("sensor.temperature")?.map(Celsius::from_bits),
+        })
+    }
+}
+
 #[cfg(test)]
 #[allow(clippy::unwrap_used, clippy::panic)]
 mod tests {
