@@ -10,6 +10,7 @@
 //! `CWES`, version u16 = 1, floor f64, then the absolute and the relative moments, each n u64,
 //! sum f64, sum of squares f64, max |x| f64, sketch length u32 and the sketch's bytes.
 
+use clampwise_sim::compare::{self, Moments};
 use clampwise_sim::quantile_sketch::{self, QuantileSketch as Sketch};
 use numpy::PyReadonlyArray1;
 use pyo3::prelude::*;
@@ -200,88 +201,42 @@ impl QuantileSketch {
     }
 }
 
-/// Running sums of one error population (as `compare` keeps them).
-#[derive(Clone, Default)]
-struct Moments {
-    n: u64,
-    sum: f64,
-    sum_sq: f64,
-    max_abs: f64,
-    sketch: Sketch,
+fn write_moments(m: &Moments, out: &mut Vec<u8>) {
+    out.extend_from_slice(&m.n.to_le_bytes());
+    for v in [m.sum, m.sum_sq, m.max_abs] {
+        out.extend_from_slice(&v.to_le_bytes());
+    }
+    let mut s = Vec::new();
+    sketch_bytes(&m.sketch, &mut s);
+    out.extend_from_slice(&len_u32(s.len()).to_le_bytes());
+    out.extend_from_slice(&s);
 }
 
-impl Moments {
-    fn add(&mut self, e: f64) {
-        self.n += 1;
-        self.sum += e;
-        self.sum_sq += e * e;
-        self.max_abs = self.max_abs.max(e.abs());
-        self.sketch.add(e);
+fn read_moments(r: &mut Reader<'_>) -> PyResult<Moments> {
+    let n = r.u64("a count")?;
+    let sum = r.f64("a sum")?;
+    let sum_sq = r.f64("a sum of squares")?;
+    let max_abs = r.f64("a maximum")?;
+    let len = r.u32("a sketch length")? as usize;
+    let mut inner = Reader {
+        bytes: r.take(len, "a sketch")?,
+        at: 0,
+    };
+    let sketch = sketch_from(&mut inner)?;
+    inner.end()?;
+    if sketch.count() != n {
+        return Err(errors::usage(format!(
+            "cannot decode: a count of {n} over a sketch of {}",
+            sketch.count()
+        )));
     }
-
-    fn merge(&mut self, o: &Self) {
-        self.n += o.n;
-        self.sum += o.sum;
-        self.sum_sq += o.sum_sq;
-        self.max_abs = self.max_abs.max(o.max_abs);
-        self.sketch.merge(&o.sketch);
-    }
-
-    /// (n, mean, RMS, max |x|, P95, P99), by `compare`'s formulas; `None` when empty.
-    fn figures(&self) -> Option<(u64, f64, f64, f64, f64, f64)> {
-        if self.n == 0 {
-            return None;
-        }
-        // Counts stay far below 2⁵³.
-        #[allow(clippy::cast_precision_loss)]
-        let n = self.n as f64;
-        Some((
-            self.n,
-            self.sum / n,
-            (self.sum_sq / n).sqrt(),
-            self.max_abs,
-            self.sketch.quantile(0.95).unwrap_or(0.0),
-            self.sketch.quantile(0.99).unwrap_or(0.0),
-        ))
-    }
-
-    fn write(&self, out: &mut Vec<u8>) {
-        out.extend_from_slice(&self.n.to_le_bytes());
-        for v in [self.sum, self.sum_sq, self.max_abs] {
-            out.extend_from_slice(&v.to_le_bytes());
-        }
-        let mut s = Vec::new();
-        sketch_bytes(&self.sketch, &mut s);
-        out.extend_from_slice(&len_u32(s.len()).to_le_bytes());
-        out.extend_from_slice(&s);
-    }
-
-    fn read(r: &mut Reader<'_>) -> PyResult<Self> {
-        let n = r.u64("a count")?;
-        let sum = r.f64("a sum")?;
-        let sum_sq = r.f64("a sum of squares")?;
-        let max_abs = r.f64("a maximum")?;
-        let len = r.u32("a sketch length")? as usize;
-        let mut inner = Reader {
-            bytes: r.take(len, "a sketch")?,
-            at: 0,
-        };
-        let sketch = sketch_from(&mut inner)?;
-        inner.end()?;
-        if sketch.count() != n {
-            return Err(errors::usage(format!(
-                "cannot decode: a count of {n} over a sketch of {}",
-                sketch.count()
-            )));
-        }
-        Ok(Self {
-            n,
-            sum,
-            sum_sq,
-            max_abs,
-            sketch,
-        })
-    }
+    Ok(Moments {
+        n,
+        sum,
+        sum_sq,
+        max_abs,
+        sketch,
+    })
 }
 
 /// `compare`'s error figures of one population (estimate − reference, N·m), mergeable: in
@@ -289,9 +244,7 @@ impl Moments {
 #[pyclass(module = "clampwise._native")]
 #[derive(Clone)]
 pub struct ErrorStats {
-    abs: Moments,
-    rel: Moments,
-    floor_nm: f64,
+    inner: compare::ErrorStats,
 }
 
 fn figures_dict<'py>(
@@ -317,9 +270,7 @@ impl ErrorStats {
     #[pyo3(signature = (floor_nm=10.0))]
     fn new(floor_nm: f64) -> Self {
         Self {
-            abs: Moments::default(),
-            rel: Moments::default(),
-            floor_nm,
+            inner: compare::ErrorStats::with_floor(floor_nm),
         }
     }
 
@@ -341,10 +292,7 @@ impl ErrorStats {
         let (e, r) = (e.to_vec(), r.to_vec());
         py.detach(|| {
             for (&e, &r) in e.iter().zip(&r) {
-                self.abs.add(e);
-                if r.abs() >= self.floor_nm && r != 0.0 {
-                    self.rel.add(100.0 * e / r.abs());
-                }
+                self.inner.add(e, r);
             }
         });
         Ok(())
@@ -352,30 +300,36 @@ impl ErrorStats {
 
     /// Merge another device's statistics (the same floor).
     fn merge(&mut self, other: &Self) -> PyResult<()> {
-        if other.floor_nm.to_bits() != self.floor_nm.to_bits() {
-            return Err(errors::usage(format!(
-                "ErrorStats.merge: floors differ ({} and {} N·m)",
-                self.floor_nm, other.floor_nm
-            )));
-        }
-        self.abs.merge(&other.abs);
-        self.rel.merge(&other.rel);
-        Ok(())
+        self.inner
+            .merge(&other.inner)
+            .map_err(|e| errors::usage(format!("ErrorStats.merge: {e}")))
     }
 
     /// `compare`'s report of this population: `{n, bias_nm, rms_nm, max_abs_nm, p95_nm,
     /// p99_nm, relative: {n, floor_nm, bias_pct, …} or None}`, or `None` when empty.
     fn report<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyDict>>> {
-        let Some(f) = self.abs.figures() else {
+        let Some(r) = self.inner.report() else {
             return Ok(None);
         };
-        let d = figures_dict(py, f, "nm")?;
-        let rel = match self.rel.figures() {
+        let d = figures_dict(
+            py,
+            (r.n, r.bias_nm, r.rms_nm, r.max_abs_nm, r.p95_nm, r.p99_nm),
+            "nm",
+        )?;
+        let rel = match r.relative {
             None => None,
-            Some(f) => {
-                let r = figures_dict(py, f, "pct")?;
-                r.set_item("floor_nm", self.floor_nm)?;
-                Some(r)
+            Some(p) => {
+                let f = (
+                    p.n,
+                    p.bias_pct,
+                    p.rms_pct,
+                    p.max_abs_pct,
+                    p.p95_pct,
+                    p.p99_pct,
+                );
+                let d = figures_dict(py, f, "pct")?;
+                d.set_item("floor_nm", p.floor_nm)?;
+                Some(d)
             }
         };
         d.set_item("relative", rel)?;
@@ -386,20 +340,20 @@ impl ErrorStats {
     #[getter]
     fn sketch(&self) -> QuantileSketch {
         QuantileSketch {
-            inner: self.abs.sketch.clone(),
+            inner: self.inner.moments().0.sketch.clone(),
         }
     }
 
     /// Number of errors added.
     #[getter]
     fn count(&self) -> u64 {
-        self.abs.n
+        self.inner.moments().0.n
     }
 
     /// The floor of the relative figures, N·m.
     #[getter]
     fn floor_nm(&self) -> f64 {
-        self.floor_nm
+        self.inner.floor_nm()
     }
 
     /// The statistics as bytes (see the module docs).
@@ -407,9 +361,10 @@ impl ErrorStats {
         let mut out = Vec::new();
         out.extend_from_slice(STATS_MAGIC);
         out.extend_from_slice(&VERSION.to_le_bytes());
-        out.extend_from_slice(&self.floor_nm.to_le_bytes());
-        self.abs.write(&mut out);
-        self.rel.write(&mut out);
+        let (abs, rel) = self.inner.moments();
+        out.extend_from_slice(&self.inner.floor_nm().to_le_bytes());
+        write_moments(abs, &mut out);
+        write_moments(rel, &mut out);
         PyBytes::new(py, &out)
     }
 
@@ -419,10 +374,12 @@ impl ErrorStats {
         let mut r = Reader { bytes: data, at: 0 };
         r.header(STATS_MAGIC, "error statistics")?;
         let floor_nm = r.f64("the floor")?;
-        let abs = Moments::read(&mut r)?;
-        let rel = Moments::read(&mut r)?;
+        let abs = read_moments(&mut r)?;
+        let rel = read_moments(&mut r)?;
         r.end()?;
-        Ok(Self { abs, rel, floor_nm })
+        Ok(Self {
+            inner: compare::ErrorStats::from_moments(floor_nm, abs, rel),
+        })
     }
 
     fn __reduce__<'py>(

@@ -25,14 +25,20 @@ use crate::quantile_sketch::QuantileSketch;
 use crate::schema::DeviceSpec;
 use clampwise_convert::{ContactState, EstimateRow};
 
-/// Running sums of one error population.
+/// Running sums of one error population: what its figures are computed from, and what two
+/// populations merge by (the sums add, the sketches merge).
 #[derive(Debug, Clone, Default)]
-struct Moments {
-    n: u64,
-    sum: f64,
-    sum_sq: f64,
-    max_abs: f64,
-    sketch: QuantileSketch,
+pub struct Moments {
+    /// Values added.
+    pub n: u64,
+    /// Their sum.
+    pub sum: f64,
+    /// The sum of their squares.
+    pub sum_sq: f64,
+    /// The largest |value|.
+    pub max_abs: f64,
+    /// The sketch of |value| behind P95 and P99.
+    pub sketch: QuantileSketch,
 }
 
 impl Moments {
@@ -42,6 +48,15 @@ impl Moments {
         self.sum_sq += e * e;
         self.max_abs = self.max_abs.max(e.abs());
         self.sketch.add(e);
+    }
+
+    /// Add another population's sums.
+    pub fn merge(&mut self, o: &Self) {
+        self.n += o.n;
+        self.sum += o.sum;
+        self.sum_sq += o.sum_sq;
+        self.max_abs = self.max_abs.max(o.max_abs);
+        self.sketch.merge(&o.sketch);
     }
 
     /// (n, mean, RMS, max |x|, P95, P99); `None` when empty.
@@ -118,6 +133,37 @@ impl ErrorStats {
             floor_nm,
             ..Self::default()
         }
+    }
+
+    /// Statistics from their parts (as [`ErrorStats::moments`] gives them).
+    pub fn from_moments(floor_nm: f64, abs: Moments, rel: Moments) -> Self {
+        Self { abs, rel, floor_nm }
+    }
+
+    /// The sums in N·m and in % of |reference|.
+    pub fn moments(&self) -> (&Moments, &Moments) {
+        (&self.abs, &self.rel)
+    }
+
+    /// The floor of the relative figures, N·m.
+    pub fn floor_nm(&self) -> f64 {
+        self.floor_nm
+    }
+
+    /// Add another population's statistics (another device's, say).
+    ///
+    /// # Errors
+    /// The two floors differ: their relative figures cover different rows.
+    pub fn merge(&mut self, other: &Self) -> Result<(), String> {
+        if other.floor_nm.to_bits() != self.floor_nm.to_bits() {
+            return Err(format!(
+                "floors differ ({} and {} N·m)",
+                self.floor_nm, other.floor_nm
+            ));
+        }
+        self.abs.merge(&other.abs);
+        self.rel.merge(&other.rel);
+        Ok(())
     }
 
     /// Add one error with its reference, N·m.
@@ -688,6 +734,31 @@ mod tests {
     #![allow(clippy::unwrap_used, clippy::float_cmp, clippy::indexing_slicing)]
     use super::*;
     use clampwise_convert::Flags;
+
+    #[test]
+    fn merged_halves_report_what_one_population_reports() {
+        // [calc] sums add and sketches merge: counts, maxima and quantiles of two halves merged
+        // equal those of the whole; mean and RMS to rounding of the sums.
+        let errors: Vec<(f64, f64)> = (0..2000)
+            .map(|i| (f64::from(i % 97) - 40.0, 5.0 + f64::from(i % 13) * 100.0))
+            .collect();
+        let mut whole = ErrorStats::with_floor(10.0);
+        let (mut a, mut b) = (ErrorStats::with_floor(10.0), ErrorStats::with_floor(10.0));
+        for (i, &(e, r)) in errors.iter().enumerate() {
+            whole.add(e, r);
+            if i < 700 { a.add(e, r) } else { b.add(e, r) }
+        }
+        a.merge(&b).unwrap();
+        let (w, m) = (whole.report().unwrap(), a.report().unwrap());
+        assert_eq!(
+            (w.n, w.max_abs_nm, w.p95_nm, w.p99_nm),
+            (m.n, m.max_abs_nm, m.p95_nm, m.p99_nm)
+        );
+        assert!((w.bias_nm - m.bias_nm).abs() < 1e-12 && (w.rms_nm - m.rms_nm).abs() < 1e-12);
+        let (wr, mr) = (w.relative.unwrap(), m.relative.unwrap());
+        assert_eq!((wr.n, wr.p99_pct), (mr.n, mr.p99_pct));
+        assert!(a.merge(&ErrorStats::with_floor(5.0)).is_err());
+    }
 
     fn row(
         state: ContactState,
