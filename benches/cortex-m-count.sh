@@ -19,8 +19,10 @@
 #
 # thumbv6m and thumbv7m images run on QEMU's lm3s6965evb (a Cortex-M3 executes the ARMv6-M
 # code unchanged, so the count is the v6-M instruction stream a Cortex-M0+ would execute);
-# thumbv7em-none-eabihf runs on mps2-an386 (Cortex-M4 with FPU). The bench image is built with
-# `--profile firmware` (opt-level "z", fat LTO), as the example firmware.
+# thumbv7em-none-eabihf runs on mps2-an386 (Cortex-M4 with FPU). The bench image is built as the
+# example firmware is: `--profile firmware` (opt-level "z", fat LTO) for thumbv6m and
+# `--profile firmware-speed` (the same at opt-level "s") for thumbv7m/thumbv7em; FW_PROFILE
+# overrides it for every target.
 set -euo pipefail
 
 root="$(cd "$(dirname "$0")/.." && pwd)"
@@ -30,10 +32,11 @@ llvm="$(rustc --print sysroot)/lib/rustlib/$(rustc -vV | sed -n 's/^host: //p')/
 [[ -x "$llvm/llvm-nm" ]] || { echo "cortex-m-count.sh: llvm-tools missing (rustup component add llvm-tools)" >&2; exit 1; }
 command -v qemu-system-arm >/dev/null || { echo "cortex-m-count.sh: qemu-system-arm missing (apt-get install qemu-system-arm)" >&2; exit 1; }
 
-hot=0; elf=""; symbol=""; targets=()
+hot=0; stages=0; elf=""; symbol=""; targets=()
 while [[ $# -gt 0 ]]; do
   case "$1" in
     --hot) hot=1 ;;
+    --stages) stages=1 ;;
     --elf) elf="$2"; shift ;;
     --symbol) symbol="$2"; shift ;;
     --target) targets+=("$2"); shift ;;
@@ -49,6 +52,14 @@ machine() {
     thumbv6m-*|thumbv7m-*) echo "-cpu cortex-m3 -machine lm3s6965evb" ;;
     thumbv7em-*) echo "-cpu cortex-m4 -machine mps2-an386" ;;
     *) echo "cortex-m-count.sh: no QEMU machine for $1" >&2; exit 1 ;;
+  esac
+}
+
+# profile_of TARGET -> the cargo profile the firmware is built with for that target.
+profile_of() {
+  case "$1" in
+    thumbv6m-*) echo firmware ;;
+    *) echo firmware-speed ;;
   esac
 }
 
@@ -72,13 +83,14 @@ entries() {
 
 # count TARGET ELF ENTRIES -> per-function table (and hot list with --hot)
 count() {
-  local t="$1" image="$2" list="$3" log
+  local t="$1" image="$2" list="$3" log pcs=""
+  if [[ $stages -eq 1 ]]; then pcs="$target_dir/cortex-m-count.$t.pcs.tsv"; rm -f "$pcs"; fi
   log="$target_dir/cortex-m-count.$t.semihosting.txt"
   # shellcheck disable=SC2046 # the machine arguments are words
   timeout 900 qemu-system-arm $(machine "$t") -nographic \
       -semihosting-config enable=on,target=native -singlestep -d exec,nochain \
       -kernel "$image" 2>&1 >"$log" \
-    | awk -F'/' -v ENTRIES="$list" -v HOT="$hot" -v TARGET="$t" '
+    | awk -F'/' -v ENTRIES="$list" -v HOT="$hot" -v TARGET="$t" -v PCS="$pcs" '
       function hexval(s,   i, v) { v = 0; s = tolower(s);
         for (i = 1; i <= length(s); i++) v = v * 16 + index("0123456789abcdef", substr(s, i, 1)) - 1;
         return v }
@@ -95,15 +107,18 @@ count() {
           } else {
             c++
             if (HOT) { s = $4; sub(/^[^]]*] */, "", s); sub(/::h[0-9a-f]+$/, "", s); spent[name, s]++ }
+            if (PCS != "") at[name, pc]++
           }
         } else if (pc in entry) {
           inside = 1; name = entry[pc]; c = 1
           p = hexval(prev); r2 = sprintf("%08x", p + 2); r4 = sprintf("%08x", p + 4)
           if (HOT) { s = $4; sub(/^[^]]*] */, "", s); sub(/::h[0-9a-f]+$/, "", s); spent[name, s]++ }
+          if (PCS != "") at[name, pc]++
         }
         prev = pc
       }
       END {
+        if (PCS != "") for (key in at) { split(key, kk, SUBSEP); printf "%s\t%s\t%.3f\n", kk[1], kk[2], at[key] / calls[kk[1]] > PCS }
         printf "%-22s %6s %8s %9s %8s  %s\n", "target", "calls", "min", "mean", "max", "function"
         for (nm in calls) printf "%-22s %6d %8d %9.1f %8d  %s\n", TARGET, calls[nm], lo[nm], sum[nm] / calls[nm], hi[nm], nm
         fflush()
@@ -116,6 +131,7 @@ count() {
         }
       }' | demangle
   if ! grep -q . "$log"; then echo "cortex-m-count.sh: $t: the image printed nothing (see $log)" >&2; fi
+  if [[ -n "$pcs" ]]; then LLVM_BIN="$llvm" python3 "$root/benches/cortex-m-stages.py" "$image" "$pcs"; fi
 }
 
 for t in "${targets[@]}"; do
@@ -124,8 +140,10 @@ for t in "${targets[@]}"; do
     regex="${symbol:-Processor.*::step}"
     exclude=""; [[ -n "$symbol" ]] || exclude="StackProbe"
   else
-    cargo build -q -p clampwise-benches-cortex-m --bin clampwise-step-count --target "$t" --profile firmware
-    image="$target_dir/$t/firmware/clampwise-step-count"
+    profile="${FW_PROFILE:-$(profile_of "$t")}"
+    cargo build -q -p clampwise-benches-cortex-m --bin clampwise-step-count --target "$t" --profile "$profile"
+    image="$target_dir/$t/$profile/clampwise-step-count"
+    echo "$t: --profile $profile"
     regex="${symbol:-clampwise_benches::run::step_}"
     exclude=""
   fi

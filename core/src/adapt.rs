@@ -40,7 +40,7 @@
 
 use core::fmt;
 
-use crate::divide::ConstDivisor;
+use crate::divide::{Reciprocal, ratio_q30_down};
 use crate::units::{NewtonMetres, Ratio};
 
 /// Why an adaptation configuration was rejected.
@@ -91,8 +91,8 @@ pub struct AdaptConfig {
     min_covariance: Ratio,
     max_covariance: Ratio,
     /// Derived: division by the full scale and by λ without a divide per sample.
-    full_scale_divisor: ConstDivisor,
-    forgetting_divisor: ConstDivisor,
+    full_scale_divisor: Reciprocal,
+    forgetting_divisor: Reciprocal,
 }
 
 const ONE_Q30: i64 = 1 << 30;
@@ -229,8 +229,8 @@ impl AdaptConfig {
             initial_covariance: raw.initial_covariance,
             min_covariance: raw.min_covariance,
             max_covariance: raw.max_covariance,
-            full_scale_divisor: ConstDivisor::new(full_scale),
-            forgetting_divisor: ConstDivisor::new(forgetting),
+            full_scale_divisor: Reciprocal::new(full_scale),
+            forgetting_divisor: Reciprocal::new(forgetting),
         })
     }
 
@@ -297,13 +297,11 @@ fn narrow_q30(v: i64) -> Ratio {
     Ratio::from_bits(i32::try_from(v).unwrap_or(if v < 0 { i32::MIN } else { i32::MAX }))
 }
 
-/// Normalise a torque to Q30 of the full scale (`full_scale`: its divisor), saturating at
+/// Normalise a torque to Q30 of the full scale (`full_scale`: its reciprocal), saturating at
 /// ±1.99.
-fn normalise(torque: NewtonMetres, full_scale: ConstDivisor) -> i64 {
-    let t = i64::from(torque.to_bits());
-    // |t| < 2³¹, so t·2³⁰ < 2⁶¹.
+fn normalise(torque: NewtonMetres, full_scale: Reciprocal) -> i64 {
     full_scale
-        .div_toward_zero(t << 30)
+        .ratio_q30_toward_zero(i64::from(torque.to_bits()))
         .clamp(-2 * ONE_Q30 + 1, 2 * ONE_Q30 - 1)
 }
 
@@ -385,14 +383,20 @@ impl AdaptState {
 
         // All quantities are Q30 with magnitude < 2 (so < 2³¹); each product < 2⁶².
         let p_phi = (p * phi) >> 30;
-        let denom = (lambda + ((phi * phi) >> 30) * p / ONE_Q30).max(1);
-        let gain = (p_phi << 30) / denom;
+        // P ≥ 0 and φ² ≥ 0: the shift is the division by 2³⁰.
+        let denom = (lambda + ((((phi * phi) >> 30) * p) >> 30)).max(1);
+        // K = Pφ/(λ + φ²P), its magnitude from below without a 64-bit division; |Pφ| < 2³².
+        let magnitude = u32::try_from(p_phi.unsigned_abs()).unwrap_or(u32::MAX);
+        let gain =
+            i64::try_from(ratio_q30_down(magnitude, denom.unsigned_abs())).unwrap_or(i64::MAX);
+        let gain = if p_phi < 0 { -gain } else { gain };
         let innovation = y - ((phi * k) >> 30);
         let k_new = k + ((gain * innovation.clamp(-4 * ONE_Q30, 4 * ONE_Q30)) >> 30);
-        // ÷ λ by its reciprocal: the same quotient as `/ lambda` (validated λ ≥ 0.9).
+        // K has φ's sign, so K·φ·P ≥ 0 and the shift is the division by 2³⁰; ÷ λ by its
+        // reciprocal: the same quotient as `/ lambda` (validated λ ≥ 0.9).
         let p_new = cfg
             .forgetting_divisor
-            .div_toward_zero((p - ((gain * phi) >> 30) * p / ONE_Q30) << 30);
+            .ratio_q30_toward_zero(p - ((((gain * phi) >> 30) * p) >> 30));
 
         // `max`/`min` rather than `clamp`: the same value for validated bounds (min ≤ max),
         // and no assertion (panic path) on their order in the per-sample code.
