@@ -50,7 +50,7 @@ use crate::units::{Metres, NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
 use crate::wear::WearState;
 
 use sub_rate::{SlowSample, SubRate};
-use torque::{Saturating, dissipated_power, friction_torque, ratio_product};
+use torque::{Saturating, dissipated_power, friction_torque, friction_torque_pair, ratio_product};
 use uncertainty::torque_uncertainty;
 
 /// Everything that persists between samples.
@@ -151,8 +151,8 @@ fn reported_torque<T: TableSet>(
     // One lever-arm lookup serves both products (for a contact not linear in μ it is a table
     // lookup at μ_k).
     let arm = at.lever_arm(fric.mu_kinetic).value;
-    let kinetic = friction_torque(at.faces, at.correction, fric.mu_kinetic, at.force, arm);
-    let uncorrected = friction_torque(at.faces, Ratio::ONE, fric.mu_kinetic, at.force, arm);
+    let (kinetic, uncorrected) =
+        friction_torque_pair(at.faces, at.correction, fric.mu_kinetic, at.force, arm);
     if kinetic.saturated || uncorrected.saturated {
         flags.insert(Flags::ARITHMETIC_SATURATED);
     }

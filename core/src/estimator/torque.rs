@@ -1,9 +1,10 @@
 //! Fixed-point products of the torque model: n · k · μ · F · r_e and the power |T · v|.
 //!
-//! The torque is three 32 × 32 → 64-bit products with Q30 intermediates (k·μ, then k·μ·r_e),
-//! within ½ LSB + F·(r_e + 1)·2⁻³¹ N·m per face of the exact product of the fixed-point
+//! The torque is three 32 × 32 → 64-bit products with Q30 intermediates (μ·r_e, then
+//! k·μ·r_e), within ½ LSB + F·(k + 1)·2⁻³¹ N·m per face of the exact product of the fixed-point
 //! inputs; outside the intermediates' range the 128-bit chain (Q30 · Q30 · Q8 · Q24 = Q92)
-//! gives the correctly rounded product.
+//! gives the correctly rounded product. The corrected and the uncorrected torque share the
+//! μ·r_e product ([`friction_torque_pair`]).
 
 use crate::units::{Metres, NewtonMetres, Newtons, RadPerSec, Ratio, Watts};
 use crate::wide;
@@ -26,12 +27,12 @@ fn narrow(rounded: i128) -> (i32, bool) {
 /// n · k · μ · F · r_e in N·m (positive for positive inputs; sign applied by the caller).
 ///
 /// In 32 × 32 → 64-bit products (one instruction each on a Cortex-M3/M4, one library multiply
-/// on a Cortex-M0+): k·μ and then k·μ·r_e are rounded to Q30, and F · (k·μ·r_e) is rounded
-/// once to the torque format. Each intermediate rounding moves the product by at most
-/// F·2⁻³¹ or F·r_e·2⁻³¹ N·m, so per face the result is within ½ LSB + F·(r_e + 1)·2⁻³¹ of the
-/// exact product of the fixed-point inputs (the bound the tests hold it to; at 100 kN and
-/// 0.1 m, 5·10⁻⁵ N·m besides the ½ LSB of 1.2·10⁻⁴). Where k·μ or k·μ·r_e leaves the Q30
-/// range (±2), the exact 128-bit chain takes over.
+/// on a Cortex-M0+): μ·r_e and then k·μ·r_e are rounded to Q30, and F · (k·μ·r_e) is rounded
+/// once to the torque format. The two intermediate roundings move the product by at most
+/// k·F·2⁻³¹ and F·2⁻³¹ N·m, so per face the result is within ½ LSB + F·(k + 1)·2⁻³¹ of the
+/// exact product of the fixed-point inputs (the bound the tests hold it to; at 100 kN and k = 1,
+/// 9·10⁻⁵ N·m besides the ½ LSB of 1.2·10⁻⁴). Where μ·r_e or k·μ·r_e leaves the Q30 range
+/// (±2 m), the exact 128-bit chain takes over.
 pub(crate) fn friction_torque(
     faces: u8,
     correction: Ratio,
@@ -39,20 +40,61 @@ pub(crate) fn friction_torque(
     force: Newtons,
     lever_arm: Metres,
 ) -> Saturating<NewtonMetres> {
-    let kmu = rounded_shr(
-        i64::from(correction.to_bits()) * i64::from(mu.to_bits()),
-        30,
-    );
-    if let Ok(kmu) = i32::try_from(kmu) {
-        // Q30 · Q24 = Q54, to Q30.
-        let kmur = rounded_shr(i64::from(kmu) * i64::from(lever_arm.to_bits()), 24);
-        if let Ok(kmur) = i32::try_from(kmur) {
-            // Q8 · Q30 = Q38 (< 2⁶²), to Q12 (< 2³⁶); · 255 < 2⁴⁴.
-            let per_face = rounded_shr(i64::from(force.to_bits()) * i64::from(kmur), 26);
-            return saturated(i128::from(per_face * i64::from(faces)));
-        }
+    match mu_arm(mu, lever_arm) {
+        Some(arm) => corrected_torque(faces, correction, arm, force)
+            .unwrap_or_else(|| exact_friction_torque(faces, correction, mu, force, lever_arm)),
+        None => exact_friction_torque(faces, correction, mu, force, lever_arm),
     }
-    exact_friction_torque(faces, correction, mu, force, lever_arm)
+}
+
+/// The torque with the correction k and without it (k = 1), from one μ·r_e product: each the
+/// very bits [`friction_torque`] gives.
+pub(crate) fn friction_torque_pair(
+    faces: u8,
+    correction: Ratio,
+    mu: Ratio,
+    force: Newtons,
+    lever_arm: Metres,
+) -> (Saturating<NewtonMetres>, Saturating<NewtonMetres>) {
+    if let Some(arm) = mu_arm(mu, lever_arm)
+        && let Some(corrected) = corrected_torque(faces, correction, arm, force)
+    {
+        // k = 1 (2³⁰) leaves μ·r_e unchanged in `corrected_torque`: the product with F alone.
+        return (corrected, force_times(faces, arm, force));
+    }
+    (
+        friction_torque(faces, correction, mu, force, lever_arm),
+        friction_torque(faces, Ratio::ONE, mu, force, lever_arm),
+    )
+}
+
+/// μ·r_e in Q30 metres (Q30 · Q24 = Q54, rounded), when it fits i32.
+#[inline]
+fn mu_arm(mu: Ratio, lever_arm: Metres) -> Option<i32> {
+    i32::try_from(rounded_shr(
+        i64::from(mu.to_bits()) * i64::from(lever_arm.to_bits()),
+        24,
+    ))
+    .ok()
+}
+
+/// n · F · (k · μr) from μr in Q30 metres, when k·μr (rounded to Q30) fits i32.
+#[inline]
+fn corrected_torque(
+    faces: u8,
+    correction: Ratio,
+    mu_arm: i32,
+    force: Newtons,
+) -> Option<Saturating<NewtonMetres>> {
+    let arm = rounded_shr(i64::from(correction.to_bits()) * i64::from(mu_arm), 30);
+    Some(force_times(faces, i32::try_from(arm).ok()?, force))
+}
+
+/// n · F · a for a in Q30 metres: Q8 · Q30 = Q38 (< 2⁶²), to Q12 (< 2³⁶); · 255 < 2⁴⁴.
+#[inline]
+fn force_times(faces: u8, arm: i32, force: Newtons) -> Saturating<NewtonMetres> {
+    let per_face = rounded_shr(i64::from(force.to_bits()) * i64::from(arm), 26);
+    saturated(i128::from(per_face * i64::from(faces)))
 }
 
 /// x / 2^s rounded to nearest (halves up), for |x| < 2⁶² and 1 ≤ s ≤ 61.
@@ -177,8 +219,9 @@ mod tests {
 
     proptest! {
         // The exact chain gives the very bits of the plain 128-bit chain, over all inputs; the
-        // fast form stays within its stated bound of it (½ LSB + F·(r + 1)·2⁻³¹ per face: in
-        // Q92 bits, F·(r + 1) in Q8 · Q24 bits times 2²⁹, plus the ½ LSB of 2⁷⁹, doubled).
+        // fast form stays within its stated bound of it (½ LSB + F·(k + 1)·2⁻³¹ per face: in
+        // Q92 bits, F·(k + 1) in Q8 · Q30 bits times 2²³, plus the ½ LSB of 2⁷⁹, doubled), and
+        // the pair gives the very bits of two single calls.
         #[test]
         fn same_bits_as_the_128_bit_chain(
             k in any::<i32>(), mu in any::<i32>(), f in any::<i32>(), r in any::<i32>(),
@@ -192,12 +235,14 @@ mod tests {
             prop_assert_eq!(exact, Saturating { value: NewtonMetres::from_bits(bits), saturated });
             let fast = friction_torque(faces, kr, mur, fr, rr);
             if !saturated && !fast.saturated {
-                let per_face_bound = ((i128::from(f).abs() * (i128::from(r).abs() + (1 << 24))) << 29)
+                let per_face_bound = ((i128::from(f).abs() * (i128::from(k).abs() + (1 << 30))) << 23)
                     + (1i128 << 80);
                 let got = i128::from(fast.value.to_bits()) << 80;
                 let want = chain * i128::from(faces);
                 prop_assert!((got - want).abs() <= i128::from(faces) * per_face_bound, "{:?} vs {:?}", fast, exact);
             }
+            let pair = friction_torque_pair(faces, kr, mur, fr, rr);
+            prop_assert_eq!(pair, (fast, friction_torque(faces, Ratio::ONE, mur, fr, rr)));
             let q32 = (i128::from(t) * i128::from(v)).unsigned_abs() << 4;
             let p = dissipated_power(NewtonMetres::from_bits(t), RadPerSec::from_bits(v));
             prop_assert_eq!(i64::try_from(q32).ok(), (!p.saturated).then_some(p.value.to_bits()));
@@ -210,7 +255,7 @@ mod tests {
             prop_assert_eq!(ratio_product(a, b), a.saturating_mul(b));
         }
 
-        // Within ½ LSB + F·(r + 1)·2⁻³¹ (per face) of the f64 product of the same fixed-point
+        // Within ½ LSB + F·(k + 1)·2⁻³¹ (per face) of the f64 product of the same fixed-point
         // inputs.
         #[test]
         fn product_is_correctly_rounded(
@@ -223,7 +268,7 @@ mod tests {
             let lsb = 1.0 / 4096.0;
             if exact < 500_000.0 {
                 prop_assert!(!t.saturated);
-                let extra = f.to_num::<f64>() * (r.to_num::<f64>() + 1.0) * 2f64.powi(-31);
+                let extra = f.to_num::<f64>() * (k.to_num::<f64>() + 1.0) * 2f64.powi(-31);
                 let bound = f64::from(faces) * (0.5 * lsb + extra);
                 prop_assert!((t.value.to_num::<f64>() - exact).abs() <= bound + 1e-9);
             }
