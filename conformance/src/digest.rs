@@ -1,16 +1,14 @@
 //! CRC-32 of the estimates of a block of samples: every field's raw bits, flags included, so
 //! one differing bit anywhere names its block.
 
-use core::fmt;
-
-use clampwise_core::estimator::{ContactState, Estimate};
+use clampwise_core::estimator::{ContactState, Estimate, SnapshotError};
+use clampwise_core::state_record::{RecordError, ThermalNode};
 use crc::{CRC_32_ISO_HDLC, Crc};
 
 /// CRC-32/ISO-HDLC, table-driven (1 KiB in flash): it runs on every sample.
 static CRC32: Crc<u32> = Crc::<u32>::new(&CRC_32_ISO_HDLC);
 
-/// A running CRC-32 over estimates and bytes. As `fmt::Write`, it hashes formatted text (the
-/// `Debug` form of an error).
+/// A running CRC-32 over estimates, bytes and decoder errors.
 pub struct BlockDigest(crc::Digest<'static, u32>);
 
 impl Default for BlockDigest {
@@ -57,16 +55,85 @@ impl BlockDigest {
         self.0.update(&e.flags.bits().to_le_bytes());
     }
 
+    /// A code per variant, then the variant's values as raw bits (not `Debug`: formatting a
+    /// fixed-point value has panic paths of its own).
+    fn error(&mut self, code: u8, values: [u32; 3]) {
+        self.0.update(&[code]);
+        for v in values {
+            self.0.update(&v.to_le_bytes());
+        }
+    }
+
+    /// Why a state record was refused.
+    pub fn record_error(&mut self, e: &RecordError) {
+        let u = |x: usize| u32::try_from(x).unwrap_or(u32::MAX);
+        let b = |x: i32| x.cast_unsigned();
+        let (code, values) = match *e {
+            RecordError::WrongLength { len } => (1, [u(len), 0, 0]),
+            RecordError::BadMagic => (2, [0; 3]),
+            RecordError::UnsupportedVersion { version } => (3, [u32::from(version), 0, 0]),
+            RecordError::LengthField { length } => (4, [u32::from(length), 0, 0]),
+            RecordError::Checksum { stored, computed } => (5, [stored, computed, 0]),
+            RecordError::ReservedNotZero => (6, [0; 3]),
+            RecordError::EnergyOutOfRange => (7, [0; 3]),
+            RecordError::BeddingOutOfRange => (8, [0; 3]),
+            RecordError::TemperatureOutOfRange { node } => {
+                (9, [u32::from(node == ThermalNode::Lining), 0, 0])
+            }
+            RecordError::ConfigMismatch { record, config } => (10, [record, config, 0]),
+            RecordError::BeddingContradictsEnergy { bedding, expected } => {
+                (11, [b(bedding.to_bits()), b(expected.to_bits()), 0])
+            }
+            RecordError::ThicknessLossBeyondLining { loss, lining } => {
+                (12, [b(loss.to_bits()), b(lining.to_bits()), 0])
+            }
+            RecordError::ThicknessLossContradictsEnergy { loss, expected } => {
+                (13, [b(loss.to_bits()), b(expected.to_bits()), 0])
+            }
+            RecordError::TwoTemperaturesOneNode => (14, [0; 3]),
+            RecordError::CorrectionOutOfBand { factor, min, max } => (
+                15,
+                [b(factor.to_bits()), b(min.to_bits()), b(max.to_bits())],
+            ),
+            RecordError::CovarianceOutOfRange {
+                covariance,
+                min,
+                max,
+            } => (
+                16,
+                [b(covariance.to_bits()), b(min.to_bits()), b(max.to_bits())],
+            ),
+            _ => (255, [0; 3]),
+        };
+        self.error(code, values);
+    }
+
+    /// Why a snapshot was refused.
+    pub fn snapshot_error(&mut self, e: &SnapshotError) {
+        let u = |x: usize| u32::try_from(x).unwrap_or(u32::MAX);
+        let (code, values) = match *e {
+            SnapshotError::BufferTooSmall { len, needed } => (101, [u(len), u(needed), 0]),
+            SnapshotError::WrongLength { len, expected } => (102, [u(len), u(expected), 0]),
+            SnapshotError::BadMagic => (103, [0; 3]),
+            SnapshotError::UnsupportedVersion { version } => (104, [u32::from(version), 0, 0]),
+            SnapshotError::ChannelCount {
+                snapshot,
+                estimator,
+            } => (105, [u32::from(snapshot), u(estimator), 0]),
+            SnapshotError::Checksum { stored, computed } => (106, [stored, computed, 0]),
+            SnapshotError::ConfigMismatch { snapshot, config } => (107, [snapshot, config, 0]),
+            SnapshotError::InvalidValue { offset, field } => {
+                self.0.update(field.as_bytes());
+                (108, [u(offset), 0, 0])
+            }
+            _ => (254, [0; 3]),
+        };
+        self.error(code, values);
+    }
+
     /// The CRC so far.
     pub fn finish(self) -> u32 {
         self.0.finalize()
-    }
-}
-
-impl fmt::Write for BlockDigest {
-    fn write_str(&mut self, s: &str) -> fmt::Result {
-        self.0.update(s.as_bytes());
-        Ok(())
     }
 }
 

@@ -286,7 +286,7 @@ impl<'p, const C: usize> Scenario<'p, C> {
             }
             // Inside the rails unless a rail or saturation is the point.
             if !matches!(segment, Segment::Fault(Fault::Saturated)) {
-                counts = counts.clamp(low, high);
+                counts = counts.max(low).min(high);
             }
             ch.counts = sat_i32(counts);
         }
