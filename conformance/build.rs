@@ -25,7 +25,10 @@ const SHAPES: &[(&str, &str)] = &[
     ("disc-1gauge", "devices/disc-1gauge.toml"),
     ("clutch-4gauge", "devices/clutch-4gauge.toml"),
     ("cone-2gauge", "devices/cone-2gauge.toml"),
-    ("drum-3gauge", "../sim/configs/example-crane-drum-brake.toml"),
+    (
+        "drum-3gauge",
+        "../sim/configs/example-crane-drum-brake.toml",
+    ),
     ("hoist-3gauge", "../sim/configs/demo-hoist-brake.toml"),
 ];
 
@@ -98,8 +101,9 @@ fn plant(spec: &DeviceSpec) -> Result<String, String> {
         }
     };
     let list = |f: &dyn Fn(usize) -> Result<i64, String>| -> Result<String, String> {
-        let v: Result<Vec<String>, String> =
-            (0..spec.sensors.len()).map(|i| f(i).map(|x| x.to_string())).collect();
+        let v: Result<Vec<String>, String> = (0..spec.sensors.len())
+            .map(|i| f(i).map(|x| x.to_string()))
+            .collect();
         Ok(v?.join(", "))
     };
     let s = &spec.sensors;

@@ -28,8 +28,7 @@ fw_cargo_features() {
     panic-canary) echo "--features panic-check,panic-canary" ;;
     canary-shipped) echo "--features panic-canary" ;;
     defmt) echo "--no-default-features --features defmt" ;;
-    defmt-panic-check) echo "--no-default-features --features defmt,panic-check" ;;
-    defmt-panic-canary) echo "--no-default-features --features defmt,panic-check,panic-canary" ;;
+    defmt-canary) echo "--no-default-features --features defmt,panic-canary" ;;
     *) fw_fail "unknown variant $1" ;;
   esac
 }

@@ -101,13 +101,13 @@ pub fn run_shape<T: TableSet, const C: usize, S: Sink>(
             if at == CUT_AT {
                 est = cut(cfg, est, block, &mut digest, &mut tally);
             }
-            let fuzz = scenario.segment() == Segment::Arbitrary && at % FUZZ_EVERY == 0;
+            let fuzz = scenario.segment() == Segment::Arbitrary && at.is_multiple_of(FUZZ_EVERY);
             let inputs = scenario.next(last_torque);
             let e = est.step(&inputs);
             digest.estimate(&e);
             tally.add(&e);
             last_torque = e.torque;
-            if at % SNAPSHOT_EVERY == 0 {
+            if at.is_multiple_of(SNAPSHOT_EVERY) {
                 let mut buf = [0u8; SNAPSHOT_MAX];
                 let n = est.snapshot_into(&mut buf).unwrap_or(0);
                 digest.bytes(buf.get(..n).unwrap_or(&[]));

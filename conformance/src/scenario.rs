@@ -109,7 +109,9 @@ const _: () = {
     let mut total = 0;
     let mut i = 0;
     while i < SCRIPT.len() {
-        total += SCRIPT[i].1;
+        #[allow(clippy::indexing_slicing)] // a const block: `i` is in range, and checked
+        let len = SCRIPT[i].1;
+        total += len;
         i += 1;
     }
     assert!(total == BLOCK_SAMPLES);
@@ -218,9 +220,14 @@ impl<'p, const C: usize> Scenario<'p, C> {
                 part(fmax, 300 + part(triangle(p, 700), 5, 10), 1000),
                 part(vmax, 500 + triangle(p, 1100) / 2, 1000),
             ),
-            Segment::Fault(Fault::Stuck) => (part(fmax, 200 + triangle(p, 300) / 2, 1000), vmax / 2),
+            Segment::Fault(Fault::Stuck) => {
+                (part(fmax, 200 + triangle(p, 300) / 2, 1000), vmax / 2)
+            }
             Segment::Fault(_) | Segment::SlipUnknown => (part(fmax, 4, 10), vmax / 2),
-            Segment::Release => (part(fmax, 5 * (1000 - ramp), 10_000), part(vmax, ramp, 1000)),
+            Segment::Release => (
+                part(fmax, 5 * (1000 - ramp), 10_000),
+                part(vmax, ramp, 1000),
+            ),
         }
     }
 
@@ -262,7 +269,11 @@ impl<'p, const C: usize> Scenario<'p, C> {
                     }
                     Fault::Rate if here => {
                         let jump = part(plant.max_force_n, 3, 10);
-                        counts = counts_of(if p % 2 == 0 { force + jump } else { force - jump });
+                        counts = counts_of(if p.is_multiple_of(2) {
+                            force + jump
+                        } else {
+                            force - jump
+                        });
                     }
                     Fault::Stuck if here => {
                         if p == 0 {
@@ -274,8 +285,12 @@ impl<'p, const C: usize> Scenario<'p, C> {
                         counts = counts_of(force.saturating_add(4 * plant.vote_tolerance_n));
                     }
                     Fault::Saturated => {
-                        counts = if here && p % 3 == 0 {
-                            i64::from(if p % 2 == 0 { i32::MAX } else { i32::MIN })
+                        counts = if here && p.is_multiple_of(3) {
+                            i64::from(if p.is_multiple_of(2) {
+                                i32::MAX
+                            } else {
+                                i32::MIN
+                            })
                         } else {
                             counts_of(part(plant.max_force_n, 3, 2))
                         };
@@ -315,7 +330,9 @@ impl<'p, const C: usize> Scenario<'p, C> {
             actuator_command: command,
             sensor_temperature: Some(self.sensor_temperature()),
             lining_temperature: self.lining_temperature(),
-            ambient_temperature: (self.block % 2 == 0)
+            ambient_temperature: self
+                .block
+                .is_multiple_of(2)
                 .then(|| Celsius::from_bits(q16_milli(20_000 + 1_000 * i64::from(self.block)))),
             reference_torque: self.reference(segment, last_torque),
         }
