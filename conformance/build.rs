@@ -120,8 +120,9 @@ fn plant(spec: &DeviceSpec) -> Result<String, String> {
     Ok(format!(
         "crate::scenario::Plant {{ counts_per_newton_q16: [{counts_per_newton_q16}], \
          offset_counts: [{offset}], rail_low: [{rail_low}], rail_high: [{rail_high}], \
-         range_high_n: {}, max_force_n: {}, vote_tolerance_n: {}, newtons_per_command: {command}, \
+         range_low_n: {}, range_high_n: {}, max_force_n: {}, vote_tolerance_n: {}, newtons_per_command: {command}, \
          clutch: {} }}",
+        int(spec.sensing.range_low_n, "range")?,
         int(spec.sensing.range_high_n, "range")?,
         int(spec.limits.max_clamp_force_n, "max force")?,
         int(spec.sensing.vote_tolerance_n, "vote tolerance")?,

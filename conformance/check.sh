@@ -4,7 +4,8 @@
 #
 # 1. Host run (`cargo run --release`): the reference lines. Checked on their own first: every
 #    shape ran 10⁵ samples with every contact state present (slipping, holding, released,
-#    slip unknown, unavailable) and the sensor-fault flags raised, and every save/restore and
+#    slip unknown, unavailable) and the sensor-fault flags raised, every injected sensor fault
+#    kind seen by the core on the faulty channel (`faults,` lines), and every save/restore and
 #    snapshot cut gave back the state it saved (record_diff, snapshot_diff, refused all 0).
 # 2. Per target: the image built with `--features panic-check` (--profile firmware: opt-level z,
 #    fat LTO, one codegen unit, panic = abort). Its panic handler calls an undefined symbol, so
@@ -95,8 +96,19 @@ for shape in $(awk -F, '/^shape,/ { print $2 }' "$host"); do
   done
   (( (union & must) == must )) || fail "$shape: flags $(printf 0x%04x $union) lack some of $(printf 0x%04x $must)"
 done
+# Every sensor fault kind raised its own flag (on the faulty channel) on every shape where the
+# device can show it, and every kind on some shape (src/coverage.rs).
+awk -F, '
+  /^faults,/ { for (i = 3; i <= NF; i++) { split($i, kv, "="); kinds[kv[1]] = 1
+      if (kv[2] == "0") { printf "%s: fault %s never raised its flag\n", $2, kv[1]; err = 1 }
+      if (kv[2] != "n/a" && kv[2] > 0) some[kv[1]] = 1 } n++ }
+  END {
+    if (n < 1) { print "no faults lines"; err = 1 }
+    for (k in kinds) if (!(k in some)) { printf "fault %s raised on no shape\n", k; err = 1 }
+    exit err
+  }' "$host" >&2 || fail "the host run does not show every sensor fault kind (above)"
 samples=$(awk -F, '/^shape,/ { split($5, s, "="); n += s[2] } END { print n }' "$host")
-log "host: $shapes shapes, $samples samples, every contact state and fault flag present, every cut restored"
+log "host: $shapes shapes, $samples samples, every contact state, estimate flag and sensor fault kind present, every cut restored"
 
 for t in "${targets[@]}"; do
   # 2. Panic-free link, then the same image in QEMU.

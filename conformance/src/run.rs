@@ -12,6 +12,8 @@
 //!   corrupted snapshot (random bytes changed, the snapshot's CRC made good half the time)
 //!   given to the decoders: what they return (the record again, or the error's variant and values).
 //!
+//! After the blocks, a `faults,<shape>,…` line ([`crate::coverage`]).
+//!
 //! Block line: `blk,<shape>,<block>,crc=<hex>,` then the samples per contact state, the union
 //! of the estimate flags, and the cut's counters (`record_diff`, `snapshot_diff`: restored
 //! state that differs from what was saved; `refused`: saved bytes the decoder refused).
@@ -25,6 +27,7 @@ use clampwise_core::state_record::RECORD_LEN;
 use crc::{CRC_32_ISO_HDLC, Crc, NoTable};
 use oorandom::Rand32;
 
+use crate::coverage::FaultCoverage;
 use crate::digest::{BlockDigest, state_code};
 pub use crate::scenario::BLOCK_SAMPLES;
 use crate::scenario::{Plant, Scenario, Segment};
@@ -94,6 +97,7 @@ pub fn run_shape<T: TableSet, const C: usize, S: Sink>(
     };
     let mut scenario = Scenario::new(plant, seed ^ name_hash(name));
     let mut last_torque = None;
+    let mut coverage = FaultCoverage::<C>::new();
     for block in 0..BLOCKS {
         let mut digest = BlockDigest::new();
         let mut tally = Tally::default();
@@ -101,8 +105,10 @@ pub fn run_shape<T: TableSet, const C: usize, S: Sink>(
             if at == CUT_AT {
                 est = cut(cfg, est, block, &mut digest, &mut tally);
             }
-            let fuzz = scenario.segment() == Segment::Arbitrary && at.is_multiple_of(FUZZ_EVERY);
+            let (segment, faulty) = (scenario.segment(), scenario.faulty_channel());
+            let fuzz = segment == Segment::Arbitrary && at.is_multiple_of(FUZZ_EVERY);
             let inputs = scenario.next(last_torque);
+            coverage.observe(cfg.sensor(), &inputs, segment, faulty);
             let e = est.step(&inputs);
             digest.estimate(&e);
             tally.add(&e);
@@ -116,8 +122,10 @@ pub fn run_shape<T: TableSet, const C: usize, S: Sink>(
                 fuzz_decoders(cfg, &est, scenario.rng(), &mut digest);
             }
         }
+        coverage.end_block();
         emit_block(sink, name, block, digest.finish(), &tally);
     }
+    coverage.emit(cfg.sensor(), name, sink);
     true
 }
 

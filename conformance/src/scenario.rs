@@ -26,6 +26,8 @@ pub struct Plant<const C: usize> {
     pub rail_low: [i64; C],
     /// Highest count of each channel's ADC.
     pub rail_high: [i64; C],
+    /// Lower end of the plausible force range, N.
+    pub range_low_n: i64,
     /// Upper end of the plausible force range, N.
     pub range_high_n: i64,
     /// Largest clamp force, N.
@@ -47,9 +49,9 @@ pub enum Fault {
     RailLow,
     /// The reading at the high rail.
     RailHigh,
-    /// A force above the plausible range.
+    /// A force outside the plausible range (above it where the ADC reaches, else below).
     OutOfRange,
-    /// Jumps between samples faster than the rate limit.
+    /// Steps faster than the rate limit, held longer than the debounce.
     Rate,
     /// A frozen reading while the force and the command move.
     Stuck,
@@ -184,6 +186,11 @@ impl<'p, const C: usize> Scenario<'p, C> {
         segment_at(self.at).0
     }
 
+    /// The channel the next sample's fault segments act on (block mod C).
+    pub fn faulty_channel(&self) -> usize {
+        usize::try_from(self.block).unwrap_or(0) % C
+    }
+
     /// Uniform in `-n ..= n`.
     fn noise(&mut self, n: u32) -> i64 {
         let span = n.saturating_mul(2).saturating_add(1);
@@ -240,7 +247,7 @@ impl<'p, const C: usize> Scenario<'p, C> {
     ) -> Inputs<C> {
         let plant = self.plant;
         let (force, speed) = self.motion(segment, p, len);
-        let faulty = usize::try_from(self.block).unwrap_or(0) % C;
+        let faulty = self.faulty_channel();
         let mut channels = [RawChannel {
             counts: 0,
             valid: true,
@@ -265,15 +272,20 @@ impl<'p, const C: usize> Scenario<'p, C> {
                     Fault::RailLow if here => counts = low,
                     Fault::RailHigh if here => counts = high,
                     Fault::OutOfRange if here => {
-                        counts = counts_of(plant.range_high_n.saturating_add(5_000));
+                        // Above the range where the ADC reaches it, else below.
+                        let above = counts_of(plant.range_high_n.saturating_add(5_000));
+                        counts = if above < high.saturating_sub(64) {
+                            above
+                        } else {
+                            counts_of(plant.range_low_n.saturating_sub(5_000))
+                        };
                     }
                     Fault::Rate if here => {
+                        // A square wave of ±30 % of the largest force, 25 samples per level:
+                        // each step takes longer than the debounce to be accepted.
                         let jump = part(plant.max_force_n, 3, 10);
-                        counts = counts_of(if p.is_multiple_of(2) {
-                            force + jump
-                        } else {
-                            force - jump
-                        });
+                        let up = (p / 25).is_multiple_of(2);
+                        counts = counts_of(if up { force + jump } else { force - jump });
                     }
                     Fault::Stuck if here => {
                         if p == 0 {
