@@ -96,6 +96,16 @@ for shape in $(awk -F, '/^shape,/ { print $2 }' "$host"); do
   done
   (( (union & must) == must )) || fail "$shape: flags $(printf 0x%04x $union) lack some of $(printf 0x%04x $must)"
 done
+# The thermal/wear sub-rate at 1 and at 8 among the shapes; adaptation at work (a correction
+# other than 1) on every shape that has it.
+for every in 1 8; do
+  grep -q "^shape,.*,sub_rate=$every," "$host" || fail "no shape runs the sub-rate at $every"
+done
+for shape in $(awk -F, '/^shape,.*adaptation=on/ { print $2 }' "$host"); do
+  adapted=$(grep "^blk,$shape," "$host" | sed 's/.*,adapted=\([0-9]*\).*/\1/' | awk '{ n += $1 } END { print n + 0 }')
+  [[ $adapted -gt 0 ]] || fail "$shape: adaptation on, but the correction never left 1"
+done
+grep -q "adaptation=on" "$host" || fail "no shape runs with adaptation on"
 # Every sensor fault kind raised its own flag (on the faulty channel) on every shape where the
 # device can show it, and every kind on some shape (src/coverage.rs).
 awk -F, '

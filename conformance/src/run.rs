@@ -15,8 +15,9 @@
 //! After the blocks, a `faults,<shape>,…` line ([`crate::coverage`]).
 //!
 //! Block line: `blk,<shape>,<block>,crc=<hex>,` then the samples per contact state, the union
-//! of the estimate flags, and the cut's counters (`record_diff`, `snapshot_diff`: restored
-//! state that differs from what was saved; `refused`: saved bytes the decoder refused).
+//! of the estimate flags, the cut's counters (`record_diff`, `snapshot_diff`: restored state
+//! that differs from what was saved; `refused`: saved bytes the decoder refused) and the
+//! samples whose adaptation correction is not 1 (`adapted`).
 
 use core::fmt::Write as _;
 use core::hint::black_box;
@@ -24,6 +25,7 @@ use core::hint::black_box;
 use clampwise_core::config::{DeviceConfig, TableSet};
 use clampwise_core::estimator::{Estimate, Estimator, snapshot_len};
 use clampwise_core::state_record::RECORD_LEN;
+use clampwise_core::units::Ratio;
 use crc::{CRC_32_ISO_HDLC, Crc, NoTable};
 use oorandom::Rand32;
 
@@ -55,6 +57,8 @@ struct Tally {
     record_diff: u32,
     snapshot_diff: u32,
     refused: u32,
+    /// Samples whose adaptation correction is not 1.
+    adapted: u32,
 }
 
 impl Tally {
@@ -63,6 +67,7 @@ impl Tally {
             *n += 1;
         }
         self.flags |= e.flags.bits();
+        self.adapted += u32::from(e.correction != Ratio::ONE);
     }
 }
 
@@ -86,9 +91,11 @@ pub fn run_shape<T: TableSet, const C: usize, S: Sink>(
     let mut line = Line::new();
     let _ = write!(
         line,
-        "shape,{name},channels={C},checksum=0x{:08x},samples={}",
+        "shape,{name},channels={C},checksum=0x{:08x},samples={},sub_rate={},adaptation={}",
         cfg.checksum(),
-        BLOCKS * BLOCK_SAMPLES
+        BLOCKS * BLOCK_SAMPLES,
+        cfg.thermal_wear_every(),
+        if cfg.adapt().is_some() { "on" } else { "off" },
     );
     sink.emit(&line);
     let Ok(mut est) = start else {
@@ -229,8 +236,8 @@ fn emit_block<S: Sink>(sink: &mut S, name: &str, block: u32, crc: u32, t: &Tally
         line,
         "blk,{name},{block},crc={crc:08x},slipping={slipping},holding={holding},\
          released={released},slip-unknown={unknown},unavailable={unavailable},flags=0x{:04x},\
-         record_diff={},snapshot_diff={},refused={}",
-        t.flags, t.record_diff, t.snapshot_diff, t.refused
+         record_diff={},snapshot_diff={},refused={},adapted={}",
+        t.flags, t.record_diff, t.snapshot_diff, t.refused, t.adapted
     );
     sink.emit(&line);
 }
