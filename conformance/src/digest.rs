@@ -150,7 +150,100 @@ pub const fn state_code(s: ContactState) -> u8 {
 
 #[cfg(test)]
 mod tests {
+    use clampwise_core::flags::Flags;
+    use clampwise_core::sensor::ChannelMask;
+    use clampwise_core::units::{Celsius, Metres, NewtonMetres, Newtons, Ratio};
+
     use super::*;
+
+    fn crc_of(e: &Estimate) -> u32 {
+        let mut d = BlockDigest::new();
+        d.estimate(e);
+        d.finish()
+    }
+
+    #[test]
+    fn one_bit_of_any_estimate_field_changes_the_hash() {
+        // An arithmetic check of the harness itself: a comparison of hashes is only as good as
+        // what goes into them, so every field (flags and channel mask included) must count.
+        let base = Estimate {
+            torque: Some(NewtonMetres::from_bits(1000)),
+            holding_capacity: Some(NewtonMetres::from_bits(2000)),
+            uncertainty: NewtonMetres::from_bits(30),
+            mu: Ratio::from_bits(400),
+            effective_radius: Metres::from_bits(500),
+            clamp_force: Newtons::from_bits(600),
+            force_channels_used: ChannelMask::from_bits(0b11),
+            lining_temperature: Celsius::from_bits(700),
+            bedding: Ratio::from_bits(800),
+            wear: Metres::from_bits(900),
+            correction: Ratio::ONE,
+            state: ContactState::Slipping,
+            flags: Flags::empty(),
+        };
+        let variants = [
+            Estimate {
+                torque: None,
+                ..base
+            },
+            Estimate {
+                torque: Some(NewtonMetres::from_bits(1001)),
+                ..base
+            },
+            Estimate {
+                holding_capacity: Some(NewtonMetres::from_bits(2001)),
+                ..base
+            },
+            Estimate {
+                uncertainty: NewtonMetres::from_bits(31),
+                ..base
+            },
+            Estimate {
+                mu: Ratio::from_bits(401),
+                ..base
+            },
+            Estimate {
+                effective_radius: Metres::from_bits(501),
+                ..base
+            },
+            Estimate {
+                clamp_force: Newtons::from_bits(601),
+                ..base
+            },
+            Estimate {
+                force_channels_used: ChannelMask::from_bits(0b10),
+                ..base
+            },
+            Estimate {
+                lining_temperature: Celsius::from_bits(701),
+                ..base
+            },
+            Estimate {
+                bedding: Ratio::from_bits(801),
+                ..base
+            },
+            Estimate {
+                wear: Metres::from_bits(901),
+                ..base
+            },
+            Estimate {
+                correction: Ratio::from_bits(Ratio::ONE.to_bits() - 1),
+                ..base
+            },
+            Estimate {
+                state: ContactState::Holding,
+                ..base
+            },
+            Estimate {
+                flags: Flags::SPEED_UNKNOWN,
+                ..base
+            },
+        ];
+        let reference = crc_of(&base);
+        for (i, v) in variants.iter().enumerate() {
+            assert_ne!(crc_of(v), reference, "variant {i} left the hash unchanged");
+        }
+    }
 
     #[test]
     fn crc_of_the_check_string_is_the_published_check_value() {
