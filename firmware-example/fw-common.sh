@@ -28,6 +28,7 @@ fw_cargo_features() {
     panic-canary) echo "--features panic-check,panic-canary" ;;
     canary-shipped) echo "--features panic-canary" ;;
     defmt) echo "--no-default-features --features defmt" ;;
+    defmt-canary) echo "--no-default-features --features defmt,panic-canary" ;;
     *) fw_fail "unknown variant $1" ;;
   esac
 }
@@ -77,4 +78,37 @@ fw_reachable() {
       total = 0; for (s in seen) total += hex(size[s]); print total, n
     }' "$tmp/sizes" "$tmp/edges"
   rm -rf "$tmp"
+}
+
+# fw_panic_paths ELF [ALLOW_REGEX] -> the functions outside the standard library from which a
+# panic can be reached by direct calls and branches (one per line; nothing when the image is
+# panic-free). Walks the call graph backwards from `core::panicking::*`, the panic handler and
+# the standard library's panicking helpers; the walk stops at functions matching ALLOW_REGEX
+# (demangled names), which are not reported. Used where a link-time check cannot be (the defmt
+# image, whose logger has a panic of its own) and to name the culprits when one fails.
+fw_panic_paths() {
+  local elf="$1" allow="${2:-^\$}"
+  "$LLVM_BIN/llvm-objdump" -d --no-show-raw-insn -C "$elf" | awk -v allow="$allow" '
+    /^[0-9a-f]+ <.*>:$/ { f = substr($0, index($0, "<") + 1); f = substr(f, 1, length(f) - 2); next }
+    /\t(bl|blx|b|b\.w|j|jal|call|tail)\t/ {
+      s = $0; i = 0
+      while ((j = index(substr(s, i + 1), "<")) > 0) i += j
+      if (i == 0) next
+      t = substr(s, i + 1); sub(/>.*$/, "", t); sub(/\+0x[0-9a-f]+$/, "", t)
+      if (t != f) { callers[t] = callers[t] "\n" f }
+    }
+    END {
+      n = 0
+      for (t in callers) if (t ~ /^core::panicking::|rust_begin_unwind|^core::option::(unwrap|expect)_failed|^core::result::unwrap_failed|slice_index_fail|slice_error_fail|len_mismatch_fail|slice_end_index_len_fail|slice_start_index_len_fail|slice_index_order_fail/) { q[n++] = t; seen[t] = 1 }
+      for (k = 0; k < n; k++) {
+        m = split(callers[q[k]], a, "\n")
+        for (j = 1; j <= m; j++) {
+          c = a[j]; if (c == "" || (c in seen)) continue
+          seen[c] = 1
+          if (c ~ allow) continue
+          if (c !~ /^(core::|<core::|_\$LT\$core|compiler_builtins::|__aeabi)/) print c
+          q[n++] = c
+        }
+      }
+    }' | sort -u
 }

@@ -6,10 +6,12 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 
 rustup toolchain install            # reads rust-toolchain.toml: 1.95.0 + the four cross targets
-# Debian packages: QEMU for the firmware run; Chromium to render the HTML report in a test.
+# Debian packages: QEMU for the firmware and conformance runs (Arm; RISC-V in qemu-system-misc);
+# Chromium to render the HTML report in a test.
 # (The plots draw text with a font compiled into the program: no font packages are needed.)
 need=()
 command -v qemu-system-arm >/dev/null 2>&1 || need+=(qemu-system-arm)
+command -v qemu-system-riscv32 >/dev/null 2>&1 || need+=(qemu-system-misc)
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
 if [ ${#need[@]} -gt 0 ]; then
     if [ "$(id -u)" = 0 ]; then SUDO=""; else SUDO="sudo"; fi

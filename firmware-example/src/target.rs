@@ -10,8 +10,6 @@ compile_error!(
 );
 #[cfg(not(any(feature = "semihosting", feature = "defmt")))]
 compile_error!("the firmware needs an output: feature `semihosting` (default) or `defmt`");
-#[cfg(all(feature = "defmt", feature = "panic-check"))]
-compile_error!("`panic-check` replaces the panic handler; it goes with `semihosting`, not `defmt`");
 
 // ---------------------------------------------------------------------------------------------
 // QEMU mode: semihosting output, stack painting, exit status.
@@ -148,7 +146,11 @@ fn panic(_info: &core::panic::PanicInfo<'_>) -> ! {
 // Probe mode: defmt over RTT, panic-probe.
 
 #[cfg(feature = "defmt")]
-use {defmt_rtt as _, panic_probe as _};
+use defmt_rtt as _;
+// With `panic-check` the link-time handler below replaces panic-probe's (the defmt image's
+// panic check, panic-check.sh).
+#[cfg(all(feature = "defmt", not(feature = "panic-check")))]
+use panic_probe as _;
 
 #[cfg(feature = "defmt")]
 struct Defmt;
@@ -192,6 +194,8 @@ clampwise_firmware_example::forward_persist!(CycleProbe, inner);
 #[cfg(feature = "defmt")]
 #[entry]
 fn main() -> ! {
+    #[cfg(feature = "panic-canary")]
+    canary();
     #[cfg(not(armv6m))]
     if let Some(mut cp) = cortex_m::Peripherals::take() {
         cp.DCB.enable_trace();

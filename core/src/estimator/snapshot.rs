@@ -185,12 +185,16 @@ pub(crate) struct Writer<'b> {
 
 impl Writer<'_> {
     pub(crate) fn bytes<const N: usize>(&mut self, bytes: [u8; N]) {
-        let end = self.at.saturating_add(N);
-        // The caller sized the buffer: a short one only truncates, never panics.
-        if let Some(dst) = self.buf.get_mut(self.at..end) {
-            dst.copy_from_slice(&bytes);
+        // The caller sized the buffer: a short one only truncates, never panics. (An array
+        // chunk, not `copy_from_slice`: no length check left for the optimiser to keep.)
+        if let Some(dst) = self
+            .buf
+            .get_mut(self.at..)
+            .and_then(|rest| rest.first_chunk_mut::<N>())
+        {
+            *dst = bytes;
         }
-        self.at = end;
+        self.at = self.at.saturating_add(N);
     }
 
     pub(crate) fn u8(&mut self, v: u8) {
