@@ -55,14 +55,6 @@ machine() {
   esac
 }
 
-# profile_of TARGET -> the cargo profile the firmware is built with for that target.
-profile_of() {
-  case "$1" in
-    thumbv6m-*) echo firmware ;;
-    *) echo firmware-speed ;;
-  esac
-}
-
 # demangle: Rust symbol names (legacy and v0) through c++filt when it is there, without hashes.
 demangle() {
   if command -v c++filt >/dev/null; then
@@ -140,7 +132,7 @@ for t in "${targets[@]}"; do
     regex="${symbol:-Processor.*::step}"
     exclude=""; [[ -n "$symbol" ]] || exclude="StackProbe"
   else
-    profile="${FW_PROFILE:-$(profile_of "$t")}"
+    profile="$("$root/scripts/firmware-profile.sh" "$t")"
     cargo build -q -p clampwise-benches-cortex-m --bin clampwise-step-count --target "$t" --profile "$profile"
     image="$target_dir/$t/$profile/clampwise-step-count"
     echo "$t: --profile $profile"

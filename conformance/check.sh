@@ -7,8 +7,9 @@
 #    slip unknown, unavailable) and the sensor-fault flags raised, every injected sensor fault
 #    kind seen by the core on the faulty channel (`faults,` lines), and every save/restore and
 #    snapshot cut gave back the state it saved (record_diff, snapshot_diff, refused all 0).
-# 2. Per target: the image built with `--features panic-check` (--profile firmware: opt-level z,
-#    fat LTO, one codegen unit, panic = abort). Its panic handler calls an undefined symbol, so
+# 2. Per target: the image built with `--features panic-check` in the target's firmware
+#    profile (scripts/firmware-profile.sh: opt-level z on thumbv6m, s elsewhere; fat LTO, one
+#    codegen unit, panic = abort). Its panic handler calls an undefined symbol, so
 #    it links only if no panic path is reachable from the entry point, which runs step, save,
 #    restore, snapshot and resume on every shape compiled in. That same image then runs in QEMU
 #    and its output must equal the host's, byte for byte (the handler never runs, so the image
@@ -123,12 +124,13 @@ log "host: $shapes shapes, $samples samples, every contact state, estimate flag 
 for t in "${targets[@]}"; do
   # 2. Panic-free link, then the same image in QEMU.
   t0=$(date +%s)
-  cargo build -q -p "$PKG" --bin "$BIN" --target "$t" --profile firmware --features panic-check \
+  profile="$(scripts/firmware-profile.sh "$t")"
+  cargo build -q -p "$PKG" --bin "$BIN" --target "$t" --profile "$profile" --features panic-check \
     >"$OUT/$t.build.log" 2>&1 || fail "$t: the panic-check image does not link (a panic path is reachable; see $OUT/$t.build.log)"
   elf="$OUT/$t.panic-check.elf"
-  cp "$TARGET_DIR/$t/firmware/$BIN" "$elf"
+  cp "$TARGET_DIR/$t/$profile/$BIN" "$elf"
   built=$(( $(date +%s) - t0 ))
-  log "$t: panic-free image links (step, save, restore, snapshot on $shapes shapes; ${built} s)"
+  log "$t: panic-free image links (--profile $profile; step, save, restore, snapshot on $shapes shapes; ${built} s)"
   t0=$(date +%s)
   out="$OUT/$t.qemu.txt"
   # shellcheck disable=SC2046 # the QEMU command is meant to split
@@ -140,7 +142,7 @@ for t in "${targets[@]}"; do
 
   # 3. Negative control.
   canary_log="$OUT/$t.canary.log"
-  if cargo build -p "$PKG" --bin "$BIN" --target "$t" --profile firmware \
+  if cargo build -p "$PKG" --bin "$BIN" --target "$t" --profile "$profile" \
     --features panic-check,panic-canary >"$canary_log" 2>&1; then
     fail "$t: negative control: the image with a planted panic linked, so the check proves nothing"
   fi

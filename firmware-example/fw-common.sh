@@ -33,14 +33,18 @@ fw_cargo_features() {
   esac
 }
 
-# fw_build TARGET VARIANT -> builds with --profile firmware, copies the image to
+# fw_profile TARGET -> the cargo profile of the target's images (scripts/firmware-profile.sh:
+# `firmware`, opt-level z, on thumbv6m; `firmware-speed`, opt-level s, elsewhere).
+fw_profile() { "$REPO_ROOT/scripts/firmware-profile.sh" "$1"; }
+
+# fw_build TARGET VARIANT -> builds with the target's profile (fw_profile), copies the image to
 # $FW_OUT/TARGET.VARIANT.elf and prints that path. Fails the script if the build fails.
 fw_build() {
   local target="$1" variant="$2" elf="$FW_OUT/$1.$2.elf"
   # shellcheck disable=SC2046
-  cargo build -q -p "$FW_PKG" --bin "$FW_BIN" --target "$target" --profile firmware \
+  cargo build -q -p "$FW_PKG" --bin "$FW_BIN" --target "$target" --profile "$(fw_profile "$target")" \
     $(fw_cargo_features "$variant") >&2 || fw_fail "build $target ($variant)"
-  cp "$FW_TARGET_DIR/$target/firmware/$FW_BIN" "$elf"
+  cp "$FW_TARGET_DIR/$target/$(fw_profile "$target")/$FW_BIN" "$elf"
   echo "$elf"
 }
 

@@ -61,7 +61,7 @@ done
 for t in "${targets[@]}"; do
   canary_log="$FW_OUT/$t.panic-canary.log"
   # shellcheck disable=SC2046 # the feature arguments are meant to split
-  if cargo build -p "$FW_PKG" --bin "$FW_BIN" --target "$t" --profile firmware \
+  if cargo build -p "$FW_PKG" --bin "$FW_BIN" --target "$t" --profile "$(fw_profile "$t")" \
     $(fw_cargo_features panic-canary) >"$canary_log" 2>&1; then
     fw_fail "$t: negative control: the image with a planted panic linked, so the check proves nothing"
   fi

@@ -32,10 +32,10 @@ samples="$(grep -c '^est,' "$host" || true)"
 for t in "${targets[@]}"; do
   out="$FW_OUT/$t.qemu.txt"
   start=$(date +%s%N)
-  cargo run -q -p "$FW_PKG" --bin "$FW_BIN" --target "$t" --profile firmware >"$out" \
+  cargo run -q -p "$FW_PKG" --bin "$FW_BIN" --target "$t" --profile "$(fw_profile "$t")" >"$out" \
     2>"$FW_OUT/$t.qemu.stderr" || fw_fail "$t: QEMU run failed or exited non-zero (see $out)"
   ms=$(( ($(date +%s%N) - start) / 1000000 ))
-  cp "$FW_TARGET_DIR/$t/firmware/$FW_BIN" "$FW_OUT/$t.semihosting.elf"
+  cp "$FW_TARGET_DIR/$t/$(fw_profile "$t")/$FW_BIN" "$FW_OUT/$t.semihosting.elf"
   if ! diff <(grep -v '^#target' "$out") "$host" >"$FW_OUT/$t.diff"; then
     fw_fail "$t: QEMU output differs from the host replay (see $FW_OUT/$t.diff)"
   fi

@@ -58,7 +58,7 @@ for t in "${targets[@]}"; do
   elf="$(fw_elf "$t" semihosting)"
   log="$FW_OUT/$t.qemu.txt"
   if [[ ! -s "$log" ]]; then
-    cargo run -q -p "$FW_PKG" --bin "$FW_BIN" --target "$t" --profile firmware >"$log" 2>/dev/null \
+    cargo run -q -p "$FW_PKG" --bin "$FW_BIN" --target "$t" --profile "$(fw_profile "$t")" >"$log" 2>/dev/null \
       || fw_fail "$t: QEMU run for the stack measurement failed"
   fi
   vt=$(section "$elf" .vector_table); text=$(section "$elf" .text); ro=$(section "$elf" .rodata)
