@@ -113,13 +113,17 @@ impl Lp {
     fn output(&self) -> Option<Newtons> {
         self.primed.then(|| Newtons::from_bits(round_out(self.acc)))
     }
+    /// α·e rounded to nearest, halves away from zero, with α's 32 leading bits (the rest
+    /// cleared), as the core's filter applies it.
     fn update(&mut self, alpha_q60: i64, x: i32) {
         if !self.primed {
             self.reset(x);
         } else {
             let e = (i64::from(x) << 24).saturating_sub(self.acc);
-            let prod = i128::from(e) * i128::from(alpha_q60) + (1i128 << 59);
-            let step = i64::try_from(prod >> 60).unwrap_or(e);
+            let drop = 32 - alpha_q60.leading_zeros();
+            let alpha = i128::from((alpha_q60 >> drop) << drop);
+            let magnitude = (i128::from(e).abs() * alpha + (1i128 << 59)) >> 60;
+            let step = i64::try_from(if e < 0 { -magnitude } else { magnitude }).unwrap_or(e);
             self.acc = self.acc.saturating_add(step);
         }
     }
