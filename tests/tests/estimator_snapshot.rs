@@ -15,24 +15,16 @@
 mod estimator_common;
 use estimator_common::*;
 
-use clampwise_core::adapt::AdaptConfig;
-use clampwise_core::config::{DeviceConfig, DeviceParts, Limits, Tables, Tolerances};
 use clampwise_core::estimator::Combination;
 use clampwise_core::estimator::{
     Estimate, Estimator, Inputs, SnapshotError, snapshot::SNAPSHOT_MAGIC, snapshot_len,
 };
-use clampwise_core::friction::FrictionConfig;
-use clampwise_core::geometry::build_radius_table;
 use clampwise_core::sensor::{
-    ActuatorCommand, ActuatorTransfer, AdcRails, ChannelCalibration, Debounce, DebounceSet,
-    DiagnosticLimits, LowPass, NewtonsPerCommand, NewtonsPerCount, NewtonsPerKelvin,
-    NewtonsPerSecond, PerKelvin, RawChannel, SensorConfig, StuckCheck, TemperatureCompensation,
-    VotingLimits,
+    ActuatorCommand, ActuatorTransfer, ChannelCalibration, DiagnosticLimits, NewtonsPerKelvin,
+    PerKelvin, RawChannel, StuckCheck, TemperatureCompensation,
 };
 use clampwise_core::state_record::RECORD_MAGIC;
-use clampwise_core::thermal::ThermalConfig;
-use clampwise_core::units::{Celsius, NewtonMetres, Newtons, RadPerSec, Ratio, Seconds};
-use clampwise_core::wear::WearConfig;
+use clampwise_core::units::{Celsius, NewtonMetres, RadPerSec, Seconds};
 use crc::{CRC_32_ISO_HDLC, Crc};
 use proptest::prelude::*;
 
@@ -163,17 +155,10 @@ fn devices_1() -> [Device<1>; 4] {
 fn instrumented<const C: usize>(every: u8) -> Device<C> {
     let spec = Spec {
         adapt: true,
+        combination: Combination::RootSumSquare,
         ..Spec::default()
     };
-    let radius = build_radius_table::<2, 2>(&spec.contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
     let cal = ChannelCalibration {
-        gain: NewtonsPerCount::from_num(1.0 / COUNTS_PER_NEWTON),
-        offset: Newtons::ZERO,
-        rails: AdcRails {
-            low: i32::MIN,
-            high: i32::MAX,
-            margin: 0,
-        },
         temperature: Some(TemperatureCompensation {
             reference: Celsius::from_num(20),
             min: Celsius::from_num(-40),
@@ -181,65 +166,20 @@ fn instrumented<const C: usize>(every: u8) -> Device<C> {
             zero_per_kelvin: NewtonsPerKelvin::from_num(0.5),
             span_per_kelvin: PerKelvin::from_num(1e-4),
         }),
+        ..calibration()
     };
     let limits = DiagnosticLimits {
-        force_min: Newtons::from_num(-5_000),
-        force_max: Newtons::from_num(250_000),
-        max_rate: NewtonsPerSecond::from_num(50_000_000),
-        noise_band: Newtons::from_num(50),
         stuck: Some(StuckCheck {
             time: Seconds::from_num(0.02),
             command_span: ActuatorCommand::from_num(2),
         }),
-        debounce: DebounceSet::uniform(Debounce {
-            raise_after: 3,
-            clear_after: 10,
-        }),
-        max_hold_samples: 2,
-    };
-    let voting = VotingLimits {
-        tolerance: Newtons::from_num(500),
-        channel_uncertainty: Newtons::from_num(100),
+        ..diagnostic_limits()
     };
     let fallback = ActuatorTransfer {
-        gain: NewtonsPerCommand::from_num(1000),
-        offset: Newtons::ZERO,
-        hysteresis: Newtons::from_num(100),
-        uncertainty: Newtons::from_num(2000),
         response_time: Seconds::from_num(0.01),
+        ..actuator_transfer()
     };
-    let sensor = SensorConfig::new(
-        1000,
-        [cal; C],
-        LowPass::new(200.0, 1000).unwrap(),
-        limits,
-        voting,
-        Some(fallback),
-    )
-    .unwrap();
-    DeviceConfig::from_parts(DeviceParts {
-        sample_period: Seconds::from_num(DT),
-        thermal_wear_every: every,
-        faces: spec.contact.faces(),
-        tables: Tables::new(
-            radius,
-            FrictionConfig::new(mu_table(), &friction_params(&spec)).unwrap(),
-        ),
-        thermal: ThermalConfig::new(&thermal_params(), DT * f64::from(every)).unwrap(),
-        wear: WearConfig::new(&wear_params(), DT).unwrap(),
-        sensor,
-        adapt: Some(AdaptConfig::new(0.7, 1.3, 0.995, NewtonMetres::from_num(5000), 0.02).unwrap()),
-        limits: Limits {
-            touch_force: Newtons::from_num(100),
-            adapt_min_force: Newtons::from_num(500),
-        },
-        tolerances: Tolerances {
-            mu: Ratio::from_num(0.20),
-            radius: Ratio::from_num(0.01),
-            combination: Combination::RootSumSquare,
-        },
-    })
-    .unwrap()
+    device_with_sensor(&spec, every, sensor_from(cal, limits, Some(fallback)))
 }
 
 fn devices_3() -> [Device<3>; 3] {

@@ -112,8 +112,9 @@ pub fn wear_params() -> WearParams {
     }
 }
 
-pub fn sensor_config<const C: usize>(fallback: bool) -> SensorConfig<C> {
-    let cal = ChannelCalibration {
+/// One channel's calibration: counts are newtons in Q8, no rails, no temperature compensation.
+pub fn calibration() -> ChannelCalibration {
+    ChannelCalibration {
         gain: NewtonsPerCount::from_num(1.0 / COUNTS_PER_NEWTON),
         offset: Newtons::ZERO,
         rails: AdcRails {
@@ -122,8 +123,12 @@ pub fn sensor_config<const C: usize>(fallback: bool) -> SensorConfig<C> {
             margin: 0,
         },
         temperature: None,
-    };
-    let limits = DiagnosticLimits {
+    }
+}
+
+/// The diagnostic limits of the test devices (no stuck check).
+pub fn diagnostic_limits() -> DiagnosticLimits {
+    DiagnosticLimits {
         force_min: Newtons::from_num(-5_000),
         force_max: Newtons::from_num(250_000),
         max_rate: NewtonsPerSecond::from_num(50_000_000),
@@ -134,20 +139,41 @@ pub fn sensor_config<const C: usize>(fallback: bool) -> SensorConfig<C> {
             clear_after: 10,
         }),
         max_hold_samples: 2,
-    };
-    let voting = VotingLimits {
-        tolerance: Newtons::from_num(500),
-        channel_uncertainty: Newtons::from_num(100),
-    };
-    let filter = LowPass::new(200.0, 1000).unwrap();
-    let fallback = fallback.then_some(ActuatorTransfer {
+    }
+}
+
+/// The actuator fallback of the test devices (no lag).
+pub fn actuator_transfer() -> ActuatorTransfer {
+    ActuatorTransfer {
         gain: clampwise_core::sensor::NewtonsPerCommand::from_num(1000),
         offset: Newtons::ZERO,
         hysteresis: Newtons::from_num(100),
         uncertainty: Newtons::from_num(2000),
         response_time: clampwise_core::units::Seconds::ZERO,
-    });
+    }
+}
+
+/// A sensor configuration from its parts: C channels of `cal`, a 200 Hz filter, the test
+/// voting limits.
+pub fn sensor_from<const C: usize>(
+    cal: ChannelCalibration,
+    limits: DiagnosticLimits,
+    fallback: Option<ActuatorTransfer>,
+) -> SensorConfig<C> {
+    let voting = VotingLimits {
+        tolerance: Newtons::from_num(500),
+        channel_uncertainty: Newtons::from_num(100),
+    };
+    let filter = LowPass::new(200.0, 1000).unwrap();
     SensorConfig::new(1000, [cal; C], filter, limits, voting, fallback).unwrap()
+}
+
+pub fn sensor_config<const C: usize>(fallback: bool) -> SensorConfig<C> {
+    sensor_from(
+        calibration(),
+        diagnostic_limits(),
+        fallback.then(actuator_transfer),
+    )
 }
 
 pub fn device<const C: usize>(spec: &Spec<'_>) -> Device<C> {
@@ -157,6 +183,16 @@ pub fn device<const C: usize>(spec: &Spec<'_>) -> Device<C> {
 /// As [`device`], with the thermal and wear states advanced every `every` samples (the
 /// thermal model built for `every` · DT).
 pub fn device_with_sub_rate<const C: usize>(spec: &Spec<'_>, every: u8) -> Device<C> {
+    device_with_sensor(spec, every, sensor_config::<C>(spec.fallback))
+}
+
+/// As [`device_with_sub_rate`], with the sensor configuration given (`spec.fallback` is then
+/// the sensor's business).
+pub fn device_with_sensor<const C: usize>(
+    spec: &Spec<'_>,
+    every: u8,
+    sensor: SensorConfig<C>,
+) -> Device<C> {
     let radius = build_radius_table::<2, 2>(&spec.contact, &[0.0, 250_000.0], &[0.0, 1.0]).unwrap();
     DeviceConfig::from_parts(DeviceParts {
         sample_period: Seconds::from_num(DT),
@@ -168,7 +204,7 @@ pub fn device_with_sub_rate<const C: usize>(spec: &Spec<'_>, every: u8) -> Devic
         ),
         thermal: ThermalConfig::new(&thermal_params(), DT * f64::from(every)).unwrap(),
         wear: WearConfig::new(&wear_params(), DT).unwrap(),
-        sensor: sensor_config::<C>(spec.fallback),
+        sensor,
         adapt: spec.adapt.then(|| {
             AdaptConfig::new(0.7, 1.3, 0.995, NewtonMetres::from_num(5000), 0.02).unwrap()
         }),
