@@ -24,23 +24,15 @@ import sys
 
 
 def short(name):
-    """A readable function name: generic arguments and hashes dropped."""
+    """A readable function name: hashes and generic arguments dropped."""
     name = re.sub(r"::h[0-9a-f]{16}$", "", name)
-    out, depth = [], 0
-    for ch in name:
-        if ch == "<":
-            depth += 1
-            if depth == 1 and out and out[-1] != ":":
-                continue
-        elif ch == ">":
-            depth -= 1
-            continue
-        if depth == 0 or (depth == 1 and ch != "<" and not out or False):
-            out.append(ch)
-        elif depth >= 1 and ch == "<":
-            pass
-    s = "".join(out) or name
-    return s.replace("clampwise_core::", "").replace("clampwise_benches::", "")
+    while True:
+        # The innermost <…> first, so nested generics go too; `<T as Trait>::f` becomes `::f`.
+        shorter = re.sub(r"<[^<>]*>", "", name)
+        if shorter == name:
+            break
+        name = shorter
+    return name.lstrip(":").replace("clampwise_core::", "").replace("clampwise_benches::", "")
 
 
 def chains(image, pcs):

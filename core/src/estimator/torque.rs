@@ -40,11 +40,9 @@ pub(crate) fn friction_torque(
     force: Newtons,
     lever_arm: Metres,
 ) -> Saturating<NewtonMetres> {
-    match mu_arm(mu, lever_arm) {
-        Some(arm) => corrected_torque(faces, correction, arm, force)
-            .unwrap_or_else(|| exact_friction_torque(faces, correction, mu, force, lever_arm)),
-        None => exact_friction_torque(faces, correction, mu, force, lever_arm),
-    }
+    mu_arm(mu, lever_arm)
+        .and_then(|arm| corrected_torque(faces, correction, arm, force))
+        .unwrap_or_else(|| exact_friction_torque(faces, correction, mu, force, lever_arm))
 }
 
 /// The torque with the correction k and without it (k = 1), from one μ·r_e product: each the
