@@ -540,7 +540,7 @@ impl<const C: usize> SensorState<C> {
         self.condition_channels(cfg, raw, actuator_command, &mut pass);
         let predicted_force = predicted.map(|p| p.force);
         let v = vote_usable::<C>(cfg, &pass, predicted_force);
-        let judged = self.judge_channels(cfg, &v, &pass.channel_force);
+        let judged = self.judge_channels(cfg, &v, &pass);
 
         let (force, uncertainty, health, source, implausible) = if v.used.is_empty() {
             match (&cfg.fallback, predicted_force) {
@@ -565,7 +565,7 @@ impl<const C: usize> SensorState<C> {
                 &v,
                 &pass.channel_force,
                 &judged.flags,
-                (judged.held, pass.trailing_beyond_noise(cfg, v.used)),
+                (judged.held, judged.trailing),
                 predicted_force.zip(cfg.fallback.as_ref()),
             );
             let all_used = v.used == ChannelMask::first(C);
@@ -644,7 +644,7 @@ impl<const C: usize> SensorState<C> {
                 }
                 Some(f) => {
                     let y = ch.filter.update(&cfg.filter, f);
-                    *lag = (i64::from(f.to_bits()) - i64::from(y.to_bits())).abs();
+                    *lag = f.to_bits().abs_diff(y.to_bits());
                     Some(y)
                 }
                 None => ch.filter.output(),
@@ -662,13 +662,10 @@ impl<const C: usize> SensorState<C> {
     /// channel is clean, and the largest hold allowance of a used channel.
     // Called once per sample: inlined, so its arrays are built in place.
     #[inline(always)]
-    fn judge_channels(
-        &mut self,
-        cfg: &SensorConfig<C>,
-        v: &Vote,
-        channel_force: &[Option<Newtons>; MAX_CHANNELS],
-    ) -> Judged {
+    fn judge_channels(&mut self, cfg: &SensorConfig<C>, v: &Vote, pass: &ChannelPass) -> Judged {
         let d = &cfg.diagnostics;
+        // noise_band ≥ 0 (validated): its unsigned value is exact.
+        let noise = d.limits.noise_band.to_bits().unsigned_abs() / 2;
         // tolerance > 0 (validated): its unsigned value is exact.
         let tol = cfg.voting.tolerance.to_bits().unsigned_abs();
         let reference = v.reference().map(|m| m.to_bits());
@@ -676,12 +673,14 @@ impl<const C: usize> SensorState<C> {
             flags: [ChannelFlags::empty(); MAX_CHANNELS],
             clean: true,
             held: 0,
+            trailing: 0,
         };
-        for (i, ((ch, out), flags)) in self
+        for (i, (((ch, out), flags), &trail)) in self
             .channels
             .iter_mut()
-            .zip(channel_force.iter())
+            .zip(pass.channel_force.iter())
             .zip(judged.flags.iter_mut())
+            .zip(pass.trail.iter())
             .enumerate()
         {
             // One channel has no other to disagree with.
@@ -700,9 +699,12 @@ impl<const C: usize> SensorState<C> {
             }
             *flags = ch.diagnostics.flags(d);
             judged.clean &= flags.is_empty();
-            let k = ch.diagnostics.held_for();
-            if k > 0 && v.used.contains(i) {
-                judged.held = judged.held.max(d.allowance_q8(k, true));
+            if v.used.contains(i) {
+                let k = ch.diagnostics.held_for();
+                if k > 0 {
+                    judged.held = judged.held.max(d.allowance_q8(k, true));
+                }
+                judged.trailing = judged.trailing.max(trail.saturating_sub(noise));
             }
         }
         judged
@@ -713,8 +715,9 @@ impl<const C: usize> SensorState<C> {
 struct ChannelPass {
     /// Filtered force of each usable channel (raw `Newtons` bits).
     values: [i32; MAX_CHANNELS],
-    /// How far each channel's filter output trails its newest accepted sample (Q8 N).
-    trail: [i64; MAX_CHANNELS],
+    /// How far each channel's filter output trails its newest accepted sample (Q8 N; 0 when
+    /// no sample was filtered in).
+    trail: [u32; MAX_CHANNELS],
     /// Bit i set: channel i may vote.
     usable: u8,
     /// Each channel's filtered force, when it has one.
@@ -723,36 +726,16 @@ struct ChannelPass {
     temperature_clamped: bool,
 }
 
-impl ChannelPass {
-    /// The filter trails a moving force: what it trails its newest sample by beyond that
-    /// sample's own noise (half the peak-to-peak `noise_band`; `channel_uncertainty` already
-    /// covers the noise), largest over the used channels (Q8 N, ≥ 0).
-    // Called once per sample: inlined, so its arrays are built in place.
-    #[inline(always)]
-    fn trailing_beyond_noise<const C: usize>(
-        &self,
-        cfg: &SensorConfig<C>,
-        used: ChannelMask,
-    ) -> u64 {
-        let noise = i64::from(cfg.diagnostics.limits.noise_band.to_bits()) / 2;
-        self.trail
-            .iter()
-            .enumerate()
-            .filter(|&(i, _)| used.contains(i))
-            .map(|(_, &t)| t - noise)
-            .max()
-            .unwrap_or(0)
-            .max(0)
-            .unsigned_abs()
-    }
-}
-
 /// Each channel judged against the vote.
 struct Judged {
     flags: [ChannelFlags; MAX_CHANNELS],
     clean: bool,
     /// Largest hold allowance of a used channel, Q8 N rounded up (saturated).
     held: u64,
+    /// How far the filter trails a moving force beyond the newest sample's own noise (half
+    /// the peak-to-peak `noise_band`; `channel_uncertainty` already covers the noise), largest
+    /// over the used channels (Q8 N).
+    trailing: u32,
 }
 
 /// The vote among the usable channels; one channel is passed through when usable

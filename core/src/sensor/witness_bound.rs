@@ -35,7 +35,7 @@ pub(super) fn force_bound(
     v: &Vote,
     channel_force: &[Option<Newtons>; MAX_CHANNELS],
     channel_flags: &[ChannelFlags; MAX_CHANNELS],
-    (held, trailing): (u64, u64),
+    (held, trailing): (u64, u32),
     model: Option<(Newtons, &ActuatorTransfer)>,
 ) -> ForceBound {
     // Distances between i32 values are exact in u32; every sum saturates (at the top the ±
@@ -61,7 +61,6 @@ pub(super) fn force_bound(
         }
     }
     let held = u32::try_from(held).unwrap_or(u32::MAX);
-    let trailing = u32::try_from(trailing).unwrap_or(u32::MAX);
     // What the channels that were used claim on their own, before the filter's trail.
     let own_claim = own.saturating_add(held).saturating_add(spread_used);
     let consensus = own_claim.saturating_add(trailing);
