@@ -141,16 +141,7 @@ fn non_numeric_cell_skipped_and_counted() {
         "{s}"
     );
     // The human summary says so too.
-    let (_, stdout, _) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &tr,
-        "-o",
-        &out,
-        "--skip-bad-rows",
-    ]);
+    let (_, stdout, _) = replay(&cfg, &tr, &out, &["--skip-bad-rows"]);
     assert!(
         stdout.contains("1 skipped") && stdout.contains("skipped: "),
         "{stdout}"
@@ -401,7 +392,7 @@ fn wrong_units() {
     }
     let tr = write(&d, "kn.csv", &text(&lines));
     let out = d.join("kn.est.csv").display().to_string();
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", &out]);
+    let (code, _, err) = replay(&cfg, &tr, &out, &[]);
     assert_eq!(code, 0, "{err}");
     let est = std::fs::read_to_string(&out).unwrap();
     let last = est.lines().last().unwrap();
@@ -436,15 +427,7 @@ fn missing_files_are_io_errors() {
     assert_eq!(code, 1, "{err}");
     let d = scratch("missing_trace");
     let cfg = write(&d, "cfg.toml", &newton_config());
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        "/nonexistent/t.csv",
-        "-o",
-        "/tmp/x.csv",
-    ]);
+    let (code, _, err) = replay(&cfg, "/nonexistent/t.csv", "/tmp/x.csv", &[]);
     assert_eq!(code, 4, "{err}");
     assert!(err.contains("/nonexistent/t.csv"));
 }

@@ -90,7 +90,7 @@ fn semicolon_decimal_comma_and_tab_files_replay_as_the_original() {
     // The human summary says it too.
     let t = d.join("semi.csv").display().to_string();
     let out = d.join("semi.human.csv").display().to_string();
-    let (code, stdout, err) = run(&["-q", "replay", "-c", &cfg, &t, "-o", &out]);
+    let (code, stdout, err) = replay(&cfg, &t, &out, &[]);
     assert_eq!(code, 0, "{err}");
     assert!(
         stdout.contains("read as: ';'-separated (sniffed), decimal comma (sniffed)"),
@@ -130,30 +130,10 @@ fn dialect_set_by_option() {
         "option"
     );
     // Read with the wrong mark: the cell's error says which mark is in use and how to set it.
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &semi,
-        "-o",
-        &out,
-        "--decimal",
-        "point",
-    ]);
+    let (code, _, err) = replay(&cfg, &semi, &out, &["--decimal", "point"]);
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("--decimal comma"), "{err}");
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &tr,
-        "-o",
-        &out,
-        "--decimal",
-        "comma",
-    ]);
+    let (code, _, err) = replay(&cfg, &tr, &out, &["--decimal", "comma"]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("','-separated"), "{err}");
 }
@@ -203,7 +183,7 @@ fn unrecognised_dialects_are_named_and_located() {
     ];
     for (name, body, at, seen) in cases {
         let t = write(&d, name, &body);
-        let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &t, "-o", &out]);
+        let (code, _, err) = replay(&cfg, &t, &out, &[]);
         assert_eq!(code, 2, "{name}: {err}");
         assert!(err.contains("unrecognised CSV dialect"), "{name}: {err}");
         assert!(err.contains(&format!("{name}{at}")), "{name}: {err}");
@@ -244,7 +224,7 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
     let d = scratch("resample_hold");
     let (cfg, t, lines) = half_rate(&d);
     let out = d.join("est.csv").display().to_string();
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &t, "-o", &out]);
+    let (code, _, err) = replay(&cfg, &t, &out, &[]);
     assert_eq!(code, 2, "{err}");
     assert!(
         err.contains("wrong time unit")
@@ -253,30 +233,10 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
         "{err}"
     );
     // Stating the rate alone is not enough: the estimator would step at the wrong period.
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t,
-        "-o",
-        &out,
-        "--sample-period-s",
-        "0.002",
-    ]);
+    let (code, _, err) = replay(&cfg, &t, &out, &["--sample-period-s", "0.002"]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("--resample"), "{err}");
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t,
-        "-o",
-        &out,
-        "--resample",
-        "hold",
-    ]);
+    let (code, _, err) = replay(&cfg, &t, &out, &["--resample", "hold"]);
     assert_eq!(code, 1, "{err}");
     assert!(err.contains("--sample-period-s"), "{err}");
 
@@ -311,19 +271,12 @@ fn a_log_at_another_rate_is_resampled_only_when_asked() {
         let t: f64 = cells[1].parse().unwrap();
         assert!((t - k as f64 * 0.001).abs() < 1e-12, "tick {k}: {t}");
     }
-    let (code, stdout, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
+    let (code, stdout, err) = replay(
         &cfg,
         &t,
-        "-o",
         &out,
-        "--sample-period-s",
-        "0.002",
-        "--resample",
-        "hold",
-    ]);
+        &["--sample-period-s", "0.002", "--resample", "hold"],
+    );
     assert_eq!(code, 0, "{err}");
     assert!(
         stdout.contains("resampled (zero-order hold)")
@@ -389,7 +342,7 @@ fn column_override_on_the_command_line() {
     let good = small_trace(300);
     let t = write(&d, "t.csv", &text(&good));
     let base = d.join("base.csv").display().to_string();
-    assert_eq!(run(&["-q", "replay", "-c", &cfg, &t, "-o", &base]).0, 0);
+    assert_eq!(replay(&cfg, &t, &base, &[]).0, 0);
     // force_1 in kN under another name: 30000 N = 30 kN.
     let renamed: Vec<String> = good
         .iter()
@@ -400,49 +353,19 @@ fn column_override_on_the_command_line() {
         .collect();
     let t2 = write(&d, "renamed.csv", &text(&renamed));
     let out = d.join("est.csv").display().to_string();
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &t2, "-o", &out]);
+    let (code, _, err) = replay(&cfg, &t2, &out, &[]);
     assert_eq!(code, 2);
     assert!(err.contains("missing column 'force_1_N'"), "{err}");
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t2,
-        "-o",
-        &out,
-        "--column",
-        "force_1=Kraft1:kN",
-    ]);
+    let (code, _, err) = replay(&cfg, &t2, &out, &["--column", "force_1=Kraft1:kN"]);
     assert_eq!(code, 0, "{err}");
     assert_eq!(data_lines(&out), data_lines(&base));
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t2,
-        "-o",
-        &out,
-        "--column",
-        "force_9=Kraft1:kN",
-    ]);
+    let (code, _, err) = replay(&cfg, &t2, &out, &["--column", "force_9=Kraft1:kN"]);
     assert_eq!(code, 1, "{err}");
     assert!(
         err.contains("unknown quantity 'force_9'") && err.contains("omega_in"),
         "{err}"
     );
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t2,
-        "-o",
-        &out,
-        "--column",
-        "force_1=Kraft1:furlongs",
-    ]);
+    let (code, _, err) = replay(&cfg, &t2, &out, &["--column", "force_1=Kraft1:furlongs"]);
     assert_ne!(code, 0, "{err}");
     assert!(err.contains("--column force_1"), "{err}");
 }
@@ -455,19 +378,9 @@ fn columns_subset() {
     let cfg = write(&d, "cfg.toml", &newton_config());
     let t = write(&d, "t.csv", &text(&small_trace(300)));
     let full = d.join("full.csv").display().to_string();
-    assert_eq!(run(&["-q", "replay", "-c", &cfg, &t, "-o", &full]).0, 0);
+    assert_eq!(replay(&cfg, &t, &full, &[]).0, 0);
     let sub = d.join("sub.csv").display().to_string();
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t,
-        "-o",
-        &sub,
-        "--columns",
-        "state,t_s,torque_Nm,flags",
-    ]);
+    let (code, _, err) = replay(&cfg, &t, &sub, &["--columns", "state,t_s,torque_Nm,flags"]);
     assert_eq!(code, 0, "{err}");
     let full = data_lines(&full);
     let sub = data_lines(&sub);
@@ -480,17 +393,7 @@ fn columns_subset() {
         let want = [idx("state"), idx("t_s"), idx("torque_Nm"), idx("flags")].map(|i| f[i]);
         assert_eq!(s.split(',').collect::<Vec<_>>(), want);
     }
-    let (code, _, err) = run(&[
-        "-q",
-        "replay",
-        "-c",
-        &cfg,
-        &t,
-        "-o",
-        "/dev/null",
-        "--columns",
-        "t_s,torque",
-    ]);
+    let (code, _, err) = replay(&cfg, &t, "/dev/null", &["--columns", "t_s,torque"]);
     assert_eq!(code, 1, "{err}");
     assert!(
         err.contains("unknown estimate column 'torque'") && err.contains("uncertainty_Nm"),

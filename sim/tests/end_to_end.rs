@@ -186,10 +186,7 @@ fn replay_output_is_the_core_step_bit_for_bit() {
         .0,
         0
     );
-    assert_eq!(
-        run(&["-q", "replay", "-c", &cfg_path, &tr, "-o", &est]).0,
-        0
-    );
+    assert_eq!(replay(&cfg_path, &tr, &est, &[]).0, 0);
     let cfg = LoadedConfig::load(std::path::Path::new(&cfg_path)).unwrap();
     let core = CoreDevice::build(&cfg.config).unwrap();
     let ChannelDevice::Three(dev) = &core.device else {
@@ -605,7 +602,7 @@ fn plot_subcommand_and_stdout_pipeline() {
         0
     );
     let est = d.join("e.csv").display().to_string();
-    assert_eq!(run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est]).0, 0);
+    assert_eq!(replay(&cfg, &tr, &est, &[]).0, 0);
     let svg = d.join("p.svg").display().to_string();
     let (code, out, err) = run(&["-q", "plot", &est, "-o", &svg]);
     assert_eq!(code, 0, "{err}");
@@ -624,7 +621,7 @@ fn plot_subcommand_and_stdout_pipeline() {
     ]);
     assert_eq!(code, 1, "{err}");
     // replay to standard output: the estimate goes to stdout, the summary to stderr.
-    let (code, out, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", "-"]);
+    let (code, out, err) = replay(&cfg, &tr, "-", &[]);
     assert_eq!(code, 0);
     assert!(out.lines().any(|l| l.starts_with("line,t_s,torque_Nm")));
     assert!(err.contains("replayed"), "{err}");

@@ -194,7 +194,7 @@ fn a_duplicate_among_many_columns_is_located() {
     }
     header.push_str(",extra_79999");
     let tr = write(&d, "t.csv", &format!("{header}\n"));
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", "/dev/null"]);
+    let (code, _, err) = replay(&cfg, &tr, "/dev/null", &[]);
     assert_eq!(code, 2, "{err}");
     assert!(
         err.contains("line 1, column 80008 (extra_79999): header name 'extra_79999' appears twice"),

@@ -40,9 +40,9 @@ fn replay_refuses_to_write_over_its_trace_or_config() {
     let (d, cfg, tr) = setup("clobber_replay");
     let trace_text = std::fs::read_to_string(&tr).unwrap();
     let cfg_text = std::fs::read_to_string(&cfg).unwrap();
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", &tr]);
+    let (code, _, err) = replay(&cfg, &tr, &tr, &[]);
     assert_refused(code, &err, &tr, &trace_text);
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", &cfg]);
+    let (code, _, err) = replay(&cfg, &tr, &cfg, &[]);
     assert_refused(code, &err, &cfg, &cfg_text);
     // The same file under another name: a hard link, and a path spelled differently.
     let link = d.join("link.csv");
@@ -59,11 +59,11 @@ fn replay_refuses_to_write_over_its_trace_or_config() {
     assert_refused(code, &err, &tr, &trace_text);
     assert!(err.contains("hard or symbolic link"), "{err}");
     let dotted = format!("{}/./t.csv", d.display());
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", &dotted]);
+    let (code, _, err) = replay(&cfg, &tr, &dotted, &[]);
     assert_refused(code, &err, &tr, &trace_text);
     // A plot named like the estimate.
     let est = d.join("e.csv").display().to_string();
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est, "--plot", &est]);
+    let (code, _, err) = replay(&cfg, &tr, &est, &["--plot", &est]);
     assert_eq!(code, 1, "{err}");
     assert!(!std::path::Path::new(&est).exists());
 }
@@ -73,7 +73,7 @@ fn other_commands_refuse_to_write_over_their_inputs() {
     let (d, cfg, tr) = setup("clobber_others");
     let cfg_text = std::fs::read_to_string(&cfg).unwrap();
     let est = d.join("e.csv").display().to_string();
-    assert_eq!(run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est]).0, 0);
+    assert_eq!(replay(&cfg, &tr, &est, &[]).0, 0);
     let est_text = std::fs::read_to_string(&est).unwrap();
     let (code, _, err) = run(&["-q", "compare", &est, "--regions-csv", &est]);
     assert_refused(code, &err, &est, &est_text);
@@ -113,12 +113,12 @@ fn a_failed_run_keeps_the_previous_good_output() {
     let (d, cfg, tr) = setup("keep_previous");
     let est = d.join("e.csv");
     let est_s = est.display().to_string();
-    assert_eq!(run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est_s]).0, 0);
+    assert_eq!(replay(&cfg, &tr, &est_s, &[]).0, 0);
     let good = std::fs::read_to_string(&est).unwrap();
     let mut t = small_trace(50);
     t[30] = "0.028,30000,abc,29990,2.0,100.0,-14500".into();
     let bad = write(&d, "bad.csv", &text(&t));
-    let (code, _, err) = run(&["-q", "replay", "-c", &cfg, &bad, "-o", &est_s]);
+    let (code, _, err) = replay(&cfg, &bad, &est_s, &[]);
     assert_eq!(code, 2, "{err}");
     assert_eq!(std::fs::read_to_string(&est).unwrap(), good);
     let partial = std::fs::read_to_string(format!("{est_s}.partial")).unwrap();
@@ -143,7 +143,7 @@ fn a_failed_run_keeps_the_previous_good_output() {
         names(&d),
         ["bad.csv", "cfg.toml", "e.csv", "e.csv.partial", "t.csv"]
     );
-    assert_eq!(run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est_s]).0, 0);
+    assert_eq!(replay(&cfg, &tr, &est_s, &[]).0, 0);
     assert_eq!(names(&d), ["bad.csv", "cfg.toml", "e.csv", "t.csv"]);
 }
 

@@ -19,7 +19,7 @@ use std::process::{Command, Stdio};
 
 use std::time::{Duration, Instant};
 
-use common::{DEMO, run, scratch, write};
+use common::{DEMO, replay, run, scratch, write};
 
 /// Synthesise a short hoist trace with a stuck channel, replay it, fit; returns
 /// (config, estimate, coverage) paths.
@@ -40,7 +40,7 @@ fn inputs(d: &Path) -> (String, String, String) {
     ]);
     assert_eq!(c, 0, "{e}");
     let est = d.join("run <1> & 'a'.csv").display().to_string();
-    let (c, _, e) = run(&["-q", "replay", "-c", &cfg, &tr, "-o", &est]);
+    let (c, _, e) = replay(&cfg, &tr, &est, &[]);
     assert_eq!(c, 0, "{e}");
     let cov = d.join("coverage.csv").display().to_string();
     let (c, _, e) = run(&["-q", "fit", "-c", &cfg, &tr, "--coverage-csv", &cov]);

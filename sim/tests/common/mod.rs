@@ -37,6 +37,14 @@ pub fn run(args: &[&str]) -> (i32, String, String) {
     )
 }
 
+/// `clampwise -q replay -c CONFIG TRACE -o OUT` with `extra` arguments after them; returns
+/// (exit code, stdout, stderr).
+pub fn replay(config: &str, trace: &str, out: &str, extra: &[&str]) -> (i32, String, String) {
+    let mut a = vec!["-q", "replay", "-c", config, trace, "-o", out];
+    a.extend_from_slice(extra);
+    run(&a)
+}
+
 /// Run and parse the JSON printed with `--json`.
 pub fn run_json(args: &[&str]) -> (i32, serde_json::Value, String) {
     let mut a = vec!["--json", "-q"];
