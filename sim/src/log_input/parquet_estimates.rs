@@ -4,8 +4,10 @@
 //! [`ParquetEstimateWriter`]: the estimate columns of [`HEADER`] (or those `--columns`
 //! selects, in its order): `line` as UInt64, `state` and `flags` as UTF-8 text (flags as in
 //! the CSV, names joined by ` | `, empty when none), the rest Float64, null where the CSV cell
-//! is empty. Row groups hold at most [`ROW_GROUP_ROWS`] rows, Snappy pages, dictionaries for
-//! `state` and `flags` only. The comment lines of the CSV form are stored as the file's
+//! is empty. Row groups hold at most [`ROW_GROUP_ROWS`] rows, Snappy pages of at most
+//! [`PAGE_ROWS`] rows, dictionaries for `state` and `flags` only, min/max statistics per column
+//! chunk. A row group's finished pages wait on disk ([`super::parquet_spill`]), so memory stays
+//! flat whatever the file length. The comment lines of the CSV form are stored as the file's
 //! key-value metadata under `clampwise`. Nothing appears under the name until the file is
 //! complete.
 //!
@@ -24,21 +26,29 @@ use arrow_schema::{DataType, Field, Schema};
 use parquet::arrow::ArrowWriter;
 use parquet::arrow::ProjectionMask;
 use parquet::arrow::arrow_reader::{ParquetRecordBatchReader, ParquetRecordBatchReaderBuilder};
+use parquet::arrow::arrow_writer::ArrowWriterOptions;
 use parquet::basic::Compression;
 use parquet::file::metadata::KeyValue;
-use parquet::file::properties::WriterProperties;
+use parquet::file::properties::{EnabledStatistics, WriterProperties};
 use parquet::schema::types::ColumnPath;
 
 use super::log_error;
 use super::parquet::BATCH_ROWS;
+use super::parquet_spill::SpillPages;
 use crate::csv_input::echo;
 use crate::error::{DataError, SimError};
 use crate::estimate::HEADER;
 use crate::output::TempTarget;
 use clampwise_convert::{ContactState, EstimateRow, Flags};
 
-/// Largest row group written.
-pub const ROW_GROUP_ROWS: usize = 64 * 1024;
+/// Largest row group written: the `parquet` crate's (and pyarrow's) default. The pages of a
+/// group in progress are spilled to disk ([`SpillPages`]), so its size costs no memory; fewer
+/// groups keep the footer, held in memory until the file is closed, small.
+pub const ROW_GROUP_ROWS: usize = 1024 * 1024;
+
+/// Largest data page, in rows: each column's encoder holds a page's values (64 KiB of f64)
+/// until the page is compressed and spilled.
+pub const PAGE_ROWS: usize = 8192;
 
 /// Streams [`EstimateRow`]s to a Parquet file.
 pub struct ParquetEstimateWriter {
@@ -80,6 +90,16 @@ impl ParquetEstimateWriter {
         comments: &[String],
         select: Option<Vec<usize>>,
     ) -> Result<Self, SimError> {
+        Self::with_row_groups(path, comments, select, ROW_GROUP_ROWS)
+    }
+
+    /// [`ParquetEstimateWriter::create`] with row groups of at most `row_group_rows` (> 0).
+    fn with_row_groups(
+        path: &str,
+        comments: &[String],
+        select: Option<Vec<usize>>,
+        row_group_rows: usize,
+    ) -> Result<Self, SimError> {
         let select = select.unwrap_or_else(|| (0..HEADER.len()).collect());
         let schema = Arc::new(Schema::new(
             select.iter().map(|&i| field(i)).collect::<Vec<_>>(),
@@ -91,7 +111,10 @@ impl ParquetEstimateWriter {
             .map_err(|e| SimError::io(path, e))?;
         let props = WriterProperties::builder()
             .set_compression(Compression::SNAPPY)
-            .set_max_row_group_row_count(Some(ROW_GROUP_ROWS))
+            .set_max_row_group_row_count(Some(row_group_rows))
+            .set_data_page_row_count_limit(PAGE_ROWS)
+            // Min and max per column chunk; per-page ones would be held until the footer.
+            .set_statistics_enabled(EnabledStatistics::Chunk)
             // Dictionaries pay for the few words of `state` and `flags`; hashing every float
             // costs more than it saves.
             .set_dictionary_enabled(false)
@@ -102,10 +125,18 @@ impl ParquetEstimateWriter {
                 comments.join("\n"),
             )]))
             .build();
-        let writer = ArrowWriter::try_new(
+        // Finished pages wait in temporary files beside the output, not on the heap.
+        let dir = std::path::Path::new(path)
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(std::path::Path::new("."));
+        let options = ArrowWriterOptions::new()
+            .with_properties(props)
+            .with_page_store_factory(Arc::new(SpillPages::new(dir.to_path_buf())));
+        let writer = ArrowWriter::try_new_with_options(
             BufWriter::with_capacity(1 << 16, f),
             schema.clone(),
-            Some(props),
+            options,
         )
         .map_err(|e| SimError::Internal(format!("{path}: cannot start the Parquet writer: {e}")))?;
         Ok(Self {
