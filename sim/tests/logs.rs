@@ -214,6 +214,7 @@ mod parquet_files {
     use arrow_array::Array;
     use arrow_array::cast::AsArray;
     use arrow_array::types::{Float64Type, UInt64Type};
+    use clampwise_sim::log_input::parquet_estimates::ROW_GROUP_ROWS;
 
     /// The Parquet file pyarrow 26.0.1 wrote from `trace.csv` gives the CSV's estimates
     /// [practice: the reference Arrow implementation's writer].
@@ -229,7 +230,7 @@ mod parquet_files {
     }
 
     /// Estimates written as Parquet hold the CSV's values bit for bit, in row groups of at
-    /// most 64 Ki rows, and `compare` reads them as the CSV.
+    /// most `ROW_GROUP_ROWS` rows, and `compare` reads them as the CSV.
     #[test]
     fn parquet_estimates_hold_the_csv_values_in_bounded_row_groups() {
         let d = scratch("logs_parquet_out");
@@ -246,13 +247,16 @@ mod parquet_files {
         }
         let b = ParquetRecordBatchReaderBuilder::try_new(std::fs::File::open(&pq_out).unwrap())
             .unwrap();
-        let groups: Vec<i64> = b
+        let groups: Vec<usize> = b
             .metadata()
             .row_groups()
             .iter()
-            .map(|g| g.num_rows())
+            .map(|g| usize::try_from(g.num_rows()).unwrap())
             .collect();
-        assert_eq!(groups, [65536, 65536, 140000 - 2 * 65536]);
+        let full = 140_000 / ROW_GROUP_ROWS;
+        let mut want = vec![ROW_GROUP_ROWS; full];
+        want.push(140_000 - full * ROW_GROUP_ROWS);
+        assert_eq!(groups, want);
         let csv_rows = data_lines(&csv_out);
         let mut k = 1;
         for batch in b.build().unwrap() {

@@ -13,6 +13,8 @@ pub mod mdf4;
 pub mod parquet;
 #[cfg(feature = "parquet")]
 pub mod parquet_estimates;
+#[cfg(feature = "parquet")]
+pub mod parquet_spill;
 
 use serde::Serialize;
 

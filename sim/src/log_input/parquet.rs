@@ -3,9 +3,11 @@
 //!
 //! [`ParquetLog`]: the top-level columns are the names the column map refers to, as
 //! a CSV's header fields; only the mapped columns are decoded (a projection), in record
-//! batches of [`BATCH_ROWS`] rows streamed row group by row group, so memory stays bounded
-//! whatever the file length. Number columns may be float or integer (any width) or boolean
-//! (a valid bit); a null is a missing value, as an empty CSV cell.
+//! batches of [`BATCH_ROWS`] rows streamed page by page, so memory stays bounded whatever the
+//! file length. What stays is set by the file's writer: one decompressed data page and the
+//! decoded dictionary per mapped column (pyarrow's defaults: pages and dictionaries of up to
+//! 1 MiB). Number columns may be float or integer (any width) or boolean (a valid bit); a null
+//! is a missing value, as an empty CSV cell.
 
 use std::fs::File;
 
@@ -22,8 +24,9 @@ use parquet::arrow::arrow_reader::{ParquetRecordBatchReader, ParquetRecordBatchR
 use super::{ColumnUse, ColumnarLog, LogFormat, LogReport, Rows, SourceReport, Timing, log_error};
 use crate::error::{DataError, SimError};
 
-/// Rows decoded at a time when reading.
-pub const BATCH_ROWS: usize = 8192;
+/// Rows decoded at a time when reading (and gathered before writing): the batch's arrays and
+/// their f64 copy are a few hundred KiB; the decoded pages behind them are the input's choice.
+pub const BATCH_ROWS: usize = 1024;
 
 /// A Parquet file opened for reading.
 pub struct ParquetLog {

@@ -4,8 +4,10 @@
 //! [`ParquetEstimateWriter`]: the estimate columns of [`HEADER`] (or those `--columns`
 //! selects, in its order): `line` as UInt64, `state` and `flags` as UTF-8 text (flags as in
 //! the CSV, names joined by ` | `, empty when none), the rest Float64, null where the CSV cell
-//! is empty. Row groups hold at most [`ROW_GROUP_ROWS`] rows, Snappy pages, dictionaries for
-//! `state` and `flags` only. The comment lines of the CSV form are stored as the file's
+//! is empty. Row groups hold at most [`ROW_GROUP_ROWS`] rows, Snappy pages of at most
+//! [`PAGE_ROWS`] rows, dictionaries for `state` and `flags` only, min/max statistics per column
+//! chunk. A row group's finished pages wait on disk ([`super::parquet_spill`]), so memory stays
+//! flat whatever the file length. The comment lines of the CSV form are stored as the file's
 //! key-value metadata under `clampwise`. Nothing appears under the name until the file is
 //! complete.
 //!
@@ -24,21 +26,29 @@ use arrow_schema::{DataType, Field, Schema};
 use parquet::arrow::ArrowWriter;
 use parquet::arrow::ProjectionMask;
 use parquet::arrow::arrow_reader::{ParquetRecordBatchReader, ParquetRecordBatchReaderBuilder};
+use parquet::arrow::arrow_writer::ArrowWriterOptions;
 use parquet::basic::Compression;
 use parquet::file::metadata::KeyValue;
-use parquet::file::properties::WriterProperties;
+use parquet::file::properties::{EnabledStatistics, WriterProperties};
 use parquet::schema::types::ColumnPath;
 
 use super::log_error;
 use super::parquet::BATCH_ROWS;
+use super::parquet_spill::SpillPages;
 use crate::csv_input::echo;
 use crate::error::{DataError, SimError};
 use crate::estimate::HEADER;
 use crate::output::TempTarget;
 use clampwise_convert::{ContactState, EstimateRow, Flags};
 
-/// Largest row group written.
-pub const ROW_GROUP_ROWS: usize = 64 * 1024;
+/// Largest row group written: the `parquet` crate's (and pyarrow's) default. The pages of a
+/// group in progress are spilled to disk ([`SpillPages`]), so its size costs no memory; fewer
+/// groups keep the footer, held in memory until the file is closed, small.
+pub const ROW_GROUP_ROWS: usize = 1024 * 1024;
+
+/// Largest data page, in rows: each column's encoder holds a page's values (64 KiB of f64)
+/// until the page is compressed and spilled.
+pub const PAGE_ROWS: usize = 8192;
 
 /// Streams [`EstimateRow`]s to a Parquet file.
 pub struct ParquetEstimateWriter {
@@ -80,6 +90,16 @@ impl ParquetEstimateWriter {
         comments: &[String],
         select: Option<Vec<usize>>,
     ) -> Result<Self, SimError> {
+        Self::with_row_groups(path, comments, select, ROW_GROUP_ROWS)
+    }
+
+    /// [`ParquetEstimateWriter::create`] with row groups of at most `row_group_rows` (> 0).
+    fn with_row_groups(
+        path: &str,
+        comments: &[String],
+        select: Option<Vec<usize>>,
+        row_group_rows: usize,
+    ) -> Result<Self, SimError> {
         let select = select.unwrap_or_else(|| (0..HEADER.len()).collect());
         let schema = Arc::new(Schema::new(
             select.iter().map(|&i| field(i)).collect::<Vec<_>>(),
@@ -91,7 +111,10 @@ impl ParquetEstimateWriter {
             .map_err(|e| SimError::io(path, e))?;
         let props = WriterProperties::builder()
             .set_compression(Compression::SNAPPY)
-            .set_max_row_group_row_count(Some(ROW_GROUP_ROWS))
+            .set_max_row_group_row_count(Some(row_group_rows))
+            .set_data_page_row_count_limit(PAGE_ROWS)
+            // Min and max per column chunk; per-page ones would be held until the footer.
+            .set_statistics_enabled(EnabledStatistics::Chunk)
             // Dictionaries pay for the few words of `state` and `flags`; hashing every float
             // costs more than it saves.
             .set_dictionary_enabled(false)
@@ -102,10 +125,18 @@ impl ParquetEstimateWriter {
                 comments.join("\n"),
             )]))
             .build();
-        let writer = ArrowWriter::try_new(
+        // Finished pages wait in temporary files beside the output, not on the heap.
+        let dir = std::path::Path::new(path)
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(std::path::Path::new("."));
+        let options = ArrowWriterOptions::new()
+            .with_properties(props)
+            .with_page_store_factory(Arc::new(SpillPages::new(dir.to_path_buf())));
+        let writer = ArrowWriter::try_new_with_options(
             BufWriter::with_capacity(1 << 16, f),
             schema.clone(),
-            Some(props),
+            options,
         )
         .map_err(|e| SimError::Internal(format!("{path}: cannot start the Parquet writer: {e}")))?;
         Ok(Self {
@@ -379,5 +410,77 @@ impl ParquetEstimateReader {
         self.at += 1;
         self.rows += 1;
         Ok(Some(row))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::indexing_slicing)]
+    use super::*;
+
+    fn row(i: u32) -> EstimateRow {
+        let x = f64::from(i);
+        EstimateRow {
+            line: u64::from(i) + 3,
+            t_s: x * 1e-3,
+            torque_nm: (!i.is_multiple_of(5)).then_some(-12.5 * x),
+            capacity_nm: (!i.is_multiple_of(11)).then_some(40.0 + x),
+            uncertainty_nm: 0.25 * x,
+            mu: 0.4 - x * 1e-6,
+            radius_m: 0.6,
+            clamp_force_n: 1000.0 + x,
+            slip_speed_rad_s: x.sin(),
+            lining_temp_c: 20.0 + x * 0.01,
+            bedding: 0.5,
+            wear_m: x * 1e-9,
+            correction: 1.0,
+            state: [
+                ContactState::Slipping,
+                ContactState::Holding,
+                ContactState::Released,
+            ][i as usize % 3],
+            flags: if i.is_multiple_of(4) {
+                Flags::SENSOR_DEGRADED | Flags::FORCE_LOST
+            } else {
+                Flags::empty()
+            },
+            torque_ref_nm: (i.is_multiple_of(2)).then_some(x),
+        }
+    }
+
+    /// Rows written through the spilling writer read back as written (an arithmetic check of
+    /// the round trip), in row groups of at most the size asked for, and only the output is
+    /// left in its folder.
+    #[test]
+    fn rows_read_back_in_bounded_row_groups() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("e.parquet");
+        let p = path.to_str().unwrap();
+        let n = 2500;
+        let mut w =
+            ParquetEstimateWriter::with_row_groups(p, &["# note".into()], None, 1000).unwrap();
+        for i in 0..n {
+            w.write(&row(i)).unwrap();
+        }
+        w.commit().unwrap();
+
+        let meta = ParquetRecordBatchReaderBuilder::try_new(File::open(p).unwrap()).unwrap();
+        let groups: Vec<i64> = meta
+            .metadata()
+            .row_groups()
+            .iter()
+            .map(|g| g.num_rows())
+            .collect();
+        assert_eq!(groups, [1000, 1000, 500]);
+        let mut r = ParquetEstimateReader::open(p).unwrap();
+        for i in 0..n {
+            assert_eq!(r.next_row().unwrap(), Some(row(i)), "row {i}");
+        }
+        assert_eq!(r.next_row().unwrap(), None);
+        let left: Vec<_> = std::fs::read_dir(dir.path())
+            .unwrap()
+            .map(|e| e.unwrap().file_name())
+            .collect();
+        assert_eq!(left, ["e.parquet"]);
     }
 }
