@@ -59,7 +59,7 @@ pub fn partial_path(dest: &Path) -> PathBuf {
 }
 
 /// The folder a file output is written in (`.` for a bare file name).
-fn folder_of(dest: &Path) -> &Path {
+pub(crate) fn folder_of(dest: &Path) -> &Path {
     match dest.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),

@@ -38,7 +38,7 @@ use super::parquet_spill::SpillPages;
 use crate::csv_input::echo;
 use crate::error::{DataError, SimError};
 use crate::estimate::HEADER;
-use crate::output::TempTarget;
+use crate::output::{TempTarget, folder_of};
 use clampwise_convert::{ContactState, EstimateRow, Flags};
 
 /// Largest row group written: the `parquet` crate's (and pyarrow's) default. The pages of a
@@ -126,13 +126,10 @@ impl ParquetEstimateWriter {
             )]))
             .build();
         // Finished pages wait in temporary files beside the output, not on the heap.
-        let dir = std::path::Path::new(path)
-            .parent()
-            .filter(|d| !d.as_os_str().is_empty())
-            .unwrap_or(std::path::Path::new("."));
+        let dir = folder_of(std::path::Path::new(path)).to_path_buf();
         let options = ArrowWriterOptions::new()
             .with_properties(props)
-            .with_page_store_factory(Arc::new(SpillPages::new(dir.to_path_buf())));
+            .with_page_store_factory(Arc::new(SpillPages::new(dir)));
         let writer = ArrowWriter::try_new_with_options(
             BufWriter::with_capacity(1 << 16, f),
             schema.clone(),
