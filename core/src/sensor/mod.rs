@@ -659,7 +659,7 @@ impl<const C: usize> SensorState<C> {
     }
 
     /// Each channel against the vote: the disagreement evidence, its flags, whether every
-    /// channel is clean, and the largest hold allowance of a used channel.
+    /// channel is clean, and the largest hold allowance and filter trail of a used channel.
     // Called once per sample: inlined, so its arrays are built in place.
     #[inline(always)]
     fn judge_channels(&mut self, cfg: &SensorConfig<C>, v: &Vote, pass: &ChannelPass) -> Judged {
